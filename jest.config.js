@@ -1,0 +1,56 @@
+/**
+ * Three jest projects:
+ *  - lib:        pure TypeScript (the I-V engine, physics, quality rules, CLI)
+ *  - server:     Express + PGlite + better-auth through supertest (ESM-only packages transformed)
+ *  - components: React Native components through the jest-expo preset
+ * Browser tests are not jest: they run from scripts/e2e.ts after the web export.
+ */
+const nodeBabel = [
+  'babel-jest',
+  {
+    configFile: false,
+    babelrc: false,
+    presets: [['@babel/preset-typescript', { allowDeclareFields: true }]],
+    plugins: [
+      '@babel/plugin-transform-modules-commonjs',
+      '@babel/plugin-transform-dynamic-import',
+      'babel-plugin-transform-import-meta',
+    ],
+  },
+];
+
+const esmPackages = [
+  'better-auth', '@better-auth', 'better-call', 'jose', 'nanostores', '@noble', 'rou3', 'uncrypto',
+  '@electric-sql/pglite', 'ml-levenberg-marquardt', 'ml-matrix', 'ml-array-[^/]+', 'is-any-array',
+  'drizzle-orm', 'defu', 'kysely', '@standard-schema', 'zod', 'mathjs', 'fraction.js', 'decimal.js',
+  'complex.js', 'typed-function', 'javascript-natural-sort', 'escape-latex', 'seedrandom', 'tiny-emitter',
+  'fast-check', 'pure-rand', 'nodemailer',
+];
+
+const nodeProject = (name, roots) => ({
+  displayName: name,
+  testEnvironment: 'node',
+  roots,
+  testMatch: ['**/*.test.ts'],
+  transform: { '\\.[cm]?[jt]sx?$': nodeBabel },
+  transformIgnorePatterns: [`/node_modules/(?!(${esmPackages.join('|')})/)`],
+  moduleNameMapper: { '^@/(.*)$': '<rootDir>/$1' },
+  moduleFileExtensions: ['ts', 'tsx', 'js', 'mjs', 'cjs', 'json'],
+});
+
+module.exports = {
+  projects: [
+    nodeProject('lib', ['<rootDir>/tests/lib', '<rootDir>/tests/cli']),
+    nodeProject('server', ['<rootDir>/tests/server', '<rootDir>/tests/robustness']),
+    {
+      displayName: 'components',
+      preset: 'jest-expo/web',
+      roots: ['<rootDir>/tests/components'],
+      testMatch: ['**/*.test.tsx'],
+      moduleNameMapper: { '^@/(.*)$': '<rootDir>/$1' },
+      transformIgnorePatterns: [
+        'node_modules/(?!((jest-)?react-native|@react-native(-community)?|expo(nent)?|@expo(nent)?/.*|@expo-google-fonts/.*|react-navigation|@react-navigation/.*|react-native-svg|victory.*|@tanstack/.*))',
+      ],
+    },
+  ],
+};

@@ -1,0 +1,68 @@
+/**
+ * Builds the Express app (no listen): better-auth's handler first (it reads its own body),
+ * then JSON, then the guarded /api routers, the JSON 404 and the one error handler, and last the
+ * exported web build with an SPA fallback. Tests import this with an in-memory database.
+ */
+import { existsSync } from 'node:fs';
+import path from 'node:path';
+import { toNodeHandler } from 'better-auth/node';
+import express from 'express';
+import type { Express } from 'express';
+import type { Db } from '@/db/client';
+import type { Auth } from '@/server/auth';
+import { apiNotFound, errorHandler } from '@/server/errors';
+import type { Mailer } from '@/server/mail';
+import { requireSession } from '@/server/permissions';
+import { healthRouter } from '@/server/routes/health';
+import { meRouter } from '@/server/routes/me';
+import { outboxRouter } from '@/server/routes/outbox';
+import { usersRouter } from '@/server/routes/users';
+
+export type AppDeps = {
+  db: Db;
+  auth: Auth;
+  mailer: Mailer;
+  /** Folder of the exported web app (dist/); served when it exists. */
+  webDir?: string;
+};
+
+export function createApp(deps: AppDeps): Express {
+  const { db, auth } = deps;
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', false);
+
+  // The sign-in rate limit keys on this header; only the socket's address may set it.
+  app.use((req, _res, next) => {
+    req.headers['x-quasilevel-client-ip'] = req.socket.remoteAddress ?? 'unknown';
+    next();
+  });
+
+  const authHandler = toNodeHandler(auth);
+  app.all('/api/auth/{*splat}', (req, res) => authHandler(req, res));
+
+  app.use('/api', express.json({ limit: '1mb' }));
+  app.use('/api/health', healthRouter());
+
+  const session = requireSession(auth, db);
+  app.use('/api/me', session, meRouter());
+  app.use('/api/users', session, usersRouter(db, auth));
+  app.use('/api/outbox', session, outboxRouter(db));
+
+  app.use('/api', apiNotFound);
+  app.use('/api', errorHandler);
+
+  const webDir = deps.webDir;
+  if (webDir && existsSync(path.join(webDir, 'index.html'))) {
+    app.use(express.static(webDir, { index: false, maxAge: '1h' }));
+    app.get('/{*splat}', (_req, res) => {
+      res.sendFile(path.join(webDir, 'index.html'));
+    });
+  } else {
+    app.get('/', (_req, res) => {
+      res.type('text').send('Quasilevel API is running. The web app is not built: run `npm run build:web`.');
+    });
+  }
+  app.use(errorHandler);
+  return app;
+}

@@ -1,0 +1,59 @@
+/**
+ * One error shape for every API answer: `{ code, message }` (plus `details` for validation).
+ * Route handlers throw HttpError; Express 5 forwards rejected promises to `errorHandler`.
+ */
+import type { ErrorRequestHandler, RequestHandler } from 'express';
+import { ZodError } from 'zod';
+
+export class HttpError extends Error {
+  constructor(
+    readonly status: number,
+    readonly code: string,
+    message: string,
+    readonly details?: unknown,
+  ) {
+    super(message);
+  }
+}
+
+export const notFound = (what: string) => new HttpError(404, 'not_found', `${what} was not found.`);
+
+/** JSON 404 for unknown /api routes. */
+export const apiNotFound: RequestHandler = (req) => {
+  throw new HttpError(404, 'no_such_route', `There is no API route ${req.method} ${req.path}.`);
+};
+
+function describeZod(err: ZodError): string {
+  return err.issues
+    .slice(0, 5)
+    .map((i) => (i.path.length ? `${i.path.join('.')}: ${i.message}` : i.message))
+    .join('; ');
+}
+
+/** Turns anything thrown into `{ code, message }` with the right status; never a stack trace. */
+export const errorHandler: ErrorRequestHandler = (err, _req, res, next) => {
+  if (res.headersSent) return next(err);
+  if (err instanceof HttpError) {
+    res.status(err.status).json({ code: err.code, message: err.message, ...(err.details ? { details: err.details } : {}) });
+    return;
+  }
+  if (err instanceof ZodError) {
+    res.status(400).json({ code: 'invalid_input', message: describeZod(err), details: err.issues });
+    return;
+  }
+  const e = err as { type?: string; status?: number; code?: string; message?: string };
+  if (e?.type === 'entity.parse.failed') {
+    res.status(400).json({ code: 'malformed_json', message: 'The request body is not valid JSON.' });
+    return;
+  }
+  if (e?.type === 'entity.too.large') {
+    res.status(413).json({ code: 'too_large', message: 'The request body is larger than this route accepts.' });
+    return;
+  }
+  if (typeof e?.status === 'number' && e.status >= 400 && e.status < 500) {
+    res.status(e.status).json({ code: e.code ?? 'bad_request', message: e.message ?? 'Bad request.' });
+    return;
+  }
+  console.error('[quasilevel] unhandled error:', err);
+  res.status(500).json({ code: 'internal', message: 'Something went wrong on the server. The request was not completed.' });
+};

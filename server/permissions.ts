@@ -1,0 +1,69 @@
+/**
+ * Request guards. `requireSession` resolves the better-auth session and the caller's membership
+ * (organisation + role) once per request; `requirePermission` checks the role table in
+ * lib/auth/roles.ts. The screens hide what a role cannot use; these guards are what enforce it.
+ */
+import { fromNodeHeaders } from 'better-auth/node';
+import { eq } from 'drizzle-orm';
+import type { NextFunction, Request, RequestHandler, Response } from 'express';
+import type { Db } from '@/db/client';
+import { member, organization } from '@/db/schema';
+import { can, isRole } from '@/lib/auth/roles';
+import type { Permission, Role } from '@/lib/auth/roles';
+import type { Auth } from '@/server/auth';
+import { HttpError } from '@/server/errors';
+
+export type Caller = {
+  user: { id: string; name: string; email: string };
+  sessionId: string;
+  organization: { id: string; name: string; domain: string };
+  memberId: string;
+  role: Role;
+};
+
+declare module 'express-serve-static-core' {
+  interface Request {
+    caller?: Caller;
+  }
+}
+
+/** The caller of a guarded route (set by requireSession). */
+export function callerOf(req: Request): Caller {
+  if (!req.caller) throw new HttpError(401, 'unauthenticated', 'Sign in to use this.');
+  return req.caller;
+}
+
+export function requireSession(auth: Auth, db: Db): RequestHandler {
+  return async (req: Request, _res: Response, next: NextFunction) => {
+    const found = await auth.api.getSession({ headers: fromNodeHeaders(req.headers) });
+    if (!found) throw new HttpError(401, 'unauthenticated', 'Your session is missing or has expired. Sign in again.');
+    const [m] = await db
+      .select({ memberId: member.id, role: member.role, orgId: organization.id, orgName: organization.name, domain: organization.domain })
+      .from(member)
+      .innerJoin(organization, eq(member.organizationId, organization.id))
+      .where(eq(member.userId, found.user.id))
+      .limit(1);
+    if (!m || !isRole(m.role)) {
+      throw new HttpError(403, 'no_organisation', 'Your account does not belong to an organisation yet. Ask an administrator.');
+    }
+    req.caller = {
+      user: { id: found.user.id, name: found.user.name, email: found.user.email },
+      sessionId: found.session.id,
+      organization: { id: m.orgId, name: m.orgName, domain: m.domain },
+      memberId: m.memberId,
+      role: m.role,
+    };
+    next();
+  };
+}
+
+/** 403 unless the caller's role grants `permission`. Use after requireSession. */
+export function requirePermission(permission: Permission): RequestHandler {
+  return (req, _res, next) => {
+    const c = callerOf(req);
+    if (!can(c.role, permission)) {
+      throw new HttpError(403, 'forbidden', `Your role (${c.role}) may not do this: it needs ${permission}.`);
+    }
+    next();
+  };
+}
