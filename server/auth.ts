@@ -52,6 +52,8 @@ export type AuthConfig = {
   signInPerMinute?: number;
   /** Session lifetime in seconds. */
   sessionSeconds?: number;
+  /** better-auth's own log level; tests pass 'error' to keep expected warnings out of the output. */
+  logLevel?: 'debug' | 'info' | 'warn' | 'error';
 };
 
 /** Lower-cased domain of an e-mail address, or null when it has none. */
@@ -84,10 +86,15 @@ export async function placeNewUser(db: Db, u: { id: string; email: string }): Pr
 }
 
 export function createAuth(cfg: AuthConfig) {
+  return buildAuth(cfg) as Auth;
+}
+
+function buildAuth(cfg: AuthConfig) {
   const perMinute = cfg.signInPerMinute ?? 10;
   return betterAuth({
     baseURL: cfg.baseURL,
     basePath: '/api/auth',
+    logger: { level: cfg.logLevel ?? 'warn' },
     secret: cfg.secret,
     trustedOrigins: cfg.trustedOrigins ?? [],
     database: drizzleAdapter(cfg.db, { provider: 'pg', schema }),
@@ -154,4 +161,11 @@ export function createAuth(cfg: AuthConfig) {
   });
 }
 
-export type Auth = ReturnType<typeof createAuth>;
+type BaseAuth = ReturnType<typeof buildAuth>;
+
+/** The organization plugin's endpoint we call from our own routes (its inferred type is lost in the generic). */
+type OrgApi = {
+  updateMemberRole: (req: { headers: Headers; body: { memberId: string; role: string; organizationId: string } }) => Promise<unknown>;
+};
+
+export type Auth = BaseAuth & { api: BaseAuth['api'] & OrgApi };

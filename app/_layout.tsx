@@ -1,0 +1,50 @@
+import { QueryClientProvider } from '@tanstack/react-query';
+import { useFonts } from 'expo-font';
+import { Stack } from 'expo-router';
+import { ActivityIndicator, View } from 'react-native';
+import { theme } from '@/components/theme';
+import { queryClient } from '@/lib/api/query-client';
+import { useMe } from '@/lib/api/session';
+
+export { ErrorBoundary } from 'expo-router';
+
+/** Chooses the signed-in or signed-out route group from the session. */
+function Routes() {
+  const me = useMe();
+  if (me.isPending) {
+    return (
+      <View style={{ flex: 1, alignItems: 'center', justifyContent: 'center', backgroundColor: theme.color.paper }} testID="app-loading">
+        <ActivityIndicator color={theme.color.electron} />
+      </View>
+    );
+  }
+  const signedIn = !!me.data;
+  return (
+    <Stack screenOptions={{ headerShown: false, contentStyle: { backgroundColor: theme.color.paper } }}>
+      <Stack.Protected guard={signedIn}>
+        <Stack.Screen name="(app)" />
+      </Stack.Protected>
+      <Stack.Protected guard={!signedIn}>
+        <Stack.Screen name="(auth)" />
+      </Stack.Protected>
+      <Stack.Screen name="+not-found" />
+    </Stack>
+  );
+}
+
+export default function RootLayout() {
+  const [fontsLoaded, fontError] = useFonts({
+    PlexSans: require('@/assets/fonts/IBMPlexSans_400Regular.ttf'),
+    'PlexSans-Medium': require('@/assets/fonts/IBMPlexSans_500Medium.ttf'),
+    'PlexSans-SemiBold': require('@/assets/fonts/IBMPlexSans_600SemiBold.ttf'),
+    'PlexSans-Bold': require('@/assets/fonts/IBMPlexSans_700Bold.ttf'),
+    PlexMono: require('@/assets/fonts/IBMPlexMono_400Regular.ttf'),
+    'PlexMono-SemiBold': require('@/assets/fonts/IBMPlexMono_600SemiBold.ttf'),
+  });
+  if (!fontsLoaded && !fontError) return null;
+  return (
+    <QueryClientProvider client={queryClient}>
+      <Routes />
+    </QueryClientProvider>
+  );
+}

@@ -1,0 +1,38 @@
+/**
+ * Quasilevel's look: warm paper, deep ink, and two signal colours taken from the product's
+ * idea — the electron level (teal) and the hole level (amber) that split apart under light.
+ */
+export const theme = {
+  color: {
+    paper: '#F4F2EC',
+    surface: '#FFFFFF',
+    sunken: '#ECE9E0',
+    ink: '#111A2E',
+    inkSoft: '#3C4760',
+    muted: '#6B7385',
+    line: '#D9D4C7',
+    electron: '#0F7F74',
+    electronSoft: '#DCEFEC',
+    hole: '#C27C00',
+    holeSoft: '#F8EBCF',
+    danger: '#A8261D',
+    dangerSoft: '#F8E0DD',
+    ok: '#2B6E33',
+    okSoft: '#E0EFDF',
+    navBg: '#111A2E',
+    navText: '#C9CFDC',
+    navActive: '#FFFFFF',
+  },
+  font: {
+    regular: 'PlexSans',
+    medium: 'PlexSans-Medium',
+    semibold: 'PlexSans-SemiBold',
+    bold: 'PlexSans-Bold',
+    mono: 'PlexMono',
+    monoBold: 'PlexMono-SemiBold',
+  },
+  radius: { s: 4, m: 8, l: 14 },
+  space: (n: number) => n * 4,
+  /** Width from which the layout uses a side navigation and several columns. */
+  wideFrom: 1024,
+} as const;

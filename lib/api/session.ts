@@ -1,0 +1,77 @@
+/** Session, sign-in and account hooks (better-auth's endpoints and /api/me). */
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import type { Permission, Role } from '@/lib/auth/roles';
+import { ApiError, apiFetch } from '@/lib/api/client';
+import type { SignInInput, SignUpInput } from '@/lib/schemas/auth';
+
+export type Me = {
+  user: { id: string; name: string; email: string; role: Role };
+  organization: { id: string; name: string; domain: string };
+  role: Role;
+  permissions: Permission[];
+};
+
+export const sessionKeys = {
+  all: ['session'] as const,
+  me: () => [...sessionKeys.all, 'me'] as const,
+};
+
+/** The signed-in user, or null when signed out (401). */
+export function useMe() {
+  return useQuery({
+    queryKey: sessionKeys.me(),
+    queryFn: async (): Promise<Me | null> => {
+      try {
+        return await apiFetch<Me>('/api/me');
+      } catch (err) {
+        if (err instanceof ApiError && err.status === 401) return null;
+        throw err;
+      }
+    },
+    staleTime: 60_000,
+  });
+}
+
+export function useSignIn() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: SignInInput) => apiFetch('/api/auth/sign-in/email', { body: input }),
+    onSuccess: async () => {
+      await qc.invalidateQueries({ queryKey: sessionKeys.all });
+    },
+  });
+}
+
+export function useSignUp() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: SignUpInput) => apiFetch('/api/auth/sign-up/email', { body: input }),
+    onSuccess: async () => {
+      await qc.invalidateQueries({ queryKey: sessionKeys.all });
+    },
+  });
+}
+
+export function useSignOut() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: () => apiFetch('/api/auth/sign-out', { method: 'POST', body: {} }),
+    onSuccess: async () => {
+      qc.clear();
+      qc.setQueryData(sessionKeys.me(), null);
+    },
+  });
+}
+
+export function useRequestPasswordReset() {
+  return useMutation({
+    mutationFn: (email: string) =>
+      apiFetch('/api/auth/request-password-reset', { body: { email, redirectTo: '/reset-password' } }),
+  });
+}
+
+export function useResetPassword() {
+  return useMutation({
+    mutationFn: (input: { token: string; newPassword: string }) => apiFetch('/api/auth/reset-password', { body: input }),
+  });
+}

@@ -1,0 +1,79 @@
+/**
+ * Headless Chromium (Debian's /usr/bin/chromium) driven by playwright-core, with the flags
+ * this workplace needs (no sandbox as root, no background networking).
+ */
+import { existsSync, mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { chromium } from 'playwright-core';
+import type { BrowserContext, Page } from 'playwright-core';
+import { REPO_ROOT } from '@/tests/support/server-process';
+
+export const CHROMIUM = process.env.CHROMIUM_PATH || '/usr/bin/chromium';
+export const SCREENSHOT_DIR = path.join(REPO_ROOT, 'artifacts', 'screenshots');
+
+export const VIEWPORTS = {
+  phone: { width: 390, height: 844 },
+  wide: { width: 1440, height: 900 },
+} as const;
+
+export async function openBrowser(viewport: { width: number; height: number }): Promise<{ context: BrowserContext; page: Page; close: () => Promise<void> }> {
+  if (!existsSync(CHROMIUM)) throw new Error(`Chromium not found at ${CHROMIUM}. Install it with: apt-get install -y chromium`);
+  const profile = mkdtempSync(path.join(os.tmpdir(), 'ql-chromium-'));
+  const context = await chromium.launchPersistentContext(profile, {
+    executablePath: CHROMIUM,
+    headless: true,
+    viewport,
+    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+  });
+  const page = context.pages()[0] ?? (await context.newPage());
+  return {
+    context,
+    page,
+    close: async () => {
+      await context.close();
+      rmSync(profile, { recursive: true, force: true });
+    },
+  };
+}
+
+export async function screenshot(page: Page, name: string): Promise<string> {
+  mkdirSync(SCREENSHOT_DIR, { recursive: true });
+  const file = path.join(SCREENSHOT_DIR, `${name}.png`);
+  await page.screenshot({ path: file, fullPage: false });
+  return file;
+}
+
+/** Signs in through the form like a person would. */
+export async function signInThroughForm(page: Page, baseUrl: string, email: string, password: string): Promise<void> {
+  await page.goto(`${baseUrl}/sign-in`, { waitUntil: 'load' });
+  await page.getByTestId('email').fill(email);
+  await page.getByTestId('password').fill(password);
+  await page.getByTestId('sign-in-submit').click();
+  await page.getByTestId('overview-screen').waitFor({ timeout: 20_000 });
+}
+
+/** Elements whose text is cut off or that stick out of the viewport horizontally. */
+export async function layoutProblems(page: Page): Promise<string[]> {
+  return page.evaluate(() => {
+    const problems: string[] = [];
+    const vw = document.documentElement.clientWidth;
+    if (document.documentElement.scrollWidth > vw + 1) problems.push(`page scrolls sideways: ${document.documentElement.scrollWidth} > ${vw}`);
+    for (const el of Array.from(document.querySelectorAll<HTMLElement>('[dir="auto"]'))) {
+      const r = el.getBoundingClientRect();
+      if (r.width === 0 || !el.textContent?.trim()) continue;
+      const style = getComputedStyle(el);
+      const clippedByDesign = style.textOverflow === 'ellipsis' || style.webkitLineClamp !== 'none';
+      if (!clippedByDesign && el.scrollWidth > el.clientWidth + 2 && style.overflow !== 'visible') problems.push(`text cut: "${el.textContent.slice(0, 40)}"`);
+      if (r.right > vw + 1 && !el.closest('[data-scroll-x]') && !isInHorizontalScroller(el)) problems.push(`off-screen: "${el.textContent.slice(0, 40)}" right=${Math.round(r.right)}`);
+    }
+    return problems;
+    function isInHorizontalScroller(node: HTMLElement): boolean {
+      for (let p = node.parentElement; p; p = p.parentElement) {
+        const s = getComputedStyle(p);
+        if ((s.overflowX === 'auto' || s.overflowX === 'scroll') && p.scrollWidth > p.clientWidth) return true;
+      }
+      return false;
+    }
+  });
+}

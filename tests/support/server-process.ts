@@ -1,0 +1,86 @@
+/**
+ * Starts the real server (`tsx server/index.ts`) as a child process on a free loopback port
+ * with its own data folder, for browser, crash and load tests. Always pair with stop().
+ */
+import { spawn } from 'node:child_process';
+import type { ChildProcess } from 'node:child_process';
+import { mkdtempSync, rmSync } from 'node:fs';
+import net from 'node:net';
+import os from 'node:os';
+import path from 'node:path';
+
+export const REPO_ROOT = path.resolve(__dirname, '..', '..');
+
+export async function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const s = net.createServer();
+    s.unref();
+    s.on('error', reject);
+    s.listen(0, '127.0.0.1', () => {
+      const port = (s.address() as net.AddressInfo).port;
+      s.close(() => resolve(port));
+    });
+  });
+}
+
+export type ServerProcess = {
+  url: string;
+  port: number;
+  dataDir: string;
+  child: ChildProcess;
+  log: () => string;
+  /** SIGTERM and wait for exit (or SIGKILL with `kill: true`). */
+  stop: (opts?: { kill?: boolean; keepData?: boolean }) => Promise<number | null>;
+};
+
+export async function startServerProcess(opts: { dataDir?: string; env?: Record<string, string>; timeoutMs?: number } = {}): Promise<ServerProcess> {
+  const port = await freePort();
+  const dataDir = opts.dataDir ?? mkdtempSync(path.join(os.tmpdir(), 'ql-data-'));
+  const url = `http://127.0.0.1:${port}`;
+  let output = '';
+  const child = spawn(process.execPath, [path.join(REPO_ROOT, 'node_modules', 'tsx', 'dist', 'cli.mjs'), path.join(REPO_ROOT, 'server', 'index.ts')], {
+    cwd: REPO_ROOT,
+    env: {
+      ...process.env,
+      PORT: String(port),
+      QUASILEVEL_DATA_DIR: dataDir,
+      PUBLIC_URL: url,
+      QUASILEVEL_SIGNIN_PER_MINUTE: '0',
+      ...opts.env,
+    },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
+  child.stdout!.on('data', (d) => (output += d));
+  child.stderr!.on('data', (d) => (output += d));
+  const exited = new Promise<number | null>((resolve) => child.on('exit', (code) => resolve(code)));
+
+  const deadline = Date.now() + (opts.timeoutMs ?? 60_000);
+  for (;;) {
+    if (child.exitCode !== null) throw new Error(`server exited early (${child.exitCode}):\n${output}`);
+    try {
+      const res = await fetch(`${url}/api/health`);
+      if (res.ok) break;
+    } catch {
+      /* not up yet */
+    }
+    if (Date.now() > deadline) {
+      child.kill('SIGKILL');
+      throw new Error(`server did not answer /api/health in time:\n${output}`);
+    }
+    await new Promise((r) => setTimeout(r, 250));
+  }
+  return {
+    url,
+    port,
+    dataDir,
+    child,
+    log: () => output,
+    stop: async ({ kill = false, keepData = false } = {}) => {
+      if (child.exitCode === null) child.kill(kill ? 'SIGKILL' : 'SIGTERM');
+      const code = await Promise.race([exited, new Promise<number | null>((r) => setTimeout(() => r(-1), 15_000))]);
+      if (code === -1) child.kill('SIGKILL');
+      if (!keepData && !opts.dataDir) rmSync(dataDir, { recursive: true, force: true });
+      return code;
+    },
+  };
+}
