@@ -1,9 +1,9 @@
 /**
- * Three jest projects:
+ * Four jest projects:
  *  - lib:        pure TypeScript (the I-V engine, physics, quality rules, CLI)
  *  - server:     Express + PGlite + better-auth through supertest (ESM-only packages transformed)
  *  - components: React Native components through the jest-expo preset
- * Browser tests are not jest: they run from scripts/e2e.ts after the web export.
+ *  - e2e:        headless Chromium against the real server (run by scripts/test.ts after the web export)
  */
 const nodeBabel = [
   'babel-jest',
@@ -42,6 +42,7 @@ module.exports = {
   projects: [
     nodeProject('lib', ['<rootDir>/tests/lib', '<rootDir>/tests/cli']),
     nodeProject('server', ['<rootDir>/tests/server', '<rootDir>/tests/robustness']),
+    { ...nodeProject('e2e', ['<rootDir>/tests/e2e']), setupFilesAfterEnv: ['<rootDir>/tests/e2e/setup.ts'] },
     {
       displayName: 'components',
       preset: 'jest-expo/web',

@@ -1,3 +1,4 @@
+import { useRouter } from 'expo-router';
 import { View } from 'react-native';
 import { Button } from '@/components/button';
 import { Card } from '@/components/card';
@@ -10,6 +11,7 @@ import { useMe, useSignOut } from '@/lib/api/session';
 export default function AccountScreen() {
   const me = useMe();
   const signOut = useSignOut();
+  const router = useRouter();
   const d = me.data;
   if (!d) return null;
   return (
@@ -21,7 +23,7 @@ export default function AccountScreen() {
           <Txt variant="caption">{d.organization.name} · {d.organization.domain}</Txt>
         </View>
         <FormError error={signOut.error} />
-        <Button label="Sign out" kind="secondary" onPress={() => signOut.mutate()} busy={signOut.isPending} testID="sign-out" />
+        <Button label="Sign out" kind="secondary" onPress={() => signOut.mutate(undefined, { onSuccess: () => router.replace('/sign-in') })} busy={signOut.isPending} testID="sign-out" />
       </Card>
     </Screen>
   );

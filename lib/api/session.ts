@@ -57,8 +57,9 @@ export function useSignOut() {
   return useMutation({
     mutationFn: () => apiFetch('/api/auth/sign-out', { method: 'POST', body: {} }),
     onSuccess: async () => {
-      qc.clear();
+      // Keep the session query (its observers drive the route guard) and drop everything else.
       qc.setQueryData(sessionKeys.me(), null);
+      qc.removeQueries({ predicate: (q) => q.queryKey[0] !== sessionKeys.all[0] });
     },
   });
 }

@@ -1,0 +1,67 @@
+/** One call for a whole curve, as the server and the CLI use it: key figures, flags and fits. */
+import { fitConditions } from '@/lib/iv/fit-common';
+import { fitDoubleDiode } from '@/lib/iv/fit-double';
+import { fitSingleDiode } from '@/lib/iv/fit-single';
+import { keyFigures } from '@/lib/iv/key-figures';
+import type { FitObjective, FitResult, Flag, IvCurve, Metrics } from '@/lib/iv/types';
+
+/** Options of `analyseCurve`; tempC and cells override the curve's metadata. */
+export type AnalyseOptions = {
+  tempC?: number;
+  cells?: number;
+  objective?: FitObjective;
+  /** Idealities of the double-diode fit (default 'fixed': n1 = 1, n2 = 2). */
+  idealities?: 'fixed' | 'free';
+  /** Which fits to run, in this order (default both). */
+  models?: ('single' | 'double')[];
+};
+
+/** A fit RMSE above this share of Isc means the model does not describe the curve. */
+const POOR_FIT_SHARE = 0.01;
+
+/**
+ * Key figures, flags and the single- and double-diode fits of one curve. Throws IvInputError
+ * when the curve is unusable; a fit that fails is reported in `fits` (converged false) and flagged.
+ */
+export function analyseCurve(curve: IvCurve, opts: AnalyseOptions = {}): { metrics: Metrics; flags: Flag[]; fits: FitResult[] } {
+  const { metrics, flags } = keyFigures(curve);
+  const { tempC, cells } = fitConditions(curve, opts);
+  if (opts.tempC === undefined && curve.meta?.tempC === undefined) {
+    flags.push({
+      code: 'temperature-assumed',
+      severity: 'info',
+      message: 'No cell temperature was given, so 25 °C was assumed for the diode fits; the ideality factor depends on it.',
+    });
+  }
+  if (opts.cells === undefined && curve.meta?.cells === undefined && metrics.voc_v > 1.2) {
+    flags.push({
+      code: 'cells-unknown',
+      severity: 'warn',
+      message: `No cell count was given, but Voc is ${Number(metrics.voc_v.toPrecision(3))} V, more than one cell delivers: the fits assumed a single cell. Give the number of cells in series.`,
+    });
+  }
+
+  const fits: FitResult[] = [];
+  let single: FitResult | undefined;
+  for (const model of opts.models ?? ['single', 'double']) {
+    if (model === 'single') {
+      single = fitSingleDiode(curve, { tempC, cells, metrics, objective: opts.objective });
+      fits.push(single);
+    } else {
+      fits.push(fitDoubleDiode(curve, { tempC, cells, metrics, objective: opts.objective, idealities: opts.idealities, single: single?.objective === 'true-current' ? single : undefined }));
+    }
+  }
+  for (const fit of fits) {
+    const name = fit.model === 'single-diode' ? 'single-diode' : 'double-diode';
+    if (!fit.converged) {
+      flags.push({ code: 'fit-failed', severity: 'warn', message: `The ${name} fit did not converge, so it gives no parameters. ${fit.message ?? ''}`.trim() });
+    } else if (fit.model === 'single-diode' && fit.rmse_true_current_a !== null && fit.rmse_true_current_a > POOR_FIT_SHARE * metrics.isc_a) {
+      flags.push({
+        code: 'poor-fit',
+        severity: 'warn',
+        message: `The single-diode model misses this curve by ${Number(((fit.rmse_true_current_a / metrics.isc_a) * 100).toPrecision(2))} % of Isc on average: the curve has a shape one diode cannot make (steps, mismatch, noise or a wrong cell count).`,
+      });
+    }
+  }
+  return { metrics, flags, fits };
+}

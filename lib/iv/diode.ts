@@ -1,0 +1,224 @@
+/**
+ * Single- and double-diode equivalent circuits of a device of `cells` cells in series:
+ *
+ *   I = Iph − Σ I0k·[exp((V + I·Rs)/(nk·cells·Vt)) − 1] − (V + I·Rs)/Rsh
+ *
+ * Single diode: explicit Lambert W form (Jain & Kapoor 2004, Sol. Energy Mater. Sol. Cells
+ * 81:269) evaluated in log form so a 72-cell module at any bias never overflows.
+ * Double diode: no closed form; a Newton iteration on I that converges monotonically because
+ * the residual is decreasing and concave in I (see `solveDoubleDiodeCurrent`).
+ */
+import { thermalVoltage_V } from '@/lib/physics/constants';
+import { IvInputError } from '@/lib/iv/errors';
+import { lambertWExp } from '@/lib/iv/lambert-w';
+import type { DoubleDiodeParams, IvCurve, SingleDiodeParams } from '@/lib/iv/types';
+
+/** Modified ideality voltage a = n·cells·kT/q, V. */
+export function idealityVoltage_V(n: number, cells: number, tempC: number): number {
+  return n * cells * thermalVoltage_V(tempC);
+}
+
+/**
+ * Single-diode current, A, at terminal voltage v given a = n·cells·Vt (V).
+ * Kernel used by the fits; parameters as plain numbers for speed.
+ */
+export function sdCurrent(iph: number, i0: number, a: number, rs: number, rsh: number, v: number): number {
+  if (rs <= 0) return iph - (Math.exp(Math.log(i0) + v / a) - i0) - v / rsh;
+  const s = rs + rsh;
+  const x = Math.log((rs * i0 * rsh) / (a * s)) + (rsh * (rs * (iph + i0) + v)) / (a * s);
+  const w = lambertWExp(x);
+  // (a/Rs)·W = exp(x + ln(a/Rs) − W) because W·e^W = e^x; the exponential form keeps full
+  // precision when Rs is tiny and W ≪ 1.
+  const diode = w < 1 ? Math.exp(x + Math.log(a / rs) - w) : (a / rs) * w;
+  return (rsh * (iph + i0) - v) / s - diode;
+}
+
+/** Single-diode terminal voltage, V, at current i (A) given a = n·cells·Vt (V). */
+export function sdVoltage(iph: number, i0: number, a: number, rs: number, rsh: number, i: number): number {
+  const u = (rsh * (iph + i0 - i)) / a;
+  const lnC = Math.log((i0 * rsh) / a);
+  const x = lnC + u;
+  const w = lambertWExp(x);
+  // Vd = a·(u − W); written as a·(ln W − ln C) to avoid cancelling two large numbers when Rsh is large.
+  const lnW = x < -40 ? x - w : Math.log(w);
+  const vd = a * (lnW - lnC);
+  return vd - i * rs;
+}
+
+/**
+ * Double-diode current, A, at voltage v by Newton on F(I) = Iph − D(V + I·Rs) − (V + I·Rs)/Rsh − I.
+ * F is strictly decreasing and concave in I, so from a point right of the root Newton descends
+ * monotonically; from the left the first step overshoots to the right, capped by the bound
+ * I ≤ Iph + I01 + I02 + max(0, −V)/Rsh. `guess` (e.g. the measured current) speeds it up.
+ */
+export function solveDoubleDiodeCurrent(
+  iph: number,
+  i01: number,
+  a1: number,
+  i02: number,
+  a2: number,
+  rs: number,
+  rsh: number,
+  v: number,
+  guess?: number,
+): number {
+  const hi = iph + i01 + i02 + Math.max(0, -v) / rsh;
+  const ln01 = Math.log(i01);
+  const ln02 = Math.log(i02);
+  const f = (vd: number) => Math.exp(Math.min(ln01 + vd / a1, 700)) - i01 + Math.exp(Math.min(ln02 + vd / a2, 700)) - i02;
+  if (rs <= 0) return iph - f(v) - v / rsh;
+  let i = guess !== undefined && Number.isFinite(guess) ? Math.min(guess, hi) : Math.min(iph - f(v) - v / rsh, hi);
+  for (let k = 0; k < 200; k++) {
+    const vd = v + i * rs;
+    const e1 = Math.exp(Math.min(ln01 + vd / a1, 700));
+    const e2 = Math.exp(Math.min(ln02 + vd / a2, 700));
+    const F = iph - (e1 - i01) - (e2 - i02) - vd / rsh - i;
+    const dF = -rs * (e1 / a1 + e2 / a2 + 1 / rsh) - 1;
+    let next = i - F / dF;
+    if (next > hi) next = hi;
+    if (Math.abs(next - i) <= 1e-15 * Math.max(Math.abs(i), Math.abs(next), 1e-12)) return next;
+    i = next;
+  }
+  return i;
+}
+
+/** Double-diode terminal voltage, V, at current i (A): Newton on the diode voltage, monotone from above. */
+export function solveDoubleDiodeVoltage(
+  iph: number,
+  i01: number,
+  a1: number,
+  i02: number,
+  a2: number,
+  rs: number,
+  rsh: number,
+  i: number,
+): number {
+  const target = iph - i;
+  // Start where the first diode alone already carries more than Iph − I: G(vd) ≤ 0 there.
+  let vd = Math.max(a1 * Math.log1p(Math.max(target, 0) / i01), a2 * Math.log1p(Math.max(target, 0) / i02));
+  if (target < 0) vd = Math.min(0, target * rsh);
+  for (let k = 0; k < 200; k++) {
+    const e1 = i01 * Math.exp(vd / a1);
+    const e2 = i02 * Math.exp(vd / a2);
+    const G = target - (e1 - i01) - (e2 - i02) - vd / rsh;
+    const dG = -(e1 / a1 + e2 / a2 + 1 / rsh);
+    const step = G / dG;
+    vd -= step;
+    if (Math.abs(step) <= 1e-15 * Math.max(Math.abs(vd), 1e-9)) break;
+  }
+  return vd - i * rs;
+}
+
+function checkParams(p: Record<string, number>, where: string): void {
+  for (const [key, value] of Object.entries(p)) {
+    if (!Number.isFinite(value)) throw new IvInputError('bad-parameter', `${where}: ${key} must be a finite number, got ${value}`);
+  }
+  for (const key of ['i0_a', 'i01_a', 'i02_a', 'n', 'n1', 'n2', 'rsh_ohm']) {
+    if (key in p && !(p[key] > 0)) throw new IvInputError('bad-parameter', `${where}: ${key} must be positive, got ${p[key]}`);
+  }
+  if (p.rs_ohm < 0) throw new IvInputError('bad-parameter', `${where}: rs_ohm must not be negative, got ${p.rs_ohm}`);
+}
+
+function checkConditions(cells: number, tempC: number, where: string): void {
+  if (!(Number.isInteger(cells) && cells >= 1)) throw new IvInputError('bad-parameter', `${where}: cells must be a whole number ≥ 1, got ${cells}`);
+  if (!(Number.isFinite(tempC) && tempC > -273.15)) throw new IvInputError('bad-parameter', `${where}: tempC must be above absolute zero, got ${tempC}`);
+}
+
+/** Single-diode current, A, at terminal voltage voltage_V for `cells` in series at cell temperature tempC (°C). */
+export function singleDiodeCurrent(p: SingleDiodeParams, voltage_V: number, cells: number, tempC: number): number {
+  checkParams(p, 'singleDiodeCurrent');
+  checkConditions(cells, tempC, 'singleDiodeCurrent');
+  return sdCurrent(p.iph_a, p.i0_a, idealityVoltage_V(p.n, cells, tempC), p.rs_ohm, p.rsh_ohm, voltage_V);
+}
+
+/** Single-diode currents, A, at each voltage in voltages_V. */
+export function singleDiodeCurrents(p: SingleDiodeParams, voltages_V: readonly number[], cells: number, tempC: number): number[] {
+  checkParams(p, 'singleDiodeCurrents');
+  checkConditions(cells, tempC, 'singleDiodeCurrents');
+  const a = idealityVoltage_V(p.n, cells, tempC);
+  return voltages_V.map((v) => sdCurrent(p.iph_a, p.i0_a, a, p.rs_ohm, p.rsh_ohm, v));
+}
+
+/** Single-diode terminal voltage, V, at current current_A (explicit Lambert W form). */
+export function singleDiodeVoltage(p: SingleDiodeParams, current_A: number, cells: number, tempC: number): number {
+  checkParams(p, 'singleDiodeVoltage');
+  checkConditions(cells, tempC, 'singleDiodeVoltage');
+  return sdVoltage(p.iph_a, p.i0_a, idealityVoltage_V(p.n, cells, tempC), p.rs_ohm, p.rsh_ohm, current_A);
+}
+
+/** Double-diode current, A, at terminal voltage voltage_V (n1, n2 per cell). */
+export function doubleDiodeCurrent(p: DoubleDiodeParams, voltage_V: number, cells: number, tempC: number): number {
+  checkParams(p, 'doubleDiodeCurrent');
+  checkConditions(cells, tempC, 'doubleDiodeCurrent');
+  const a1 = idealityVoltage_V(p.n1, cells, tempC);
+  const a2 = idealityVoltage_V(p.n2, cells, tempC);
+  return solveDoubleDiodeCurrent(p.iph_a, p.i01_a, a1, p.i02_a, a2, p.rs_ohm, p.rsh_ohm, voltage_V);
+}
+
+/** Double-diode terminal voltage, V, at current current_A. */
+export function doubleDiodeVoltage(p: DoubleDiodeParams, current_A: number, cells: number, tempC: number): number {
+  checkParams(p, 'doubleDiodeVoltage');
+  checkConditions(cells, tempC, 'doubleDiodeVoltage');
+  const a1 = idealityVoltage_V(p.n1, cells, tempC);
+  const a2 = idealityVoltage_V(p.n2, cells, tempC);
+  return solveDoubleDiodeVoltage(p.iph_a, p.i01_a, a1, p.i02_a, a2, p.rs_ohm, p.rsh_ohm, current_A);
+}
+
+/** Options of `simulateCurve`. Defaults: vMin 0 V, vMax 1.02·Voc, no noise. */
+export type SimulateOptions = {
+  cells: number;
+  tempC: number;
+  points: number;
+  vMin?: number;
+  vMax?: number;
+  /** Standard deviation of Gaussian noise added to the current, A. */
+  noise_a?: number;
+  /** Seed of the deterministic noise generator. */
+  seed?: number;
+};
+
+/** Deterministic PRNG (mulberry32) so simulated noisy curves are reproducible. */
+export function seededRandom(seed: number): () => number {
+  let t = seed >>> 0;
+  return () => {
+    t = (t + 0x6d2b79f5) >>> 0;
+    let r = Math.imul(t ^ (t >>> 15), 1 | t);
+    r ^= r + Math.imul(r ^ (r >>> 7), 61 | r);
+    return ((r ^ (r >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+/** Standard normal deviates from a uniform generator (Box–Muller). */
+export function gaussian(random: () => number): () => number {
+  return () => {
+    const u = 1 - random();
+    return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * random());
+  };
+}
+
+/**
+ * Curve of a single- or double-diode device on an even voltage grid, generator convention.
+ * Used by tests, demo data and translation; `meta` carries cells and tempC.
+ */
+export function simulateCurve(p: SingleDiodeParams | DoubleDiodeParams, opts: SimulateOptions): IvCurve {
+  const { cells, tempC, points } = opts;
+  checkConditions(cells, tempC, 'simulateCurve');
+  if (!(Number.isInteger(points) && points >= 2)) throw new IvInputError('bad-parameter', `simulateCurve: points must be a whole number ≥ 2, got ${points}`);
+  const current = (v: number) => ('i0_a' in p ? singleDiodeCurrent(p, v, cells, tempC) : doubleDiodeCurrent(p, v, cells, tempC));
+  const voc = 'i0_a' in p ? singleDiodeVoltage(p, 0, cells, tempC) : doubleDiodeVoltage(p, 0, cells, tempC);
+  const vMin = opts.vMin ?? 0;
+  const vMax = opts.vMax ?? 1.02 * voc;
+  if (!(Number.isFinite(vMin) && Number.isFinite(vMax) && vMax > vMin)) {
+    throw new IvInputError('bad-parameter', `simulateCurve: need vMin < vMax, got ${vMin} and ${vMax}`);
+  }
+  const noise = opts.noise_a ?? 0;
+  const normal = gaussian(seededRandom(opts.seed ?? 1));
+  const voltage_V: number[] = [];
+  const current_A: number[] = [];
+  for (let k = 0; k < points; k++) {
+    const v = vMin + ((vMax - vMin) * k) / (points - 1);
+    voltage_V.push(v);
+    current_A.push(current(v) + (noise > 0 ? noise * normal() : 0));
+  }
+  return { voltage_V, current_A, meta: { cells, tempC }, notes: ['simulated'] };
+}

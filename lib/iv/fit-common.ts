@@ -1,0 +1,72 @@
+/** Pieces shared by the single- and double-diode fits. */
+import { IvInputError } from '@/lib/iv/errors';
+import type { FitObjective, FitResult, IvCurve } from '@/lib/iv/types';
+
+/** Temperature used when neither the caller nor the file gives one, °C. */
+export const DEFAULT_TEMP_C = 25;
+
+/** Cell temperature (°C) and cells in series for a fit: caller first, then file metadata, then defaults. */
+export function fitConditions(curve: IvCurve, opts: { tempC?: number; cells?: number }): { tempC: number; cells: number } {
+  const tempC = opts.tempC ?? curve.meta?.tempC ?? DEFAULT_TEMP_C;
+  const cells = opts.cells ?? curve.meta?.cells ?? 1;
+  if (!(Number.isFinite(tempC) && tempC > -273.15 && tempC < 1000)) throw new IvInputError('bad-option', `cell temperature must be a finite value in °C, got ${tempC}`);
+  if (!(Number.isInteger(cells) && cells >= 1)) throw new IvInputError('bad-option', `cells in series must be a whole number ≥ 1, got ${cells}`);
+  return { tempC, cells };
+}
+
+/** Checks the objective option. */
+export function fitObjective(objective: FitObjective | undefined): FitObjective {
+  const o = objective ?? 'true-current';
+  if (o !== 'true-current' && o !== 'implicit') throw new IvInputError('bad-option', `objective must be "true-current" or "implicit", got "${String(o)}"`);
+  return o;
+}
+
+/** Root mean square and largest absolute value of residuals. */
+export function residualStats(res: readonly number[]): { rmse: number; maxAbs: number } {
+  let s = 0;
+  let maxAbs = 0;
+  for (const x of res) {
+    s += x * x;
+    maxAbs = Math.max(maxAbs, Math.abs(x));
+  }
+  return { rmse: Math.sqrt(s / res.length), maxAbs };
+}
+
+/** A fit that did not produce a trustworthy optimum: every number is null, the message says why. */
+export function failedFit(
+  model: FitResult['model'],
+  objective: FitObjective,
+  keys: string[],
+  evaluations: number,
+  elapsed_ms: number,
+  message: string,
+): FitResult {
+  const result: FitResult = {
+    model,
+    objective,
+    iph_a: null,
+    rs_ohm: null,
+    rsh_ohm: null,
+    rmse_a: null,
+    rmse_true_current_a: null,
+    max_residual_a: null,
+    residuals_a: [],
+    evaluations,
+    converged: false,
+    elapsed_ms,
+    stderr: Object.fromEntries(keys.map((k) => [k, null])),
+    message,
+  };
+  for (const k of keys) if (!(k in result)) (result as Record<string, unknown>)[k] = null;
+  return result;
+}
+
+/** Wall-clock milliseconds, from the high-resolution clock when there is one. */
+export function nowMs(): number {
+  return typeof performance !== 'undefined' ? performance.now() : Date.now();
+}
+
+/** Rounds to 12 significant digits: the solver's last digits are noise and make JSON noisy. */
+export function tidy(x: number): number {
+  return Number(x.toPrecision(12));
+}

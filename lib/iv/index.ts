@@ -1,0 +1,32 @@
+/**
+ * The I-V engine: reading measured curves, key figures without a model, single- and
+ * double-diode models and their fits. Pure TypeScript, no I/O.
+ */
+export { IvInputError } from '@/lib/iv/errors';
+export type { CurveMeta, DoubleDiodeParams, FitObjective, FitResult, Flag, IvCurve, Metrics, SingleDiodeParams } from '@/lib/iv/types';
+export { parseIvBytes, parseIvText, checkCurveReach, MAX_FILE_BYTES, MAX_DATA_ROWS, MIN_POINTS, ISC_EXTRAPOLATION_LIMIT, VOC_EXTRAPOLATION_LIMIT } from '@/lib/iv/parse';
+export type { ParseOptions } from '@/lib/iv/parse';
+export { keyFigures, estimateNoise_A } from '@/lib/iv/key-figures';
+export { lambertW, lambertWExp } from '@/lib/iv/lambert-w';
+export {
+  doubleDiodeCurrent,
+  doubleDiodeVoltage,
+  gaussian,
+  idealityVoltage_V,
+  seededRandom,
+  simulateCurve,
+  singleDiodeCurrent,
+  singleDiodeCurrents,
+  singleDiodeVoltage,
+} from '@/lib/iv/diode';
+export type { SimulateOptions } from '@/lib/iv/diode';
+export { phangStart } from '@/lib/iv/start';
+export { DEFAULT_TEMP_C } from '@/lib/iv/fit-common';
+export { fitSingleDiode } from '@/lib/iv/fit-single';
+export type { SingleFitOptions } from '@/lib/iv/fit-single';
+export { fitDoubleDiode, DEFAULT_I0_MAX_A } from '@/lib/iv/fit-double';
+export type { DoubleFitOptions } from '@/lib/iv/fit-double';
+// The ml-levenberg-marquardt comparison fit is imported from '@/lib/iv/fit-ml' directly, so the
+// web bundle does not carry ml-matrix for a solver only the benchmark and tests use.
+export { analyseCurve } from '@/lib/iv/analyse';
+export type { AnalyseOptions } from '@/lib/iv/analyse';

@@ -1,0 +1,106 @@
+/** Shared shapes of the I-V engine. Key names are part of the CLI/API contract. */
+
+/** What is known about the device and the measurement; every field optional. */
+export type CurveMeta = {
+  deviceId?: string;
+  /** Cell temperature, °C. */
+  tempC?: number;
+  /** Plane-of-array irradiance, W/m². */
+  irradiance_Wm2?: number;
+  /** Cells in series (1 for a single cell). */
+  cells?: number;
+  /** Device area, cm². */
+  area_cm2?: number;
+  /** Measurement time as written in the file (ISO 8601 when it could be read as a date). */
+  measuredAt?: string;
+};
+
+/**
+ * A measured curve: voltage ascending, generator convention (current positive while the
+ * device delivers power). `notes` record what reading the file changed (units, sign, order).
+ */
+export type IvCurve = {
+  voltage_V: number[];
+  current_A: number[];
+  meta: CurveMeta;
+  notes: string[];
+};
+
+/** Model-free key figures. Null where a figure cannot be defined (for example Rsh0 of a flat line). */
+export type Metrics = {
+  isc_a: number;
+  voc_v: number;
+  pmp_w: number;
+  imp_a: number;
+  vmp_v: number;
+  /** Fill factor Pmp/(Isc·Voc), a fraction. */
+  ff: number;
+  /** Pmp/(G·A), a fraction; null when irradiance or area is unknown. */
+  efficiency: number | null;
+  /** −1/(dI/dV) at V = 0, Ω; null when the slope is flat or rising. */
+  rsh0_ohm: number | null;
+  /** −dV/dI at I = 0, Ω; null when it cannot be determined. */
+  rs0_ohm: number | null;
+};
+
+/** A finding about a curve or a fit, in words a line engineer understands. */
+export type Flag = {
+  code: string;
+  severity: 'info' | 'warn' | 'fail';
+  message: string;
+};
+
+/** Single-diode parameters; `n` is the ideality factor per cell. */
+export type SingleDiodeParams = {
+  iph_a: number;
+  i0_a: number;
+  n: number;
+  rs_ohm: number;
+  rsh_ohm: number;
+};
+
+/** Double-diode parameters; n1, n2 per cell. */
+export type DoubleDiodeParams = {
+  iph_a: number;
+  i01_a: number;
+  n1: number;
+  i02_a: number;
+  n2: number;
+  rs_ohm: number;
+  rsh_ohm: number;
+};
+
+/** Which residual is minimised: the model current solved exactly at each voltage, or the implicit equation's leftover. */
+export type FitObjective = 'true-current' | 'implicit';
+
+/**
+ * Result of a model fit. When `converged` is false every parameter and error figure is null and
+ * `message` says why: a fit that failed never hands out numbers that look like a fit.
+ * `rmse_a` and `residuals_a` belong to the chosen objective; `rmse_true_current_a` is always the
+ * true-current RMSE so fits of both objectives can be compared.
+ */
+export type FitResult = {
+  model: 'single-diode' | 'double-diode';
+  objective: FitObjective;
+  iph_a: number | null;
+  i0_a?: number | null;
+  n?: number | null;
+  i01_a?: number | null;
+  n1?: number | null;
+  i02_a?: number | null;
+  n2?: number | null;
+  rs_ohm: number | null;
+  rsh_ohm: number | null;
+  rmse_a: number | null;
+  rmse_true_current_a: number | null;
+  max_residual_a: number | null;
+  residuals_a: number[];
+  evaluations: number;
+  converged: boolean;
+  elapsed_ms: number;
+  /** Standard errors in the parameters' own units; null for a parameter held fixed or at a bound. */
+  stderr: Record<string, number | null>;
+  /** Bounds that were active at the optimum, e.g. ["i02_a ≤ 1e-6"]. */
+  at_bounds?: string[];
+  message?: string;
+};

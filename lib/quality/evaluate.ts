@@ -1,0 +1,259 @@
+/**
+ * Pass/fail of devices and batches against an acceptance spec: every reason a device fails,
+ * its power class, robust outlier marks and the batch's statistics with Cpk.
+ */
+import { describe, type Description } from '@/lib/quality/describe';
+import { QualityError } from '@/lib/quality/errors';
+import { formatValue, formatWithUnit, isParamKey, PARAM_KEYS, type ParamKey } from '@/lib/quality/params';
+import { robustZ } from '@/lib/quality/robust-z';
+import type { PowerClasses, Spec } from '@/lib/quality/spec';
+
+/** One measured device as the engine and database hand it over. */
+export type DeviceRecord = {
+  deviceId: string;
+  values: Partial<Record<ParamKey, number | null>>;
+  /** Flag codes raised on the device's curve or fit. */
+  flags: string[];
+};
+
+export type FailReason = {
+  kind: 'below_min' | 'above_max' | 'not_measured' | 'flag' | 'power_class';
+  /** The parameter, or 'flags' for a flag. */
+  param: ParamKey | 'flags';
+  /** The measured value, the flag code, or null when not measured. */
+  value: number | string | null;
+  /** Which limit was broken; null for not measured, flags and power classes. */
+  limit: 'min' | 'max' | null;
+  bound: number | null;
+  message: string;
+};
+
+export type DeviceEvaluation = {
+  deviceId: string;
+  result: 'pass' | 'fail';
+  /** Every failed rule, in spec order (limits in parameter order, then power class, then flags). */
+  reasons: FailReason[];
+  powerClass: string | null;
+};
+
+/** Reads a device value: null when absent; throws on NaN/±Infinity (never valid JSON, so a bug upstream). */
+function valueOf(device: DeviceRecord, key: ParamKey): number | null {
+  const v = device.values?.[key];
+  if (v === undefined || v === null) return null;
+  if (typeof v !== 'number' || !Number.isFinite(v)) {
+    throw new QualityError(`device "${device.deviceId}": ${key} is ${String(v)}, not a finite number`);
+  }
+  return v;
+}
+
+/** Nameplate text of a step class: 402.5 → "402.5", 400 → "400". */
+function nameplateText(w: number): string {
+  return String(Number(w.toFixed(6)));
+}
+
+/**
+ * Power class of a module whose classed power is `power_w`, or the reason it has none.
+ * Steps: class P with P − minus ≤ Pmax < P + plus (default 0/+step, common practice); above
+ * the highest offered class the module gets the highest class (with a positive-only tolerance
+ * a lower nameplate understates, never overstates). Bins: min_w ≤ Pmax < max_w.
+ */
+export function powerClassOf(power_w: number, pc: PowerClasses): { label: string | null; problem: string | null } {
+  const basis = pc.basis ?? 'pmp_w';
+  const shown = `${basis} ${formatValue(power_w)} W`;
+  if (pc.bins) {
+    const bin = pc.bins.find((b) => b.min_w <= power_w && power_w < b.max_w);
+    if (bin) return { label: bin.label, problem: null };
+    const lo = Math.min(...pc.bins.map((b) => b.min_w));
+    const hi = Math.max(...pc.bins.map((b) => b.max_w));
+    return { label: null, problem: `${shown} falls in no power class (classes cover ${formatValue(lo)}–${formatValue(hi)} W)` };
+  }
+  const step = pc.step_w;
+  if (step === undefined || !(step > 0)) throw new QualityError('powerClasses needs step_w (W) or explicit bins');
+  const minus = pc.tolerance?.minus_w ?? 0;
+  const prefix = pc.label_prefix ?? 'P';
+  // The small offset keeps a value sitting exactly on a boundary (405 W with 5 W steps) in the
+  // upper class despite binary rounding of (power + minus)/step.
+  let nameplate = Math.floor((power_w + minus) / step + 1e-9) * step;
+  if (!(nameplate > 0)) return { label: null, problem: `${shown} is below the smallest power class (${prefix}${nameplateText(step)})` };
+  if (pc.lowest_w !== undefined && nameplate < pc.lowest_w - 1e-9) {
+    return { label: null, problem: `${shown} is below the lowest power class ${prefix}${nameplateText(pc.lowest_w)}` };
+  }
+  if (pc.highest_w !== undefined && nameplate > pc.highest_w) nameplate = pc.highest_w;
+  return { label: `${prefix}${nameplateText(nameplate)}`, problem: null };
+}
+
+/** Checks the device record's shape; throws QualityError naming the device and the field. */
+function assertDevice(device: DeviceRecord, where = 'device'): void {
+  if (!device || typeof device !== 'object') throw new QualityError(`${where} must be an object`);
+  if (typeof device.deviceId !== 'string' || device.deviceId.length === 0) {
+    throw new QualityError(`${where}.deviceId must be a non-empty string`);
+  }
+  if (!device.values || typeof device.values !== 'object') {
+    throw new QualityError(`device "${device.deviceId}": values must be an object keyed by parameter`);
+  }
+  if (device.flags !== undefined && (!Array.isArray(device.flags) || device.flags.some((f) => typeof f !== 'string'))) {
+    throw new QualityError(`device "${device.deviceId}": flags must be an array of flag codes`);
+  }
+}
+
+/**
+ * Pass or fail one device against a (validated) spec, with every reason. Bounds are
+ * inclusive; a limited parameter without a value fails as "not measured"; each of the
+ * device's flags listed in spec.failFlags fails; with power classes, a module that cannot
+ * be classed fails.
+ */
+export function evaluateDevice(device: DeviceRecord, spec: Spec): DeviceEvaluation {
+  assertDevice(device);
+  const reasons: FailReason[] = [];
+  const limits = spec.limits ?? {};
+  for (const key of PARAM_KEYS) {
+    const lim = limits[key];
+    if (!lim) continue;
+    const v = valueOf(device, key);
+    if (v === null) {
+      reasons.push({ kind: 'not_measured', param: key, value: null, limit: null, bound: null, message: `${key} not measured` });
+      continue;
+    }
+    if (lim.min !== undefined && v < lim.min) {
+      reasons.push({
+        kind: 'below_min',
+        param: key,
+        value: v,
+        limit: 'min',
+        bound: lim.min,
+        message: `${key} ${formatWithUnit(v, key)} is below the minimum ${formatWithUnit(lim.min, key)}`,
+      });
+    }
+    if (lim.max !== undefined && v > lim.max) {
+      reasons.push({
+        kind: 'above_max',
+        param: key,
+        value: v,
+        limit: 'max',
+        bound: lim.max,
+        message: `${key} ${formatWithUnit(v, key)} is above the maximum ${formatWithUnit(lim.max, key)}`,
+      });
+    }
+  }
+  let powerClass: string | null = null;
+  if (spec.powerClasses) {
+    const basis = spec.powerClasses.basis ?? 'pmp_w';
+    const p = valueOf(device, basis);
+    if (p === null) {
+      reasons.push({
+        kind: 'power_class',
+        param: basis,
+        value: null,
+        limit: null,
+        bound: null,
+        message: `${basis} not measured: no power class`,
+      });
+    } else {
+      const pc = powerClassOf(p, spec.powerClasses);
+      powerClass = pc.label;
+      if (pc.problem) {
+        reasons.push({ kind: 'power_class', param: basis, value: p, limit: null, bound: null, message: pc.problem });
+      }
+    }
+  }
+  const failFlags = new Set(spec.failFlags ?? []);
+  for (const flag of new Set(device.flags ?? [])) {
+    if (failFlags.has(flag)) {
+      reasons.push({ kind: 'flag', param: 'flags', value: flag, limit: null, bound: null, message: `flag "${flag}" is raised and fails this spec` });
+    }
+  }
+  return { deviceId: device.deviceId, result: reasons.length ? 'fail' : 'pass', reasons, powerClass };
+}
+
+export type BatchDeviceEvaluation = DeviceEvaluation & {
+  values: Partial<Record<ParamKey, number | null>>;
+  flags: string[];
+  /** Modified z-score per outlier-checked parameter (null when the device lacks the value). */
+  robustZ: Partial<Record<ParamKey, number | null>>;
+  /** Parameters on which the device is an outlier (|z| > 3.5). */
+  outlierParams: ParamKey[];
+  outlier: boolean;
+};
+
+export type BatchEvaluation = {
+  specName: string;
+  devices: BatchDeviceEvaluation[];
+  counts: { total: number; pass: number; fail: number; outliers: number };
+  /** Devices per power class label; devices without a class are not counted here. */
+  powerClassCounts: Record<string, number>;
+  /** Parameters checked for outliers. */
+  outlierParams: ParamKey[];
+  /**
+   * Statistics of every parameter that is limited, outlier-checked or measured on any device,
+   * with Cpk against the spec's limits; null when no device has a value.
+   */
+  stats: Partial<Record<ParamKey, Description | null>>;
+};
+
+export type BatchOptions = {
+  /** Parameters to mark outliers on (default ['pmp_w']). */
+  outlierParams?: ParamKey[];
+};
+
+/**
+ * Evaluates every device, marks robust outliers (Iglewicz & Hoaglin modified z, |z| > 3.5)
+ * on the chosen parameters, counts pass/fail/outliers and describes each parameter.
+ * Outliers are marked, not failed: the QA lead decides.
+ */
+export function evaluateBatch(devices: readonly DeviceRecord[], spec: Spec, options: BatchOptions = {}): BatchEvaluation {
+  if (!Array.isArray(devices)) throw new QualityError('devices must be an array of device records');
+  devices.forEach((d, i) => assertDevice(d, `devices[${i}]`));
+  const outlierParams: ParamKey[] = [...new Set<ParamKey>(options.outlierParams ?? ['pmp_w'])];
+  for (const k of outlierParams) {
+    if (!isParamKey(k)) throw new QualityError(`outlierParams: unknown parameter "${String(k)}"`);
+  }
+  const evaluated: BatchDeviceEvaluation[] = devices.map((d) => ({
+    ...evaluateDevice(d, spec),
+    values: { ...d.values },
+    flags: [...(d.flags ?? [])],
+    robustZ: {},
+    outlierParams: [],
+    outlier: false,
+  }));
+
+  for (const key of outlierParams) {
+    const idx: number[] = [];
+    const vals: number[] = [];
+    devices.forEach((d, i) => {
+      const v = valueOf(d, key);
+      if (v !== null) {
+        idx.push(i);
+        vals.push(v);
+      }
+    });
+    evaluated.forEach((e) => (e.robustZ[key] = null));
+    const rz = robustZ(vals);
+    idx.forEach((devIndex, j) => {
+      evaluated[devIndex].robustZ[key] = rz.z[j];
+      if (rz.isOutlier[j]) evaluated[devIndex].outlierParams.push(key);
+    });
+  }
+  for (const e of evaluated) e.outlier = e.outlierParams.length > 0;
+
+  const statKeys = PARAM_KEYS.filter(
+    (k) => spec.limits?.[k] !== undefined || outlierParams.includes(k) || devices.some((d) => valueOf(d, k) !== null),
+  );
+  const stats: BatchEvaluation['stats'] = {};
+  for (const key of statKeys) {
+    const vals = devices.map((d) => valueOf(d, key)).filter((v): v is number => v !== null);
+    stats[key] = vals.length ? describe(vals, spec.limits?.[key]) : null;
+  }
+
+  const powerClassCounts: Record<string, number> = {};
+  for (const e of evaluated) if (e.powerClass) powerClassCounts[e.powerClass] = (powerClassCounts[e.powerClass] ?? 0) + 1;
+
+  const pass = evaluated.filter((e) => e.result === 'pass').length;
+  return {
+    specName: spec.name,
+    devices: evaluated,
+    counts: { total: evaluated.length, pass, fail: evaluated.length - pass, outliers: evaluated.filter((e) => e.outlier).length },
+    powerClassCounts,
+    outlierParams,
+    stats,
+  };
+}

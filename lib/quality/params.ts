@@ -1,0 +1,76 @@
+/**
+ * The parameter keys that batch statistics and acceptance limits refer to. They are exactly the
+ * I-V engine's result keys, so a limit, a statistic and a measured value always share one name.
+ */
+
+/** Measured key figures of one curve (no model). */
+export const METRIC_KEYS = [
+  'isc_a',
+  'voc_v',
+  'pmp_w',
+  'imp_a',
+  'vmp_v',
+  'ff',
+  'efficiency',
+  'rsh0_ohm',
+  'rs0_ohm',
+] as const;
+
+/** Single-diode fit parameters and the fit's residual. */
+export const FIT_KEYS = ['iph_a', 'i0_a', 'n', 'rs_ohm', 'rsh_ohm', 'rmse_a'] as const;
+
+/** Figures derived from the fit or translated to STC. */
+export const DERIVED_KEYS = ['j0_a_cm2', 'stc_pmp_w'] as const;
+
+/** Every key a limit, a statistic or an export column may use, in display order. */
+export const PARAM_KEYS = [...METRIC_KEYS, ...FIT_KEYS, ...DERIVED_KEYS] as const;
+
+export type ParamKey = (typeof PARAM_KEYS)[number];
+
+/**
+ * Display unit of each key. FF and efficiency are ratios in the engine's own scale (not %);
+ * the diode ideality factor n is dimensionless.
+ */
+export const PARAM_UNITS: Record<ParamKey, string> = {
+  isc_a: 'A',
+  voc_v: 'V',
+  pmp_w: 'W',
+  imp_a: 'A',
+  vmp_v: 'V',
+  ff: '',
+  efficiency: '',
+  rsh0_ohm: 'Ω',
+  rs0_ohm: 'Ω',
+  iph_a: 'A',
+  i0_a: 'A',
+  n: '',
+  rs_ohm: 'Ω',
+  rsh_ohm: 'Ω',
+  rmse_a: 'A',
+  j0_a_cm2: 'A/cm²',
+  stc_pmp_w: 'W',
+};
+
+const PARAM_KEY_SET: ReadonlySet<string> = new Set(PARAM_KEYS);
+
+/** True when `key` is one of the engine's result keys. */
+export function isParamKey(key: string): key is ParamKey {
+  return PARAM_KEY_SET.has(key);
+}
+
+/**
+ * A number for messages: six significant digits, exponent form for very small or large
+ * magnitudes (I0 is ~1e-7 A), so that a value just past a bound never prints equal to it.
+ */
+export function formatValue(x: number): string {
+  if (x === 0) return '0';
+  const abs = Math.abs(x);
+  if (abs < 1e-3 || abs >= 1e7) return x.toExponential(5).replace(/\.?0+e/, 'e');
+  return String(Number(x.toPrecision(6)));
+}
+
+/** "0.512 Ω", "0.81" (no unit), for messages. */
+export function formatWithUnit(x: number, key: ParamKey): string {
+  const unit = PARAM_UNITS[key];
+  return unit ? `${formatValue(x)} ${unit}` : formatValue(x);
+}

@@ -1,0 +1,169 @@
+/**
+ * Acceptance specification: limits per parameter, power classes and failing flags. One zod
+ * schema serves the spec form and the API route; its messages name the field and the fault.
+ */
+import { z } from 'zod';
+import { QualityError } from '@/lib/quality/errors';
+import { PARAM_KEYS, type ParamKey } from '@/lib/quality/params';
+
+const finite = (what: string) => z.number({ error: `${what} must be a finite number` });
+
+const unknownKeys = (what: string, known: readonly string[]) => ({
+  error: (iss: { code?: string; keys?: string[] }) =>
+    iss.code === 'unrecognized_keys'
+      ? `unknown ${what} ${iss.keys!.map((k) => `"${k}"`).join(', ')}; known: ${known.join(', ')}`
+      : undefined,
+});
+
+/** min and/or max of one parameter, both inclusive (a value equal to a bound passes). */
+export const limitSchema = z
+  .strictObject({ min: finite('min').optional(), max: finite('max').optional() }, unknownKeys('limit field', ['min', 'max']))
+  .superRefine((l, ctx) => {
+    if (l.min === undefined && l.max === undefined) {
+      ctx.addIssue({ code: 'custom', message: 'give min, max or both', path: [] });
+    } else if (l.min !== undefined && l.max !== undefined && l.min > l.max) {
+      ctx.addIssue({ code: 'custom', message: `min (${l.min}) is greater than max (${l.max})`, path: [] });
+    }
+  });
+
+const limitsShape = Object.fromEntries(PARAM_KEYS.map((k) => [k, limitSchema.optional()])) as Record<
+  ParamKey,
+  z.ZodOptional<typeof limitSchema>
+>;
+
+/** Limits keyed by the engine's result keys; any other key is rejected. */
+export const limitsSchema = z.strictObject(limitsShape, unknownKeys('parameter', PARAM_KEYS));
+
+const binSchema = z.strictObject(
+  {
+    label: z.string().trim().min(1, 'a power class needs a label').max(40),
+    nominal_w: finite('nominal_w').positive('nominal_w must be above 0 W'),
+    min_w: finite('min_w'),
+    max_w: finite('max_w'),
+  },
+  unknownKeys('bin field', ['label', 'nominal_w', 'min_w', 'max_w']),
+);
+
+const POWER_FIELDS = ['basis', 'step_w', 'tolerance', 'lowest_w', 'highest_w', 'label_prefix', 'bins'] as const;
+
+/**
+ * Power classes, one of two forms:
+ *  - steps: nameplates at multiples of `step_w`; a module is in class P when
+ *    P − tolerance.minus_w ≤ Pmax < P + tolerance.plus_w. The default tolerance is
+ *    positive-only (0 / +step_w, common practice), i.e. P ≤ Pmax < P + step.
+ *  - bins: explicit classes [{ label, nominal_w, min_w, max_w }], min_w ≤ Pmax < max_w.
+ * `basis` picks the power that is classed: measured `pmp_w` (default) or `stc_pmp_w`.
+ */
+export const powerClassesSchema = z
+  .strictObject(
+    {
+      basis: z.enum(['pmp_w', 'stc_pmp_w'], { error: 'basis must be "pmp_w" or "stc_pmp_w"' }).optional(),
+      step_w: finite('step_w').positive('step_w must be above 0 W').optional(),
+      tolerance: z
+        .strictObject(
+          {
+            minus_w: finite('tolerance.minus_w').min(0, 'tolerance.minus_w must be ≥ 0 W'),
+            plus_w: finite('tolerance.plus_w').positive('tolerance.plus_w must be above 0 W'),
+          },
+          unknownKeys('tolerance field', ['minus_w', 'plus_w']),
+        )
+        .optional(),
+      lowest_w: finite('lowest_w').positive('lowest_w must be above 0 W').optional(),
+      highest_w: finite('highest_w').positive('highest_w must be above 0 W').optional(),
+      label_prefix: z.string().max(8, 'label_prefix is at most 8 characters').optional(),
+      bins: z.array(binSchema).min(1, 'bins needs at least one class').optional(),
+    },
+    unknownKeys('power-class field', POWER_FIELDS),
+  )
+  .superRefine((pc, ctx) => {
+    const stepFields = (['step_w', 'tolerance', 'lowest_w', 'highest_w', 'label_prefix'] as const).filter(
+      (k) => pc[k] !== undefined,
+    );
+    if (pc.bins) {
+      if (stepFields.length) {
+        ctx.addIssue({
+          code: 'custom',
+          path: [stepFields[0]],
+          message: `give either bins or step_w-based classes, not both (${stepFields.join(', ')} with bins)`,
+        });
+      }
+      const labels = new Set<string>();
+      pc.bins.forEach((b, i) => {
+        if (b.min_w >= b.max_w) {
+          ctx.addIssue({ code: 'custom', path: ['bins', i], message: `bin "${b.label}": min_w (${b.min_w}) must be below max_w (${b.max_w})` });
+        }
+        if (labels.has(b.label)) {
+          ctx.addIssue({ code: 'custom', path: ['bins', i, 'label'], message: `bin label "${b.label}" is used twice` });
+        }
+        labels.add(b.label);
+      });
+      const sorted = [...pc.bins].sort((x, y) => x.min_w - y.min_w);
+      for (let i = 1; i < sorted.length; i++) {
+        if (sorted[i].min_w < sorted[i - 1].max_w) {
+          ctx.addIssue({
+            code: 'custom',
+            path: ['bins'],
+            message: `bins "${sorted[i - 1].label}" and "${sorted[i].label}" overlap (${sorted[i - 1].max_w} W > ${sorted[i].min_w} W)`,
+          });
+        }
+      }
+      return;
+    }
+    if (pc.step_w === undefined) {
+      ctx.addIssue({ code: 'custom', path: ['step_w'], message: 'give step_w (nameplate steps in W) or explicit bins' });
+      return;
+    }
+    if (pc.tolerance) {
+      const width = pc.tolerance.minus_w + pc.tolerance.plus_w;
+      if (Math.abs(width - pc.step_w) > 1e-9 * pc.step_w) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['tolerance'],
+          message: `tolerance.minus_w + tolerance.plus_w (${width} W) must equal step_w (${pc.step_w} W) so that classes neither overlap nor leave gaps`,
+        });
+      }
+    }
+    for (const k of ['lowest_w', 'highest_w'] as const) {
+      const v = pc[k];
+      if (v !== undefined && Math.abs(v / pc.step_w - Math.round(v / pc.step_w)) > 1e-9) {
+        ctx.addIssue({ code: 'custom', path: [k], message: `${k} (${v} W) must be a multiple of step_w (${pc.step_w} W)` });
+      }
+    }
+    if (pc.lowest_w !== undefined && pc.highest_w !== undefined && pc.lowest_w > pc.highest_w) {
+      ctx.addIssue({ code: 'custom', path: ['lowest_w'], message: `lowest_w (${pc.lowest_w} W) is above highest_w (${pc.highest_w} W)` });
+    }
+  });
+
+const SPEC_FIELDS = ['name', 'limits', 'powerClasses', 'failFlags', 'notes'] as const;
+
+/** Input of an acceptance specification (form and API body alike). */
+export const specInputSchema = z.strictObject(
+  {
+    name: z.string({ error: 'name is required' }).trim().min(1, 'name is required').max(120, 'name is at most 120 characters'),
+    limits: limitsSchema.default({}),
+    powerClasses: powerClassesSchema.optional(),
+    failFlags: z
+      .array(z.string().trim().min(1, 'a flag code cannot be empty').max(64))
+      .max(100)
+      .optional(),
+    notes: z.string().max(4000, 'notes are at most 4000 characters').optional(),
+  },
+  unknownKeys('spec field', SPEC_FIELDS),
+);
+
+export type SpecInput = z.input<typeof specInputSchema>;
+export type Spec = z.output<typeof specInputSchema>;
+export type PowerClasses = z.output<typeof powerClassesSchema>;
+export type LimitSpec = z.output<typeof limitSchema>;
+
+/** "limits.rs_ohm: min (2) is greater than max (1)" — one line per zod issue. */
+export function specIssueMessages(error: z.ZodError): string[] {
+  return error.issues.map((iss) => (iss.path.length ? `${iss.path.map(String).join('.')}: ${iss.message}` : iss.message));
+}
+
+/** Validates a spec; throws QualityError listing every problem. */
+export function parseSpec(input: unknown): Spec {
+  const r = specInputSchema.safeParse(input);
+  if (!r.success) throw new QualityError(`invalid spec: ${specIssueMessages(r.error).join('; ')}`);
+  return r.data;
+}

@@ -1,0 +1,61 @@
+/**
+ * Exports the web app to dist/ with Expo, but only when its sources changed since the last
+ * export (a content hash is kept in dist/.source-hash): a cold export takes minutes here.
+ * `--force` always rebuilds.
+ */
+import { spawnSync } from 'node:child_process';
+import { createHash } from 'node:crypto';
+import { existsSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
+import path from 'node:path';
+
+const ROOT = path.resolve(__dirname, '..');
+const SOURCES = ['app', 'components', 'lib', 'assets', 'app.json', 'babel.config.js', 'metro.config.js', 'package-lock.json', 'tsconfig.json'];
+const HASH_FILE = path.join(ROOT, 'dist', '.source-hash');
+
+function walk(p: string, out: string[]) {
+  const full = path.join(ROOT, p);
+  if (!existsSync(full)) return;
+  if (statSync(full).isDirectory()) {
+    for (const name of readdirSync(full).sort()) walk(path.join(p, name), out);
+  } else out.push(p);
+}
+
+export function sourceHash(): string {
+  const files: string[] = [];
+  for (const s of SOURCES) walk(s, files);
+  const h = createHash('sha256');
+  for (const f of files) {
+    h.update(f);
+    h.update(readFileSync(path.join(ROOT, f)));
+  }
+  return h.digest('hex');
+}
+
+/** Builds dist/ when stale; returns true when it exported. */
+export function buildWeb(force = false): boolean {
+  const hash = sourceHash();
+  if (!force && existsSync(HASH_FILE) && readFileSync(HASH_FILE, 'utf8') === hash && existsSync(path.join(ROOT, 'dist', 'index.html'))) {
+    console.log('[build:web] dist/ is up to date');
+    return false;
+  }
+  console.log('[build:web] exporting the web app with Expo (a cold export takes 1–3 minutes)…');
+  const started = Date.now();
+  const res = spawnSync('npx', ['expo', 'export', '--platform', 'web', '--output-dir', 'dist'], {
+    cwd: ROOT,
+    stdio: ['ignore', 'inherit', 'inherit'],
+    env: { ...process.env, CI: '1', EXPO_NO_TELEMETRY: '1' },
+  });
+  if (res.status !== 0) throw new Error(`expo export failed with status ${res.status}`);
+  writeFileSync(HASH_FILE, hash);
+  console.log(`[build:web] done in ${((Date.now() - started) / 1000).toFixed(0)} s`);
+  return true;
+}
+
+if (require.main === module) {
+  try {
+    buildWeb(process.argv.includes('--force'));
+  } catch (err) {
+    console.error((err as Error).message);
+    process.exit(1);
+  }
+}
