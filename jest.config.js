@@ -41,7 +41,7 @@ const nodeProject = (name, roots) => ({
 module.exports = {
   projects: [
     nodeProject('lib', ['<rootDir>/tests/lib', '<rootDir>/tests/cli']),
-    nodeProject('server', ['<rootDir>/tests/server', '<rootDir>/tests/robustness']),
+    { ...nodeProject('server', ['<rootDir>/tests/server', '<rootDir>/tests/robustness']), setupFilesAfterEnv: ['<rootDir>/tests/server/setup.ts'] },
     { ...nodeProject('e2e', ['<rootDir>/tests/e2e']), setupFilesAfterEnv: ['<rootDir>/tests/e2e/setup.ts'] },
     {
       displayName: 'components',

@@ -5,6 +5,7 @@ export type NavItem = { href: string; label: string; short: string; needs?: Perm
 /** The main sections, in order; each shows only to roles with its permission. */
 export const NAV_ITEMS: NavItem[] = [
   { href: '/', label: 'Overview', short: 'Home', match: '/' },
+  { href: '/batches', label: 'Batches', short: 'Batches', needs: 'batch:read', match: '/batches' },
   { href: '/admin/users', label: 'Users & roles', short: 'Users', needs: 'users:manage', match: '/admin/users' },
   { href: '/admin/outbox', label: 'Outbox', short: 'Outbox', needs: 'outbox:read', match: '/admin/outbox' },
   { href: '/account', label: 'Account', short: 'Account', match: '/account' },

@@ -3,7 +3,9 @@
  * written from better-auth's documented schema; field names are the ones better-auth expects.
  * The product's own tables follow. Every product record carries `organizationId`.
  */
-import { boolean, index, pgTable, text, timestamp, uniqueIndex } from 'drizzle-orm/pg-core';
+import { boolean, doublePrecision, index, integer, jsonb, pgTable, text, timestamp, uniqueIndex } from 'drizzle-orm/pg-core';
+import type { CurveMeta, FitResult, Flag, Metrics } from '@/lib/iv/types';
+import type { StcFigures } from '@/lib/schemas/curves';
 
 // ---------------------------------------------------------------- better-auth core
 export const user = pgTable('user', {
@@ -124,4 +126,94 @@ export const mailLog = pgTable(
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   },
   (t) => [index('mail_log_org_idx').on(t.organizationId, t.createdAt)],
+);
+
+/** A batch of devices (cells or modules) measured together: one lot, one line, one day. */
+export const batch = pgTable(
+  'batch',
+  {
+    id: text('id').primaryKey(),
+    organizationId: text('organization_id')
+      .notNull()
+      .references(() => organization.id, { onDelete: 'cascade' }),
+    name: text('name').notNull(),
+    productType: text('product_type'),
+    supplier: text('supplier'),
+    line: text('line'),
+    lot: text('lot'),
+    /** Measurement date of the batch, ISO yyyy-mm-dd. */
+    batchDate: text('batch_date'),
+    /** Default cells in series for curves whose files do not say. */
+    cells: integer('cells'),
+    /** Default device area, cm², for efficiency. */
+    area_cm2: doublePrecision('area_cm2'),
+    nameplate_w: doublePrecision('nameplate_w'),
+    description: text('description'),
+    archived: boolean('archived').notNull().default(false),
+    /** open → in_review → released | on_hold (→ in_review again). */
+    state: text('state').notNull().default('open'),
+    createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+    updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index('batch_org_idx').on(t.organizationId, t.createdAt)],
+);
+
+/**
+ * One measured I-V curve with what the engine found. The figures used for sorting and filtering
+ * are also columns; the complete result objects (CLI/API vocabulary) are kept as JSON.
+ */
+export const curve = pgTable(
+  'curve',
+  {
+    id: text('id').primaryKey(),
+    organizationId: text('organization_id')
+      .notNull()
+      .references(() => organization.id, { onDelete: 'cascade' }),
+    batchId: text('batch_id')
+      .notNull()
+      .references(() => batch.id, { onDelete: 'cascade' }),
+    deviceId: text('device_id').notNull(),
+    fileName: text('file_name').notNull(),
+    meta: jsonb('meta').$type<CurveMeta>().notNull(),
+    voltage_V: jsonb('voltage_v').$type<number[]>().notNull(),
+    current_A: jsonb('current_a').$type<number[]>().notNull(),
+    notes: jsonb('notes').$type<string[]>().notNull(),
+    metrics: jsonb('metrics').$type<Metrics>().notNull(),
+    flags: jsonb('flags').$type<Flag[]>().notNull(),
+    stc: jsonb('stc').$type<StcFigures | null>(),
+    isc_a: doublePrecision('isc_a').notNull(),
+    voc_v: doublePrecision('voc_v').notNull(),
+    pmp_w: doublePrecision('pmp_w').notNull(),
+    ff: doublePrecision('ff').notNull(),
+    efficiency: doublePrecision('efficiency'),
+    n: doublePrecision('n'),
+    rs_ohm: doublePrecision('rs_ohm'),
+    rsh_ohm: doublePrecision('rsh_ohm'),
+    stc_pmp_w: doublePrecision('stc_pmp_w'),
+    flagCodes: text('flag_codes').notNull().default(''),
+    createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index('curve_batch_idx').on(t.batchId, t.deviceId), index('curve_org_idx').on(t.organizationId)],
+);
+
+/** Every fit ever made of a curve; `current` marks the one per model shown now (history kept). */
+export const fit = pgTable(
+  'fit',
+  {
+    id: text('id').primaryKey(),
+    curveId: text('curve_id')
+      .notNull()
+      .references(() => curve.id, { onDelete: 'cascade' }),
+    model: text('model').notNull(),
+    current: boolean('current').notNull().default(true),
+    result: jsonb('result').$type<FitResult>().notNull(),
+    /** The conditions the fit used (temperature, cells, irradiance, idealities). */
+    conditions: jsonb('conditions').$type<Record<string, unknown>>().notNull(),
+    reason: text('reason').notNull(),
+    createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index('fit_curve_idx').on(t.curveId, t.current)],
 );

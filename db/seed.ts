@@ -7,9 +7,11 @@ import path from 'node:path';
 import { and, eq } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Db } from '@/db/client';
-import { member, organization, user } from '@/db/schema';
+import { batch, member, organization, user } from '@/db/schema';
+import { analyseFile } from '@/lib/analysis/analyse-file';
 import { ROLES } from '@/lib/auth/roles';
 import type { Auth } from '@/server/auth';
+import { storeCurve } from '@/server/services/curves';
 
 export const SAMPLE_DIR = path.resolve(__dirname, '..', 'sample-data');
 
@@ -46,5 +48,43 @@ export async function seedDemo(db: Db, auth: Auth, dir = SAMPLE_DIR): Promise<bo
     const [u] = await db.select().from(user).where(eq(user.email, a.email));
     await db.update(member).set({ role: a.role }).where(and(eq(member.userId, u.id), eq(member.organizationId, created.id)));
   }
+  const engineer = accounts.find((a) => a.role === 'test_engineer');
+  const [eng] = engineer ? await db.select().from(user).where(eq(user.email, engineer.email)) : [];
+  await seedDemoBatches(db, created.id, eng?.id ?? null, dir);
   return true;
+}
+
+const manifestSchema = z.array(
+  z.object({
+    slug: z.string(),
+    name: z.string(),
+    productType: z.string().nullable().optional(),
+    supplier: z.string().nullable().optional(),
+    line: z.string().nullable().optional(),
+    lot: z.string().nullable().optional(),
+    batchDate: z.string().nullable().optional(),
+    cells: z.number().int().nullable().optional(),
+    area_cm2: z.number().nullable().optional(),
+    nameplate_w: z.number().nullable().optional(),
+    description: z.string().nullable().optional(),
+    files: z.array(z.string()),
+  }),
+);
+
+/** Loads sample-data/batches/ through the same analyse-and-store path as an upload. */
+export async function seedDemoBatches(db: Db, organizationId: string, userId: string | null, dir = SAMPLE_DIR): Promise<number> {
+  const root = path.join(dir, 'batches');
+  const manifest = manifestSchema.parse(JSON.parse(readFileSync(path.join(root, 'manifest.json'), 'utf8')));
+  let stored = 0;
+  for (const m of manifest) {
+    const { slug, files, ...fields } = m;
+    const id = crypto.randomUUID();
+    await db.insert(batch).values({ id, organizationId, createdBy: userId, ...fields });
+    for (const f of files) {
+      const analysis = analyseFile(readFileSync(path.join(root, slug, f)), { fileName: f, defaults: { cells: fields.cells, area_cm2: fields.area_cm2 } });
+      await storeCurve(db, { organizationId, batchId: id, fileName: f, analysis, userId });
+      stored++;
+    }
+  }
+  return stored;
 }

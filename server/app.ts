@@ -13,6 +13,8 @@ import type { Auth } from '@/server/auth';
 import { apiNotFound, errorHandler } from '@/server/errors';
 import type { Mailer } from '@/server/mail';
 import { requireSession } from '@/server/permissions';
+import { batchesRouter } from '@/server/routes/batches';
+import { curvesRouter } from '@/server/routes/curves';
 import { healthRouter } from '@/server/routes/health';
 import { meRouter } from '@/server/routes/me';
 import { outboxRouter } from '@/server/routes/outbox';
@@ -48,6 +50,8 @@ export function createApp(deps: AppDeps): Express {
   app.use('/api/me', session, meRouter());
   app.use('/api/users', session, usersRouter(db, auth));
   app.use('/api/outbox', session, outboxRouter(db));
+  app.use('/api/batches', session, batchesRouter(db));
+  app.use('/api/curves', session, curvesRouter(db));
 
   app.use('/api', apiNotFound);
   app.use('/api', errorHandler);

@@ -1,5 +1,5 @@
 import { eq } from 'drizzle-orm';
-import { member, organization, user } from '@/db/schema';
+import { batch, curve, member, organization, user } from '@/db/schema';
 import { readDemoAccounts, seedDemo } from '@/db/seed';
 import { ROLES } from '@/lib/auth/roles';
 import { signIn, startHarness } from '@/tests/server/harness';
@@ -23,6 +23,17 @@ it('creates the demo organisation with one account per role, once', async () => 
 
   const orgs = await h.database.db.select().from(organization);
   expect(orgs).toHaveLength(1);
+  // The demo batches come in through the upload pipeline: every file fitted and stored once.
+  const batches = await h.database.db.select().from(batch);
+  expect(batches.length).toBeGreaterThanOrEqual(3);
+  const curves = await h.database.db.select({ deviceId: curve.deviceId, flags: curve.flagCodes }).from(curve);
+  expect(new Set(curves.map((c) => c.deviceId)).size).toBe(curves.length);
+  // The deliberate defects of the demo scenario show up as flags (scripts/make-sample-data.ts).
+  const flagsOf = (id: string) => curves.find((c) => c.deviceId === id)?.flags.split(' ') ?? [];
+  expect(flagsOf('KF-C24-0017')).toContain('low-shunt');
+  expect(flagsOf('M2611-009')).toContain('high-series-resistance');
+  expect(flagsOf('M2611-015')).toContain('step');
+  expect(flagsOf('M2611-001')).toEqual(['']);
   for (const a of accounts) {
     const rows = await h.database.db.select({ role: member.role }).from(member).innerJoin(user, eq(user.id, member.userId)).where(eq(user.email, a.email));
     expect(rows).toEqual([{ role: a.role }]);

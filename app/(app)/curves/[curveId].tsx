@@ -1,0 +1,221 @@
+import { useLocalSearchParams, useRouter } from 'expo-router';
+import { useMemo, useState } from 'react';
+import { StyleSheet, View, useWindowDimensions } from 'react-native';
+import { Button } from '@/components/button';
+import { Card } from '@/components/card';
+import { CautionBlock } from '@/components/caution-block';
+import { Figure } from '@/components/figure';
+import { FlagChip } from '@/components/flag-chip';
+import { IvChart } from '@/components/iv-chart';
+import type { Series } from '@/components/iv-chart';
+import { QueryState } from '@/components/query-state';
+import { RefitForm } from '@/components/refit-form';
+import { ResidualChart } from '@/components/residual-chart';
+import { Screen } from '@/components/screen';
+import { theme } from '@/components/theme';
+import { Txt } from '@/components/txt';
+import { compareFits } from '@/lib/analysis/compare-fits';
+import { useCurve } from '@/lib/api/batches';
+import type { CurveDetail, FitJson } from '@/lib/api/batches';
+import { useMe } from '@/lib/api/session';
+import { fmtParam, sig } from '@/lib/format';
+import { doubleDiodeCurrent, singleDiodeCurrents } from '@/lib/iv/diode';
+import { isAboveElv } from '@/lib/strings/cautions';
+
+/** The fitted model's current on an even voltage grid across the measured range. */
+function modelSeries(c: CurveDetail, f: FitJson | undefined): Series | null {
+  if (!f || !f.converged) return null;
+  const cells = Number(f.conditions.cells ?? c.meta.cells ?? 1);
+  const tempC = Number(f.conditions.tempC ?? c.meta.tempC ?? 25);
+  const v0 = Math.min(0, c.points.voltage_V[0]);
+  const v1 = Math.max(...c.points.voltage_V);
+  const grid = Array.from({ length: 121 }, (_, k) => v0 + ((v1 - v0) * k) / 120);
+  try {
+    if (f.model === 'single-diode') {
+      return { voltage_V: grid, current_A: singleDiodeCurrents({ iph_a: f.iph_a!, i0_a: f.i0_a!, n: f.n!, rs_ohm: f.rs_ohm!, rsh_ohm: f.rsh_ohm! }, grid, cells, tempC) };
+    }
+    const p = { iph_a: f.iph_a!, i01_a: f.i01_a!, n1: f.n1!, i02_a: f.i02_a!, n2: f.n2!, rs_ohm: f.rs_ohm!, rsh_ohm: f.rsh_ohm! };
+    return { voltage_V: grid, current_A: grid.map((v) => doubleDiodeCurrent(p, v, cells, tempC)) };
+  } catch {
+    return null;
+  }
+}
+
+const PARAMS: Record<string, [string, string][]> = {
+  'single-diode': [['iph_a', 'Iph'], ['i0_a', 'I0'], ['n', 'n'], ['rs_ohm', 'Rs'], ['rsh_ohm', 'Rsh']],
+  'double-diode': [['iph_a', 'Iph'], ['i01_a', 'I01'], ['n1', 'n1'], ['i02_a', 'I02'], ['n2', 'n2'], ['rs_ohm', 'Rs'], ['rsh_ohm', 'Rsh']],
+};
+
+function FitColumn({ f }: { f: FitJson }) {
+  const title = f.model === 'single-diode' ? 'Single diode' : `Double diode${f.stderr?.n1 === null && f.stderr?.n2 === null ? ' (n1 = 1, n2 = 2)' : ''}`;
+  return (
+    <View style={styles.fitCol} testID={`fit-${f.model}`}>
+      <Txt variant="heading">{title}</Txt>
+      {!f.converged ? (
+        <Txt variant="body" style={{ color: theme.color.danger }}>Did not converge: {f.message}</Txt>
+      ) : (
+        <>
+          {PARAMS[f.model].map(([k, label]) => {
+            const v = (f as unknown as Record<string, number | null>)[k];
+            const se = f.stderr?.[k];
+            return (
+              <View key={k} style={styles.paramRow}>
+                <Txt variant="label" style={{ width: 44 }}>{label}</Txt>
+                <Txt variant="figure" style={{ flex: 1 }}>{fmtParam(k, v)}</Txt>
+                <Txt variant="caption" style={{ fontFamily: theme.font.mono }}>{se != null ? `± ${sig(se, 2)}` : 'fixed / at bound'}</Txt>
+              </View>
+            );
+          })}
+          <View style={styles.paramRow}>
+            <Txt variant="label" style={{ width: 44 }}>RMSE</Txt>
+            <Txt variant="figure" style={{ flex: 1 }}>{fmtParam('rmse_a', f.rmse_a, 4)}</Txt>
+            <Txt variant="caption">max {fmtParam('rmse_a', f.max_residual_a, 3)}</Txt>
+          </View>
+          <Txt variant="caption">{f.evaluations} evaluations · {f.elapsed_ms.toFixed(1)} ms · {f.reason}{f.at_bounds?.length ? ` · at bound: ${f.at_bounds.join(', ')}` : ''}</Txt>
+        </>
+      )}
+    </View>
+  );
+}
+
+export default function CurveScreen() {
+  const { curveId } = useLocalSearchParams<{ curveId: string }>();
+  const curve = useCurve(String(curveId));
+  const me = useMe();
+  const { width } = useWindowDimensions();
+  const wide = width >= theme.wideFrom;
+  const [refitting, setRefitting] = useState(false);
+  const canWrite = !!me.data?.permissions.includes('batch:write');
+
+  return (
+    <QueryState query={curve}>
+      {(c) => <CurveBody c={c} wide={wide} canWrite={canWrite && c.batch.state !== 'released'} refitting={refitting} setRefitting={setRefitting} />}
+    </QueryState>
+  );
+}
+
+function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDetail; wide: boolean; canWrite: boolean; refitting: boolean; setRefitting: (v: boolean) => void }) {
+  const single = c.fits.find((f) => f.model === 'single-diode');
+  const double = c.fits.find((f) => f.model === 'double-diode');
+  const singleModel = useMemo(() => modelSeries(c, single), [c, single]);
+  const doubleModel = useMemo(() => modelSeries(c, double), [c, double]);
+  const comparison = compareFits(single, double);
+  const mpp = { v: c.metrics.vmp_v, i: c.metrics.imp_a };
+  const m = c.metrics;
+  const residualSets = [single, double].filter((f): f is FitJson => !!f && f.converged && f.residuals_a.length === c.points.voltage_V.length);
+  const conditions = [
+    c.meta.tempC != null ? `${c.meta.tempC} °C` : '25 °C assumed',
+    c.meta.irradiance_Wm2 != null ? `${c.meta.irradiance_Wm2} W/m²` : 'irradiance not given',
+    `${c.meta.cells ?? 1} cell${(c.meta.cells ?? 1) === 1 ? '' : 's'} in series`,
+    c.meta.area_cm2 != null ? `${c.meta.area_cm2} cm²` : null,
+    c.meta.measuredAt ? `measured ${c.meta.measuredAt}` : null,
+  ].filter(Boolean);
+  const flags = c.flags.filter((f) => f.code !== 'high-voltage');
+  const router = useRouter();
+
+  return (
+    <Screen
+      title={c.device_id}
+      subtitle={`${c.file_name} · ${conditions.join(' · ')}`}
+      testID="curve-screen"
+      actions={
+        <View style={{ flexDirection: 'row', gap: 8, flexWrap: 'wrap' }}>
+          <Button label={`‹ ${c.batch.name}`} kind="secondary" onPress={() => router.push(`/batches/${c.batch.id}`)} />
+          <Button label="Physics of this curve" kind="secondary" onPress={() => router.push(`/physics?curve=${c.id}`)} testID="to-physics" />
+        </View>
+      }
+    >
+      {isAboveElv(m.voc_v) ? <CautionBlock /> : null}
+      <View style={styles.figures} testID="key-figures">
+        <Figure label="Isc" value={fmtParam('isc_a', m.isc_a)} />
+        <Figure label="Voc" value={fmtParam('voc_v', m.voc_v)} warn={isAboveElv(m.voc_v)} />
+        <Figure label="Pmax" value={fmtParam('pmp_w', m.pmp_w)} note={`at ${fmtParam('vmp_v', m.vmp_v)}, ${fmtParam('imp_a', m.imp_a)}`} />
+        <Figure label="Fill factor" value={fmtParam('ff', m.ff)} />
+        <Figure label="Efficiency" value={fmtParam('efficiency', m.efficiency)} note={m.efficiency == null ? 'needs area and irradiance' : undefined} />
+        <Figure label="Rsh0 · Rs0 (slopes)" value={`${sig(m.rsh0_ohm, 3)} · ${sig(m.rs0_ohm, 3)} Ω`} />
+      </View>
+
+      {flags.length ? (
+        <Card title="What the curve shows" testID="flags">
+          {flags.map((f) => (
+            <View key={f.code} style={{ flexDirection: 'row', gap: 10, alignItems: 'flex-start' }}>
+              <FlagChip flag={f} />
+              <Txt variant="body" style={{ flex: 1 }}>{f.message}</Txt>
+            </View>
+          ))}
+        </Card>
+      ) : null}
+
+      <View style={[{ gap: 16 }, wide && { flexDirection: 'row' }]}>
+        <Card title="I-V curve" style={wide ? { flex: 1 } : undefined}>
+          <IvChart mode="iv" measured={c.points} model={singleModel} second={doubleModel} mpp={mpp} testID="iv-chart" />
+          <Txt variant="caption">● measured   — single diode   - - double diode   ◆ maximum power point</Txt>
+        </Card>
+        <Card title="P-V curve" style={wide ? { flex: 1 } : undefined}>
+          <IvChart mode="pv" measured={c.points} model={singleModel} mpp={mpp} testID="pv-chart" />
+          <Txt variant="caption">Pmax {fmtParam('pmp_w', m.pmp_w)} from a local fit around the highest measured V·I.</Txt>
+        </Card>
+      </View>
+
+      <Card title="Single diode or double diode?" testID="fit-comparison">
+        <View style={[{ gap: 16 }, wide && { flexDirection: 'row' }]}>
+          {single ? <FitColumn f={single} /> : null}
+          {double ? <FitColumn f={double} /> : null}
+        </View>
+        {comparison ? (
+          <Txt variant="body" testID="fit-verdict">{comparison.sentence}</Txt>
+        ) : (
+          <Txt variant="body">The two fits cannot be compared: one of them did not converge.</Txt>
+        )}
+        {residualSets.length ? (
+          <ResidualChart voltage_V={c.points.voltage_V} residuals={residualSets.map((f) => f.residuals_a)} labels={residualSets.map((f) => (f.model === 'single-diode' ? 'single diode' : 'double diode'))} testID="residual-chart" />
+        ) : null}
+      </Card>
+
+      <View style={[{ gap: 16 }, wide && { flexDirection: 'row', alignItems: 'flex-start' }]}>
+        <Card title="At standard test conditions" style={wide ? { flex: 1 } : undefined} testID="stc">
+          {c.stc ? (
+            <>
+              <View style={styles.figuresPlain}>
+                <Figure label="Isc" value={fmtParam('isc_a', c.stc.isc_a)} />
+                <Figure label="Voc" value={fmtParam('voc_v', c.stc.voc_v)} />
+                <Figure label="Pmax" value={fmtParam('pmp_w', c.stc.pmp_w)} />
+                <Figure label="FF" value={fmtParam('ff', c.stc.ff)} />
+              </View>
+              <Txt variant="caption">
+                From the fitted single diode at {c.stc.from.tempC} °C and {c.stc.from.irradiance_Wm2} W/m², moved to 1000 W/m² and 25 °C by the De Soto, Klein & Beckman (2006) scaling. {c.stc.notes.join(' ')}
+              </Txt>
+            </>
+          ) : (
+            <Txt variant="body">No STC figures: the single-diode fit did not converge.</Txt>
+          )}
+        </Card>
+        <Card title="Fit history" style={wide ? { flex: 1 } : undefined} testID="fit-history">
+          {c.history.map((h) => (
+            <View key={h.fit_id} style={{ flexDirection: 'row', gap: 8, flexWrap: 'wrap' }}>
+              <Txt variant="figure" style={{ fontSize: 12, color: h.current ? theme.color.electron : theme.color.muted }}>{h.current ? 'current' : 'earlier'}</Txt>
+              <Txt variant="caption" style={{ flex: 1, minWidth: 200 }}>
+                {h.model} · RMSE {fmtParam('rmse_a', h.rmse_a, 3)} · {h.reason} · {new Date(h.created_at).toLocaleString()}
+              </Txt>
+            </View>
+          ))}
+          {canWrite ? (
+            refitting ? (
+              <RefitForm c={c} onDone={() => setRefitting(false)} />
+            ) : (
+              <Button label="Fit again…" kind="secondary" onPress={() => setRefitting(true)} testID="open-refit" />
+            )
+          ) : null}
+        </Card>
+      </View>
+      {c.notes.length ? <Txt variant="caption">Reading the file: {c.notes.join('; ')}.</Txt> : null}
+    </Screen>
+  );
+}
+
+const styles = StyleSheet.create({
+  figures: { flexDirection: 'row', flexWrap: 'wrap', gap: 14, backgroundColor: theme.color.surface, borderRadius: theme.radius.l, borderWidth: 1, borderColor: theme.color.line, padding: 16 },
+  figuresPlain: { flexDirection: 'row', flexWrap: 'wrap', gap: 14 },
+  fitCol: { flex: 1, minWidth: 260, gap: 6 },
+  paramRow: { flexDirection: 'row', alignItems: 'baseline', gap: 8, borderBottomWidth: 1, borderBottomColor: theme.color.sunken, paddingVertical: 3 },
+});

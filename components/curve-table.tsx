@@ -1,0 +1,109 @@
+import { Link } from 'expo-router';
+import { createColumnHelper, flexRender, getCoreRowModel, useReactTable } from '@tanstack/react-table';
+import type { SortingState } from '@tanstack/react-table';
+import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
+import { FlagChip } from '@/components/flag-chip';
+import { theme } from '@/components/theme';
+import { Txt } from '@/components/txt';
+import type { CurveRow } from '@/lib/api/batches';
+import { fmtParam } from '@/lib/format';
+import type { CurveSortKey } from '@/lib/schemas/curves';
+
+const col = createColumnHelper<CurveRow>();
+const single = (r: CurveRow) => r.fits.find((f) => f.model === 'single-diode');
+
+/** Columns of the batch table; ids are the server's sort keys. */
+const COLUMNS = [
+  col.accessor('device_id', { id: 'device_id', header: 'Device', size: 150 }),
+  col.accessor((r) => r.metrics.isc_a, { id: 'isc_a', header: 'Isc (A)', size: 86, cell: (c) => fmtParam('isc_a', c.getValue()).replace(' A', '') }),
+  col.accessor((r) => r.metrics.voc_v, { id: 'voc_v', header: 'Voc (V)', size: 86, cell: (c) => fmtParam('voc_v', c.getValue()).replace(' V', '') }),
+  col.accessor((r) => r.metrics.pmp_w, { id: 'pmp_w', header: 'Pmax (W)', size: 90, cell: (c) => fmtParam('pmp_w', c.getValue()).replace(' W', '') }),
+  col.accessor((r) => r.metrics.ff, { id: 'ff', header: 'FF (%)', size: 70, cell: (c) => fmtParam('ff', c.getValue()).replace(' %', '') }),
+  col.accessor((r) => single(r)?.n ?? null, { id: 'n', header: 'n', size: 64, cell: (c) => fmtParam('n', c.getValue(), 3) }),
+  col.accessor((r) => single(r)?.rs_ohm ?? null, { id: 'rs_ohm', header: 'Rs (Ω)', size: 84, cell: (c) => fmtParam('rs_ohm', c.getValue(), 3).replace(' Ω', '') }),
+  col.accessor((r) => single(r)?.rsh_ohm ?? null, { id: 'rsh_ohm', header: 'Rsh (Ω)', size: 90, cell: (c) => fmtParam('rsh_ohm', c.getValue(), 3).replace(' Ω', '') }),
+  col.accessor((r) => r.stc?.pmp_w ?? null, { id: 'stc_pmp_w', header: 'Pmax STC (W)', size: 104, cell: (c) => fmtParam('stc_pmp_w', c.getValue()).replace(' W', '') }),
+  col.display({ id: 'flags', header: 'Flags', size: 210 }),
+];
+
+/**
+ * The batch's curves: sorting happens on the server (the table library only manages headers and
+ * state), so 5,000 curves page as fast as 50. The device column stays put while the figures scroll.
+ */
+export function CurveTable({ rows, sort, dir, onSort }: { rows: CurveRow[]; sort: CurveSortKey; dir: 'asc' | 'desc'; onSort: (key: CurveSortKey, dir: 'asc' | 'desc') => void }) {
+  const sorting: SortingState = [{ id: sort, desc: dir === 'desc' }];
+  const table = useReactTable({
+    data: rows,
+    columns: COLUMNS,
+    state: { sorting },
+    manualSorting: true,
+    getCoreRowModel: getCoreRowModel(),
+    getRowId: (r) => r.id,
+  });
+  const [deviceCol, ...rest] = table.getAllLeafColumns();
+  const header = (id: string, label: string, width: number) => {
+    const sortable = id !== 'flags';
+    const active = sort === id;
+    return (
+      <Pressable
+        key={id}
+        disabled={!sortable}
+        onPress={() => onSort(id as CurveSortKey, active && dir === 'asc' ? 'desc' : 'asc')}
+        style={[styles.cell, styles.head, { width }]}
+        accessibilityRole="button"
+        accessibilityLabel={`Sort by ${label}`}
+        testID={`sort-${id}`}
+      >
+        <Txt variant="label" style={{ fontSize: 12 }} numberOfLines={1}>
+          {label}
+          {active ? (dir === 'asc' ? ' ▲' : ' ▼') : ''}
+        </Txt>
+      </Pressable>
+    );
+  };
+  return (
+    <View style={styles.wrap} testID="curve-table">
+      <View style={{ width: deviceCol.getSize() }}>
+        {header(deviceCol.id, String(deviceCol.columnDef.header), deviceCol.getSize())}
+        {table.getRowModel().rows.map((r) => (
+          <Link key={r.id} href={`/curves/${r.original.id}`} asChild>
+            <Pressable style={StyleSheet.flatten([styles.cell, styles.row, { width: deviceCol.getSize() }])} testID={`curve-row-${r.original.device_id}`}>
+              <Txt variant="figure" numberOfLines={1} style={{ color: theme.color.electron, fontSize: 13 }}>
+                {r.original.device_id}
+              </Txt>
+            </Pressable>
+          </Link>
+        ))}
+      </View>
+      <ScrollView horizontal style={{ flex: 1 }} contentContainerStyle={{ flexDirection: 'column' }}>
+        <View style={{ flexDirection: 'row' }}>{rest.map((c) => header(c.id, String(c.columnDef.header), c.getSize()))}</View>
+        {table.getRowModel().rows.map((r) => (
+          <View key={r.id} style={{ flexDirection: 'row' }}>
+            {r.getVisibleCells().slice(1).map((cell) =>
+              cell.column.id === 'flags' ? (
+                <View key={cell.id} style={[styles.cell, styles.row, { width: cell.column.getSize(), flexDirection: 'row', gap: 4, flexWrap: 'nowrap', overflow: 'hidden' }]}>
+                  {r.original.flags.filter((f) => f.severity !== 'info').slice(0, 3).map((f) => (
+                    <FlagChip key={f.code} flag={f} />
+                  ))}
+                </View>
+              ) : (
+                <View key={cell.id} style={[styles.cell, styles.row, { width: cell.column.getSize() }]}>
+                  <Txt variant="figure" style={{ fontSize: 13, textAlign: 'right' }} numberOfLines={1}>
+                    {String(flexRender(cell.column.columnDef.cell, cell.getContext()) ?? '')}
+                  </Txt>
+                </View>
+              ),
+            )}
+          </View>
+        ))}
+      </ScrollView>
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  wrap: { flexDirection: 'row', borderWidth: 1, borderColor: theme.color.line, borderRadius: theme.radius.m, overflow: 'hidden', backgroundColor: theme.color.surface },
+  cell: { paddingHorizontal: 8, height: 36, justifyContent: 'center' },
+  head: { backgroundColor: theme.color.sunken, borderBottomWidth: 1, borderBottomColor: theme.color.line },
+  row: { borderBottomWidth: 1, borderBottomColor: theme.color.sunken },
+});

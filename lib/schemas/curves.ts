@@ -1,0 +1,101 @@
+/** Request schemas for batches, uploads and refits, shared by the screens and the server. */
+import { z } from 'zod';
+
+/** Figures of a curve translated to standard test conditions (from the fitted model). */
+export type StcFigures = {
+  method: 'model';
+  from: { irradiance_Wm2: number; tempC: number };
+  isc_a: number;
+  voc_v: number;
+  pmp_w: number;
+  imp_a: number;
+  vmp_v: number;
+  ff: number;
+  efficiency: number | null;
+  notes: string[];
+};
+
+const optText = (max: number) =>
+  z
+    .string()
+    .trim()
+    .max(max)
+    .optional()
+    .nullable()
+    .transform((v) => (v ? v : null));
+
+const optNumber = (label: string, min: number, max: number, int = false) =>
+  z
+    .union([z.number(), z.string().trim()])
+    .optional()
+    .nullable()
+    .transform((v, ctx) => {
+      if (v === undefined || v === null || v === '') return null;
+      const n = typeof v === 'number' ? v : Number(v.replace(',', '.'));
+      if (!Number.isFinite(n) || n < min || n > max || (int && !Number.isInteger(n))) {
+        ctx.addIssue({ code: 'custom', message: `${label} must be ${int ? 'a whole number' : 'a number'} from ${min} to ${max}.` });
+        return z.NEVER;
+      }
+      return n;
+    });
+
+export const batchFieldsSchema = z.object({
+  productType: optText(120),
+  supplier: optText(120),
+  line: optText(60),
+  lot: optText(60),
+  batchDate: z
+    .string()
+    .trim()
+    .optional()
+    .nullable()
+    .refine((v) => !v || /^\d{4}-\d{2}-\d{2}$/.test(v), 'Date must be written yyyy-mm-dd.')
+    .transform((v) => (v ? v : null)),
+  cells: optNumber('Cells in series', 1, 1000, true),
+  area_cm2: optNumber('Area (cm²)', 0.01, 100000),
+  nameplate_w: optNumber('Nameplate power (W)', 0.001, 5000),
+  description: optText(2000),
+});
+
+export const batchCreateSchema = batchFieldsSchema.extend({
+  name: z.string().trim().min(1, 'Give the batch a name.').max(120, 'Keep the name under 120 characters.'),
+});
+export type BatchCreateInput = z.input<typeof batchCreateSchema>;
+
+export const batchUpdateSchema = batchFieldsSchema.partial().extend({
+  name: z.string().trim().min(1, 'Give the batch a name.').max(120).optional(),
+  archived: z.boolean().optional(),
+});
+
+/** Form fields that may accompany an upload and override every file's metadata. */
+export const uploadOverridesSchema = z.object({
+  tempC: optNumber('Cell temperature (°C)', -60, 150),
+  irradiance_Wm2: optNumber('Irradiance (W/m²)', 1, 2000),
+  cells: optNumber('Cells in series', 1, 1000, true),
+  area_cm2: optNumber('Area (cm²)', 0.01, 100000),
+  onDuplicate: z.enum(['ask', 'replace', 'keep']).optional().default('ask'),
+});
+
+export const refitSchema = z.object({
+  model: z.enum(['single', 'double', 'both']).optional().default('both'),
+  idealities: z.enum(['fixed', 'free']).optional().default('fixed'),
+  objective: z.enum(['true-current', 'implicit']).optional().default('true-current'),
+  tempC: optNumber('Cell temperature (°C)', -60, 150),
+  irradiance_Wm2: optNumber('Irradiance (W/m²)', 1, 2000),
+  cells: optNumber('Cells in series', 1, 1000, true),
+  area_cm2: optNumber('Area (cm²)', 0.01, 100000),
+});
+export type RefitInput = z.input<typeof refitSchema>;
+
+/** Columns the batch table sorts by (server-side). */
+export const CURVE_SORT_KEYS = ['device_id', 'isc_a', 'voc_v', 'pmp_w', 'ff', 'n', 'rs_ohm', 'rsh_ohm', 'stc_pmp_w', 'created_at'] as const;
+export type CurveSortKey = (typeof CURVE_SORT_KEYS)[number];
+
+export const curveListQuerySchema = z.object({
+  page: z.coerce.number().int().min(1).optional().default(1),
+  pageSize: z.coerce.number().int().min(1).max(500).optional().default(50),
+  sort: z.enum(CURVE_SORT_KEYS).optional().default('device_id'),
+  dir: z.enum(['asc', 'desc']).optional().default('asc'),
+  q: z.string().trim().max(120).optional().default(''),
+  flag: z.string().trim().max(60).optional(),
+});

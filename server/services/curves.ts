@@ -1,0 +1,126 @@
+/**
+ * Storing and reading curves. Every curve is written with its fits in one transaction, so a
+ * reader (or a restart after a crash) sees either the whole curve or nothing of it.
+ */
+import { and, eq, inArray } from 'drizzle-orm';
+import type { Db } from '@/db/client';
+import { curve, fit } from '@/db/schema';
+import type { FileAnalysis } from '@/lib/analysis/analyse-file';
+import type { FitResult } from '@/lib/iv';
+
+type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
+type CurveRow = typeof curve.$inferSelect;
+type FitRow = typeof fit.$inferSelect;
+
+/** The sortable/filterable columns derived from an analysis. */
+export function derivedColumns(a: FileAnalysis) {
+  const single = a.fits.find((f) => f.model === 'single-diode' && f.converged);
+  return {
+    isc_a: a.metrics.isc_a,
+    voc_v: a.metrics.voc_v,
+    pmp_w: a.metrics.pmp_w,
+    ff: a.metrics.ff,
+    efficiency: a.metrics.efficiency,
+    n: single?.n ?? null,
+    rs_ohm: single?.rs_ohm ?? null,
+    rsh_ohm: single?.rsh_ohm ?? null,
+    stc_pmp_w: a.stc?.pmp_w ?? null,
+    flagCodes: a.flags.map((f) => f.code).join(' '),
+  };
+}
+
+/** Inserts one analysed curve and its fits; replaces `replaceIds` in the same transaction. */
+export async function storeCurve(
+  db: Db,
+  input: { organizationId: string; batchId: string; fileName: string; analysis: FileAnalysis; userId: string | null; replaceIds?: string[] },
+): Promise<string> {
+  const id = crypto.randomUUID();
+  const a = input.analysis;
+  await db.transaction(async (tx) => {
+    if (input.replaceIds?.length) {
+      await tx.delete(curve).where(and(inArray(curve.id, input.replaceIds), eq(curve.batchId, input.batchId)));
+    }
+    await tx.insert(curve).values({
+      id,
+      organizationId: input.organizationId,
+      batchId: input.batchId,
+      deviceId: a.curve.meta.deviceId ?? input.fileName,
+      fileName: input.fileName,
+      meta: a.curve.meta,
+      voltage_V: a.curve.voltage_V,
+      current_A: a.curve.current_A,
+      notes: a.curve.notes,
+      metrics: a.metrics,
+      flags: a.flags,
+      stc: a.stc,
+      createdBy: input.userId,
+      ...derivedColumns(a),
+    });
+    await insertFits(tx, id, a.fits, a.conditions, 'upload', input.userId);
+  });
+  return id;
+}
+
+export async function insertFits(tx: Tx | Db, curveId: string, fits: FitResult[], conditions: Record<string, unknown>, reason: string, userId: string | null) {
+  if (!fits.length) return;
+  await tx.insert(fit).values(
+    fits.map((f) => ({ id: crypto.randomUUID(), curveId, model: f.model, current: true, result: f, conditions, reason, createdBy: userId })),
+  );
+}
+
+/** A fit without its per-point residuals (for lists). */
+export function fitSummary(f: FitResult): Omit<FitResult, 'residuals_a'> {
+  const { residuals_a: _dropped, ...rest } = f;
+  return rest;
+}
+
+/** The API shape of a curve (CLI vocabulary: metrics.isc_a, fits[].rs_ohm, …). */
+export function curveJson(c: CurveRow, fits: FitRow[], detail: boolean) {
+  const current = fits.filter((f) => f.current).sort((a, b) => a.model.localeCompare(b.model)).reverse();
+  return {
+    id: c.id,
+    batch_id: c.batchId,
+    device_id: c.deviceId,
+    file_name: c.fileName,
+    meta: c.meta,
+    metrics: c.metrics,
+    flags: c.flags,
+    stc: c.stc,
+    fits: current.map((f) => ({ ...(detail ? f.result : fitSummary(f.result)), fit_id: f.id, conditions: f.conditions, reason: f.reason, created_at: f.createdAt })),
+    created_at: c.createdAt,
+    ...(detail
+      ? {
+          points: { voltage_V: c.voltage_V, current_A: c.current_A },
+          notes: c.notes,
+          history: fits
+            .slice()
+            .sort((a, b) => +b.createdAt - +a.createdAt)
+            .map((f) => ({
+              fit_id: f.id,
+              model: f.model,
+              current: f.current,
+              reason: f.reason,
+              conditions: f.conditions,
+              rmse_a: f.result.rmse_a,
+              converged: f.result.converged,
+              created_at: f.createdAt,
+            })),
+        }
+      : {}),
+  };
+}
+
+export async function fitsFor(db: Db, curveIds: string[], onlyCurrent: boolean): Promise<Map<string, FitRow[]>> {
+  const out = new Map<string, FitRow[]>();
+  if (!curveIds.length) return out;
+  const rows = await db
+    .select()
+    .from(fit)
+    .where(onlyCurrent ? and(inArray(fit.curveId, curveIds), eq(fit.current, true)) : inArray(fit.curveId, curveIds));
+  for (const r of rows) {
+    const list = out.get(r.curveId) ?? [];
+    list.push(r);
+    out.set(r.curveId, list);
+  }
+  return out;
+}
