@@ -1,5 +1,6 @@
 import { Link } from 'expo-router';
-import { createColumnHelper, flexRender, getCoreRowModel, useReactTable } from '@tanstack/react-table';
+import { createColumnHelper, getCoreRowModel, useReactTable } from '@tanstack/react-table';
+import type { CellContext } from '@tanstack/react-table';
 import type { SortingState } from '@tanstack/react-table';
 import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
 import { FlagChip } from '@/components/flag-chip';
@@ -10,6 +11,11 @@ import { fmtParam } from '@/lib/format';
 import type { CurveSortKey } from '@/lib/schemas/curves';
 
 const col = createColumnHelper<CurveRow>();
+
+/** Our cell definitions are formatters returning text (numbers render as <Text>, not DOM). */
+function cellText(def: unknown, ctx: CellContext<CurveRow, unknown>): string {
+  return typeof def === 'function' ? String(def(ctx) ?? '') : String(ctx.getValue() ?? '');
+}
 const single = (r: CurveRow) => r.fits.find((f) => f.model === 'single-diode');
 
 /** Columns of the batch table; ids are the server's sort keys. */
@@ -89,7 +95,7 @@ export function CurveTable({ rows, sort, dir, onSort }: { rows: CurveRow[]; sort
               ) : (
                 <View key={cell.id} style={[styles.cell, styles.row, { width: cell.column.getSize() }]}>
                   <Txt variant="figure" style={{ fontSize: 13, textAlign: 'right' }} numberOfLines={1}>
-                    {String(flexRender(cell.column.columnDef.cell, cell.getContext()) ?? '')}
+                    {cellText(cell.column.columnDef.cell, cell.getContext())}
                   </Txt>
                 </View>
               ),

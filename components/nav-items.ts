@@ -6,6 +6,10 @@ export type NavItem = { href: string; label: string; short: string; needs?: Perm
 export const NAV_ITEMS: NavItem[] = [
   { href: '/', label: 'Overview', short: 'Home', match: '/' },
   { href: '/batches', label: 'Batches', short: 'Batches', needs: 'batch:read', match: '/batches' },
+  { href: '/compare', label: 'Compare batches', short: 'Compare', needs: 'batch:read', match: '/compare' },
+  { href: '/specs', label: 'Acceptance specs', short: 'Specs', needs: 'spec:read', match: '/specs' },
+  { href: '/physics', label: 'Device physics', short: 'Physics', needs: 'physics:use', match: '/physics' },
+  { href: '/strings', label: 'String sizing', short: 'Strings', needs: 'physics:use', match: '/strings' },
   { href: '/admin/users', label: 'Users & roles', short: 'Users', needs: 'users:manage', match: '/admin/users' },
   { href: '/admin/outbox', label: 'Outbox', short: 'Outbox', needs: 'outbox:read', match: '/admin/outbox' },
   { href: '/account', label: 'Account', short: 'Account', match: '/account' },

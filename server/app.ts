@@ -17,6 +17,8 @@ import { batchesRouter } from '@/server/routes/batches';
 import { curvesRouter } from '@/server/routes/curves';
 import { healthRouter } from '@/server/routes/health';
 import { meRouter } from '@/server/routes/me';
+import { physicsRouter } from '@/server/routes/physics';
+import { stringsRouter } from '@/server/routes/strings';
 import { outboxRouter } from '@/server/routes/outbox';
 import { usersRouter } from '@/server/routes/users';
 
@@ -52,6 +54,8 @@ export function createApp(deps: AppDeps): Express {
   app.use('/api/outbox', session, outboxRouter(db));
   app.use('/api/batches', session, batchesRouter(db));
   app.use('/api/curves', session, curvesRouter(db));
+  app.use('/api/physics', session, physicsRouter(db));
+  app.use('/api/strings', session, stringsRouter(db));
 
   app.use('/api', apiNotFound);
   app.use('/api', errorHandler);
