@@ -45,12 +45,15 @@ module.exports = {
     { ...nodeProject('e2e', ['<rootDir>/tests/e2e']), setupFilesAfterEnv: ['<rootDir>/tests/e2e/setup.ts'] },
     {
       displayName: 'components',
-      preset: 'jest-expo/web',
+      // The native preset, not jest-expo/web: @testing-library/react-native queries host 'Text' and
+      // 'TextInput' elements, which react-native-web replaces with <div>/<input>, and jest-expo/web's
+      // merged moduleNameMapper still resolves 'react-native' to the native package without its mocks.
+      preset: 'jest-expo',
       roots: ['<rootDir>/tests/components'],
       testMatch: ['**/*.test.tsx'],
       moduleNameMapper: { '^@/(.*)$': '<rootDir>/$1' },
       transformIgnorePatterns: [
-        'node_modules/(?!((jest-)?react-native|@react-native(-community)?|expo(nent)?|@expo(nent)?/.*|@expo-google-fonts/.*|react-navigation|@react-navigation/.*|react-native-svg|victory.*|@tanstack/.*))',
+        'node_modules/(?!((jest-)?react-native|@react-native(-community)?|expo(nent)?|@expo(nent)?/.*|@expo-google-fonts/.*|react-navigation|@react-navigation/.*|react-native-svg|victory.*|@tanstack/.*|standard-navigation))',
       ],
     },
   ],

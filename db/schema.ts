@@ -217,3 +217,45 @@ export const fit = pgTable(
   },
   (t) => [index('fit_curve_idx').on(t.curveId, t.current)],
 );
+
+/**
+ * Acceptance specs, versioned: every save makes a new row; `familyId` ties the versions of one
+ * spec together and `version` counts 1, 2, 3… within it. Rows are never changed afterwards.
+ */
+export const spec = pgTable(
+  'spec',
+  {
+    id: text('id').primaryKey(),
+    organizationId: text('organization_id')
+      .notNull()
+      .references(() => organization.id, { onDelete: 'cascade' }),
+    familyId: text('family_id').notNull(),
+    version: integer('version').notNull(),
+    name: text('name').notNull(),
+    /** The validated spec body (lib/quality specInputSchema output). */
+    body: jsonb('body').$type<Record<string, unknown>>().notNull(),
+    /** What changed against the previous version, in words. */
+    changes: jsonb('changes').$type<string[]>().notNull(),
+    createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [uniqueIndex('spec_family_version_idx').on(t.familyId, t.version), index('spec_org_idx').on(t.organizationId)],
+);
+
+/** The review record of a batch: submissions, releases, holds — who, when, which spec, the counts. */
+export const batchReview = pgTable(
+  'batch_review',
+  {
+    id: text('id').primaryKey(),
+    batchId: text('batch_id')
+      .notNull()
+      .references(() => batch.id, { onDelete: 'cascade' }),
+    action: text('action').notNull(),
+    specId: text('spec_id').references(() => spec.id, { onDelete: 'set null' }),
+    counts: jsonb('counts').$type<Record<string, number> | null>(),
+    comment: text('comment'),
+    actorId: text('actor_id').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index('batch_review_batch_idx').on(t.batchId, t.createdAt)],
+);

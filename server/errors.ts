@@ -37,6 +37,13 @@ export const errorHandler: ErrorRequestHandler = (err, _req, res, next) => {
     res.status(err.status).json({ code: err.code, message: err.message, ...(err.details ? { details: err.details } : {}) });
     return;
   }
+  // The engines' own input errors (lib/iv, lib/physics, lib/quality, lib/strings) name the input.
+  const named = (err as Error)?.name;
+  if (named === 'IvInputError' || named === 'PhysicsError' || named === 'QualityError' || named === 'StringSizingError') {
+    const input = (err as { input?: string }).input;
+    res.status(400).json({ code: 'invalid_input', message: (err as Error).message, ...(input ? { details: { input } } : {}) });
+    return;
+  }
   if (err instanceof ZodError) {
     res.status(400).json({ code: 'invalid_input', message: describeZod(err), details: err.issues });
     return;

@@ -1,0 +1,137 @@
+/**
+ * Request schemas of the device-physics API, shared by the /physics screen and the server.
+ * Only the shape and the numbers' readability are checked here; the physical ranges (model
+ * temperature range, dopant solubility, translation limits) are the physics library's, which
+ * answers with a PhysicsError naming the input.
+ */
+import { z } from 'zod';
+
+/** A number written as a number or as text ("1e16", "1,5"); '' and null read as absent. */
+function readNumber(v: unknown): number | undefined {
+  if (v === undefined || v === null) return undefined;
+  if (typeof v === 'number') return v;
+  if (typeof v !== 'string') return Number.NaN;
+  const t = v.trim().replace(/\s+/g, '').replace(',', '.');
+  if (t === '') return undefined;
+  return Number(t);
+}
+
+const numberInput = z.union([z.number(), z.string()]).optional().nullable();
+
+/** A required finite number; the message names the input and its unit. */
+const requiredNumber = (name: string, unit: string) =>
+  numberInput.transform((v, ctx) => {
+    const n = readNumber(v);
+    if (n === undefined) {
+      ctx.addIssue({ code: 'custom', message: `${name} is required (${unit}).` });
+      return z.NEVER;
+    }
+    if (!Number.isFinite(n)) {
+      ctx.addIssue({ code: 'custom', message: `${name} must be a number (${unit}), got "${String(v)}".` });
+      return z.NEVER;
+    }
+    return n;
+  });
+
+/** An optional finite number (undefined when left empty). */
+const optionalNumber = (name: string, unit: string) =>
+  numberInput.transform((v, ctx) => {
+    const n = readNumber(v);
+    if (n === undefined) return undefined;
+    if (!Number.isFinite(n)) {
+      ctx.addIssue({ code: 'custom', message: `${name} must be a number (${unit}), got "${String(v)}".` });
+      return z.NEVER;
+    }
+    return n;
+  });
+
+/** GET /api/physics/material?tempK= (300 K when omitted). */
+export const materialQuerySchema = z.object({
+  tempK: numberInput.transform((v, ctx) => {
+    const n = readNumber(v);
+    if (n === undefined) return 300;
+    if (!Number.isFinite(n)) {
+      ctx.addIssue({ code: 'custom', message: `tempK must be a number (K), got "${String(v)}".` });
+      return z.NEVER;
+    }
+    return n;
+  }),
+});
+
+export const DOPING_TYPES = ['p', 'n'] as const;
+
+/**
+ * POST /api/physics/band-diagram: doping, temperature and an injection given either as the
+ * excess density or as a generation rate with a lifetime (Δn = G·τ).
+ */
+export const bandDiagramSchema = z.object({
+  type: z.enum(DOPING_TYPES, { message: 'type must be "p" or "n".' }),
+  doping_cm3: requiredNumber('doping_cm3', 'cm⁻³'),
+  excess_cm3: optionalNumber('excess_cm3', 'cm⁻³'),
+  generation_cm3s: optionalNumber('generation_cm3s', 'cm⁻³·s⁻¹'),
+  lifetime_s: optionalNumber('lifetime_s', 's'),
+  tempK: requiredNumber('tempK', 'K'),
+});
+export type BandDiagramInput = z.input<typeof bandDiagramSchema>;
+export type BandDiagramRequest = z.output<typeof bandDiagramSchema>;
+
+export const TRANSLATION_METHODS = ['model', 'iec60891-1', 'iec60891-2'] as const;
+export type TranslationMethod = (typeof TRANSLATION_METHODS)[number];
+
+export const TRANSLATION_METHOD_LABELS: Record<TranslationMethod, string> = {
+  model: 'Fitted model (De Soto 2006)',
+  'iec60891-1': 'IEC 60891 procedure 1',
+  'iec60891-2': 'IEC 60891 procedure 2',
+};
+
+/** Every coefficient a translation may take, with its label and unit for forms. */
+export const TRANSLATION_COEFFICIENTS = {
+  alpha_A_per_K: { label: 'α, Isc temperature coefficient', unit: 'A/K' },
+  beta_V_per_K: { label: 'β, Voc temperature coefficient', unit: 'V/K' },
+  alpha_rel_per_K: { label: 'α, relative Isc coefficient', unit: '1/K' },
+  beta_rel_per_K: { label: 'β, relative Voc coefficient', unit: '1/K' },
+  rs_ohm: { label: 'Rs, internal series resistance', unit: 'Ω' },
+  kappa_ohm_per_K: { label: 'κ, curve correction factor', unit: 'Ω/K' },
+  a_irradiance: { label: 'a, irradiance correction of Voc', unit: 'dimensionless' },
+  alpha_isc_A_per_K: { label: 'α, Isc temperature coefficient', unit: 'A/K' },
+} as const;
+export type TranslationCoefficient = keyof typeof TRANSLATION_COEFFICIENTS;
+
+/** Coefficients each method uses; `required` ones must be given. */
+export const METHOD_COEFFICIENTS: Record<TranslationMethod, { required: TranslationCoefficient[]; optional: TranslationCoefficient[] }> = {
+  'iec60891-1': { required: ['alpha_A_per_K', 'beta_V_per_K', 'rs_ohm', 'kappa_ohm_per_K'], optional: [] },
+  'iec60891-2': { required: ['alpha_rel_per_K', 'beta_rel_per_K', 'rs_ohm', 'kappa_ohm_per_K', 'a_irradiance'], optional: [] },
+  model: { required: [], optional: ['alpha_isc_A_per_K'] },
+};
+
+const coefficientFields = Object.fromEntries(
+  (Object.keys(TRANSLATION_COEFFICIENTS) as TranslationCoefficient[]).map((k) => [k, optionalNumber(k, TRANSLATION_COEFFICIENTS[k].unit)]),
+) as { [K in TranslationCoefficient]: ReturnType<typeof optionalNumber> };
+
+/**
+ * POST /api/physics/curves/:id/translate: the method, the target conditions and the method's
+ * coefficients. Every missing coefficient of the chosen method is reported, each by name.
+ */
+export const translateSchema = z
+  .object({
+    method: z.enum(TRANSLATION_METHODS, { message: 'method must be model, iec60891-1 or iec60891-2.' }),
+    to: z.object(
+      {
+        irradiance_Wm2: requiredNumber('to.irradiance_Wm2', 'W/m²'),
+        tempC: requiredNumber('to.tempC', '°C'),
+      },
+      { message: 'to (target irradiance_Wm2 and tempC) is required.' },
+    ),
+    i0Law: z.enum(['desoto', 'ni-power']).optional(),
+    ...coefficientFields,
+  })
+  .superRefine((v, ctx) => {
+    for (const k of METHOD_COEFFICIENTS[v.method].required) {
+      if (v[k] === undefined) {
+        const c = TRANSLATION_COEFFICIENTS[k];
+        ctx.addIssue({ code: 'custom', path: [k], message: `${TRANSLATION_METHOD_LABELS[v.method]} needs ${k} (${c.label}, ${c.unit}), which is missing.` });
+      }
+    }
+  });
+export type TranslateInput = z.input<typeof translateSchema>;
+export type TranslateRequest = z.output<typeof translateSchema>;

@@ -1,0 +1,26 @@
+/** Request schemas for specs, reviews and comparisons, shared by the screens and the server. */
+import { z } from 'zod';
+import { specInputSchema } from '@/lib/quality/spec';
+
+/** A new spec, or (with familyId) a new version of an existing one. */
+export const specSaveSchema = specInputSchema.extend({ familyId: z.string().min(1).optional() });
+
+export const submitSchema = z.object({ comment: z.string().trim().max(2000).optional() });
+
+export const decisionSchema = z
+  .object({
+    decision: z.enum(['release', 'hold'], { message: 'decision must be "release" or "hold".' }),
+    specId: z.string().min(1, 'Choose the spec version the batch was judged against.'),
+    comment: z.string().trim().max(2000).optional().default(''),
+  })
+  .refine((d) => d.decision !== 'hold' || d.comment.length > 0, { message: 'Say why the batch is held.', path: ['comment'] });
+
+export const compareQuerySchema = z.object({
+  batches: z
+    .string()
+    .min(1, 'Choose at least one batch.')
+    .transform((s) => [...new Set(s.split(',').map((x) => x.trim()).filter(Boolean))])
+    .refine((a) => a.length >= 1 && a.length <= 20, 'Choose from 1 to 20 batches.'),
+  spec: z.string().optional(),
+  param: z.string().optional().default('pmp_w'),
+});

@@ -1,0 +1,90 @@
+import { and, eq, inArray } from 'drizzle-orm';
+import { Router } from 'express';
+import type { Db } from '@/db/client';
+import { batch } from '@/db/schema';
+import { describe as describeValues, evaluateBatch, isParamKey, welchDifference } from '@/lib/quality';
+import type { Description, ParamKey, Spec } from '@/lib/quality';
+import { PARAM_KEYS, PARAM_UNITS } from '@/lib/quality/params';
+import { compareQuerySchema } from '@/lib/schemas/quality';
+import { HttpError } from '@/server/errors';
+import { callerOf, requirePermission } from '@/server/permissions';
+import { deviceRecords, loadSpec } from '@/server/services/quality';
+
+/** /api/compare — several batches side by side for the comparison grid. */
+export function compareRouter(db: Db): Router {
+  const r = Router();
+
+  /**
+   * GET /api/compare?batches=a,b,…&spec=<specId>&param=pmp_w — one row per curve with every key
+   * figure and fitted parameter (and pass/fail when a spec is given), statistics per batch and
+   * parameter (Cpk against the spec's limits), and the Welch difference of means of `param`
+   * between each batch and the first.
+   */
+  r.get('/', requirePermission('batch:read'), async (req, res) => {
+    const c = callerOf(req);
+    const q = compareQuerySchema.parse(req.query);
+    if (!isParamKey(q.param)) throw new HttpError(400, 'invalid_input', `param must be one of ${PARAM_KEYS.join(', ')}.`);
+    const param = q.param as ParamKey;
+    const found = await db.select().from(batch).where(and(inArray(batch.id, q.batches), eq(batch.organizationId, c.organization.id)));
+    if (found.length !== q.batches.length) throw new HttpError(404, 'not_found', 'One or more of those batches were not found.');
+    const order = new Map(q.batches.map((id, k) => [id, k]));
+    found.sort((a, b) => order.get(a.id)! - order.get(b.id)!);
+    let spec: Spec | null = null;
+    let specInfo = null;
+    if (q.spec) {
+      const s = await loadSpec(db, c.organization.id, q.spec);
+      spec = s.spec;
+      specInfo = { id: s.row.id, name: s.row.name, version: s.row.version };
+    }
+    const devices = await deviceRecords(db, q.batches);
+    const byBatch = new Map<string, typeof devices>();
+    for (const d of devices) byBatch.set(d.batchId, [...(byBatch.get(d.batchId) ?? []), d]);
+
+    const rows: Record<string, unknown>[] = [];
+    const stats: Record<string, Partial<Record<ParamKey, Description | null>>> = {};
+    const counts: Record<string, { total: number; pass: number; fail: number; outliers: number } | null> = {};
+    for (const b of found) {
+      const list = byBatch.get(b.id) ?? [];
+      if (spec) {
+        const e = evaluateBatch(list, spec, { outlierParams: [param] });
+        stats[b.id] = e.stats;
+        counts[b.id] = e.counts;
+        e.devices.forEach((d, k) =>
+          rows.push({ curveId: list[k].curveId, batchId: b.id, batchName: b.name, deviceId: d.deviceId, ...d.values, flags: d.flags, result: d.result, reasons: d.reasons.map((x) => x.message), powerClass: d.powerClass, outlier: d.outlier }),
+        );
+      } else {
+        const s: Partial<Record<ParamKey, Description | null>> = {};
+        for (const k of PARAM_KEYS) {
+          const v = list.map((d) => d.values[k]).filter((x): x is number => typeof x === 'number' && Number.isFinite(x));
+          s[k] = v.length ? describeValues(v) : null;
+        }
+        stats[b.id] = s;
+        counts[b.id] = null;
+        for (const d of list) rows.push({ curveId: d.curveId, batchId: b.id, batchName: b.name, deviceId: d.deviceId, ...d.values, flags: d.flags, result: null, reasons: [], powerClass: null, outlier: null });
+      }
+    }
+
+    const values = (id: string) => (byBatch.get(id) ?? []).map((d) => d.values[param]).filter((x): x is number => typeof x === 'number' && Number.isFinite(x));
+    const first = found[0];
+    const differences = found.slice(1).map((b) => {
+      const a = values(first.id);
+      const bb = values(b.id);
+      try {
+        return { batchA: first.id, batchB: b.id, param, ...welchDifference(a, bb, 0.95, { nameA: first.name, nameB: b.name, param, unit: PARAM_UNITS[param] }) };
+      } catch (err) {
+        return { batchA: first.id, batchB: b.id, param, error: (err as Error).message };
+      }
+    });
+
+    res.json({
+      batches: found.map((b) => ({ id: b.id, name: b.name, state: b.state, count: byBatch.get(b.id)?.length ?? 0 })),
+      spec: specInfo,
+      param,
+      rows,
+      stats,
+      counts,
+      differences,
+    });
+  });
+  return r;
+}

@@ -1,0 +1,85 @@
+import { fireEvent, render, screen, waitFor } from '@testing-library/react-native';
+import { BatchForm } from '@/components/batch-form';
+import type { Batch } from '@/lib/api/batches';
+import { ApiError } from '@/lib/api/client';
+
+const renderForm = (props: Partial<Parameters<typeof BatchForm>[0]> = {}) => {
+  const onSubmit = jest.fn();
+  render(<BatchForm submitLabel="Create batch" busy={false} error={null} onSubmit={onSubmit} {...props} />);
+  return onSubmit;
+};
+const submit = () => fireEvent.press(screen.getByTestId('batch-submit'));
+
+describe('BatchForm', () => {
+  it('an empty name shows "Give the batch a name." and does not call onSubmit', async () => {
+    const onSubmit = renderForm();
+    submit();
+    // Message from batchCreateSchema (lib/schemas/curves.ts).
+    expect(await screen.findByText('Give the batch a name.')).toBeOnTheScreen();
+    expect(onSubmit).not.toHaveBeenCalled();
+  });
+
+  it('a name of spaces only is still empty (the schema trims)', async () => {
+    const onSubmit = renderForm();
+    fireEvent.changeText(screen.getByTestId('batch-name'), '   ');
+    submit();
+    expect(await screen.findByText('Give the batch a name.')).toBeOnTheScreen();
+    expect(onSubmit).not.toHaveBeenCalled();
+  });
+
+  it('a valid form calls onSubmit once with parsed numbers and nulls for blanks', async () => {
+    const onSubmit = renderForm();
+    fireEvent.changeText(screen.getByTestId('batch-name'), '  Line 2, lot 2611  ');
+    fireEvent.changeText(screen.getByLabelText('Cells in series'), '60');
+    fireEvent.changeText(screen.getByLabelText('Device area (cm²)'), '16600');
+    fireEvent.changeText(screen.getByLabelText('Nameplate power (W)'), '405,5'); // decimal comma accepted
+    fireEvent.changeText(screen.getByLabelText('Date (yyyy-mm-dd)'), '2025-11-14');
+    fireEvent.changeText(screen.getByLabelText('Cell supplier'), 'Supplier B');
+    submit();
+    await waitFor(() => expect(onSubmit).toHaveBeenCalledTimes(1));
+    expect(onSubmit.mock.calls[0][0]).toEqual({
+      name: 'Line 2, lot 2611',
+      productType: null,
+      supplier: 'Supplier B',
+      line: null,
+      lot: null,
+      batchDate: '2025-11-14',
+      cells: 60,
+      area_cm2: 16600,
+      nameplate_w: 405.5,
+      description: null,
+    });
+  });
+
+  it.each([
+    // Messages from batchFieldsSchema (lib/schemas/curves.ts).
+    ['Cells in series', '60.5', 'Cells in series must be a whole number from 1 to 1000.'],
+    ['Cells in series', 'sixty', 'Cells in series must be a whole number from 1 to 1000.'],
+    ['Device area (cm²)', '-3', 'Area (cm²) must be a number from 0.01 to 100000.'],
+    ['Date (yyyy-mm-dd)', '14/11/2025', 'Date must be written yyyy-mm-dd.'],
+  ])('%s = "%s" is refused with a sentence', async (label, value, message) => {
+    const onSubmit = renderForm();
+    fireEvent.changeText(screen.getByTestId('batch-name'), 'Trial');
+    fireEvent.changeText(screen.getByLabelText(label), value);
+    submit();
+    expect(await screen.findByText(message)).toBeOnTheScreen();
+    expect(onSubmit).not.toHaveBeenCalled();
+  });
+
+  it('editing: starts from the batch, shows the server error under the form, and is busy while saving', () => {
+    const initial: Batch = {
+      id: 'b1', name: 'Supplier A trial', productType: null, supplier: 'A', line: null, lot: null, batchDate: null,
+      cells: 72, area_cm2: 25_000, nameplate_w: 550, description: null, archived: false, state: 'open',
+      createdAt: '2025-11-14T08:00:00Z', updatedAt: '2025-11-14T08:00:00Z',
+    };
+    const onSubmit = renderForm({ initial, busy: true, error: new ApiError(409, 'name_taken', 'A batch with that name already exists.'), onCancel: jest.fn() });
+    expect(screen.getByTestId('batch-name')).toHaveDisplayValue('Supplier A trial');
+    expect(screen.getByLabelText('Cells in series')).toHaveDisplayValue('72');
+    expect(screen.getByLabelText('Device area (cm²)')).toHaveDisplayValue('25000');
+    expect(screen.getByTestId('form-error')).toHaveTextContent('A batch with that name already exists.');
+    expect(screen.getByTestId('batch-submit')).toBeBusy();
+    submit();
+    expect(onSubmit).not.toHaveBeenCalled();
+    expect(screen.getByRole('button', { name: 'Cancel' })).toBeOnTheScreen();
+  });
+});
