@@ -120,7 +120,7 @@ export const translateSchema = z
         irradiance_Wm2: requiredNumber('to.irradiance_Wm2', 'W/m²'),
         tempC: requiredNumber('to.tempC', '°C'),
       },
-      { message: 'to (target irradiance_Wm2 and tempC) is required.' },
+      { message: 'the target conditions (irradiance_Wm2 and tempC) are required' },
     ),
     i0Law: z.enum(['desoto', 'ni-power']).optional(),
     ...coefficientFields,
@@ -129,7 +129,7 @@ export const translateSchema = z
     for (const k of METHOD_COEFFICIENTS[v.method].required) {
       if (v[k] === undefined) {
         const c = TRANSLATION_COEFFICIENTS[k];
-        ctx.addIssue({ code: 'custom', path: [k], message: `${TRANSLATION_METHOD_LABELS[v.method]} needs ${k} (${c.label}, ${c.unit}), which is missing.` });
+        ctx.addIssue({ code: 'custom', path: [k], message: `${TRANSLATION_METHOD_LABELS[v.method]} needs ${k} (${c.label}, ${c.unit}), which is missing` });
       }
     }
   });

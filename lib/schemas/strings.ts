@@ -7,6 +7,13 @@
 import { z } from 'zod';
 import type { StringSizingResult } from '@/lib/strings/size-string';
 
+/**
+ * When the Voc coefficient counts as measured: the batch has curves at two or more cell
+ * temperatures spanning at least this many kelvin. Below it the spread of the devices and of the
+ * temperature readings swamps a slope of ≈ −0.1 V/K per module.
+ */
+export const MEASURED_MIN_SPAN_K = 5;
+
 /** A number from JSON or a form field ("−25", "1,5"); empty → undefined. */
 const optNumber = (label: string) =>
   z

@@ -7,7 +7,7 @@ import { can } from '@/lib/auth/roles';
 import type { SingleDiodeParams } from '@/lib/iv/types';
 import { circuitFigures, paramsAtTemperature, PhysicsError, singleDiodeCircuit, vocTempCoefficient } from '@/lib/physics';
 import { STC } from '@/lib/physics/constants';
-import { stringSizeSchema } from '@/lib/schemas/strings';
+import { MEASURED_MIN_SPAN_K, stringSizeSchema } from '@/lib/schemas/strings';
 import type { CoefficientSource, MeasuredPoint, ModuleSource, StringSizeRequest, StringSizeResponse } from '@/lib/schemas/strings';
 import { betaVocFromMeasurements, HV_CAUTION, sizeString, StringSizingError, worstModule } from '@/lib/strings';
 import type { StringSizingInput, StringSizingResult } from '@/lib/strings';
@@ -15,12 +15,6 @@ import { HttpError, notFound } from '@/server/errors';
 import { callerOf, requirePermission } from '@/server/permissions';
 import { validate } from '@/server/validate';
 
-/**
- * When the Voc coefficient counts as measured: the batch has curves at two or more cell
- * temperatures (rounded to 0.1 °C) spanning at least this many kelvin. Below it the spread of
- * the devices and of the temperature readings swamps a slope of ≈ −0.1 V/K per module.
- */
-export const MEASURED_MIN_SPAN_K = 5;
 /** Curves at irradiances outside this band are left out of the measured line (Voc also rises with light). */
 const IRRADIANCE_BAND_WM2 = { min: 900, max: 1100 } as const;
 

@@ -1,4 +1,6 @@
 import { fireEvent, render, screen } from '@testing-library/react-native';
+import { StyleSheet } from 'react-native';
+import type { ReactTestInstance } from 'react-test-renderer';
 import { CurveTable } from '@/components/curve-table';
 import type { CurveRow, FitJson } from '@/lib/api/batches';
 import type { Flag, Metrics } from '@/lib/iv/types';
@@ -42,9 +44,10 @@ const renderTable = (sort: CurveSortKey = 'device_id', dir: 'asc' | 'desc' = 'as
 /** The text of every figure cell of one data row, left to right (after the fixed device column). */
 function figureRow(index: number): string[] {
   const table = screen.getByTestId('curve-table');
-  // Figure cells are the mono-face Txt elements with right alignment.
-  const texts = table.findAll((n) => typeof n.type === 'string' && n.type === 'Text' && [n.props.style].flat(3).some((s) => s?.textAlign === 'right'));
-  const perRow = 8;
+  // Figure cells are the host Text elements aligned right (the device column and headers are not).
+  const isHostText = (n: ReactTestInstance) => (n.type as unknown) === 'Text';
+  const texts = table.findAll((n) => isHostText(n) && StyleSheet.flatten(n.props.style)?.textAlign === 'right');
+  const perRow = 8; // Isc, Voc, Pmax, FF, n, Rs, Rsh, Pmax STC
   return texts.slice(index * perRow, index * perRow + perRow).map((n) => [n.props.children].flat().join(''));
 }
 

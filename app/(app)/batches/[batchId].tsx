@@ -9,6 +9,7 @@ import { CurveTable } from '@/components/curve-table';
 import { Figure } from '@/components/figure';
 import { OverlayChart } from '@/components/overlay-chart';
 import { QueryState } from '@/components/query-state';
+import { ReviewPanel } from '@/components/review-panel';
 import { Screen } from '@/components/screen';
 import { StateBadge } from '@/components/state-badge';
 import { theme } from '@/components/theme';
@@ -107,6 +108,7 @@ export default function BatchScreen() {
                 </QueryState>
               </Card>
             </View>
+            {me.data ? <ReviewPanel b={b} me={me.data} /> : null}
             <Card title="Curves">
               <View style={styles.toolbar}>
                 <TextInput

@@ -1,0 +1,317 @@
+import type { ColumnDef, SortingState } from '@tanstack/react-table';
+import { useRouter } from 'expo-router';
+import Papa from 'papaparse';
+import { useMemo, useState } from 'react';
+import { Pressable, StyleSheet, TextInput, View, useWindowDimensions } from 'react-native';
+import { Button } from '@/components/button';
+import { Card } from '@/components/card';
+import { CautionBlock } from '@/components/caution-block';
+import { CompareGrid } from '@/components/compare-grid';
+import { DistributionChart } from '@/components/distribution-chart';
+import { QueryState } from '@/components/query-state';
+import { Screen } from '@/components/screen';
+import { theme } from '@/components/theme';
+import { Txt } from '@/components/txt';
+import { useBatches } from '@/lib/api/batches';
+import { useComparison, useSpecs } from '@/lib/api/quality';
+import type { CompareRow, Comparison } from '@/lib/api/quality';
+import { DEFAULT_COLUMNS, GRID_PARAMS, columnHeader } from '@/lib/compare-columns';
+import type { CompareColumnId } from '@/lib/compare-columns';
+import { downloadText } from '@/lib/download';
+import { PARAM_LABELS, fmtParam, sig, unitOf } from '@/lib/format';
+import { csvSafeCell } from '@/lib/quality/csv';
+import type { ParamKey } from '@/lib/quality/params';
+import { isAboveElv } from '@/lib/strings/cautions';
+
+const ALL_COLUMNS: CompareColumnId[] = ['deviceId', 'batchName', 'result', 'powerClass', 'outlier', ...GRID_PARAMS, 'flags', 'reasons'];
+
+function cellText(id: CompareColumnId, r: CompareRow): string {
+  const v = r[id];
+  if (id === 'flags') return (r.flags ?? []).join(' ');
+  if (id === 'reasons') return (r.reasons ?? []).join('; ');
+  if (id === 'outlier') return r.outlier == null ? '' : r.outlier ? 'yes' : '';
+  if (typeof v === 'number') return fmtParam(id, v).replace(/ (A|V|W|Ω|%|A\/cm²)$/, '');
+  return v == null ? '' : String(v);
+}
+
+function columnDefs(ids: CompareColumnId[]): ColumnDef<CompareRow>[] {
+  return ids.map((id) => ({
+    id,
+    header: columnHeader(id),
+    accessorFn: (r: CompareRow) => (r[id] as unknown) ?? null,
+    cell: (ctx) => cellText(id, ctx.row.original),
+    size: id === 'deviceId' ? 130 : id === 'batchName' ? 170 : id === 'flags' || id === 'reasons' ? 220 : id === 'result' || id === 'outlier' ? 80 : 96,
+    sortUndefined: 'last',
+  }));
+}
+
+function Chip({ on, label, onPress, testID }: { on: boolean; label: string; onPress: () => void; testID?: string }) {
+  return (
+    <Pressable onPress={onPress} style={[styles.chip, on && styles.chipOn]} accessibilityRole="checkbox" accessibilityState={{ checked: on }} testID={testID}>
+      <Txt variant="caption" style={{ color: on ? '#fff' : theme.color.inkSoft }} numberOfLines={1}>{label}</Txt>
+    </Pressable>
+  );
+}
+
+export default function CompareScreen() {
+  const batches = useBatches();
+  const specs = useSpecs();
+  const router = useRouter();
+  const { width, height } = useWindowDimensions();
+  const wide = width >= theme.wideFrom;
+  const [selected, setSelected] = useState<string[]>([]);
+  const [specId, setSpecId] = useState('');
+  const [param, setParam] = useState<ParamKey>('pmp_w');
+  const [columns, setColumns] = useState<CompareColumnId[]>(DEFAULT_COLUMNS);
+  const [choosing, setChoosing] = useState(false);
+  const [sorting, setSorting] = useState<SortingState>([]);
+  const [onlyBatches, setOnlyBatches] = useState<string[]>([]);
+  const [result, setResult] = useState<'all' | 'pass' | 'fail'>('all');
+  const [flag, setFlag] = useState('');
+  const [range, setRange] = useState({ min: '', max: '' });
+  const comparison = useComparison(selected, specId, param);
+
+  const toggle = (list: string[], id: string) => (list.includes(id) ? list.filter((x) => x !== id) : [...list, id]);
+  const move = (id: CompareColumnId, by: number) =>
+    setColumns((cols) => {
+      const k = cols.indexOf(id);
+      const j = k + by;
+      if (k < 1 || j < 1 || j >= cols.length) return cols; // the device column stays first
+      const next = [...cols];
+      [next[k], next[j]] = [next[j], next[k]];
+      return next;
+    });
+
+  return (
+    <Screen title="Compare batches" subtitle="Pick two or more batches: every curve in one grid, their statistics side by side, and whether a difference is real." testID="compare-screen" maxWidth={1800}>
+      <Card title="What to compare">
+        <QueryState query={batches} isEmpty={(d) => d.batches.length === 0} empty="No batches yet.">
+          {(d) => (
+            <View style={styles.chips}>
+              {d.batches.filter((b) => !b.archived).map((b) => (
+                <Chip key={b.id} on={selected.includes(b.id)} label={`${b.name} (${b.curveCount ?? 0})`} onPress={() => setSelected((s) => toggle(s, b.id))} testID={`pick-${b.name}`} />
+              ))}
+            </View>
+          )}
+        </QueryState>
+        <View style={{ gap: 4 }}>
+          <Txt variant="label">Judge against (optional)</Txt>
+          <View style={styles.chips}>
+            <Chip on={!specId} label="No spec" onPress={() => setSpecId('')} />
+            {(specs.data?.specs ?? []).map((s) => (
+              <Chip key={s.id} on={specId === s.id} label={`${s.name} v${s.version}`} onPress={() => setSpecId(s.id)} testID={`compare-spec-${s.name}`} />
+            ))}
+          </View>
+        </View>
+      </Card>
+
+      {selected.length === 0 ? (
+        <Txt variant="body">Choose batches above to compare them.</Txt>
+      ) : (
+        <QueryState query={comparison}>
+          {(c) => (
+            <CompareBody
+              c={c}
+              wide={wide}
+              gridHeight={Math.max(320, Math.min(620, height - 260))}
+              param={param}
+              setParam={setParam}
+              columns={columns}
+              setColumns={setColumns}
+              choosing={choosing}
+              setChoosing={setChoosing}
+              move={move}
+              sorting={sorting}
+              setSorting={setSorting}
+              filters={{ onlyBatches, setOnlyBatches, result, setResult, flag, setFlag, range, setRange }}
+              onOpen={(r) => router.push(`/curves/${r.curveId}`)}
+            />
+          )}
+        </QueryState>
+      )}
+    </Screen>
+  );
+}
+
+type Filters = {
+  onlyBatches: string[];
+  setOnlyBatches: (v: string[]) => void;
+  result: 'all' | 'pass' | 'fail';
+  setResult: (v: 'all' | 'pass' | 'fail') => void;
+  flag: string;
+  setFlag: (v: string) => void;
+  range: { min: string; max: string };
+  setRange: (v: { min: string; max: string }) => void;
+};
+
+function CompareBody(props: {
+  c: Comparison;
+  wide: boolean;
+  gridHeight: number;
+  param: ParamKey;
+  setParam: (p: ParamKey) => void;
+  columns: CompareColumnId[];
+  setColumns: (f: (c: CompareColumnId[]) => CompareColumnId[]) => void;
+  choosing: boolean;
+  setChoosing: (v: boolean) => void;
+  move: (id: CompareColumnId, by: number) => void;
+  sorting: SortingState;
+  setSorting: (s: SortingState) => void;
+  filters: Filters;
+  onOpen: (r: CompareRow) => void;
+}) {
+  const { c, wide, param, setParam, columns, setColumns, filters: f } = props;
+  const flagsPresent = useMemo(() => [...new Set(c.rows.flatMap((r) => r.flags))].sort(), [c.rows]);
+  const filtered = useMemo(() => {
+    const lo = f.range.min.trim() ? Number(f.range.min.replace(',', '.')) : null;
+    const hi = f.range.max.trim() ? Number(f.range.max.replace(',', '.')) : null;
+    const scale = param === 'ff' || param === 'efficiency' ? 0.01 : 1; // the range is typed as shown (%)
+    return c.rows.filter((r) => {
+      if (f.onlyBatches.length && !f.onlyBatches.includes(r.batchId)) return false;
+      if (f.result !== 'all' && r.result !== f.result) return false;
+      if (f.flag && !r.flags.includes(f.flag)) return false;
+      const v = r[param] as number | null;
+      if (lo != null && Number.isFinite(lo) && !(v != null && v >= lo * scale)) return false;
+      if (hi != null && Number.isFinite(hi) && !(v != null && v <= hi * scale)) return false;
+      return true;
+    });
+  }, [c.rows, f.onlyBatches, f.result, f.flag, f.range, param]);
+  const defs = useMemo(() => columnDefs(columns), [columns]);
+  const maxVoc = Math.max(0, ...c.rows.map((r) => (r.voc_v as number) ?? 0));
+
+  const exportView = () => {
+    const order = props.sorting[0];
+    const rows = [...filtered];
+    if (order) {
+      rows.sort((a, b) => {
+        const x = a[order.id] as number | string | null;
+        const y = b[order.id] as number | string | null;
+        if (x == null) return 1;
+        if (y == null) return -1;
+        return (x < y ? -1 : x > y ? 1 : 0) * (order.desc ? -1 : 1);
+      });
+    }
+    const raw = (id: CompareColumnId, r: CompareRow) => (id === 'flags' ? r.flags.join(' ') : id === 'reasons' ? r.reasons.join('; ') : (r[id] as string | number | boolean | null) ?? null);
+    const csv = Papa.unparse({ fields: columns.map(String), data: rows.map((r) => columns.map((id) => csvSafeCell(raw(id, r)))) }, { newline: '\r\n' });
+    downloadText(`quasilevel-comparison-${new Date().toISOString().slice(0, 10)}.csv`, csv);
+  };
+
+  const statRows: [string, (s: NonNullable<Comparison['stats'][string][string]>) => string][] = [
+    ['n', (s) => String(s.n)],
+    ['mean', (s) => fmtParam(param, s.mean)],
+    ['σ', (s) => fmtParam(param, s.sd, 3)],
+    ['min', (s) => fmtParam(param, s.min)],
+    ['P5', (s) => fmtParam(param, s.p5)],
+    ['median', (s) => fmtParam(param, s.median)],
+    ['P95', (s) => fmtParam(param, s.p95)],
+    ['max', (s) => fmtParam(param, s.max)],
+    ['Cpk', (s) => (s.cpk == null ? '—' : sig(s.cpk, 3))],
+  ];
+
+  return (
+    <>
+      {isAboveElv(maxVoc) ? <CautionBlock /> : null}
+      <Card title={`${filtered.length} of ${c.rows.length} curves`}>
+        <View style={{ gap: 8 }}>
+          <View style={styles.chips}>
+            {c.batches.map((b) => (
+              <Chip key={b.id} on={f.onlyBatches.includes(b.id)} label={`only ${b.name}`} onPress={() => f.setOnlyBatches(f.onlyBatches.includes(b.id) ? f.onlyBatches.filter((x) => x !== b.id) : [...f.onlyBatches, b.id])} />
+            ))}
+            {c.spec ? (['all', 'pass', 'fail'] as const).map((x) => <Chip key={x} on={f.result === x} label={x === 'all' ? 'pass and fail' : `${x} only`} onPress={() => f.setResult(x)} testID={`filter-${x}`} />) : null}
+            {flagsPresent.map((x) => (
+              <Chip key={x} on={f.flag === x} label={`flag ${x}`} onPress={() => f.setFlag(f.flag === x ? '' : x)} />
+            ))}
+          </View>
+          <View style={[styles.chips, { alignItems: 'center' }]}>
+            <Txt variant="label">{PARAM_LABELS[param]} between</Txt>
+            <TextInput value={f.range.min} onChangeText={(t) => f.setRange({ ...f.range, min: t })} placeholder="min" placeholderTextColor={theme.color.muted} style={styles.num} keyboardType="numeric" accessibilityLabel="Range minimum" />
+            <Txt variant="label">and</Txt>
+            <TextInput value={f.range.max} onChangeText={(t) => f.setRange({ ...f.range, max: t })} placeholder="max" placeholderTextColor={theme.color.muted} style={styles.num} keyboardType="numeric" accessibilityLabel="Range maximum" />
+            <Txt variant="caption">{unitOf(param)}</Txt>
+            <View style={{ flexGrow: 1 }} />
+            <Button label={props.choosing ? 'Done with columns' : 'Columns…'} kind="secondary" onPress={() => props.setChoosing(!props.choosing)} testID="choose-columns" />
+            <Button label="Download this view (CSV)" kind="secondary" onPress={exportView} testID="download-view" />
+          </View>
+          {props.choosing ? (
+            <View style={styles.chooser} testID="column-chooser">
+              {ALL_COLUMNS.filter((id) => id !== 'deviceId').map((id) => {
+                const on = columns.includes(id);
+                return (
+                  <View key={id} style={styles.chooseRow}>
+                    <Chip on={on} label={columnHeader(id)} onPress={() => setColumns((cols) => (on ? cols.filter((x) => x !== id) : [...cols, id]))} testID={`col-${id}`} />
+                    {on ? (
+                      <>
+                        <Pressable onPress={() => props.move(id, -1)} accessibilityLabel={`Move ${columnHeader(id)} left`}><Txt variant="label">◀</Txt></Pressable>
+                        <Pressable onPress={() => props.move(id, 1)} accessibilityLabel={`Move ${columnHeader(id)} right`}><Txt variant="label">▶</Txt></Pressable>
+                      </>
+                    ) : null}
+                  </View>
+                );
+              })}
+            </View>
+          ) : null}
+          <CompareGrid rows={filtered} columns={defs} sorting={props.sorting} onSortingChange={props.setSorting} height={props.gridHeight} onOpen={props.onOpen} />
+          <Txt variant="caption">Tap a row to open the curve. Sort by tapping a header. FF and efficiency in %; J0 per cell area.</Txt>
+        </View>
+      </Card>
+
+      <Card title="Statistics side by side">
+        <View style={styles.chips}>
+          {GRID_PARAMS.map((k) => (
+            <Chip key={k} on={param === k} label={PARAM_LABELS[k]} onPress={() => setParam(k)} testID={`param-${k}`} />
+          ))}
+        </View>
+        <View style={[{ gap: 16 }, wide && { flexDirection: 'row', alignItems: 'flex-start' }]}>
+          <View style={[{ gap: 4 }, wide && { flex: 1 }]} testID="stats-table">
+            <View style={styles.statRow}>
+              <Txt variant="label" style={styles.statHead}>{PARAM_LABELS[param]}</Txt>
+              {c.batches.map((b) => (
+                <Txt key={b.id} variant="label" style={styles.statCell} numberOfLines={2}>{b.name}</Txt>
+              ))}
+            </View>
+            {statRows.map(([label, fn]) => (
+              <View key={label} style={styles.statRow}>
+                <Txt variant="caption" style={styles.statHead}>{label}</Txt>
+                {c.batches.map((b) => {
+                  const s = c.stats[b.id]?.[param];
+                  return <Txt key={b.id} variant="figure" style={[styles.statCell, { fontSize: 13 }]}>{s ? fn(s) : '—'}</Txt>;
+                })}
+              </View>
+            ))}
+            {c.spec ? (
+              <Txt variant="caption">Cpk against {c.spec.name} v{c.spec.version}; one-sided where only one limit is set.</Txt>
+            ) : (
+              <Txt variant="caption">Choose a spec to see Cpk against its limits.</Txt>
+            )}
+          </View>
+          <View style={wide ? { flex: 1.2 } : undefined}>
+            <DistributionChart
+              groups={c.batches.map((b) => ({ name: b.name, values: c.rows.filter((r) => r.batchId === b.id).map((r) => r[param] as number).filter((v) => typeof v === 'number' && Number.isFinite(v)).map((v) => (param === 'ff' || param === 'efficiency' ? v * 100 : v)) }))}
+              label={columnHeader(param)}
+              testID="distribution-chart"
+            />
+          </View>
+        </View>
+        <View style={{ gap: 6 }} testID="differences">
+          <Txt variant="label">Is the difference real? (Welch’s t-test, 95 % confidence)</Txt>
+          {c.differences.length === 0 ? <Txt variant="caption">Pick a second batch to compare means.</Txt> : null}
+          {c.differences.map((d) => (
+            <Txt key={d.batchB} variant="body">{d.error ? `Cannot compare: ${d.error}` : d.sentence}</Txt>
+          ))}
+        </View>
+      </Card>
+    </>
+  );
+}
+
+const styles = StyleSheet.create({
+  chips: { flexDirection: 'row', flexWrap: 'wrap', gap: 6 },
+  chip: { paddingHorizontal: 10, paddingVertical: 5, borderRadius: 999, borderWidth: 1, borderColor: theme.color.line, maxWidth: 320 },
+  chipOn: { backgroundColor: theme.color.ink, borderColor: theme.color.ink },
+  num: { width: 90, borderWidth: 1, borderColor: theme.color.line, borderRadius: theme.radius.m, paddingHorizontal: 8, paddingVertical: 5, fontFamily: theme.font.mono, fontSize: 13, color: theme.color.ink, backgroundColor: theme.color.surface },
+  chooser: { flexDirection: 'row', flexWrap: 'wrap', gap: 10, padding: 10, backgroundColor: theme.color.paper, borderRadius: theme.radius.m },
+  chooseRow: { flexDirection: 'row', alignItems: 'center', gap: 6 },
+  statRow: { flexDirection: 'row', borderBottomWidth: 1, borderBottomColor: theme.color.sunken, paddingVertical: 3 },
+  statHead: { width: 70 },
+  statCell: { flex: 1, minWidth: 80, textAlign: 'right', paddingHorizontal: 4 },
+});

@@ -1,0 +1,42 @@
+import { VictoryAxis, VictoryBoxPlot, VictoryChart, VictoryScatter } from 'victory-native';
+import { ChartFrame } from '@/components/chart-frame';
+import { chartStyle, tick } from '@/components/chart-style';
+import { theme } from '@/components/theme';
+
+/**
+ * Box plots of one parameter for several batches on one axis (box: quartiles, whiskers: min and
+ * max), with every device as a dot so small batches are not hidden behind their box.
+ */
+export function DistributionChart({ groups, label, height = 260, testID }: { groups: { name: string; values: number[] }[]; label: string; height?: number; testID?: string }) {
+  const data = groups.filter((g) => g.values.length > 0).map((g, k) => ({ x: k + 1, y: g.values, name: g.name }));
+  const dots = data.flatMap((g) => g.y.map((v, j) => ({ x: g.x + (((j * 7919) % 100) / 100 - 0.5) * 0.3, y: v })));
+  return (
+    <ChartFrame height={height} testID={testID}>
+      {(width) => (
+        <VictoryChart width={width} height={height} padding={{ ...chartStyle.padding, bottom: 56 }} domainPadding={{ x: 30 }}>
+          <VictoryAxis
+            style={{ ...chartStyle.axis, tickLabels: { ...chartStyle.axis.tickLabels, fontFamily: theme.font.regular } }}
+            tickValues={data.map((d) => d.x)}
+            tickFormat={(t: number) => {
+              const n = data.find((d) => d.x === t)?.name ?? '';
+              return n.length > 18 ? n.slice(0, 17) + '…' : n;
+            }}
+          />
+          <VictoryAxis dependentAxis label={label} style={chartStyle.axis} tickFormat={tick} tickCount={5} />
+          <VictoryBoxPlot
+            data={data}
+            boxWidth={Math.min(40, width / (data.length * 3 + 1))}
+            style={{
+              q1: { fill: theme.color.electronSoft, stroke: theme.color.electron },
+              q3: { fill: theme.color.electronSoft, stroke: theme.color.electron },
+              median: { stroke: theme.color.ink, strokeWidth: 2 },
+              min: { stroke: theme.color.inkSoft },
+              max: { stroke: theme.color.inkSoft },
+            }}
+          />
+          <VictoryScatter data={dots} size={1.8} style={{ data: { fill: theme.color.hole, opacity: 0.7 } }} />
+        </VictoryChart>
+      )}
+    </ChartFrame>
+  );
+}

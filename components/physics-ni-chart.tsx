@@ -1,0 +1,48 @@
+import { VictoryAxis, VictoryChart, VictoryLine, VictoryScatter } from 'victory-native';
+import { ChartFrame } from '@/components/chart-frame';
+import { chartStyle, tick } from '@/components/chart-style';
+import { powerOfTenTick } from '@/components/physics-ticks';
+import { theme } from '@/components/theme';
+
+
+/**
+ * Intrinsic carrier density of silicon against temperature (log scale), with the temperature
+ * being explored and a published reference point marked.
+ */
+export function PhysicsNiChart({
+  series,
+  current,
+  reference,
+  height = 220,
+  testID,
+}: {
+  series: { tempK: number[]; ni_cm3: number[] };
+  current?: { tempK: number; ni_cm3: number } | null;
+  reference?: { tempK: number; ni_cm3: number } | null;
+  height?: number;
+  testID?: string;
+}) {
+  const data = series.tempK.map((t, k) => ({ x: t, y: series.ni_cm3[k] }));
+  const eMin = Math.floor(Math.log10(Math.min(...series.ni_cm3)));
+  const eMax = Math.ceil(Math.log10(Math.max(...series.ni_cm3)));
+  const ticks: number[] = [];
+  for (let e = eMin; e <= eMax; e += eMax - eMin > 6 ? 2 : 1) ticks.push(10 ** e);
+  const inRange = (t: number) => t >= series.tempK[0] && t <= series.tempK[series.tempK.length - 1];
+  return (
+    <ChartFrame height={height} testID={testID}>
+      {(width) => (
+        <VictoryChart width={width} height={height} padding={chartStyle.padding} scale={{ y: 'log' }} domain={{ y: [10 ** eMin, 10 ** eMax] }}>
+          <VictoryAxis label="Temperature (K)" style={chartStyle.axis} tickFormat={tick} tickCount={5} />
+          <VictoryAxis dependentAxis label="n_i (cm⁻³)" style={chartStyle.axis} tickValues={ticks} tickFormat={powerOfTenTick} />
+          <VictoryLine data={data} style={chartStyle.model} />
+          {reference && inRange(reference.tempK) ? (
+            <VictoryScatter data={[{ x: reference.tempK, y: reference.ni_cm3 }]} size={6} symbol="diamond" style={chartStyle.mpp} />
+          ) : null}
+          {current && inRange(current.tempK) ? (
+            <VictoryScatter data={[{ x: current.tempK, y: current.ni_cm3 }]} size={4} style={{ data: { fill: theme.color.ink } }} />
+          ) : null}
+        </VictoryChart>
+      )}
+    </ChartFrame>
+  );
+}

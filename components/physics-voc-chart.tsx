@@ -1,0 +1,32 @@
+import { VictoryAxis, VictoryChart, VictoryLine, VictoryScatter } from 'victory-native';
+import { ChartFrame } from '@/components/chart-frame';
+import { chartStyle, tick } from '@/components/chart-style';
+
+/**
+ * Open-circuit voltage predicted from a fitted model across cell temperature, with the
+ * measured Voc at the temperature the curve was taken at.
+ */
+export function PhysicsVocChart({
+  points,
+  measured,
+  height = 240,
+  testID,
+}: {
+  points: { tempC: number; voc_V: number }[];
+  measured?: { tempC: number; voc_V: number } | null;
+  height?: number;
+  testID?: string;
+}) {
+  return (
+    <ChartFrame height={height} testID={testID}>
+      {(width) => (
+        <VictoryChart width={width} height={height} padding={chartStyle.padding} domainPadding={{ y: 8 }}>
+          <VictoryAxis label="Cell temperature (°C)" style={chartStyle.axis} tickFormat={tick} tickValues={[-40, -20, 0, 20, 40, 60, 80]} />
+          <VictoryAxis dependentAxis label="Voc (V)" style={chartStyle.axis} tickFormat={tick} tickCount={5} />
+          <VictoryLine data={points.map((p) => ({ x: p.tempC, y: p.voc_V }))} style={chartStyle.model} />
+          {measured ? <VictoryScatter data={[{ x: measured.tempC, y: measured.voc_V }]} size={6} symbol="diamond" style={chartStyle.mpp} /> : null}
+        </VictoryChart>
+      )}
+    </ChartFrame>
+  );
+}

@@ -1,0 +1,144 @@
+import { Link } from 'expo-router';
+import { useState } from 'react';
+import { Pressable, StyleSheet, TextInput, View } from 'react-native';
+import { Button } from '@/components/button';
+import { Card } from '@/components/card';
+import { Figure } from '@/components/figure';
+import { FormError } from '@/components/form-error';
+import { QueryState } from '@/components/query-state';
+import { theme } from '@/components/theme';
+import { Txt } from '@/components/txt';
+import type { Batch } from '@/lib/api/batches';
+import { passFailUrl, useDecision, useEvaluation, useReviews, useSpecs, useSubmitBatch } from '@/lib/api/quality';
+import type { Me } from '@/lib/api/session';
+import { downloadFromUrl } from '@/lib/download';
+
+const ACTION_WORDS: Record<string, string> = { submitted: 'submitted for review', released: 'released', held: 'put on hold' };
+
+/**
+ * Judging and releasing a batch: pick a spec version, see pass/fail with every reason, the power
+ * classes and outliers, download the pass/fail list, submit (test engineer) or decide (QA lead).
+ */
+export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
+  const specs = useSpecs();
+  const reviews = useReviews(b.id);
+  const lastSpec = reviews.data?.reviews.find((r) => r.specId)?.specId ?? '';
+  const [chosen, setChosen] = useState('');
+  const specId = chosen || lastSpec || specs.data?.specs[0]?.id || '';
+  const evaluation = useEvaluation(b.id, specId);
+  const submit = useSubmitBatch(b.id);
+  const decide = useDecision(b.id);
+  const [comment, setComment] = useState('');
+  const can = (p: string) => me.permissions.includes(p as never);
+  const canSubmit = can('batch:submit') && (b.state === 'open' || b.state === 'on_hold') && !b.archived;
+  const canDecide = can('release:decide') && b.state === 'in_review';
+
+  return (
+    <Card title="Acceptance and release" testID="review-panel">
+      <QueryState query={specs} isEmpty={(d) => d.specs.length === 0} empty={can('spec:write') ? 'No acceptance spec yet: create one under Acceptance specs.' : 'No acceptance spec yet: a QA lead creates them.'}>
+        {(d) => (
+          <View style={{ gap: 12 }}>
+            <View style={{ gap: 4 }}>
+              <Txt variant="label">Judge against</Txt>
+              <View style={styles.chips} accessibilityRole="radiogroup" accessibilityLabel="Spec">
+                {d.specs.map((s) => (
+                  <Pressable key={s.id} onPress={() => setChosen(s.id)} accessibilityRole="radio" accessibilityState={{ checked: s.id === specId }} style={[styles.chip, s.id === specId && styles.chipOn]} testID={`spec-choice-${s.name}`}>
+                    <Txt variant="caption" style={{ color: s.id === specId ? '#fff' : theme.color.inkSoft }}>{s.name} v{s.version}</Txt>
+                  </Pressable>
+                ))}
+                {lastSpec && !d.specs.some((s) => s.id === lastSpec) ? (
+                  <Pressable onPress={() => setChosen(lastSpec)} style={[styles.chip, lastSpec === specId && styles.chipOn]}>
+                    <Txt variant="caption" style={{ color: lastSpec === specId ? '#fff' : theme.color.inkSoft }}>version of the last decision</Txt>
+                  </Pressable>
+                ) : null}
+              </View>
+            </View>
+            <QueryState query={evaluation}>
+              {(e) => {
+                const failing = e.devices.filter((x) => x.result === 'fail');
+                const outliers = e.devices.filter((x) => x.outlier);
+                return (
+                  <View style={{ gap: 12 }} testID="evaluation">
+                    <View style={styles.figures}>
+                      <Figure label="Pass" value={String(e.counts.pass)} note={`of ${e.counts.total}`} testID="count-pass" />
+                      <Figure label="Fail" value={String(e.counts.fail)} warn={e.counts.fail > 0} testID="count-fail" />
+                      <Figure label="Outliers (|z| > 3.5)" value={String(e.counts.outliers)} note="robust z on MAD, marked not failed" />
+                      <Figure label="Power classes" value={Object.keys(e.powerClassCounts).length ? Object.entries(e.powerClassCounts).sort().map(([k, n]) => `${k}: ${n}`).join('  ') : '—'} />
+                    </View>
+                    {failing.length ? (
+                      <View style={{ gap: 6 }}>
+                        <Txt variant="label">Failing devices</Txt>
+                        {failing.slice(0, 25).map((x) => (
+                          <View key={x.curveId} style={styles.failRow}>
+                            <Link href={`/curves/${x.curveId}`}>
+                              <Txt variant="figure" style={{ color: theme.color.electron, fontSize: 13 }}>{x.deviceId}</Txt>
+                            </Link>
+                            <Txt variant="caption" style={{ flex: 1, minWidth: 200 }}>{x.reasons.map((r) => r.message).join('; ')}</Txt>
+                          </View>
+                        ))}
+                        {failing.length > 25 ? <Txt variant="caption">…and {failing.length - 25} more in the pass/fail list.</Txt> : null}
+                      </View>
+                    ) : null}
+                    {outliers.length ? <Txt variant="caption">Outliers: {outliers.map((x) => `${x.deviceId} (${x.outlierParams.join(', ')})`).join('; ')}</Txt> : null}
+                    <Button label="Download pass/fail list (CSV)" kind="secondary" onPress={() => downloadFromUrl(passFailUrl(b.id, e.spec.id))} testID="download-pass-fail" />
+                  </View>
+                );
+              }}
+            </QueryState>
+            {canSubmit || canDecide ? (
+              <View style={{ gap: 8 }}>
+                <TextInput
+                  value={comment}
+                  onChangeText={setComment}
+                  placeholder={canDecide ? 'Comment (needed to hold)' : 'Note for the QA lead (optional)'}
+                  placeholderTextColor={theme.color.muted}
+                  style={styles.input}
+                  multiline
+                  accessibilityLabel="Comment"
+                  testID="review-comment"
+                />
+                <FormError error={submit.error ?? decide.error} />
+                <View style={{ flexDirection: 'row', gap: 8, flexWrap: 'wrap' }}>
+                  {canSubmit ? <Button label="Submit for review" onPress={() => submit.mutate(comment, { onSuccess: () => setComment('') })} busy={submit.isPending} testID="submit-review" /> : null}
+                  {canDecide ? (
+                    <>
+                      <Button label="Release" onPress={() => decide.mutate({ decision: 'release', specId, comment }, { onSuccess: () => setComment('') })} busy={decide.isPending} disabled={!specId} testID="release" />
+                      <Button label="Hold" kind="danger" onPress={() => decide.mutate({ decision: 'hold', specId, comment }, { onSuccess: () => setComment('') })} busy={decide.isPending} disabled={!specId} testID="hold" />
+                    </>
+                  ) : null}
+                </View>
+              </View>
+            ) : b.state === 'in_review' ? (
+              <Txt variant="caption">Waiting for a QA lead’s decision.</Txt>
+            ) : b.state === 'released' ? (
+              <Txt variant="caption">Released batches are read-only.</Txt>
+            ) : null}
+          </View>
+        )}
+      </QueryState>
+      <QueryState query={reviews} isEmpty={(d) => d.reviews.length === 0} empty="No review yet.">
+        {(d) => (
+          <View style={{ gap: 4 }} testID="review-record">
+            <Txt variant="label">Record</Txt>
+            {d.reviews.map((r) => (
+              <Txt key={r.id} variant="caption">
+                {new Date(r.createdAt).toLocaleString()} · {r.actor ?? 'someone'} {ACTION_WORDS[r.action] ?? r.action}
+                {r.counts && r.counts.pass != null ? ` · ${r.counts.pass} pass, ${r.counts.fail} fail, ${r.counts.outliers} outliers` : ''}
+                {r.comment ? ` · “${r.comment}”` : ''}
+              </Txt>
+            ))}
+          </View>
+        )}
+      </QueryState>
+    </Card>
+  );
+}
+
+const styles = StyleSheet.create({
+  chips: { flexDirection: 'row', flexWrap: 'wrap', gap: 6 },
+  chip: { paddingHorizontal: 10, paddingVertical: 5, borderRadius: 999, borderWidth: 1, borderColor: theme.color.line },
+  chipOn: { backgroundColor: theme.color.ink, borderColor: theme.color.ink },
+  figures: { flexDirection: 'row', flexWrap: 'wrap', gap: 14 },
+  failRow: { flexDirection: 'row', gap: 10, flexWrap: 'wrap', alignItems: 'baseline' },
+  input: { minHeight: 60, borderWidth: 1, borderColor: theme.color.line, borderRadius: theme.radius.m, padding: 10, fontFamily: theme.font.regular, fontSize: 14, color: theme.color.ink, backgroundColor: theme.color.surface },
+});

@@ -1,0 +1,139 @@
+import { useState } from 'react';
+import { Pressable, StyleSheet, TextInput, View } from 'react-native';
+import { Button } from '@/components/button';
+import { FormError } from '@/components/form-error';
+import { theme } from '@/components/theme';
+import { Txt } from '@/components/txt';
+import { useSaveSpec } from '@/lib/api/quality';
+import type { SpecJson } from '@/lib/api/quality';
+import { PARAM_LABELS, unitOf } from '@/lib/format';
+import { FLAG_CODES } from '@/lib/iv/flag-codes';
+import { PARAM_KEYS } from '@/lib/quality/params';
+import type { ParamKey } from '@/lib/quality/params';
+import { specIssueMessages } from '@/lib/quality/spec';
+import { specSaveSchema } from '@/lib/schemas/quality';
+
+/** Ratios are typed as % in the form and stored as fractions, like the engine. */
+const PERCENT = new Set<ParamKey>(['ff', 'efficiency']);
+const toForm = (k: ParamKey, v: number | undefined) => (v == null ? '' : String(PERCENT.has(k) ? Number((v * 100).toPrecision(6)) : v));
+const fromForm = (k: ParamKey, s: string) => {
+  const t = s.trim().replace(',', '.');
+  if (!t) return undefined;
+  const n = Number(t);
+  return Number.isFinite(n) ? (PERCENT.has(k) ? n / 100 : n) : NaN;
+};
+
+/**
+ * Edits acceptance limits, power classes and failing flags. Saving makes a new version; the
+ * form runs the same zod schema as the server and shows its messages before sending.
+ */
+export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson; onSaved: (s: SpecJson) => void; onCancel?: () => void }) {
+  const save = useSaveSpec();
+  const [name, setName] = useState(initial?.name ?? '');
+  const [notes, setNotes] = useState(initial?.notes ?? '');
+  const [limits, setLimits] = useState<Record<string, { min: string; max: string }>>(() =>
+    Object.fromEntries(PARAM_KEYS.map((k) => [k, { min: toForm(k, initial?.limits?.[k]?.min), max: toForm(k, initial?.limits?.[k]?.max) }])),
+  );
+  const [step, setStep] = useState(initial?.powerClasses?.step_w != null ? String(initial.powerClasses.step_w) : '');
+  const [basis, setBasis] = useState<'pmp_w' | 'stc_pmp_w'>(initial?.powerClasses?.basis ?? 'stc_pmp_w');
+  const [flags, setFlags] = useState<string[]>(initial?.failFlags ?? ['step', 'fit-failed']);
+  const [issues, setIssues] = useState<string[]>([]);
+
+  const submit = () => {
+    const lim: Record<string, { min?: number; max?: number }> = {};
+    for (const k of PARAM_KEYS) {
+      const min = fromForm(k, limits[k].min);
+      const max = fromForm(k, limits[k].max);
+      if (min !== undefined || max !== undefined) lim[k] = { ...(min !== undefined ? { min } : {}), ...(max !== undefined ? { max } : {}) };
+    }
+    const stepW = step.trim() ? Number(step.replace(',', '.')) : undefined;
+    const input = {
+      name,
+      limits: lim,
+      ...(stepW !== undefined ? { powerClasses: { step_w: stepW, basis } } : {}),
+      failFlags: flags,
+      ...(notes.trim() ? { notes: notes.trim() } : {}),
+      ...(initial ? { familyId: initial.familyId } : {}),
+    };
+    const r = specSaveSchema.safeParse(input);
+    if (!r.success) {
+      setIssues(specIssueMessages(r.error).map((m) => m.replace('NaN', 'not a number')));
+      return;
+    }
+    setIssues([]);
+    save.mutate(r.data, { onSuccess: onSaved });
+  };
+
+  return (
+    <View style={{ gap: 14 }} testID="spec-editor">
+      <View style={{ gap: 4 }}>
+        <Txt variant="label">Name</Txt>
+        <TextInput value={name} onChangeText={setName} style={styles.input} accessibilityLabel="Spec name" testID="spec-name" placeholder="e.g. 60-cell module release" placeholderTextColor={theme.color.muted} />
+      </View>
+      <View style={{ gap: 6 }}>
+        <Txt variant="label">Limits (both inclusive; leave empty for none)</Txt>
+        <View style={styles.limitGrid}>
+          {PARAM_KEYS.map((k) => (
+            <View key={k} style={styles.limitRow}>
+              <Txt variant="body" style={{ width: 116 }} numberOfLines={1}>
+                {PARAM_LABELS[k]} {unitOf(k) ? `(${unitOf(k)})` : ''}
+              </Txt>
+              <TextInput value={limits[k].min} onChangeText={(t) => setLimits((l) => ({ ...l, [k]: { ...l[k], min: t } }))} placeholder="min" placeholderTextColor={theme.color.muted} style={[styles.input, styles.num]} keyboardType="numeric" accessibilityLabel={`${PARAM_LABELS[k]} minimum`} testID={`limit-${k}-min`} />
+              <TextInput value={limits[k].max} onChangeText={(t) => setLimits((l) => ({ ...l, [k]: { ...l[k], max: t } }))} placeholder="max" placeholderTextColor={theme.color.muted} style={[styles.input, styles.num]} keyboardType="numeric" accessibilityLabel={`${PARAM_LABELS[k]} maximum`} testID={`limit-${k}-max`} />
+            </View>
+          ))}
+        </View>
+      </View>
+      <View style={{ gap: 6 }}>
+        <Txt variant="label">Power classes (nameplate steps, positive-only tolerance: class P when P ≤ power &lt; P + step)</Txt>
+        <View style={{ flexDirection: 'row', gap: 10, flexWrap: 'wrap', alignItems: 'center' }}>
+          <TextInput value={step} onChangeText={setStep} placeholder="step (W), e.g. 5" placeholderTextColor={theme.color.muted} style={[styles.input, { width: 150 }]} keyboardType="numeric" accessibilityLabel="Power class step in W" testID="class-step" />
+          {(['stc_pmp_w', 'pmp_w'] as const).map((b) => (
+            <Pressable key={b} onPress={() => setBasis(b)} style={[styles.chip, basis === b && styles.chipOn]} accessibilityRole="radio" accessibilityState={{ checked: basis === b }}>
+              <Txt variant="caption" style={{ color: basis === b ? '#fff' : theme.color.inkSoft }}>{b === 'stc_pmp_w' ? 'on Pmax at STC' : 'on measured Pmax'}</Txt>
+            </Pressable>
+          ))}
+        </View>
+      </View>
+      <View style={{ gap: 6 }}>
+        <Txt variant="label">Flags that fail a device</Txt>
+        <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: 6 }}>
+          {Object.entries(FLAG_CODES).map(([code, label]) => {
+            const on = flags.includes(code);
+            return (
+              <Pressable key={code} onPress={() => setFlags((f) => (on ? f.filter((x) => x !== code) : [...f, code]))} style={[styles.chip, on && styles.chipOn]} accessibilityRole="checkbox" accessibilityState={{ checked: on }}>
+                <Txt variant="caption" style={{ color: on ? '#fff' : theme.color.inkSoft }}>{label}</Txt>
+              </Pressable>
+            );
+          })}
+        </View>
+      </View>
+      <View style={{ gap: 4 }}>
+        <Txt variant="label">Notes</Txt>
+        <TextInput value={notes} onChangeText={setNotes} multiline style={[styles.input, { minHeight: 60 }]} accessibilityLabel="Notes" />
+      </View>
+      {issues.length ? (
+        <View style={styles.issues} accessibilityRole="alert" testID="spec-issues">
+          {issues.map((m) => (
+            <Txt key={m} variant="body" style={{ color: theme.color.danger }}>{m}</Txt>
+          ))}
+        </View>
+      ) : null}
+      <FormError error={save.error} />
+      <View style={{ flexDirection: 'row', gap: 8, flexWrap: 'wrap' }}>
+        <Button label={initial ? `Save as version ${initial.version + 1}` : 'Save spec'} onPress={submit} busy={save.isPending} testID="spec-save" />
+        {onCancel ? <Button label="Cancel" kind="quiet" onPress={onCancel} /> : null}
+      </View>
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  input: { borderWidth: 1, borderColor: theme.color.line, borderRadius: theme.radius.m, paddingHorizontal: 10, paddingVertical: 7, fontFamily: theme.font.regular, fontSize: 14, color: theme.color.ink, backgroundColor: theme.color.surface },
+  num: { width: 92, fontFamily: theme.font.mono },
+  limitGrid: { flexDirection: 'row', flexWrap: 'wrap', columnGap: 24, rowGap: 6 },
+  limitRow: { flexDirection: 'row', alignItems: 'center', gap: 8, minWidth: 320 },
+  chip: { paddingHorizontal: 10, paddingVertical: 5, borderRadius: 999, borderWidth: 1, borderColor: theme.color.line },
+  chipOn: { backgroundColor: theme.color.ink, borderColor: theme.color.ink },
+  issues: { backgroundColor: theme.color.dangerSoft, borderRadius: theme.radius.m, padding: 10, gap: 4 },
+});

@@ -1,0 +1,187 @@
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useState } from 'react';
+import { useForm } from 'react-hook-form';
+import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
+import { Button } from '@/components/button';
+import { Card } from '@/components/card';
+import { FormError } from '@/components/form-error';
+import { QueryState } from '@/components/query-state';
+import { TextField } from '@/components/text-field';
+import { theme } from '@/components/theme';
+import { Txt } from '@/components/txt';
+import { useBatches } from '@/lib/api/batches';
+import { stringSizeSchema } from '@/lib/schemas/strings';
+import type { StringSizeInput, StringSizeRequest } from '@/lib/schemas/strings';
+
+type Mode = 'batch' | 'typed';
+type Limit = '1000' | '1500' | 'other';
+
+function Chips<T extends string>({ value, options, onChange, label }: { value: T | null; options: { value: T; label: string; testID?: string }[]; onChange: (v: T) => void; label: string }) {
+  return (
+    <View style={{ gap: 4 }}>
+      <Txt variant="label">{label}</Txt>
+      <View style={styles.chips} accessibilityRole="radiogroup" accessibilityLabel={label}>
+        {options.map((o) => (
+          <Pressable key={o.value} onPress={() => onChange(o.value)} accessibilityRole="radio" accessibilityState={{ checked: value === o.value }} style={[styles.chip, value === o.value && styles.chipOn]} testID={o.testID}>
+            <Txt variant="label" style={{ color: value === o.value ? '#fff' : theme.color.inkSoft }}>{o.label}</Txt>
+          </Pressable>
+        ))}
+      </View>
+    </View>
+  );
+}
+
+const NUMERIC = { keyboardType: 'numbers-and-punctuation' as const, inputMode: 'decimal' as const };
+
+/**
+ * The inputs of string sizing: a batch (its worst module and coefficients) or typed module
+ * values, then the site (record low, hottest cell), the system voltage limit and the inverter's
+ * MPP window. Checked with the same zod schema as POST /api/strings/size.
+ */
+export function StringForm({ onSubmit, busy, error, wide }: { onSubmit: (v: StringSizeRequest) => void; busy: boolean; error: unknown; wide: boolean }) {
+  const batches = useBatches();
+  const [mode, setMode] = useState<Mode>('batch');
+  const [limit, setLimit] = useState<Limit | null>(null);
+  const [overrides, setOverrides] = useState(false);
+  const [pickError, setPickError] = useState<string | null>(null);
+  const {
+    control,
+    handleSubmit,
+    setValue,
+    watch,
+    formState: { errors },
+  } = useForm<StringSizeInput, unknown, StringSizeRequest>({
+    resolver: zodResolver(stringSizeSchema),
+    defaultValues: { batchId: '', vocStc_V: '', betaVoc_pct_per_K: '', vmpStc_V: '', betaVmp_pct_per_K: '', tMin_C: '', tCellMax_C: '', vSys_V: '', mppWindow: { min_V: '', max_V: '' } },
+  });
+  const batchId = watch('batchId');
+
+  const submit = handleSubmit((v) => {
+    if (mode === 'batch' && !v.batchId) {
+      setPickError('Pick a batch, or choose to type the module’s values.');
+      return;
+    }
+    setPickError(null);
+    if (mode === 'typed') onSubmit({ ...v, batchId: undefined });
+    else onSubmit(overrides ? v : { ...v, vocStc_V: undefined, betaVoc_pct_per_K: undefined, vmpStc_V: undefined, betaVmp_pct_per_K: undefined });
+  });
+
+  const moduleFields = (
+    <View style={styles.grid}>
+      <View style={styles.cell}><TextField control={control} name="vocStc_V" label="Voc at STC (V)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. 49.5'} hint="Use the highest module, not the mean." testID="voc-stc" /></View>
+      <View style={styles.cell}><TextField control={control} name="betaVoc_pct_per_K" label="Voc coefficient (%/K)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. −0.28'} hint="Negative for silicon." testID="beta-voc" /></View>
+      <View style={styles.cell}><TextField control={control} name="vmpStc_V" label="Vmp at STC (V)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. 41.2'} hint="For the MPP window." testID="vmp-stc" /></View>
+      <View style={styles.cell}><TextField control={control} name="betaVmp_pct_per_K" label="Vmp coefficient (%/K)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. −0.37'} hint="For the MPP window." testID="beta-vmp" /></View>
+    </View>
+  );
+
+  return (
+    <View style={{ gap: 16 }} testID="string-form">
+      <Card title="Module">
+        <Chips<Mode>
+          label="Take the module from"
+          value={mode}
+          onChange={(m) => {
+            setMode(m);
+            setPickError(null);
+          }}
+          options={[
+            { value: 'batch', label: 'A measured batch', testID: 'source-batch' },
+            { value: 'typed', label: 'Typed values', testID: 'source-typed' },
+          ]}
+        />
+        {mode === 'batch' ? (
+          <>
+            <QueryState query={batches} isEmpty={(d) => !d.batches.some((b) => !b.archived && (b.curveCount ?? 0) > 0)} empty="No batch has curves yet. Choose “Typed values” to enter a datasheet’s figures.">
+              {(d) => (
+                <ScrollView style={{ maxHeight: wide ? 320 : 260 }} contentContainerStyle={{ gap: 6 }} nestedScrollEnabled testID="batch-picker">
+                  {d.batches
+                    .filter((b) => !b.archived && (b.curveCount ?? 0) > 0)
+                    .map((b) => {
+                      const on = b.id === batchId;
+                      return (
+                        <Pressable
+                          key={b.id}
+                          onPress={() => {
+                            setValue('batchId', b.id);
+                            setPickError(null);
+                          }}
+                          accessibilityRole="radio"
+                          accessibilityState={{ checked: on }}
+                          style={[styles.batch, on && styles.batchOn]}
+                          testID={`pick-batch-${b.name}`}
+                        >
+                          <View style={[styles.radio, on && styles.radioOn]} />
+                          <View style={{ flex: 1, gap: 2 }}>
+                            <Txt variant="body" style={{ fontFamily: theme.font.medium }} numberOfLines={2}>{b.name}</Txt>
+                            <Txt variant="caption">{[`${b.curveCount} curves`, b.cells && `${b.cells} cells in series`, b.productType].filter(Boolean).join(' · ')}</Txt>
+                          </View>
+                        </Pressable>
+                      );
+                    })}
+                </ScrollView>
+              )}
+            </QueryState>
+            {pickError ? <Txt variant="caption" style={{ color: theme.color.danger }} accessibilityRole="alert">{pickError}</Txt> : null}
+            <Txt variant="caption">
+              Voc at STC is the batch’s highest module (the worst case), not the mean. The Voc coefficient is measured when the batch has curves at temperatures 5 K or more apart, else derived from the fitted diode model.
+            </Txt>
+            <Pressable onPress={() => setOverrides((o) => !o)} testID="toggle-overrides">
+              <Txt variant="label" style={{ textDecorationLine: 'underline' }}>{overrides ? 'Use the batch’s values only' : 'Override the batch’s values…'}</Txt>
+            </Pressable>
+            {overrides ? moduleFields : null}
+          </>
+        ) : (
+          moduleFields
+        )}
+      </Card>
+
+      <Card title="Site and inverter">
+        <View style={styles.grid}>
+          <View style={styles.cell}>
+            <TextField control={control} name="tMin_C" label="Record low ambient (°C)" {...NUMERIC} placeholder="e.g. −15" hint="The lowest ever recorded, not an average: cells sit at ambient at first light." testID="tmin" />
+          </View>
+          <View style={styles.cell}>
+            <TextField control={control} name="tCellMax_C" label="Hottest cell temperature (°C)" {...NUMERIC} placeholder="e.g. 70" hint="Needed for the least modules." testID="tcellmax" />
+          </View>
+        </View>
+        <Chips<Limit>
+          label="System voltage limit (DC)"
+          value={limit}
+          onChange={(l) => {
+            setLimit(l);
+            setValue('vSys_V', l === 'other' ? '' : l, { shouldValidate: l !== 'other' });
+          }}
+          options={[
+            { value: '1000', label: '1000 V', testID: 'vsys-1000' },
+            { value: '1500', label: '1500 V', testID: 'vsys-1500' },
+            { value: 'other', label: 'Other', testID: 'vsys-other' },
+          ]}
+        />
+        {limit === 'other' ? (
+          <TextField control={control} name="vSys_V" label="System voltage limit (V DC)" {...NUMERIC} hint="The lower of the modules’ and the inverter’s rating." testID="vsys" />
+        ) : errors.vSys_V?.message ? (
+          <Txt variant="caption" style={{ color: theme.color.danger }} accessibilityRole="alert">{errors.vSys_V.message}</Txt>
+        ) : null}
+        <View style={styles.grid}>
+          <View style={styles.cell}><TextField control={control} name="mppWindow.min_V" label="MPP window from (V)" {...NUMERIC} placeholder="e.g. 500" testID="mpp-min" /></View>
+          <View style={styles.cell}><TextField control={control} name="mppWindow.max_V" label="MPP window to (V)" {...NUMERIC} placeholder="e.g. 1300" testID="mpp-max" /></View>
+        </View>
+        <FormError error={error} />
+        <Button label="Size the string" onPress={submit} busy={busy} testID="size-submit" />
+      </Card>
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  chips: { flexDirection: 'row', flexWrap: 'wrap', gap: 6 },
+  chip: { paddingHorizontal: 12, paddingVertical: 7, borderRadius: 999, borderWidth: 1, borderColor: theme.color.line, backgroundColor: theme.color.surface },
+  chipOn: { backgroundColor: theme.color.ink, borderColor: theme.color.ink },
+  grid: { flexDirection: 'row', flexWrap: 'wrap', gap: 10 },
+  cell: { flexGrow: 1, flexBasis: 160, minWidth: 140 },
+  batch: { flexDirection: 'row', alignItems: 'center', gap: 10, padding: 10, borderRadius: theme.radius.m, borderWidth: 1, borderColor: theme.color.line },
+  batchOn: { borderColor: theme.color.electron, backgroundColor: theme.color.electronSoft },
+  radio: { width: 16, height: 16, borderRadius: 8, borderWidth: 2, borderColor: theme.color.muted },
+  radioOn: { borderColor: theme.color.electron, backgroundColor: theme.color.electron },
+});

@@ -1,0 +1,55 @@
+import { VictoryAxis, VictoryChart, VictoryLine, VictoryScatter } from 'victory-native';
+import { ChartFrame } from '@/components/chart-frame';
+import { chartStyle, tick } from '@/components/chart-style';
+import { theme } from '@/components/theme';
+
+/**
+ * A string's open-circuit voltage against ambient temperature (cells at ambient, as at first
+ * light): N·Voc,STC·(1 + β·(T − 25 °C)) from −40 to +40 °C (wider when the record low is outside),
+ * with the system voltage limit as a line and the record low marked.
+ */
+export function StringVocChart({
+  modules,
+  vocStc_V,
+  betaVoc_pct_per_K,
+  vSys_V,
+  tMin_C,
+  height = 220,
+  testID,
+}: {
+  modules: number;
+  vocStc_V: number;
+  betaVoc_pct_per_K: number;
+  vSys_V: number;
+  tMin_C: number;
+  height?: number;
+  testID?: string;
+}) {
+  const from = Math.min(-40, Math.floor(tMin_C / 5) * 5);
+  const to = Math.max(40, Math.ceil(tMin_C / 5) * 5);
+  const stringVoc = (t: number) => modules * vocStc_V * (1 + (betaVoc_pct_per_K / 100) * (t - 25));
+  const line = Array.from({ length: Math.round((to - from) / 2) + 1 }, (_, k) => from + 2 * k).map((t) => ({ x: t, y: stringVoc(t) }));
+  const atMin = stringVoc(tMin_C);
+  const over = atMin > vSys_V;
+  const ys = [...line.map((p) => p.y), vSys_V];
+  const yMin = Math.min(...ys);
+  const yMax = Math.max(...ys);
+  const pad = (yMax - yMin) * 0.08 || yMax * 0.05;
+  return (
+    <ChartFrame
+      height={height}
+      testID={testID}
+      caption={`— ${modules} modules in series    - - system limit ${vSys_V} V    ● record low ${tMin_C} °C: ${atMin.toFixed(1)} V${over ? ' (above the limit)' : ''}`}
+    >
+      {(width) => (
+        <VictoryChart width={width} height={height} padding={chartStyle.padding} domain={{ x: [from, to], y: [Math.max(0, yMin - pad), yMax + pad] }}>
+          <VictoryAxis label="Ambient temperature (°C)" style={chartStyle.axis} tickFormat={tick} tickCount={6} />
+          <VictoryAxis dependentAxis label="String Voc (V)" style={chartStyle.axis} tickFormat={tick} tickCount={5} />
+          <VictoryLine data={[{ x: from, y: vSys_V }, { x: to, y: vSys_V }]} style={{ data: { stroke: theme.color.danger, strokeWidth: 1.5, strokeDasharray: '6,4' } }} />
+          <VictoryLine data={line} style={chartStyle.model} />
+          <VictoryScatter data={[{ x: tMin_C, y: atMin }]} size={5} style={{ data: { fill: over ? theme.color.danger : theme.color.hole, stroke: theme.color.ink, strokeWidth: 1 } }} />
+        </VictoryChart>
+      )}
+    </ChartFrame>
+  );
+}

@@ -1,0 +1,119 @@
+/** Specs, evaluations, reviews and comparisons. */
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { apiFetch } from '@/lib/api/client';
+import { batchKeys } from '@/lib/api/batches';
+import type { Batch, DescribeStats } from '@/lib/api/batches';
+import type { Spec, SpecInput } from '@/lib/quality/spec';
+
+export type SpecJson = Spec & { id: string; familyId: string; version: number; changes: string[]; createdAt: string; versions?: { id: string; version: number; changes: string[]; createdAt: string; by: string | null }[] };
+
+export type DeviceEval = {
+  deviceId: string;
+  curveId: string;
+  result: 'pass' | 'fail';
+  reasons: { kind: string; param: string; value: number | string | null; message: string }[];
+  powerClass: string | null;
+  outlier: boolean;
+  outlierParams: string[];
+  values: Record<string, number | null>;
+  flags: string[];
+};
+
+export type Evaluation = {
+  batch: Batch;
+  spec: { id: string; name: string; version: number; familyId: string };
+  counts: { total: number; pass: number; fail: number; outliers: number };
+  powerClassCounts: Record<string, number>;
+  stats: Record<string, DescribeStats | null>;
+  devices: DeviceEval[];
+};
+
+export type Review = { id: string; action: string; specId: string | null; counts: Record<string, number> | null; comment: string | null; createdAt: string; actor: string | null };
+
+export type CompareRow = Record<string, unknown> & { curveId: string; batchId: string; batchName: string; deviceId: string; flags: string[]; result: 'pass' | 'fail' | null; reasons: string[]; powerClass: string | null; outlier: boolean | null };
+export type Difference = { batchA: string; batchB: string; param: string; difference?: number; ciLow?: number; ciHigh?: number; p?: number; dof?: number; sentence?: string; significant?: boolean; error?: string };
+export type Comparison = {
+  batches: { id: string; name: string; state: string; count: number }[];
+  spec: { id: string; name: string; version: number } | null;
+  param: string;
+  rows: CompareRow[];
+  stats: Record<string, Record<string, DescribeStats | null>>;
+  counts: Record<string, { total: number; pass: number; fail: number; outliers: number } | null>;
+  differences: Difference[];
+};
+
+export const specKeys = {
+  all: ['specs'] as const,
+  list: () => [...specKeys.all, 'list'] as const,
+  detail: (id: string) => [...specKeys.all, 'detail', id] as const,
+};
+
+export const qualityKeys = {
+  evaluation: (batchId: string, specId: string) => [...batchKeys.all, 'evaluation', batchId, specId] as const,
+  reviews: (batchId: string) => [...batchKeys.all, 'reviews', batchId] as const,
+  compare: (ids: string[], specId: string, param: string) => ['compare', ids.join(','), specId, param] as const,
+};
+
+export function useSpecs() {
+  return useQuery({ queryKey: specKeys.list(), queryFn: () => apiFetch<{ specs: SpecJson[] }>('/api/specs') });
+}
+
+export function useSpec(id: string) {
+  return useQuery({ queryKey: specKeys.detail(id), queryFn: () => apiFetch<SpecJson>(`/api/specs/${encodeURIComponent(id)}`), enabled: !!id });
+}
+
+export function useSaveSpec() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: SpecInput & { familyId?: string }) => apiFetch<SpecJson>('/api/specs', { body: input as Record<string, unknown> }),
+    onSuccess: async () => {
+      await qc.invalidateQueries({ queryKey: specKeys.all });
+    },
+  });
+}
+
+export function useEvaluation(batchId: string, specId: string) {
+  return useQuery({
+    queryKey: qualityKeys.evaluation(batchId, specId),
+    queryFn: () => apiFetch<Evaluation>(`/api/batches/${encodeURIComponent(batchId)}/evaluation?spec=${encodeURIComponent(specId)}`),
+    enabled: !!batchId && !!specId,
+  });
+}
+
+export function useReviews(batchId: string) {
+  return useQuery({ queryKey: qualityKeys.reviews(batchId), queryFn: () => apiFetch<{ reviews: Review[] }>(`/api/batches/${encodeURIComponent(batchId)}/reviews`) });
+}
+
+export function useSubmitBatch(batchId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (comment: string) => apiFetch(`/api/batches/${encodeURIComponent(batchId)}/submit`, { body: { comment } }),
+    onSuccess: async () => {
+      await qc.invalidateQueries({ queryKey: batchKeys.all });
+    },
+  });
+}
+
+export function useDecision(batchId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: { decision: 'release' | 'hold'; specId: string; comment: string }) => apiFetch(`/api/batches/${encodeURIComponent(batchId)}/decision`, { body: input }),
+    onSuccess: async () => {
+      await qc.invalidateQueries({ queryKey: batchKeys.all });
+    },
+  });
+}
+
+export function useComparison(ids: string[], specId: string, param: string) {
+  const qs = new URLSearchParams({ batches: ids.join(','), param, ...(specId ? { spec: specId } : {}) });
+  return useQuery({
+    queryKey: qualityKeys.compare(ids, specId, param),
+    queryFn: () => apiFetch<Comparison>(`/api/compare?${qs}`),
+    enabled: ids.length > 0,
+  });
+}
+
+/** The pass/fail CSV's address (downloaded by the browser with the session cookie). */
+export function passFailUrl(batchId: string, specId: string): string {
+  return `/api/batches/${encodeURIComponent(batchId)}/pass-fail.csv?spec=${encodeURIComponent(specId)}`;
+}

@@ -1,0 +1,25 @@
+/**
+ * Starting a file download from the web app: a server route with Content-Disposition (cookies go
+ * along), or text made in the browser (the comparison grid's view). No-ops off the web.
+ */
+export function downloadFromUrl(url: string): void {
+  if (typeof document === 'undefined') return;
+  const a = document.createElement('a');
+  a.href = url;
+  a.rel = 'noopener';
+  document.body.appendChild(a);
+  a.click();
+  a.remove();
+}
+
+export function downloadText(fileName: string, text: string, type = 'text/csv;charset=utf-8'): void {
+  if (typeof document === 'undefined' || typeof URL === 'undefined') return;
+  const url = URL.createObjectURL(new Blob([text], { type }));
+  const a = document.createElement('a');
+  a.href = url;
+  a.download = fileName;
+  document.body.appendChild(a);
+  a.click();
+  a.remove();
+  setTimeout(() => URL.revokeObjectURL(url), 10_000);
+}

@@ -1,0 +1,16 @@
+/** The flag codes the engine raises, with a short label for lists and spec forms. */
+export const FLAG_CODES = {
+  step: 'Step or second knee (bypass diode, mismatch, cracked cells)',
+  'low-shunt': 'Low shunt resistance',
+  'high-series-resistance': 'High series resistance',
+  noisy: 'Noisy measurement',
+  'poor-fit': 'Diode model misses the curve',
+  'fit-failed': 'Fit did not converge',
+  'cells-unknown': 'Cell count not given',
+  'isc-extrapolated': 'Isc extrapolated',
+  'voc-extrapolated': 'Voc extrapolated',
+  'temperature-assumed': 'Temperature assumed 25 °C',
+  'high-voltage': 'Above 60 V DC',
+} as const;
+
+export type FlagCode = keyof typeof FLAG_CODES;

@@ -1,0 +1,125 @@
+/**
+ * Browser: a designer explores the device physics at phone and wide widths (doping changes the
+ * quasi-Fermi-level splitting on screen), then opens the physics of a demo module curve from its
+ * curve page and sees J0, the Voc-across-temperature chart and a translation. Screenshots
+ * physics-*.png go to artifacts/screenshots (git-ignored).
+ */
+import type { Page } from 'playwright-core';
+import { readDemoAccounts } from '@/db/seed';
+import { layoutProblems, openBrowser, screenshot, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
+import { startServerProcess } from '@/tests/support/server-process';
+import type { ServerProcess } from '@/tests/support/server-process';
+
+let srv: ServerProcess;
+beforeAll(async () => {
+  srv = await startServerProcess();
+});
+afterAll(async () => {
+  await srv?.stop();
+});
+
+const designer = readDemoAccounts().find((a) => a.email === 'dana.lindqvist@kestrel-pv.example')!;
+
+/** The eV figure inside a Figure element, as a number. */
+async function evOf(page: Page, testID: string): Promise<number> {
+  const text = await page.getByTestId(testID).innerText();
+  const m = text.match(/(-?\d+\.\d+) eV/);
+  if (!m) throw new Error(`no eV figure in ${testID}: ${text}`);
+  return Number(m[1]);
+}
+
+describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
+  it('a designer opens Physics, changes the doping and sees the splitting change', async () => {
+    const b = await openBrowser(viewport);
+    try {
+      expect(designer.role).toBe('designer');
+      await signInThroughForm(b.page, srv.url, designer.email, designer.password);
+      await b.page.getByTestId('nav-physics').first().click();
+      await b.page.getByTestId('physics-screen').waitFor();
+      await b.page.getByTestId('splitting-fd').waitFor({ timeout: 20_000 });
+      await b.page.locator('[data-testid="band-diagram"] svg').first().waitFor();
+      await b.page.locator('[data-testid="occupation-chart"] svg').first().waitFor();
+      await b.page.locator('[data-testid="ni-chart"] svg').first().waitFor();
+
+      // Default p-type 10¹⁶ cm⁻³, Δn 10¹⁵ cm⁻³, 300 K: 0.659 eV (the API test checks it by hand).
+      const before = await evOf(b.page, 'splitting-fd');
+      expect(before).toBeCloseTo(0.6589, 3);
+      // n_i and the Altermatt et al. (2003) reference beside it.
+      expect(await b.page.getByTestId('ni-reference').innerText()).toMatch(/9\.65×10⁹ cm⁻³/);
+      expect(await b.page.getByTestId('ni-value').innerText()).toMatch(/9\.68×10⁹ cm⁻³/);
+      expect(await layoutProblems(b.page)).toEqual([]);
+      await screenshot(b.page, `physics-explore-${vpName}`);
+
+      // One step up of the doping (1e16 → 2e16): Boltzmann by hand, kT·ln 2 ≈ +16 mV at low injection
+      // (here Δn/N_A = 5 %, so a little less).
+      await b.page.getByTestId('doping-up').click();
+      expect(await b.page.getByTestId('doping-input').inputValue()).toBe('2e16');
+      await b.page.waitForFunction(
+        (old) => {
+          const el = document.querySelector('[data-testid="splitting-fd"]');
+          const m = el?.textContent?.match(/(-?\d+\.\d+) eV/);
+          return !!m && Math.abs(Number(m[1]) - old) > 0.005;
+        },
+        before,
+        { timeout: 20_000 },
+      );
+      const after = await evOf(b.page, 'splitting-fd');
+      expect(after - before).toBeGreaterThan(0.01);
+      expect(after - before).toBeLessThan(0.0179); // kT·ln 2 = 17.9 mV at 300 K is the upper bound
+
+      // Typing works too: n-type 10²⁰ cm⁻³ is degenerate and says so.
+      await b.page.getByTestId('doping-type-n').click();
+      await b.page.getByTestId('doping-input').fill('1e20');
+      await b.page.getByTestId('degenerate').waitFor({ timeout: 20_000 });
+      await b.page.getByTestId('band-card').scrollIntoViewIfNeeded();
+      expect(await layoutProblems(b.page)).toEqual([]);
+      await screenshot(b.page, `physics-band-${vpName}`);
+      await b.page.getByTestId('ni-card').scrollIntoViewIfNeeded();
+      await screenshot(b.page, `physics-ni-${vpName}`);
+    } finally {
+      await b.close();
+    }
+  });
+
+  it('opens Physics from a demo curve page and sees J0 and the Voc-vs-temperature chart', async () => {
+    const b = await openBrowser(viewport);
+    try {
+      await signInThroughForm(b.page, srv.url, designer.email, designer.password);
+      await b.page.goto(`${srv.url}/batches`, { waitUntil: 'load' });
+      await b.page.getByTestId('batch-KF-M60 line 2, lot 2611').click();
+      await b.page.getByTestId('curve-row-M2611-001').click();
+      await b.page.getByTestId('curve-screen').waitFor();
+      await b.page.getByTestId('to-physics').click();
+      await b.page.getByTestId('physics-curve').waitFor({ timeout: 20_000 });
+      expect(b.page.url()).toMatch(/\/physics\?curve=/);
+      await b.page.locator('[data-testid="voc-temperature-chart"] svg').first().waitFor();
+
+      // 60 cells on 16 610 cm² (demo metadata): J0 is per cell area, in A/cm².
+      const j0 = await b.page.getByTestId('j0-figure').innerText();
+      expect(j0).toMatch(/J0/);
+      expect(j0).toMatch(/×10⁻\d+ A\/cm²/);
+      expect(j0).toMatch(/276\.8 cm² per cell/);
+      expect(await b.page.getByTestId('voc-coefficient').innerText()).toMatch(/mV\/K/);
+      // A 60-cell module: module voltages, so the caution is shown.
+      expect(await b.page.getByTestId('hv-caution').count()).toBe(1);
+      expect(await layoutProblems(b.page)).toEqual([]);
+      await screenshot(b.page, `physics-curve-${vpName}`);
+
+      await b.page.getByTestId('voc-temperature-chart').scrollIntoViewIfNeeded();
+      await screenshot(b.page, `physics-voc-${vpName}`);
+
+      // Translate the module to 50 °C by its fitted model: less power than at STC.
+      await b.page.getByTestId('translate-temp').fill('50');
+      await b.page.getByTestId('translate-submit').click();
+      await b.page.getByTestId('translate-result').waitFor({ timeout: 20_000 });
+      await b.page.locator('[data-testid="translate-chart"] svg').first().waitFor();
+      // The demo curve was measured at 25 °C: 25 K warmer costs power (sign only; the API test has numbers).
+      expect(await b.page.getByTestId('translated-pmp_w').innerText()).toMatch(/measured [\d.]+ W \(−\d+\.\d %\)/);
+      await b.page.getByTestId('translate-result').scrollIntoViewIfNeeded();
+      expect(await layoutProblems(b.page)).toEqual([]);
+      await screenshot(b.page, `physics-translate-${vpName}`);
+    } finally {
+      await b.close();
+    }
+  });
+});

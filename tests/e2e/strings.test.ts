@@ -1,0 +1,94 @@
+/**
+ * Browser: a designer sizes a string from the demo batch "KF-M60 line 2, lot 2611" at phone and
+ * wide widths, sees the figures the API computed (string Voc highlighted above 60 V DC), where
+ * each input came from and the expanded high-voltage caution; bad input shows the library's
+ * message and no figures. Screenshots strings-*.png go to artifacts/screenshots.
+ */
+import { readDemoAccounts } from '@/db/seed';
+import { layoutProblems, openBrowser, screenshot, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
+import { startServerProcess } from '@/tests/support/server-process';
+import type { ServerProcess } from '@/tests/support/server-process';
+
+const DEMO_BATCH = 'KF-M60 line 2, lot 2611';
+
+let srv: ServerProcess;
+beforeAll(async () => {
+  srv = await startServerProcess();
+});
+afterAll(async () => {
+  await srv?.stop();
+});
+
+const designer = readDemoAccounts().find((a) => a.email === 'dana.lindqvist@kestrel-pv.example')!;
+
+describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
+  it('a designer sizes a string from the demo batch and sees the result, its sources and the caution', async () => {
+    expect(designer).toBeDefined();
+    const b = await openBrowser(viewport);
+    try {
+      const { page } = b;
+      await signInThroughForm(page, srv.url, designer.email, designer.password);
+      await page.goto(`${srv.url}/strings`, { waitUntil: 'load' });
+      await page.getByTestId('strings-screen').waitFor();
+      await page.getByTestId('state-empty').waitFor();
+      // The caution is there before any number is.
+      expect(await page.getByTestId('hv-caution').count()).toBe(1);
+      await page.getByTestId(`pick-batch-${DEMO_BATCH}`).waitFor();
+      expect(await layoutProblems(page)).toEqual([]);
+      await screenshot(page, `strings-empty-${vpName}`);
+
+      await page.getByTestId(`pick-batch-${DEMO_BATCH}`).click();
+      await page.getByTestId('tmin').fill('-25');
+      await page.getByTestId('tcellmax').fill('70');
+      await page.getByTestId('vsys-1500').click();
+      await page.getByTestId('mpp-min').fill('500');
+      await page.getByTestId('mpp-max').fill('1300');
+      await page.getByTestId('size-submit').click();
+      await page.getByTestId('string-result').waitFor({ timeout: 30_000 });
+
+      // The figures on screen are the API's for the same request (sizing logic is tested in tests/server/strings.test.ts).
+      const api = await page.evaluate(async (name) => {
+        const list = await (await fetch('/api/batches', { credentials: 'include' })).json();
+        const batchId = list.batches.find((x: { name: string }) => x.name === name).id;
+        const res = await fetch('/api/strings/size', {
+          method: 'POST',
+          credentials: 'include',
+          headers: { 'Content-Type': 'application/json' },
+          body: JSON.stringify({ batchId, tMin_C: -25, tCellMax_C: 70, vSys_V: 1500, mppWindow: { min_V: 500, max_V: 1300 } }),
+        });
+        return res.json();
+      }, DEMO_BATCH);
+      expect(api.max_modules).toBeGreaterThan(1);
+      expect(await page.getByTestId('max-modules').innerText()).toContain(String(api.max_modules));
+      expect(await page.getByTestId('string-voc').innerText()).toContain(api.string_voc_max_v.toFixed(1));
+      expect(await page.getByTestId('margin').innerText()).toContain(api.margin_v.toFixed(1));
+      expect(await page.getByTestId('min-modules').innerText()).toContain(String(api.min_modules));
+      // A string of modules is far above 60 V DC: highlighted.
+      expect(api.string_voc_max_v).toBeGreaterThan(60);
+      await page.getByTestId('string-voc-elv').waitFor();
+      // Where the inputs came from: the batch's worst module and the fitted model (the demo batch is at one temperature).
+      await page.getByTestId('source-voc-batch').waitFor();
+      await page.getByTestId('source-beta-model').waitFor();
+      expect(await page.getByTestId('string-sources').innerText()).toMatch(/highest-Voc module of 24.*not the batch mean/);
+      // The caution is expanded: every bullet is on the page.
+      expect(await page.getByTestId('hv-caution').innerText()).toMatch(/no off switch[\s\S]*DC arc does not go out[\s\S]*design guidance only/i);
+      await page.getByTestId('string-voc-chart').waitFor();
+      expect(await layoutProblems(page)).toEqual([]);
+      await screenshot(page, `strings-result-${vpName}`);
+      await page.getByTestId('string-chart-card').scrollIntoViewIfNeeded();
+      await screenshot(page, `strings-chart-${vpName}`);
+
+      // Bad input: a record low of −70 °C is refused with the library's message, and no figures stay on screen.
+      await page.getByTestId('tmin').fill('-70');
+      await page.getByTestId('size-submit').click();
+      await page.getByTestId('form-error').waitFor();
+      expect(await page.getByTestId('form-error').innerText()).toMatch(/tMin_C is -70 °C, outside -60…\+100 °C/);
+      expect(await page.getByTestId('string-result').count()).toBe(0);
+      await page.getByTestId('form-error').scrollIntoViewIfNeeded();
+      expect(await layoutProblems(page)).toEqual([]);
+      await screenshot(page, `strings-error-${vpName}`);
+    } finally {
+      await b.close();
+    }
+  });
+});
