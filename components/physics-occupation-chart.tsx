@@ -23,10 +23,11 @@ export function PhysicsOccupationChart({ occupation, scale, height = 240, testID
   return (
     <ChartFrame height={height} testID={testID}>
       {(width) => (
-        <VictoryChart width={width} height={height} padding={chartStyle.padding} scale={{ y: log ? 'log' : 'linear' }} domain={{ y: [lo, 1] }}>
-          <VictoryAxis label="Energy from Ei (eV)" style={chartStyle.axis} tickFormat={tick} tickCount={6} />
+        <VictoryChart width={width} height={height} padding={{ ...chartStyle.padding, top: 24 }} scale={{ y: log ? 'log' : 'linear' }} domain={{ y: [lo, 1] }}>
+          <VictoryAxis crossAxis={false} label="Energy from Ei (eV)" style={chartStyle.axis} tickFormat={tick} tickCount={6} />
           <VictoryAxis
             dependentAxis
+            crossAxis={false}
             label={log ? 'Occupation (log)' : 'Occupation'}
             style={chartStyle.axis}
             tickValues={log ? LOG_TICKS : [0, 0.25, 0.5, 0.75, 1]}

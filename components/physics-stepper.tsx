@@ -63,7 +63,7 @@ export function PhysicsStepper({
 }
 
 const styles = StyleSheet.create({
-  wrap: { gap: 4, flexGrow: 1, flexBasis: 200, minWidth: 0 },
+  wrap: { gap: 4, minWidth: 0 },
   row: { flexDirection: 'row', alignItems: 'stretch', gap: 6 },
   btn: {
     width: 44,

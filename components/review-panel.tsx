@@ -63,7 +63,23 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
                       <Figure label="Pass" value={String(e.counts.pass)} note={`of ${e.counts.total}`} testID="count-pass" />
                       <Figure label="Fail" value={String(e.counts.fail)} warn={e.counts.fail > 0} testID="count-fail" />
                       <Figure label="Outliers (|z| > 3.5)" value={String(e.counts.outliers)} note="robust z on MAD, marked not failed" />
-                      <Figure label="Power classes" value={Object.keys(e.powerClassCounts).length ? Object.entries(e.powerClassCounts).sort().map(([k, n]) => `${k}: ${n}`).join('  ') : '—'} />
+                    </View>
+                    <View style={{ gap: 4 }} testID="power-classes">
+                      <Txt variant="label">Power classes</Txt>
+                      <View style={styles.chips}>
+                        {Object.keys(e.powerClassCounts).length ? (
+                          Object.entries(e.powerClassCounts)
+                            .sort()
+                            .map(([k, n]) => (
+                              <View key={k} style={styles.classChip}>
+                                <Txt variant="figure" style={{ fontSize: 13 }}>{k}</Txt>
+                                <Txt variant="caption">× {n}</Txt>
+                              </View>
+                            ))
+                        ) : (
+                          <Txt variant="caption">This spec sets no power classes.</Txt>
+                        )}
+                      </View>
                     </View>
                     {failing.length ? (
                       <View style={{ gap: 6 }}>
@@ -139,6 +155,7 @@ const styles = StyleSheet.create({
   chip: { paddingHorizontal: 10, paddingVertical: 5, borderRadius: 999, borderWidth: 1, borderColor: theme.color.line },
   chipOn: { backgroundColor: theme.color.ink, borderColor: theme.color.ink },
   figures: { flexDirection: 'row', flexWrap: 'wrap', gap: 14 },
+  classChip: { flexDirection: 'row', gap: 4, alignItems: 'baseline', backgroundColor: theme.color.sunken, borderRadius: 6, paddingHorizontal: 8, paddingVertical: 2 },
   failRow: { flexDirection: 'row', gap: 10, flexWrap: 'wrap', alignItems: 'baseline' },
   input: { minHeight: 60, borderWidth: 1, borderColor: theme.color.line, borderRadius: theme.radius.m, padding: 10, fontFamily: theme.font.regular, fontSize: 14, color: theme.color.ink, backgroundColor: theme.color.surface },
 });

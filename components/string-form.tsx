@@ -4,8 +4,8 @@ import { useForm } from 'react-hook-form';
 import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
 import { Button } from '@/components/button';
 import { Card } from '@/components/card';
-import { FormError } from '@/components/form-error';
 import { QueryState } from '@/components/query-state';
+import { SizingError } from '@/components/string-error';
 import { TextField } from '@/components/text-field';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
@@ -38,7 +38,21 @@ const NUMERIC = { keyboardType: 'numbers-and-punctuation' as const, inputMode: '
  * values, then the site (record low, hottest cell), the system voltage limit and the inverter's
  * MPP window. Checked with the same zod schema as POST /api/strings/size.
  */
-export function StringForm({ onSubmit, busy, error, wide }: { onSubmit: (v: StringSizeRequest) => void; busy: boolean; error: unknown; wide: boolean }) {
+export function StringForm({
+  onSubmit,
+  busy,
+  error,
+  summary,
+  wide,
+}: {
+  onSubmit: (v: StringSizeRequest) => void;
+  busy: boolean;
+  /** A sentence to show by the button (the failed request's message, on a phone). */
+  error: string | null;
+  /** One line of the result by the button, so a phone user knows it is below. */
+  summary: string | null;
+  wide: boolean;
+}) {
   const batches = useBatches();
   const [mode, setMode] = useState<Mode>('batch');
   const [limit, setLimit] = useState<Limit | null>(null);
@@ -92,11 +106,11 @@ export function StringForm({ onSubmit, busy, error, wide }: { onSubmit: (v: Stri
         />
         {mode === 'batch' ? (
           <>
-            <QueryState query={batches} isEmpty={(d) => !d.batches.some((b) => !b.archived && (b.curveCount ?? 0) > 0)} empty="No batch has curves yet. Choose “Typed values” to enter a datasheet’s figures.">
+            <QueryState query={batches} isEmpty={(d) => !d.batches.some((b) => !b.archived)} empty="No batches yet. Choose “Typed values” to enter a datasheet’s figures.">
               {(d) => (
                 <ScrollView style={{ maxHeight: wide ? 320 : 260 }} contentContainerStyle={{ gap: 6 }} nestedScrollEnabled testID="batch-picker">
                   {d.batches
-                    .filter((b) => !b.archived && (b.curveCount ?? 0) > 0)
+                    .filter((b) => !b.archived)
                     .map((b) => {
                       const on = b.id === batchId;
                       return (
@@ -114,7 +128,7 @@ export function StringForm({ onSubmit, busy, error, wide }: { onSubmit: (v: Stri
                           <View style={[styles.radio, on && styles.radioOn]} />
                           <View style={{ flex: 1, gap: 2 }}>
                             <Txt variant="body" style={{ fontFamily: theme.font.medium }} numberOfLines={2}>{b.name}</Txt>
-                            <Txt variant="caption">{[`${b.curveCount} curves`, b.cells && `${b.cells} cells in series`, b.productType].filter(Boolean).join(' · ')}</Txt>
+                            <Txt variant="caption">{[b.productType, b.cells && `${b.cells} cells in series`, b.batchDate].filter(Boolean).join(' · ') || 'No description'}</Txt>
                           </View>
                         </Pressable>
                       );
@@ -167,8 +181,9 @@ export function StringForm({ onSubmit, busy, error, wide }: { onSubmit: (v: Stri
           <View style={styles.cell}><TextField control={control} name="mppWindow.min_V" label="MPP window from (V)" {...NUMERIC} placeholder="e.g. 500" testID="mpp-min" /></View>
           <View style={styles.cell}><TextField control={control} name="mppWindow.max_V" label="MPP window to (V)" {...NUMERIC} placeholder="e.g. 1300" testID="mpp-max" /></View>
         </View>
-        <FormError error={error} />
+        {error ? <SizingError message={error} /> : null}
         <Button label="Size the string" onPress={submit} busy={busy} testID="size-submit" />
+        {summary ? <Txt variant="label" style={{ color: theme.color.electron }} testID="size-summary">{summary}</Txt> : null}
       </Card>
     </View>
   );

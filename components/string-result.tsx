@@ -37,13 +37,20 @@ function moduleText(s: ModuleSource | null, what: string): string {
   return `${s.note} ${what} of each curve from its fitted single-diode model.`;
 }
 
-function coefficientText(s: CoefficientSource | null, quantity: string): string {
+function coefficientText(s: CoefficientSource | null, lawInFull: boolean): string {
   if (!s || s.kind === 'entered') return 'Typed in.';
   if (s.kind === 'measured') {
     const pts = s.points.map((p) => `${p.tempC} °C: ${p.voc_V.toFixed(2)} V (${p.curves} curve${p.curves === 1 ? '' : 's'})`).join('; ');
-    return `Measured across ${s.points.length} temperatures spanning ${s.span_K} K (${pts}); r² ${s.r2.toFixed(3)}. ${s.rule}`;
+    return `Measured across ${s.points.length} temperatures spanning ${s.span_K} K (${pts}); r² ${s.r2.toFixed(3)}. Rule: ${s.rule}`;
   }
-  return `Derived from the fitted diode model of ${s.deviceId} (fitted at ${s.fitTempC} °C, ${s.cells} cells in series), not measured on ${quantity}. ${s.lawText} Measure the batch at two temperatures ${MEASURED_MIN_SPAN_K} K or more apart to replace it.`;
+  return [
+    `Derived from the fitted diode model of ${s.deviceId} (fitted at ${s.fitTempC} °C, ${s.cells} cells in series), not measured.`,
+    s.note,
+    lawInFull ? `Method: ${s.lawText}` : 'Same model and method as the Voc coefficient.',
+    lawInFull ? `Curves at two temperatures ${MEASURED_MIN_SPAN_K} K or more apart would give a measured coefficient.` : null,
+  ]
+    .filter(Boolean)
+    .join(' ');
 }
 
 function SourceRow({ label, value, text, warn, testID }: { label: string; value: string; text: string; warn?: boolean; testID?: string }) {
@@ -108,12 +115,12 @@ export function StringResult({ r, wide }: { r: StringSizeResponse; wide: boolean
         <Card title="Where each input came from" style={wide ? { flex: 1 } : undefined} testID="string-sources">
           {r.source.batch ? <Txt variant="caption">Batch: {r.source.batch.name}</Txt> : null}
           <SourceRow label="Module Voc at STC" value={volts(i.vocStc_V, 2)} warn={isAboveElv(i.vocStc_V)} text={moduleText(r.source.module, 'Voc at STC')} testID={`source-voc-${kindOf(r.source.module)}`} />
-          <SourceRow label="Voc coefficient" value={`${signed(i.betaVoc_pct_per_K)} %/K`} text={coefficientText(r.source.betaVoc, 'these modules’ Voc')} testID={`source-beta-${kindOf(r.source.betaVoc)}`} />
+          <SourceRow label="Voc coefficient" value={`${signed(i.betaVoc_pct_per_K)} %/K`} text={coefficientText(r.source.betaVoc, true)} testID={`source-beta-${kindOf(r.source.betaVoc)}`} />
           <SourceRow label="Record low (ambient)" value={`${i.tMin_C} °C`} text="Typed in. At first light the cells sit at ambient temperature, so the coldest morning gives the highest Voc." />
           <SourceRow label="System voltage limit" value={`${i.vSys_V} V DC`} text="Typed in: the lower of the modules’ and the inverter’s maximum system voltage." />
           <SourceRow label="Hottest cell temperature" value={i.tCellMax_C !== null ? `${i.tCellMax_C} °C` : '—'} text={i.tCellMax_C !== null ? 'Typed in.' : 'Not given.'} />
           {i.vmpStc_V !== null ? <SourceRow label="Module Vmp at STC" value={volts(i.vmpStc_V, 2)} warn={isAboveElv(i.vmpStc_V)} text={moduleText(r.source.vmpStc, 'Vmp at STC')} /> : null}
-          {i.betaVmp_pct_per_K !== null ? <SourceRow label="Vmp coefficient" value={`${signed(i.betaVmp_pct_per_K)} %/K`} text={coefficientText(r.source.betaVmp, 'these modules’ Vmp')} /> : null}
+          {i.betaVmp_pct_per_K !== null ? <SourceRow label="Vmp coefficient" value={`${signed(i.betaVmp_pct_per_K)} %/K`} text={coefficientText(r.source.betaVmp, r.source.betaVoc.kind !== 'model')} /> : null}
           {i.mppWindow ? <SourceRow label="Inverter MPP window" value={`${i.mppWindow.min_V}–${i.mppWindow.max_V} V`} text="Typed in." /> : null}
         </Card>
 

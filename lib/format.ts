@@ -42,7 +42,10 @@ export function sig(x: number | null | undefined, digits = 4): string {
     const [mantissa, exponent] = x.toExponential(digits - 1).split('e');
     return `${mantissa}×10${toSup(exponent.replace('+', ''))}`;
   }
-  return String(Number(x.toPrecision(digits)));
+  const rounded = Number(x.toPrecision(digits));
+  // 999999 rounds to 1e6 at 4 digits: show it the way 1e6 itself is shown.
+  if (Math.abs(rounded) >= 1e6) return sig(rounded, digits);
+  return String(rounded);
 }
 
 function toSup(d: string): string {

@@ -141,7 +141,7 @@ function Explorer({ wide }: { wide: boolean }) {
   })();
 
   const controls = (
-    <Card title="Material and injection" testID="physics-controls" style={wide ? { flex: 1 } : undefined}>
+    <Card title="Material and injection" testID="physics-controls">
       <View style={styles.controls}>
         <View style={styles.controlCell}>
           <PhysicsChoice
@@ -187,13 +187,13 @@ function Explorer({ wide }: { wide: boolean }) {
   );
 
   const splitting = (
-    <Card title="Quasi-Fermi-level splitting" testID="splitting-card" style={wide ? { flex: 1 } : undefined}>
+    <Card title="Quasi-Fermi-level splitting" testID="splitting-card">
       <QueryState query={diagram}>{(d) => <Splitting d={d} />}</QueryState>
     </Card>
   );
 
   const band = (
-    <Card title="Band diagram" testID="band-card" style={wide ? { flex: 1 } : undefined}>
+    <Card title="Band diagram" testID="band-card">
       <QueryState query={diagram}>
         {(d) => (
           <>
@@ -208,7 +208,7 @@ function Explorer({ wide }: { wide: boolean }) {
   );
 
   const occupation = (
-    <Card title="Occupation f(E) around the band edges" testID="occupation-card" style={wide ? { flex: 1 } : undefined}>
+    <Card title="Occupation f(E) around the band edges" testID="occupation-card">
       <PhysicsChoice
         label="Scale"
         value={scale}
@@ -227,7 +227,7 @@ function Explorer({ wide }: { wide: boolean }) {
               <Txt variant="caption" style={{ color: theme.color.electron }}>━ electrons f(E) with E_Fn</Txt>
               {'   '}
               <Txt variant="caption" style={{ color: theme.color.hole }}>━ holes 1 − f(E) with E_Fp</Txt>
-              {'   '}╌ equilibrium f(E) with E_F. Vertical lines: Ev and Ec.
+              {'   '}╌ equilibrium f(E) with E_F. Vertical lines: Ev and Ec. Electrons are read at and above Ec, holes at and below Ev: there the tails set n and p.
             </Txt>
           </>
         )}
@@ -236,7 +236,7 @@ function Explorer({ wide }: { wide: boolean }) {
   );
 
   const ni = (
-    <Card title="Intrinsic carrier density" testID="ni-card" style={wide ? { flex: 1 } : undefined}>
+    <Card title="Intrinsic carrier density" testID="ni-card">
       <QueryState query={material}>{(m) => <MaterialFigures m={m} />}</QueryState>
     </Card>
   );
@@ -369,7 +369,7 @@ function CurveBody({ p, wide }: { p: CurvePhysicsJson; wide: boolean }) {
   }
 
   const figures = (
-    <Card title="Saturation current and temperature" style={wide ? { flex: 1 } : undefined} testID="curve-physics-figures">
+    <Card title="Saturation current and temperature" testID="curve-physics-figures">
       <View style={styles.figures}>
         <Figure
           label="J0 (per cell area)"
@@ -413,7 +413,7 @@ function CurveBody({ p, wide }: { p: CurvePhysicsJson; wide: boolean }) {
   );
 
   const chart = (
-    <Card title="Voc across cell temperature" style={wide ? { flex: 1 } : undefined}>
+    <Card title="Voc across cell temperature">
       {s.vocVsTemperature ? (
         <>
           <PhysicsVocChart points={s.vocVsTemperature.points} measured={measured} testID="voc-temperature-chart" />
@@ -428,7 +428,7 @@ function CurveBody({ p, wide }: { p: CurvePhysicsJson; wide: boolean }) {
   );
 
   const stc = (
-    <Card title="At standard test conditions" style={wide ? { flex: 1 } : undefined} testID="physics-stc">
+    <Card title="At standard test conditions" testID="physics-stc">
       {p.stc ? (
         <>
           <View style={styles.figures}>
@@ -447,7 +447,7 @@ function CurveBody({ p, wide }: { p: CurvePhysicsJson; wide: boolean }) {
   );
 
   const translate = (
-    <Card title="Translate to other conditions" style={wide ? { flex: 1.3 } : undefined}>
+    <Card title="Translate to other conditions">
       <PhysicsTranslateForm physics={p} />
     </Card>
   );
@@ -456,14 +456,25 @@ function CurveBody({ p, wide }: { p: CurvePhysicsJson; wide: boolean }) {
     <View style={{ gap: 16 }}>
       {head}
       {module ? <CautionBlock /> : null}
-      <Columns wide={wide}>
-        {figures}
-        {chart}
-      </Columns>
-      <Columns wide={wide}>
-        {stc}
-        {translate}
-      </Columns>
+      {wide ? (
+        <Columns wide>
+          <View style={{ flex: 1, gap: 16 }}>
+            {figures}
+            {stc}
+          </View>
+          <View style={{ flex: 1, gap: 16 }}>
+            {chart}
+            {translate}
+          </View>
+        </Columns>
+      ) : (
+        <>
+          {figures}
+          {chart}
+          {stc}
+          {translate}
+        </>
+      )}
       {p.notes.length ? (
         <Txt variant="caption" testID="physics-notes">
           {p.notes.join(' ')}

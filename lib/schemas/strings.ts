@@ -79,6 +79,32 @@ export const stringSizeSchema = z
     return { ...rest, mppWindow: lo === undefined || hi === undefined ? undefined : { min_V: lo, max_V: hi } };
   });
 
+/** The request's field names as the /strings form labels them. */
+export const STRING_FIELD_LABELS: Record<string, string> = {
+  vocStc_V: 'Voc at STC',
+  betaVoc_pct_per_K: 'Voc coefficient',
+  tMin_C: 'Record low ambient',
+  tCellMax_C: 'Hottest cell temperature',
+  vSys_V: 'System voltage limit',
+  'mppWindow.min_V': 'MPP window from',
+  'mppWindow.max_V': 'MPP window to',
+  mppWindow: 'MPP window',
+  vmpStc_V: 'Vmp at STC',
+  betaVmp_pct_per_K: 'Vmp coefficient',
+  batchId: 'Batch',
+  curveId: 'Curve',
+};
+
+/**
+ * A sizing message for people reading the form: the API's field names (tMin_C, …) become the
+ * form's labels. The API itself keeps the field names, which is what a script needs.
+ */
+export function sizingMessageForForm(message: string): string {
+  const names = Object.keys(STRING_FIELD_LABELS).sort((a, b) => b.length - a.length);
+  const pattern = new RegExp(`\\b(${names.map((n) => n.replace('.', '\\.')).join('|')})\\b`, 'g');
+  return message.replace(pattern, (m) => STRING_FIELD_LABELS[m] ?? m);
+}
+
 /** What a form or a client sends (numbers or their text). */
 export type StringSizeInput = z.input<typeof stringSizeSchema>;
 /** The request after parsing: numbers, undefined where not given. */
@@ -108,6 +134,8 @@ export type CoefficientSource =
       curveId: string;
       fitTempC: number;
       cells: number;
+      /** Why no measured coefficient was used, when the batch had curves at several temperatures. */
+      note: string | null;
     };
 
 /** Where the module's STC voltages came from. */

@@ -82,7 +82,8 @@ export function batchesRouter(db: Db): Router {
   r.get('/', requirePermission('batch:read'), async (req, res) => {
     const c = callerOf(req);
     const rows = await db
-      .select({ b: batch, curves: sql<number>`(select count(*)::int from ${curve} where ${curve.batchId} = ${batch.id})`, meanPmp: sql<number | null>`(select avg(${curve.pmp_w}) from ${curve} where ${curve.batchId} = ${batch.id})` })
+      // Qualified by hand: inside a subquery drizzle would print bare column names that resolve to the inner table.
+      .select({ b: batch, curves: sql<number>`(select count(*)::int from "curve" c where c.batch_id = "batch"."id")`, meanPmp: sql<number | null>`(select avg(c.pmp_w) from "curve" c where c.batch_id = "batch"."id")` })
       .from(batch)
       .where(eq(batch.organizationId, c.organization.id))
       .orderBy(desc(batch.createdAt));

@@ -40,6 +40,8 @@ type CurveFacts = {
 
 /** Rounds to 1 µV (or 1e-6 of any unit): exact enough, and free of binary noise in JSON. */
 const r6 = (x: number): number => Math.round(x * 1e6) / 1e6;
+/** For figures inside sentences. */
+const round3 = (x: number): number => Math.round(x * 1000) / 1000;
 const finite = (x: unknown): x is number => typeof x === 'number' && Number.isFinite(x);
 
 /** The single-diode parameters of a fit moved to STC (25 °C, 1000 W/m²) by the n_i law, or null. */
@@ -221,7 +223,7 @@ export function stringsRouter(db: Db): Router {
       }
       return model;
     }
-    const modelSource = (m: NonNullable<typeof model>): CoefficientSource => ({
+    const modelSource = (m: NonNullable<typeof model>, note: string | null = null): CoefficientSource => ({
       kind: 'model',
       law: 'ni-power',
       lawText: MODEL_LAW_TEXT,
@@ -229,6 +231,7 @@ export function stringsRouter(db: Db): Router {
       curveId: m.of.id,
       fitTempC: m.fitTempC,
       cells: m.cells,
+      note,
     });
 
     // ---- Voc coefficient: measured across temperatures, else the model, else entered.
@@ -242,18 +245,17 @@ export function stringsRouter(db: Db): Router {
         betaSource = { kind: 'measured', points: vocPoints.points.map((p) => ({ ...p, voc_V: r6(p.voc_V) })), span_K: r6(m.span_K), r2: r6(m.r2), rule: MEASURED_RULE, warnings: m.warnings };
         sourceWarnings.push(...m.warnings);
       } else {
-        if (vocPoints.points.length >= 2) {
-          sourceWarnings.push(
-            `The batch's curves span only ${r6(vocPoints.span_K)} K, less than the ${MEASURED_MIN_SPAN_K} K needed to measure the Voc coefficient; the fitted model's coefficient is used instead.`,
-          );
-        }
+        const why =
+          vocPoints.points.length >= 2
+            ? `The batch's curves span only ${round3(vocPoints.span_K)} K of cell temperature, less than the ${MEASURED_MIN_SPAN_K} K needed to measure the coefficient, so the fitted model's is used.`
+            : null;
         const m = await theModel();
         if (m) {
           try {
             const b = vocTempCoefficient(m.p25, { cells: m.cells, tempC: STC.tempC }).beta_pct_per_K;
             if (finite(b)) {
               betaVoc = b;
-              betaSource = modelSource(m);
+              betaSource = modelSource(m, why);
             }
           } catch (err) {
             if (!(err instanceof PhysicsError)) throw err;
@@ -292,7 +294,7 @@ export function stringsRouter(db: Db): Router {
           mean_V: r6(mean),
           note:
             withVmp.length > 1
-              ? `The least modules use the lowest Vmp at STC of ${withVmp.length} (${low.deviceId}, ${r6(vmpStc_V)} V), not the mean (${r6(mean)} V), so that every string reaches the MPP window.`
+              ? `The least modules use the lowest Vmp at STC of ${withVmp.length} modules (${low.deviceId}, ${round3(vmpStc_V)} V), not the mean (${round3(mean)} V), so that a string reaches the MPP window even if every module were as low.`
               : `Vmp at STC of ${low.deviceId}.`,
         };
       }

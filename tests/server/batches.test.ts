@@ -176,6 +176,10 @@ describe('upload', () => {
     expect(page2.body.curves).toHaveLength(1);
     const search = await tester.get(`/api/batches/${batchId}/curves?q=semicolon`);
     expect(search.body.curves.map((c: { device_id: string }) => c.device_id)).toEqual(['cell-semicolon']);
+    const list = await tester.get('/api/batches');
+    const mine = list.body.batches.find((b: { id: string }) => b.id === batchId);
+    expect(mine.curveCount).toBe(3);
+    expect(mine.meanPmp_w).toBeCloseTo(res.body.curves.concat(page2.body.curves).reduce((s: number, c: { metrics: { pmp_w: number } }) => s + c.metrics.pmp_w, 0) / 3, 6);
     const summary = await tester.get(`/api/batches/${batchId}`);
     expect(summary.body.curveCount).toBe(3);
     expect(summary.body.summary.pmp_w.n).toBe(3);

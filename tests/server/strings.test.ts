@@ -241,7 +241,7 @@ describe('from uploaded batches', () => {
     expect(res.body.source.module.note).toMatch(/highest-Voc module of 2.*not the batch mean/);
   });
 
-  it('temperatures only 3 K apart are not a measurement: the model is used, and a warning says why', async () => {
+  it('temperatures only 3 K apart are not a measurement: the model is used, and its note says why', async () => {
     const close = await batchWith('Module at 42 and 45 °C', [
       ['a.csv', moduleFile('RTC-36M-A', 45)],
       ['b.csv', moduleFile('RTC-36M-B', 42)],
@@ -249,7 +249,7 @@ describe('from uploaded batches', () => {
     const res = await designer.post('/api/strings/size').send({ batchId: close.batchId, tMin_C: -10, vSys_V: 1000 });
     expect(res.status).toBe(200);
     expect(res.body.source.betaVoc.kind).toBe('model');
-    expect(res.body.warnings.join(' ')).toMatch(/span only 3 K, less than the 5 K/);
+    expect(res.body.source.betaVoc.note).toMatch(/span only 3 K of cell temperature, less than the 5 K/);
   });
 
   it('explicit values in the request override the batch’s', async () => {

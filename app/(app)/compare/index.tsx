@@ -40,7 +40,7 @@ function columnDefs(ids: CompareColumnId[]): ColumnDef<CompareRow>[] {
     header: columnHeader(id),
     accessorFn: (r: CompareRow) => (r[id] as unknown) ?? null,
     cell: (ctx) => cellText(id, ctx.row.original),
-    size: id === 'deviceId' ? 130 : id === 'batchName' ? 170 : id === 'flags' || id === 'reasons' ? 220 : id === 'result' || id === 'outlier' ? 80 : 96,
+    size: id === 'deviceId' ? 130 : id === 'batchName' ? 170 : id === 'flags' || id === 'reasons' ? 220 : id === 'result' || id === 'outlier' ? 80 : id === 'i0_a' || id === 'j0_a_cm2' || id === 'rmse_a' ? 124 : 96,
     sortUndefined: 'last',
   }));
 }
