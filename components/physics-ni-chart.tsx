@@ -1,9 +1,8 @@
 import { VictoryAxis, VictoryChart, VictoryLine, VictoryScatter } from 'victory-native';
 import { ChartFrame } from '@/components/chart-frame';
 import { chartStyle, tick } from '@/components/chart-style';
-import { powerOfTenTick } from '@/components/physics-ticks';
+import { LOG_CHART, powerOfTenTick } from '@/components/physics-ticks';
 import { theme } from '@/components/theme';
-
 
 /**
  * Intrinsic carrier density of silicon against temperature (log scale), with the temperature
@@ -31,9 +30,9 @@ export function PhysicsNiChart({
   return (
     <ChartFrame height={height} testID={testID}>
       {(width) => (
-        <VictoryChart width={width} height={height} padding={chartStyle.padding} scale={{ y: 'log' }} domain={{ y: [10 ** eMin, 10 ** eMax] }}>
+        <VictoryChart width={width} height={height} padding={LOG_CHART.padding} scale={{ y: 'log' }} domain={{ y: [10 ** eMin, 10 ** eMax] }}>
           <VictoryAxis label="Temperature (K)" style={chartStyle.axis} tickFormat={tick} tickCount={5} />
-          <VictoryAxis dependentAxis label="n_i (cm⁻³)" style={chartStyle.axis} tickValues={ticks} tickFormat={powerOfTenTick} />
+          <VictoryAxis dependentAxis label="n_i (cm⁻³)" style={LOG_CHART.yAxis} tickValues={ticks} tickFormat={powerOfTenTick} />
           <VictoryLine data={data} style={chartStyle.model} />
           {reference && inRange(reference.tempK) ? (
             <VictoryScatter data={[{ x: reference.tempK, y: reference.ni_cm3 }]} size={6} symbol="diamond" style={chartStyle.mpp} />

@@ -1,14 +1,13 @@
 import { VictoryAxis, VictoryChart, VictoryLine, VictoryScatter } from 'victory-native';
 import { ChartFrame } from '@/components/chart-frame';
 import { chartStyle, tick } from '@/components/chart-style';
-import { powerOfTenTick } from '@/components/physics-ticks';
+import { LOG_CHART, powerOfTenTick } from '@/components/physics-ticks';
 import { theme } from '@/components/theme';
 import type { OccupationCurve } from '@/lib/physics';
 
 /** Occupations below this are drawn on the floor of the log chart. */
 const FLOOR = 1e-22;
 const LOG_TICKS = [1e-20, 1e-15, 1e-10, 1e-5, 1];
-
 
 /**
  * The Fermi–Dirac occupation f(E) across the gap: equilibrium (with E_F), electrons (with E_Fn)
@@ -23,13 +22,14 @@ export function PhysicsOccupationChart({ occupation, scale, height = 240, testID
   return (
     <ChartFrame height={height} testID={testID}>
       {(width) => (
-        <VictoryChart width={width} height={height} padding={{ ...chartStyle.padding, top: 24 }} scale={{ y: log ? 'log' : 'linear' }} domain={{ y: [lo, 1] }}>
-          <VictoryAxis crossAxis={false} label="Energy from Ei (eV)" style={chartStyle.axis} tickFormat={tick} tickCount={6} />
+        <VictoryChart width={width} height={height} padding={LOG_CHART.padding} scale={{ y: log ? 'log' : 'linear' }} domain={{ y: [lo, 1] }}>
+          <VictoryAxis crossAxis={false} offsetY={chartStyle.padding.bottom} label="Energy from Ei (eV)" style={chartStyle.axis} tickFormat={tick} tickCount={6} />
           <VictoryAxis
             dependentAxis
             crossAxis={false}
+            offsetX={LOG_CHART.padding.left}
             label={log ? 'Occupation (log)' : 'Occupation'}
-            style={chartStyle.axis}
+            style={log ? LOG_CHART.yAxis : chartStyle.axis}
             tickValues={log ? LOG_TICKS : [0, 0.25, 0.5, 0.75, 1]}
             tickFormat={log ? powerOfTenTick : tick}
           />

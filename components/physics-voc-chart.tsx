@@ -21,8 +21,8 @@ export function PhysicsVocChart({
     <ChartFrame height={height} testID={testID}>
       {(width) => (
         <VictoryChart width={width} height={height} padding={chartStyle.padding} domainPadding={{ y: 8 }}>
-          <VictoryAxis crossAxis={false} label="Cell temperature (°C)" style={chartStyle.axis} tickFormat={tick} tickValues={[-40, -20, 0, 20, 40, 60, 80]} />
-          <VictoryAxis dependentAxis crossAxis={false} label="Voc (V)" style={chartStyle.axis} tickFormat={tick} tickCount={5} />
+          <VictoryAxis crossAxis={false} offsetY={chartStyle.padding.bottom} label="Cell temperature (°C)" style={chartStyle.axis} tickFormat={tick} tickValues={[-40, -20, 0, 20, 40, 60, 80]} />
+          <VictoryAxis dependentAxis crossAxis={false} offsetX={chartStyle.padding.left} label="Voc (V)" style={chartStyle.axis} tickFormat={tick} tickCount={5} />
           <VictoryLine data={points.map((p) => ({ x: p.tempC, y: p.voc_V }))} style={chartStyle.model} />
           {measured ? <VictoryScatter data={[{ x: measured.tempC, y: measured.voc_V }]} size={6} symbol="diamond" style={chartStyle.mpp} /> : null}
         </VictoryChart>

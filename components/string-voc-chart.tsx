@@ -2,6 +2,8 @@ import { VictoryAxis, VictoryChart, VictoryLine, VictoryScatter } from 'victory-
 import { ChartFrame } from '@/components/chart-frame';
 import { chartStyle, tick } from '@/components/chart-style';
 
+const PADDING = { ...chartStyle.padding, left: 64 };
+
 /** Whole volts up to 10 kV (the shared tick formatter switches to exponents from 1000). */
 const volts = (v: number): string => (Math.abs(v) < 10_000 ? String(Math.round(v)) : tick(v));
 import { theme } from '@/components/theme';
@@ -46,9 +48,9 @@ export function StringVocChart({
       caption={`— ${modules} modules in series    - - system limit ${vSys_V} V    ● record low ${tMin_C} °C: ${atMin.toFixed(1)} V${over ? ' (above the limit)' : ''}`}
     >
       {(width) => (
-        <VictoryChart width={width} height={height} padding={{ ...chartStyle.padding, left: 64 }} domain={{ x: [from, to], y: [Math.max(0, yMin - pad), yMax + pad] }}>
-          <VictoryAxis crossAxis={false} label="Ambient temperature (°C)" style={chartStyle.axis} tickFormat={tick} tickValues={xTicks} />
-          <VictoryAxis dependentAxis crossAxis={false} label="String Voc (V)" style={{ ...chartStyle.axis, axisLabel: { ...chartStyle.axis.axisLabel, padding: 40 } }} tickFormat={volts} tickCount={5} />
+        <VictoryChart width={width} height={height} padding={PADDING} domain={{ x: [from, to], y: [Math.max(0, yMin - pad), yMax + pad] }}>
+          <VictoryAxis crossAxis={false} offsetY={PADDING.bottom} label="Ambient temperature (°C)" style={chartStyle.axis} tickFormat={tick} tickValues={xTicks} />
+          <VictoryAxis dependentAxis crossAxis={false} offsetX={PADDING.left} label="String Voc (V)" style={{ ...chartStyle.axis, axisLabel: { ...chartStyle.axis.axisLabel, padding: 40 } }} tickFormat={volts} tickCount={5} />
           <VictoryLine data={[{ x: from, y: vSys_V }, { x: to, y: vSys_V }]} style={{ data: { stroke: theme.color.danger, strokeWidth: 1.5, strokeDasharray: '6,4' } }} />
           <VictoryLine data={line} style={chartStyle.model} />
           <VictoryScatter data={[{ x: tMin_C, y: atMin }]} size={5} style={{ data: { fill: over ? theme.color.danger : theme.color.hole, stroke: theme.color.ink, strokeWidth: 1 } }} />

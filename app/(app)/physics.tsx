@@ -60,7 +60,7 @@ function densityText(x: number): string {
 
 const cm3 = (x: number | null | undefined) => (x == null ? '—' : `${sig(x, 3)} cm⁻³`);
 const eV = (x: number, digits = 4) => `${x.toFixed(digits)} eV`;
-const mV = (x_V: number) => `${x_V >= 0 ? '+' : '−'}${Math.abs(x_V * 1000) < 0.01 ? Math.abs(x_V * 1000).toExponential(1) : Math.abs(x_V * 1000).toFixed(2)} mV`;
+const mV = (x_V: number) => `${x_V >= 0 ? '+' : '−'}${Math.abs(x_V * 1000) >= 0.01 ? Math.abs(x_V * 1000).toFixed(2) : sig(Math.abs(x_V * 1000), 2)} mV`;
 
 /** The value after it has stopped changing for `ms` (typing should not send a request per key). */
 function useSettled<T>(value: T, ms = 250): T {
@@ -280,8 +280,8 @@ function Splitting({ d }: { d: BandDiagramJson }) {
         <Figure label="Boltzmann − Fermi–Dirac" value={mV(d.difference.impliedVoc_V)} warn={d.degenerate} testID="splitting-difference" />
       </View>
       <View style={styles.figures}>
-        <Figure label="Electrons n" value={cm3(fd.n_cm3)} note={`dark n0 ${cm3(fd.n0_cm3)}`} />
-        <Figure label="Holes p" value={cm3(fd.p_cm3)} note={`dark p0 ${cm3(fd.p0_cm3)}`} />
+        <Figure label="Electrons n (cm⁻³)" value={sig(fd.n_cm3, 3)} note={`dark n0 ${cm3(fd.n0_cm3)}`} />
+        <Figure label="Holes p (cm⁻³)" value={sig(fd.p_cm3, 3)} note={`dark p0 ${cm3(fd.p0_cm3)}`} />
         <Figure label="E_F from Ei" value={eV(fd.ef_eV, 3)} note={`Boltzmann ${eV(b.ef_eV, 3)}`} />
       </View>
       {d.degenerate ? (
@@ -300,15 +300,15 @@ function MaterialFigures({ m }: { m: MaterialJson }) {
   return (
     <View style={{ gap: 10 }}>
       <View style={styles.figures}>
-        <Figure label={`n_i at ${m.tempK.toFixed(1)} K`} value={cm3(m.ni_cm3)} testID="ni-value" />
+        <Figure label={`n_i at ${m.tempK.toFixed(1)} K (cm⁻³)`} value={sig(m.ni_cm3, 3)} testID="ni-value" />
         <Figure
-          label={`Reference at ${m.reference.tempK} K`}
-          value={cm3(m.reference.ni_cm3)}
+          label={`Reference n_i at ${m.reference.tempK} K (cm⁻³)`}
+          value={sig(m.reference.ni_cm3, 3)}
           note={`${m.reference.source}; this model: ${sig(m.reference.modelAtReference_cm3, 3)} (${offRef >= 0 ? '+' : ''}${(100 * offRef).toFixed(1)} %)`}
           testID="ni-reference"
         />
         <Figure label="Band gap Eg" value={eV(m.eg_ev)} />
-        <Figure label="Nc · Nv" value={`${sig(m.nc_cm3, 3)} · ${sig(m.nv_cm3, 3)}`} note="cm⁻³" />
+        <Figure label="Nc · Nv (cm⁻³)" value={`${sig(m.nc_cm3, 3)} · ${sig(m.nv_cm3, 3)}`} />
       </View>
       <PhysicsNiChart series={m.series} current={{ tempK: m.tempK, ni_cm3: m.ni_cm3 }} reference={m.reference} testID="ni-chart" />
       <Txt variant="caption">
@@ -372,8 +372,8 @@ function CurveBody({ p, wide }: { p: CurvePhysicsJson; wide: boolean }) {
     <Card title="Saturation current and temperature" testID="curve-physics-figures">
       <View style={styles.figures}>
         <Figure
-          label="J0 (per cell area)"
-          value={s.j0_A_per_cm2 != null ? fmtParam('j0_a_cm2', s.j0_A_per_cm2, 3) : 'no area'}
+          label="J0 per cell area (A/cm²)"
+          value={s.j0_A_per_cm2 != null ? sig(s.j0_A_per_cm2, 3) : 'no area'}
           note={s.j0_A_per_cm2 != null ? `I0 ${fmtParam('i0_a', s.params.i0_a, 3)} over ${sig(c.cellArea_cm2, 4)} cm² per cell, n = ${s.params.n.toFixed(3)}` : 'J0 needs the device area: refit the curve with it.'}
           testID="j0-figure"
         />

@@ -62,21 +62,49 @@ function detectSeparator(line: string): Separator {
 }
 
 function splitRow(line: string, sep: Separator): string[] {
-  const cells = sep === 'space' ? line.trim().split(/\s+/) : line.split(sep);
+  const cells = sep === 'space' ? line.trim().split(/\s+/) : splitOutsideQuotes(line, sep);
   return cells.map((c) => c.trim().replace(/^"(.*)"$/, '$1').trim());
 }
+
+/** Splits on `sep` outside double quotes (RFC 4180), so a quoted "0,512" or "1,234.5" stays one cell. */
+function splitOutsideQuotes(line: string, sep: string): string[] {
+  if (!line.includes('"')) return line.split(sep);
+  const cells: string[] = [];
+  let start = 0;
+  let quoted = false;
+  for (let k = 0; k < line.length; k++) {
+    if (line[k] === '"') quoted = !quoted;
+    else if (line[k] === sep && !quoted) {
+      cells.push(line.slice(start, k));
+      start = k + 1;
+    }
+  }
+  cells.push(line.slice(start));
+  return cells;
+}
+
+/** Longest piece of file text quoted in a message: a 1 MB cell must not make a 1 MB message. */
+const QUOTED_CHARS = 60;
+
+/** `text` cut for a message, saying how long it really is. */
+function clip(text: string, max = QUOTED_CHARS): string {
+  return text.length > max ? `${text.slice(0, max)}… (${text.length.toLocaleString('en-US')} characters)` : text;
+}
+
+/** Excel's "sep=;" first line names the separator. */
+const EXCEL_SEP_RE = /^"?sep=([,;\t ])"?$/i;
 
 /** Parses one numeric cell; `decimalComma` turns "0,512" into 0.512. */
 function parseNumber(raw: string, decimalComma: boolean, what: string, lineNo: number): number {
   const s = decimalComma ? raw.replace(',', '.') : raw;
   if (s === '') throw new IvInputError('missing-value', `the ${what} value is empty`, lineNo);
-  if (NON_FINITE_RE.test(s)) throw new IvInputError('non-finite', `the ${what} value "${raw}" is not a finite number`, lineNo);
+  if (NON_FINITE_RE.test(s)) throw new IvInputError('non-finite', `the ${what} value "${clip(raw)}" is not a finite number`, lineNo);
   if (!NUMBER_RE.test(s)) {
     const hint = !decimalComma && /^[+-]?\d+,\d+$/.test(raw) ? ' (decimal commas are accepted only in semicolon-separated files)' : '';
-    throw new IvInputError('not-a-number', `the ${what} value "${raw}" is not a number${hint}`, lineNo);
+    throw new IvInputError('not-a-number', `the ${what} value "${clip(raw)}" is not a number${hint}`, lineNo);
   }
   const value = Number(s);
-  if (!Number.isFinite(value)) throw new IvInputError('non-finite', `the ${what} value "${raw}" is too large to be a finite number`, lineNo);
+  if (!Number.isFinite(value)) throw new IvInputError('non-finite', `the ${what} value "${clip(raw)}" is too large to be a finite number`, lineNo);
   return value;
 }
 
@@ -92,14 +120,14 @@ for (const k of ['measuredat', 'date', 'measured', 'timestamp', 'time', 'datetim
 /** A metadata number with an optional unit: "25 °C", "0,1 m²", "1 kW/m2". */
 function metaNumber(raw: string, lineNo: number, key: string): { value: number; unit: string } {
   const m = /^([+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?)\s*(.*)$/.exec(raw.trim());
-  if (!m) throw new IvInputError('bad-metadata', `metadata "${key}" should be a number, got "${raw}"`, lineNo);
+  if (!m) throw new IvInputError('bad-metadata', `metadata "${clip(key)}" should be a number, got "${clip(raw)}"`, lineNo);
   return { value: Number(m[1].replace(',', '.')), unit: normUnit(m[2]).replace(/²/g, '2').replace(/^°|^deg/, '') };
 }
 
 function parseMetaValue(field: MetaKey, raw: string, unitFromKey: string, lineNo: number, key: string): CurveMeta[MetaKey] {
   const value = raw.trim();
   if (field === 'deviceId') {
-    if (value === '') throw new IvInputError('bad-metadata', `metadata "${key}" is empty`, lineNo);
+    if (value === '') throw new IvInputError('bad-metadata', `metadata "${clip(key)}" is empty`, lineNo);
     return value;
   }
   if (field === 'measuredAt') {
@@ -109,7 +137,7 @@ function parseMetaValue(field: MetaKey, raw: string, unitFromKey: string, lineNo
   const parsed = metaNumber(value, lineNo, key);
   const unit = parsed.unit || normUnit(unitFromKey).replace(/²/g, '2').replace(/^°|^deg/, '');
   const bad = (what: string): never => {
-    throw new IvInputError('bad-metadata', `metadata "${key}": ${what}, got "${raw.trim()}"`, lineNo);
+    throw new IvInputError('bad-metadata', `metadata "${clip(key)}": ${what}, got "${clip(raw.trim())}"`, lineNo);
   };
   switch (field) {
     case 'tempC': {
@@ -172,13 +200,13 @@ function readHeader(cells: string[], lineNo: number, notes: string[]) {
     const key = normName(name);
     const u = normUnit(unit);
     if (VOLTAGE_NAMES.has(key) && v < 0) {
-      if (!(u in VOLTAGE_UNITS)) throw new IvInputError('bad-unit', `column "${cell}": unknown voltage unit "${unit}" (use V or mV)`, lineNo);
+      if (!(u in VOLTAGE_UNITS)) throw new IvInputError('bad-unit', `column "${clip(cell)}": unknown voltage unit "${clip(unit)}" (use V or mV)`, lineNo);
       v = idx;
       vFactor = VOLTAGE_UNITS[u];
     } else if (CURRENT_NAMES.has(key) && i < 0) {
       if (!(u in CURRENT_UNITS)) {
         const density = u.includes('/');
-        throw new IvInputError('bad-unit', `column "${cell}": unknown current unit "${unit}"${density ? ' (a current density; give the current in A or mA)' : ' (use A or mA)'}`, lineNo);
+        throw new IvInputError('bad-unit', `column "${clip(cell)}": unknown current unit "${clip(unit)}"${density ? ' (a current density; give the current in A or mA)' : ' (use A or mA)'}`, lineNo);
       }
       i = idx;
       iFactor = CURRENT_UNITS[u];
@@ -187,10 +215,11 @@ function readHeader(cells: string[], lineNo: number, notes: string[]) {
       ignored.push(cell);
     }
   });
-  const shown = cells.map((c) => `"${c}"`).join(', ');
+  const SHOWN_CELLS = 8;
+  const shown = cells.slice(0, SHOWN_CELLS).map((c) => `"${clip(c, 40)}"`).join(', ') + (cells.length > SHOWN_CELLS ? ` and ${cells.length - SHOWN_CELLS} more` : '');
   if (v < 0) throw new IvInputError('no-voltage-column', `no voltage column in the header (${shown}); name it V, U, Voltage, voltage_V or Voltage (mV)`, lineNo);
   if (i < 0 && density) {
-    throw new IvInputError('bad-unit', `column "${density}" holds a current density; give the current in A or mA (a column named I or Current)`, lineNo);
+    throw new IvInputError('bad-unit', `column "${clip(density)}" holds a current density; give the current in A or mA (a column named I or Current)`, lineNo);
   }
   if (i < 0) throw new IvInputError('no-current-column', `no current column in the header (${shown}); name it I, Current, current_A or Current (mA)`, lineNo);
   if (ignored.length) notes.push(`columns not used: ${ignored.join(', ')}`);
@@ -250,7 +279,9 @@ export function parseIvText(text: string, opts: ParseOptions = {}): IvCurve {
 
   let header: ReturnType<typeof readHeader> | null = null;
   let sep: Separator = ',';
+  let named: Separator | null = null;
   let headerLine = 0;
+  let headerCells = 0;
   const rows: { v: number; i: number; line: number }[] = [];
   for (let idx = 0; idx < lines.length; idx++) {
     const lineNo = idx + 1;
@@ -261,13 +292,28 @@ export function parseIvText(text: string, opts: ParseOptions = {}): IvCurve {
       continue;
     }
     if (!header) {
-      sep = detectSeparator(line);
-      header = readHeader(splitRow(line, sep), lineNo, notes);
+      const excel = EXCEL_SEP_RE.exec(line.trim());
+      if (excel && !named) {
+        named = excel[1] === ' ' ? 'space' : (excel[1] as Separator);
+        continue;
+      }
+      sep = named ?? detectSeparator(line);
+      const headerRow = splitRow(line, sep);
+      header = readHeader(headerRow, lineNo, notes);
       headerLine = lineNo;
+      headerCells = headerRow.length;
       continue;
     }
     const cells = splitRow(line, sep);
     if (cells.every((c) => c === '')) continue;
+    // "0,512,0,760" under "V,I": decimal commas split every number in two, which would otherwise be read as other numbers.
+    if (sep === ',' && cells.length === 2 * headerCells && cells.every((c, k) => (k % 2 ? /^\d+$/ : /^[+-]?\d+$/).test(c))) {
+      throw new IvInputError(
+        'decimal-comma',
+        `"${clip(line)}" has ${cells.length} values under a header of ${headerCells} columns: these look like decimal commas in a comma-separated file. Write decimal points, or separate the columns with semicolons`,
+        lineNo,
+      );
+    }
     if (rows.length >= MAX_DATA_ROWS) throw new IvInputError('too-many-rows', `more than ${MAX_DATA_ROWS.toLocaleString('en-US')} data rows; split the file`, lineNo);
     const need = Math.max(header.v, header.i);
     if (cells.length <= need) {
