@@ -28,6 +28,20 @@ async function evOf(page: Page, testID: string): Promise<number> {
   return Number(m[1]);
 }
 
+/**
+ * Scrolls the screen's own ScrollView (not the document) so the element is at its top, the way a
+ * person's swipe does; Playwright's scrollIntoView would also move overflow-hidden ancestors.
+ */
+async function scrollTo(page: Page, testID: string): Promise<void> {
+  await page.evaluate((id) => {
+    const scroller = document.querySelector<HTMLElement>('[data-testid="physics-screen"]');
+    const el = document.querySelector<HTMLElement>(`[data-testid="${id}"]`);
+    if (!scroller || !el) throw new Error(`cannot scroll to ${id}`);
+    scroller.scrollTop += el.getBoundingClientRect().top - scroller.getBoundingClientRect().top - 8;
+  }, testID);
+  await page.waitForTimeout(150);
+}
+
 describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
   it('a designer opens Physics, changes the doping and sees the splitting change', async () => {
     const b = await openBrowser(viewport);
@@ -71,10 +85,14 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await b.page.getByTestId('doping-type-n').click();
       await b.page.getByTestId('doping-input').fill('1e20');
       await b.page.getByTestId('degenerate').waitFor({ timeout: 20_000 });
-      await b.page.getByTestId('band-card').scrollIntoViewIfNeeded();
+      await scrollTo(b.page, 'band-card');
       expect(await layoutProblems(b.page)).toEqual([]);
       await screenshot(b.page, `physics-band-${vpName}`);
-      await b.page.getByTestId('ni-card').scrollIntoViewIfNeeded();
+      await scrollTo(b.page, 'occupation-card');
+      expect(await layoutProblems(b.page)).toEqual([]);
+      await screenshot(b.page, `physics-occupation-${vpName}`);
+      await scrollTo(b.page, 'ni-card');
+      expect(await layoutProblems(b.page)).toEqual([]);
       await screenshot(b.page, `physics-ni-${vpName}`);
     } finally {
       await b.close();
@@ -105,7 +123,8 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       expect(await layoutProblems(b.page)).toEqual([]);
       await screenshot(b.page, `physics-curve-${vpName}`);
 
-      await b.page.getByTestId('voc-temperature-chart').scrollIntoViewIfNeeded();
+      await scrollTo(b.page, 'voc-temperature-chart');
+      expect(await layoutProblems(b.page)).toEqual([]);
       await screenshot(b.page, `physics-voc-${vpName}`);
 
       // Translate the module to 50 °C by its fitted model: less power than at STC.
@@ -115,7 +134,7 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await b.page.locator('[data-testid="translate-chart"] svg').first().waitFor();
       // The demo curve was measured at 25 °C: 25 K warmer costs power (sign only; the API test has numbers).
       expect(await b.page.getByTestId('translated-pmp_w').innerText()).toMatch(/measured [\d.]+ W \(−\d+\.\d %\)/);
-      await b.page.getByTestId('translate-result').scrollIntoViewIfNeeded();
+      await scrollTo(b.page, 'translate-result');
       expect(await layoutProblems(b.page)).toEqual([]);
       await screenshot(b.page, `physics-translate-${vpName}`);
     } finally {

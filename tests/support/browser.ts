@@ -67,7 +67,38 @@ export async function layoutProblems(page: Page): Promise<string[]> {
       if (!clippedByDesign && el.scrollWidth > el.clientWidth + 2 && style.overflow !== 'visible') problems.push(`text cut: "${el.textContent.slice(0, 40)}"`);
       if (r.right > vw + 1 && !el.closest('[data-scroll-x]') && !isInHorizontalScroller(el)) problems.push(`off-screen: "${el.textContent.slice(0, 40)}" right=${Math.round(r.right)}`);
     }
+    // Text boxes that overlap one another (neither inside the other): what a squashed flex item does.
+    const boxes = Array.from(document.querySelectorAll<HTMLElement>('[dir="auto"]'))
+      .filter((el) => el.textContent?.trim() && !el.querySelector('[dir="auto"]'))
+      .map((el) => ({ el, r: visibleRect(el) }))
+      .filter((b) => b.r.width > 0 && b.r.height > 0 && getComputedStyle(b.el).visibility !== 'hidden');
+    for (let a = 0; a < boxes.length; a++) {
+      for (let b = a + 1; b < boxes.length; b++) {
+        const p = boxes[a].r;
+        const q = boxes[b].r;
+        const dx = Math.min(p.right, q.right) - Math.max(p.left, q.left);
+        const dy = Math.min(p.bottom, q.bottom) - Math.max(p.top, q.top);
+        if (dx > 3 && dy > 3 && !boxes[a].el.contains(boxes[b].el) && !boxes[b].el.contains(boxes[a].el)) {
+          problems.push(`overlap: "${boxes[a].el.textContent!.slice(0, 30)}" / "${boxes[b].el.textContent!.slice(0, 30)}"`);
+        }
+      }
+    }
     return problems;
+    /** The part of an element not clipped away by a scrolling or overflow-hidden ancestor. */
+    function visibleRect(node: HTMLElement) {
+      let { left, top, right, bottom } = node.getBoundingClientRect();
+      for (let p = node.parentElement; p; p = p.parentElement) {
+        const st = getComputedStyle(p);
+        if (st.overflowX !== 'visible' || st.overflowY !== 'visible') {
+          const c = p.getBoundingClientRect();
+          left = Math.max(left, c.left);
+          top = Math.max(top, c.top);
+          right = Math.min(right, c.right);
+          bottom = Math.min(bottom, c.bottom);
+        }
+      }
+      return { left, top, right, bottom, width: Math.max(0, right - left), height: Math.max(0, bottom - top) };
+    }
     function isInHorizontalScroller(node: HTMLElement): boolean {
       for (let p = node.parentElement; p; p = p.parentElement) {
         const s = getComputedStyle(p);

@@ -46,10 +46,10 @@ const PARAMS: Record<string, [string, string][]> = {
   'double-diode': [['iph_a', 'Iph'], ['i01_a', 'I01'], ['n1', 'n1'], ['i02_a', 'I02'], ['n2', 'n2'], ['rs_ohm', 'Rs'], ['rsh_ohm', 'Rsh']],
 };
 
-function FitColumn({ f }: { f: FitJson }) {
+function FitColumn({ f, wide }: { f: FitJson; wide: boolean }) {
   const title = f.model === 'single-diode' ? 'Single diode' : `Double diode${f.stderr?.n1 === null && f.stderr?.n2 === null ? ' (n1 = 1, n2 = 2)' : ''}`;
   return (
-    <View style={styles.fitCol} testID={`fit-${f.model}`}>
+    <View style={[styles.fitCol, wide && { flex: 1 }]} testID={`fit-${f.model}`}>
       <Txt variant="heading">{title}</Txt>
       {!f.converged ? (
         <Txt variant="body" style={{ color: theme.color.danger }}>Did not converge: {f.message}</Txt>
@@ -159,8 +159,8 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
 
       <Card title="Single diode or double diode?" testID="fit-comparison">
         <View style={[{ gap: 16 }, wide && { flexDirection: 'row' }]}>
-          {single ? <FitColumn f={single} /> : null}
-          {double ? <FitColumn f={double} /> : null}
+          {single ? <FitColumn f={single} wide={wide} /> : null}
+          {double ? <FitColumn f={double} wide={wide} /> : null}
         </View>
         {comparison ? (
           <Txt variant="body" testID="fit-verdict">{comparison.sentence}</Txt>
@@ -216,6 +216,7 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
 const styles = StyleSheet.create({
   figures: { flexDirection: 'row', flexWrap: 'wrap', gap: 14, backgroundColor: theme.color.surface, borderRadius: theme.radius.l, borderWidth: 1, borderColor: theme.color.line, padding: 16 },
   figuresPlain: { flexDirection: 'row', flexWrap: 'wrap', gap: 14 },
-  fitCol: { flex: 1, minWidth: 260, gap: 6 },
+  // flex: 1 only side by side: in a column it would squash the height and let the verdict overlap.
+  fitCol: { minWidth: 260, gap: 6 },
   paramRow: { flexDirection: 'row', alignItems: 'baseline', gap: 8, borderBottomWidth: 1, borderBottomColor: theme.color.sunken, paddingVertical: 3 },
 });
