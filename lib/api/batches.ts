@@ -124,7 +124,8 @@ export function useRefit(id: string) {
     mutationFn: (input: RefitInput) => apiFetch<CurveDetail>(`/api/curves/${encodeURIComponent(id)}/refit`, { body: input as Record<string, unknown> }),
     onSuccess: async (data) => {
       qc.setQueryData(curveKeys.detail(id), (old: CurveDetail | undefined) => (old ? { ...data, batch: old.batch } : old));
-      await qc.invalidateQueries({ queryKey: batchKeys.all });
+      // The physics of this curve (J0, Voc vs T) follow the new fit; key literal to keep lib/api files independent.
+      await Promise.all([qc.invalidateQueries({ queryKey: batchKeys.all }), qc.invalidateQueries({ queryKey: ['physics', 'curve', id] })]);
     },
   });
 }

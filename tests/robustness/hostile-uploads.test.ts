@@ -128,19 +128,20 @@ describe('odd requests rather than odd files', () => {
     expect(res.body).toEqual({ code: 'file_too_large', message: expect.stringMatching(/10 MB limit; nothing was stored/) });
   });
 
-  it.each([
-    ['no file at all', (a: typeof tester) => a.post(`/api/batches/${batchId}/curves`).field('tempC', '25'), 400, 'no_files', /No files were sent/],
-    ['the file in another form field', (a: typeof tester) => a.post(`/api/batches/${batchId}/curves`).attach('file', Buffer.from('V,I\n'), 'x.csv'), 400, 'wrong_field', /form field "files" \(got "file"\)/],
-    ['a JSON body instead of a form', (a: typeof tester) => a.post(`/api/batches/${batchId}/curves`).send({ files: ['V,I'] }), 400, 'no_files', /No files were sent/],
+  type Send = (a: typeof tester) => ReturnType<typeof tester.post>;
+  it.each<[string, number, string, RegExp, Send]>([
+    ['no file at all', 400, 'no_files', /No files were sent/, (a) => a.post(`/api/batches/${batchId}/curves`).field('tempC', '25')],
+    ['the file in another form field', 400, 'wrong_field', /form field "files" \(got "file"\)/, (a) => a.post(`/api/batches/${batchId}/curves`).attach('file', Buffer.from('V,I\n'), 'x.csv')],
+    ['a JSON body instead of a form', 400, 'no_files', /No files were sent/, (a) => a.post(`/api/batches/${batchId}/curves`).send({ files: ['V,I'] })],
     [
       'a multipart body that is cut off',
-      (a: typeof tester) => a.post(`/api/batches/${batchId}/curves`).set('Content-Type', 'multipart/form-data; boundary=XYZ').send('--XYZ\r\nContent-Disposition: form-data; name="files"; filename="cut.csv"\r\n\r\nV,I\n0,1\n'),
       400,
       'bad_upload',
       /could not be read as a multipart form/,
+      (a) => a.post(`/api/batches/${batchId}/curves`).set('Content-Type', 'multipart/form-data; boundary=XYZ').send('--XYZ\r\nContent-Disposition: form-data; name="files"; filename="cut.csv"\r\n\r\nV,I\n0,1\n'),
     ],
-    ['a temperature override that is not a number', (a: typeof tester) => a.post(`/api/batches/${batchId}/curves`).field('tempC', 'warm').attach('files', plain(), 'override.csv'), 400, 'invalid_input', /tempC/],
-  ] as const)('%s → %i %s', async (_name, send, status, code, message) => {
+    ['a temperature override that is not a number', 400, 'invalid_input', /tempC/, (a) => a.post(`/api/batches/${batchId}/curves`).field('tempC', 'warm').attach('files', plain(), 'override.csv')],
+  ])('%s → %i %s', async (_name, status, code, message, send) => {
     const res = await send(tester);
     expect(res.status).toBe(status);
     expect(res.body.code).toBe(code);
