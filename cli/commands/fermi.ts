@@ -10,7 +10,7 @@ import {
   requiredNumber,
   usageErrorOutput,
   usageText,
-} from '@/lib/physics/command-line';
+} from '@/cli/command-line';
 import { boltzmannHalf, ETA_RANGE, fermiHalf } from '@/lib/physics/fermi-dirac';
 
 export const summary = 'Fermi–Dirac integral F½(η) and its Boltzmann limit e^η';

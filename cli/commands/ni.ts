@@ -10,7 +10,7 @@ import {
   requiredNumber,
   usageErrorOutput,
   usageText,
-} from '@/lib/physics/command-line';
+} from '@/cli/command-line';
 import { materialAt, SILICON } from '@/lib/physics/materials';
 
 export const summary = 'silicon n_i, Eg, Nc and Nv at a temperature (K)';

@@ -13,7 +13,7 @@ import {
   UsageError,
   usageErrorOutput,
   usageText,
-} from '@/lib/physics/command-line';
+} from '@/cli/command-line';
 import { quasiFermiLevels } from '@/lib/physics/carriers';
 import type { DopingType, InjectionInput } from '@/lib/physics/carriers';
 

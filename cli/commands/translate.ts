@@ -15,7 +15,7 @@ import {
   UsageError,
   usageErrorOutput,
   usageText,
-} from '@/lib/physics/command-line';
+} from '@/cli/command-line';
 import { translateCurve } from '@/lib/physics/translate';
 import type { Conditions, TranslationRequest, TranslationResult } from '@/lib/physics/translate';
 import type { I0Law } from '@/lib/physics/fit-physics';
