@@ -101,37 +101,37 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
                 );
               }}
             </QueryState>
-            {canSubmit || canDecide ? (
-              <View style={{ gap: 8 }}>
-                <TextInput
-                  value={comment}
-                  onChangeText={setComment}
-                  placeholder={canDecide ? 'Comment (needed to hold)' : 'Note for the QA lead (optional)'}
-                  placeholderTextColor={theme.color.muted}
-                  style={styles.input}
-                  multiline
-                  accessibilityLabel="Comment"
-                  testID="review-comment"
-                />
-                <FormError error={submit.error ?? decide.error} />
-                <View style={{ flexDirection: 'row', gap: 8, flexWrap: 'wrap' }}>
-                  {canSubmit ? <Button label="Submit for review" onPress={() => submit.mutate(comment, { onSuccess: () => setComment('') })} busy={submit.isPending} testID="submit-review" /> : null}
-                  {canDecide ? (
-                    <>
-                      <Button label="Release" onPress={() => decide.mutate({ decision: 'release', specId, comment }, { onSuccess: () => setComment('') })} busy={decide.isPending} disabled={!specId} testID="release" />
-                      <Button label="Hold" kind="danger" onPress={() => decide.mutate({ decision: 'hold', specId, comment }, { onSuccess: () => setComment('') })} busy={decide.isPending} disabled={!specId} testID="hold" />
-                    </>
-                  ) : null}
-                </View>
-              </View>
-            ) : b.state === 'in_review' ? (
-              <Txt variant="caption">Waiting for a QA lead’s decision.</Txt>
-            ) : b.state === 'released' ? (
-              <Txt variant="caption">Released batches are read-only.</Txt>
-            ) : null}
           </View>
         )}
       </QueryState>
+      {canSubmit || canDecide ? (
+        <View style={{ gap: 8 }}>
+          <TextInput
+            value={comment}
+            onChangeText={setComment}
+            placeholder={canDecide ? 'Comment (needed to hold)' : 'Note for the QA lead (optional)'}
+            placeholderTextColor={theme.color.muted}
+            style={styles.input}
+            multiline
+            accessibilityLabel="Comment"
+            testID="review-comment"
+          />
+          <FormError error={submit.error ?? decide.error} />
+          <View style={{ flexDirection: 'row', gap: 8, flexWrap: 'wrap' }}>
+            {canSubmit ? <Button label="Submit for review" onPress={() => submit.mutate(comment, { onSuccess: () => setComment('') })} busy={submit.isPending} testID="submit-review" /> : null}
+            {canDecide ? (
+              <>
+                <Button label="Release" onPress={() => decide.mutate({ decision: 'release', specId, comment }, { onSuccess: () => setComment('') })} busy={decide.isPending} disabled={!specId} testID="release" />
+                <Button label="Hold" kind="danger" onPress={() => decide.mutate({ decision: 'hold', specId, comment }, { onSuccess: () => setComment('') })} busy={decide.isPending} disabled={!specId} testID="hold" />
+              </>
+            ) : null}
+          </View>
+        </View>
+      ) : b.state === 'in_review' ? (
+        <Txt variant="caption">Waiting for a QA lead’s decision.</Txt>
+      ) : b.state === 'released' ? (
+        <Txt variant="caption">Released batches are read-only.</Txt>
+      ) : null}
       <QueryState query={reviews} isEmpty={(d) => d.reviews.length === 0} empty="No review yet.">
         {(d) => (
           <View style={{ gap: 4 }} testID="review-record">

@@ -62,8 +62,18 @@ function detectSeparator(line: string): Separator {
 }
 
 function splitRow(line: string, sep: Separator): string[] {
-  const cells = sep === 'space' ? line.trim().split(/\s+/) : splitOutsideQuotes(line, sep);
+  const cells = sep === 'space' ? splitWhitespace(line) : splitOutsideQuotes(line, sep);
   return cells.map((c) => c.trim().replace(/^"(.*)"$/, '$1').trim());
+}
+
+/** Splits on runs of whitespace, keeping a unit in brackets with its name: "Voltage (mV)   Current [A]". */
+function splitWhitespace(line: string): string[] {
+  const cells: string[] = [];
+  for (const token of line.trim().split(/\s+/)) {
+    if (/^[([]/.test(token) && cells.length) cells[cells.length - 1] += ` ${token}`;
+    else cells.push(token);
+  }
+  return cells;
 }
 
 /** Splits on `sep` outside double quotes (RFC 4180), so a quoted "0,512" or "1,234.5" stays one cell. */
@@ -306,11 +316,12 @@ export function parseIvText(text: string, opts: ParseOptions = {}): IvCurve {
     }
     const cells = splitRow(line, sep);
     if (cells.every((c) => c === '')) continue;
-    // "0,512,0,760" under "V,I": decimal commas split every number in two, which would otherwise be read as other numbers.
-    if (sep === ',' && cells.length === 2 * headerCells && cells.every((c, k) => (k % 2 ? /^\d+$/ : /^[+-]?\d+$/).test(c))) {
+    // "0,512" in a comma-separated file splits into two numbers that would be read as other values.
+    const filled = sep === ',' ? cells.reduce((n, c) => n + (c === '' ? 0 : 1), 0) : 0;
+    if (filled > headerCells) {
       throw new IvInputError(
-        'decimal-comma',
-        `"${clip(line)}" has ${cells.length} values under a header of ${headerCells} columns: these look like decimal commas in a comma-separated file. Write decimal points, or separate the columns with semicolons`,
+        'extra-values',
+        `${filled.toLocaleString('en-US')} values under the ${headerCells} columns of the header on line ${headerLine}: a decimal comma in a comma-separated file splits a number in two. Write decimal points or separate the columns with semicolons (or name every column in the header)`,
         lineNo,
       );
     }

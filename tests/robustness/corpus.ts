@@ -119,7 +119,8 @@ export function buildCorpus(): CorpusEntry[] {
   add('mixed units: current density column', 'density.csv', csv('Voltage (V),Current (mA/cm2)'), reject(/current density/i));
   add('unknown voltage unit', 'furlongs.csv', csv('Voltage (furlongs),Current (A)'), reject(/unknown voltage unit "furlongs"/));
   add('decimal commas in a comma-separated file, quoted', 'comma-quoted.csv', csv('V,I', (v, i) => `"${String(v).replace('.', ',')}","${String(i).replace('.', ',')}"`), reject(/line 2: the current value "0,760\d*" is not a number \(decimal commas are accepted only in semicolon-separated files\)/));
-  add('decimal commas in a comma-separated file, unquoted', 'comma-bare.csv', csv('V,I', (v, i) => `${v.toFixed(4).replace('.', ',')},${i.toFixed(4).replace('.', ',')}`), reject(/line 2: .* decimal commas in a comma-separated file/));
+  add('decimal commas in a comma-separated file, unquoted', 'comma-bare.csv', csv('V,I', (v, i) => `${v.toFixed(4).replace('.', ',')},${i.toFixed(4).replace('.', ',')}`), reject(/line 2: 4 values under the 2 columns of the header on line 1: a decimal comma in a comma-separated file splits a number in two/));
+  add('one decimal comma among decimal points', 'one-comma.csv', withRow(7, `${V[7]},${String(I[7]).replace('.', ',')}`), reject(/line 9: 3 values under the 2 columns .* decimal comma/));
   add('thousands separators (quoted) in µV', 'thousands.csv', csv('Voltage (uV),Current (A)', (v, i) => `"${(v * 1e6).toLocaleString('en-US', { maximumFractionDigits: 1 })}",${i}`), reject(/the voltage value "\d{1,3},\d{3}(\.\d)?" is not a number/));
 
   // ---- Curves that are not I-V curves of a lit device
@@ -138,6 +139,7 @@ export function buildCorpus(): CorpusEntry[] {
 
   // ---- Very long lines
   add('a 1 MB header line of unknown columns', 'wide-header.csv', 'x'.repeat(40) + `,col`.repeat(250_000) + '\n' + good, reject(/no voltage column/i));
+  add('a 1 MB data line of unnamed values', 'wide-row.csv', withRow(20, `${V[20]},${I[20]}` + ',0'.repeat(500_000)), reject(/line 22: 500,002 values under the 2 columns/));
   add('a 1 MB number in one cell', 'long-number.csv', withRow(3, `${V[3]},0.${'7'.repeat(1_000_000)}x`), reject(/line 5: the current value .* is not a number/));
 
   // ---- Odd but readable: must be stored
@@ -149,6 +151,7 @@ export function buildCorpus(): CorpusEntry[] {
   add('mixed line ends', 'mixed-eol.csv', ['V,I', ...rows((v, i) => `${v},${i}`)].map((l, k) => l + (k % 2 ? '\r\n' : '\n')).join(''), accept('mixed-eol'));
   add('tab-separated', 'tabs.tsv', csv('Voltage\tCurrent', (v, i) => `${v}\t${i}`), accept('tabs'));
   add('whitespace-separated with runs of spaces', 'spaces.txt', csv('voltage   current', (v, i) => `  ${v}     ${i}  `), accept('spaces'));
+  add('whitespace-separated, units in brackets after a space', 'spaces-units.txt', csv('Voltage (mV)   Current [mA]', (v, i) => `${v * 1000}   ${i * 1000}`), accept('spaces-units'));
   add('semicolons with decimal commas, mV and mA', 'eu.csv', csv('Spannung;Voltage (mV);Current (mA)', (v, i) => `x;${(v * 1000).toFixed(3).replace('.', ',')};${(i * 1000).toFixed(3).replace('.', ',')}`), accept('eu'));
   add('load convention (current negative while delivering power)', 'load.csv', csv('V,I', (v, i) => `${v},${-i}`), accept('load'));
   add('descending sweep', 'descending.csv', ['V,I', ...rows((v, i) => `${v},${i}`).reverse()].join('\n'), accept('descending'));
@@ -160,7 +163,6 @@ export function buildCorpus(): CorpusEntry[] {
   add('exponent notation and explicit plus signs', 'exp.csv', csv('V,I', (v, i) => `+${v.toExponential(5)},${i >= 0 ? '+' : ''}${i.toExponential(5)}`), accept('exp'));
   add('comments and blank lines among the data', 'comments-inside.csv', ['V,I', ...rows((v, i) => `${v},${i}`).flatMap((r, k) => (k % 10 === 5 ? [r, '', '# pause'] : [r]))].join('\n'), accept('comments-inside'));
   add('extra columns, swapped order', 'extra.csv', csv('t_s,Current (A),T,Voltage (V),P', (v, i, k) => `${k * 0.01},${i},33.0,${v},${v * i}`), accept('extra'));
-  add('a 1 MB data line of extra columns', 'wide-row.csv', withRow(20, `${V[20]},${I[20]}` + ',0'.repeat(500_000), 'V,I'), accept('wide-row'));
   add('formula-like device id =HYPERLINK(...)', 'hyperlink.csv', '# device: =HYPERLINK("http://evil.example/x","click")\n' + good, accept('=HYPERLINK("http://evil.example/x","click")'));
   add('formula-like device id starting with +', 'plus-id.csv', "# device: +cmd|' /C calc'!A0\n" + good, accept("+cmd|' /C calc'!A0"));
   add('formula-like device id starting with @', 'at-id.csv', '# device: @SUM(1+1)*cmd\n' + good, accept('@SUM(1+1)*cmd'));

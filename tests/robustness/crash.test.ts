@@ -10,6 +10,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { eq, sql } from 'drizzle-orm';
 import { api, createBatch, signIn, uploadFiles } from '@/bench/api-client';
+import { isAlive, signalTree } from '@/bench/process-tree';
 import type { Session } from '@/bench/api-client';
 import { SYNTHETIC_POINTS, syntheticFiles } from '@/bench/synthetic-files';
 import type { SyntheticFile } from '@/bench/synthetic-files';
@@ -49,14 +50,26 @@ beforeAll(() => {
   files = syntheticFiles(UPLOAD_FILES, { prefix: 'CRASH', seed: 8_003 });
 });
 
+const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
+
+/**
+ * SIGKILL to the real server: `tsx` runs it in a grandchild process, so the whole tree is signalled
+ * (a SIGKILL to the tsx wrapper alone would leave the server running). Returns the ids killed.
+ */
+async function killServer(s: ServerProcess): Promise<number[]> {
+  const pids = s.child.pid ? signalTree(s.child.pid, 'SIGKILL') : [];
+  await s.stop({ kill: true, keepData: true });
+  // A killed grandchild lingers until init reaps it.
+  for (let k = 0; k < 50 && pids.some(isAlive); k++) await sleep(100);
+  return pids;
+}
+
 afterAll(async () => {
   // Clean up even when a test failed half-way: no server left running, no data folder left behind.
-  if (server) await server.stop({ kill: true, keepData: true }).catch(() => undefined);
+  if (server) await killServer(server).catch(() => undefined);
   server = null;
   rmSync(dataDir, { recursive: true, force: true });
 });
-
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
 /** Opens `<dataDir>/db` in this process (the server must be stopped), runs `fn`, closes it. */
 async function withDirectDb<T>(fn: (d: Awaited<ReturnType<typeof openDatabase>>) => Promise<T>): Promise<T> {
@@ -87,9 +100,10 @@ describe('crash safety', () => {
       if (Date.now() > deadline) throw new Error(`only ${storedBeforeKill} curves stored after 180 s`);
       await sleep(50);
     }
-    const exitCode = await server.stop({ kill: true, keepData: true });
+    const killed = await killServer(server);
     server = null;
-    expect(exitCode).toBeNull(); // killed by a signal, not exited
+    expect(killed.length).toBeGreaterThanOrEqual(2); // the tsx wrapper and the server under it
+    expect(killed.filter(isAlive)).toEqual([]);
     const outcome = await upload;
     // The upload must really have been cut off: the request fails instead of answering 201.
     expect(outcome.ok).toBe(false);

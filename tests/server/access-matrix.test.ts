@@ -1,0 +1,241 @@
+/**
+ * The access matrix: every API route × {signed out, test_engineer, designer, qa_lead, admin, a
+ * member of another organisation}. Each route is listed with the permission it needs; the
+ * expected status of each cell is derived from the role table (lib/auth/roles.ts, through `can`),
+ * so the table and this test cannot drift apart silently. The routes are also found by walking
+ * the Express app: a route added without an entry here fails the test.
+ *
+ * Rules checked (server/permissions.ts): no session → 401; a role without the permission → 403
+ * naming it; a record of another organisation → 404 (never 403, so ids leak nothing); requests
+ * that name no record answer the other organisation about its own data only.
+ */
+import { eq } from 'drizzle-orm';
+import type { Express } from 'express';
+import { batch, member, organization, user } from '@/db/schema';
+import { seedDemoBatches } from '@/db/seed';
+import { analyseFile } from '@/lib/analysis/analyse-file';
+import type { FileAnalysis } from '@/lib/analysis/analyse-file';
+import { can, ROLE_PERMISSIONS, ROLES } from '@/lib/auth/roles';
+import type { Permission, Role } from '@/lib/auth/roles';
+import { simulateCurve } from '@/lib/iv';
+import { storeCurve } from '@/server/services/curves';
+import { agentFor, signUp, startHarness } from '@/tests/server/harness';
+import type { Harness } from '@/tests/server/harness';
+
+type Agent = ReturnType<typeof agentFor>;
+type Method = 'GET' | 'POST' | 'PATCH';
+type Who = 'signed_out' | Role | 'other_org';
+const WHO: Who[] = ['signed_out', ...ROLES, 'other_org'];
+
+/** One request of a matrix cell; built fresh per cell so state-changing routes find the state they need. */
+type Req = { url: string; body?: Record<string, unknown>; file?: { name: string; bytes: Buffer } };
+
+type RouteCase = {
+  method: Method;
+  /** The route as Express knows it (mount path + router path). */
+  path: string;
+  /** 'public': no session; 'session': any member; else the permission from lib/auth/roles.ts. */
+  need: 'public' | 'session' | Permission;
+  /** Status of an allowed, valid request. */
+  ok: 200 | 201;
+  /**
+   * A member of another organisation: 'not_found' when the request names one of our records
+   * (404), 'own' when it names none and the route answers about their organisation (ok status,
+   * nothing of ours in the body).
+   */
+  foreign: 'not_found' | 'own';
+  build: () => Promise<Req>;
+};
+
+const ORG = 'matrix-pv.example';
+const OTHER = 'other-org.example';
+
+let h: Harness;
+const agents = {} as Record<Role, Agent>;
+const outsiders = {} as Record<'admin' | 'qa_lead', Agent>;
+const ids = { batch: '', curve: '', spec: '', specFamily: '', spareUser: '', org: '', engineer: '' };
+/** Strings that must never appear in an answer to the other organisation. */
+let ours: string[] = [];
+let analysis: FileAnalysis;
+
+async function setRole(email: string, role: Role) {
+  const [u] = await h.database.db.select().from(user).where(eq(user.email, email));
+  await h.database.db.update(member).set({ role }).where(eq(member.userId, u.id));
+  return u.id;
+}
+
+/** A batch of our organisation in `state` with one fitted curve, stored the way an upload stores it. */
+async function freshBatch(state: 'open' | 'in_review'): Promise<{ batchId: string; curveId: string }> {
+  const batchId = crypto.randomUUID();
+  await h.database.db.insert(batch).values({ id: batchId, organizationId: ids.org, name: `matrix ${state}`, cells: 1, state, createdBy: ids.engineer });
+  const curveId = await storeCurve(h.database.db, { organizationId: ids.org, batchId, fileName: 'matrix.csv', analysis, userId: ids.engineer });
+  ours.push(batchId, curveId);
+  return { batchId, curveId };
+}
+
+/** The benchmark cell simulated from its published optimum (../shared/reference-data/README.md), as a CSV file. */
+const cellCsv = (() => {
+  const c = simulateCurve({ iph_a: 0.760788, i0_a: 3.1068e-7, n: 1.47727, rs_ohm: 0.036547, rsh_ohm: 52.89 }, { cells: 1, tempC: 33, points: 30 });
+  return Buffer.from(['# cell temperature: 33', 'V,I', ...c.voltage_V.map((v, k) => `${v},${c.current_A[k]}`)].join('\n'));
+})();
+
+const ROUTES: RouteCase[] = [
+  { method: 'GET', path: '/api/health', need: 'public', ok: 200, foreign: 'own', build: async () => ({ url: '/api/health' }) },
+  { method: 'GET', path: '/api/me', need: 'session', ok: 200, foreign: 'own', build: async () => ({ url: '/api/me' }) },
+  { method: 'GET', path: '/api/users', need: 'users:manage', ok: 200, foreign: 'own', build: async () => ({ url: '/api/users' }) },
+  { method: 'PATCH', path: '/api/users/:id/role', need: 'users:manage', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/users/${ids.spareUser}/role`, body: { role: 'designer' } }) },
+  { method: 'GET', path: '/api/outbox', need: 'outbox:read', ok: 200, foreign: 'own', build: async () => ({ url: '/api/outbox' }) },
+  { method: 'GET', path: '/api/batches', need: 'batch:read', ok: 200, foreign: 'own', build: async () => ({ url: '/api/batches' }) },
+  { method: 'POST', path: '/api/batches', need: 'batch:write', ok: 201, foreign: 'own', build: async () => ({ url: '/api/batches', body: { name: 'Matrix batch', cells: 1 } }) },
+  { method: 'GET', path: '/api/batches/:id', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}` }) },
+  { method: 'PATCH', path: '/api/batches/:id', need: 'batch:write', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${(await freshBatch('open')).batchId}`, body: { description: 'matrix check' } }) },
+  {
+    method: 'POST',
+    path: '/api/batches/:id/curves',
+    need: 'batch:write',
+    ok: 201,
+    foreign: 'not_found',
+    build: async () => ({ url: `/api/batches/${(await freshBatch('open')).batchId}/curves`, file: { name: 'matrix-upload.csv', bytes: cellCsv } }),
+  },
+  { method: 'GET', path: '/api/batches/:id/curves', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/curves` }) },
+  { method: 'GET', path: '/api/batches/:id/overlay', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/overlay` }) },
+  { method: 'GET', path: '/api/batches/:id/evaluation', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/evaluation?spec=${ids.spec}` }) },
+  { method: 'GET', path: '/api/batches/:id/pass-fail.csv', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/pass-fail.csv?spec=${ids.spec}` }) },
+  { method: 'GET', path: '/api/batches/:id/reviews', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/reviews` }) },
+  { method: 'POST', path: '/api/batches/:id/submit', need: 'batch:submit', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${(await freshBatch('open')).batchId}/submit`, body: { comment: 'matrix' } }) },
+  {
+    method: 'POST',
+    path: '/api/batches/:id/decision',
+    need: 'release:decide',
+    ok: 200,
+    foreign: 'not_found',
+    build: async () => ({ url: `/api/batches/${(await freshBatch('in_review')).batchId}/decision`, body: { decision: 'hold', specId: ids.spec, comment: 'matrix check' } }),
+  },
+  { method: 'GET', path: '/api/specs', need: 'spec:read', ok: 200, foreign: 'own', build: async () => ({ url: '/api/specs' }) },
+  { method: 'GET', path: '/api/specs/:id', need: 'spec:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/specs/${ids.spec}` }) },
+  // A new version of our spec (familyId): the other organisation's QA lead must get 404, not a version of it.
+  { method: 'POST', path: '/api/specs', need: 'spec:write', ok: 201, foreign: 'not_found', build: async () => ({ url: '/api/specs', body: { name: 'Matrix spec', limits: { pmp_w: { min: 0 } }, familyId: ids.specFamily } }) },
+  { method: 'GET', path: '/api/compare', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/compare?batches=${ids.batch}&param=pmp_w` }) },
+  { method: 'GET', path: '/api/curves/:id', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/curves/${ids.curve}` }) },
+  { method: 'POST', path: '/api/curves/:id/refit', need: 'batch:write', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/curves/${(await freshBatch('open')).curveId}/refit`, body: { model: 'single' } }) },
+  { method: 'GET', path: '/api/physics/material', need: 'physics:use', ok: 200, foreign: 'own', build: async () => ({ url: '/api/physics/material?tempK=300' }) },
+  { method: 'POST', path: '/api/physics/band-diagram', need: 'physics:use', ok: 200, foreign: 'own', build: async () => ({ url: '/api/physics/band-diagram', body: { type: 'p', doping_cm3: 1e16, excess_cm3: 1e14, tempK: 300 } }) },
+  { method: 'GET', path: '/api/physics/curves/:id', need: 'physics:use', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/physics/curves/${ids.curve}` }) },
+  {
+    method: 'POST',
+    path: '/api/physics/curves/:id/translate',
+    need: 'physics:use',
+    ok: 200,
+    foreign: 'not_found',
+    build: async () => ({ url: `/api/physics/curves/${ids.curve}/translate`, body: { method: 'model', to: { irradiance_Wm2: 1000, tempC: 25 } } }),
+  },
+  { method: 'POST', path: '/api/strings/size', need: 'physics:use', ok: 200, foreign: 'not_found', build: async () => ({ url: '/api/strings/size', body: { batchId: ids.batch, tMin_C: -10, vSys_V: 1000 } }) },
+];
+
+/** The status a cell must answer, from the route's entry and the role table. */
+function expectedStatus(route: RouteCase, who: Who): number {
+  if (route.need === 'public') return route.ok;
+  if (who === 'signed_out') return 401;
+  if (who === 'other_org') return route.foreign === 'not_found' ? 404 : route.ok;
+  if (route.need === 'session') return route.ok;
+  return can(who, route.need) ? route.ok : 403;
+}
+
+/** The other organisation's member who holds the route's permission (QA lead, else admin). */
+function outsiderFor(route: RouteCase): Agent {
+  if (route.need === 'public' || route.need === 'session' || can('qa_lead', route.need)) return outsiders.qa_lead;
+  if (can('admin', route.need)) return outsiders.admin;
+  throw new Error(`no role holds ${route.need}`);
+}
+
+async function send(agent: Agent, method: Method, req: Req) {
+  const m = method === 'GET' ? agent.get(req.url) : method === 'POST' ? agent.post(req.url) : agent.patch(req.url);
+  if (req.file) return m.attach('files', req.file.bytes, req.file.name);
+  return req.body ? m.send(req.body) : m;
+}
+
+type Layer = { rawPath?: unknown; route?: { path: string; methods: Record<string, boolean> }; handle?: { stack?: Layer[] } };
+
+/** Method + path of every route the app registers, walking nested routers (Express 5 / router 2). */
+function walkRoutes(app: Express): string[] {
+  const found: string[] = [];
+  const visit = (stack: Layer[], prefix: string) => {
+    for (const layer of stack) {
+      const here = typeof layer.rawPath === 'string' && layer.rawPath !== '/' ? layer.rawPath : '';
+      if (layer.route) {
+        const full = (prefix + layer.route.path).replace(/(.)\/$/, '$1');
+        for (const m of Object.keys(layer.route.methods)) found.push(`${m.toUpperCase()} ${full}`);
+      } else if (layer.handle?.stack) {
+        visit(layer.handle.stack, prefix + here);
+      }
+    }
+  };
+  visit((app as unknown as { router: { stack: Layer[] } }).router.stack, '');
+  return found;
+}
+
+beforeAll(async () => {
+  h = await startHarness();
+  agents.admin = await signUp(h.app, { email: `admin@${ORG}` });
+  agents.test_engineer = await signUp(h.app, { email: `tester@${ORG}` });
+  agents.designer = await signUp(h.app, { email: `designer@${ORG}` });
+  agents.qa_lead = await signUp(h.app, { email: `qa@${ORG}` });
+  await signUp(h.app, { email: `spare@${ORG}` });
+  await setRole(`designer@${ORG}`, 'designer');
+  await setRole(`qa@${ORG}`, 'qa_lead');
+  ids.spareUser = await setRole(`spare@${ORG}`, 'designer');
+  ids.engineer = (await h.database.db.select().from(user).where(eq(user.email, `tester@${ORG}`)))[0].id;
+  outsiders.admin = await signUp(h.app, { email: `admin@${OTHER}` });
+  outsiders.qa_lead = await signUp(h.app, { email: `qa@${OTHER}` });
+  await setRole(`qa@${OTHER}`, 'qa_lead');
+
+  const [org] = await h.database.db.select().from(organization).where(eq(organization.domain, ORG));
+  ids.org = org.id;
+  await seedDemoBatches(h.database.db, org.id, ids.engineer);
+  const batches = await h.database.db.select().from(batch).where(eq(batch.organizationId, org.id));
+  // The demo module batch of line 3 (sample-data/batches/manifest.json): fitted 60-cell modules.
+  ids.batch = batches.find((b) => b.lot === 'M2612')!.id;
+  const list = await agents.designer.get(`/api/batches/${ids.batch}/curves?pageSize=1`);
+  ids.curve = list.body.curves[0].id;
+  const spec = await agents.qa_lead.post('/api/specs').send({ name: 'Matrix base spec', limits: { pmp_w: { min: 0 } } });
+  expect(spec.status).toBe(201);
+  ids.spec = spec.body.id;
+  ids.specFamily = spec.body.familyId;
+  analysis = analyseFile(cellCsv, { fileName: 'matrix.csv' });
+  ours = [ORG, org.id, ids.spareUser, ids.spec, ids.specFamily, ids.curve, ...batches.map((b) => b.id)];
+});
+afterAll(async () => {
+  await h.close();
+});
+
+describe('the route list', () => {
+  it('names every API route the app registers, and no route that does not exist', () => {
+    const walked = walkRoutes(h.app).filter((r) => r.split(' ')[1].startsWith('/api/'));
+    // better-auth's handler is one mount for every method; its endpoints are checked below.
+    const auth = walked.filter((r) => r.endsWith(' /api/auth/{*splat}'));
+    expect(auth).toContain('POST /api/auth/{*splat}');
+    const api = [...new Set(walked.filter((r) => !r.endsWith(' /api/auth/{*splat}')))].sort();
+    expect(api).toEqual(ROUTES.map((r) => `${r.method} ${r.path}`).sort());
+  });
+
+  it('every permission a role holds guards at least one route', () => {
+    const used = new Set(ROUTES.map((r) => r.need));
+    const all = new Set(Object.values(ROLE_PERMISSIONS).flat());
+    for (const p of all) expect(used.has(p)).toBe(true);
+  });
+});
+
+const cells = ROUTES.flatMap((route) => WHO.map((who) => [`${route.method} ${route.path}`, who, expectedStatus(route, who), route] as const));
+
+describe('every route × every kind of caller', () => {
+  it.each(cells)('%s as %s → %i', async (_name, who, status, route) => {
+    const req = await route.build();
+    const agent = who === 'signed_out' ? agentFor(h.app) : who === 'other_org' ? outsiderFor(route) : agents[who];
+    const res = await send(agent, route.method, req);
+    expect(res.status).toBe(status);
+    if (status === 401) expect(res.body.code).toBe('unauthenticated');
+    if (status === 403) expect(res.body).toEqual({ code: 'forbidden', message: expect.stringContaining(String(route.need)) });
+    if (status === 404) expect(res.body.code).toBe('not_found');
+    if (who === 'other_org') for (const s of ours) expect(res.text).not.toContain(s);
+  });
+});
