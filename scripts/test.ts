@@ -33,7 +33,8 @@ type JestJson = { numPassedTests: number; numFailedTests: number; numPendingTest
 function runJest(label: string, args: string[]): JestJson {
   mkdirSync(path.join(ROOT, 'artifacts'), { recursive: true });
   const out = path.join(ROOT, 'artifacts', `jest-${label}.json`);
-  const res = spawnSync('npx', ['jest', ...args, '--json', '--outputFile', out], { cwd: ROOT, stdio: 'inherit', env: process.env });
+  // --forceExit: a child server or Chromium process that lingers a moment must not hold CI open.
+  const res = spawnSync('npx', ['jest', ...args, '--forceExit', '--json', '--outputFile', out], { cwd: ROOT, stdio: 'inherit', env: process.env });
   if (!existsSync(out)) return { numPassedTests: 0, numFailedTests: 1, numPendingTests: 0, success: false };
   const json = JSON.parse(readFileSync(out, 'utf8')) as JestJson;
   if (res.status !== 0 && json.numFailedTests === 0) json.numFailedTests = 1; // a suite that failed to load
