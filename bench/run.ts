@@ -1,22 +1,79 @@
 /**
- * `npm run bench [-- --quick]`: runs each benchmark section in turn and prints its block.
- * Sections return their figures so a later step can store or compare them.
+ * `npm run bench [-- --quick] [-- --only=<section>] [-- --json]`: runs each benchmark section in
+ * turn, prints its block and a summary against the targets of issues 3 and 8, and writes all
+ * figures with the date and machine to artifacts/bench.json.
+ * Sections: iv-fit (the engine's fits), server (upload-to-stored, comparison grid API),
+ * bundle (first-load JavaScript of the web export).
  */
+import { mkdirSync, writeFileSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { benchBundle } from '@/bench/bundle';
 import { benchIvFit } from '@/bench/iv-fit';
+import { benchServer } from '@/bench/server-bench';
+import { REPO_ROOT } from '@/tests/support/server-process';
 
 type Section = { name: string; run: (opts: { quick: boolean }) => Promise<Record<string, unknown>> };
 
-const sections: Section[] = [{ name: 'iv-fit', run: benchIvFit }];
+const sections: Section[] = [
+  { name: 'iv-fit', run: benchIvFit },
+  { name: 'server', run: benchServer },
+  { name: 'bundle', run: () => benchBundle() },
+];
+
+/** The machine, for the record: cores, CPU model, memory, Node, and how busy it was. */
+function machine(): Record<string, unknown> {
+  const cpus = os.cpus();
+  return {
+    cores: cpus.length,
+    cpu: cpus[0]?.model ?? 'unknown',
+    memory_GiB: Math.round(os.totalmem() / 2 ** 30),
+    node: process.version,
+    platform: `${os.platform()} ${os.release()}`,
+    load_average_at_start: os.loadavg().map((x) => Number(x.toFixed(2))),
+  };
+}
+
+type Line = [label: string, value: string, target: string, ok: boolean | null];
+
+/** One line per issue-8 target, from whatever sections ran. */
+function summary(results: Record<string, Record<string, unknown>>): Line[] {
+  const lines: Line[] = [];
+  const fitR = results['iv-fit'] as { single_median_ms?: number; double_fixed_median_ms?: number; double_free_median_ms?: number } | undefined;
+  if (fitR) {
+    lines.push(['single-diode fit, median per curve', `${fitR.single_median_ms} ms`, '≤ 2 ms (issue 3)', (fitR.single_median_ms ?? Infinity) <= 2]);
+    lines.push(['double-diode fit (n1=1, n2=2), median per curve', `${fitR.double_fixed_median_ms} ms`, '—', null]);
+    lines.push(['double-diode fit (free n1, n2), median per curve', `${fitR.double_free_median_ms} ms`, '—', null]);
+  }
+  const s = results.server as { upload?: { curves: number; upload_to_stored_s: number; ok: boolean }; compare?: { curves_total: number; api_no_spec: { median_ms: number }; api_with_spec: { median_ms: number }; ok: boolean } } | undefined;
+  if (s?.upload) lines.push([`upload-to-stored, ${s.upload.curves}-curve batch`, `${s.upload.upload_to_stored_s} s`, '< 10 s', s.upload.ok]);
+  if (s?.compare) lines.push([`comparison grid API, ${s.compare.curves_total} curves`, `${s.compare.api_no_spec.median_ms} ms (spec: ${s.compare.api_with_spec.median_ms} ms)`, '< 300 ms', s.compare.ok]);
+  const b = results.bundle as { first_load_raw_bytes?: number; first_load_gzip_bytes?: number; ok?: boolean } | undefined;
+  if (b?.first_load_gzip_bytes) lines.push(['web first-load JS (raw / gzip)', `${(b.first_load_raw_bytes! / 1e6).toFixed(2)} / ${(b.first_load_gzip_bytes / 1e6).toFixed(2)} MB`, 'gzip < 1 MB', !!b.ok]);
+  return lines;
+}
 
 async function main(): Promise<number> {
   const quick = process.argv.includes('--quick');
   const only = process.argv.find((a) => a.startsWith('--only='))?.slice('--only='.length);
-  const results: Record<string, unknown> = {};
+  const startedAt = new Date().toISOString();
+  const host = machine();
+  const results: Record<string, Record<string, unknown>> = {};
   for (const section of sections) {
     if (only && section.name !== only) continue;
     results[section.name] = await section.run({ quick });
     console.log('');
   }
+  const lines = summary(results);
+  if (lines.length) {
+    console.log(`Summary — ${startedAt}, ${host.cores} × ${host.cpu}, Node ${host.node}, load average ${(host.load_average_at_start as number[]).join(' ')}${quick ? ' [quick]' : ''}`);
+    const w = Math.max(...lines.map((l) => l[0].length));
+    for (const [label, value, target, ok] of lines) console.log(`  ${label.padEnd(w)}  ${value.padEnd(26)} ${target.padEnd(18)} ${ok === null ? '' : ok ? 'ok' : 'MISSED'}`);
+  }
+  const record = { date: startedAt, quick, machine: host, results };
+  mkdirSync(path.join(REPO_ROOT, 'artifacts'), { recursive: true });
+  writeFileSync(path.join(REPO_ROOT, 'artifacts', 'bench.json'), JSON.stringify(record, null, 2) + '\n');
+  console.log('\nfigures written to artifacts/bench.json');
   if (process.argv.includes('--json')) console.log(JSON.stringify(results));
   return 0;
 }

@@ -25,11 +25,12 @@ export function idealityVoltage_V(n: number, cells: number, tempC: number): numb
 export function sdCurrent(iph: number, i0: number, a: number, rs: number, rsh: number, v: number): number {
   if (rs <= 0) return iph - (Math.exp(Math.log(i0) + v / a) - i0) - v / rsh;
   const s = rs + rsh;
-  const x = Math.log((rs * i0 * rsh) / (a * s)) + (rsh * (rs * (iph + i0) + v)) / (a * s);
+  // Sum of logs rather than the log of a product: rs·i0·rsh underflows to 0 for Rs → 0.
+  const x = Math.log(rs) + Math.log(i0) + Math.log(rsh) - Math.log(a) - Math.log(s) + (rsh * (rs * (iph + i0) + v)) / (a * s);
   const w = lambertWExp(x);
   // (a/Rs)·W = exp(x + ln(a/Rs) − W) because W·e^W = e^x; the exponential form keeps full
   // precision when Rs is tiny and W ≪ 1.
-  const diode = w < 1 ? Math.exp(x + Math.log(a / rs) - w) : (a / rs) * w;
+  const diode = w < 1 ? Math.exp(x + Math.log(a) - Math.log(rs) - w) : (a / rs) * w;
   return (rsh * (iph + i0) - v) / s - diode;
 }
 

@@ -1,6 +1,7 @@
 /**
  * Reading measured I-V text: CSV, TSV, semicolon-separated (decimal comma allowed there) or
- * whitespace-separated, with optional `# key: value` metadata lines before the header.
+ * whitespace-separated, with optional `# key: value` metadata lines before the header and an
+ * optional Excel "sep=;" line. Quoted cells may hold the separator (RFC 4180).
  * Every problem becomes an IvInputError naming the line and what is wrong.
  */
 import { IvInputError } from '@/lib/iv/errors';
@@ -302,7 +303,7 @@ export function parseIvText(text: string, opts: ParseOptions = {}): IvCurve {
       continue;
     }
     if (!header) {
-      const excel = EXCEL_SEP_RE.exec(line.trim());
+      const excel = EXCEL_SEP_RE.exec(line);
       if (excel && !named) {
         named = excel[1] === ' ' ? 'space' : (excel[1] as Separator);
         continue;

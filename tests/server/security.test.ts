@@ -8,6 +8,7 @@
  * file system; and the pass/fail CSV formula-safe in every text column.
  */
 import fs from 'node:fs';
+import { createRequire } from 'node:module';
 import os from 'node:os';
 import path from 'node:path';
 import { eq } from 'drizzle-orm';
@@ -170,7 +171,6 @@ describe('behind https, with a 2 s session lifetime', () => {
 });
 
 describe('better-auth’s own organisation endpoints do not get round the role table', () => {
-  let h: Harness;
   let tester: Awaited<ReturnType<typeof signUp>>;
   let outsider: Awaited<ReturnType<typeof signUp>>;
   let orgId: string;
@@ -224,6 +224,10 @@ describe('uploads never write to the file system', () => {
     const names = [`../../${tag}-a.csv`, `/tmp/${tag}-b.csv`, `..\\..\\${tag}-c.csv`, `sub/dir/${tag}-d.csv`, `${os.tmpdir()}/../${tag}-e.csv`];
     const writers = ['writeFile', 'writeFileSync', 'createWriteStream', 'open', 'openSync', 'appendFile', 'appendFileSync', 'mkdir', 'mkdirSync', 'rename', 'renameSync', 'copyFile', 'copyFileSync'] as const;
     const spies = writers.map((w) => jest.spyOn(fs, w));
+    // The `fs` multer loads is the very object spied on here (core modules are shared), so a
+    // disk-storage write anywhere in the upload path would be seen.
+    expect(createRequire(require.resolve('multer'))('fs')).toBe(fs);
+    expect(jest.isMockFunction(fs.createWriteStream)).toBe(true);
     const promiseSpies = (['writeFile', 'open', 'mkdir', 'appendFile', 'rename', 'copyFile'] as const).map((w) => jest.spyOn(fs.promises, w));
     let req = tester.post(`/api/batches/${batchId}/curves`).field('onDuplicate', 'keep');
     for (const n of names) req = req.attach('files', cellFile(), n);

@@ -1,4 +1,4 @@
-import { thermalVoltage_V } from '@/lib/physics/constants';
+import { KB_EV_PER_K, thermalVoltage_V, ZERO_C_IN_K } from '@/lib/physics/constants';
 import {
   doubleDiodeCurrent,
   doubleDiodeVoltage,
@@ -168,5 +168,17 @@ describe('simulateCurve()', () => {
   it('accepts double-diode parameters', () => {
     const c = simulateCurve({ iph_a: 1, i01_a: 1e-10, n1: 1, i02_a: 1e-7, n2: 2, rs_ohm: 0.02, rsh_ohm: 100 }, { cells: 1, tempC: 25, points: 20 });
     expect(c.current_A[19]).toBeLessThan(0);
+  });
+});
+
+describe('vanishing series resistance', () => {
+  // Found by the property tests: for Rs near the smallest doubles, rs·i0·rsh and a/rs over- or
+  // underflow. The limit Rs → 0 is the explicit Shockley equation, computed here independently.
+  it.each([1e-300, 1e-320, 5e-324])('Rs = %p Ω gives the Rs = 0 current', (rs) => {
+    const [iph, i0, a, rsh, v] = [1, 1e-9, 0.03, 100, 0.4];
+    const shockley = iph - i0 * (Math.exp(v / a) - 1) - v / rsh;
+    const got = singleDiodeCurrent({ iph_a: iph, i0_a: i0, n: 1, rs_ohm: rs, rsh_ohm: rsh }, v, 1, a / KB_EV_PER_K - ZERO_C_IN_K);
+    expect(Number.isFinite(got)).toBe(true);
+    expect(got).toBeCloseTo(shockley, 9);
   });
 });

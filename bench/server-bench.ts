@@ -1,0 +1,189 @@
+/**
+ * Benchmarks through the real server (issue 8, item 5), in this process: `startRuntime` (the same
+ * app, auth, demo seed and on-disk PGlite as `npm start`, in a temporary data folder) listening on
+ * 127.0.0.1, driven over HTTP with fetch from the same process.
+ *  - upload-to-stored: one multipart request of 1,000 synthetic curves (bench/synthetic-files.ts),
+ *    timed from the start of the request to the 201 answer, when every curve is read, fitted
+ *    (single and double diode) and stored; then checked in the database.
+ *  - comparison grid: `GET /api/compare?batches=<10 ids>` on 10 × 1,000 curves (the uploaded batch
+ *    and 9 more written directly with `storeCurve` from a pool of analysed curves), without and
+ *    with a spec; plus the time of `deviceRecords`, the database part, on its own.
+ * Targets: 1,000-curve batch stored and fitted in under 10 s; grid API under 300 ms.
+ */
+import { mkdtempSync, rmSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { eq, sql } from 'drizzle-orm';
+import { api, createBatch, signIn, uploadFiles } from '@/bench/api-client';
+import type { Session } from '@/bench/api-client';
+import { quantile, round } from '@/bench/stats';
+import { syntheticFiles } from '@/bench/synthetic-files';
+import { batch, curve, fit, organization, user } from '@/db/schema';
+import { analyseFile } from '@/lib/analysis/analyse-file';
+import type { FileAnalysis } from '@/lib/analysis/analyse-file';
+import { startRuntime } from '@/server/runtime';
+import { storeCurve } from '@/server/services/curves';
+import { deviceRecords } from '@/server/services/quality';
+import { REPO_ROOT, freePort } from '@/tests/support/server-process';
+
+export const TARGET_UPLOAD_S = 10;
+export const TARGET_GRID_MS = 300;
+
+const ENGINEER = { email: 'tomas.reyes@kestrel-pv.example', password: 'kestrel-test-demo' }; // sample-data/demo-accounts.json
+const QA_LEAD = { email: 'quinn.mbeki@kestrel-pv.example', password: 'kestrel-qa-demo' };
+const DESIGNER = { email: 'dana.lindqvist@kestrel-pv.example', password: 'kestrel-design-demo' };
+
+/** Median, min and max of `runs` timed calls after one warm-up call. */
+async function timeCalls(runs: number, fn: () => Promise<unknown>): Promise<{ median_ms: number; min_ms: number; max_ms: number }> {
+  await fn();
+  const ms: number[] = [];
+  for (let k = 0; k < runs; k++) {
+    const t = performance.now();
+    await fn();
+    ms.push(performance.now() - t);
+  }
+  return { median_ms: round(quantile(ms, 0.5)), min_ms: round(Math.min(...ms)), max_ms: round(Math.max(...ms)) };
+}
+
+/** A GET whose answer is read completely; returns its size in bytes. */
+async function getBytes(s: Session, pathName: string): Promise<number> {
+  const res = await fetch(`${s.baseUrl}${pathName}`, { headers: { cookie: s.cookie } });
+  if (res.status !== 200) throw new Error(`GET ${pathName}: ${res.status} ${(await res.text()).slice(0, 300)}`);
+  return (await res.arrayBuffer()).byteLength;
+}
+
+/** Runs the upload and comparison benchmarks; `quick` uses 100 curves per batch. */
+export async function benchServer(opts: { quick?: boolean } = {}): Promise<Record<string, unknown>> {
+  const quick = opts.quick ?? false;
+  const perBatch = quick ? 100 : 1000;
+  const batches = 10;
+  const dataDir = mkdtempSync(path.join(os.tmpdir(), 'ql-bench-'));
+  const port = await freePort();
+  const t0 = performance.now();
+  const rt = await startRuntime({ dataDir, port, host: '127.0.0.1', seed: true, webDir: path.join(REPO_ROOT, 'dist') });
+  const baseUrl = `http://127.0.0.1:${port}`;
+  try {
+    const startup_s = round((performance.now() - t0) / 1000);
+    const db = rt.database.db;
+    const engineer = await signIn(baseUrl, ENGINEER.email, ENGINEER.password);
+
+    // --- upload-to-stored ---------------------------------------------------------------------
+    const files = syntheticFiles(perBatch, { prefix: 'BENCH', seed: 5_005 });
+    const uploadBatch = await createBatch(engineer, { name: `Bench upload ${perBatch}`, description: 'npm run bench' });
+    const tUp = performance.now();
+    const up = await uploadFiles(engineer, uploadBatch, files);
+    const upload_ms = performance.now() - tUp;
+    if (up.status !== 201 || !('accepted' in up.body) || up.body.accepted !== perBatch) throw new Error(`bench upload: ${up.status} ${JSON.stringify(up.body).slice(0, 300)}`);
+    const [{ curves: storedCurves }] = await db.select({ curves: sql<number>`count(*)::int` }).from(curve).where(eq(curve.batchId, uploadBatch));
+    const [{ fits: storedFits }] = await db
+      .select({ fits: sql<number>`count(*)::int` })
+      .from(fit)
+      .where(sql`${fit.curveId} in (select id from curve where batch_id = ${uploadBatch})`);
+
+    // Where the upload time goes: the engine on its own (read + key figures + both fits + STC) on a sample.
+    const encoder = new TextEncoder();
+    const sample = files.slice(0, Math.min(100, perBatch));
+    const pool: FileAnalysis[] = [];
+    const tAn = performance.now();
+    for (const f of sample) pool.push(analyseFile(encoder.encode(f.text), { fileName: f.name }));
+    const analyse_ms_per_curve = (performance.now() - tAn) / sample.length;
+
+    // --- comparison grid: 9 more batches written directly --------------------------------------
+    const [org] = await db.select({ id: organization.id }).from(organization).where(eq(organization.domain, 'kestrel-pv.example'));
+    const [eng] = await db.select({ id: user.id }).from(user).where(eq(user.email, ENGINEER.email));
+    const ids = [uploadBatch];
+    const tStore = performance.now();
+    for (let b = 1; b < batches; b++) {
+      const id = await createBatch(engineer, { name: `Bench compare ${b + 1}`, description: 'npm run bench' });
+      ids.push(id);
+      for (let j = 0; j < perBatch; j++) {
+        const a = pool[(j * 7 + b) % pool.length];
+        const deviceId = `CMP${b}-${String(j).padStart(5, '0')}`;
+        const analysis: FileAnalysis = { ...a, curve: { ...a.curve, meta: { ...a.curve.meta, deviceId } } };
+        await storeCurve(db, { organizationId: org.id, batchId: id, fileName: `${deviceId}.csv`, analysis, userId: eng.id });
+      }
+    }
+    const store_ms_per_curve = (performance.now() - tStore) / ((batches - 1) * perBatch);
+    const [{ total }] = await db.select({ total: sql<number>`count(*)::int` }).from(curve).where(sql`${curve.batchId} in ${ids}`);
+    await db.update(batch).set({ updatedAt: new Date() }).where(sql`${batch.id} in ${ids}`);
+
+    const qa = await signIn(baseUrl, QA_LEAD.email, QA_LEAD.password);
+    // A spec like the one the API tests use (tests/server/quality.test.ts), so pass/fail, power classes and outliers run too.
+    const spec = await api<{ id: string }>(qa, 'POST', '/api/specs', {
+      name: 'Bench spec',
+      limits: { pmp_w: { min: 4 }, ff: { min: 0.7, max: 0.86 }, rs_ohm: { max: 0.6 } },
+      powerClasses: { step_w: 5 },
+      failFlags: ['step'],
+    });
+    const designer = await signIn(baseUrl, DESIGNER.email, DESIGNER.password);
+    const gridPath = `/api/compare?batches=${ids.join(',')}`;
+    const runs = quick ? 3 : 5;
+    let gridBytes = 0;
+    const grid = await timeCalls(runs, async () => (gridBytes = await getBytes(designer, gridPath)));
+    const gridSpec = await timeCalls(runs, () => getBytes(designer, `${gridPath}&spec=${spec.id}`));
+    const records = await timeCalls(runs, () => deviceRecords(db, ids));
+    const rows = (await api<{ rows: unknown[] }>(designer, 'GET', gridPath)).rows.length;
+
+    // What the exported web app's entry script costs on the wire as this server sends it.
+    const html = await (await fetch(`${baseUrl}/`)).text();
+    const entry = /<script src="([^"]+)"/.exec(html)?.[1];
+    let served: Record<string, unknown> = { note: 'dist/ not built' };
+    if (entry) {
+      const res = await fetch(`${baseUrl}${entry}`, { headers: { 'accept-encoding': 'gzip, br' } });
+      served = { path: entry, content_encoding: res.headers.get('content-encoding') ?? 'none', content_length: Number(res.headers.get('content-length')) || null };
+      await res.arrayBuffer();
+    }
+
+    const figures = {
+      mode: 'in-process startRuntime (real app, on-disk PGlite in a temp folder, HTTP on 127.0.0.1; client fetch in the same process)',
+      startup_with_seed_s: startup_s,
+      upload: {
+        curves: perBatch,
+        points_per_curve: 200,
+        request_bytes: files.reduce((s, f) => s + f.text.length, 0),
+        upload_to_stored_s: round(upload_ms / 1000),
+        ms_per_curve: round(upload_ms / perBatch),
+        curves_per_s: round((perBatch / upload_ms) * 1000),
+        stored: `${storedCurves} curves, ${storedFits} fits`,
+        engine_ms_per_curve: round(analyse_ms_per_curve),
+        other_ms_per_curve: round(upload_ms / perBatch - analyse_ms_per_curve),
+        target_s: TARGET_UPLOAD_S,
+        ok: upload_ms / 1000 < TARGET_UPLOAD_S && storedCurves === perBatch && storedFits === 2 * perBatch,
+      },
+      compare: {
+        batches,
+        curves_per_batch: perBatch,
+        curves_total: total,
+        rows,
+        response_bytes: gridBytes,
+        store_curve_ms_per_curve: round(store_ms_per_curve),
+        api_no_spec: grid,
+        api_with_spec: gridSpec,
+        device_records: records,
+        target_ms: TARGET_GRID_MS,
+        ok: grid.median_ms < TARGET_GRID_MS && gridSpec.median_ms < TARGET_GRID_MS,
+      },
+      served_entry_script: served,
+    };
+
+    const mark = (ok: boolean) => (ok ? 'ok' : 'MISSED');
+    console.log(
+      [
+        `Server — ${figures.mode}`,
+        `  upload-to-stored: ${perBatch} curves × 200 points in one request (${round(figures.upload.request_bytes / 1e6)} MB): ${figures.upload.upload_to_stored_s} s` +
+          ` (${figures.upload.ms_per_curve} ms/curve, ${figures.upload.curves_per_s} curves/s) — target < ${TARGET_UPLOAD_S} s: ${mark(figures.upload.ok)}`,
+        `      stored ${figures.upload.stored}; engine alone ${figures.upload.engine_ms_per_curve} ms/curve (read, key figures, single + double fit, STC),` +
+          ` the rest ${figures.upload.other_ms_per_curve} ms/curve (multipart, transaction, answer)`,
+        `  comparison grid GET /api/compare, ${batches} × ${perBatch} = ${total} curves, ${rows} rows, ${round(gridBytes / 1e6)} MB JSON:`,
+        `      no spec   median ${grid.median_ms} ms (min ${grid.min_ms}, max ${grid.max_ms}); with spec median ${gridSpec.median_ms} ms (min ${gridSpec.min_ms}, max ${gridSpec.max_ms})` +
+          ` — target < ${TARGET_GRID_MS} ms: ${mark(figures.compare.ok)}`,
+        `      of which deviceRecords (database) median ${records.median_ms} ms; storeCurve ${figures.compare.store_curve_ms_per_curve} ms/curve to build the set`,
+        `  entry script as served: ${JSON.stringify(served)}`,
+      ].join('\n'),
+    );
+    return figures;
+  } finally {
+    await rt.stop();
+    rmSync(dataDir, { recursive: true, force: true });
+  }
+}
