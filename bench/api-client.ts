@@ -32,9 +32,22 @@ export async function signIn(baseUrl: string, email: string, password: string): 
   return { baseUrl, cookie };
 }
 
+/**
+ * fetch, with GETs tried once more after a network error: a kept-alive socket that the server
+ * closed while the harness was busy elsewhere fails the next request without reaching the server.
+ */
+export async function fetchRetryingGet(url: string, init: RequestInit = {}): Promise<Response> {
+  try {
+    return await fetch(url, init);
+  } catch (err) {
+    if ((init.method ?? 'GET') !== 'GET') throw err;
+    return fetch(url, init);
+  }
+}
+
 /** A JSON call; throws with the server's `{ code, message }` on a status other than `expect`. */
 export async function api<T = unknown>(s: Session, method: string, pathName: string, body?: unknown, expect: number[] = [200, 201]): Promise<T> {
-  const res = await fetch(`${s.baseUrl}${pathName}`, {
+  const res = await fetchRetryingGet(`${s.baseUrl}${pathName}`, {
     method,
     headers: { cookie: s.cookie, origin: s.baseUrl, ...(body === undefined ? {} : { 'content-type': 'application/json' }) },
     body: body === undefined ? undefined : JSON.stringify(body),

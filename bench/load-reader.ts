@@ -16,14 +16,24 @@ export type ReaderFigures = {
   duration_s: number;
   requests_per_s: number;
   latency_ms: { p50: number; p95: number; p99: number; max: number; mean: number };
+  /** The same per kind of read: the batch list, a batch summary, a page of curves. */
+  by_kind: Record<string, { requests: number; p50: number; p95: number; max: number }>;
   status: Record<string, number>;
   non2xx: number;
+  /** Connection errors and timeouts (autocannon counts a timeout as an error too). */
   errors: number;
   timeouts: number;
 };
 
 /** The few parts of autocannon's API used here (the package ships no types). */
-type Instance = { on: (event: 'response', fn: (client: unknown, status: number, bytes: number, ms: number) => void) => void };
+type Client = { requestIterator?: { currentRequest?: { path?: string } } };
+type Instance = { on: (event: 'response', fn: (client: Client, status: number, bytes: number, ms: number) => void) => void };
+
+/** The kind of read a path is, for the per-kind figures. */
+function kindOf(p: string): string {
+  if (p.includes('/curves')) return 'curve page';
+  return /^\/api\/batches\/[^/?]+/.test(p) ? 'batch summary' : 'batch list';
+}
 type Result = { duration: number; errors: number; timeouts: number; non2xx: number; statusCodeStats: Record<string, { count: number }> };
 type Autocannon = (
   opts: { url: string; connections: number; duration: number; timeout: number; headers: Record<string, string>; requests: { method: 'GET'; path: string }[] },
@@ -36,6 +46,7 @@ function main(): void {
   assertLoopback(cfg.url);
   const autocannon = createRequire(__filename)('autocannon') as Autocannon;
   const latencies: number[] = [];
+  const byKind = new Map<string, number[]>();
   const instance = autocannon(
     {
       url: cfg.url,
@@ -62,6 +73,12 @@ function main(): void {
           mean: latencies.reduce((s, x) => s + x, 0) / Math.max(1, latencies.length),
         },
         status,
+        by_kind: Object.fromEntries(
+          [...byKind].map(([k, xs]) => {
+            xs.sort((a, b) => a - b);
+            return [k, { requests: xs.length, p50: quantileSorted(xs, 0.5), p95: quantileSorted(xs, 0.95), max: xs[xs.length - 1] }];
+          }),
+        ),
         non2xx: result.non2xx,
         errors: result.errors,
         timeouts: result.timeouts,
@@ -69,7 +86,14 @@ function main(): void {
       writeFileSync(cfg.out, JSON.stringify(figures));
     },
   );
-  instance.on('response', (_client, _status, _bytes, ms) => latencies.push(ms));
+  instance.on('response', (client, _status, _bytes, ms) => {
+    latencies.push(ms);
+    // autocannon moves to the next request only after this event: currentRequest is the one answered.
+    const kind = kindOf(client.requestIterator?.currentRequest?.path ?? '');
+    const list = byKind.get(kind) ?? [];
+    list.push(ms);
+    byKind.set(kind, list);
+  });
   console.log('started');
 }
 

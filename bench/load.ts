@@ -2,7 +2,7 @@
  * `npm run load [-- --quick] [-- --duration=30]`: the load run of issue 8.
  *
  * Starts the real server as a child process on loopback with a fresh data folder (demo seed),
- * then for `duration` seconds at once:
+ * warms it with two quiet passes over the read paths, then for `duration` seconds at once:
  *  - readers: 50 autocannon connections (closed loop) in a separate process (bench/load-reader.ts)
  *    cycling through the batch list, batch summaries and curve pages (sorted by Pmax, pages 1–2);
  *  - writers: 5 upload clients in this process, each posting batches of 100 synthetic curves
@@ -134,6 +134,10 @@ async function main(): Promise<number> {
     }
     for (const id of writerBatches) paths.push(`/api/batches/${id}/curves?page=2&pageSize=50&sort=pmp_w&dir=desc`);
 
+    // Warm the server (JIT, caches) with two quiet passes, as a server in use would be: otherwise the
+    // first burst of 50 simultaneous requests on a cold process dominates the tail.
+    for (let pass = 0; pass < 2; pass++) for (const p of paths) await api(readerSession, 'GET', p);
+
     const out = path.join(workDir, 'reader.json');
     console.log(
       `load: ${opts.connections} reading connections for ${opts.duration_s} s over ${paths.length} paths, ` +
@@ -144,10 +148,26 @@ async function main(): Promise<number> {
     const until = Date.now() + opts.duration_s * 1000;
     // Uploads still running long after the read window are cut off (and count as errors).
     const hardStop = setTimeout(() => abort.abort(), (opts.duration_s + 45) * 1000);
+    // Event-loop probe: /api/health touches no database, so its latency is the server's longest
+    // stretches of work without a break (GC, a fit, a long query), not queueing for PGlite.
+    const health: number[] = [];
+    const probe = (async () => {
+      while (Date.now() < until && !abort.signal.aborted) {
+        const t = performance.now();
+        try {
+          await (await fetch(`${readerSession.baseUrl}/api/health`, { signal: abort.signal })).arrayBuffer();
+          health.push(performance.now() - t);
+        } catch {
+          /* counted by the readers */
+        }
+        await new Promise((res) => setTimeout(res, 100));
+      }
+    })();
     const uploadStart = Date.now();
     const uploads = (await Promise.all(writers.map((s, k) => uploadClient(k + 1, s, writerBatches[k], opts.batchSize, until, abort.signal)))).flat();
     clearTimeout(hardStop);
     const uploadWindow_s = (Date.now() - uploadStart) / 1000;
+    await probe;
     const readerCode = await r.done;
     if (readerCode !== 0 || !existsSync(out)) throw new Error(`the reader process failed (${readerCode}):\n${r.log()}`);
     const reads = JSON.parse(readFileSync(out, 'utf8')) as ReaderFigures;
@@ -155,7 +175,7 @@ async function main(): Promise<number> {
     const stored = (await api<{ batches: { id: string; curveCount: number }[] }>(readerSession, 'GET', '/api/batches')).batches.filter((b) => writerBatches.includes(b.id)).reduce((s, b) => s + b.curveCount, 0);
     const accepted = uploads.reduce((s, u) => s + u.accepted, 0);
     const uploadErrors = uploads.filter((u) => u.error);
-    const readErrors = reads.non2xx + reads.errors + reads.timeouts;
+    const readErrors = reads.non2xx + reads.errors; // autocannon counts timeouts among its errors
     const ups = uploads.map((u) => u.ms);
 
     const figures = {
@@ -167,9 +187,12 @@ async function main(): Promise<number> {
         requests: reads.requests,
         requests_per_s: round(reads.requests_per_s),
         latency_ms: { p50: round(reads.latency_ms.p50), p95: round(reads.latency_ms.p95), p99: round(reads.latency_ms.p99), max: round(reads.latency_ms.max) },
+        by_kind: reads.by_kind,
         status: reads.status,
         errors: readErrors,
+        timeouts: reads.timeouts,
       },
+      health_probe_ms: { samples: health.length, p50: round(quantile(health, 0.5)), p95: round(quantile(health, 0.95)), max: round(health.length ? Math.max(...health) : NaN) },
       uploads: {
         clients: opts.uploaders,
         requests: uploads.length,
@@ -196,10 +219,14 @@ async function main(): Promise<number> {
     console.log(
       `  reads (${pad(opts.connections, 2)} conn)    ${pad(reads.requests, 8)} ${pad(figures.reads.requests_per_s, 7)} ${pad(figures.reads.latency_ms.p50, 9)} ${pad(figures.reads.latency_ms.p95, 8)} ${pad(figures.reads.latency_ms.p99, 8)} ${pad(figures.reads.latency_ms.max, 8)} ${pad(readErrors, 8)}`,
     );
+    for (const [kind, k] of Object.entries(reads.by_kind)) {
+      console.log(`    ${kind.padEnd(19)}${pad(k.requests, 8)} ${pad('', 7)} ${pad(round(k.p50), 9)} ${pad(round(k.p95), 8)} ${pad('', 8)} ${pad(round(k.max), 8)}`);
+    }
     console.log(
       `  uploads (${opts.uploaders} × ${opts.batchSize})  ${pad(uploads.length, 8)} ${pad(round(uploads.length / uploadWindow_s), 7)} ${pad(figures.uploads.request_ms.p50, 9)} ${pad(figures.uploads.request_ms.p95, 8)} ${pad('', 8)} ${pad(figures.uploads.request_ms.max, 8)} ${pad(uploadErrors.length, 8)}`,
     );
-    console.log(`  curves uploaded: ${accepted} accepted, ${stored} stored (${figures.uploads.curves_per_s} curves/s over ${uploadWindow_s.toFixed(1)} s); read status codes ${JSON.stringify(reads.status)}`);
+    console.log(`  /api/health every 0.1 s (event-loop stalls): p50 ${figures.health_probe_ms.p50} ms, p95 ${figures.health_probe_ms.p95} ms, max ${figures.health_probe_ms.max} ms`);
+    console.log(`  curves uploaded: ${accepted} accepted, ${stored} stored (${figures.uploads.curves_per_s} curves/s over ${uploadWindow_s.toFixed(1)} s); read status codes ${JSON.stringify(reads.status)}, timeouts (10 s) ${reads.timeouts}`);
     for (const m of figures.uploads.error_messages.slice(0, 5)) console.log(`  upload error: ${m}`);
     for (const c of checks) console.log(`  ${c.ok ? 'ok  ' : 'FAIL'} ${c.what}: ${c.got}`);
     console.log(`  total run ${((Date.now() - t0) / 1000).toFixed(1)} s`);

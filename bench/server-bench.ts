@@ -14,7 +14,7 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { eq, sql } from 'drizzle-orm';
-import { api, createBatch, signIn, uploadFiles } from '@/bench/api-client';
+import { api, createBatch, fetchRetryingGet, signIn, uploadFiles } from '@/bench/api-client';
 import type { Session } from '@/bench/api-client';
 import { quantile, round } from '@/bench/stats';
 import { syntheticFiles } from '@/bench/synthetic-files';
@@ -47,7 +47,7 @@ async function timeCalls(runs: number, fn: () => Promise<unknown>): Promise<{ me
 
 /** A GET whose answer is read completely; returns its size in bytes. */
 async function getBytes(s: Session, pathName: string): Promise<number> {
-  const res = await fetch(`${s.baseUrl}${pathName}`, { headers: { cookie: s.cookie } });
+  const res = await fetchRetryingGet(`${s.baseUrl}${pathName}`, { headers: { cookie: s.cookie } });
   if (res.status !== 200) throw new Error(`GET ${pathName}: ${res.status} ${(await res.text()).slice(0, 300)}`);
   return (await res.arrayBuffer()).byteLength;
 }
@@ -91,11 +91,22 @@ export async function benchServer(opts: { quick?: boolean } = {}): Promise<Recor
     // --- comparison grid: 9 more batches written directly --------------------------------------
     const [org] = await db.select({ id: organization.id }).from(organization).where(eq(organization.domain, 'kestrel-pv.example'));
     const [eng] = await db.select({ id: user.id }).from(user).where(eq(user.email, ENGINEER.email));
+    // Every POST before the long direct writes (a POST is not retried; see fetchRetryingGet).
     const ids = [uploadBatch];
+    for (let b = 1; b < batches; b++) ids.push(await createBatch(engineer, { name: `Bench compare ${b + 1}`, description: 'npm run bench' }));
+    const qa = await signIn(baseUrl, QA_LEAD.email, QA_LEAD.password);
+    // A spec like the one the API tests use (tests/server/quality.test.ts), so pass/fail, power classes and outliers run too.
+    const spec = await api<{ id: string }>(qa, 'POST', '/api/specs', {
+      name: 'Bench spec',
+      limits: { pmp_w: { min: 4 }, ff: { min: 0.7, max: 0.86 }, rs_ohm: { max: 0.6 } },
+      powerClasses: { step_w: 5 },
+      failFlags: ['step'],
+    });
+    const designer = await signIn(baseUrl, DESIGNER.email, DESIGNER.password);
+
     const tStore = performance.now();
     for (let b = 1; b < batches; b++) {
-      const id = await createBatch(engineer, { name: `Bench compare ${b + 1}`, description: 'npm run bench' });
-      ids.push(id);
+      const id = ids[b];
       for (let j = 0; j < perBatch; j++) {
         const a = pool[(j * 7 + b) % pool.length];
         const deviceId = `CMP${b}-${String(j).padStart(5, '0')}`;
@@ -107,15 +118,6 @@ export async function benchServer(opts: { quick?: boolean } = {}): Promise<Recor
     const [{ total }] = await db.select({ total: sql<number>`count(*)::int` }).from(curve).where(sql`${curve.batchId} in ${ids}`);
     await db.update(batch).set({ updatedAt: new Date() }).where(sql`${batch.id} in ${ids}`);
 
-    const qa = await signIn(baseUrl, QA_LEAD.email, QA_LEAD.password);
-    // A spec like the one the API tests use (tests/server/quality.test.ts), so pass/fail, power classes and outliers run too.
-    const spec = await api<{ id: string }>(qa, 'POST', '/api/specs', {
-      name: 'Bench spec',
-      limits: { pmp_w: { min: 4 }, ff: { min: 0.7, max: 0.86 }, rs_ohm: { max: 0.6 } },
-      powerClasses: { step_w: 5 },
-      failFlags: ['step'],
-    });
-    const designer = await signIn(baseUrl, DESIGNER.email, DESIGNER.password);
     const gridPath = `/api/compare?batches=${ids.join(',')}`;
     const runs = quick ? 3 : 5;
     let gridBytes = 0;
@@ -125,11 +127,11 @@ export async function benchServer(opts: { quick?: boolean } = {}): Promise<Recor
     const rows = (await api<{ rows: unknown[] }>(designer, 'GET', gridPath)).rows.length;
 
     // What the exported web app's entry script costs on the wire as this server sends it.
-    const html = await (await fetch(`${baseUrl}/`)).text();
+    const html = await (await fetchRetryingGet(`${baseUrl}/`)).text();
     const entry = /<script src="([^"]+)"/.exec(html)?.[1];
     let served: Record<string, unknown> = { note: 'dist/ not built' };
     if (entry) {
-      const res = await fetch(`${baseUrl}${entry}`, { headers: { 'accept-encoding': 'gzip, br' } });
+      const res = await fetchRetryingGet(`${baseUrl}${entry}`, { headers: { 'accept-encoding': 'gzip, br' } });
       served = { path: entry, content_encoding: res.headers.get('content-encoding') ?? 'none', content_length: Number(res.headers.get('content-length')) || null };
       await res.arrayBuffer();
     }
