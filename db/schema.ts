@@ -191,6 +191,11 @@ export const curve = pgTable(
     rs_ohm: doublePrecision('rs_ohm'),
     rsh_ohm: doublePrecision('rsh_ohm'),
     stc_pmp_w: doublePrecision('stc_pmp_w'),
+    // The current single-diode fit's remaining figures, so comparisons of 10,000 curves read one table.
+    iph_a: doublePrecision('iph_a'),
+    i0_a: doublePrecision('i0_a'),
+    rmse_a: doublePrecision('rmse_a'),
+    fitted: boolean('fitted').notNull().default(false),
     flagCodes: text('flag_codes').notNull().default(''),
     createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),

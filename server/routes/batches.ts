@@ -10,7 +10,7 @@ import { describe as describeValues } from '@/lib/quality';
 import { batchCreateSchema, batchUpdateSchema, curveListQuerySchema, uploadOverridesSchema } from '@/lib/schemas/curves';
 import { HttpError, notFound } from '@/server/errors';
 import { callerOf, requirePermission } from '@/server/permissions';
-import { curveJson, fitsFor, storeCurve } from '@/server/services/curves';
+import { curveJson, curveListColumns, fitsFor, storeCurve } from '@/server/services/curves';
 import { validate } from '@/server/validate';
 
 export const MAX_FILES_PER_REQUEST = 2000;
@@ -210,13 +210,13 @@ export function batchesRouter(db: Db): Router {
     const where = and(...conds);
     const [{ total }] = await db.select({ total: count() }).from(curve).where(where);
     const rows = await db
-      .select()
+      .select(curveListColumns)
       .from(curve)
       .where(where)
       .orderBy(q.dir === 'asc' ? sql`${sortCol} asc nulls last` : sql`${sortCol} desc nulls last`, asc(curve.id))
       .limit(q.pageSize)
       .offset((q.page - 1) * q.pageSize);
-    const fits = await fitsFor(db, rows.map((x) => x.id), true);
+    const fits = await fitsFor(db, rows.map((x) => x.id), true, false);
     res.json({
       curves: rows.map((x) => {
         const j = curveJson(x, fits.get(x.id) ?? [], false);

@@ -2,7 +2,7 @@
  * Storing and reading curves. Every curve is written with its fits in one transaction, so a
  * reader (or a restart after a crash) sees either the whole curve or nothing of it.
  */
-import { and, eq, inArray } from 'drizzle-orm';
+import { and, eq, getTableColumns, inArray, sql } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { curve, fit } from '@/db/schema';
 import type { FileAnalysis } from '@/lib/analysis/analyse-file';
@@ -25,6 +25,10 @@ export function derivedColumns(a: FileAnalysis) {
     rs_ohm: single?.rs_ohm ?? null,
     rsh_ohm: single?.rsh_ohm ?? null,
     stc_pmp_w: a.stc?.pmp_w ?? null,
+    iph_a: single?.iph_a ?? null,
+    i0_a: single?.i0_a ?? null,
+    rmse_a: single?.rmse_a ?? null,
+    fitted: !!single,
     flagCodes: a.flags.map((f) => f.code).join(' '),
   };
 }
@@ -75,7 +79,7 @@ export function fitSummary(f: FitResult): Omit<FitResult, 'residuals_a'> {
 }
 
 /** The API shape of a curve (CLI vocabulary: metrics.isc_a, fits[].rs_ohm, …). */
-export function curveJson(c: CurveRow, fits: FitRow[], detail: boolean) {
+export function curveJson(c: CurveRow | Omit<CurveRow, 'voltage_V' | 'current_A' | 'notes'>, fits: FitRow[], detail: boolean) {
   const current = fits.filter((f) => f.current).sort((a, b) => a.model.localeCompare(b.model)).reverse();
   return {
     id: c.id,
@@ -90,8 +94,8 @@ export function curveJson(c: CurveRow, fits: FitRow[], detail: boolean) {
     created_at: c.createdAt,
     ...(detail
       ? {
-          points: { voltage_V: c.voltage_V, current_A: c.current_A },
-          notes: c.notes,
+          points: { voltage_V: (c as CurveRow).voltage_V, current_A: (c as CurveRow).current_A },
+          notes: (c as CurveRow).notes,
           history: fits
             .slice()
             .sort((a, b) => +b.createdAt - +a.createdAt)
@@ -110,11 +114,19 @@ export function curveJson(c: CurveRow, fits: FitRow[], detail: boolean) {
   };
 }
 
-export async function fitsFor(db: Db, curveIds: string[], onlyCurrent: boolean): Promise<Map<string, FitRow[]>> {
+/** Curve columns for lists: everything but the measured points. */
+export const curveListColumns = (() => {
+  const { voltage_V: _v, current_A: _i, notes: _n, ...rest } = getTableColumns(curve);
+  return rest;
+})();
+
+/** Fits of these curves; `withResiduals` false leaves the per-point residuals in the database. */
+export async function fitsFor(db: Db, curveIds: string[], onlyCurrent: boolean, withResiduals = true): Promise<Map<string, FitRow[]>> {
   const out = new Map<string, FitRow[]>();
   if (!curveIds.length) return out;
+  const { result: _r, ...fitColumns } = getTableColumns(fit);
   const rows = await db
-    .select()
+    .select({ ...fitColumns, result: withResiduals ? fit.result : sql<FitResult>`${fit.result} - 'residuals_a'` })
     .from(fit)
     .where(onlyCurrent ? and(inArray(fit.curveId, curveIds), eq(fit.current, true)) : inArray(fit.curveId, curveIds));
   for (const r of rows) {

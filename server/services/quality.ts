@@ -4,8 +4,7 @@
  */
 import { and, desc, eq, inArray, sql } from 'drizzle-orm';
 import type { Db } from '@/db/client';
-import { curve, fit, spec } from '@/db/schema';
-import type { FitResult } from '@/lib/iv/types';
+import { curve, spec } from '@/db/schema';
 import { parseSpec } from '@/lib/quality';
 import type { DeviceRecord, ParamKey, Spec } from '@/lib/quality';
 import { notFound } from '@/server/errors';
@@ -15,33 +14,41 @@ export type DeviceRow = DeviceRecord & { curveId: string; batchId: string; fitte
 /** Every curve of the given batches as a device record with all engine keys. */
 export async function deviceRecords(db: Db, batchIds: string[]): Promise<DeviceRow[]> {
   if (!batchIds.length) return [];
+  // One table, no JSON of the fits: the single-diode figures are columns of the curve
+  // (server/services/curves.ts derivedColumns), which keeps a 10 × 1,000-curve comparison fast.
   const curves = await db
-    .select({ id: curve.id, batchId: curve.batchId, deviceId: curve.deviceId, metrics: curve.metrics, meta: curve.meta, flags: curve.flagCodes, stc: curve.stc_pmp_w })
+    .select({
+      id: curve.id,
+      batchId: curve.batchId,
+      deviceId: curve.deviceId,
+      metrics: curve.metrics,
+      cells: sql<number | null>`(${curve.meta}->>'cells')::int`,
+      area: sql<number | null>`(${curve.meta}->>'area_cm2')::float8`,
+      flags: curve.flagCodes,
+      stc: curve.stc_pmp_w,
+      fitted: curve.fitted,
+      iph: curve.iph_a,
+      i0: curve.i0_a,
+      n: curve.n,
+      rs: curve.rs_ohm,
+      rsh: curve.rsh_ohm,
+      rmse: curve.rmse_a,
+    })
     .from(curve)
     .where(inArray(curve.batchId, batchIds))
     .orderBy(curve.deviceId);
-  const fits = curves.length
-    ? await db
-        // Leave the per-point residuals in the database: a 10,000-curve comparison needs only the parameters.
-        .select({ curveId: fit.curveId, result: sql<FitResult>`${fit.result} - 'residuals_a'` })
-        .from(fit)
-        .where(and(inArray(fit.curveId, curves.map((c) => c.id)), eq(fit.current, true), eq(fit.model, 'single-diode')))
-    : [];
-  const single = new Map<string, FitResult>(fits.map((f) => [f.curveId, f.result]));
   return curves.map((c) => {
-    const f = single.get(c.id);
-    const ok = !!f?.converged;
-    const cells = c.meta.cells ?? 1;
-    const cellArea = c.meta.area_cm2 ? c.meta.area_cm2 / cells : null;
+    const ok = c.fitted;
+    const cellArea = c.area ? c.area / (c.cells ?? 1) : null;
     const values: Partial<Record<ParamKey, number | null>> = {
       ...c.metrics,
-      iph_a: ok ? f!.iph_a : null,
-      i0_a: ok ? (f!.i0_a ?? null) : null,
-      n: ok ? (f!.n ?? null) : null,
-      rs_ohm: ok ? f!.rs_ohm : null,
-      rsh_ohm: ok ? f!.rsh_ohm : null,
-      rmse_a: ok ? f!.rmse_a : null,
-      j0_a_cm2: ok && f!.i0_a != null && cellArea ? f!.i0_a / cellArea : null,
+      iph_a: ok ? c.iph : null,
+      i0_a: ok ? c.i0 : null,
+      n: ok ? c.n : null,
+      rs_ohm: ok ? c.rs : null,
+      rsh_ohm: ok ? c.rsh : null,
+      rmse_a: ok ? c.rmse : null,
+      j0_a_cm2: ok && c.i0 != null && cellArea ? c.i0 / cellArea : null,
       stc_pmp_w: c.stc,
     };
     return { curveId: c.id, batchId: c.batchId, deviceId: c.deviceId, values, flags: c.flags.split(' ').filter(Boolean), fitted: ok };

@@ -38,7 +38,9 @@ export async function startServerProcess(opts: { dataDir?: string; env?: Record<
   const dataDir = opts.dataDir ?? mkdtempSync(path.join(os.tmpdir(), 'ql-data-'));
   const url = `http://127.0.0.1:${port}`;
   let output = '';
-  const child = spawn(process.execPath, [path.join(REPO_ROOT, 'node_modules', 'tsx', 'dist', 'cli.mjs'), path.join(REPO_ROOT, 'server', 'index.ts')], {
+  // tsx as a loader inside this node process (not its CLI, which forks a grandchild): a SIGKILL
+  // to `child` then really kills the server.
+  const child = spawn(process.execPath, ['--import', 'tsx', path.join(REPO_ROOT, 'server', 'index.ts')], {
     cwd: REPO_ROOT,
     env: {
       ...process.env,
@@ -77,7 +79,9 @@ export async function startServerProcess(opts: { dataDir?: string; env?: Record<
     log: () => output,
     stop: async ({ kill = false, keepData = false } = {}) => {
       if (child.exitCode === null) child.kill(kill ? 'SIGKILL' : 'SIGTERM');
-      const code = await Promise.race([exited, new Promise<number | null>((r) => setTimeout(() => r(-1), 15_000))]);
+      let timer: NodeJS.Timeout | undefined;
+      const code = await Promise.race([exited, new Promise<number | null>((r) => (timer = setTimeout(() => r(-1), 15_000)))]);
+      clearTimeout(timer);
       if (code === -1) child.kill('SIGKILL');
       if (!keepData && !opts.dataDir) rmSync(dataDir, { recursive: true, force: true });
       return code;
