@@ -10,9 +10,28 @@ import { HttpError } from '@/server/errors';
 import { callerOf, requirePermission } from '@/server/permissions';
 import { deviceRecords, loadSpec } from '@/server/services/quality';
 
+type Records = Awaited<ReturnType<typeof deviceRecords>>;
+
 /** /api/compare — several batches side by side for the comparison grid. */
 export function compareRouter(db: Db): Router {
   const r = Router();
+  // Device records per batch, kept while the batch's updatedAt stays the same (every upload,
+  // replacement, refit and edit moves it): a designer flipping columns and parameters re-reads
+  // 10,000 curves otherwise. Bounded; the oldest entry goes first.
+  const cache = new Map<string, { stamp: number; rows: Records }>();
+  const CACHE_BATCHES = 40;
+  async function recordsOf(batches: { id: string; updatedAt: Date }[]): Promise<Records> {
+    const missing = batches.filter((b) => cache.get(b.id)?.stamp !== +b.updatedAt);
+    if (missing.length) {
+      const fresh = await deviceRecords(db, missing.map((b) => b.id));
+      for (const b of missing) {
+        cache.delete(b.id);
+        cache.set(b.id, { stamp: +b.updatedAt, rows: fresh.filter((d) => d.batchId === b.id) });
+      }
+      while (cache.size > CACHE_BATCHES) cache.delete(cache.keys().next().value!);
+    }
+    return batches.flatMap((b) => cache.get(b.id)!.rows);
+  }
 
   /**
    * GET /api/compare?batches=a,b,…&spec=<specId>&param=pmp_w — one row per curve with every key
@@ -36,7 +55,7 @@ export function compareRouter(db: Db): Router {
       spec = s.spec;
       specInfo = { id: s.row.id, name: s.row.name, version: s.row.version };
     }
-    const devices = await deviceRecords(db, q.batches);
+    const devices = await recordsOf(found);
     const byBatch = new Map<string, typeof devices>();
     for (const d of devices) byBatch.set(d.batchId, [...(byBatch.get(d.batchId) ?? []), d]);
 

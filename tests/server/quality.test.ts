@@ -264,6 +264,18 @@ describe('comparison', () => {
     expect(typeof d.sentence).toBe('string');
   });
 
+  it('answers again after a refit changed a batch (no stale comparison)', async () => {
+    const first = await designer.get(`/api/compare?batches=${lineTwo}&param=n`);
+    const row = first.body.rows.find((r: { deviceId: string }) => r.deviceId === 'M2611-005');
+    const tempC = (await tester.get(`/api/curves/${row.curveId}`)).body.meta.tempC;
+    const refit = await tester.post(`/api/curves/${row.curveId}/refit`).send({ tempC: tempC + 20, model: 'single' });
+    expect(refit.status).toBe(200);
+    const again = await designer.get(`/api/compare?batches=${lineTwo}&param=n`);
+    const after = again.body.rows.find((r: { deviceId: string }) => r.deviceId === 'M2611-005');
+    // n·T is what the fit determines, so n falls by the ratio of absolute temperatures.
+    expect(after.n / row.n).toBeCloseTo((tempC + 273.15) / (tempC + 20 + 273.15), 2);
+  });
+
   it('404 when a batch belongs to another organisation; 400 for an unknown parameter', async () => {
     expect((await outsider.get(`/api/compare?batches=${lineTwo}`)).status).toBe(404);
     expect((await designer.get(`/api/compare?batches=${lineTwo}&param=wattage`)).status).toBe(400);
