@@ -102,7 +102,7 @@ describe('crash safety', () => {
     }
     const killed = await killServer(server);
     server = null;
-    expect(killed.length).toBeGreaterThanOrEqual(2); // the tsx wrapper and the server under it
+    expect(killed.length).toBeGreaterThanOrEqual(1); // the server process (and anything it started)
     expect(killed.filter(isAlive)).toEqual([]);
     const outcome = await upload;
     // The upload must really have been cut off: the request fails instead of answering 201.
