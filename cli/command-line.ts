@@ -133,3 +133,30 @@ export function usageErrorOutput(err: UsageError, json: boolean, usage: string):
   }
   return { stream: 'stderr', text: `error: ${err.message}\n\n${usage}\n` };
 }
+
+/**
+ * The frame every command shares: parse the options, answer --help, run `body`, and turn a
+ * usage error (bad or missing option, out-of-range input) into exit status 2 with a message —
+ * JSON on stdout with --json, text on stderr otherwise. Anything else propagates.
+ */
+export async function runCommand(
+  argv: string[],
+  cmd: { options: OptionHelp; usage: string; flags: Record<string, string>; allowPositionals?: boolean },
+  body: (parsed: ParsedOptions) => number | Promise<number>,
+): Promise<number> {
+  const json = argv.includes('--json');
+  try {
+    const parsed = parseOptions(argv, cmd.options, cmd.allowPositionals ?? false);
+    if (parsed.help) {
+      process.stdout.write(`${cmd.usage}\n`);
+      return 0;
+    }
+    return await body(parsed);
+  } catch (err) {
+    const usage = asUsageError(err, cmd.flags);
+    if (!usage) throw err;
+    const out = usageErrorOutput(usage, json, cmd.usage);
+    process[out.stream].write(out.text);
+    return 2;
+  }
+}

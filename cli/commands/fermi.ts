@@ -3,12 +3,10 @@
  * `--json` prints {"f_half","boltzmann"}; η outside [−40, 100] exits 2.
  */
 import {
-  asUsageError,
   formatNumber,
   formatTable,
-  parseOptions,
+  runCommand,
   requiredNumber,
-  usageErrorOutput,
   usageText,
 } from '@/cli/command-line';
 import { boltzmannHalf, ETA_RANGE, fermiHalf } from '@/lib/physics/fermi-dirac';
@@ -21,13 +19,7 @@ const FLAGS = { eta: 'eta' };
 
 /** Runs the command; returns the exit status (0 ok, 2 bad input). */
 export async function run(argv: string[]): Promise<number> {
-  const json = argv.includes('--json');
-  try {
-    const parsed = parseOptions(argv, OPTIONS);
-    if (parsed.help) {
-      process.stdout.write(`${USAGE}\n`);
-      return 0;
-    }
+  return runCommand(argv, { options: OPTIONS, usage: USAGE, flags: FLAGS }, async (parsed) => {
     const eta = requiredNumber(parsed, 'eta');
     const fHalf = fermiHalf(eta);
     const boltzmann = boltzmannHalf(eta);
@@ -42,11 +34,5 @@ export async function run(argv: string[]): Promise<number> {
     ], ['F½ is normalised so that F½(η) → e^η as η → −∞ (Blakemore 1982); accurate to 1e-9 relative.']);
     process.stdout.write(`${table}\n`);
     return 0;
-  } catch (err) {
-    const usage = asUsageError(err, FLAGS);
-    if (!usage) throw err;
-    const out = usageErrorOutput(usage, json, USAGE);
-    process[out.stream].write(out.text);
-    return 2;
-  }
+  });
 }

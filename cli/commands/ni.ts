@@ -3,12 +3,10 @@
  * temperature. `--json` prints {"ni_cm3","eg_ev","nc_cm3","nv_cm3"}; bad input exits 2.
  */
 import {
-  asUsageError,
   formatNumber,
   formatTable,
-  parseOptions,
+  runCommand,
   requiredNumber,
-  usageErrorOutput,
   usageText,
 } from '@/cli/command-line';
 import { materialAt, SILICON } from '@/lib/physics/materials';
@@ -21,13 +19,7 @@ const FLAGS = { tempK: 'temp-k' };
 
 /** Runs the command; returns the exit status (0 ok, 2 bad input). */
 export async function run(argv: string[]): Promise<number> {
-  const json = argv.includes('--json');
-  try {
-    const parsed = parseOptions(argv, OPTIONS);
-    if (parsed.help) {
-      process.stdout.write(`${USAGE}\n`);
-      return 0;
-    }
+  return runCommand(argv, { options: OPTIONS, usage: USAGE, flags: FLAGS }, async (parsed) => {
     const tempK = requiredNumber(parsed, 'temp-k');
     const s = materialAt(tempK);
     if (parsed.json) {
@@ -52,11 +44,5 @@ export async function run(argv: string[]): Promise<number> {
     );
     process.stdout.write(`${table}\n`);
     return 0;
-  } catch (err) {
-    const usage = asUsageError(err, FLAGS);
-    if (!usage) throw err;
-    const out = usageErrorOutput(usage, json, USAGE);
-    process[out.stream].write(out.text);
-    return 2;
-  }
+  });
 }

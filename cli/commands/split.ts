@@ -4,14 +4,12 @@
  * from the intrinsic level E_i. `--json` prints {"splitting_ev","implied_voc_v","efn_ev","efp_ev"}.
  */
 import {
-  asUsageError,
   formatNumber,
   formatTable,
   numberOption,
-  parseOptions,
+  runCommand,
   requiredNumber,
   UsageError,
-  usageErrorOutput,
   usageText,
 } from '@/cli/command-line';
 import { quasiFermiLevels } from '@/lib/physics/carriers';
@@ -41,13 +39,7 @@ const ev = (x: number) => x.toFixed(5);
 
 /** Runs the command; returns the exit status (0 ok, 2 bad input). */
 export async function run(argv: string[]): Promise<number> {
-  const json = argv.includes('--json');
-  try {
-    const parsed = parseOptions(argv, OPTIONS);
-    if (parsed.help) {
-      process.stdout.write(`${USAGE}\n`);
-      return 0;
-    }
+  return runCommand(argv, { options: OPTIONS, usage: USAGE, flags: FLAGS }, async (parsed) => {
     const type = parsed.values.type;
     if (type === undefined) throw new UsageError('--type is required (p or n)', '--type');
     if (type !== 'p' && type !== 'n') throw new UsageError(`--type must be p or n (got "${type}")`, '--type');
@@ -89,11 +81,5 @@ export async function run(argv: string[]): Promise<number> {
     );
     process.stdout.write(`${table}\n`);
     return 0;
-  } catch (err) {
-    const usage = asUsageError(err, FLAGS);
-    if (!usage) throw err;
-    const out = usageErrorOutput(usage, json, USAGE);
-    process[out.stream].write(out.text);
-    return 2;
-  }
+  });
 }

@@ -7,13 +7,11 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import {
-  asUsageError,
   formatTable,
   numberOption,
-  parseOptions,
+  runCommand,
   requiredNumber,
   UsageError,
-  usageErrorOutput,
   usageText,
 } from '@/cli/command-line';
 import { translateCurve } from '@/lib/physics/translate';
@@ -159,13 +157,7 @@ function tableOf(file: string, measured: Metrics | null, r: TranslationResult): 
 
 /** Runs the command; returns the exit status (0 ok, 2 bad input). */
 export async function run(argv: string[]): Promise<number> {
-  const json = argv.includes('--json');
-  try {
-    const parsed = parseOptions(argv, OPTIONS, true);
-    if (parsed.help) {
-      process.stdout.write(`${USAGE}\n`);
-      return 0;
-    }
+  return runCommand(argv, { options: OPTIONS, usage: USAGE, flags: FLAGS, allowPositionals: true }, async (parsed) => {
     if (parsed.positionals.length !== 1) {
       throw new UsageError(parsed.positionals.length === 0 ? 'give the I-V file to translate' : 'give exactly one I-V file', 'FILE');
     }
@@ -266,11 +258,5 @@ export async function run(argv: string[]): Promise<number> {
     }
     process.stdout.write(`${tableOf(file, measured, result)}\n`);
     return 0;
-  } catch (err) {
-    const usage = asUsageError(err, FLAGS);
-    if (!usage) throw err;
-    const out = usageErrorOutput(usage, json, USAGE);
-    process[out.stream].write(out.text);
-    return 2;
-  }
+  });
 }
