@@ -3,6 +3,7 @@
  * slopes at Isc and Voc, each from a local least-squares fit rather than a single sample
  * (DOMAIN.md), plus flags for shape problems.
  */
+import { goldenMax } from '@/lib/numeric/golden';
 import { IvInputError } from '@/lib/iv/errors';
 import { fitLocalPoly, polySlope, polyValue } from '@/lib/iv/local-fit';
 import { checkCurveReach, MIN_POINTS } from '@/lib/iv/parse';
@@ -238,29 +239,7 @@ export function keyFiguresOfSorted(v: readonly number[], i: readonly number[], c
     if (poly) {
       // Golden-section search of V·I(V) on the window; the product is unimodal near the MPP.
       const power = (x: number) => x * polyValue(poly, x);
-      let a = v[lo];
-      let b = v[hi];
-      const g = (Math.sqrt(5) - 1) / 2;
-      let c = b - g * (b - a);
-      let d = a + g * (b - a);
-      let pc = power(c);
-      let pd = power(d);
-      for (let it = 0; it < 80 && b - a > 1e-12 * Math.max(1, Math.abs(b)); it++) {
-        if (pc > pd) {
-          b = d;
-          d = c;
-          pd = pc;
-          c = b - g * (b - a);
-          pc = power(c);
-        } else {
-          a = c;
-          c = d;
-          pc = pd;
-          d = a + g * (b - a);
-          pd = power(d);
-        }
-      }
-      const x = (a + b) / 2;
+      const x = goldenMax(power, v[lo], v[hi], 1e-12 * Math.max(1, Math.abs(v[hi])), 80);
       const px = power(x);
       // An interior optimum of the local fit; at the window's edge the fit is not trusted.
       if (Number.isFinite(px) && px > 0 && x > v[lo] && x < v[hi]) {

@@ -8,6 +8,7 @@
  * in Vj) by Newton's method inside an expanding bracket, so it also covers the double-diode
  * model, which has no closed form.
  */
+import { goldenMax } from '@/lib/numeric/golden';
 import { thermalVoltage_V } from '@/lib/physics/constants';
 import { PhysicsError, requireFinite, requireNonNegative, requirePositive } from '@/lib/physics/errors';
 import type { DoubleDiodeParams, SingleDiodeParams } from '@/lib/iv/types';
@@ -171,29 +172,7 @@ export function circuitFigures(c: Circuit, cells: number, tempC: number): Circui
   const isc_a = currentAt(j, 0);
   const voc_v = vocOf(j);
   const power = (v: number) => v * currentAt(j, v);
-  const g = (Math.sqrt(5) - 1) / 2;
-  let a = 0;
-  let b = voc_v;
-  let x1 = b - g * (b - a);
-  let x2 = a + g * (b - a);
-  let p1 = power(x1);
-  let p2 = power(x2);
-  while (b - a > 1e-12 * voc_v) {
-    if (p1 > p2) {
-      b = x2;
-      x2 = x1;
-      p2 = p1;
-      x1 = b - g * (b - a);
-      p1 = power(x1);
-    } else {
-      a = x1;
-      x1 = x2;
-      p1 = p2;
-      x2 = a + g * (b - a);
-      p2 = power(x2);
-    }
-  }
-  const vmp_v = 0.5 * (a + b);
+  const vmp_v = goldenMax(power, 0, voc_v, 1e-12 * voc_v);
   const imp_a = currentAt(j, vmp_v);
   const pmp_w = vmp_v * imp_a;
   return { isc_a, voc_v, pmp_w, vmp_v, imp_a, ff: isc_a > 0 && voc_v > 0 ? pmp_w / (isc_a * voc_v) : 0 };
