@@ -71,6 +71,17 @@ const manifestSchema = z.array(
   }),
 );
 
+/** Paths of the demo curve files (sample-data/batches/); the server's analysis threads warm up on them. */
+export function demoCurveFiles(dir = SAMPLE_DIR): string[] {
+  const root = path.join(dir, 'batches');
+  try {
+    const manifest = manifestSchema.parse(JSON.parse(readFileSync(path.join(root, 'manifest.json'), 'utf8')));
+    return manifest.flatMap((m) => m.files.map((f) => path.join(root, m.slug, f)));
+  } catch {
+    return [];
+  }
+}
+
 /** Loads sample-data/batches/ through the same analyse-and-store path as an upload. */
 export async function seedDemoBatches(db: Db, organizationId: string, userId: string | null, dir = SAMPLE_DIR): Promise<number> {
   const root = path.join(dir, 'batches');

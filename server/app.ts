@@ -13,6 +13,7 @@ import type { Db } from '@/db/client';
 import type { Auth } from '@/server/auth';
 import { apiNotFound, errorHandler } from '@/server/errors';
 import type { Mailer } from '@/server/mail';
+import type { Analyser } from '@/server/services/analysis-pool';
 import { requireSession } from '@/server/permissions';
 import { batchesRouter } from '@/server/routes/batches';
 import { compareRouter } from '@/server/routes/compare';
@@ -32,6 +33,8 @@ export type AppDeps = {
   mailer: Mailer;
   /** Folder of the exported web app (dist/); served when it exists. */
   webDir?: string;
+  /** Where uploads are fitted: the server passes its worker pool; default in this thread. */
+  analyser?: Analyser;
 };
 
 export function createApp(deps: AppDeps): Express {
@@ -59,7 +62,7 @@ export function createApp(deps: AppDeps): Express {
   app.use('/api/me', session, meRouter());
   app.use('/api/users', session, usersRouter(db, auth));
   app.use('/api/outbox', session, outboxRouter(db));
-  app.use('/api/batches', session, batchesRouter(db), reviewsRouter(db, deps.mailer));
+  app.use('/api/batches', session, batchesRouter(db, deps.analyser), reviewsRouter(db, deps.mailer));
   app.use('/api/specs', session, specsRouter(db));
   app.use('/api/compare', session, compareRouter(db));
   app.use('/api/curves', session, curvesRouter(db));

@@ -8,10 +8,11 @@ import type { Server } from 'node:http';
 import path from 'node:path';
 import { openDatabase } from '@/db/client';
 import type { Database } from '@/db/client';
-import { seedDemo } from '@/db/seed';
+import { demoCurveFiles, seedDemo } from '@/db/seed';
 import { createApp } from '@/server/app';
 import { createAuth } from '@/server/auth';
 import { createMailer } from '@/server/mail';
+import { serverAnalyser } from '@/server/services/analysis-pool';
 
 export type RuntimeOptions = {
   dataDir: string;
@@ -44,8 +45,9 @@ export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Serv
     trustedOrigins: [url, `http://127.0.0.1:${opts.port}`, 'http://localhost:8081'],
     signInPerMinute: Number(process.env.QUASILEVEL_SIGNIN_PER_MINUTE ?? 10),
   });
+  const analyser = serverAnalyser(demoCurveFiles());
   const seeded = opts.seed === false ? false : await seedDemo(database.db, auth);
-  const app = createApp({ db: database.db, auth, mailer, webDir: opts.webDir });
+  const app = createApp({ db: database.db, auth, mailer, webDir: opts.webDir, analyser });
   const server = await new Promise<Server>((resolve) => {
     const s = app.listen(opts.port, opts.host ?? '0.0.0.0', () => resolve(s));
   });
@@ -53,6 +55,7 @@ export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Serv
   const stop = () =>
     (stopping ??= (async () => {
       await new Promise<void>((resolve) => server.close(() => resolve()));
+      await analyser.close();
       await database.close();
     })());
   return { server, database, url, seeded, stop };

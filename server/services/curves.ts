@@ -4,7 +4,7 @@
  */
 import { and, eq, getTableColumns, inArray, sql } from 'drizzle-orm';
 import type { Db } from '@/db/client';
-import { curve, fit } from '@/db/schema';
+import { batch, curve, fit } from '@/db/schema';
 import type { FileAnalysis } from '@/lib/analysis/analyse-file';
 import type { FitResult } from '@/lib/iv';
 
@@ -33,35 +33,62 @@ export function derivedColumns(a: FileAnalysis) {
   };
 }
 
+let lastStamp = 0;
+/** A creation time a millisecond after the previous one at least, so curves stored in one group keep their upload order. */
+function nextStamp(): Date {
+  lastStamp = Math.max(Date.now(), lastStamp + 1);
+  return new Date(lastStamp);
+}
+
+/** One analysed curve to store; `id` is chosen by the caller so it can answer before the write. */
+export type CurveToStore = { id: string; fileName: string; analysis: FileAnalysis; replaceIds?: string[] };
+
+/**
+ * Inserts analysed curves and their fits in one transaction (a multi-row insert: about three
+ * times cheaper a curve than one transaction each), deleting the curves they replace and marking
+ * the batch changed. A reader, or a restart after a crash, sees all of the group or none of it.
+ */
+export async function storeCurves(db: Db, target: { organizationId: string; batchId: string; userId: string | null }, items: CurveToStore[]): Promise<void> {
+  if (!items.length) return;
+  const replaced = [...new Set(items.flatMap((x) => x.replaceIds ?? []))];
+  const now = new Date();
+  await db.transaction(async (tx) => {
+    if (replaced.length) await tx.delete(curve).where(and(inArray(curve.id, replaced), eq(curve.batchId, target.batchId)));
+    await tx.insert(curve).values(
+      items.map(({ id, fileName, analysis: a }) => ({
+        id,
+        organizationId: target.organizationId,
+        batchId: target.batchId,
+        deviceId: a.curve.meta.deviceId ?? fileName,
+        fileName,
+        meta: a.curve.meta,
+        voltage_V: a.curve.voltage_V,
+        current_A: a.curve.current_A,
+        notes: a.curve.notes,
+        metrics: a.metrics,
+        flags: a.flags,
+        stc: a.stc,
+        createdBy: target.userId,
+        createdAt: nextStamp(),
+        ...derivedColumns(a),
+      })),
+    );
+    const fits = items.flatMap(({ id, analysis: a }) =>
+      a.fits.map((f) => ({ id: crypto.randomUUID(), curveId: id, model: f.model, current: true, result: f, conditions: a.conditions, reason: 'upload', createdBy: target.userId })),
+    );
+    if (fits.length) await tx.insert(fit).values(fits);
+    // Caches of batch-wide answers (comparison, summary) key on this.
+    await tx.update(batch).set({ updatedAt: now }).where(eq(batch.id, target.batchId));
+  });
+}
+
 /** Inserts one analysed curve and its fits; replaces `replaceIds` in the same transaction. */
 export async function storeCurve(
   db: Db,
   input: { organizationId: string; batchId: string; fileName: string; analysis: FileAnalysis; userId: string | null; replaceIds?: string[] },
 ): Promise<string> {
   const id = crypto.randomUUID();
-  const a = input.analysis;
-  await db.transaction(async (tx) => {
-    if (input.replaceIds?.length) {
-      await tx.delete(curve).where(and(inArray(curve.id, input.replaceIds), eq(curve.batchId, input.batchId)));
-    }
-    await tx.insert(curve).values({
-      id,
-      organizationId: input.organizationId,
-      batchId: input.batchId,
-      deviceId: a.curve.meta.deviceId ?? input.fileName,
-      fileName: input.fileName,
-      meta: a.curve.meta,
-      voltage_V: a.curve.voltage_V,
-      current_A: a.curve.current_A,
-      notes: a.curve.notes,
-      metrics: a.metrics,
-      flags: a.flags,
-      stc: a.stc,
-      createdBy: input.userId,
-      ...derivedColumns(a),
-    });
-    await insertFits(tx, id, a.fits, a.conditions, 'upload', input.userId);
-  });
+  await storeCurves(db, { organizationId: input.organizationId, batchId: input.batchId, userId: input.userId }, [{ id, fileName: input.fileName, analysis: input.analysis, replaceIds: input.replaceIds }]);
   return id;
 }
 

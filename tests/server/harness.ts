@@ -15,6 +15,7 @@ import { createAuth } from '@/server/auth';
 import type { Auth } from '@/server/auth';
 import { createMailer } from '@/server/mail';
 import type { Mailer } from '@/server/mail';
+import type { Analyser } from '@/server/services/analysis-pool';
 
 export const BASE_URL = 'http://localhost:8080';
 
@@ -29,7 +30,7 @@ export type Harness = {
   mails: () => string[];
 };
 
-export async function startHarness(opts: { signInPerMinute?: number } = {}): Promise<Harness> {
+export async function startHarness(opts: { signInPerMinute?: number; analyser?: Analyser } = {}): Promise<Harness> {
   const database = await openDatabase('memory');
   const outboxDir = mkdtempSync(path.join(os.tmpdir(), 'ql-outbox-'));
   const mailer = createMailer({ db: database.db, outboxDir });
@@ -42,7 +43,7 @@ export async function startHarness(opts: { signInPerMinute?: number } = {}): Pro
     signInPerMinute: opts.signInPerMinute ?? 0,
     logLevel: 'error',
   });
-  const app = createApp({ db: database.db, auth, mailer });
+  const app = createApp({ db: database.db, auth, mailer, analyser: opts.analyser });
   return {
     app,
     database,
@@ -54,6 +55,7 @@ export async function startHarness(opts: { signInPerMinute?: number } = {}): Pro
         .sort()
         .map((f) => readFileSync(path.join(outboxDir, f), 'utf8')),
     close: async () => {
+      await opts.analyser?.close();
       await database.close();
       rmSync(outboxDir, { recursive: true, force: true });
     },

@@ -1,0 +1,145 @@
+/**
+ * Where uploads are analysed (read, key figures, both diode fits, STC figures: ~10 ms of CPU a
+ * curve). The server uses a pool of worker threads, so a 1,000-curve upload runs on every core and
+ * the HTTP thread stays free for readers; the workers run at a lower scheduling priority (Linux
+ * nice 10) so that, when cores are short, interactive requests win over bulk fitting. Tests and
+ * tools that build the app in-process may use the inline analyser (same results, same thread).
+ */
+import os from 'node:os';
+import path from 'node:path';
+import { Worker } from 'node:worker_threads';
+import { analyseFile } from '@/lib/analysis/analyse-file';
+import type { FileAnalysis, FileDefaults, FileOverrides } from '@/lib/analysis/analyse-file';
+import { IvInputError } from '@/lib/iv';
+
+export type AnalysisRequest = { bytes: Uint8Array; fileName: string; overrides?: FileOverrides; defaults?: FileDefaults };
+
+/** What became of one file: its analysis, the reader's objection, or an unexpected failure. */
+export type AnalysisOutcome =
+  | { ok: true; analysis: FileAnalysis }
+  | { ok: false; kind: 'input'; code: string; message: string; line?: number }
+  | { ok: false; kind: 'failure'; message: string };
+
+export type Analyser = {
+  /** Analyses one file; never rejects (every problem is an outcome). */
+  analyse: (req: AnalysisRequest) => Promise<AnalysisOutcome>;
+  /** How many threads analyse (0: the caller's own thread). */
+  readonly threads: number;
+  close: () => Promise<void>;
+};
+
+/** Runs the pipeline on one file and turns its errors into outcomes (used in both modes). */
+export function analyseToOutcome(req: AnalysisRequest): AnalysisOutcome {
+  try {
+    return { ok: true, analysis: analyseFile(req.bytes, { fileName: req.fileName, overrides: req.overrides, defaults: req.defaults }) };
+  } catch (err) {
+    if (err instanceof IvInputError) return { ok: false, kind: 'input', code: err.code, message: err.message, ...(err.line ? { line: err.line } : {}) };
+    return { ok: false, kind: 'failure', message: (err as Error)?.message ?? String(err) };
+  }
+}
+
+/** Analyses in the calling thread, one file per macrotask so other requests interleave. */
+export function inlineAnalyser(): Analyser {
+  return {
+    threads: 0,
+    analyse: (req) => new Promise((resolve) => setImmediate(() => resolve(analyseToOutcome(req)))),
+    close: async () => undefined,
+  };
+}
+
+/** Threads for analysis: QUASILEVEL_ANALYSIS_THREADS, else one per core (at least 1). */
+export function analysisThreads(): number {
+  const raw = process.env.QUASILEVEL_ANALYSIS_THREADS;
+  if (raw !== undefined && raw !== '') {
+    const n = Number(raw);
+    if (!Number.isInteger(n) || n < 0 || n > 64) throw new Error(`QUASILEVEL_ANALYSIS_THREADS must be a whole number from 0 to 64, got "${raw}"`);
+    return n;
+  }
+  return Math.max(1, os.availableParallelism());
+}
+
+type Job = { id: number; req: AnalysisRequest; resolve: (o: AnalysisOutcome) => void };
+type Slot = { worker: Worker; job: Job | null };
+
+const WORKER_FILE = path.join(__dirname, 'analysis-worker.ts');
+
+/**
+ * A pool of `size` worker threads fed from one first-come queue (uploads of several clients
+ * share it fairly by arrival). With `warmFiles`, the threads start at once and analyse those
+ * files a few times before taking work: a fresh thread's first ~200 curves run at half speed
+ * while its compiler catches up (measured), and the first upload should not pay for that.
+ * Otherwise they start on first use. A worker that dies fails only the file it was on and is
+ * replaced.
+ */
+export function workerAnalyser(size: number, opts: { nice?: number; warmFiles?: string[] } = {}): Analyser {
+  if (!(Number.isInteger(size) && size >= 1)) throw new Error(`a worker pool needs at least one thread, got ${size}`);
+  const queue: Job[] = [];
+  const slots: Slot[] = [];
+  let nextId = 1;
+  let closed = false;
+
+  const spawnSlot = (): Slot => {
+    // The server runs TypeScript through tsx; a worker starts without the parent's loader, so it registers it first.
+    const worker = new Worker(`require('tsx/cjs/api').register(); require(${JSON.stringify(WORKER_FILE)});`, {
+      eval: true,
+      workerData: { nice: opts.nice ?? 10, warmFiles: opts.warmFiles ?? [] },
+    });
+    const slot: Slot = { worker, job: null };
+    worker.unref();
+    worker.on('message', (msg: { id: number; outcome: AnalysisOutcome }) => {
+      const job = slot.job;
+      if (!job || job.id !== msg.id) return;
+      slot.job = null;
+      job.resolve(msg.outcome);
+      pump();
+    });
+    const lost = (why: string) => {
+      const job = slot.job;
+      slot.job = null;
+      const k = slots.indexOf(slot);
+      if (k >= 0) slots.splice(k, 1);
+      job?.resolve({ ok: false, kind: 'failure', message: `the analysis thread stopped (${why})` });
+      if (!closed) pump();
+    };
+    worker.on('error', (err) => lost(err.message));
+    worker.on('exit', (code) => lost(`exit code ${code}`));
+    return slot;
+  };
+
+  const pump = () => {
+    while (!closed && queue.length) {
+      let slot = slots.find((s) => !s.job);
+      if (!slot && slots.length < size) {
+        slot = spawnSlot();
+        slots.push(slot);
+      }
+      if (!slot) return;
+      const job = queue.shift()!;
+      slot.job = job;
+      slot.worker.postMessage({ id: job.id, req: job.req });
+    }
+  };
+
+  if (opts.warmFiles?.length) while (slots.length < size) slots.push(spawnSlot());
+
+  return {
+    threads: size,
+    analyse: (req) =>
+      new Promise<AnalysisOutcome>((resolve) => {
+        if (closed) return resolve({ ok: false, kind: 'failure', message: 'the server is shutting down' });
+        queue.push({ id: nextId++, req, resolve });
+        pump();
+      }),
+    close: async () => {
+      closed = true;
+      for (const job of queue.splice(0)) job.resolve({ ok: false, kind: 'failure', message: 'the server is shutting down' });
+      await Promise.all(slots.splice(0).map((s) => s.worker.terminate()));
+    },
+  };
+}
+
+/** The analyser for a server: a worker pool of `analysisThreads()` threads warmed on `warmFiles`, inline when that is 0. */
+export function serverAnalyser(warmFiles: string[] = []): Analyser {
+  const n = analysisThreads();
+  return n === 0 ? inlineAnalyser() : workerAnalyser(n, { warmFiles });
+}
