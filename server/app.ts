@@ -14,7 +14,7 @@ import type { Auth } from '@/server/auth';
 import { apiNotFound, errorHandler } from '@/server/errors';
 import type { Mailer } from '@/server/mail';
 import type { Analyser } from '@/server/services/analysis-pool';
-import { requireSession } from '@/server/permissions';
+import { CallerCache, invalidatesCallers, requireSession } from '@/server/permissions';
 import { batchesRouter } from '@/server/routes/batches';
 import { compareRouter } from '@/server/routes/compare';
 import { curvesRouter } from '@/server/routes/curves';
@@ -35,6 +35,8 @@ export type AppDeps = {
   webDir?: string;
   /** Where uploads are fitted: the server passes its worker pool; default in this thread. */
   analyser?: Analyser;
+  /** How long a resolved caller is reused, ms (the server: 5000; default 0, every request asks the database). */
+  sessionCacheMs?: number;
 };
 
 export function createApp(deps: AppDeps): Express {
@@ -52,15 +54,16 @@ export function createApp(deps: AppDeps): Express {
   // gzip for JSON and the web bundle (the first load is ~3 MB raw, ~0.7 MB compressed).
   app.use(compression());
 
+  const callers = new CallerCache(deps.sessionCacheMs ?? 0);
   const authHandler = toNodeHandler(auth);
-  app.all('/api/auth/{*splat}', (req, res) => authHandler(req, res));
+  app.all('/api/auth/{*splat}', invalidatesCallers(callers), (req, res) => authHandler(req, res));
 
   app.use('/api', express.json({ limit: '1mb' }));
   app.use('/api/health', healthRouter());
 
-  const session = requireSession(auth, db);
+  const session = requireSession(auth, db, callers);
   app.use('/api/me', session, meRouter());
-  app.use('/api/users', session, usersRouter(db, auth));
+  app.use('/api/users', invalidatesCallers(callers), session, usersRouter(db, auth));
   app.use('/api/outbox', session, outboxRouter(db));
   app.use('/api/batches', session, batchesRouter(db, deps.analyser), reviewsRouter(db, deps.mailer));
   app.use('/api/specs', session, specsRouter(db));

@@ -33,8 +33,67 @@ export function callerOf(req: Request): Caller {
   return req.caller;
 }
 
-export function requireSession(auth: Auth, db: Db): RequestHandler {
+/**
+ * Recently resolved callers, keyed by the request's Cookie header: each guarded request would
+ * otherwise cost three database round trips (session, user, membership) before any work. An
+ * entry lives `ttlMs` and never past its session's expiry. Every change made through the
+ * product (sign-in or -out, password, organisation or role changes: any non-GET under
+ * /api/auth or /api/users) clears it, so a signed-out cookie is refused at once; only an edit of
+ * the database behind the server's back waits out the ttl.
+ */
+export class CallerCache {
+  private readonly entries = new Map<string, { caller: Caller; until: number }>();
+
+  constructor(
+    readonly ttlMs: number,
+    private readonly maxEntries = 5000,
+  ) {}
+
+  get(key: string, now = Date.now()): Caller | null {
+    const e = this.entries.get(key);
+    if (!e) return null;
+    if (e.until <= now) {
+      this.entries.delete(key);
+      return null;
+    }
+    return e.caller;
+  }
+
+  set(key: string, caller: Caller, sessionExpiresAt: Date, now = Date.now()): void {
+    if (this.ttlMs <= 0) return;
+    if (this.entries.size >= this.maxEntries) this.entries.delete(this.entries.keys().next().value as string);
+    this.entries.set(key, { caller, until: Math.min(now + this.ttlMs, sessionExpiresAt.getTime()) });
+  }
+
+  clear(): void {
+    this.entries.clear();
+  }
+
+  get size(): number {
+    return this.entries.size;
+  }
+}
+
+/** Middleware: clears `cache` before and after any request that may change sessions or roles. */
+export function invalidatesCallers(cache: CallerCache): RequestHandler {
+  return (req, res, next) => {
+    if (req.method === 'GET' || req.method === 'HEAD') return next();
+    cache.clear();
+    // After the change is committed as well: a request resolved meanwhile may have cached the old state.
+    res.on('finish', () => cache.clear());
+    res.on('close', () => cache.clear());
+    next();
+  };
+}
+
+export function requireSession(auth: Auth, db: Db, cache: CallerCache = new CallerCache(0)): RequestHandler {
   return async (req: Request, _res: Response, next: NextFunction) => {
+    const key = req.headers.cookie ?? '';
+    const cached = key ? cache.get(key) : null;
+    if (cached) {
+      req.caller = cached;
+      return next();
+    }
     const found = await auth.api.getSession({ headers: fromNodeHeaders(req.headers) });
     if (!found) throw new HttpError(401, 'unauthenticated', 'Your session is missing or has expired. Sign in again.');
     const [m] = await db
@@ -53,6 +112,7 @@ export function requireSession(auth: Auth, db: Db): RequestHandler {
       memberId: m.memberId,
       role: m.role,
     };
+    if (key) cache.set(key, req.caller, new Date(found.session.expiresAt));
     next();
   };
 }

@@ -32,6 +32,9 @@ function authSecret(dataDir: string): string {
   return secret;
 }
 
+/** How long the server reuses a resolved session and role (see CallerCache). */
+const SESSION_CACHE_MS = 5000;
+
 export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Server; database: Database; url: string; seeded: boolean; stop: () => Promise<void> }> {
   mkdirSync(opts.dataDir, { recursive: true });
   const database = await openDatabase(path.join(opts.dataDir, 'db'));
@@ -47,7 +50,7 @@ export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Serv
   });
   const analyser = serverAnalyser(demoCurveFiles());
   const seeded = opts.seed === false ? false : await seedDemo(database.db, auth);
-  const app = createApp({ db: database.db, auth, mailer, webDir: opts.webDir, analyser });
+  const app = createApp({ db: database.db, auth, mailer, webDir: opts.webDir, analyser, sessionCacheMs: SESSION_CACHE_MS });
   const server = await new Promise<Server>((resolve) => {
     const s = app.listen(opts.port, opts.host ?? '0.0.0.0', () => resolve(s));
   });

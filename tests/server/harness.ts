@@ -30,7 +30,7 @@ export type Harness = {
   mails: () => string[];
 };
 
-export async function startHarness(opts: { signInPerMinute?: number; analyser?: Analyser } = {}): Promise<Harness> {
+export async function startHarness(opts: { signInPerMinute?: number; analyser?: Analyser; sessionCacheMs?: number } = {}): Promise<Harness> {
   const database = await openDatabase('memory');
   const outboxDir = mkdtempSync(path.join(os.tmpdir(), 'ql-outbox-'));
   const mailer = createMailer({ db: database.db, outboxDir });
@@ -43,7 +43,7 @@ export async function startHarness(opts: { signInPerMinute?: number; analyser?: 
     signInPerMinute: opts.signInPerMinute ?? 0,
     logLevel: 'error',
   });
-  const app = createApp({ db: database.db, auth, mailer, analyser: opts.analyser });
+  const app = createApp({ db: database.db, auth, mailer, analyser: opts.analyser, sessionCacheMs: opts.sessionCacheMs });
   return {
     app,
     database,
