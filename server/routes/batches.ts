@@ -1,4 +1,4 @@
-import { and, asc, count, desc, eq, ilike, sql } from 'drizzle-orm';
+import { and, asc, count, desc, eq, ilike, max, sql } from 'drizzle-orm';
 import { Router } from 'express';
 import type { NextFunction, Request, Response } from 'express';
 import multer from 'multer';
@@ -10,6 +10,7 @@ import { batchCreateSchema, batchUpdateSchema, curveListQuerySchema, uploadOverr
 import { HttpError, notFound } from '@/server/errors';
 import { callerOf, requirePermission } from '@/server/permissions';
 import { inlineAnalyser } from '@/server/services/analysis-pool';
+import { AnswerCache, batchKey, touchBatch } from '@/server/services/answer-cache';
 import type { Analyser, AnalysisOutcome } from '@/server/services/analysis-pool';
 import { curveJson, curveListColumns, fitsFor, storeCurves } from '@/server/services/curves';
 import type { CurveToStore } from '@/server/services/curves';
@@ -81,17 +82,25 @@ type UploadResult = { file: string; accepted: true; curveId: string; deviceId: s
 /** /api/batches — batches, uploads, the batch table and overlay. */
 export function batchesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Router {
   const r = Router();
+  // Answers about one state of a batch (see answer-cache.ts): many people reading the same batch cost one computation.
+  const answers = new AnswerCache();
+  const sendJson = (res: Response, body: string) => res.type('application/json').send(body);
 
   /** GET /api/batches — the organisation's batches with their curve counts. */
   r.get('/', requirePermission('batch:read'), async (req, res) => {
     const c = callerOf(req);
-    const rows = await db
-      // Qualified by hand: inside a subquery drizzle would print bare column names that resolve to the inner table.
-      .select({ b: batch, curves: sql<number>`(select count(*)::int from "curve" c where c.batch_id = "batch"."id")`, meanPmp: sql<number | null>`(select avg(c.pmp_w) from "curve" c where c.batch_id = "batch"."id")` })
-      .from(batch)
-      .where(eq(batch.organizationId, c.organization.id))
-      .orderBy(desc(batch.createdAt));
-    res.json({ batches: rows.map((x) => batchJson(x.b, { curveCount: x.curves, meanPmp_w: x.meanPmp == null ? null : Number(x.meanPmp) })) });
+    // The organisation's batches in one state: their number and latest change name it.
+    const [rev] = await db.select({ n: count(), last: max(batch.updatedAt) }).from(batch).where(eq(batch.organizationId, c.organization.id));
+    const body = await answers.get(`org:${c.organization.id}@${rev.n}/${rev.last?.getTime() ?? 0}:list`, async () => {
+      const rows = await db
+        // Qualified by hand: inside a subquery drizzle would print bare column names that resolve to the inner table.
+        .select({ b: batch, curves: sql<number>`(select count(*)::int from "curve" c where c.batch_id = "batch"."id")`, meanPmp: sql<number | null>`(select avg(c.pmp_w) from "curve" c where c.batch_id = "batch"."id")` })
+        .from(batch)
+        .where(eq(batch.organizationId, c.organization.id))
+        .orderBy(desc(batch.createdAt));
+      return { batches: rows.map((x) => batchJson(x.b, { curveCount: x.curves, meanPmp_w: x.meanPmp == null ? null : Number(x.meanPmp) })) };
+    });
+    sendJson(res, body);
   });
 
   /** POST /api/batches — create a batch (test engineers, QA leads). */
@@ -107,19 +116,22 @@ export function batchesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Ro
   /** GET /api/batches/:id — one batch with summary figures. */
   r.get('/:id', requirePermission('batch:read'), async (req, res) => {
     const b = await loadBatch(db, req);
-    const rows = await db
-      .select({ isc: curve.isc_a, voc: curve.voc_v, pmp: curve.pmp_w, ff: curve.ff, n: curve.n, rs: curve.rs_ohm, rsh: curve.rsh_ohm, stc: curve.stc_pmp_w, flags: curve.flagCodes })
-      .from(curve)
-      .where(eq(curve.batchId, b.id));
-    const pick = (k: keyof (typeof rows)[number]) => rows.map((x) => x[k]).filter((v): v is number => typeof v === 'number' && Number.isFinite(v));
-    const summary: Record<string, ReturnType<typeof describeValues> | null> = {};
-    for (const [key, col] of [['isc_a', 'isc'], ['voc_v', 'voc'], ['pmp_w', 'pmp'], ['ff', 'ff'], ['n', 'n'], ['rs_ohm', 'rs'], ['rsh_ohm', 'rsh'], ['stc_pmp_w', 'stc']] as const) {
-      const v = pick(col);
-      summary[key] = v.length ? describeValues(v) : null;
-    }
-    const flagCounts: Record<string, number> = {};
-    for (const x of rows) for (const f of x.flags.split(' ').filter(Boolean)) flagCounts[f] = (flagCounts[f] ?? 0) + 1;
-    res.json(batchJson(b, { curveCount: rows.length, summary, flagCounts }));
+    const body = await answers.get(batchKey(b, 'summary'), async () => {
+      const rows = await db
+        .select({ isc: curve.isc_a, voc: curve.voc_v, pmp: curve.pmp_w, ff: curve.ff, n: curve.n, rs: curve.rs_ohm, rsh: curve.rsh_ohm, stc: curve.stc_pmp_w, flags: curve.flagCodes })
+        .from(curve)
+        .where(eq(curve.batchId, b.id));
+      const pick = (k: keyof (typeof rows)[number]) => rows.map((x) => x[k]).filter((v): v is number => typeof v === 'number' && Number.isFinite(v));
+      const summary: Record<string, ReturnType<typeof describeValues> | null> = {};
+      for (const [key, col] of [['isc_a', 'isc'], ['voc_v', 'voc'], ['pmp_w', 'pmp'], ['ff', 'ff'], ['n', 'n'], ['rs_ohm', 'rs'], ['rsh_ohm', 'rsh'], ['stc_pmp_w', 'stc']] as const) {
+        const v = pick(col);
+        summary[key] = v.length ? describeValues(v) : null;
+      }
+      const flagCounts: Record<string, number> = {};
+      for (const x of rows) for (const f of x.flags.split(' ').filter(Boolean)) flagCounts[f] = (flagCounts[f] ?? 0) + 1;
+      return batchJson(b, { curveCount: rows.length, summary, flagCounts });
+    });
+    sendJson(res, body);
   });
 
   /** PATCH /api/batches/:id — rename, describe, archive or restore. */
@@ -127,7 +139,7 @@ export function batchesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Ro
     const b = await loadBatch(db, req);
     if (b.state === 'released') throw new HttpError(409, 'batch_released', 'This batch is released and read-only.');
     const changes = Object.fromEntries(Object.entries(req.body).filter(([, v]) => v !== undefined));
-    const [u] = await db.update(batch).set({ ...changes, updatedAt: new Date() }).where(eq(batch.id, b.id)).returning();
+    const [u] = await touchBatch(db, b.id, changes);
     res.json(batchJson(u));
   });
 
@@ -217,64 +229,62 @@ export function batchesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Ro
   r.get('/:id/curves', requirePermission('batch:read'), async (req, res) => {
     const b = await loadBatch(db, req);
     const q = curveListQuerySchema.parse(req.query);
-    const sortCol = {
-      device_id: curve.deviceId,
-      isc_a: curve.isc_a,
-      voc_v: curve.voc_v,
-      pmp_w: curve.pmp_w,
-      ff: curve.ff,
-      n: curve.n,
-      rs_ohm: curve.rs_ohm,
-      rsh_ohm: curve.rsh_ohm,
-      stc_pmp_w: curve.stc_pmp_w,
-      created_at: curve.createdAt,
-    }[q.sort];
-    const conds = [eq(curve.batchId, b.id)];
-    if (q.q) conds.push(ilike(curve.deviceId, `%${q.q.replace(/[\\%_]/g, (m) => '\\' + m)}%`));
-    if (q.flag) conds.push(sql`(' ' || ${curve.flagCodes} || ' ') like ${'% ' + q.flag + ' %'}`);
-    const where = and(...conds);
-    const [{ total }] = await db.select({ total: count() }).from(curve).where(where);
-    const rows = await db
-      .select(curveListColumns)
-      .from(curve)
-      .where(where)
-      .orderBy(q.dir === 'asc' ? sql`${sortCol} asc nulls last` : sql`${sortCol} desc nulls last`, asc(curve.id))
-      .limit(q.pageSize)
-      .offset((q.page - 1) * q.pageSize);
-    const fits = await fitsFor(db, rows.map((x) => x.id), true, false);
-    res.json({
-      curves: rows.map((x) => {
-        const j = curveJson(x, fits.get(x.id) ?? [], false);
-        return j;
-      }),
-      total,
-      page: q.page,
-      pageSize: q.pageSize,
+    const body = await answers.get(batchKey(b, `curves:${JSON.stringify(q)}`), async () => {
+      const sortCol = {
+        device_id: curve.deviceId,
+        isc_a: curve.isc_a,
+        voc_v: curve.voc_v,
+        pmp_w: curve.pmp_w,
+        ff: curve.ff,
+        n: curve.n,
+        rs_ohm: curve.rs_ohm,
+        rsh_ohm: curve.rsh_ohm,
+        stc_pmp_w: curve.stc_pmp_w,
+        created_at: curve.createdAt,
+      }[q.sort];
+      const conds = [eq(curve.batchId, b.id)];
+      if (q.q) conds.push(ilike(curve.deviceId, `%${q.q.replace(/[\\%_]/g, (m) => '\\' + m)}%`));
+      if (q.flag) conds.push(sql`(' ' || ${curve.flagCodes} || ' ') like ${'% ' + q.flag + ' %'}`);
+      const where = and(...conds);
+      const [{ total }] = await db.select({ total: count() }).from(curve).where(where);
+      const rows = await db
+        .select(curveListColumns)
+        .from(curve)
+        .where(where)
+        .orderBy(q.dir === 'asc' ? sql`${sortCol} asc nulls last` : sql`${sortCol} desc nulls last`, asc(curve.id))
+        .limit(q.pageSize)
+        .offset((q.page - 1) * q.pageSize);
+      const fits = await fitsFor(db, rows.map((x) => x.id), true, false);
+      return { curves: rows.map((x) => curveJson(x, fits.get(x.id) ?? [], false)), total, page: q.page, pageSize: q.pageSize };
     });
+    sendJson(res, body);
   });
 
   /** GET /api/batches/:id/overlay?max=N — a sample of the batch's curves, thinned for one chart. */
   r.get('/:id/overlay', requirePermission('batch:read'), async (req, res) => {
     const b = await loadBatch(db, req);
-    const max = Math.min(60, Math.max(1, Number(req.query.max) || 30));
-    const ids = await db.select({ id: curve.id }).from(curve).where(eq(curve.batchId, b.id)).orderBy(asc(curve.deviceId));
-    const step = Math.max(1, ids.length / max);
-    const chosen = Array.from({ length: Math.min(max, ids.length) }, (_, k) => ids[Math.floor(k * step)].id);
-    const rows = chosen.length
-      ? await db
-          .select({ id: curve.id, deviceId: curve.deviceId, v: curve.voltage_V, i: curve.current_A, flags: curve.flagCodes })
-          .from(curve)
-          .where(sql`${curve.id} in ${chosen}`)
-      : [];
-    const thin = (arr: number[], k: number) => arr.filter((_, idx) => idx % k === 0 || idx === arr.length - 1);
-    res.json({
-      total: ids.length,
-      sampled: rows.length,
-      curves: rows.map((x) => {
-        const k = Math.max(1, Math.ceil(x.v.length / 80));
-        return { id: x.id, device_id: x.deviceId, flagged: x.flags.length > 0, voltage_V: thin(x.v, k), current_A: thin(x.i, k) };
-      }),
+    const most = Math.min(60, Math.max(1, Number(req.query.max) || 30));
+    const body = await answers.get(batchKey(b, `overlay:${most}`), async () => {
+      const ids = await db.select({ id: curve.id }).from(curve).where(eq(curve.batchId, b.id)).orderBy(asc(curve.deviceId));
+      const step = Math.max(1, ids.length / most);
+      const chosen = Array.from({ length: Math.min(most, ids.length) }, (_, k) => ids[Math.floor(k * step)].id);
+      const rows = chosen.length
+        ? await db
+            .select({ id: curve.id, deviceId: curve.deviceId, v: curve.voltage_V, i: curve.current_A, flags: curve.flagCodes })
+            .from(curve)
+            .where(sql`${curve.id} in ${chosen}`)
+        : [];
+      const thin = (arr: number[], k: number) => arr.filter((_, idx) => idx % k === 0 || idx === arr.length - 1);
+      return {
+        total: ids.length,
+        sampled: rows.length,
+        curves: rows.map((x) => {
+          const k = Math.max(1, Math.ceil(x.v.length / 80));
+          return { id: x.id, device_id: x.deviceId, flagged: x.flags.length > 0, voltage_V: thin(x.v, k), current_A: thin(x.i, k) };
+        }),
+      };
     });
+    sendJson(res, body);
   });
 
   return r;

@@ -9,6 +9,7 @@ import { refitSchema } from '@/lib/schemas/curves';
 import { assertWritable } from '@/server/routes/batches';
 import { HttpError, notFound } from '@/server/errors';
 import { callerOf, requirePermission } from '@/server/permissions';
+import { touchBatch } from '@/server/services/answer-cache';
 import { curveJson, derivedColumns, fitsFor, insertFits } from '@/server/services/curves';
 import { validate } from '@/server/validate';
 
@@ -69,8 +70,8 @@ export function curvesRouter(db: Db): Router {
       const all = current.map((x) => x.result);
       const cols = derivedColumns({ ...analysis, fits: all });
       await tx.update(curve).set({ meta, metrics: analysis.metrics, flags: analysis.flags, stc: analysis.stc ?? row.stc, ...cols }).where(eq(curve.id, row.id));
-      // The batch changed: comparisons cached against its updatedAt must read it again.
-      await tx.update(batch).set({ updatedAt: new Date() }).where(eq(batch.id, row.batchId));
+      // The batch changed: answers cached against its revision must be computed again.
+      await touchBatch(tx, row.batchId);
     });
     const [after] = await db.select().from(curve).where(eq(curve.id, row.id));
     const fits = (await fitsFor(db, [row.id], false)).get(row.id) ?? [];

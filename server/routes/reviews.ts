@@ -11,6 +11,7 @@ import { HttpError } from '@/server/errors';
 import type { Mailer } from '@/server/mail';
 import { callerOf, requirePermission } from '@/server/permissions';
 import { batchJson, loadBatch } from '@/server/routes/batches';
+import { touchBatch } from '@/server/services/answer-cache';
 import { deviceRecords, loadSpec } from '@/server/services/quality';
 import { validate } from '@/server/validate';
 
@@ -103,7 +104,7 @@ export function reviewsRouter(db: Db, mailer: Mailer): Router {
       throw new HttpError(409, 'unfitted_curves', `${unfitted.length} curve(s) have no converged fit (${unfitted.slice(0, 5).map((d) => d.deviceId).join(', ')}${unfitted.length > 5 ? ', …' : ''}). Refit or remove them first.`);
     }
     await db.transaction(async (tx) => {
-      await tx.update(batch).set({ state: 'in_review', updatedAt: new Date() }).where(eq(batch.id, b.id));
+      await touchBatch(tx, b.id, { state: 'in_review' });
       await tx.insert(batchReview).values({ id: crypto.randomUUID(), batchId: b.id, action: 'submitted', counts: { total: devices.length }, comment: req.body.comment || null, actorId: c.user.id });
     });
     const leads = await db
@@ -153,7 +154,7 @@ export function reviewsRouter(db: Db, mailer: Mailer): Router {
     const state = body.decision === 'release' ? 'released' : 'on_hold';
     const tally = counts(evaluation);
     await db.transaction(async (tx) => {
-      await tx.update(batch).set({ state, updatedAt: new Date() }).where(eq(batch.id, b.id));
+      await touchBatch(tx, b.id, { state });
       await tx.insert(batchReview).values({ id: crypto.randomUUID(), batchId: b.id, action: body.decision === 'release' ? 'released' : 'held', specId: specRow.id, counts: tally, comment: body.comment || null, actorId: c.user.id });
     });
     const [submission] = await db

@@ -4,7 +4,8 @@
  */
 import { and, eq, getTableColumns, inArray, sql } from 'drizzle-orm';
 import type { Db } from '@/db/client';
-import { batch, curve, fit } from '@/db/schema';
+import { curve, fit } from '@/db/schema';
+import { touchBatch } from '@/server/services/answer-cache';
 import type { FileAnalysis } from '@/lib/analysis/analyse-file';
 import type { FitResult } from '@/lib/iv';
 
@@ -51,7 +52,6 @@ export type CurveToStore = { id: string; fileName: string; analysis: FileAnalysi
 export async function storeCurves(db: Db, target: { organizationId: string; batchId: string; userId: string | null }, items: CurveToStore[]): Promise<void> {
   if (!items.length) return;
   const replaced = [...new Set(items.flatMap((x) => x.replaceIds ?? []))];
-  const now = new Date();
   await db.transaction(async (tx) => {
     if (replaced.length) await tx.delete(curve).where(and(inArray(curve.id, replaced), eq(curve.batchId, target.batchId)));
     await tx.insert(curve).values(
@@ -77,8 +77,8 @@ export async function storeCurves(db: Db, target: { organizationId: string; batc
       a.fits.map((f) => ({ id: crypto.randomUUID(), curveId: id, model: f.model, current: true, result: f, conditions: a.conditions, reason: 'upload', createdBy: target.userId })),
     );
     if (fits.length) await tx.insert(fit).values(fits);
-    // Caches of batch-wide answers (comparison, summary) key on this.
-    await tx.update(batch).set({ updatedAt: now }).where(eq(batch.id, target.batchId));
+    // Cached answers about the batch (comparison, summary, pages) key on its revision.
+    await touchBatch(tx, target.batchId);
   });
 }
 
