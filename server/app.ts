@@ -5,6 +5,7 @@
  */
 import { existsSync } from 'node:fs';
 import path from 'node:path';
+import zlib from 'node:zlib';
 import { toNodeHandler } from 'better-auth/node';
 import compression from 'compression';
 import express from 'express';
@@ -44,6 +45,8 @@ export function createApp(deps: AppDeps): Express {
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', false);
+  // No ETag on API answers: nothing asks conditionally, and hashing a 4 MB comparison costs ~10 ms a request.
+  app.set('etag', false);
 
   // The sign-in rate limit keys on this header; only the socket's address may set it.
   app.use((req, _res, next) => {
@@ -51,8 +54,11 @@ export function createApp(deps: AppDeps): Express {
     next();
   });
 
-  // gzip for JSON and the web bundle (the first load is ~3 MB raw, ~0.7 MB compressed).
-  app.use(compression());
+  // Compression: the web bundle (~3 MB raw) with the default settings (~0.7 MB); API answers,
+  // made per request, with the fastest settings: a 3 MB comparison takes ~25 ms instead of ~150.
+  const apiCompression = compression({ level: 1, brotli: { params: { [zlib.constants.BROTLI_PARAM_QUALITY]: 1 } } });
+  const assetCompression = compression();
+  app.use((req, res, next) => (req.path.startsWith('/api/') ? apiCompression : assetCompression)(req, res, next));
 
   const callers = new CallerCache(deps.sessionCacheMs ?? 0);
   const authHandler = toNodeHandler(auth);

@@ -3,6 +3,8 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { apiFetch } from '@/lib/api/client';
 import { batchKeys } from '@/lib/api/batches';
 import type { Batch, DescribeStats } from '@/lib/api/batches';
+import { rowsOfTable } from '@/lib/quality/compare-table';
+import type { CompareRow, CompareTable } from '@/lib/quality/compare-table';
 import type { Spec, SpecInput } from '@/lib/quality/spec';
 
 export type SpecJson = Spec & { id: string; familyId: string; version: number; changes: string[]; createdAt: string; versions?: { id: string; version: number; changes: string[]; createdAt: string; by: string | null }[] };
@@ -30,7 +32,7 @@ export type Evaluation = {
 
 export type Review = { id: string; action: string; specId: string | null; counts: Record<string, number> | null; comment: string | null; createdAt: string; actor: string | null };
 
-export type CompareRow = Record<string, unknown> & { curveId: string; batchId: string; batchName: string; deviceId: string; flags: string[]; result: 'pass' | 'fail' | null; reasons: string[]; powerClass: string | null; outlier: boolean | null };
+export type { CompareRow };
 export type Difference = { batchA: string; batchB: string; param: string; difference?: number; ciLow?: number; ciHigh?: number; p?: number; dof?: number; sentence?: string; significant?: boolean; error?: string };
 export type Comparison = {
   batches: { id: string; name: string; state: string; count: number }[];
@@ -41,6 +43,14 @@ export type Comparison = {
   counts: Record<string, { total: number; pass: number; fail: number; outliers: number } | null>;
   differences: Difference[];
 };
+/** The comparison as the server sends it: the rows as columns (lib/quality/compare-table.ts). */
+export type ComparisonWire = Omit<Comparison, 'rows'> & { table: CompareTable };
+
+/** The wire answer with its rows as objects again, as the grid, filters and charts use them. */
+export function comparisonOfWire(w: ComparisonWire): Comparison {
+  const { table, ...rest } = w;
+  return { ...rest, rows: rowsOfTable(table, w.batches) };
+}
 
 export const specKeys = {
   all: ['specs'] as const,
@@ -108,7 +118,7 @@ export function useComparison(ids: string[], specId: string, param: string) {
   const qs = new URLSearchParams({ batches: ids.join(','), param, ...(specId ? { spec: specId } : {}) });
   return useQuery({
     queryKey: qualityKeys.compare(ids, specId, param),
-    queryFn: () => apiFetch<Comparison>(`/api/compare?${qs}`),
+    queryFn: async () => comparisonOfWire(await apiFetch<ComparisonWire>(`/api/compare?${qs}`)),
     enabled: ids.length > 0,
   });
 }

@@ -7,3 +7,4 @@ export * from '@/lib/quality/robust-z';
 export * from '@/lib/quality/spec';
 export * from '@/lib/quality/evaluate';
 export * from '@/lib/quality/csv';
+export * from '@/lib/quality/compare-table';

@@ -10,7 +10,7 @@ import { batchCreateSchema, batchUpdateSchema, curveListQuerySchema, uploadOverr
 import { HttpError, notFound } from '@/server/errors';
 import { callerOf, requirePermission } from '@/server/permissions';
 import { inlineAnalyser } from '@/server/services/analysis-pool';
-import { AnswerCache, batchKey, touchBatch } from '@/server/services/answer-cache';
+import { AnswerCache, batchKey, sendAnswer, touchBatch } from '@/server/services/answer-cache';
 import type { Analyser, AnalysisOutcome } from '@/server/services/analysis-pool';
 import { curveJson, curveListColumns, fitsFor, storeCurves } from '@/server/services/curves';
 import type { CurveToStore } from '@/server/services/curves';
@@ -84,7 +84,6 @@ export function batchesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Ro
   const r = Router();
   // Answers about one state of a batch (see answer-cache.ts): many people reading the same batch cost one computation.
   const answers = new AnswerCache();
-  const sendJson = (res: Response, body: string) => res.type('application/json').send(body);
 
   /** GET /api/batches — the organisation's batches with their curve counts. */
   r.get('/', requirePermission('batch:read'), async (req, res) => {
@@ -100,7 +99,7 @@ export function batchesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Ro
         .orderBy(desc(batch.createdAt));
       return { batches: rows.map((x) => batchJson(x.b, { curveCount: x.curves, meanPmp_w: x.meanPmp == null ? null : Number(x.meanPmp) })) };
     });
-    sendJson(res, body);
+    sendAnswer(res, body);
   });
 
   /** POST /api/batches — create a batch (test engineers, QA leads). */
@@ -131,7 +130,7 @@ export function batchesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Ro
       for (const x of rows) for (const f of x.flags.split(' ').filter(Boolean)) flagCounts[f] = (flagCounts[f] ?? 0) + 1;
       return batchJson(b, { curveCount: rows.length, summary, flagCounts });
     });
-    sendJson(res, body);
+    sendAnswer(res, body);
   });
 
   /** PATCH /api/batches/:id — rename, describe, archive or restore. */
@@ -257,7 +256,7 @@ export function batchesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Ro
       const fits = await fitsFor(db, rows.map((x) => x.id), true, false);
       return { curves: rows.map((x) => curveJson(x, fits.get(x.id) ?? [], false)), total, page: q.page, pageSize: q.pageSize };
     });
-    sendJson(res, body);
+    sendAnswer(res, body);
   });
 
   /** GET /api/batches/:id/overlay?max=N — a sample of the batch's curves, thinned for one chart. */
@@ -284,7 +283,7 @@ export function batchesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Ro
         }),
       };
     });
-    sendJson(res, body);
+    sendAnswer(res, body);
   });
 
   return r;

@@ -8,6 +8,7 @@
  * embedded), so nothing changes a batch without passing here.
  */
 import { eq, sql } from 'drizzle-orm';
+import type { Response } from 'express';
 import type { Db } from '@/db/client';
 import { batch } from '@/db/schema';
 
@@ -23,31 +24,32 @@ export async function touchBatch(tx: Tx | Db, batchId: string, changes: Partial<
 }
 
 /**
- * Serialized JSON answers, least recently used dropped first once `maxBytes` is exceeded.
- * Keys carry the revision they were computed from, so a stale entry is never hit, only aged out.
+ * Serialized JSON answers (UTF-8 bytes, ready to send), least recently used dropped first once
+ * `maxBytes` is exceeded. Keys carry the revision they were computed from, so a stale entry is
+ * never hit, only aged out.
  */
 export class AnswerCache {
-  private readonly entries = new Map<string, string>();
+  private readonly entries = new Map<string, Buffer>();
   private bytes = 0;
 
   constructor(private readonly maxBytes = 64 * 1024 * 1024) {}
 
   /** The answer under `key`, computing and keeping it when missing. */
-  async get(key: string, compute: () => Promise<unknown>): Promise<string> {
+  async get(key: string, compute: () => Promise<unknown>): Promise<Buffer> {
     const hit = this.entries.get(key);
     if (hit !== undefined) {
       this.entries.delete(key);
       this.entries.set(key, hit);
       return hit;
     }
-    const body = JSON.stringify(await compute());
-    if (body.length * 2 <= this.maxBytes) {
+    const body = Buffer.from(JSON.stringify(await compute()));
+    if (body.length <= this.maxBytes) {
       this.entries.set(key, body);
-      this.bytes += body.length * 2; // UTF-16 in memory
+      this.bytes += body.length;
       for (const [k, v] of this.entries) {
         if (this.bytes <= this.maxBytes) break;
         this.entries.delete(k);
-        this.bytes -= v.length * 2;
+        this.bytes -= v.length;
       }
     }
     return body;
@@ -59,6 +61,11 @@ export class AnswerCache {
 }
 
 /** The cache key of an answer about one batch state. */
+/** Sends a cached answer as JSON. */
+export function sendAnswer(res: Response, body: Buffer): void {
+  res.type('application/json').send(body);
+}
+
 export function batchKey(b: { id: string; updatedAt: Date }, what: string): string {
   return `${b.id}@${b.updatedAt.getTime()}:${what}`;
 }

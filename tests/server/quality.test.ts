@@ -7,6 +7,7 @@ import { eq } from 'drizzle-orm';
 import Papa from 'papaparse';
 import { batch, curve, fit, member, organization, user } from '@/db/schema';
 import { seedDemoBatches } from '@/db/seed';
+import { rowsOfTable } from '@/lib/quality';
 import { signIn, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
 
@@ -244,15 +245,19 @@ describe('comparison', () => {
     expect(res.status).toBe(200);
     const n2 = res.body.batches[0].count;
     const n3 = res.body.batches[1].count;
-    expect(res.body.rows).toHaveLength(n2 + n3);
-    expect(res.body.rows[0]).toEqual(expect.objectContaining({ deviceId: expect.any(String), pmp_w: expect.any(Number), rs_ohm: expect.any(Number), result: expect.stringMatching(/pass|fail/) }));
+    // The rows travel as columns; rowsOfTable gives the objects the grid uses back.
+    expect(res.body.rows).toBeUndefined();
+    const rows = rowsOfTable(res.body.table, res.body.batches);
+    expect(rows).toHaveLength(n2 + n3);
+    expect(rows.filter((r) => r.batchId === lineTwo)).toHaveLength(n2);
+    expect(rows[0]).toEqual(expect.objectContaining({ deviceId: expect.any(String), pmp_w: expect.any(Number), rs_ohm: expect.any(Number), result: expect.stringMatching(/pass|fail/) }));
     const s2 = res.body.stats[lineTwo].rs_ohm;
     expect(s2.n).toBe(n2);
     expect(s2.cpk).toEqual(expect.any(Number)); // against the spec's rs_ohm max
     const d = res.body.differences[0];
     // Independent check of the difference and the Welch–Satterthwaite degrees of freedom
     // (Welch 1947) from the rows themselves.
-    const pick = (id: string) => res.body.rows.filter((r: { batchId: string }) => r.batchId === id).map((r: { rs_ohm: number }) => r.rs_ohm);
+    const pick = (id: string) => rows.filter((r) => r.batchId === id).map((r) => r.rs_ohm as number);
     const a = pick(lineTwo);
     const b = pick(lineThree);
     const mean = (x: number[]) => x.reduce((s, v) => s + v, 0) / x.length;
@@ -266,14 +271,14 @@ describe('comparison', () => {
 
   it('answers again after a refit changed a batch (no stale comparison)', async () => {
     const first = await designer.get(`/api/compare?batches=${lineTwo}&param=n`);
-    const row = first.body.rows.find((r: { deviceId: string }) => r.deviceId === 'M2611-005');
+    const row = rowsOfTable(first.body.table, first.body.batches).find((r) => r.deviceId === 'M2611-005')!;
     const tempC = (await tester.get(`/api/curves/${row.curveId}`)).body.meta.tempC;
     const refit = await tester.post(`/api/curves/${row.curveId}/refit`).send({ tempC: tempC + 20, model: 'single' });
     expect(refit.status).toBe(200);
     const again = await designer.get(`/api/compare?batches=${lineTwo}&param=n`);
-    const after = again.body.rows.find((r: { deviceId: string }) => r.deviceId === 'M2611-005');
+    const after = rowsOfTable(again.body.table, again.body.batches).find((r) => r.deviceId === 'M2611-005')!;
     // n·T is what the fit determines, so n falls by the ratio of absolute temperatures.
-    expect(after.n / row.n).toBeCloseTo((tempC + 273.15) / (tempC + 20 + 273.15), 2);
+    expect((after.n as number) / (row.n as number)).toBeCloseTo((tempC + 273.15) / (tempC + 20 + 273.15), 2);
   });
 
   it('404 when a batch belongs to another organisation; 400 for an unknown parameter', async () => {
