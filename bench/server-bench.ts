@@ -171,8 +171,8 @@ export async function benchServer(opts: { quick?: boolean } = {}): Promise<Recor
       await deviceRecords(db, ids);
       return performance.now() - t;
     });
-    const answer = await api<{ table: { length: number } }>(designer, 'GET', gridPath);
-    const rows = answer.table.length;
+    const answer = await api<{ tables: { length: number }[] }>(designer, 'GET', gridPath);
+    const rows = answer.tables.reduce((n, t) => n + t.length, 0);
 
     // What the exported web app's entry script costs on the wire as this server sends it.
     const html = await (await fetchRetryingGet(`${baseUrl}/`)).text();

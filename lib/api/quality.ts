@@ -3,8 +3,8 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { apiFetch } from '@/lib/api/client';
 import { batchKeys } from '@/lib/api/batches';
 import type { Batch, DescribeStats } from '@/lib/api/batches';
-import { rowsOfTable } from '@/lib/quality/compare-table';
-import type { CompareRow, CompareTable } from '@/lib/quality/compare-table';
+import { rowsOfColumns } from '@/lib/quality/compare-table';
+import type { BatchColumns, CompareRow } from '@/lib/quality/compare-table';
 import type { Spec, SpecInput } from '@/lib/quality/spec';
 
 export type SpecJson = Spec & { id: string; familyId: string; version: number; changes: string[]; createdAt: string; versions?: { id: string; version: number; changes: string[]; createdAt: string; by: string | null }[] };
@@ -43,13 +43,13 @@ export type Comparison = {
   counts: Record<string, { total: number; pass: number; fail: number; outliers: number } | null>;
   differences: Difference[];
 };
-/** The comparison as the server sends it: the rows as columns (lib/quality/compare-table.ts). */
-export type ComparisonWire = Omit<Comparison, 'rows'> & { table: CompareTable };
+/** The comparison as the server sends it: each batch's rows as columns, outlier marks apart (lib/quality/compare-table.ts). */
+export type ComparisonWire = Omit<Comparison, 'rows'> & { tables: BatchColumns[]; outliers: (boolean | null)[][] };
 
 /** The wire answer with its rows as objects again, as the grid, filters and charts use them. */
 export function comparisonOfWire(w: ComparisonWire): Comparison {
-  const { table, ...rest } = w;
-  return { ...rest, rows: rowsOfTable(table, w.batches) };
+  const { tables, outliers, ...rest } = w;
+  return { ...rest, rows: rowsOfColumns(tables, outliers, w.batches) };
 }
 
 export const specKeys = {

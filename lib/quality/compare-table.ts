@@ -1,8 +1,10 @@
 /**
- * The comparison grid's rows as they travel: one array per column instead of one object per
- * row. For 10,000 curves the key names and batch names repeated on every row were about half
- * of a 6.6 MB answer; as columns they appear once, and writing and reading the answer cost
- * accordingly less. `rowsOfTable` gives the rows back exactly as the grid uses them.
+ * The comparison grid's rows as they travel: one array per column and one set of columns per
+ * batch, instead of one object per row. For 10,000 curves the key names and batch names repeated
+ * on every row were about half of a 6.6 MB answer; as columns they appear once. Per batch, so
+ * the server can keep each batch's part serialized and send it again while that batch is
+ * unchanged; the outlier marks, which depend on the parameter chosen, travel apart
+ * (`outliers[b][j]`). `rowsOfColumns` gives the rows back exactly as the grid uses them.
  */
 
 export type CompareResult = 'pass' | 'fail' | null;
@@ -20,36 +22,32 @@ export type CompareRow = Record<string, unknown> & {
   outlier: boolean | null;
 };
 
-/** A row as the server builds it, before it is put into columns. */
+/** A row of one batch as the server builds it, before it is put into columns. */
 export type CompareRowInput = {
   curveId: string;
-  batch: number;
   deviceId: string;
   values: Partial<Record<string, number | null>>;
   flags: string[];
   result: CompareResult;
   reasons: string[];
   powerClass: string | null;
-  outlier: boolean | null;
 };
 
-export type CompareTable = {
+/** One batch's rows as columns. */
+export type BatchColumns = {
   length: number;
-  /** Index into the answer's `batches`. */
-  batch: number[];
   curveId: string[];
   deviceId: string[];
   flags: string[][];
   result: CompareResult[];
   reasons: string[][];
   powerClass: (string | null)[];
-  outlier: (boolean | null)[];
   /** One column per figure; null where a curve has none (not fitted, no area…). */
   values: Record<string, (number | null)[]>;
 };
 
-/** Puts rows into columns; every figure any row has gets a column. */
-export function tableOfRows(rows: readonly CompareRowInput[]): CompareTable {
+/** Puts one batch's rows into columns; every figure any row has gets a column. */
+export function columnsOfRows(rows: readonly CompareRowInput[]): BatchColumns {
   const keys = new Set<string>();
   for (const r of rows) for (const k of Object.keys(r.values)) keys.add(k);
   const values: Record<string, (number | null)[]> = {};
@@ -63,38 +61,45 @@ export function tableOfRows(rows: readonly CompareRowInput[]): CompareTable {
   }
   return {
     length: rows.length,
-    batch: rows.map((r) => r.batch),
     curveId: rows.map((r) => r.curveId),
     deviceId: rows.map((r) => r.deviceId),
     flags: rows.map((r) => r.flags),
     result: rows.map((r) => r.result),
     reasons: rows.map((r) => r.reasons),
     powerClass: rows.map((r) => r.powerClass),
-    outlier: rows.map((r) => r.outlier),
     values,
   };
 }
 
-/** The rows of a table, with the batch's id and name on each. */
-export function rowsOfTable(t: CompareTable, batches: readonly { id: string; name: string }[]): CompareRow[] {
-  const keys = Object.keys(t.values);
-  const rows: CompareRow[] = new Array(t.length);
-  for (let j = 0; j < t.length; j++) {
-    const b = batches[t.batch[j]];
-    if (!b) throw new Error(`comparison row ${j} names batch ${t.batch[j]}, but the answer has ${batches.length}`);
-    const row: CompareRow = {
-      curveId: t.curveId[j],
-      batchId: b.id,
-      batchName: b.name,
-      deviceId: t.deviceId[j],
-      flags: t.flags[j],
-      result: t.result[j],
-      reasons: t.reasons[j],
-      powerClass: t.powerClass[j],
-      outlier: t.outlier[j],
-    };
-    for (const k of keys) row[k] = t.values[k][j];
-    rows[j] = row;
+/**
+ * The rows of every batch, in batch order, with the batch's id and name on each and the outlier
+ * mark from `outliers[b][j]` (null when no spec was applied).
+ */
+export function rowsOfColumns(tables: readonly BatchColumns[], outliers: readonly (readonly (boolean | null)[])[], batches: readonly { id: string; name: string }[]): CompareRow[] {
+  if (tables.length !== batches.length || outliers.length !== batches.length) {
+    throw new Error(`the comparison has ${batches.length} batches but ${tables.length} tables and ${outliers.length} outlier lists`);
   }
+  const rows: CompareRow[] = [];
+  tables.forEach((t, b) => {
+    const batch = batches[b];
+    const marks = outliers[b];
+    if (marks.length !== t.length) throw new Error(`batch ${batch.name}: ${t.length} rows but ${marks.length} outlier marks`);
+    const keys = Object.keys(t.values);
+    for (let j = 0; j < t.length; j++) {
+      const row: CompareRow = {
+        curveId: t.curveId[j],
+        batchId: batch.id,
+        batchName: batch.name,
+        deviceId: t.deviceId[j],
+        flags: t.flags[j],
+        result: t.result[j],
+        reasons: t.reasons[j],
+        powerClass: t.powerClass[j],
+        outlier: marks[j],
+      };
+      for (const k of keys) row[k] = t.values[k][j];
+      rows.push(row);
+    }
+  });
   return rows;
 }

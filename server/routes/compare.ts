@@ -2,7 +2,7 @@ import { and, eq, inArray } from 'drizzle-orm';
 import { Router } from 'express';
 import type { Db } from '@/db/client';
 import { batch } from '@/db/schema';
-import { describe as describeValues, evaluateBatch, isParamKey, tableOfRows, welchDifference } from '@/lib/quality';
+import { columnsOfRows, describe as describeValues, evaluateBatch, isParamKey, welchDifference } from '@/lib/quality';
 import type { CompareRowInput, Description, ParamKey, Spec } from '@/lib/quality';
 import { PARAM_KEYS, PARAM_UNITS } from '@/lib/quality/params';
 import { compareQuerySchema } from '@/lib/schemas/quality';
@@ -10,19 +10,44 @@ import { HttpError } from '@/server/errors';
 import { callerOf, requirePermission } from '@/server/permissions';
 import { AnswerCache, batchKey, sendAnswer } from '@/server/services/answer-cache';
 import { deviceRecords, loadSpec } from '@/server/services/quality';
+import type { DeviceRow } from '@/server/services/quality';
 
 type Records = Awaited<ReturnType<typeof deviceRecords>>;
+
+/** One batch's part of a comparison, kept while the batch is unchanged (for one spec version). */
+type BatchPart = {
+  /** The batch's rows as columns (lib/quality/compare-table.ts), serialized. */
+  json: Buffer;
+  stats: Partial<Record<ParamKey, Description | null>>;
+  counts: { total: number; pass: number; fail: number } | null;
+  /** Per device, the parameters it is a robust outlier on (only with a spec). */
+  outlierParams: ParamKey[][] | null;
+};
+
+/** A batch's part: statistics, and with a spec the evaluation with outliers marked on every parameter. */
+function batchPart(list: DeviceRow[], spec: Spec | null): BatchPart {
+  if (spec) {
+    const e = evaluateBatch(list, spec, { outlierParams: [...PARAM_KEYS] });
+    const rows: CompareRowInput[] = e.devices.map((d, k) => ({ curveId: list[k].curveId, deviceId: d.deviceId, values: d.values, flags: d.flags, result: d.result, reasons: d.reasons.map((x) => x.message), powerClass: d.powerClass }));
+    return { json: Buffer.from(JSON.stringify(columnsOfRows(rows))), stats: e.stats, counts: { total: e.counts.total, pass: e.counts.pass, fail: e.counts.fail }, outlierParams: e.devices.map((d) => d.outlierParams) };
+  }
+  const stats: Partial<Record<ParamKey, Description | null>> = {};
+  for (const k of PARAM_KEYS) {
+    const v = list.map((d) => d.values[k]).filter((x): x is number => typeof x === 'number' && Number.isFinite(x));
+    stats[k] = v.length ? describeValues(v) : null;
+  }
+  const rows: CompareRowInput[] = list.map((d) => ({ curveId: d.curveId, deviceId: d.deviceId, values: d.values, flags: d.flags, result: null, reasons: [], powerClass: null }));
+  return { json: Buffer.from(JSON.stringify(columnsOfRows(rows))), stats, counts: null, outlierParams: null };
+}
 
 /** /api/compare — several batches side by side for the comparison grid. */
 export function compareRouter(db: Db): Router {
   const r = Router();
-  // Device records per batch, kept while the batch's updatedAt stays the same (every upload,
-  // replacement, refit and edit moves it): a designer flipping columns and parameters re-reads
-  // 10,000 curves otherwise. Bounded; the oldest entry goes first.
+  // Device records per batch, kept while the batch's revision stays the same (every upload,
+  // replacement, refit and edit moves it, see answer-cache.ts): a designer flipping columns and
+  // parameters re-reads 10,000 curves otherwise. Bounded; the oldest entry goes first.
   const cache = new Map<string, { stamp: number; rows: Records }>();
   const CACHE_BATCHES = 40;
-  // Whole answers as sent, for the same batches in the same state (see answer-cache.ts).
-  const answers = new AnswerCache(128 * 1024 * 1024);
   async function recordsOf(batches: { id: string; updatedAt: Date }[]): Promise<Records> {
     const missing = batches.filter((b) => cache.get(b.id)?.stamp !== +b.updatedAt);
     if (missing.length) {
@@ -35,12 +60,16 @@ export function compareRouter(db: Db): Router {
     }
     return batches.flatMap((b) => cache.get(b.id)!.rows);
   }
+  // Each batch's part per (batch revision, spec version), and whole answers as sent.
+  const parts = new Map<string, BatchPart>();
+  const PARTS = 80;
+  const answers = new AnswerCache(128 * 1024 * 1024);
 
   /**
    * GET /api/compare?batches=a,b,…&spec=<specId>&param=pmp_w — one row per curve with every key
-   * figure and fitted parameter (and pass/fail when a spec is given), sent as columns (`table`),
-   * statistics per batch and parameter (Cpk against the spec's limits), and the Welch difference
-   * of means of `param` between each batch and the first.
+   * figure and fitted parameter (and pass/fail when a spec is given), sent per batch as columns
+   * (`tables`, with `outliers` on `param` apart), statistics per batch and parameter (Cpk against
+   * the spec's limits), and the Welch difference of means of `param` between each batch and the first.
    */
   r.get('/', requirePermission('batch:read'), async (req, res) => {
     const c = callerOf(req);
@@ -58,39 +87,40 @@ export function compareRouter(db: Db): Router {
       spec = s.spec;
       specInfo = { id: s.row.id, name: s.row.name, version: s.row.version };
     }
+
     // One answer per state of the chosen batches (their revisions), spec version and parameter.
     const key = `${found.map((b) => batchKey(b, '')).join(',')}|${specInfo?.id ?? ''}|${param}`;
     const body = await answers.get(key, async () => {
       const devices = await recordsOf(found);
-      const byBatch = new Map<string, typeof devices>();
+      const byBatch = new Map<string, DeviceRow[]>();
       for (const d of devices) {
         const list = byBatch.get(d.batchId);
         if (list) list.push(d);
         else byBatch.set(d.batchId, [d]);
       }
+      const chosen = found.map((b) => {
+        const partKey = batchKey(b, specInfo?.id ?? '');
+        let part = parts.get(partKey);
+        if (!part) {
+          part = batchPart(byBatch.get(b.id) ?? [], spec);
+          parts.set(partKey, part);
+          while (parts.size > PARTS) parts.delete(parts.keys().next().value!);
+        }
+        return part;
+      });
 
-      const rows: CompareRowInput[] = [];
       const stats: Record<string, Partial<Record<ParamKey, Description | null>>> = {};
       const counts: Record<string, { total: number; pass: number; fail: number; outliers: number } | null> = {};
-      found.forEach((b, bi) => {
-        const list = byBatch.get(b.id) ?? [];
-        if (spec) {
-          const e = evaluateBatch(list, spec, { outlierParams: [param] });
-          stats[b.id] = e.stats;
-          counts[b.id] = e.counts;
-          e.devices.forEach((d, k) =>
-            rows.push({ curveId: list[k].curveId, batch: bi, deviceId: d.deviceId, values: d.values, flags: d.flags, result: d.result, reasons: d.reasons.map((x) => x.message), powerClass: d.powerClass, outlier: d.outlier }),
-          );
-        } else {
-          const s: Partial<Record<ParamKey, Description | null>> = {};
-          for (const k of PARAM_KEYS) {
-            const v = list.map((d) => d.values[k]).filter((x): x is number => typeof x === 'number' && Number.isFinite(x));
-            s[k] = v.length ? describeValues(v) : null;
-          }
-          stats[b.id] = s;
+      const outliers = found.map((b, k) => {
+        const part = chosen[k];
+        stats[b.id] = part.stats;
+        if (!part.counts || !part.outlierParams) {
           counts[b.id] = null;
-          for (const d of list) rows.push({ curveId: d.curveId, batch: bi, deviceId: d.deviceId, values: d.values, flags: d.flags, result: null, reasons: [], powerClass: null, outlier: null });
+          return new Array<null>(byBatch.get(b.id)?.length ?? 0).fill(null);
         }
+        const marks = part.outlierParams.map((ps) => ps.includes(param));
+        counts[b.id] = { ...part.counts, outliers: marks.filter(Boolean).length };
+        return marks;
       });
 
       const values = (id: string) => (byBatch.get(id) ?? []).map((d) => d.values[param]).filter((x): x is number => typeof x === 'number' && Number.isFinite(x));
@@ -105,16 +135,20 @@ export function compareRouter(db: Db): Router {
         }
       });
 
-      return {
+      const head = JSON.stringify({
         batches: found.map((b) => ({ id: b.id, name: b.name, state: b.state, count: byBatch.get(b.id)?.length ?? 0 })),
         spec: specInfo,
         param,
-        // The rows as columns (lib/quality/compare-table.ts); rowsOfTable gives them back.
-        table: tableOfRows(rows),
+        outliers,
         stats,
         counts,
         differences,
-      };
+      });
+      // The batches' columns are spliced in as serialized: `…, "tables": [part, part, …]}`.
+      const pieces: Buffer[] = [Buffer.from(head.slice(0, -1) + ',"tables":[')];
+      chosen.forEach((part, k) => pieces.push(...(k ? [Buffer.from(','), part.json] : [part.json])));
+      pieces.push(Buffer.from(']}'));
+      return Buffer.concat(pieces);
     });
     sendAnswer(res, body);
   });

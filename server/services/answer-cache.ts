@@ -34,7 +34,7 @@ export class AnswerCache {
 
   constructor(private readonly maxBytes = 64 * 1024 * 1024) {}
 
-  /** The answer under `key`, computing and keeping it when missing. */
+  /** The answer under `key`, computing and keeping it when missing (`compute` may serialize it itself). */
   async get(key: string, compute: () => Promise<unknown>): Promise<Buffer> {
     const hit = this.entries.get(key);
     if (hit !== undefined) {
@@ -42,7 +42,8 @@ export class AnswerCache {
       this.entries.set(key, hit);
       return hit;
     }
-    const body = Buffer.from(JSON.stringify(await compute()));
+    const answer = await compute();
+    const body = Buffer.isBuffer(answer) ? answer : Buffer.from(JSON.stringify(answer));
     if (body.length <= this.maxBytes) {
       this.entries.set(key, body);
       this.bytes += body.length;

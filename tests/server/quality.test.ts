@@ -7,7 +7,7 @@ import { eq } from 'drizzle-orm';
 import Papa from 'papaparse';
 import { batch, curve, fit, member, organization, user } from '@/db/schema';
 import { seedDemoBatches } from '@/db/seed';
-import { rowsOfTable } from '@/lib/quality';
+import { rowsOfColumns } from '@/lib/quality';
 import { signIn, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
 
@@ -245,9 +245,9 @@ describe('comparison', () => {
     expect(res.status).toBe(200);
     const n2 = res.body.batches[0].count;
     const n3 = res.body.batches[1].count;
-    // The rows travel as columns; rowsOfTable gives the objects the grid uses back.
+    // The rows travel as columns per batch; rowsOfColumns gives the objects the grid uses back.
     expect(res.body.rows).toBeUndefined();
-    const rows = rowsOfTable(res.body.table, res.body.batches);
+    const rows = rowsOfColumns(res.body.tables, res.body.outliers, res.body.batches);
     expect(rows).toHaveLength(n2 + n3);
     expect(rows.filter((r) => r.batchId === lineTwo)).toHaveLength(n2);
     expect(rows[0]).toEqual(expect.objectContaining({ deviceId: expect.any(String), pmp_w: expect.any(Number), rs_ohm: expect.any(Number), result: expect.stringMatching(/pass|fail/) }));
@@ -269,14 +269,31 @@ describe('comparison', () => {
     expect(typeof d.sentence).toBe('string');
   });
 
+  it('marks outliers on the chosen parameter exactly as the batch evaluation does, and counts them', async () => {
+    const spec = (await qa.get('/api/specs')).body.specs.find((s: { name: string }) => s.name === moduleSpec.name);
+    // The evaluation endpoint marks robust outliers on pmp_w, voc_v, isc_a, ff and rs_ohm at once
+    // (server/routes/reviews.ts); per parameter the marks must agree with the comparison's.
+    const evaluation = (await designer.get(`/api/batches/${lineTwo}/evaluation?spec=${spec.id}`)).body;
+    for (const param of ['pmp_w', 'rs_ohm', 'ff']) {
+      const res = await designer.get(`/api/compare?batches=${lineTwo},${lineThree}&spec=${spec.id}&param=${param}`);
+      expect(res.status).toBe(200);
+      const rows = rowsOfColumns(res.body.tables, res.body.outliers, res.body.batches).filter((r) => r.batchId === lineTwo);
+      const expected = new Map(evaluation.devices.map((d: { deviceId: string; outlierParams: string[] }) => [d.deviceId, d.outlierParams.includes(param)]));
+      expect(rows).toHaveLength(expected.size);
+      for (const r of rows) expect(r.outlier).toBe(expected.get(r.deviceId));
+      expect(res.body.counts[lineTwo].outliers).toBe([...expected.values()].filter(Boolean).length);
+      expect(res.body.counts[lineTwo].pass).toBe(evaluation.counts.pass);
+    }
+  });
+
   it('answers again after a refit changed a batch (no stale comparison)', async () => {
     const first = await designer.get(`/api/compare?batches=${lineTwo}&param=n`);
-    const row = rowsOfTable(first.body.table, first.body.batches).find((r) => r.deviceId === 'M2611-005')!;
+    const row = rowsOfColumns(first.body.tables, first.body.outliers, first.body.batches).find((r) => r.deviceId === 'M2611-005')!;
     const tempC = (await tester.get(`/api/curves/${row.curveId}`)).body.meta.tempC;
     const refit = await tester.post(`/api/curves/${row.curveId}/refit`).send({ tempC: tempC + 20, model: 'single' });
     expect(refit.status).toBe(200);
     const again = await designer.get(`/api/compare?batches=${lineTwo}&param=n`);
-    const after = rowsOfTable(again.body.table, again.body.batches).find((r) => r.deviceId === 'M2611-005')!;
+    const after = rowsOfColumns(again.body.tables, again.body.outliers, again.body.batches).find((r) => r.deviceId === 'M2611-005')!;
     // n·T is what the fit determines, so n falls by the ratio of absolute temperatures.
     expect((after.n as number) / (row.n as number)).toBeCloseTo((tempC + 273.15) / (tempC + 20 + 273.15), 2);
   });
