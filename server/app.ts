@@ -74,7 +74,7 @@ export function createApp(deps: AppDeps): Express {
   app.use('/api/batches', session, batchesRouter(db, deps.analyser), reviewsRouter(db, deps.mailer));
   app.use('/api/specs', session, specsRouter(db));
   app.use('/api/compare', session, compareRouter(db));
-  app.use('/api/curves', session, curvesRouter(db));
+  app.use('/api/curves', session, curvesRouter(db, deps.analyser));
   app.use('/api/physics', session, physicsRouter(db));
   app.use('/api/strings', session, stringsRouter(db));
 

@@ -1,6 +1,6 @@
 /**
  * Where uploads are analysed (read, key figures, both diode fits, STC figures: ~10 ms of CPU a
- * curve). The server uses a pool of worker threads, so a 1,000-curve upload runs on every core and
+ * curve) and curves refitted (a free double-diode fit: ~100 ms). The server uses a pool of worker threads, so a 1,000-curve upload runs on every core and
  * the HTTP thread stays free for readers; the workers run at a lower scheduling priority (Linux
  * nice 10) so that, when cores are short, interactive requests win over bulk fitting. Tests and
  * tools that build the app in-process may use the inline analyser (same results, same thread).
@@ -8,11 +8,15 @@
 import os from 'node:os';
 import path from 'node:path';
 import { Worker } from 'node:worker_threads';
-import { analyseFile } from '@/lib/analysis/analyse-file';
+import { analyseFile, analyseParsed } from '@/lib/analysis/analyse-file';
 import type { FileAnalysis, FileDefaults, FileOverrides } from '@/lib/analysis/analyse-file';
 import { IvInputError } from '@/lib/iv';
+import type { IvCurve } from '@/lib/iv';
 
-export type AnalysisRequest = { bytes: Uint8Array; fileName: string; overrides?: FileOverrides; defaults?: FileDefaults };
+/** A file to read and analyse, or (with `curve`) a stored curve to fit again (a refit). */
+export type AnalysisRequest =
+  | { bytes: Uint8Array; fileName: string; overrides?: FileOverrides; defaults?: FileDefaults }
+  | { curve: IvCurve; idealities: 'fixed' | 'free'; models?: ('single' | 'double')[] };
 
 /** What became of one file: its analysis, the reader's objection, or an unexpected failure. */
 export type AnalysisOutcome =
@@ -31,6 +35,7 @@ export type Analyser = {
 /** Runs the pipeline on one file and turns its errors into outcomes (used in both modes). */
 export function analyseToOutcome(req: AnalysisRequest): AnalysisOutcome {
   try {
+    if ('curve' in req) return { ok: true, analysis: analyseParsed(req.curve, req.idealities, req.models) };
     return { ok: true, analysis: analyseFile(req.bytes, { fileName: req.fileName, overrides: req.overrides, defaults: req.defaults }) };
   } catch (err) {
     if (err instanceof IvInputError) return { ok: false, kind: 'input', code: err.code, message: err.message, ...(err.line ? { line: err.line } : {}) };

@@ -35,6 +35,17 @@ describe('workerAnalyser()', () => {
     }
   });
 
+  it('refits a stored curve (free idealities) as the calling thread would', async () => {
+    const first = analyseToOutcome(moduleReq);
+    if (!first.ok) throw new Error('the reference module must read');
+    const req = { curve: first.analysis.curve, idealities: 'free' as const, models: ['double' as const] };
+    const inThread = analyseToOutcome(req);
+    const inWorker = await pool.analyse(req);
+    if (!inWorker.ok || !inThread.ok) throw new Error('the refit must succeed');
+    expect(inWorker.analysis.fits.map(({ elapsed_ms: _e, ...f }) => f)).toEqual(inThread.analysis.fits.map(({ elapsed_ms: _e, ...f }) => f));
+    expect(inWorker.analysis.fits[0].model).toBe('double-diode');
+  });
+
   it('returns the reader’s objection for an unusable file instead of throwing', async () => {
     const out = await pool.analyse(garbage);
     const inline = analyseToOutcome(garbage);
