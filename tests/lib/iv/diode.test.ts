@@ -3,6 +3,7 @@ import {
   doubleDiodeCurrent,
   doubleDiodeVoltage,
   simulateCurve,
+  solveDoubleDiodeCurrent,
   singleDiodeCurrent,
   singleDiodeCurrents,
   singleDiodeVoltage,
@@ -180,5 +181,42 @@ describe('vanishing series resistance', () => {
     const got = singleDiodeCurrent({ iph_a: iph, i0_a: i0, n: 1, rs_ohm: rs, rsh_ohm: rsh }, v, 1, a / KB_EV_PER_K - ZERO_C_IN_K);
     expect(Number.isFinite(got)).toBe(true);
     expect(got).toBeCloseTo(shockley, 9);
+  });
+});
+
+describe('solveDoubleDiodeCurrent() against bisection (an independent method)', () => {
+  // Bisection on F(I) = Iph − I01·(e^(Vd/a1) − 1) − I02·(e^(Vd/a2) − 1) − Vd/Rsh − I, Vd = V + I·Rs,
+  // F strictly decreasing: 400 halvings of [−1e6, Iph + 1] A reach the root to the last bit.
+  const bisect = (iph: number, i01: number, a1: number, i02: number, a2: number, rs: number, rsh: number, v: number) => {
+    const F = (i: number) => iph - i01 * Math.expm1((v + i * rs) / a1) - i02 * Math.expm1((v + i * rs) / a2) - (v + i * rs) / rsh - i;
+    let lo = -1e6;
+    let hi = iph + 1;
+    for (let j = 0; j < 400; j++) {
+      const m = (lo + hi) / 2;
+      if (F(m) > 0) lo = m;
+      else hi = m;
+    }
+    return (lo + hi) / 2;
+  };
+
+  it.each([
+    ['a cell, 25 °C', 1, 0.0257],
+    ['a 60-cell module, 25 °C', 60, 0.0257],
+  ])('%s: within 1e-12 A from short circuit past Voc, near Voc too (where I → 0)', (_name, cells, vt) => {
+    let seed = 7;
+    const rand = () => ((seed = (seed * 16807) % 2147483647) / 2147483647);
+    let worst = 0;
+    for (let k = 0; k < 40; k++) {
+      const iph = 1 + 9 * rand();
+      const i01 = 1e-12 * 10 ** (2 * rand());
+      const i02 = 1e-8 * 10 ** (2 * rand());
+      const a1 = cells * vt;
+      const rs = cells * 0.005 * (1 + rand());
+      const rsh = cells * 50 * (1 + rand());
+      for (let v = 0; v < 0.8 * cells; v += 0.01 * cells) {
+        worst = Math.max(worst, Math.abs(solveDoubleDiodeCurrent(iph, i01, a1, i02, 2 * a1, rs, rsh, v) - bisect(iph, i01, a1, i02, 2 * a1, rs, rsh, v)));
+      }
+    }
+    expect(worst).toBeLessThan(1e-12);
   });
 });
