@@ -1,4 +1,4 @@
-import { and, asc, count, desc, eq, ilike, max, sql } from 'drizzle-orm';
+import { and, asc, count, desc, eq, ilike, inArray, max, sql } from 'drizzle-orm';
 import { Router } from 'express';
 import type { NextFunction, Request, Response } from 'express';
 import multer from 'multer';
@@ -84,6 +84,7 @@ export function batchesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Ro
   const r = Router();
   // Answers about one state of a batch (see answer-cache.ts): many people reading the same batch cost one computation.
   const answers = new AnswerCache();
+  const aggregates = new Map<string, { stamp: number; curves: number; meanPmp: number | null }>();
 
   /** GET /api/batches — the organisation's batches with their curve counts. */
   r.get('/', requirePermission('batch:read'), async (req, res) => {
@@ -91,13 +92,25 @@ export function batchesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Ro
     // The organisation's batches in one state: their number and latest change name it.
     const [rev] = await db.select({ n: count(), last: max(batch.updatedAt) }).from(batch).where(eq(batch.organizationId, c.organization.id));
     const body = await answers.get(`org:${c.organization.id}@${rev.n}/${rev.last?.getTime() ?? 0}:list`, async () => {
-      const rows = await db
-        // Qualified by hand: inside a subquery drizzle would print bare column names that resolve to the inner table.
-        .select({ b: batch, curves: sql<number>`(select count(*)::int from "curve" c where c.batch_id = "batch"."id")`, meanPmp: sql<number | null>`(select avg(c.pmp_w) from "curve" c where c.batch_id = "batch"."id")` })
-        .from(batch)
-        .where(eq(batch.organizationId, c.organization.id))
-        .orderBy(desc(batch.createdAt));
-      return { batches: rows.map((x) => batchJson(x.b, { curveCount: x.curves, meanPmp_w: x.meanPmp == null ? null : Number(x.meanPmp) })) };
+      const rows = await db.select().from(batch).where(eq(batch.organizationId, c.organization.id)).orderBy(desc(batch.createdAt));
+      // Curve count and mean Pmax per batch, kept per batch revision: while uploads go on, only
+      // the batches that changed are counted again.
+      const changed = rows.filter((b) => aggregates.get(b.id)?.stamp !== +b.updatedAt);
+      if (changed.length) {
+        const fresh = await db
+          .select({ id: curve.batchId, curves: sql<number>`count(*)::int`, meanPmp: sql<number | null>`avg(${curve.pmp_w})` })
+          .from(curve)
+          .where(inArray(curve.batchId, changed.map((b) => b.id)))
+          .groupBy(curve.batchId);
+        const byId = new Map(fresh.map((f) => [f.id, f]));
+        for (const b of changed) {
+          const f = byId.get(b.id);
+          aggregates.delete(b.id);
+          aggregates.set(b.id, { stamp: +b.updatedAt, curves: f?.curves ?? 0, meanPmp: f?.meanPmp == null ? null : Number(f.meanPmp) });
+        }
+        while (aggregates.size > 10_000) aggregates.delete(aggregates.keys().next().value!);
+      }
+      return { batches: rows.map((b) => batchJson(b, { curveCount: aggregates.get(b.id)!.curves, meanPmp_w: aggregates.get(b.id)!.meanPmp })) };
     });
     sendAnswer(res, body);
   });
