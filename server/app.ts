@@ -14,7 +14,6 @@ import type { Db } from '@/db/client';
 import type { Auth } from '@/server/auth';
 import { apiNotFound, errorHandler } from '@/server/errors';
 import type { Mailer } from '@/server/mail';
-import type { Analyser } from '@/server/services/analysis-pool';
 import { CallerCache, invalidatesCallers, requireSession } from '@/server/permissions';
 import { batchesRouter } from '@/server/routes/batches';
 import { compareRouter } from '@/server/routes/compare';
@@ -27,6 +26,7 @@ import { specsRouter } from '@/server/routes/specs';
 import { stringsRouter } from '@/server/routes/strings';
 import { outboxRouter } from '@/server/routes/outbox';
 import { usersRouter } from '@/server/routes/users';
+import type { Analyser } from '@/server/services/analysis-pool';
 
 export type AppDeps = {
   db: Db;
