@@ -197,6 +197,8 @@ export const curve = pgTable(
     rmse_a: doublePrecision('rmse_a'),
     fitted: boolean('fitted').notNull().default(false),
     flagCodes: text('flag_codes').notNull().default(''),
+    /** The curve as one comparison record, JSON (server/services/curves.ts comparisonRecord): a 10,000-curve comparison reads one field a curve. */
+    record: text('record'),
     createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   },

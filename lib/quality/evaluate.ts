@@ -196,6 +196,28 @@ export type BatchOptions = {
 };
 
 /**
+ * Each device's modified z-score on `key` among the devices that have the value (Iglewicz &
+ * Hoaglin), and whether it is an outlier (|z| > 3.5); z null where the device lacks the value.
+ */
+export function robustZOn(devices: readonly DeviceRecord[], key: ParamKey): { z: number | null; outlier: boolean }[] {
+  const idx: number[] = [];
+  const vals: number[] = [];
+  devices.forEach((d, i) => {
+    const v = valueOf(d, key);
+    if (v !== null) {
+      idx.push(i);
+      vals.push(v);
+    }
+  });
+  const out = devices.map(() => ({ z: null as number | null, outlier: false }));
+  const rz = robustZ(vals);
+  idx.forEach((devIndex, j) => {
+    out[devIndex] = { z: rz.z[j], outlier: rz.isOutlier[j] };
+  });
+  return out;
+}
+
+/**
  * Evaluates every device, marks robust outliers (Iglewicz & Hoaglin modified z, |z| > 3.5)
  * on the chosen parameters, counts pass/fail/outliers and describes each parameter.
  * Outliers are marked, not failed: the QA lead decides.
@@ -214,20 +236,10 @@ export function evaluateBatch(devices: readonly DeviceRecord[], spec: Spec, opti
   });
 
   for (const key of outlierParams) {
-    const idx: number[] = [];
-    const vals: number[] = [];
-    devices.forEach((d, i) => {
-      const v = valueOf(d, key);
-      if (v !== null) {
-        idx.push(i);
-        vals.push(v);
-      }
-    });
-    evaluated.forEach((e) => (e.robustZ[key] = null));
-    const rz = robustZ(vals);
-    idx.forEach((devIndex, j) => {
-      evaluated[devIndex].robustZ[key] = rz.z[j];
-      if (rz.isOutlier[j]) evaluated[devIndex].outlierParams.push(key);
+    const marks = robustZOn(devices, key);
+    marks.forEach((m, i) => {
+      evaluated[i].robustZ[key] = m.z;
+      if (m.outlier) evaluated[i].outlierParams.push(key);
     });
   }
   for (const e of evaluated) e.outlier = e.outlierParams.length > 0;

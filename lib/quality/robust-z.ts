@@ -36,10 +36,10 @@ export function robustZ(values: readonly number[]): RobustZResult {
   if (values.length === 0) {
     return { median: 0, mad: 0, scale: 'none', z: [], isOutlier: [], outlierCount: 0 };
   }
-  const sorted = [...values].sort((a, b) => a - b);
-  const median = percentileSorted(sorted, 0.5);
+  // Typed arrays sort numerically without a comparator callback (several times faster).
+  const median = percentileSorted(Float64Array.from(values).sort(), 0.5);
   const absDev = values.map((v) => Math.abs(v - median));
-  const mad = percentileSorted([...absDev].sort((a, b) => a - b), 0.5);
+  const mad = percentileSorted(Float64Array.from(absDev).sort(), 0.5);
   let z: number[];
   let scale: RobustZResult['scale'];
   if (mad > 0) {

@@ -2,7 +2,7 @@ import { and, eq, inArray } from 'drizzle-orm';
 import { Router } from 'express';
 import type { Db } from '@/db/client';
 import { batch } from '@/db/schema';
-import { columnsOfRows, describe as describeValues, evaluateBatch, isParamKey, welchDifference } from '@/lib/quality';
+import { columnsOfRows, describe as describeValues, evaluateBatch, isParamKey, robustZOn, welchDifference } from '@/lib/quality';
 import type { CompareRowInput, Description, ParamKey, Spec } from '@/lib/quality';
 import { PARAM_KEYS, PARAM_UNITS } from '@/lib/quality/params';
 import { compareQuerySchema } from '@/lib/schemas/quality';
@@ -20,24 +20,27 @@ type BatchPart = {
   json: Buffer;
   stats: Partial<Record<ParamKey, Description | null>>;
   counts: { total: number; pass: number; fail: number } | null;
-  /** Per device, the parameters it is a robust outlier on (only with a spec). */
-  outlierParams: ParamKey[][] | null;
+  /** With a spec: the devices (to mark outliers on a parameter) and the marks made so far. */
+  outliers: { list: DeviceRow[]; byParam: Map<ParamKey, boolean[]> } | null;
 };
 
 /** A batch's part: statistics, and with a spec the evaluation with outliers marked on every parameter. */
 function batchPart(list: DeviceRow[], spec: Spec | null): BatchPart {
   if (spec) {
-    const e = evaluateBatch(list, spec, { outlierParams: [...PARAM_KEYS] });
+    // Outliers are marked per parameter when asked for (outlierMarks), not here.
+    const e = evaluateBatch(list, spec, { outlierParams: [] });
     const rows: CompareRowInput[] = e.devices.map((d, k) => ({ curveId: list[k].curveId, deviceId: d.deviceId, values: d.values, flags: d.flags, result: d.result, reasons: d.reasons.map((x) => x.message), powerClass: d.powerClass }));
-    return { json: Buffer.from(JSON.stringify(columnsOfRows(rows))), stats: e.stats, counts: { total: e.counts.total, pass: e.counts.pass, fail: e.counts.fail }, outlierParams: e.devices.map((d) => d.outlierParams) };
-  }
-  const stats: Partial<Record<ParamKey, Description | null>> = {};
-  for (const k of PARAM_KEYS) {
-    const v = list.map((d) => d.values[k]).filter((x): x is number => typeof x === 'number' && Number.isFinite(x));
-    stats[k] = v.length ? describeValues(v) : null;
+    return { json: Buffer.from(JSON.stringify(columnsOfRows(rows))), stats: e.stats, counts: { total: e.counts.total, pass: e.counts.pass, fail: e.counts.fail }, outliers: { list, byParam: new Map() } };
   }
   const rows: CompareRowInput[] = list.map((d) => ({ curveId: d.curveId, deviceId: d.deviceId, values: d.values, flags: d.flags, result: null, reasons: [], powerClass: null }));
-  return { json: Buffer.from(JSON.stringify(columnsOfRows(rows))), stats, counts: null, outlierParams: null };
+  const columns = columnsOfRows(rows);
+  const stats: Partial<Record<ParamKey, Description | null>> = {};
+  for (const k of PARAM_KEYS) {
+    // The columns hold finite numbers or null already.
+    const v = (columns.values[k] ?? []).filter((x): x is number => x !== null);
+    stats[k] = v.length ? describeValues(v) : null;
+  }
+  return { json: Buffer.from(JSON.stringify(columns)), stats, counts: null, outliers: null };
 }
 
 /** /api/compare — several batches side by side for the comparison grid. */
@@ -114,11 +117,15 @@ export function compareRouter(db: Db): Router {
       const outliers = found.map((b, k) => {
         const part = chosen[k];
         stats[b.id] = part.stats;
-        if (!part.counts || !part.outlierParams) {
+        if (!part.counts || !part.outliers) {
           counts[b.id] = null;
           return new Array<null>(byBatch.get(b.id)?.length ?? 0).fill(null);
         }
-        const marks = part.outlierParams.map((ps) => ps.includes(param));
+        let marks = part.outliers.byParam.get(param);
+        if (!marks) {
+          marks = robustZOn(part.outliers.list, param).map((m) => m.outlier);
+          part.outliers.byParam.set(param, marks);
+        }
         counts[b.id] = { ...part.counts, outliers: marks.filter(Boolean).length };
         return marks;
       });

@@ -10,7 +10,7 @@ import { callerOf, requirePermission } from '@/server/permissions';
 import { inlineAnalyser } from '@/server/services/analysis-pool';
 import type { Analyser } from '@/server/services/analysis-pool';
 import { touchBatch } from '@/server/services/answer-cache';
-import { curveJson, derivedColumns, fitsFor, insertFits } from '@/server/services/curves';
+import { comparisonRecord, curveJson, derivedColumns, fitsFor, insertFits } from '@/server/services/curves';
 import { validate } from '@/server/validate';
 
 /** /api/curves — one curve with everything known about it, and refits. */
@@ -69,7 +69,8 @@ export function curvesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Rou
       const current = await tx.select().from(fit).where(and(eq(fit.curveId, row.id), eq(fit.current, true)));
       const all = current.map((x) => x.result);
       const cols = derivedColumns({ ...analysis, fits: all });
-      await tx.update(curve).set({ meta, metrics: analysis.metrics, flags: analysis.flags, stc: analysis.stc ?? row.stc, ...cols }).where(eq(curve.id, row.id));
+      const record = comparisonRecord({ id: row.id, batchId: row.batchId, deviceId: row.deviceId }, analysis, cols);
+      await tx.update(curve).set({ meta, metrics: analysis.metrics, flags: analysis.flags, stc: analysis.stc ?? row.stc, ...cols, record }).where(eq(curve.id, row.id));
       // The batch changed: answers cached against its revision must be computed again.
       await touchBatch(tx, row.batchId);
     });

@@ -13,6 +13,20 @@ type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 type CurveRow = typeof curve.$inferSelect;
 type FitRow = typeof fit.$inferSelect;
 
+/** Which curve a comparison record is of. */
+export type CurveKey = { id: string; batchId: string; deviceId: string };
+
+/**
+ * A curve's comparison record, JSON: [curve id, batch id, device id, metrics, cells, area_cm2,
+ * flag codes, STC Pmax, fitted, Iph, I0, n, Rs, Rsh, RMSE] (single-diode figures only when
+ * fitted). deviceRecords in server/services/quality.ts reads 10,000 of these as one text instead
+ * of 150,000 fields; migration 0004 and its fallback build the same array in SQL.
+ */
+export function comparisonRecord(key: CurveKey, a: Pick<FileAnalysis, 'curve' | 'metrics'>, d: ReturnType<typeof derivedColumns>): string {
+  const meta = a.curve.meta;
+  return JSON.stringify([key.id, key.batchId, key.deviceId, a.metrics, meta.cells ?? null, meta.area_cm2 ?? null, d.flagCodes, d.stc_pmp_w, d.fitted, d.iph_a, d.i0_a, d.n, d.rs_ohm, d.rsh_ohm, d.rmse_a]);
+}
+
 /** The sortable/filterable columns derived from an analysis. */
 export function derivedColumns(a: FileAnalysis) {
   const single = a.fits.find((f) => f.model === 'single-diode' && f.converged);
@@ -55,23 +69,28 @@ export async function storeCurves(db: Db, target: { organizationId: string; batc
   await db.transaction(async (tx) => {
     if (replaced.length) await tx.delete(curve).where(and(inArray(curve.id, replaced), eq(curve.batchId, target.batchId)));
     await tx.insert(curve).values(
-      items.map(({ id, fileName, analysis: a }) => ({
-        id,
-        organizationId: target.organizationId,
-        batchId: target.batchId,
-        deviceId: a.curve.meta.deviceId ?? fileName,
-        fileName,
-        meta: a.curve.meta,
-        voltage_V: a.curve.voltage_V,
-        current_A: a.curve.current_A,
-        notes: a.curve.notes,
-        metrics: a.metrics,
-        flags: a.flags,
-        stc: a.stc,
-        createdBy: target.userId,
-        createdAt: nextStamp(),
-        ...derivedColumns(a),
-      })),
+      items.map(({ id, fileName, analysis: a }) => {
+        const deviceId = a.curve.meta.deviceId ?? fileName;
+        const derived = derivedColumns(a);
+        return {
+          id,
+          organizationId: target.organizationId,
+          batchId: target.batchId,
+          deviceId,
+          fileName,
+          meta: a.curve.meta,
+          voltage_V: a.curve.voltage_V,
+          current_A: a.curve.current_A,
+          notes: a.curve.notes,
+          metrics: a.metrics,
+          flags: a.flags,
+          stc: a.stc,
+          createdBy: target.userId,
+          createdAt: nextStamp(),
+          ...derived,
+          record: comparisonRecord({ id, batchId: target.batchId, deviceId }, a, derived),
+        };
+      }),
     );
     const fits = items.flatMap(({ id, analysis: a }) =>
       a.fits.map((f) => ({ id: crypto.randomUUID(), curveId: id, model: f.model, current: true, result: f, conditions: a.conditions, reason: 'upload', createdBy: target.userId })),

@@ -34,16 +34,12 @@ const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFi
 /** Every curve of the given batches as a device record with all engine keys, ordered by device. */
 export async function deviceRecords(db: Db, batchIds: string[]): Promise<DeviceRow[]> {
   if (!batchIds.length) return [];
-  // One table, no JSON of the fits: the single-diode figures are columns of the curve
-  // (server/services/curves.ts derivedColumns). And one field in all: PGlite's reader costs per
-  // field, so 10,000 rows × 15 columns came to ~650 ms, the same as one JSON array ~200 ms (measured).
+  // One table, no JSON of the fits, and one field in all: each curve keeps its comparison record
+  // as JSON text (comparisonRecord in server/services/curves.ts). PGlite's reader costs per
+  // field: 10,000 rows × 15 columns took ~650 ms, this ~100 ms with parsing (measured).
+  const fallback = sql`json_build_array(${curve.id}, ${curve.batchId}, ${curve.deviceId}, ${curve.metrics}, (${curve.meta}->>'cells')::int, (${curve.meta}->>'area_cm2')::float8, ${curve.flagCodes}, ${curve.stc_pmp_w}, ${curve.fitted}, ${curve.iph_a}, ${curve.i0_a}, ${curve.n}, ${curve.rs_ohm}, ${curve.rsh_ohm}, ${curve.rmse_a})::text`;
   const result = await db.execute<{ j: string | null }>(sql`
-    select json_agg(json_build_array(
-      ${curve.id}, ${curve.batchId}, ${curve.deviceId}, ${curve.metrics},
-      (${curve.meta}->>'cells')::int, (${curve.meta}->>'area_cm2')::float8,
-      ${curve.flagCodes}, ${curve.stc_pmp_w}, ${curve.fitted},
-      ${curve.iph_a}, ${curve.i0_a}, ${curve.n}, ${curve.rs_ohm}, ${curve.rsh_ohm}, ${curve.rmse_a}
-    ) order by ${curve.deviceId})::text as j
+    select '[' || string_agg(coalesce(${curve.record}, ${fallback}), ',' order by ${curve.deviceId}) || ']' as j
     from ${curve} where ${inArray(curve.batchId, batchIds)}`);
   const text = result.rows[0]?.j;
   const tuples: RecordTuple[] = text ? JSON.parse(text) : [];

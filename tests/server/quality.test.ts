@@ -230,7 +230,8 @@ describe('review and release', () => {
     await h.database.db.update(curve).set({ batchId: b.id }).where(eq(curve.id, donor.id));
     const [f] = await h.database.db.select().from(fit).where(eq(fit.curveId, donor.id));
     await h.database.db.update(fit).set({ result: { ...f.result, converged: false } }).where(eq(fit.curveId, donor.id));
-    await h.database.db.update(curve).set({ fitted: false }).where(eq(curve.id, donor.id));
+    // record null: the comparison record is then built from the columns (as for curves stored before migration 0004).
+    await h.database.db.update(curve).set({ fitted: false, record: null }).where(eq(curve.id, donor.id));
     const res = await tester.post(`/api/batches/${b.id}/submit`).send({});
     expect(res.status).toBe(409);
     expect(res.body.code).toBe('unfitted_curves');
