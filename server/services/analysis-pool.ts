@@ -5,6 +5,7 @@
  * nice 10) so that, when cores are short, interactive requests win over bulk fitting. Tests and
  * tools that build the app in-process may use the inline analyser (same results, same thread).
  */
+import { createRequire } from 'node:module';
 import os from 'node:os';
 import path from 'node:path';
 import { Worker } from 'node:worker_threads';
@@ -67,6 +68,8 @@ type Job = { id: number; req: AnalysisRequest; resolve: (o: AnalysisOutcome) => 
 type Slot = { worker: Worker; job: Job | null };
 
 const WORKER_FILE = path.join(__dirname, 'analysis-worker.ts');
+// Resolved here, so a server started from any working directory finds it (an eval'd worker resolves from the cwd).
+const TSX_API = createRequire(__filename).resolve('tsx/cjs/api');
 
 /**
  * A pool of `size` worker threads fed from one first-come queue (uploads of several clients
@@ -85,7 +88,7 @@ export function workerAnalyser(size: number, opts: { nice?: number; warmFiles?: 
 
   const spawnSlot = (): Slot => {
     // The server runs TypeScript through tsx; a worker starts without the parent's loader, so it registers it first.
-    const worker = new Worker(`require('tsx/cjs/api').register(); require(${JSON.stringify(WORKER_FILE)});`, {
+    const worker = new Worker(`require(${JSON.stringify(TSX_API)}).register(); require(${JSON.stringify(WORKER_FILE)});`, {
       eval: true,
       workerData: { nice: opts.nice ?? 10, warmFiles: opts.warmFiles ?? [] },
     });
