@@ -24,10 +24,10 @@ type BatchPart = {
   outliers: { list: DeviceRow[]; byParam: Map<ParamKey, boolean[]> } | null;
 };
 
-/** A batch's part: statistics, and with a spec the evaluation with outliers marked on every parameter. */
+/** A batch's part: its rows as columns and statistics, and with a spec the pass/fail evaluation (outliers are marked later, per parameter). */
 function batchPart(list: DeviceRow[], spec: Spec | null): BatchPart {
   if (spec) {
-    // Outliers are marked per parameter when asked for (outlierMarks), not here.
+    // Outliers depend on the parameter chosen: marked per request with robustZOn and kept in the part.
     const e = evaluateBatch(list, spec, { outlierParams: [] });
     const rows: CompareRowInput[] = e.devices.map((d, k) => ({ curveId: list[k].curveId, deviceId: d.deviceId, values: d.values, flags: d.flags, result: d.result, reasons: d.reasons.map((x) => x.message), powerClass: d.powerClass }));
     return { json: Buffer.from(JSON.stringify(columnsOfRows(rows))), stats: e.stats, counts: { total: e.counts.total, pass: e.counts.pass, fail: e.counts.fail }, outliers: { list, byParam: new Map() } };
@@ -132,8 +132,8 @@ export function compareRouter(db: Db): Router {
 
       const values = (id: string) => (byBatch.get(id) ?? []).map((d) => d.values[param]).filter((x): x is number => typeof x === 'number' && Number.isFinite(x));
       const first = found[0];
+      const a = values(first.id);
       const differences = found.slice(1).map((b) => {
-        const a = values(first.id);
         const bb = values(b.id);
         try {
           return { batchA: first.id, batchB: b.id, param, ...welchDifference(a, bb, 0.95, { nameA: first.name, nameB: b.name, param, unit: PARAM_UNITS[param] }) };
