@@ -1,8 +1,14 @@
 /** Batches, their curves, uploads and refits. */
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { ApiError, apiFetch } from '@/lib/api/client';
+import { invalidateBatchData, invalidateBatchFigures } from '@/lib/api/invalidate';
+import { batchKeys, curveKeys } from '@/lib/api/keys';
+import type { CurveListParams } from '@/lib/api/keys';
 import type { CurveMeta, FitResult, Flag, Metrics } from '@/lib/iv/types';
-import type { BatchCreateInput, CurveSortKey, RefitInput, StcFigures } from '@/lib/schemas/curves';
+import type { BatchCreateInput, RefitInput, StcFigures } from '@/lib/schemas/curves';
+
+export { batchKeys, curveKeys };
+export type { CurveListParams };
 
 export type DescribeStats = { n: number; mean: number; sd: number | null; min: number; p5: number; median: number; p95: number; max: number; cpk: number | null };
 
@@ -50,22 +56,6 @@ export type CurveDetail = CurveRow & {
   batch: { id: string; name: string; state: string };
 };
 
-export type CurveListParams = { page: number; pageSize: number; sort: CurveSortKey; dir: 'asc' | 'desc'; q: string; flag?: string };
-
-export const batchKeys = {
-  all: ['batches'] as const,
-  list: () => [...batchKeys.all, 'list'] as const,
-  detail: (id: string) => [...batchKeys.all, 'detail', id] as const,
-  curves: (id: string, p: CurveListParams) => [...batchKeys.all, 'curves', id, p] as const,
-  curvesOf: (id: string) => [...batchKeys.all, 'curves', id] as const,
-  overlay: (id: string) => [...batchKeys.all, 'overlay', id] as const,
-};
-
-export const curveKeys = {
-  all: ['curves'] as const,
-  detail: (id: string) => [...curveKeys.all, 'detail', id] as const,
-};
-
 export function useBatches() {
   return useQuery({ queryKey: batchKeys.list(), queryFn: () => apiFetch<{ batches: Batch[] }>('/api/batches') });
 }
@@ -108,8 +98,9 @@ export function useUpdateBatch(id: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (input: Partial<BatchCreateInput> & { archived?: boolean }) => apiFetch<Batch>(`/api/batches/${encodeURIComponent(id)}`, { method: 'PATCH', body: input as Record<string, unknown> }),
+    // A new name or archiving shows in the list, the comparisons and the batch's curve pages.
     onSuccess: async () => {
-      await qc.invalidateQueries({ queryKey: batchKeys.all });
+      await invalidateBatchData(qc, id);
     },
   });
 }
@@ -123,9 +114,10 @@ export function useRefit(id: string) {
   return useMutation({
     mutationFn: (input: RefitInput) => apiFetch<CurveDetail>(`/api/curves/${encodeURIComponent(id)}/refit`, { body: input as Record<string, unknown> }),
     onSuccess: async (data) => {
+      // The answer is the new curve (without its batch): written, not fetched again, as it can hold 100,000 points.
       qc.setQueryData(curveKeys.detail(id), (old: CurveDetail | undefined) => (old ? { ...data, batch: old.batch } : old));
-      // The physics of this curve (J0, Voc vs T) follow the new fit; key literal to keep lib/api files independent.
-      await Promise.all([qc.invalidateQueries({ queryKey: batchKeys.all }), qc.invalidateQueries({ queryKey: ['physics', 'curve', id] })]);
+      // The physics of this curve (J0, Voc vs T) follow the new fit; the batch's figures follow its curves.
+      await Promise.all([qc.invalidateQueries({ queryKey: curveKeys.physics(id) }), invalidateBatchFigures(qc, data.batch_id)]);
     },
   });
 }
@@ -184,8 +176,8 @@ export async function uploadFiles(
   return results;
 }
 
-/** Invalidates what an upload changes. */
+/** Invalidates what an upload changes: the batch as a whole (lib/api/invalidate.ts). */
 export function useAfterUpload(batchId: string) {
   const qc = useQueryClient();
-  return () => qc.invalidateQueries({ queryKey: batchKeys.all, predicate: (q) => q.queryKey.includes(batchId) || q.queryKey[1] === 'list' });
+  return () => invalidateBatchData(qc, batchId);
 }

@@ -1,6 +1,7 @@
 /** Device physics: material figures, band diagrams, the physics of a fitted curve, translations. */
 import { keepPreviousData, useMutation, useQuery } from '@tanstack/react-query';
 import { apiFetch } from '@/lib/api/client';
+import { physicsKeys } from '@/lib/api/keys';
 import type { CurveMeta, DoubleDiodeParams, Metrics, SingleDiodeParams } from '@/lib/iv/types';
 import type { BandDiagram, OccupationCurve, RecombinationShares, VocTempCoefficient } from '@/lib/physics';
 import type { BandDiagramRequest, TranslateRequest, TranslationMethod } from '@/lib/schemas/physics';
@@ -69,12 +70,7 @@ export type TranslationJson = {
   notes: string[];
 };
 
-export const physicsKeys = {
-  all: ['physics'] as const,
-  material: (tempK: number) => [...physicsKeys.all, 'material', tempK] as const,
-  bandDiagram: (input: BandDiagramRequest) => [...physicsKeys.all, 'band-diagram', input] as const,
-  curve: (id: string) => [...physicsKeys.all, 'curve', id] as const,
-};
+export { physicsKeys };
 
 /** Silicon's n_i, Eg, Nc, Nv at tempK and n_i over 200–400 K; the previous answer stays while the next loads. */
 export function useMaterial(tempK: number | null) {
@@ -90,7 +86,7 @@ export function useMaterial(tempK: number | null) {
 /** Band diagram of a doping and injection (null input: nothing asked yet). A pure computation, cached for good. */
 export function useBandDiagram(input: BandDiagramRequest | null) {
   return useQuery({
-    queryKey: input ? physicsKeys.bandDiagram(input) : [...physicsKeys.all, 'band-diagram', 'none'],
+    queryKey: physicsKeys.bandDiagram(input),
     queryFn: () => apiFetch<BandDiagramJson>('/api/physics/band-diagram', { body: input as Record<string, unknown> }),
     enabled: !!input,
     placeholderData: keepPreviousData,

@@ -1,7 +1,8 @@
 /** Specs, evaluations, reviews and comparisons. */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { apiFetch } from '@/lib/api/client';
-import { batchKeys } from '@/lib/api/batches';
+import { invalidateBatchReview } from '@/lib/api/invalidate';
+import { qualityKeys, specKeys } from '@/lib/api/keys';
 import type { Batch, DescribeStats } from '@/lib/api/batches';
 import { rowsOfColumns } from '@/lib/quality/compare-table';
 import type { BatchColumns, CompareRow } from '@/lib/quality/compare-table';
@@ -52,17 +53,7 @@ export function comparisonOfWire(w: ComparisonWire): Comparison {
   return { ...rest, rows: rowsOfColumns(tables, outliers, w.batches) };
 }
 
-export const specKeys = {
-  all: ['specs'] as const,
-  list: () => [...specKeys.all, 'list'] as const,
-  detail: (id: string) => [...specKeys.all, 'detail', id] as const,
-};
-
-export const qualityKeys = {
-  evaluation: (batchId: string, specId: string) => [...batchKeys.all, 'evaluation', batchId, specId] as const,
-  reviews: (batchId: string) => [...batchKeys.all, 'reviews', batchId] as const,
-  compare: (ids: string[], specId: string, param: string) => ['compare', ids.join(','), specId, param] as const,
-};
+export { qualityKeys, specKeys };
 
 export function useSpecs() {
   return useQuery({ queryKey: specKeys.list(), queryFn: () => apiFetch<{ specs: SpecJson[] }>('/api/specs') });
@@ -76,6 +67,8 @@ export function useSaveSpec() {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (input: SpecInput & { familyId?: string }) => apiFetch<SpecJson>('/api/specs', { body: input as Record<string, unknown> }),
+    // A save adds a version with a new id: evaluations and comparisons cached under an existing
+    // spec id stay true, only the spec list and details change.
     onSuccess: async () => {
       await qc.invalidateQueries({ queryKey: specKeys.all });
     },
@@ -98,8 +91,9 @@ export function useSubmitBatch(batchId: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (comment: string) => apiFetch(`/api/batches/${encodeURIComponent(batchId)}/submit`, { body: { comment } }),
+    // The state changes everywhere the batch shows, a review is recorded and the QA leads are mailed.
     onSuccess: async () => {
-      await qc.invalidateQueries({ queryKey: batchKeys.all });
+      await invalidateBatchReview(qc, batchId);
     },
   });
 }
@@ -108,8 +102,9 @@ export function useDecision(batchId: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (input: { decision: 'release' | 'hold'; specId: string; comment: string }) => apiFetch(`/api/batches/${encodeURIComponent(batchId)}/decision`, { body: input }),
+    // Released or on hold shows in the list, the comparison and the curve pages; the decision is mailed.
     onSuccess: async () => {
-      await qc.invalidateQueries({ queryKey: batchKeys.all });
+      await invalidateBatchReview(qc, batchId);
     },
   });
 }

@@ -1,7 +1,9 @@
 /** Session, sign-in and account hooks (better-auth's endpoints and /api/me). */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import type { QueryClient } from '@tanstack/react-query';
 import type { Permission, Role } from '@/lib/auth/roles';
 import { ApiError, apiFetch } from '@/lib/api/client';
+import { outboxKeys, sessionKeys } from '@/lib/api/keys';
 import type { SignInInput, SignUpInput } from '@/lib/schemas/auth';
 
 export type Me = {
@@ -11,10 +13,7 @@ export type Me = {
   permissions: Permission[];
 };
 
-export const sessionKeys = {
-  all: ['session'] as const,
-  me: () => [...sessionKeys.all, 'me'] as const,
-};
+export { sessionKeys };
 
 /** The signed-in user, or null when signed out (401). */
 export function useMe() {
@@ -32,13 +31,20 @@ export function useMe() {
   });
 }
 
+/**
+ * Another account signed in: what is cached belonged to the previous one (a session that ran out
+ * and someone else signing in on the same browser), so it goes; the session is fetched again.
+ */
+async function afterAccountChange(qc: QueryClient): Promise<void> {
+  qc.removeQueries({ predicate: (q) => q.queryKey[0] !== sessionKeys.all[0] });
+  await qc.invalidateQueries({ queryKey: sessionKeys.all });
+}
+
 export function useSignIn() {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (input: SignInInput) => apiFetch('/api/auth/sign-in/email', { body: input }),
-    onSuccess: async () => {
-      await qc.invalidateQueries({ queryKey: sessionKeys.all });
-    },
+    onSuccess: () => afterAccountChange(qc),
   });
 }
 
@@ -46,9 +52,7 @@ export function useSignUp() {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (input: SignUpInput) => apiFetch('/api/auth/sign-up/email', { body: input }),
-    onSuccess: async () => {
-      await qc.invalidateQueries({ queryKey: sessionKeys.all });
-    },
+    onSuccess: () => afterAccountChange(qc),
   });
 }
 
@@ -65,9 +69,14 @@ export function useSignOut() {
 }
 
 export function useRequestPasswordReset() {
+  const qc = useQueryClient();
   return useMutation({
     mutationFn: (email: string) =>
       apiFetch('/api/auth/request-password-reset', { body: { email, redirectTo: '/reset-password' } }),
+    // The reset mail lands in the outbox (an admin may be looking at it).
+    onSuccess: async () => {
+      await qc.invalidateQueries({ queryKey: outboxKeys.all });
+    },
   });
 }
 

@@ -1,14 +1,12 @@
 /** Organisation users and roles (admins). */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { apiFetch } from '@/lib/api/client';
+import { sessionKeys, userKeys } from '@/lib/api/keys';
 import type { Role } from '@/lib/auth/roles';
 
 export type OrgUser = { id: string; name: string; email: string; role: Role; memberId: string; joinedAt: string };
 
-export const userKeys = {
-  all: ['users'] as const,
-  list: () => [...userKeys.all, 'list'] as const,
-};
+export { userKeys };
 
 export function useUsers() {
   return useQuery({ queryKey: userKeys.list(), queryFn: () => apiFetch<{ users: OrgUser[] }>('/api/users') });
@@ -19,8 +17,9 @@ export function useChangeRole() {
   return useMutation({
     mutationFn: (input: { userId: string; role: Role }) =>
       apiFetch(`/api/users/${encodeURIComponent(input.userId)}/role`, { method: 'PATCH', body: { role: input.role } }),
+    // An admin may change their own role, and with it what /api/me permits (the server drops its cached caller).
     onSuccess: async () => {
-      await qc.invalidateQueries({ queryKey: userKeys.all });
+      await Promise.all([qc.invalidateQueries({ queryKey: userKeys.all }), qc.invalidateQueries({ queryKey: sessionKeys.me() })]);
     },
   });
 }
