@@ -1,7 +1,9 @@
 /**
  * Browser: a QA lead writes a spec, then a designer compares the two demo module batches in the
- * grid with pass/fail, the statistics side by side and the distribution chart.
+ * grid with pass/fail, the statistics side by side and the distribution chart; the comparison is in
+ * the address, so a reload or a link opens the same one.
  */
+import type { Page } from 'playwright-core';
 import { layoutProblems, openBrowser, screenshot, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
 import { startServerProcess } from '@/tests/support/server-process';
 import type { ServerProcess } from '@/tests/support/server-process';
@@ -30,6 +32,21 @@ afterAll(async () => {
   await srv?.stop();
 });
 
+const LOT_2611 = 'KF-M60 line 2, lot 2611';
+const LOT_2612 = 'KF-M60 line 3, lot 2612';
+
+/** Whether a chip (role checkbox) shows as chosen. */
+const chosen = async (page: Page, testID: string) => (await page.getByTestId(testID).getAttribute('aria-checked')) === 'true';
+
+/** The demo batches' and the spec's ids, read through the API with the page's session. */
+async function idsOf(page: Page): Promise<{ batch: Record<string, string>; spec: string }> {
+  return page.evaluate(async () => {
+    const batches = (await (await fetch('/api/batches')).json()) as { batches: { id: string; name: string }[] };
+    const specs = (await (await fetch('/api/specs')).json()) as { specs: { id: string; name: string }[] };
+    return { batch: Object.fromEntries(batches.batches.map((x) => [x.name, x.id])), spec: specs.specs.find((x) => x.name === 'Module release')!.id };
+  });
+}
+
 describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
   it('two batches in the grid, statistics and distribution', async () => {
     const b = await openBrowser(viewport);
@@ -50,6 +67,12 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await screenshot(b.page, `compare-grid-${vpName}`);
       await b.page.getByTestId('param-rs_ohm').click();
       await b.page.getByTestId('distribution-chart').locator('svg').first().waitFor();
+      // The choices are in the address, in the order picked.
+      const ids = await idsOf(b.page);
+      await b.page.waitForURL((u) => u.searchParams.get('param') === 'rs_ohm');
+      const url = new URL(b.page.url());
+      expect(url.searchParams.get('batches')).toBe(`${ids.batch[LOT_2611]},${ids.batch[LOT_2612]}`);
+      expect(url.searchParams.get('spec')).toBe(ids.spec);
       const stats = await b.page.getByTestId('stats-table').innerText();
       expect(stats).toMatch(/median/);
       expect(stats).toMatch(/Ω/);
@@ -57,6 +80,42 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await b.page.getByTestId('stats-table').scrollIntoViewIfNeeded();
       expect(await layoutProblems(b.page)).toEqual([]);
       await screenshot(b.page, `compare-stats-${vpName}`);
+    } finally {
+      await b.close();
+    }
+  });
+
+  it('a link with batches, parameter and spec opens that comparison, and a reload keeps it', async () => {
+    const b = await openBrowser(viewport);
+    try {
+      await signInThroughForm(b.page, srv.url, 'dana.lindqvist@kestrel-pv.example', 'kestrel-design-demo');
+      const ids = await idsOf(b.page);
+      // Lot 2612 first: the first batch is the one the others are compared with.
+      const link = `${srv.url}/compare?batches=${ids.batch[LOT_2612]},${ids.batch[LOT_2611]}&param=ff&spec=${ids.spec}`;
+      await b.page.goto(link, { waitUntil: 'load' });
+      await b.page.getByTestId('grid-row-M2612-001').waitFor();
+      await b.page.getByTestId('grid-row-M2611-001').waitFor();
+      expect(await chosen(b.page, `pick-${LOT_2611}`)).toBe(true);
+      expect(await chosen(b.page, `pick-${LOT_2612}`)).toBe(true);
+      expect(await chosen(b.page, 'compare-spec-Module release')).toBe(true);
+      expect(await chosen(b.page, 'param-ff')).toBe(true);
+      expect(await chosen(b.page, 'param-pmp_w')).toBe(false);
+      // The statistics are of FF (in %), in the linked order, judged against the spec (pass/fail filter shown).
+      const stats = await b.page.getByTestId('stats-table').innerText();
+      expect(stats).toMatch(/FF/);
+      expect(stats).toMatch(/%/);
+      expect(stats.indexOf(LOT_2612)).toBeLessThan(stats.indexOf(LOT_2611));
+      await b.page.getByTestId('filter-fail').waitFor();
+      await screenshot(b.page, `compare-link-${vpName}`);
+
+      // Dropping a batch changes the address; a reload shows the same comparison.
+      await b.page.getByTestId(`pick-${LOT_2611}`).click();
+      await b.page.waitForURL((u) => u.searchParams.get('batches') === ids.batch[LOT_2612]);
+      await b.page.reload({ waitUntil: 'load' });
+      await b.page.getByTestId('grid-row-M2612-001').waitFor();
+      expect(await b.page.getByTestId('grid-row-M2611-001').count()).toBe(0);
+      expect(await chosen(b.page, `pick-${LOT_2611}`)).toBe(false);
+      expect(await chosen(b.page, 'param-ff')).toBe(true);
     } finally {
       await b.close();
     }

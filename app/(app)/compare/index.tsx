@@ -1,5 +1,5 @@
 import type { ColumnDef, SortingState } from '@tanstack/react-table';
-import { useRouter } from 'expo-router';
+import { useLocalSearchParams, useRouter } from 'expo-router';
 import Papa from 'papaparse';
 import { useMemo, useState } from 'react';
 import { Pressable, StyleSheet, TextInput, View, useWindowDimensions } from 'react-native';
@@ -20,6 +20,7 @@ import type { CompareColumnId } from '@/lib/compare-columns';
 import { downloadText } from '@/lib/download';
 import { PARAM_LABELS, fmtParam, sig, unitOf } from '@/lib/format';
 import { csvSafeCell } from '@/lib/quality/csv';
+import { isParamKey } from '@/lib/quality/params';
 import type { ParamKey } from '@/lib/quality/params';
 import { isAboveElv } from '@/lib/strings/cautions';
 
@@ -45,6 +46,12 @@ function columnDefs(ids: CompareColumnId[]): ColumnDef<CompareRow>[] {
   }));
 }
 
+/** The comparison's address: /compare?batches=<id>,<id>&param=rs_ohm&spec=<spec id>. */
+type CompareParams = { batches?: string | string[]; param?: string | string[]; spec?: string | string[] };
+
+/** A search param given twice arrives as an array: the first one counts. */
+const first = (v: string | string[] | undefined): string => (Array.isArray(v) ? (v[0] ?? '') : (v ?? ''));
+
 function Chip({ on, label, onPress, testID }: { on: boolean; label: string; onPress: () => void; testID?: string }) {
   return (
     <Pressable onPress={onPress} style={[styles.chip, on && styles.chipOn]} accessibilityRole="checkbox" accessibilityState={{ checked: on }} testID={testID}>
@@ -59,9 +66,17 @@ export default function CompareScreen() {
   const router = useRouter();
   const { width, height } = useWindowDimensions();
   const wide = width >= theme.wideFrom;
-  const [selected, setSelected] = useState<string[]>([]);
-  const [specId, setSpecId] = useState('');
-  const [param, setParam] = useState<ParamKey>('pmp_w');
+  // The chosen batches, parameter and spec live in the address, so a comparison can be linked and
+  // reloaded; the filters, sorting and columns are a view of it and stay local.
+  const search = useLocalSearchParams<CompareParams>();
+  const batchesParam = first(search.batches);
+  const selected = useMemo(() => batchesParam.split(',').filter(Boolean), [batchesParam]);
+  const specId = first(search.spec);
+  const paramParam = first(search.param);
+  const param: ParamKey = isParamKey(paramParam) && GRID_PARAMS.includes(paramParam) ? paramParam : 'pmp_w';
+  const setSelected = (next: string[]) => router.setParams({ batches: next.length ? next.join(',') : undefined });
+  const setSpecId = (id: string) => router.setParams({ spec: id || undefined });
+  const setParam = (p: ParamKey) => router.setParams({ param: p });
   const [columns, setColumns] = useState<CompareColumnId[]>(DEFAULT_COLUMNS);
   const [choosing, setChoosing] = useState(false);
   const [sorting, setSorting] = useState<SortingState>([]);
@@ -89,7 +104,7 @@ export default function CompareScreen() {
           {(d) => (
             <View style={styles.chips}>
               {d.batches.filter((b) => !b.archived).map((b) => (
-                <Chip key={b.id} on={selected.includes(b.id)} label={`${b.name} (${b.curveCount ?? 0})`} onPress={() => setSelected((s) => toggle(s, b.id))} testID={`pick-${b.name}`} />
+                <Chip key={b.id} on={selected.includes(b.id)} label={`${b.name} (${b.curveCount ?? 0})`} onPress={() => setSelected(toggle(selected, b.id))} testID={`pick-${b.name}`} />
               ))}
             </View>
           )}
