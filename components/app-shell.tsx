@@ -36,7 +36,7 @@ export function AppShell({ me, children }: { me: Me; children: ReactNode }) {
             {items.map((i) => {
               const active = isActive(pathname, i.match);
               return (
-                <Link key={i.href} href={i.href as never} asChild>
+                <Link key={i.match} href={i.href} asChild>
                   <Pressable style={StyleSheet.flatten([styles.sideItem, active && styles.sideItemActive])} testID={`nav-${i.short.toLowerCase()}`}>
                     <View style={[styles.tick, active && styles.tickActive]} />
                     <Txt variant="label" style={{ color: active ? theme.color.navActive : theme.color.navText, fontSize: 14 }}>
@@ -74,7 +74,7 @@ export function AppShell({ me, children }: { me: Me; children: ReactNode }) {
           {items.map((i) => {
             const active = isActive(pathname, i.match);
             return (
-              <Link key={i.href} href={i.href as never} asChild>
+              <Link key={i.match} href={i.href} asChild>
                 <Pressable style={StyleSheet.flatten([styles.chip, active && styles.chipActive])} testID={`nav-${i.short.toLowerCase()}`}>
                   <Txt variant="label" style={{ color: active ? '#fff' : theme.color.inkSoft }}>
                     {i.short}

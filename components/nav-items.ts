@@ -1,6 +1,8 @@
+import type { Href } from 'expo-router';
 import type { Permission } from '@/lib/auth/roles';
 
-export type NavItem = { href: string; label: string; short: string; needs?: Permission; match: string };
+/** `href` is checked against the app's routes (typed routes, .expo/types/router.d.ts). */
+export type NavItem = { href: Href; label: string; short: string; needs?: Permission; match: string };
 
 /** The main sections, in order; each shows only to roles with its permission. */
 export const NAV_ITEMS: NavItem[] = [

@@ -11,6 +11,7 @@ import { Txt } from '@/components/txt';
 import type { Batch } from '@/lib/api/batches';
 import { passFailUrl, useDecision, useEvaluation, useReviews, useSpecs, useSubmitBatch } from '@/lib/api/quality';
 import type { Me } from '@/lib/api/session';
+import type { Permission } from '@/lib/auth/roles';
 import { downloadFromUrl } from '@/lib/download';
 
 const ACTION_WORDS: Record<string, string> = { submitted: 'submitted for review', released: 'released', held: 'put on hold' };
@@ -29,7 +30,7 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
   const submit = useSubmitBatch(b.id);
   const decide = useDecision(b.id);
   const [comment, setComment] = useState('');
-  const can = (p: string) => me.permissions.includes(p as never);
+  const can = (p: Permission) => me.permissions.includes(p);
   const canSubmit = can('batch:submit') && (b.state === 'open' || b.state === 'on_hold') && !b.archived;
   const canDecide = can('release:decide') && b.state === 'in_review';
 

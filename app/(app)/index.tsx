@@ -38,7 +38,7 @@ export default function Overview() {
   const wide = width >= theme.wideFrom;
   const d = me.data;
   if (!d) return null;
-  const links = NAV_ITEMS.filter((i) => i.href !== '/' && (!i.needs || d.permissions.includes(i.needs)));
+  const links = NAV_ITEMS.filter((i) => i.match !== '/' && (!i.needs || d.permissions.includes(i.needs)));
   return (
     <Screen title={`Hello, ${d.user.name.split(' ')[0]}`} subtitle={`${ROLE_LABELS[d.role]} at ${d.organization.name}`} testID="overview-screen">
       <View style={[styles.grid, wide && styles.gridWide]}>
@@ -52,7 +52,7 @@ export default function Overview() {
         </Card>
         <Card title="Go to" style={wide ? styles.colNarrow : undefined}>
           {links.map((l) => (
-            <Link key={l.href} href={l.href as never}>
+            <Link key={l.match} href={l.href}>
               <Txt variant="body" style={{ color: theme.color.electron, textDecorationLine: 'underline' }}>{l.label}</Txt>
             </Link>
           ))}
