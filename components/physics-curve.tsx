@@ -1,0 +1,180 @@
+import { useRouter } from 'expo-router';
+import { useMemo } from 'react';
+import { StyleSheet, View } from 'react-native';
+import { Button } from '@/components/button';
+import { Card } from '@/components/card';
+import { CautionBlock } from '@/components/caution-block';
+import { Figure } from '@/components/figure';
+import { PhysicsColumns } from '@/components/physics-columns';
+import { PhysicsTranslateForm } from '@/components/physics-translate-form';
+import { PhysicsVocChart } from '@/components/physics-voc-chart';
+import { theme } from '@/components/theme';
+import { Txt } from '@/components/txt';
+import type { CurvePhysicsJson } from '@/lib/api/physics';
+import { fmtParam, sig } from '@/lib/format';
+import { isAboveElv } from '@/lib/strings/cautions';
+
+/**
+ * What one curve's fits say: J0 and the implied Voc, the Voc temperature coefficient and Voc across
+ * temperature, the double diode's recombination shares, the STC figures and a translation.
+ */
+export function PhysicsCurve({ p, wide }: { p: CurvePhysicsJson; wide: boolean }) {
+  const router = useRouter();
+  const s = p.single;
+  const c = p.conditions;
+  const module = c.cells > 1 || isAboveElv(p.curve.metrics.voc_v);
+  const coef = s?.coefficient;
+  const lawName = (law: string) => (law === 'desoto' ? 'I0 ∝ T³·exp(−Eg/kT) (De Soto et al. 2006)' : 'I0 ∝ n_i(T)^(2/n)');
+  const conditions = [`${c.tempC} °C`, c.irradiance_Wm2 != null ? `${c.irradiance_Wm2} W/m²` : 'irradiance not given', `${c.cells} cell${c.cells === 1 ? '' : 's'} in series`, c.area_cm2 != null ? `${c.area_cm2} cm²` : 'no area'].join(' · ');
+  const measured = useMemo(() => ({ tempC: c.tempC, voc_V: p.curve.metrics.voc_v }), [c.tempC, p.curve.metrics.voc_v]);
+
+  const head = (
+    <Card testID="physics-curve">
+      <View style={styles.curveHead}>
+        <View style={{ flex: 1, minWidth: 200, gap: 2 }}>
+          <Txt variant="heading">Curve {p.curve.device_id}</Txt>
+          <Txt variant="caption">{[p.curve.batch?.name, conditions].filter(Boolean).join(' · ')}</Txt>
+        </View>
+        <View style={{ flexDirection: 'row', gap: 8, flexWrap: 'wrap' }}>
+          <Button label="Open the curve" kind="secondary" onPress={() => router.push(`/curves/${p.curve.id}`)} />
+          <Button label="Without the curve" kind="quiet" onPress={() => router.replace('/physics')} testID="physics-clear-curve" />
+        </View>
+      </View>
+    </Card>
+  );
+
+  if (!s) {
+    return (
+      <View style={{ gap: 16 }}>
+        {head}
+        <View style={styles.empty} testID="physics-curve-empty">
+          <Txt variant="body">This curve has no converged single-diode fit, so J0 and its temperature behaviour cannot be derived. Fit it again from the curve page.</Txt>
+          {p.notes.map((n) => (
+            <Txt key={n} variant="caption">{n}</Txt>
+          ))}
+        </View>
+      </View>
+    );
+  }
+
+  const figures = (
+    <Card title="Saturation current and temperature" testID="curve-physics-figures">
+      <View style={styles.figures}>
+        <Figure
+          label="J0 per cell area (A/cm²)"
+          value={s.j0_A_per_cm2 != null ? sig(s.j0_A_per_cm2, 3) : 'no area'}
+          note={s.j0_A_per_cm2 != null ? `I0 ${fmtParam('i0_a', s.params.i0_a, 3)} over ${sig(c.cellArea_cm2, 4)} cm² per cell, n = ${s.params.n.toFixed(3)}` : 'J0 needs the device area: refit the curve with it.'}
+          testID="j0-figure"
+        />
+        <Figure
+          label="Implied Voc from Jsc and J0"
+          value={s.impliedVoc ? fmtParam('voc_v', s.impliedVoc.voc_V) : '—'}
+          note={s.impliedVoc ? `measured Voc ${fmtParam('voc_v', s.impliedVoc.measuredVoc_V)}; n·Ns·kT/q·ln(Jsc/J0 + 1)` : undefined}
+          warn={!!s.impliedVoc && isAboveElv(s.impliedVoc.voc_V)}
+          testID="implied-voc"
+        />
+        {coef ? (
+          <Figure
+            label="Voc temperature coefficient β"
+            value={`${(coef.beta_V_per_K * 1000).toFixed(1)} mV/K`}
+            note={`${coef.beta_pct_per_K.toFixed(3)} %/K · ${(coef.betaPerCell_V_per_K * 1000).toFixed(2)} mV/K per cell · ${lawName(coef.law)}, Isc +${(coef.alphaIsc_rel_per_K * 100).toFixed(2)} %/K`}
+            testID="voc-coefficient"
+          />
+        ) : null}
+        {s.coefficientDeSoto ? (
+          <Figure label="β with the De Soto law" value={`${s.coefficientDeSoto.beta_pct_per_K.toFixed(3)} %/K`} note={`${(s.coefficientDeSoto.beta_V_per_K * 1000).toFixed(1)} mV/K; no 1/n in its exponent, so steeper for n > 1`} />
+        ) : null}
+      </View>
+      {p.double ? (
+        <View style={{ gap: 6 }} testID="recombination-shares">
+          <Txt variant="label">Double-diode fit: where the diode current goes at the maximum power point</Txt>
+          {p.double.shares ? (
+            <View style={styles.figures}>
+              <Figure label={`Diffusion (n1 = ${p.double.params.n1.toFixed(2)})`} value={`${(100 * p.double.shares.diffusionShare).toFixed(1)} %`} note={`${fmtParam('i0_a', p.double.shares.diode1_a, 3)}${p.double.j01_A_per_cm2 != null ? ` · J01 ${fmtParam('j0_a_cm2', p.double.j01_A_per_cm2, 3)}` : ''}`} />
+              <Figure label={`Depletion region (n2 = ${p.double.params.n2.toFixed(2)})`} value={`${(100 * p.double.shares.depletionShare).toFixed(1)} %`} note={`${fmtParam('i0_a', p.double.shares.diode2_a, 3)}${p.double.j02_A_per_cm2 != null ? ` · J02 ${fmtParam('j0_a_cm2', p.double.j02_A_per_cm2, 3)}` : ''}`} />
+            </View>
+          ) : (
+            <Txt variant="caption">The shares could not be computed (see the notes below).</Txt>
+          )}
+        </View>
+      ) : null}
+    </Card>
+  );
+
+  const chart = (
+    <Card title="Voc across cell temperature">
+      {s.vocVsTemperature ? (
+        <>
+          <PhysicsVocChart points={s.vocVsTemperature.points} measured={measured} testID="voc-temperature-chart" />
+          <Txt variant="caption">
+            ━ predicted from the single-diode fit ({lawName(s.vocVsTemperature.law)}, n, Rs, Rsh held) ◆ measured {fmtParam('voc_v', measured.voc_V)} at {measured.tempC} °C. −40 to +85 °C. The coldest morning gives the highest voltage.
+          </Txt>
+        </>
+      ) : (
+        <Txt variant="body">The prediction could not be computed (see the notes below).</Txt>
+      )}
+    </Card>
+  );
+
+  const stc = (
+    <Card title="At standard test conditions" testID="physics-stc">
+      {p.stc ? (
+        <>
+          <View style={styles.figures}>
+            <Figure label="Isc" value={fmtParam('isc_a', p.stc.isc_a)} />
+            <Figure label="Voc" value={fmtParam('voc_v', p.stc.voc_v)} warn={isAboveElv(p.stc.voc_v)} />
+            <Figure label="Pmax" value={fmtParam('pmp_w', p.stc.pmp_w)} note={`at ${fmtParam('vmp_v', p.stc.vmp_v)}, ${fmtParam('imp_a', p.stc.imp_a)}`} />
+            <Figure label="Fill factor" value={fmtParam('ff', p.stc.ff)} />
+            {p.stc.efficiency != null ? <Figure label="Efficiency" value={fmtParam('efficiency', p.stc.efficiency)} /> : null}
+          </View>
+          <Txt variant="caption">Stored with the curve: the fit at {p.stc.from.tempC} °C and {p.stc.from.irradiance_Wm2} W/m² moved to 1000 W/m², 25 °C (De Soto et al. 2006). {p.stc.notes.join(' ')}</Txt>
+        </>
+      ) : (
+        <Txt variant="body">No STC figures are stored for this curve.</Txt>
+      )}
+    </Card>
+  );
+
+  const translate = (
+    <Card title="Translate to other conditions">
+      <PhysicsTranslateForm physics={p} />
+    </Card>
+  );
+
+  return (
+    <View style={{ gap: 16 }}>
+      {head}
+      {module ? <CautionBlock /> : null}
+      {wide ? (
+        <PhysicsColumns wide>
+          <View style={{ flex: 1, gap: 16 }}>
+            {figures}
+            {stc}
+          </View>
+          <View style={{ flex: 1, gap: 16 }}>
+            {chart}
+            {translate}
+          </View>
+        </PhysicsColumns>
+      ) : (
+        <>
+          {figures}
+          {chart}
+          {stc}
+          {translate}
+        </>
+      )}
+      {p.notes.length ? (
+        <Txt variant="caption" testID="physics-notes">
+          {p.notes.join(' ')}
+        </Txt>
+      ) : null}
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  figures: { flexDirection: 'row', flexWrap: 'wrap', gap: 14 },
+  curveHead: { flexDirection: 'row', flexWrap: 'wrap', gap: 12, alignItems: 'flex-end', justifyContent: 'space-between' },
+  empty: { padding: 16, borderRadius: theme.radius.m, gap: 8, borderWidth: 1, backgroundColor: theme.color.sunken, borderColor: theme.color.line },
+});
