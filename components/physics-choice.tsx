@@ -27,7 +27,7 @@ export function PhysicsChoice<T extends string>({
               key={o.value}
               onPress={() => onChange(o.value)}
               accessibilityRole="radio"
-              accessibilityState={{ checked: on }}
+              aria-checked={on}
               style={[styles.opt, on && styles.optOn]}
               testID={testID ? `${testID}-${o.value}` : undefined}
             >

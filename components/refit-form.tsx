@@ -17,7 +17,7 @@ function Choice<T extends string>({ value, options, onChange, label }: { value: 
       <Txt variant="label">{label}</Txt>
       <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: 6 }} accessibilityRole="radiogroup" accessibilityLabel={label}>
         {options.map((o) => (
-          <Pressable key={o.value} onPress={() => onChange(o.value)} accessibilityRole="radio" accessibilityState={{ checked: value === o.value }} style={[styles.opt, value === o.value && styles.optOn]}>
+          <Pressable key={o.value} onPress={() => onChange(o.value)} accessibilityRole="radio" aria-checked={value === o.value} style={[styles.opt, value === o.value && styles.optOn]}>
             <Txt variant="caption" style={{ color: value === o.value ? '#fff' : theme.color.inkSoft }}>{o.label}</Txt>
           </Pressable>
         ))}

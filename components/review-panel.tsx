@@ -43,7 +43,7 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
               <Txt variant="label">Judge against</Txt>
               <View style={styles.chips} accessibilityRole="radiogroup" accessibilityLabel="Spec">
                 {d.specs.map((s) => (
-                  <Pressable key={s.id} onPress={() => setChosen(s.id)} accessibilityRole="radio" accessibilityState={{ checked: s.id === specId }} style={[styles.chip, s.id === specId && styles.chipOn]} testID={`spec-choice-${s.name}`}>
+                  <Pressable key={s.id} onPress={() => setChosen(s.id)} accessibilityRole="radio" aria-checked={s.id === specId} style={[styles.chip, s.id === specId && styles.chipOn]} testID={`spec-choice-${s.name}`}>
                     <Txt variant="caption" style={{ color: s.id === specId ? '#fff' : theme.color.inkSoft }}>{s.name} v{s.version}</Txt>
                   </Pressable>
                 ))}

@@ -89,7 +89,7 @@ export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson;
         <View style={{ flexDirection: 'row', gap: 10, flexWrap: 'wrap', alignItems: 'center' }}>
           <TextInput value={step} onChangeText={setStep} placeholder="step (W), e.g. 5" placeholderTextColor={theme.color.muted} style={[styles.input, { width: 150 }]} keyboardType="numeric" accessibilityLabel="Power class step in W" testID="class-step" />
           {(['stc_pmp_w', 'pmp_w'] as const).map((b) => (
-            <Pressable key={b} onPress={() => setBasis(b)} style={[styles.chip, basis === b && styles.chipOn]} accessibilityRole="radio" accessibilityState={{ checked: basis === b }}>
+            <Pressable key={b} onPress={() => setBasis(b)} style={[styles.chip, basis === b && styles.chipOn]} accessibilityRole="radio" aria-checked={basis === b}>
               <Txt variant="caption" style={{ color: basis === b ? '#fff' : theme.color.inkSoft }}>{b === 'stc_pmp_w' ? 'on Pmax at STC' : 'on measured Pmax'}</Txt>
             </Pressable>
           ))}
@@ -101,7 +101,7 @@ export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson;
           {Object.entries(FLAG_CODES).map(([code, label]) => {
             const on = flags.includes(code);
             return (
-              <Pressable key={code} onPress={() => setFlags((f) => (on ? f.filter((x) => x !== code) : [...f, code]))} style={[styles.chip, on && styles.chipOn]} accessibilityRole="checkbox" accessibilityState={{ checked: on }}>
+              <Pressable key={code} onPress={() => setFlags((f) => (on ? f.filter((x) => x !== code) : [...f, code]))} style={[styles.chip, on && styles.chipOn]} accessibilityRole="checkbox" aria-checked={on}>
                 <Txt variant="caption" style={{ color: on ? '#fff' : theme.color.inkSoft }}>{label}</Txt>
               </Pressable>
             );

@@ -22,7 +22,7 @@ function Chips<T extends string>({ value, options, onChange, label }: { value: T
       <Txt variant="label">{label}</Txt>
       <View style={styles.chips} accessibilityRole="radiogroup" accessibilityLabel={label}>
         {options.map((o) => (
-          <Pressable key={o.value} onPress={() => onChange(o.value)} accessibilityRole="radio" accessibilityState={{ checked: value === o.value }} style={[styles.chip, value === o.value && styles.chipOn]} testID={o.testID}>
+          <Pressable key={o.value} onPress={() => onChange(o.value)} accessibilityRole="radio" aria-checked={value === o.value} style={[styles.chip, value === o.value && styles.chipOn]} testID={o.testID}>
             <Txt variant="label" style={{ color: value === o.value ? '#fff' : theme.color.inkSoft }}>{o.label}</Txt>
           </Pressable>
         ))}
@@ -121,7 +121,7 @@ export function StringForm({
                             setPickError(null);
                           }}
                           accessibilityRole="radio"
-                          accessibilityState={{ checked: on }}
+                          aria-checked={on}
                           style={[styles.batch, on && styles.batchOn]}
                           testID={`pick-batch-${b.name}`}
                         >

@@ -37,7 +37,7 @@ export default function UsersScreen() {
                       <Pressable
                         key={r}
                         accessibilityRole="radio"
-                        accessibilityState={{ checked: active }}
+                        aria-checked={active}
                         disabled={active || change.isPending}
                         onPress={() => {
                           setPending(u.id);

@@ -54,7 +54,7 @@ const first = (v: string | string[] | undefined): string => (Array.isArray(v) ? 
 
 function Chip({ on, label, onPress, testID }: { on: boolean; label: string; onPress: () => void; testID?: string }) {
   return (
-    <Pressable onPress={onPress} style={[styles.chip, on && styles.chipOn]} accessibilityRole="checkbox" accessibilityState={{ checked: on }} testID={testID}>
+    <Pressable onPress={onPress} style={[styles.chip, on && styles.chipOn]} accessibilityRole="checkbox" aria-checked={on} testID={testID}>
       <Txt variant="caption" style={{ color: on ? '#fff' : theme.color.inkSoft }} numberOfLines={1}>{label}</Txt>
     </Pressable>
   );
