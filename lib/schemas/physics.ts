@@ -5,57 +5,17 @@
  * answers with a PhysicsError naming the input.
  */
 import { z } from 'zod';
+import { optNumber, reqNumber } from '@/lib/schemas/numbers';
 
-/** A number written as a number or as text ("1e16", "1,5"); '' and null read as absent. */
-function readNumber(v: unknown): number | undefined {
-  if (v === undefined || v === null) return undefined;
-  if (typeof v === 'number') return v;
-  if (typeof v !== 'string') return Number.NaN;
-  const t = v.trim().replace(/\s+/g, '').replace(',', '.');
-  if (t === '') return undefined;
-  return Number(t);
-}
+/** A required number named by its API key, with its unit in the messages. */
+const requiredNumber = (name: string, unit: string) => reqNumber(name, { unit });
 
-const numberInput = z.union([z.number(), z.string()]).optional().nullable();
-
-/** A required finite number; the message names the input and its unit. */
-const requiredNumber = (name: string, unit: string) =>
-  numberInput.transform((v, ctx) => {
-    const n = readNumber(v);
-    if (n === undefined) {
-      ctx.addIssue({ code: 'custom', message: `${name} is required (${unit}).` });
-      return z.NEVER;
-    }
-    if (!Number.isFinite(n)) {
-      ctx.addIssue({ code: 'custom', message: `${name} must be a number (${unit}), got "${String(v)}".` });
-      return z.NEVER;
-    }
-    return n;
-  });
-
-/** An optional finite number (undefined when left empty). */
-const optionalNumber = (name: string, unit: string) =>
-  numberInput.transform((v, ctx) => {
-    const n = readNumber(v);
-    if (n === undefined) return undefined;
-    if (!Number.isFinite(n)) {
-      ctx.addIssue({ code: 'custom', message: `${name} must be a number (${unit}), got "${String(v)}".` });
-      return z.NEVER;
-    }
-    return n;
-  });
+/** An optional number (undefined when left empty). */
+const optionalNumber = (name: string, unit: string) => optNumber(name, { unit });
 
 /** GET /api/physics/material?tempK= (300 K when omitted). */
 export const materialQuerySchema = z.object({
-  tempK: numberInput.transform((v, ctx) => {
-    const n = readNumber(v);
-    if (n === undefined) return 300;
-    if (!Number.isFinite(n)) {
-      ctx.addIssue({ code: 'custom', message: `tempK must be a number (K), got "${String(v)}".` });
-      return z.NEVER;
-    }
-    return n;
-  }),
+  tempK: optionalNumber('tempK', 'K').transform((v) => v ?? 300),
 });
 
 export const DOPING_TYPES = ['p', 'n'] as const;
