@@ -6,6 +6,7 @@
  */
 import { z } from 'zod';
 import { optNumber, reqNumber } from '@/lib/schemas/numbers';
+import { labelOf } from '@/lib/vocabulary';
 import type { StringSizingResult } from '@/lib/strings/size-string';
 
 /**
@@ -54,18 +55,12 @@ export const stringSizeSchema = z
     return { ...rest, mppWindow: lo === undefined || hi === undefined ? undefined : { min_V: lo, max_V: hi } };
   });
 
-/** The request's field names as the /strings form labels them. */
+/** The request's field names as the /strings form labels them (quantities from the key table). */
 export const STRING_FIELD_LABELS: Record<string, string> = {
-  vocStc_V: 'Voc at STC',
-  betaVoc_pct_per_K: 'Voc coefficient',
-  tMin_C: 'Record low ambient',
-  tCellMax_C: 'Hottest cell temperature',
-  vSys_V: 'System voltage limit',
-  'mppWindow.min_V': 'MPP window from',
-  'mppWindow.max_V': 'MPP window to',
+  ...Object.fromEntries(
+    ['vocStc_V', 'betaVoc_pct_per_K', 'tMin_C', 'tCellMax_C', 'vSys_V', 'mppWindow.min_V', 'mppWindow.max_V', 'vmpStc_V', 'betaVmp_pct_per_K'].map((k) => [k, labelOf(k)]),
+  ),
   mppWindow: 'MPP window',
-  vmpStc_V: 'Vmp at STC',
-  betaVmp_pct_per_K: 'Vmp coefficient',
   batchId: 'Batch',
   curveId: 'Curve',
 };
