@@ -5,7 +5,7 @@
  */
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
-import { fitSingleDiodeMl } from '@/lib/iv/fit-ml';
+import { fitSingleDiodeMl } from '@/bench/fit-ml';
 import {
   fitDoubleDiode,
   fitSingleDiode,
@@ -50,10 +50,10 @@ function makeDevices(count: number, seed: number): Device[] {
   return out;
 }
 
-function timeFits(devices: Device[], fit: (d: Device) => FitResult): { ms: number[]; evals: number[]; results: FitResult[]; total_ms: number } {
+function timeFits<F extends FitResult>(devices: Device[], fit: (d: Device) => F): { ms: number[]; evals: number[]; results: F[]; total_ms: number } {
   const ms: number[] = [];
   const evals: number[] = [];
-  const results: FitResult[] = [];
+  const results: F[] = [];
   const t0 = performance.now();
   for (const d of devices) {
     const t = performance.now();

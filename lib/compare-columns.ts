@@ -1,9 +1,10 @@
 /**
  * The comparison grid's columns: every key figure and fitted parameter, in the engine's names,
- * with the unit in each header. Pure data so the screen, the CSV export and tests share it.
+ * with the unit in each header (from the key table, lib/vocabulary.ts). Pure data so the
+ * screen, the CSV export and tests share it.
  */
-import { PARAM_LABELS, unitOf } from '@/lib/format';
 import type { ParamKey } from '@/lib/quality/params';
+import { labelWithUnit } from '@/lib/vocabulary';
 
 export type CompareColumnId = 'deviceId' | 'batchName' | 'result' | 'powerClass' | 'outlier' | 'flags' | 'reasons' | ParamKey;
 
@@ -28,9 +29,7 @@ export function columnHeader(id: CompareColumnId): string {
       return 'Flags';
     case 'reasons':
       return 'Reasons';
-    default: {
-      const u = unitOf(id);
-      return u ? `${PARAM_LABELS[id]} (${u})` : PARAM_LABELS[id];
-    }
+    default:
+      return labelWithUnit(id);
   }
 }

@@ -3,7 +3,7 @@
  * voltage reaches the system limit. `--json` prints one JSON object; errors exit 2.
  */
 import { parseArgs } from 'node:util';
-import { cautionText, HV_CAUTION, isAboveElv } from '@/lib/strings/cautions';
+import { cautionText, ELV_LIMIT_V, HV_CAUTION, isAboveElv } from '@/lib/strings/cautions';
 import { StringSizingError } from '@/lib/strings/errors';
 import { sizeString, type StringSizingInput, type StringSizingResult } from '@/lib/strings/size-string';
 
@@ -112,7 +112,7 @@ function jsonOf(r: StringSizingResult): Record<string, unknown> {
   return out;
 }
 
-const volts = (v: number): string => `${v.toFixed(2)} V${isAboveElv(v) ? '  ⚠ above 60 V DC' : ''}`;
+const volts = (v: number): string => `${v.toFixed(2)} V${isAboveElv(v) ? `  ⚠ above ${ELV_LIMIT_V} V DC` : ''}`;
 
 function tableOf(input: StringSizingInput, r: StringSizingResult): string {
   const t = `${input.tMin_C} °C`;

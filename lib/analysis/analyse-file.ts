@@ -3,7 +3,7 @@
  * read → key figures and flags → single- and double-diode fits → STC figures from the fitted
  * single-diode model. Pure: bytes in, plain objects out; throws IvInputError for unusable files.
  */
-import { analyseCurve, parseIvBytes } from '@/lib/iv';
+import { analyseCurve, parseIvBytes, singleDiodeParamsOf } from '@/lib/iv';
 import type { CurveMeta, FitResult, Flag, IvCurve, Metrics, SingleDiodeParams } from '@/lib/iv';
 import { circuitFigures, singleDiodeCircuit, translateModel } from '@/lib/physics';
 import { STC } from '@/lib/physics/constants';
@@ -27,9 +27,7 @@ function clean<T extends object>(o: T): Partial<T> {
 
 /** Fitted single-diode parameters, or null when that fit did not converge. */
 export function singleParams(fits: FitResult[]): SingleDiodeParams | null {
-  const f = fits.find((x) => x.model === 'single-diode' && x.converged);
-  if (!f || f.iph_a == null || f.i0_a == null || f.n == null || f.rs_ohm == null || f.rsh_ohm == null) return null;
-  return { iph_a: f.iph_a, i0_a: f.i0_a, n: f.n, rs_ohm: f.rs_ohm, rsh_ohm: f.rsh_ohm };
+  return singleDiodeParamsOf(fits.find((x) => x.model === 'single-diode' && x.converged));
 }
 
 /**

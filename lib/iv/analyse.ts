@@ -3,7 +3,7 @@ import { fitConditions } from '@/lib/iv/fit-common';
 import { fitDoubleDiode } from '@/lib/iv/fit-double';
 import { fitSingleDiode } from '@/lib/iv/fit-single';
 import { keyFigures } from '@/lib/iv/key-figures';
-import type { FitObjective, FitResult, Flag, IvCurve, Metrics } from '@/lib/iv/types';
+import type { FitObjective, FitResult, Flag, IvCurve, Metrics, SingleDiodeFit } from '@/lib/iv/types';
 
 /** Options of `analyseCurve`; tempC and cells override the curve's metadata. */
 export type AnalyseOptions = {
@@ -42,7 +42,7 @@ export function analyseCurve(curve: IvCurve, opts: AnalyseOptions = {}): { metri
   }
 
   const fits: FitResult[] = [];
-  let single: FitResult | undefined;
+  let single: SingleDiodeFit | undefined;
   for (const model of opts.models ?? ['single', 'double']) {
     if (model === 'single') {
       single = fitSingleDiode(curve, { tempC, cells, metrics, objective: opts.objective });
@@ -52,9 +52,8 @@ export function analyseCurve(curve: IvCurve, opts: AnalyseOptions = {}): { metri
     }
   }
   for (const fit of fits) {
-    const name = fit.model === 'single-diode' ? 'single-diode' : 'double-diode';
     if (!fit.converged) {
-      flags.push({ code: 'fit-failed', severity: 'warn', message: `The ${name} fit did not converge, so it gives no parameters. ${fit.message ?? ''}`.trim() });
+      flags.push({ code: 'fit-failed', severity: 'warn', message: `The ${fit.model} fit did not converge, so it gives no parameters. ${fit.message ?? ''}`.trim() });
     } else if (fit.model === 'single-diode' && fit.rmse_true_current_a !== null && fit.rmse_true_current_a > POOR_FIT_SHARE * metrics.isc_a) {
       flags.push({
         code: 'poor-fit',

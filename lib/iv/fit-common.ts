@@ -32,21 +32,24 @@ export function residualStats(res: readonly number[]): { rmse: number; maxAbs: n
   return { rmse: Math.sqrt(s / res.length), maxAbs };
 }
 
-/** A fit that did not produce a trustworthy optimum: every number is null, the message says why. */
-export function failedFit(
-  model: FitResult['model'],
+/**
+ * A fit that did not produce a trustworthy optimum: every number is null, the message says why.
+ * `keys` are the model's parameter keys; each becomes a null field and a null standard error.
+ */
+export function failedFit<M extends FitResult['model']>(
+  model: M,
   objective: FitObjective,
-  keys: string[],
+  keys: readonly string[],
   evaluations: number,
   elapsed_ms: number,
   message: string,
-): FitResult {
-  const result: FitResult = {
+): Extract<FitResult, { model: M }> {
+  const nulls = Object.fromEntries(keys.map((k) => [k, null]));
+  // The caller's keys are its model's parameters, so the nulls complete the failed member.
+  return {
     model,
     objective,
-    iph_a: null,
-    rs_ohm: null,
-    rsh_ohm: null,
+    ...nulls,
     rmse_a: null,
     rmse_true_current_a: null,
     max_residual_a: null,
@@ -54,11 +57,9 @@ export function failedFit(
     evaluations,
     converged: false,
     elapsed_ms,
-    stderr: Object.fromEntries(keys.map((k) => [k, null])),
+    stderr: { ...nulls },
     message,
-  };
-  for (const k of keys) if (!(k in result)) (result as Record<string, unknown>)[k] = null;
-  return result;
+  } as unknown as Extract<FitResult, { model: M }>;
 }
 
 /** Wall-clock milliseconds, from the high-resolution clock when there is one. */

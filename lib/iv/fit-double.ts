@@ -10,12 +10,13 @@ import { thermalVoltage_V } from '@/lib/physics/constants';
 import { IvInputError } from '@/lib/iv/errors';
 import { solveDoubleDiodeCurrent } from '@/lib/iv/diode';
 import { failedFit, fitConditions, fitObjective, nowMs, residualStats, tidy } from '@/lib/iv/fit-common';
+import { singleDiodeParamsOf } from '@/lib/iv/fit-params';
 import { fitSingleDiode } from '@/lib/iv/fit-single';
 import { keyFiguresOfSorted, validateCurve } from '@/lib/iv/key-figures';
 import { levenbergMarquardt, parameterCovariance } from '@/lib/iv/lm';
 import type { LmProblem, LmResult } from '@/lib/iv/lm';
 import { phangStart } from '@/lib/iv/start';
-import type { DoubleDiodeParams, FitObjective, FitResult, IvCurve, Metrics } from '@/lib/iv/types';
+import type { DoubleDiodeFit, DoubleDiodeParams, FitObjective, IvCurve, Metrics, SingleDiodeFit } from '@/lib/iv/types';
 
 /** Options of `fitDoubleDiode`. */
 export type DoubleFitOptions = {
@@ -28,11 +29,11 @@ export type DoubleFitOptions = {
   i0Max_a?: number;
   metrics?: Metrics;
   /** A converged single-diode fit of the same curve, used for the starts. */
-  single?: FitResult;
+  single?: SingleDiodeFit;
   maxEvaluations?: number;
 };
 
-const KEYS = ['iph_a', 'i01_a', 'n1', 'i02_a', 'n2', 'rs_ohm', 'rsh_ohm'];
+const KEYS: readonly (keyof DoubleDiodeParams)[] = ['iph_a', 'i01_a', 'n1', 'i02_a', 'n2', 'rs_ohm', 'rsh_ohm'];
 const LOG_PARAMS = new Set([1, 3, 6]);
 
 /** Default bound on I01 and I02 when the idealities are free, A. */
@@ -103,7 +104,7 @@ function doubleDiodeProblem(
  * 'free' lets both move in [1, 2] with I01, I02 ≤ 1 µA (the bounds change the optimum, so they
  * are part of the result's meaning). Same conventions as fitSingleDiode.
  */
-export function fitDoubleDiode(curve: IvCurve, opts: DoubleFitOptions = {}): FitResult {
+export function fitDoubleDiode(curve: IvCurve, opts: DoubleFitOptions = {}): DoubleDiodeFit {
   const t0 = nowMs();
   const objective = fitObjective(opts.objective);
   const idealities = opts.idealities ?? 'fixed';
@@ -122,10 +123,7 @@ export function fitDoubleDiode(curve: IvCurve, opts: DoubleFitOptions = {}): Fit
     single = fitSingleDiode(curve, { tempC, cells, metrics });
     evaluations += single.evaluations;
   }
-  const sp =
-    single.converged && single.iph_a !== null
-      ? { iph_a: single.iph_a, i0_a: single.i0_a as number, n: single.n as number, rs_ohm: single.rs_ohm as number, rsh_ohm: single.rsh_ohm as number }
-      : phangStart(metrics, cells, tempC);
+  const sp = singleDiodeParamsOf(single) ?? phangStart(metrics, cells, tempC);
   const cv = cells * thermalVoltage_V(tempC);
   const rRef = metrics.voc_v / metrics.isc_a;
   const i0Upper = free ? i0Max : metrics.isc_a;
@@ -197,7 +195,7 @@ export function fitDoubleDiode(curve: IvCurve, opts: DoubleFitOptions = {}): Fit
     const limit = LOG_PARAMS.has(j) ? Math.exp(atUpper ? upper[j] : lower[j]) : atUpper ? upper[j] : lower[j];
     return `${KEYS[j]} ${atUpper ? '≤' : '≥'} ${Number(limit.toPrecision(4))}`;
   });
-  const result: FitResult = {
+  const result: DoubleDiodeFit = {
     model: 'double-diode',
     objective,
     iph_a: tidy(p.iph_a),

@@ -13,7 +13,7 @@ import { keyFiguresOfSorted, validateCurve } from '@/lib/iv/key-figures';
 import { levenbergMarquardt, parameterCovariance } from '@/lib/iv/lm';
 import type { LmProblem, LmResult } from '@/lib/iv/lm';
 import { phangStart } from '@/lib/iv/start';
-import type { FitObjective, FitResult, IvCurve, Metrics, SingleDiodeParams } from '@/lib/iv/types';
+import type { FitObjective, IvCurve, Metrics, SingleDiodeFit, SingleDiodeParams } from '@/lib/iv/types';
 
 /** Options of `fitSingleDiode`. tempC and cells override the curve's metadata. */
 export type SingleFitOptions = {
@@ -27,7 +27,7 @@ export type SingleFitOptions = {
   maxEvaluations?: number;
 };
 
-const KEYS = ['iph_a', 'i0_a', 'n', 'rs_ohm', 'rsh_ohm'];
+const KEYS: readonly (keyof SingleDiodeParams)[] = ['iph_a', 'i0_a', 'n', 'rs_ohm', 'rsh_ohm'];
 
 /** Bounds of the fitted vector [Iph, ln I0, n, Rs, ln Rsh] scaled to the device. */
 export function singleDiodeBounds(metrics: Metrics): { lower: Float64Array; upper: Float64Array } {
@@ -149,7 +149,7 @@ export function runSingleDiode(
  * Throws IvInputError for unusable curves; a fit that does not converge returns converged
  * false, null numbers and a message.
  */
-export function fitSingleDiode(curve: IvCurve, opts: SingleFitOptions = {}): FitResult {
+export function fitSingleDiode(curve: IvCurve, opts: SingleFitOptions = {}): SingleDiodeFit {
   const t0 = nowMs();
   const objective = fitObjective(opts.objective);
   const { tempC, cells } = fitConditions(curve, opts);
@@ -163,7 +163,7 @@ export function fitSingleDiode(curve: IvCurve, opts: SingleFitOptions = {}): Fit
   return singleDiodeResult(best, evaluations, v, i, cells, tempC, objective, t0);
 }
 
-/** Turns a solver result into a FitResult (numbers only for a converged fit). */
+/** Turns a solver result into a single-diode fit (numbers only for a converged fit). */
 export function singleDiodeResult(
   best: LmResult | null,
   evaluations: number,
@@ -174,7 +174,7 @@ export function singleDiodeResult(
   objective: FitObjective,
   t0: number,
   message?: string,
-): FitResult {
+): SingleDiodeFit {
   if (!best || !best.converged) {
     return failedFit(
       'single-diode',
@@ -196,7 +196,7 @@ export function singleDiodeResult(
   // Delta method back to own units: σ(I0) = I0·σ(ln I0), σ(Rsh) = Rsh·σ(ln Rsh).
   const sd = (j: number, scale: number) => (variance[j] === null ? null : tidy(Math.sqrt(variance[j] as number) * scale));
   const atBounds = KEYS.filter((_, j) => best.atBound[j]);
-  const result: FitResult = {
+  const result: SingleDiodeFit = {
     model: 'single-diode',
     objective,
     iph_a: tidy(p.iph_a),

@@ -1,3 +1,5 @@
+import { ELV_LIMIT_V } from '@/lib/strings/cautions';
+
 /** The flag codes the engine raises, with a short label for lists and spec forms. */
 export const FLAG_CODES = {
   step: 'Step or second knee (bypass diode, mismatch, cracked cells)',
@@ -10,7 +12,7 @@ export const FLAG_CODES = {
   'isc-extrapolated': 'Isc extrapolated',
   'voc-extrapolated': 'Voc extrapolated',
   'temperature-assumed': 'Temperature assumed 25 °C',
-  'high-voltage': 'Above 60 V DC',
+  'high-voltage': `Above ${ELV_LIMIT_V} V DC`,
 } as const;
 
 export type FlagCode = keyof typeof FLAG_CODES;

@@ -3,7 +3,22 @@
  * double-diode models and their fits. Pure TypeScript, no I/O.
  */
 export { IvInputError } from '@/lib/iv/errors';
-export type { CurveMeta, DoubleDiodeParams, FitObjective, FitResult, Flag, IvCurve, Metrics, SingleDiodeParams } from '@/lib/iv/types';
+export type {
+  CurveMeta,
+  DoubleDiodeFit,
+  DoubleDiodeParams,
+  FitModel,
+  FitObjective,
+  FitResult,
+  FitSummary,
+  Flag,
+  IvCurve,
+  Metrics,
+  OmitEach,
+  SingleDiodeFit,
+  SingleDiodeParams,
+} from '@/lib/iv/types';
+export { doubleDiodeParamsOf, isDoubleDiodeFit, isSingleDiodeFit, singleDiodeParamsOf } from '@/lib/iv/fit-params';
 export { parseIvBytes, parseIvText, checkCurveReach, MAX_FILE_BYTES, MAX_DATA_ROWS, MIN_POINTS, ISC_EXTRAPOLATION_LIMIT, VOC_EXTRAPOLATION_LIMIT } from '@/lib/iv/parse';
 export type { ParseOptions } from '@/lib/iv/parse';
 export { keyFigures, estimateNoise_A } from '@/lib/iv/key-figures';
@@ -26,7 +41,6 @@ export { fitSingleDiode } from '@/lib/iv/fit-single';
 export type { SingleFitOptions } from '@/lib/iv/fit-single';
 export { fitDoubleDiode, DEFAULT_I0_MAX_A } from '@/lib/iv/fit-double';
 export type { DoubleFitOptions } from '@/lib/iv/fit-double';
-// The ml-levenberg-marquardt comparison fit is imported from '@/lib/iv/fit-ml' directly, so the
-// web bundle does not carry ml-matrix for a solver only the benchmark and tests use.
+// The ml-levenberg-marquardt comparison fit lives in bench/fit-ml.ts: only the benchmark uses it.
 export { analyseCurve } from '@/lib/iv/analyse';
 export type { AnalyseOptions } from '@/lib/iv/analyse';

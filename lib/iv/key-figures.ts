@@ -8,6 +8,7 @@ import { IvInputError } from '@/lib/iv/errors';
 import { fitLocalPoly, polySlope, polyValue } from '@/lib/iv/local-fit';
 import { checkCurveReach, MIN_POINTS } from '@/lib/iv/parse';
 import type { Flag, IvCurve, Metrics } from '@/lib/iv/types';
+import { ELV_LIMIT_V, isAboveElv } from '@/lib/strings/cautions';
 
 /** Half-width of the window around V = 0 used for Isc and Rsh0, as a fraction of Voc. */
 const ISC_WINDOW = 0.1;
@@ -19,8 +20,6 @@ const MPP_WINDOW = 0.9;
 const LOW_SHUNT_RATIO = 20;
 /** (common practice) Rs0·Isc/Voc above 0.2 means series resistance, not the diode, shapes the Voc side. */
 const HIGH_SERIES_RATIO = 0.2;
-/** (common practice; codes differ) DC voltage above which touching live parts is hazardous. */
-const EXTRA_LOW_VOLTAGE_V = 60;
 /** Point-to-point scatter above this share of Isc is called noisy. */
 const NOISE_LIMIT = 0.005;
 /** A dip below the concave envelope larger than this share of Isc (and 8 noise σ) is a step. */
@@ -257,11 +256,11 @@ export function keyFiguresOfSorted(v: readonly number[], i: readonly number[], c
   const { irradiance_Wm2: g, area_cm2: area } = curve.meta ?? {};
   const efficiency = g && area && g > 0 && area > 0 ? pmp / (g * area * 1e-4) : null;
 
-  if (voc > EXTRA_LOW_VOLTAGE_V) {
+  if (isAboveElv(voc)) {
     flags.push({
       code: 'high-voltage',
       severity: 'info',
-      message: `Voc is ${f3(voc)} V, above the 60 V DC usually taken as safe to touch: the device is live whenever light falls on it. Guidance only; local electrical codes apply.`,
+      message: `Voc is ${f3(voc)} V, above the ${ELV_LIMIT_V} V DC usually taken as safe to touch: the device is live whenever light falls on it. Guidance only; local electrical codes apply.`,
     });
   }
   const metrics: Metrics = { isc_a: isc, voc_v: voc, pmp_w: pmp, imp_a: imp, vmp_v: vmp, ff, efficiency, rsh0_ohm: rsh0, rs0_ohm: rs0 };

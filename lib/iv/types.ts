@@ -73,34 +73,47 @@ export type DoubleDiodeParams = {
 /** Which residual is minimised: the model current solved exactly at each voltage, or the implicit equation's leftover. */
 export type FitObjective = 'true-current' | 'implicit';
 
-/**
- * Result of a model fit. When `converged` is false every parameter and error figure is null and
- * `message` says why: a fit that failed never hands out numbers that look like a fit.
- * `rmse_a` and `residuals_a` belong to the chosen objective; `rmse_true_current_a` is always the
- * true-current RMSE so fits of both objectives can be compared.
- */
-export type FitResult = {
-  model: 'single-diode' | 'double-diode';
+/** The fields every fit carries, whichever its model. */
+export type FitBase = {
   objective: FitObjective;
-  iph_a: number | null;
-  i0_a?: number | null;
-  n?: number | null;
-  i01_a?: number | null;
-  n1?: number | null;
-  i02_a?: number | null;
-  n2?: number | null;
-  rs_ohm: number | null;
-  rsh_ohm: number | null;
   rmse_a: number | null;
   rmse_true_current_a: number | null;
   max_residual_a: number | null;
+  /** Residuals of the chosen objective, A, one per measured point; empty for a failed fit. */
   residuals_a: number[];
   evaluations: number;
   converged: boolean;
   elapsed_ms: number;
-  /** Standard errors in the parameters' own units; null for a parameter held fixed or at a bound. */
+  /** Standard errors in the parameters' own units, keyed like the parameters; null for a parameter held fixed or at a bound. */
   stderr: Record<string, number | null>;
   /** Bounds that were active at the optimum, e.g. ["i02_a ≤ 1e-6"]. */
   at_bounds?: string[];
   message?: string;
 };
+
+/** A model's parameters as a fit carries them: numbers when it converged, null when it did not. */
+type Fitted<P> = { [K in keyof P]: P[K] | null };
+
+/** Result of a single-diode fit: iph_a, i0_a, n, rs_ohm, rsh_ohm. */
+export type SingleDiodeFit = FitBase & { model: 'single-diode' } & Fitted<SingleDiodeParams>;
+/** Result of a double-diode fit: iph_a, i01_a, n1, i02_a, n2, rs_ohm, rsh_ohm. */
+export type DoubleDiodeFit = FitBase & { model: 'double-diode' } & Fitted<DoubleDiodeParams>;
+
+/**
+ * Result of a model fit, told apart by `model`. When `converged` is false every parameter and
+ * error figure is null and `message` says why: a fit that failed never hands out numbers that
+ * look like a fit. `rmse_a` and `residuals_a` belong to the chosen objective;
+ * `rmse_true_current_a` is always the true-current RMSE so fits of both objectives can be
+ * compared. This is also the JSON stored in `fit.result` (db/schema.ts) and sent by the API and
+ * the CLI: the keys are those of the earlier flat shape, so rows written before read as before.
+ */
+export type FitResult = SingleDiodeFit | DoubleDiodeFit;
+
+/** The model names a fit carries. */
+export type FitModel = FitResult['model'];
+
+/** `Omit` applied to each member of a union (the plain one keeps only the keys all members share). */
+export type OmitEach<T, K extends PropertyKey> = T extends unknown ? Omit<T, K> : never;
+
+/** A fit without its per-point residuals, as lists send it. */
+export type FitSummary = OmitEach<FitResult, 'residuals_a'>;

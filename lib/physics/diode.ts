@@ -1,20 +1,24 @@
 /**
- * A small equivalent-circuit solver for the physics functions: any number of diodes in
- * parallel with a shunt, behind a series resistance, for `cells` identical cells in series.
+ * The equivalent circuit as the physics functions see it: one or two diodes in parallel with a
+ * shunt, behind a series resistance, for `cells` identical cells in series.
  *
  *   I = Iph − Σ I0k·[exp((V + I·Rs)/(nk·Ns·Vt)) − 1] − (V + I·Rs)/Rsh
  *
- * Solved per point for the junction voltage Vj = V + I·Rs (the residual is strictly decreasing
- * in Vj) by Newton's method inside an expanding bracket, so it also covers the double-diode
- * model, which has no closed form.
+ * A thin layer over the I-V engine's solver (lib/iv/diode.ts: the explicit Lambert W form for
+ * one diode, the monotone Newton iteration for two), so the fits, the physics, the translation
+ * and the string sizing all evaluate the same model the same way. This layer adds the
+ * circuit shape, PhysicsError checks that name the parameter, the maximum power point and the
+ * branch currents.
  */
 import { goldenMax } from '@/lib/numeric/golden';
 import { thermalVoltage_V } from '@/lib/physics/constants';
 import { PhysicsError, requireFinite, requireNonNegative, requirePositive } from '@/lib/physics/errors';
+import { sdCurrent, sdVoltage, solveDoubleDiodeCurrent, solveDoubleDiodeVoltage } from '@/lib/iv/diode';
 import type { DoubleDiodeParams, SingleDiodeParams } from '@/lib/iv/types';
 
 export type DiodeTerm = { i0_a: number; n: number };
-export type Circuit = { iph_a: number; diodes: DiodeTerm[]; rs_ohm: number; rsh_ohm: number };
+/** One diode (single-diode model) or two (double-diode model). */
+export type Circuit = { iph_a: number; diodes: [DiodeTerm] | [DiodeTerm, DiodeTerm]; rs_ohm: number; rsh_ohm: number };
 
 /** The single-diode parameters as a circuit. */
 export function singleDiodeCircuit(p: SingleDiodeParams): Circuit {
@@ -37,6 +41,9 @@ export function doubleDiodeCircuit(p: DoubleDiodeParams): Circuit {
 /** Throws a PhysicsError naming the first unphysical parameter. */
 export function checkCircuit(c: Circuit, cells: number): void {
   requireFinite('iph_a', c.iph_a);
+  // The type allows one or two diodes; a circuit built from JSON is checked all the same.
+  const count = (c.diodes as readonly DiodeTerm[]).length;
+  if (count !== 1 && count !== 2) throw new PhysicsError('diodes', `a circuit has one or two diodes (got ${count})`);
   c.diodes.forEach((d, k) => {
     requirePositive(c.diodes.length === 1 ? 'i0_a' : `i0${k + 1}_a`, d.i0_a);
     requirePositive(c.diodes.length === 1 ? 'n' : `n${k + 1}`, d.n);
@@ -48,66 +55,35 @@ export function checkCircuit(c: Circuit, cells: number): void {
   }
 }
 
-type Junction = { scale: number[]; c: Circuit };
+/** A checked circuit with each diode's modified ideality voltage a = n·cells·Vt, V. */
+type Junction = { c: Circuit; a: number[] };
 
-// exp() argument cap: beyond it the diode current is astronomically large anyway.
+// exp() argument cap, as in lib/iv/diode.ts: beyond it the diode current is astronomically large anyway.
 const EXP_CAP = 700;
-
-function diodeCurrents(j: Junction, vj: number): { total: number; slope: number; each: number[] } {
-  let total = 0;
-  let slope = 0;
-  const each: number[] = [];
-  j.c.diodes.forEach((d, k) => {
-    const x = Math.min(vj / j.scale[k], EXP_CAP);
-    const e = Math.exp(x);
-    const i = d.i0_a * (e - 1);
-    each.push(i);
-    total += i;
-    slope += (d.i0_a * e) / j.scale[k];
-  });
-  return { total, slope, each };
-}
 
 function junction(c: Circuit, cells: number, tempC: number): Junction {
   checkCircuit(c, cells);
   requireFinite('tempC', tempC);
   const vt = thermalVoltage_V(tempC);
   if (!(vt > 0)) throw new PhysicsError('tempC', `tempC must be above absolute zero (got ${tempC} °C)`);
-  return { scale: c.diodes.map((d) => d.n * cells * vt), c };
+  return { c, a: c.diodes.map((d) => d.n * cells * vt) };
 }
 
-/** Junction voltage at terminal voltage V: root of Iph − D(Vj) − Vj/Rsh − (Vj − V)/Rs. */
-function solveJunction(j: Junction, voltage_V: number): number {
-  const { c } = j;
-  if (c.rs_ohm === 0) return voltage_V;
-  const residual = (vj: number) => {
-    const d = diodeCurrents(j, vj);
-    return {
-      r: c.iph_a - d.total - vj / c.rsh_ohm - (vj - voltage_V) / c.rs_ohm,
-      dr: -d.slope - 1 / c.rsh_ohm - 1 / c.rs_ohm,
-    };
-  };
-  let lo = voltage_V;
-  let hi = voltage_V;
-  let step = Math.max(1e-3, c.rs_ohm * Math.abs(c.iph_a));
-  if (residual(voltage_V).r > 0) {
-    for (hi = voltage_V + step; residual(hi).r > 0; hi += step) step *= 2;
-  } else {
-    for (lo = voltage_V - step; residual(lo).r < 0; lo -= step) step *= 2;
-  }
-  let vj = 0.5 * (lo + hi);
-  for (let iter = 0; iter < 200; iter++) {
-    const { r, dr } = residual(vj);
-    if (r > 0) lo = vj;
-    else hi = vj;
-    if (r === 0) return vj;
-    let next = vj - r / dr;
-    if (Math.abs(next - vj) <= 4e-16 * Math.max(1, Math.abs(vj)) && next >= lo && next <= hi) return next;
-    if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
-    if (hi - lo <= 4e-16 * Math.max(1, Math.abs(vj))) return next;
-    vj = next;
-  }
-  return vj;
+function currentAt(j: Junction, voltage_V: number): number {
+  const { c, a } = j;
+  const [d1, d2] = c.diodes;
+  return d2 === undefined
+    ? sdCurrent(c.iph_a, d1.i0_a, a[0], c.rs_ohm, c.rsh_ohm, voltage_V)
+    : solveDoubleDiodeCurrent(c.iph_a, d1.i0_a, a[0], d2.i0_a, a[1], c.rs_ohm, c.rsh_ohm, voltage_V);
+}
+
+function vocOf(j: Junction): number {
+  const { c, a } = j;
+  if (c.iph_a <= 0) return 0;
+  const [d1, d2] = c.diodes;
+  return d2 === undefined
+    ? sdVoltage(c.iph_a, d1.i0_a, a[0], c.rs_ohm, c.rsh_ohm, 0)
+    : solveDoubleDiodeVoltage(c.iph_a, d1.i0_a, a[0], d2.i0_a, a[1], c.rs_ohm, c.rsh_ohm, 0);
 }
 
 /** Terminal current I(V), A, of the circuit at cell temperature tempC (°C). */
@@ -115,39 +91,6 @@ export function circuitCurrent(c: Circuit, voltage_V: number, cells: number, tem
   requireFinite('voltage_V', voltage_V);
   const j = junction(c, cells, tempC);
   return currentAt(j, voltage_V);
-}
-
-function currentAt(j: Junction, voltage_V: number): number {
-  const vj = solveJunction(j, voltage_V);
-  if (j.c.rs_ohm === 0) return j.c.iph_a - diodeCurrents(j, vj).total - vj / j.c.rsh_ohm;
-  return (vj - voltage_V) / j.c.rs_ohm;
-}
-
-function vocOf(j: Junction): number {
-  const { c } = j;
-  if (c.iph_a <= 0) return 0;
-  // At I = 0 the junction voltage is the terminal voltage.
-  const f = (v: number) => c.iph_a - diodeCurrents(j, v).total - v / c.rsh_ohm;
-  let lo = 0;
-  let hi = 0.1 * j.scale[0];
-  while (f(hi) > 0) {
-    lo = hi;
-    hi *= 2;
-  }
-  let v = 0.5 * (lo + hi);
-  for (let iter = 0; iter < 200; iter++) {
-    const r = f(v);
-    if (r > 0) lo = v;
-    else hi = v;
-    const dr = -diodeCurrents(j, v).slope - 1 / c.rsh_ohm;
-    if (r === 0) return v;
-    let next = v - r / dr;
-    if (Math.abs(next - v) <= 4e-16 * Math.max(1, v) && next >= lo && next <= hi) return next;
-    if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
-    if (hi - lo <= 4e-16 * Math.max(1, v)) return next;
-    v = next;
-  }
-  return v;
 }
 
 /** Model key figures and, optionally, a sampled curve. */
@@ -212,7 +155,8 @@ export function circuitBranchCurrents(
 ): { current_A: number; junction_V: number; diodes_A: number[]; shunt_A: number } {
   requireFinite('voltage_V', voltage_V);
   const j = junction(c, cells, tempC);
-  const vj = solveJunction(j, voltage_V);
-  const d = diodeCurrents(j, vj);
-  return { current_A: currentAt(j, voltage_V), junction_V: vj, diodes_A: d.each, shunt_A: vj / c.rsh_ohm };
+  const current_A = currentAt(j, voltage_V);
+  const vj = voltage_V + current_A * c.rs_ohm;
+  const diodes_A = c.diodes.map((d, k) => d.i0_a * (Math.exp(Math.min(vj / j.a[k], EXP_CAP)) - 1));
+  return { current_A, junction_V: vj, diodes_A, shunt_A: vj / c.rsh_ohm };
 }

@@ -1,7 +1,9 @@
 /**
  * The parameter keys that batch statistics and acceptance limits refer to. They are exactly the
  * I-V engine's result keys, so a limit, a statistic and a measured value always share one name.
+ * Labels and units are the key table's (lib/vocabulary.ts).
  */
+import { storedUnitOf } from '@/lib/vocabulary';
 
 /** Measured key figures of one curve (no model). */
 export const METRIC_KEYS = [
@@ -28,28 +30,10 @@ export const PARAM_KEYS = [...METRIC_KEYS, ...FIT_KEYS, ...DERIVED_KEYS] as cons
 export type ParamKey = (typeof PARAM_KEYS)[number];
 
 /**
- * Display unit of each key. FF and efficiency are ratios in the engine's own scale (not %);
- * the diode ideality factor n is dimensionless.
+ * Unit of each key as stored and sent (from the key table, lib/vocabulary.ts). FF and efficiency
+ * are ratios in the engine's own scale (not %); the diode ideality factor n is dimensionless.
  */
-export const PARAM_UNITS: Record<ParamKey, string> = {
-  isc_a: 'A',
-  voc_v: 'V',
-  pmp_w: 'W',
-  imp_a: 'A',
-  vmp_v: 'V',
-  ff: '',
-  efficiency: '',
-  rsh0_ohm: 'Ω',
-  rs0_ohm: 'Ω',
-  iph_a: 'A',
-  i0_a: 'A',
-  n: '',
-  rs_ohm: 'Ω',
-  rsh_ohm: 'Ω',
-  rmse_a: 'A',
-  j0_a_cm2: 'A/cm²',
-  stc_pmp_w: 'W',
-};
+export const PARAM_UNITS = Object.fromEntries(PARAM_KEYS.map((k) => [k, storedUnitOf(k)])) as Record<ParamKey, string>;
 
 const PARAM_KEY_SET: ReadonlySet<string> = new Set(PARAM_KEYS);
 

@@ -1,5 +1,6 @@
 /** Request schemas for batches, uploads and refits, shared by the screens and the server. */
 import { z } from 'zod';
+import { optNumber, optNumberOrNull } from '@/lib/schemas/numbers';
 
 /** Figures of a curve translated to standard test conditions (from the fitted model). */
 export type StcFigures = {
@@ -24,21 +25,6 @@ const optText = (max: number) =>
     .nullable()
     .transform((v) => (v ? v : null));
 
-const optNumber = (label: string, min: number, max: number, int = false) =>
-  z
-    .union([z.number(), z.string().trim()])
-    .optional()
-    .nullable()
-    .transform((v, ctx) => {
-      if (v === undefined || v === null || v === '') return null;
-      const n = typeof v === 'number' ? v : Number(v.replace(',', '.'));
-      if (!Number.isFinite(n) || n < min || n > max || (int && !Number.isInteger(n))) {
-        ctx.addIssue({ code: 'custom', message: `${label} must be ${int ? 'a whole number' : 'a number'} from ${min} to ${max}.` });
-        return z.NEVER;
-      }
-      return n;
-    });
-
 export const batchFieldsSchema = z.object({
   productType: optText(120),
   supplier: optText(120),
@@ -51,9 +37,9 @@ export const batchFieldsSchema = z.object({
     .nullable()
     .refine((v) => !v || /^\d{4}-\d{2}-\d{2}$/.test(v), 'Date must be written yyyy-mm-dd.')
     .transform((v) => (v ? v : null)),
-  cells: optNumber('Cells in series', 1, 1000, true),
-  area_cm2: optNumber('Area (cm²)', 0.01, 100000),
-  nameplate_w: optNumber('Nameplate power (W)', 0.001, 5000),
+  cells: optNumberOrNull('Cells in series', { min: 1, max: 1000, integer: true }),
+  area_cm2: optNumberOrNull('Area (cm²)', { min: 0.01, max: 100000 }),
+  nameplate_w: optNumberOrNull('Nameplate power (W)', { min: 0.001, max: 5000 }),
   description: optText(2000),
 });
 
@@ -69,10 +55,10 @@ export const batchUpdateSchema = batchFieldsSchema.partial().extend({
 
 /** Form fields that may accompany an upload and override every file's metadata. */
 export const uploadOverridesSchema = z.object({
-  tempC: optNumber('Cell temperature (°C)', -60, 150),
-  irradiance_Wm2: optNumber('Irradiance (W/m²)', 1, 2000),
-  cells: optNumber('Cells in series', 1, 1000, true),
-  area_cm2: optNumber('Area (cm²)', 0.01, 100000),
+  tempC: optNumberOrNull('Cell temperature (°C)', { min: -60, max: 150 }),
+  irradiance_Wm2: optNumberOrNull('Irradiance (W/m²)', { min: 1, max: 2000 }),
+  cells: optNumberOrNull('Cells in series', { min: 1, max: 1000, integer: true }),
+  area_cm2: optNumberOrNull('Area (cm²)', { min: 0.01, max: 100000 }),
   onDuplicate: z.enum(['ask', 'replace', 'keep']).optional().default('ask'),
 });
 
@@ -80,10 +66,10 @@ export const refitSchema = z.object({
   model: z.enum(['single', 'double', 'both']).optional().default('both'),
   idealities: z.enum(['fixed', 'free']).optional().default('fixed'),
   objective: z.enum(['true-current', 'implicit']).optional().default('true-current'),
-  tempC: optNumber('Cell temperature (°C)', -60, 150),
-  irradiance_Wm2: optNumber('Irradiance (W/m²)', 1, 2000),
-  cells: optNumber('Cells in series', 1, 1000, true),
-  area_cm2: optNumber('Area (cm²)', 0.01, 100000),
+  tempC: optNumberOrNull('Cell temperature (°C)', { min: -60, max: 150 }),
+  irradiance_Wm2: optNumberOrNull('Irradiance (W/m²)', { min: 1, max: 2000 }),
+  cells: optNumberOrNull('Cells in series', { min: 1, max: 1000, integer: true }),
+  area_cm2: optNumberOrNull('Area (cm²)', { min: 0.01, max: 100000 }),
 });
 export type RefitInput = z.input<typeof refitSchema>;
 
@@ -92,8 +78,8 @@ export const CURVE_SORT_KEYS = ['device_id', 'isc_a', 'voc_v', 'pmp_w', 'ff', 'n
 export type CurveSortKey = (typeof CURVE_SORT_KEYS)[number];
 
 export const curveListQuerySchema = z.object({
-  page: z.coerce.number().int().min(1).optional().default(1),
-  pageSize: z.coerce.number().int().min(1).max(500).optional().default(50),
+  page: optNumber('page', { min: 1, integer: true }).transform((v) => v ?? 1),
+  pageSize: optNumber('pageSize', { min: 1, max: 500, integer: true }).transform((v) => v ?? 50),
   sort: z.enum(CURVE_SORT_KEYS).optional().default('device_id'),
   dir: z.enum(['asc', 'desc']).optional().default('asc'),
   q: z.string().trim().max(120).optional().default(''),

@@ -5,57 +5,18 @@
  * answers with a PhysicsError naming the input.
  */
 import { z } from 'zod';
+import { optNumber, reqNumber } from '@/lib/schemas/numbers';
+import { labelOf, unitOf } from '@/lib/vocabulary';
 
-/** A number written as a number or as text ("1e16", "1,5"); '' and null read as absent. */
-function readNumber(v: unknown): number | undefined {
-  if (v === undefined || v === null) return undefined;
-  if (typeof v === 'number') return v;
-  if (typeof v !== 'string') return Number.NaN;
-  const t = v.trim().replace(/\s+/g, '').replace(',', '.');
-  if (t === '') return undefined;
-  return Number(t);
-}
+/** A required number named by its API key, with its unit in the messages. */
+const requiredNumber = (name: string, unit: string) => reqNumber(name, { unit });
 
-const numberInput = z.union([z.number(), z.string()]).optional().nullable();
-
-/** A required finite number; the message names the input and its unit. */
-const requiredNumber = (name: string, unit: string) =>
-  numberInput.transform((v, ctx) => {
-    const n = readNumber(v);
-    if (n === undefined) {
-      ctx.addIssue({ code: 'custom', message: `${name} is required (${unit}).` });
-      return z.NEVER;
-    }
-    if (!Number.isFinite(n)) {
-      ctx.addIssue({ code: 'custom', message: `${name} must be a number (${unit}), got "${String(v)}".` });
-      return z.NEVER;
-    }
-    return n;
-  });
-
-/** An optional finite number (undefined when left empty). */
-const optionalNumber = (name: string, unit: string) =>
-  numberInput.transform((v, ctx) => {
-    const n = readNumber(v);
-    if (n === undefined) return undefined;
-    if (!Number.isFinite(n)) {
-      ctx.addIssue({ code: 'custom', message: `${name} must be a number (${unit}), got "${String(v)}".` });
-      return z.NEVER;
-    }
-    return n;
-  });
+/** An optional number (undefined when left empty). */
+const optionalNumber = (name: string, unit: string) => optNumber(name, { unit });
 
 /** GET /api/physics/material?tempK= (300 K when omitted). */
 export const materialQuerySchema = z.object({
-  tempK: numberInput.transform((v, ctx) => {
-    const n = readNumber(v);
-    if (n === undefined) return 300;
-    if (!Number.isFinite(n)) {
-      ctx.addIssue({ code: 'custom', message: `tempK must be a number (K), got "${String(v)}".` });
-      return z.NEVER;
-    }
-    return n;
-  }),
+  tempK: optionalNumber('tempK', 'K').transform((v) => v ?? 300),
 });
 
 export const DOPING_TYPES = ['p', 'n'] as const;
@@ -84,17 +45,15 @@ export const TRANSLATION_METHOD_LABELS: Record<TranslationMethod, string> = {
   'iec60891-2': 'IEC 60891 procedure 2',
 };
 
-/** Every coefficient a translation may take, with its label and unit for forms. */
-export const TRANSLATION_COEFFICIENTS = {
-  alpha_A_per_K: { label: 'α, Isc temperature coefficient', unit: 'A/K' },
-  beta_V_per_K: { label: 'β, Voc temperature coefficient', unit: 'V/K' },
-  alpha_rel_per_K: { label: 'α, relative Isc coefficient', unit: '1/K' },
-  beta_rel_per_K: { label: 'β, relative Voc coefficient', unit: '1/K' },
-  rs_ohm: { label: 'Rs, internal series resistance', unit: 'Ω' },
-  kappa_ohm_per_K: { label: 'κ, curve correction factor', unit: 'Ω/K' },
-  a_irradiance: { label: 'a, irradiance correction of Voc', unit: 'dimensionless' },
-  alpha_isc_A_per_K: { label: 'α, Isc temperature coefficient', unit: 'A/K' },
-} as const;
+const COEFFICIENT_KEYS = ['alpha_A_per_K', 'beta_V_per_K', 'alpha_rel_per_K', 'beta_rel_per_K', 'rs_ohm', 'kappa_ohm_per_K', 'a_irradiance', 'alpha_isc_A_per_K'] as const;
+
+/**
+ * Every coefficient a translation may take, with its label and unit for forms (from the key
+ * table). IEC 60891 calls Rs the internal series resistance, which the form says.
+ */
+export const TRANSLATION_COEFFICIENTS = Object.fromEntries(
+  COEFFICIENT_KEYS.map((k) => [k, { label: k === 'rs_ohm' ? 'Rs, internal series resistance' : labelOf(k), unit: unitOf(k) || 'dimensionless' }]),
+) as Record<(typeof COEFFICIENT_KEYS)[number], { label: string; unit: string }>;
 export type TranslationCoefficient = keyof typeof TRANSLATION_COEFFICIENTS;
 
 /** Coefficients each method uses; `required` ones must be given. */

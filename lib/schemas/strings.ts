@@ -5,6 +5,8 @@
  * cold Voc, …) are lib/strings' and come back as its messages, so there is one set of rules.
  */
 import { z } from 'zod';
+import { optNumber, reqNumber } from '@/lib/schemas/numbers';
+import { labelOf } from '@/lib/vocabulary';
 import type { StringSizingResult } from '@/lib/strings/size-string';
 
 /**
@@ -13,32 +15,6 @@ import type { StringSizingResult } from '@/lib/strings/size-string';
  * temperature readings swamps a slope of ≈ −0.1 V/K per module.
  */
 export const MEASURED_MIN_SPAN_K = 5;
-
-/** A number from JSON or a form field ("−25", "1,5"); empty → undefined. */
-const optNumber = (label: string) =>
-  z
-    .union([z.number(), z.string().trim()])
-    .optional()
-    .nullable()
-    .transform((v, ctx) => {
-      if (v === undefined || v === null || v === '') return undefined;
-      const n = typeof v === 'number' ? v : Number(v.replace(/^[−–]/, '-').replace(',', '.'));
-      if (!Number.isFinite(n)) {
-        ctx.addIssue({ code: 'custom', message: `${label} must be a number.` });
-        return z.NEVER;
-      }
-      return n;
-    });
-
-/** The same, but an empty value is refused with `missing` as the message. */
-const reqNumber = (label: string, missing: string) =>
-  optNumber(label).transform((v, ctx) => {
-    if (v === undefined) {
-      ctx.addIssue({ code: 'custom', message: missing });
-      return z.NEVER;
-    }
-    return v;
-  });
 
 const optId = z
   .string()
@@ -54,9 +30,9 @@ export const stringSizeSchema = z
     curveId: optId,
     vocStc_V: optNumber('Voc at STC (V)'),
     betaVoc_pct_per_K: optNumber('Voc coefficient (%/K)'),
-    tMin_C: reqNumber('Record low temperature (°C)', 'Enter the site’s record low ambient temperature in °C.'),
+    tMin_C: reqNumber('Record low temperature (°C)', {}, 'Enter the site’s record low ambient temperature in °C.'),
     tCellMax_C: optNumber('Hottest cell temperature (°C)'),
-    vSys_V: reqNumber('System voltage limit (V)', 'Enter the system voltage limit in V DC (1000, 1500 or another rating).'),
+    vSys_V: reqNumber('System voltage limit (V)', {}, 'Enter the system voltage limit in V DC (1000, 1500 or another rating).'),
     mppWindow: z
       .object({ min_V: optNumber('MPP window minimum (V)'), max_V: optNumber('MPP window maximum (V)') })
       .optional()
@@ -79,18 +55,12 @@ export const stringSizeSchema = z
     return { ...rest, mppWindow: lo === undefined || hi === undefined ? undefined : { min_V: lo, max_V: hi } };
   });
 
-/** The request's field names as the /strings form labels them. */
+/** The request's field names as the /strings form labels them (quantities from the key table). */
 export const STRING_FIELD_LABELS: Record<string, string> = {
-  vocStc_V: 'Voc at STC',
-  betaVoc_pct_per_K: 'Voc coefficient',
-  tMin_C: 'Record low ambient',
-  tCellMax_C: 'Hottest cell temperature',
-  vSys_V: 'System voltage limit',
-  'mppWindow.min_V': 'MPP window from',
-  'mppWindow.max_V': 'MPP window to',
+  ...Object.fromEntries(
+    ['vocStc_V', 'betaVoc_pct_per_K', 'tMin_C', 'tCellMax_C', 'vSys_V', 'mppWindow.min_V', 'mppWindow.max_V', 'vmpStc_V', 'betaVmp_pct_per_K'].map((k) => [k, labelOf(k)]),
+  ),
   mppWindow: 'MPP window',
-  vmpStc_V: 'Vmp at STC',
-  betaVmp_pct_per_K: 'Vmp coefficient',
   batchId: 'Batch',
   curveId: 'Curve',
 };

@@ -3,7 +3,7 @@ import { Router } from 'express';
 import type { ErrorRequestHandler, Request } from 'express';
 import type { Db } from '@/db/client';
 import { batch, curve } from '@/db/schema';
-import { IvInputError } from '@/lib/iv';
+import { doubleDiodeParamsOf, IvInputError, singleDiodeParamsOf } from '@/lib/iv';
 import type { DoubleDiodeParams, FitResult, IvCurve, SingleDiodeParams } from '@/lib/iv';
 import {
   bandDiagram,
@@ -62,15 +62,8 @@ export function thinCurve(c: { voltage_V: number[]; current_A: number[] }, max =
   return { voltage_V: idx.map((k) => c.voltage_V[k]), current_A: idx.map((k) => c.current_A[k]) };
 }
 
-function singleOf(f: FitResult | undefined): SingleDiodeParams | null {
-  if (!f?.converged || f.iph_a == null || f.i0_a == null || f.n == null || f.rs_ohm == null || f.rsh_ohm == null) return null;
-  return { iph_a: f.iph_a, i0_a: f.i0_a, n: f.n, rs_ohm: f.rs_ohm, rsh_ohm: f.rsh_ohm };
-}
-
-function doubleOf(f: FitResult | undefined): DoubleDiodeParams | null {
-  if (!f?.converged || f.iph_a == null || f.i01_a == null || f.n1 == null || f.i02_a == null || f.n2 == null || f.rs_ohm == null || f.rsh_ohm == null) return null;
-  return { iph_a: f.iph_a, i01_a: f.i01_a, n1: f.n1, i02_a: f.i02_a, n2: f.n2, rs_ohm: f.rs_ohm, rsh_ohm: f.rsh_ohm };
-}
+const singleOf = (f: FitResult | undefined): SingleDiodeParams | null => singleDiodeParamsOf(f);
+const doubleOf = (f: FitResult | undefined): DoubleDiodeParams | null => doubleDiodeParamsOf(f);
 
 /** Runs `fn`; a PhysicsError becomes a note and null, so one section's failure does not sink the rest. */
 function attempt<T>(what: string, notes: string[], fn: () => T): T | null {

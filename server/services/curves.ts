@@ -7,7 +7,8 @@ import type { Db } from '@/db/client';
 import { curve, fit } from '@/db/schema';
 import { touchBatch } from '@/server/services/answer-cache';
 import type { FileAnalysis } from '@/lib/analysis/analyse-file';
-import type { FitResult } from '@/lib/iv';
+import { isSingleDiodeFit } from '@/lib/iv';
+import type { FitResult, FitSummary } from '@/lib/iv';
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 type CurveRow = typeof curve.$inferSelect;
@@ -29,7 +30,7 @@ export function comparisonRecord(key: CurveKey, a: Pick<FileAnalysis, 'curve' | 
 
 /** The sortable/filterable columns derived from an analysis. */
 export function derivedColumns(a: FileAnalysis) {
-  const single = a.fits.find((f) => f.model === 'single-diode' && f.converged);
+  const single = a.fits.filter(isSingleDiodeFit).find((f) => f.converged);
   return {
     isc_a: a.metrics.isc_a,
     voc_v: a.metrics.voc_v,
@@ -119,7 +120,7 @@ export async function insertFits(tx: Tx | Db, curveId: string, fits: FitResult[]
 }
 
 /** A fit without its per-point residuals (for lists). */
-export function fitSummary(f: FitResult): Omit<FitResult, 'residuals_a'> {
+export function fitSummary(f: FitResult): FitSummary {
   const { residuals_a: _dropped, ...rest } = f;
   return rest;
 }

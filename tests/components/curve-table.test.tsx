@@ -15,7 +15,7 @@ const singleFit = (p: { n: number; rs_ohm: number; rsh_ohm: number }): FitJson =
   converged: true, elapsed_ms: 12, stderr: {}, fit_id: 'f1', conditions: {}, reason: 'upload', created_at: '2025-11-14T08:00:00Z',
 });
 const failedFit: FitJson = {
-  model: 'single-diode', objective: 'true-current', iph_a: null, rs_ohm: null, rsh_ohm: null, rmse_a: null, rmse_true_current_a: null,
+  model: 'single-diode', objective: 'true-current', iph_a: null, i0_a: null, n: null, rs_ohm: null, rsh_ohm: null, rmse_a: null, rmse_true_current_a: null,
   max_residual_a: null, residuals_a: [], evaluations: 200, converged: false, elapsed_ms: 30, stderr: {}, message: 'did not converge',
   fit_id: 'f3', conditions: {}, reason: 'upload', created_at: '2025-11-14T08:00:00Z',
 };

@@ -16,6 +16,7 @@ import { SYNTHETIC_POINTS, syntheticFiles } from '@/bench/synthetic-files';
 import type { SyntheticFile } from '@/bench/synthetic-files';
 import { openDatabase } from '@/db/client';
 import { curve, fit } from '@/db/schema';
+import { isSingleDiodeFit } from '@/lib/iv';
 import { startServerProcess } from '@/tests/support/server-process';
 import type { ServerProcess } from '@/tests/support/server-process';
 
@@ -143,7 +144,7 @@ describe('crash safety', () => {
           expect(x.current).toBe(true);
           expect(x.result.residuals_a).toHaveLength(SYNTHETIC_POINTS);
         }
-        expect(mine.find((x) => x.model === 'single-diode')!.result.n).toBe(r.n);
+        expect(mine.map((x) => x.result).find(isSingleDiodeFit)!.n).toBe(r.n);
       }
       expect(fits).toHaveLength(2 * rows.length);
 

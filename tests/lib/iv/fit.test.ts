@@ -3,7 +3,6 @@ import path from 'node:path';
 import { simulateCurve } from '@/lib/iv/diode';
 import { IvInputError } from '@/lib/iv/errors';
 import { fitDoubleDiode } from '@/lib/iv/fit-double';
-import { fitSingleDiodeMl } from '@/lib/iv/fit-ml';
 import { fitSingleDiode, singleDiodeBounds, singleDiodeProblem } from '@/lib/iv/fit-single';
 import { keyFigures } from '@/lib/iv/key-figures';
 import { parseIvText } from '@/lib/iv/parse';
@@ -47,14 +46,6 @@ describe('fitSingleDiode() — published benchmark of Easwarakhanthan et al. (19
     expect(rel(cell.rsh_ohm, 53.719)).toBeLessThan(2e-3);
     // The implicit optimum is not the true-current optimum: its true-current RMSE is larger.
     expect(cell.rmse_true_current_a as number).toBeGreaterThan(7.7301e-4);
-  });
-
-  it('the ml-levenberg-marquardt path reaches the same cell optimum (comparison solver)', () => {
-    for (const jacobian of ['central', 'analytic'] as const) {
-      const fit = fitSingleDiodeMl(readRef(CELL.file), { tempC: 33, cells: 1, jacobian, maxIterations: 30 });
-      expect(fit.converged).toBe(true);
-      expect(rel(fit.rmse_a, 7.7301e-4)).toBeLessThan(1e-3); // README optimum
-    }
   });
 });
 

@@ -23,7 +23,7 @@ const MODULE: SingleDiodeParams = { iph_a: 1.031434, i0_a: 2.6381e-6, n: 1.32217
 // Same README: 57 mm cell at 33 °C, true-current fit; derived Isc 0.76026 A, Voc 0.57278 V, Pmp 0.31070 W.
 const CELL: SingleDiodeParams = { iph_a: 0.760788, i0_a: 3.1068e-7, n: 1.47727, rs_ohm: 0.036547, rsh_ohm: 52.89 };
 
-describe('the physics diode solver against lib/iv (independent implementations)', () => {
+describe('the physics circuit layer against lib/iv (it maps the parameters onto lib/iv\'s solver)', () => {
   it('matches lib/iv singleDiodeCurrent (Lambert W) within 1e-10 A across the module curve', () => {
     for (let v = -1; v <= 18; v += 0.37) {
       expect(Math.abs(circuitCurrent(singleDiodeCircuit(MODULE), v, 36, 45) - singleDiodeCurrent(MODULE, v, 36, 45))).toBeLessThan(1e-10);

@@ -5,6 +5,8 @@
  * is of order one and its plain additive damping λ·I and finite-difference steps suit all of
  * them. Its result carries no convergence verdict, so convergence is judged afterwards by the
  * stationarity test of our own solver (largest cosine between residual and Jacobian columns).
+ * It lives in bench/ because only the benchmark (and its test) use it: the engine and the web
+ * bundle do not carry ml-matrix.
  */
 import { levenbergMarquardt as mlLevenbergMarquardt } from 'ml-levenberg-marquardt';
 import { thermalVoltage_V } from '@/lib/physics/constants';
@@ -14,7 +16,7 @@ import { singleDiodeBounds, singleDiodeProblem, singleDiodeResult } from '@/lib/
 import { keyFiguresOfSorted, validateCurve } from '@/lib/iv/key-figures';
 import type { LmResult } from '@/lib/iv/lm';
 import { phangStart } from '@/lib/iv/start';
-import type { FitResult, IvCurve, Metrics } from '@/lib/iv/types';
+import type { IvCurve, Metrics, SingleDiodeFit } from '@/lib/iv/types';
 
 /** Options of the library-based fit (true-current objective only). */
 export type MlFitOptions = {
@@ -27,7 +29,7 @@ export type MlFitOptions = {
 };
 
 /** Single-diode fit (true current) by ml-levenberg-marquardt from the same Phang start. */
-export function fitSingleDiodeMl(curve: IvCurve, opts: MlFitOptions = {}): FitResult {
+export function fitSingleDiodeMl(curve: IvCurve, opts: MlFitOptions = {}): SingleDiodeFit {
   const t0 = nowMs();
   const { tempC, cells } = fitConditions(curve, opts);
   const { v, i } = validateCurve(curve);

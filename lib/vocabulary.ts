@@ -1,0 +1,273 @@
+/**
+ * The key table: every quantity that leaves the process (API, CLI JSON, CSV, stored JSON), with
+ * its label as a person reads it, the unit it is shown in, how many digits it is shown with and
+ * how the stored value becomes the shown one (FF and efficiency are fractions in the engine and
+ * % on screen). Screens, exports, reasons and messages take labels and units from here only.
+ *
+ * `key` is the vocabulary's name: snake_case with the unit as suffix. `wire` lists the names the
+ * API, the CLI and the stored JSON still use where they differ (tempC, egDos_eV, …); a later
+ * step renames those to `key`. Lookups accept either name. Pure data and functions, no I/O.
+ */
+import { sig } from '@/lib/numeric/significant';
+
+/** Where a quantity comes from. */
+export type QuantityGroup = 'curve' | 'metric' | 'fit' | 'derived' | 'material' | 'carriers' | 'device' | 'translation' | 'strings';
+
+export type Quantity = {
+  /** snake_case with the unit as suffix, e.g. "isc_a", "temp_c". */
+  key: string;
+  /** As a person reads it: "Isc", "Pmax at STC". */
+  label: string;
+  /** Unit as shown; '' for a plain number. */
+  unit: string;
+  /** Unit of the value as stored and sent; '' for a fraction or a plain number. */
+  storedUnit: string;
+  /** shown = stored × scale (100 for a fraction shown in %). */
+  scale: number;
+  /** Fixed decimals of the shown value, or null for significant digits. */
+  decimals: number | null;
+  /** Significant digits when `decimals` is null. */
+  digits: number;
+  group: QuantityGroup;
+  /** Names used on the wire today where they differ from `key` ("parent.child" for a nested one). */
+  wire: readonly string[];
+};
+
+type Extra = { wire?: string[]; stored?: string; scale?: number; decimals?: number; digits?: number };
+
+function q(group: QuantityGroup, key: string, label: string, unit: string, extra: Extra = {}): Quantity {
+  return {
+    key,
+    label,
+    unit,
+    storedUnit: extra.stored ?? unit,
+    scale: extra.scale ?? 1,
+    decimals: extra.decimals ?? null,
+    digits: extra.digits ?? 4,
+    group,
+    wire: extra.wire ?? [],
+  };
+}
+
+/** A fraction shown as a percentage with `decimals` decimals. */
+const percent = (decimals: number, wire?: string[]): Extra => ({ stored: '', scale: 100, decimals, wire });
+/** A count. */
+const count: Extra = { decimals: 0 };
+
+export const QUANTITIES: readonly Quantity[] = [
+  // The measured curve and what is known about the device.
+  q('curve', 'voltage_v', 'Voltage', 'V', { wire: ['voltage_V'] }),
+  q('curve', 'current_a', 'Current', 'A', { wire: ['current_A'] }),
+  q('curve', 'temp_c', 'Cell temperature', '°C', { wire: ['tempC'] }),
+  q('curve', 'irradiance_w_m2', 'Irradiance', 'W/m²', { wire: ['irradiance_Wm2'] }),
+  q('curve', 'cells', 'Cells in series', '', count),
+  q('curve', 'area_cm2', 'Area', 'cm²'),
+  q('curve', 'nameplate_w', 'Nameplate power', 'W'),
+  q('curve', 'mean_pmp_w', 'Mean Pmax', 'W', { wire: ['meanPmp_w'] }),
+
+  // Key figures without a model (lib/iv Metrics); the STC figures (curve.stc) use the same keys.
+  q('metric', 'isc_a', 'Isc', 'A'),
+  q('metric', 'voc_v', 'Voc', 'V', { wire: ['voc_V'] }),
+  q('metric', 'pmp_w', 'Pmax', 'W'),
+  q('metric', 'imp_a', 'Imp', 'A'),
+  q('metric', 'vmp_v', 'Vmp', 'V', { wire: ['vmp_V'] }),
+  q('metric', 'ff', 'FF', '%', percent(1)),
+  q('metric', 'efficiency', 'Efficiency', '%', percent(2)),
+  q('metric', 'rsh0_ohm', 'Rsh0 (slope)', 'Ω'),
+  q('metric', 'rs0_ohm', 'Rs0 (slope)', 'Ω'),
+
+  // Diode fits (lib/iv FitResult) and the comparison of the two models.
+  q('fit', 'iph_a', 'Iph', 'A'),
+  q('fit', 'i0_a', 'I0', 'A'),
+  q('fit', 'n', 'n', ''),
+  q('fit', 'i01_a', 'I01', 'A'),
+  q('fit', 'n1', 'n1', ''),
+  q('fit', 'i02_a', 'I02', 'A'),
+  q('fit', 'n2', 'n2', ''),
+  q('fit', 'rs_ohm', 'Rs', 'Ω'),
+  q('fit', 'rsh_ohm', 'Rsh', 'Ω'),
+  q('fit', 'rmse_a', 'RMSE', 'A'),
+  q('fit', 'rmse_true_current_a', 'RMSE of the true current', 'A'),
+  q('fit', 'max_residual_a', 'Largest residual', 'A'),
+  q('fit', 'residuals_a', 'Residuals', 'A'),
+  q('fit', 'evaluations', 'Evaluations', '', count),
+  q('fit', 'elapsed_ms', 'Time', 'ms', { digits: 3 }),
+  q('fit', 'bic_single', 'BIC, single diode', '', { digits: 5 }),
+  q('fit', 'bic_double', 'BIC, double diode', '', { digits: 5 }),
+  q('fit', 'delta_bic', 'ΔBIC (double − single)', '', { digits: 3 }),
+  q('fit', 'rmse_ratio', 'RMSE ratio (double/single)', '', { digits: 3 }),
+
+  // Figures derived from a fit.
+  q('derived', 'stc_pmp_w', 'Pmax at STC', 'W'),
+  q('derived', 'j0_a_cm2', 'J0', 'A/cm²', { wire: ['j0_A_per_cm2'] }),
+  q('derived', 'j01_a_cm2', 'J01', 'A/cm²', { wire: ['j01_A_per_cm2'] }),
+  q('derived', 'j02_a_cm2', 'J02', 'A/cm²', { wire: ['j02_A_per_cm2'] }),
+  q('derived', 'jsc_a_cm2', 'Jsc', 'A/cm²', { wire: ['jsc_A_per_cm2'] }),
+  q('derived', 'cell_area_cm2', 'Cell area', 'cm²', { wire: ['cellArea_cm2'] }),
+  q('derived', 'stc_voc_v', 'Voc at STC', 'V', { wire: ['stcVoc_V'] }),
+  q('derived', 'stc_vmp_v', 'Vmp at STC', 'V', { wire: ['stcVmp_V'] }),
+
+  // Material (lib/physics/materials).
+  q('material', 'temp_k', 'Temperature', 'K', { wire: ['tempK'] }),
+  q('material', 'eg_ev', 'Band gap Eg', 'eV', { wire: ['eg_eV'] }),
+  q('material', 'eg_dos_ev', 'Ec − Ev from n_i and Nc·Nv', 'eV', { wire: ['egDos_eV', 'gap_eV'] }),
+  q('material', 'nc_cm3', 'Nc', 'cm⁻³'),
+  q('material', 'nv_cm3', 'Nv', 'cm⁻³'),
+  q('material', 'ni_cm3', 'n_i', 'cm⁻³'),
+  q('material', 'kt_ev', 'kT', 'eV', { wire: ['kT_eV'] }),
+  q('material', 'max_doping_cm3', 'Largest doping', 'cm⁻³', { wire: ['maxDoping_cm3'] }),
+  q('material', 'model_at_reference_cm3', 'n_i of the model at the reference', 'cm⁻³', { wire: ['modelAtReference_cm3'] }),
+
+  // Carriers and band diagrams (lib/physics/carriers); energies in eV from E_i.
+  q('carriers', 'doping_cm3', 'Doping', 'cm⁻³'),
+  q('carriers', 'excess_cm3', 'Excess carriers Δn', 'cm⁻³'),
+  q('carriers', 'generation_cm3_s', 'Generation rate', 'cm⁻³·s⁻¹', { wire: ['generation_cm3s'] }),
+  q('carriers', 'lifetime_s', 'Lifetime', 's'),
+  q('carriers', 'n_cm3', 'Electrons n', 'cm⁻³'),
+  q('carriers', 'p_cm3', 'Holes p', 'cm⁻³'),
+  q('carriers', 'n0_cm3', 'Electrons n0 (dark)', 'cm⁻³'),
+  q('carriers', 'p0_cm3', 'Holes p0 (dark)', 'cm⁻³'),
+  q('carriers', 'ec_ev', 'Ec', 'eV', { wire: ['ec_eV'] }),
+  q('carriers', 'ev_ev', 'Ev', 'eV', { wire: ['ev_eV'] }),
+  q('carriers', 'ei_ev', 'Ei', 'eV', { wire: ['ei_eV'] }),
+  q('carriers', 'ef_ev', 'EF', 'eV', { wire: ['ef_eV'] }),
+  q('carriers', 'efn_ev', 'EFn', 'eV', { wire: ['efn_eV'] }),
+  q('carriers', 'efp_ev', 'EFp', 'eV', { wire: ['efp_eV'] }),
+  q('carriers', 'splitting_ev', 'EFn − EFp', 'eV', { wire: ['splitting_eV'] }),
+  q('carriers', 'boltzmann_splitting_ev', 'EFn − EFp (Boltzmann)', 'eV', { wire: ['boltzmannSplitting_eV'] }),
+  q('carriers', 'implied_voc_v', 'Implied Voc', 'V', { wire: ['impliedVoc_V'] }),
+  q('carriers', 'energy_ev', 'Energy', 'eV', { wire: ['energy_eV'] }),
+  q('carriers', 'eta_n', 'ηn = (EF − Ec)/kT', '', { wire: ['etaN'], digits: 3 }),
+  q('carriers', 'eta_p', 'ηp = (Ev − EF)/kT', '', { wire: ['etaP'], digits: 3 }),
+  q('carriers', 'occupation_equilibrium', 'f(E) with EF', '', { wire: ['equilibrium'], digits: 3 }),
+  q('carriers', 'occupation_electrons', 'f(E) with EFn', '', { wire: ['electrons'], digits: 3 }),
+  q('carriers', 'occupation_holes', '1 − f(E) with EFp', '', { wire: ['holes'], digits: 3 }),
+  q('carriers', 'boltzmann_error_n', 'Boltzmann error in n', '%', percent(2, ['boltzmannError.n'])),
+  q('carriers', 'boltzmann_error_p', 'Boltzmann error in p', '%', percent(2, ['boltzmannError.p'])),
+
+  // Physics of a fitted device (lib/physics/fit-physics).
+  q('device', 'fit_temp_c', 'Fit temperature', '°C', { wire: ['fitTempC'] }),
+  q('device', 'from_c', 'From', '°C', { wire: ['fromC'] }),
+  q('device', 'to_c', 'To', '°C', { wire: ['toC'] }),
+  q('device', 'step_c', 'Step', '°C', { wire: ['stepC'] }),
+  q('device', 'beta_v_per_k', 'β, Voc temperature coefficient', 'V/K', { wire: ['beta_V_per_K'] }),
+  q('device', 'beta_pct_per_k', 'β, Voc temperature coefficient', '%/K', { wire: ['beta_pct_per_K'], digits: 3 }),
+  q('device', 'beta_per_cell_v_per_k', 'β per cell', 'V/K', { wire: ['betaPerCell_V_per_K'] }),
+  q('device', 'alpha_isc_rel_per_k', 'α, relative Isc coefficient', '1/K', { wire: ['alphaIsc_rel_per_K'] }),
+  q('device', 'diode1_a', 'Diode 1 current (diffusion)', 'A'),
+  q('device', 'diode2_a', 'Diode 2 current (depletion region)', 'A'),
+  q('device', 'shunt_a', 'Shunt current', 'A', { wire: ['shunt_A'] }),
+  q('device', 'diodes_a', 'Diode currents', 'A', { wire: ['diodes_A'] }),
+  q('device', 'junction_v', 'Junction voltage V + I·Rs', 'V', { wire: ['junction_V'] }),
+  q('device', 'depletion_share', 'Depletion-region share', '%', percent(1, ['depletionShare'])),
+  q('device', 'diffusion_share', 'Diffusion share', '%', percent(1, ['diffusionShare'])),
+  q('device', 'measured_voc_v', 'Measured Voc', 'V', { wire: ['measuredVoc_V'] }),
+  q('device', 'thermal_voltage_v', 'Thermal voltage kT/q', 'V', { wire: ['thermalVoltage_V'] }),
+
+  // Translation to other conditions (lib/physics/translate) and its coefficients.
+  q('translation', 'alpha_a_per_k', 'α, Isc temperature coefficient', 'A/K', { wire: ['alpha_A_per_K'] }),
+  q('translation', 'alpha_rel_per_k', 'α, relative Isc coefficient', '1/K', { wire: ['alpha_rel_per_K'] }),
+  q('translation', 'beta_rel_per_k', 'β, relative Voc coefficient', '1/K', { wire: ['beta_rel_per_K'] }),
+  q('translation', 'kappa_ohm_per_k', 'κ, curve correction factor', 'Ω/K', { wire: ['kappa_ohm_per_K'] }),
+  q('translation', 'a_irradiance', 'a, irradiance correction of Voc', ''),
+  q('translation', 'alpha_isc_a_per_k', 'α, Isc temperature coefficient', 'A/K', { wire: ['alpha_isc_A_per_K'] }),
+  q('translation', 'isc1_a', 'Isc as measured', 'A'),
+  q('translation', 'voc1_v', 'Voc as measured', 'V', { wire: ['voc1_V'] }),
+  q('translation', 'points_total', 'Points', '', count),
+
+  // String sizing (lib/strings): the request and the answer.
+  q('strings', 'voc_stc_v', 'Voc at STC', 'V', { wire: ['vocStc_V'] }),
+  q('strings', 'beta_voc_pct_per_k', 'Voc coefficient', '%/K', { wire: ['betaVoc_pct_per_K'], digits: 3 }),
+  q('strings', 't_min_c', 'Record low ambient', '°C', { wire: ['tMin_C'] }),
+  q('strings', 't_cell_max_c', 'Hottest cell temperature', '°C', { wire: ['tCellMax_C'] }),
+  q('strings', 'v_sys_v', 'System voltage limit', 'V', { wire: ['vSys_V'] }),
+  q('strings', 'vmp_stc_v', 'Vmp at STC', 'V', { wire: ['vmpStc_V'] }),
+  q('strings', 'beta_vmp_pct_per_k', 'Vmp coefficient', '%/K', { wire: ['betaVmp_pct_per_K'], digits: 3 }),
+  q('strings', 'mpp_window_min_v', 'MPP window from', 'V', { wire: ['mppWindow.min_V', 'min_V'] }),
+  q('strings', 'mpp_window_max_v', 'MPP window to', 'V', { wire: ['mppWindow.max_V', 'max_V'] }),
+  q('strings', 'voc_max_per_module_v', 'Cold Voc per module', 'V'),
+  q('strings', 'max_modules', 'Most modules in series', '', count),
+  q('strings', 'string_voc_max_v', 'Cold string Voc', 'V'),
+  q('strings', 'margin_v', 'Margin to the limit', 'V'),
+  q('strings', 'margin_pct', 'Margin to the limit', '%', { decimals: 1 }),
+  q('strings', 'min_modules', 'Least modules in series', '', count),
+  q('strings', 'vmp_min_per_module_v', 'Hot Vmp per module', 'V'),
+  q('strings', 'vmp_max_per_module_v', 'Cold Vmp per module', 'V'),
+  q('strings', 'max_modules_mpp', 'Most modules in the MPP window', '', count),
+  q('strings', 'modules', 'Modules compared', '', count),
+  q('strings', 'count', 'Modules with a Voc', '', count),
+  q('strings', 'index', 'Position in the list', '', count),
+  q('strings', 'mean_voc_v', 'Mean Voc', 'V'),
+  q('strings', 'slope_v_per_k', 'dVoc/dT', 'V/K', { wire: ['slope_V_per_K'] }),
+  q('strings', 'voc_at_25_v', 'Voc at 25 °C', 'V', { wire: ['vocAt25_V'] }),
+  q('strings', 'curves', 'Curves', '', count),
+  q('strings', 'span_k', 'Temperature span', 'K', { wire: ['span_K'], digits: 3 }),
+  q('strings', 'r2', 'R²', '', { digits: 3 }),
+  q('strings', 'value_v', 'Value used', 'V', { wire: ['value_V'] }),
+  q('strings', 'mean_v', 'Mean', 'V', { wire: ['mean_V'] }),
+];
+
+const BY_NAME: ReadonlyMap<string, Quantity> = (() => {
+  const map = new Map<string, Quantity>();
+  for (const x of QUANTITIES) {
+    for (const name of [x.key, ...x.wire]) {
+      if (map.has(name)) throw new Error(`vocabulary: "${name}" is defined twice`);
+      map.set(name, x);
+    }
+  }
+  return map;
+})();
+
+/**
+ * The quantity of a key: its vocabulary name or a name still on the wire ("tempC"). A nested
+ * wire name ("boltzmannError.n") is found by its path; `parent` is tried first.
+ */
+export function quantity(key: string, parent?: string): Quantity | undefined {
+  return (parent ? BY_NAME.get(`${parent}.${key}`) : undefined) ?? BY_NAME.get(key);
+}
+
+/** True when the key has an entry in the table. */
+export function isKnownKey(key: string, parent?: string): boolean {
+  return quantity(key, parent) !== undefined;
+}
+
+/** Label as a person reads it; the key itself when it is not in the table. */
+export function labelOf(key: string): string {
+  return quantity(key)?.label ?? key;
+}
+
+/** Unit as shown on screen ('' for a plain number or an unknown key). */
+export function unitOf(key: string): string {
+  return quantity(key)?.unit ?? '';
+}
+
+/** Unit of the stored and sent value ('' for fractions, which are shown in %). */
+export function storedUnitOf(key: string): string {
+  return quantity(key)?.storedUnit ?? '';
+}
+
+/** "Isc (A)", "FF (%)", "n": a column header or a form label. */
+export function labelWithUnit(key: string): string {
+  const unit = unitOf(key);
+  return unit ? `${labelOf(key)} (${unit})` : labelOf(key);
+}
+
+/** The stored value in the shown unit (FF 0.781 → 78.1); null stays null. */
+export function toShown(key: string, value: number | null | undefined): number | null {
+  if (value == null) return null;
+  return value * (quantity(key)?.scale ?? 1);
+}
+
+/**
+ * A stored value for display, with its unit: "0.7603 A", "78.1 %", "3.107×10⁻⁷ A", '—' when
+ * missing or not finite. `digits` overrides the table's significant digits (not fixed decimals).
+ * An unknown key shows the number alone.
+ */
+export function formatValue(key: string, value: number | null | undefined, digits?: number): string {
+  if (value == null || !Number.isFinite(value)) return '—';
+  const x = quantity(key);
+  if (!x) return sig(value, digits ?? 4);
+  const shown = value * x.scale;
+  const text = x.decimals !== null ? shown.toFixed(x.decimals) : sig(shown, digits ?? x.digits);
+  return x.unit ? `${text} ${x.unit}` : text;
+}
