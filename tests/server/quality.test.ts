@@ -6,7 +6,7 @@
 import { eq } from 'drizzle-orm';
 import Papa from 'papaparse';
 import { batch, curve, fit, member, organization, user } from '@/db/schema';
-import { seedDemoBatches } from '@/db/seed';
+import { seedDemoBatches } from '@/server/services/seed';
 import { rowsOfColumns } from '@/lib/quality';
 import { signIn, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
