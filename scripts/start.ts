@@ -4,7 +4,7 @@
  */
 import path from 'node:path';
 import { dataDir } from '@/db/client';
-import { readDemoAccounts } from '@/db/seed';
+import { readDemoAccounts } from '@/server/services/seed';
 import { ROLE_LABELS } from '@/lib/auth/roles';
 import { startRuntime } from '@/server/runtime';
 import { buildWeb } from './build-web';

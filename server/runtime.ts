@@ -8,7 +8,7 @@ import type { Server } from 'node:http';
 import path from 'node:path';
 import { openDatabase } from '@/db/client';
 import type { Database } from '@/db/client';
-import { demoCurveFiles, seedDemo } from '@/db/seed';
+import { demoCurveFiles, seedDemo } from '@/server/services/seed';
 import { createApp } from '@/server/app';
 import { createAuth } from '@/server/auth';
 import { createMailer } from '@/server/mail';

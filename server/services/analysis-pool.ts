@@ -1,14 +1,14 @@
 /**
  * Where uploads are analysed (read, key figures, both diode fits, STC figures: ~10 ms of CPU a
- * curve) and curves refitted (a free double-diode fit: ~100 ms). The server uses a pool of worker threads, so a 1,000-curve upload runs on every core and
- * the HTTP thread stays free for readers; the workers run at a lower scheduling priority (Linux
- * nice 10) so that, when cores are short, interactive requests win over bulk fitting. Tests and
- * tools that build the app in-process may use the inline analyser (same results, same thread).
+ * curve) and curves refitted (a free double-diode fit: ~100 ms). The server uses a pool of
+ * worker threads (piscina), so a 1,000-curve upload runs on every core and the HTTP thread stays
+ * free for readers; the workers run at a lower scheduling priority (Linux nice 10) so that, when
+ * cores are short, interactive requests win over bulk fitting. Tests and tools that build the
+ * app in-process may use the inline analyser (same results, same thread).
  */
-import { createRequire } from 'node:module';
 import os from 'node:os';
 import path from 'node:path';
-import { Worker } from 'node:worker_threads';
+import { Piscina } from 'piscina';
 import { analyseFile, analyseParsed } from '@/lib/analysis/analyse-file';
 import type { FileAnalysis, FileDefaults, FileOverrides } from '@/lib/analysis/analyse-file';
 import { IvInputError } from '@/lib/iv';
@@ -64,84 +64,47 @@ export function analysisThreads(): number {
   return Math.max(1, os.availableParallelism());
 }
 
-type Job = { id: number; req: AnalysisRequest; resolve: (o: AnalysisOutcome) => void };
-type Slot = { worker: Worker; job: Job | null };
-
-const WORKER_FILE = path.join(__dirname, 'analysis-worker.ts');
-// Resolved here, so a server started from any working directory finds it (an eval'd worker resolves from the cwd).
-const TSX_API = createRequire(__filename).resolve('tsx/cjs/api');
+/** The bootstrap piscina loads in each thread: it registers tsx, then loads analysis-worker.ts. */
+const WORKER_FILE = path.join(__dirname, 'analysis-worker.cjs');
 
 /**
- * A pool of `size` worker threads fed from one first-come queue (uploads of several clients
- * share it fairly by arrival). With `warmFiles`, the threads start at once and analyse those
- * files a few times before taking work: a fresh thread's first ~200 curves run at half speed
- * while its compiler catches up (measured), and the first upload should not pay for that.
- * Otherwise they start on first use. A worker that dies fails only the file it was on and is
- * replaced.
+ * A piscina pool of `size` threads fed from one first-come queue (uploads of several clients
+ * share it fairly by arrival), at a lower scheduling priority (`nice`, default 10: piscina's
+ * niceIncrement, applied per thread on Linux through its optional @napi-rs/nice; where that is
+ * missing the threads run at normal priority). With `warmFiles`, the threads start at once and
+ * analyse those files a few times before taking work: a fresh thread's first ~200 curves run at
+ * half speed while its compiler catches up (measured), and the first upload should not pay for
+ * that. Otherwise they start on first use. A thread that dies fails only the file it was on;
+ * piscina starts another for the rest.
  */
 export function workerAnalyser(size: number, opts: { nice?: number; warmFiles?: string[] } = {}): Analyser {
   if (!(Number.isInteger(size) && size >= 1)) throw new Error(`a worker pool needs at least one thread, got ${size}`);
-  const queue: Job[] = [];
-  const slots: Slot[] = [];
-  let nextId = 1;
+  const warmFiles = opts.warmFiles ?? [];
+  const pool = new Piscina<AnalysisRequest, AnalysisOutcome>({
+    filename: WORKER_FILE,
+    minThreads: warmFiles.length ? size : 0,
+    maxThreads: size,
+    // Threads are kept once started (the largest timer Node allows): a new one compiles the engine again.
+    idleTimeout: 2 ** 31 - 1,
+    niceIncrement: opts.nice ?? 10,
+    workerData: { warmFiles },
+  });
   let closed = false;
-
-  const spawnSlot = (): Slot => {
-    // The server runs TypeScript through tsx; a worker starts without the parent's loader, so it registers it first.
-    const worker = new Worker(`require(${JSON.stringify(TSX_API)}).register(); require(${JSON.stringify(WORKER_FILE)});`, {
-      eval: true,
-      workerData: { nice: opts.nice ?? 10, warmFiles: opts.warmFiles ?? [] },
-    });
-    const slot: Slot = { worker, job: null };
-    worker.unref();
-    worker.on('message', (msg: { id: number; outcome: AnalysisOutcome }) => {
-      const job = slot.job;
-      if (!job || job.id !== msg.id) return;
-      slot.job = null;
-      job.resolve(msg.outcome);
-      pump();
-    });
-    const lost = (why: string) => {
-      const job = slot.job;
-      slot.job = null;
-      const k = slots.indexOf(slot);
-      if (k >= 0) slots.splice(k, 1);
-      job?.resolve({ ok: false, kind: 'failure', message: `the analysis thread stopped (${why})` });
-      if (!closed) pump();
-    };
-    worker.on('error', (err) => lost(err.message));
-    worker.on('exit', (code) => lost(`exit code ${code}`));
-    return slot;
-  };
-
-  const pump = () => {
-    while (!closed && queue.length) {
-      let slot = slots.find((s) => !s.job);
-      if (!slot && slots.length < size) {
-        slot = spawnSlot();
-        slots.push(slot);
-      }
-      if (!slot) return;
-      const job = queue.shift()!;
-      slot.job = job;
-      slot.worker.postMessage({ id: job.id, req: job.req });
-    }
-  };
-
-  if (opts.warmFiles?.length) while (slots.length < size) slots.push(spawnSlot());
-
   return {
     threads: size,
-    analyse: (req) =>
-      new Promise<AnalysisOutcome>((resolve) => {
-        if (closed) return resolve({ ok: false, kind: 'failure', message: 'the server is shutting down' });
-        queue.push({ id: nextId++, req, resolve });
-        pump();
-      }),
+    analyse: async (req) => {
+      if (closed) return { ok: false, kind: 'failure', message: 'the server is shutting down' };
+      try {
+        return await pool.run(req);
+      } catch (err) {
+        if (closed) return { ok: false, kind: 'failure', message: 'the server is shutting down' };
+        return { ok: false, kind: 'failure', message: `the analysis thread stopped (${(err as Error)?.message ?? String(err)})` };
+      }
+    },
     close: async () => {
       closed = true;
-      for (const job of queue.splice(0)) job.resolve({ ok: false, kind: 'failure', message: 'the server is shutting down' });
-      await Promise.all(slots.splice(0).map((s) => s.worker.terminate()));
+      // Queued and running work is refused (each settles as a failure above), the threads end.
+      await pool.destroy();
     },
   };
 }

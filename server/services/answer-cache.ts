@@ -9,6 +9,7 @@
  */
 import { eq, sql } from 'drizzle-orm';
 import type { Response } from 'express';
+import { LRUCache } from 'lru-cache';
 import type { Db } from '@/db/client';
 import { batch } from '@/db/schema';
 
@@ -23,50 +24,55 @@ export async function touchBatch(tx: Tx | Db, batchId: string, changes: Partial<
     .returning();
 }
 
+/** Computes an answer: a value to serialize as JSON, or the bytes already serialized. */
+export type ComputeAnswer = () => Promise<unknown>;
+
 /**
  * Serialized JSON answers (UTF-8 bytes, ready to send), least recently used dropped first once
- * `maxBytes` is exceeded. Keys carry the revision they were computed from, so a stale entry is
- * never hit, only aged out.
+ * their bytes pass `maxBytes` (an answer larger than that is sent but not kept). Keys carry the
+ * revision they were computed from, so a stale entry is never hit, only aged out. Requests that
+ * miss one key at the same time share one computation (lru-cache's fetch); a computation that
+ * fails is not kept, and each of those requests gets its error.
  */
 export class AnswerCache {
-  private readonly entries = new Map<string, Buffer>();
-  private bytes = 0;
+  private readonly cache: LRUCache<string, Buffer, ComputeAnswer>;
 
-  constructor(private readonly maxBytes = 64 * 1024 * 1024) {}
+  constructor(maxBytes = 64 * 1024 * 1024) {
+    this.cache = new LRUCache<string, Buffer, ComputeAnswer>({
+      maxSize: maxBytes,
+      sizeCalculation: (body) => Math.max(1, body.length),
+      fetchMethod: async (_key, _stale, { context: compute }) => {
+        const answer = await compute();
+        return Buffer.isBuffer(answer) ? answer : Buffer.from(JSON.stringify(answer));
+      },
+    });
+  }
 
   /** The answer under `key`, computing and keeping it when missing (`compute` may serialize it itself). */
-  async get(key: string, compute: () => Promise<unknown>): Promise<Buffer> {
-    const hit = this.entries.get(key);
-    if (hit !== undefined) {
-      this.entries.delete(key);
-      this.entries.set(key, hit);
-      return hit;
-    }
-    const answer = await compute();
-    const body = Buffer.isBuffer(answer) ? answer : Buffer.from(JSON.stringify(answer));
-    if (body.length <= this.maxBytes) {
-      this.entries.set(key, body);
-      this.bytes += body.length;
-      for (const [k, v] of this.entries) {
-        if (this.bytes <= this.maxBytes) break;
-        this.entries.delete(k);
-        this.bytes -= v.length;
-      }
-    }
+  async get(key: string, compute: ComputeAnswer): Promise<Buffer> {
+    const body = await this.cache.fetch(key, { context: compute });
+    // fetch gives undefined only when the computation gives nothing, which ours never does.
+    if (!body) throw new Error(`the answer ${key} could not be computed`);
     return body;
   }
 
+  /** Answers kept. */
   get size(): number {
-    return this.entries.size;
+    return this.cache.size;
+  }
+
+  /** Bytes kept. */
+  get bytes(): number {
+    return this.cache.calculatedSize;
   }
 }
 
-/** The cache key of an answer about one batch state. */
 /** Sends a cached answer as JSON. */
 export function sendAnswer(res: Response, body: Buffer): void {
   res.type('application/json').send(body);
 }
 
+/** The cache key of an answer about one batch state. */
 export function batchKey(b: { id: string; updatedAt: Date }, what: string): string {
   return `${b.id}@${b.updatedAt.getTime()}:${what}`;
 }

@@ -1,14 +1,19 @@
 /**
- * Storing and reading curves. Every curve is written with its fits in one transaction, so a
- * reader (or a restart after a crash) sees either the whole curve or nothing of it.
+ * Storing, reading and refitting curves. Every curve is written with its fits in one
+ * transaction, so a reader (or a restart after a crash) sees either the whole curve or nothing of it.
  */
 import { and, eq, getTableColumns, inArray, sql } from 'drizzle-orm';
 import type { Db } from '@/db/client';
-import { curve, fit } from '@/db/schema';
-import { touchBatch } from '@/server/services/answer-cache';
+import { batch, curve, fit } from '@/db/schema';
 import type { FileAnalysis } from '@/lib/analysis/analyse-file';
 import { isSingleDiodeFit } from '@/lib/iv';
-import type { FitResult, FitSummary } from '@/lib/iv';
+import type { CurveMeta, FitResult, FitSummary } from '@/lib/iv';
+import { encodeComparisonRecord } from '@/lib/quality/comparison-record';
+import type { refitSchema } from '@/lib/schemas/curves';
+import { HttpError, notFound } from '@/server/errors';
+import type { Analyser } from '@/server/services/analysis-pool';
+import { touchBatch } from '@/server/services/answer-cache';
+import { assertWritable } from '@/server/services/batches';
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 type CurveRow = typeof curve.$inferSelect;
@@ -18,14 +23,29 @@ type FitRow = typeof fit.$inferSelect;
 export type CurveKey = { id: string; batchId: string; deviceId: string };
 
 /**
- * A curve's comparison record, JSON: [curve id, batch id, device id, metrics, cells, area_cm2,
- * flag codes, STC Pmax, fitted, Iph, I0, n, Rs, Rsh, RMSE] (single-diode figures only when
- * fitted). deviceRecords in server/services/quality.ts reads 10,000 of these as one text instead
- * of 150,000 fields; migration 0004 and its fallback build the same array in SQL.
+ * A curve's comparison record as stored in `curve.record` (the fields and their order:
+ * lib/quality/comparison-record.ts; single-diode figures only when fitted). deviceRecords in
+ * server/services/quality.ts reads 10,000 of these as one text instead of 150,000 fields.
  */
 export function comparisonRecord(key: CurveKey, a: Pick<FileAnalysis, 'curve' | 'metrics'>, d: ReturnType<typeof derivedColumns>): string {
   const meta = a.curve.meta;
-  return JSON.stringify([key.id, key.batchId, key.deviceId, a.metrics, meta.cells ?? null, meta.area_cm2 ?? null, d.flagCodes, d.stc_pmp_w, d.fitted, d.iph_a, d.i0_a, d.n, d.rs_ohm, d.rsh_ohm, d.rmse_a]);
+  return encodeComparisonRecord({
+    curveId: key.id,
+    batchId: key.batchId,
+    deviceId: key.deviceId,
+    metrics: a.metrics,
+    cells: meta.cells ?? null,
+    area_cm2: meta.area_cm2 ?? null,
+    flagCodes: d.flagCodes,
+    stc_pmp_w: d.stc_pmp_w,
+    fitted: d.fitted,
+    iph_a: d.iph_a,
+    i0_a: d.i0_a,
+    n: d.n,
+    rs_ohm: d.rs_ohm,
+    rsh_ohm: d.rsh_ohm,
+    rmse_a: d.rmse_a,
+  });
 }
 
 /** The sortable/filterable columns derived from an analysis. */
@@ -182,4 +202,64 @@ export async function fitsFor(db: Db, curveIds: string[], onlyCurrent: boolean, 
     out.set(r.curveId, list);
   }
   return out;
+}
+
+/** The organisation's curve or 404. */
+export async function loadCurve(db: Db, organizationId: string, id: string): Promise<CurveRow> {
+  const [row] = await db.select().from(curve).where(and(eq(curve.id, id), eq(curve.organizationId, organizationId)));
+  if (!row) throw notFound('That curve');
+  return row;
+}
+
+/** A curve with everything known about it: points, key figures, current fits with residuals, STC figures, fit history, its batch. */
+export async function curveDetail(db: Db, organizationId: string, id: string) {
+  const row = await loadCurve(db, organizationId, id);
+  const fits = (await fitsFor(db, [row.id], false)).get(row.id) ?? [];
+  const [b] = await db.select({ id: batch.id, name: batch.name, state: batch.state }).from(batch).where(eq(batch.id, row.batchId));
+  return { ...curveJson(row, fits, true), batch: b };
+}
+
+/**
+ * Fits a curve again with another model or corrected metadata (on the analysis threads: a free
+ * double-diode fit takes ~100 ms that other requests need not wait for). Earlier fits stay in
+ * the history; the new ones become current; key figures, STC figures, the derived columns and
+ * the comparison record follow the new metadata, and the batch's revision moves.
+ */
+export async function refitCurve(db: Db, analyser: Analyser, who: { organizationId: string; userId: string }, id: string, body: ReturnType<typeof refitSchema.parse>) {
+  const row = await loadCurve(db, who.organizationId, id);
+  const [b] = await db.select().from(batch).where(eq(batch.id, row.batchId));
+  assertWritable(b);
+  const meta: CurveMeta = { ...row.meta };
+  const changed: string[] = [];
+  for (const k of ['tempC', 'irradiance_Wm2', 'cells', 'area_cm2'] as const) {
+    const v = body[k];
+    if (v != null && v !== meta[k]) {
+      meta[k] = v;
+      changed.push(`${k} ${row.meta[k] ?? '—'} → ${v}`);
+    }
+  }
+  const models = body.model === 'both' ? (['single', 'double'] as const) : ([body.model] as const);
+  const outcome = await analyser.analyse({ curve: { voltage_V: row.voltage_V, current_A: row.current_A, meta, notes: row.notes }, idealities: body.idealities, models: [...models] });
+  if (!outcome.ok) {
+    if (outcome.kind === 'input') throw new HttpError(422, outcome.code, outcome.message);
+    throw new Error(`refit failed: ${outcome.message}`);
+  }
+  const analysis = outcome.analysis;
+  const reason = `refit${changed.length ? ': ' + changed.join(', ') : ''}${body.idealities === 'free' ? ' (free idealities)' : ''}`;
+  await db.transaction(async (tx) => {
+    for (const f of analysis.fits) {
+      await tx.update(fit).set({ current: false }).where(and(eq(fit.curveId, row.id), eq(fit.model, f.model), eq(fit.current, true)));
+    }
+    await insertFits(tx, row.id, analysis.fits, analysis.conditions, reason, who.userId);
+    // Re-read every current fit so the derived columns use the single-diode fit even when only the double was redone.
+    const current = await tx.select().from(fit).where(and(eq(fit.curveId, row.id), eq(fit.current, true)));
+    const cols = derivedColumns({ ...analysis, fits: current.map((x) => x.result) });
+    const record = comparisonRecord({ id: row.id, batchId: row.batchId, deviceId: row.deviceId }, analysis, cols);
+    await tx.update(curve).set({ meta, metrics: analysis.metrics, flags: analysis.flags, stc: analysis.stc ?? row.stc, ...cols, record }).where(eq(curve.id, row.id));
+    // The batch changed: answers cached against its revision must be computed again.
+    await touchBatch(tx, row.batchId);
+  });
+  const after = await loadCurve(db, who.organizationId, row.id);
+  const fits = (await fitsFor(db, [row.id], false)).get(row.id) ?? [];
+  return curveJson(after, fits, true);
 }

@@ -1,97 +1,53 @@
 /**
- * From stored curves to the records the quality rules judge (lib/quality), and the spec
- * versions they are judged against. Key names are the engine's (pmp_w, rs_ohm, j0_a_cm2…).
+ * From stored curves to the device records the quality rules judge (lib/quality). Key names are
+ * the engine's (pmp_w, rs_ohm, j0_a_cm2…).
  */
-import { and, desc, eq, inArray, sql } from 'drizzle-orm';
+import { inArray, sql } from 'drizzle-orm';
+import type { SQL } from 'drizzle-orm';
 import type { Db } from '@/db/client';
-import { curve, spec } from '@/db/schema';
-import { parseSpec } from '@/lib/quality';
-import type { DeviceRecord, ParamKey, Spec } from '@/lib/quality';
-import { notFound } from '@/server/errors';
+import { curve } from '@/db/schema';
+import { COMPARISON_RECORD_FIELDS, deviceRecordOf } from '@/lib/quality/comparison-record';
+import type { ComparisonDevice, ComparisonRecordField, ComparisonRecordTuple } from '@/lib/quality/comparison-record';
 
-export type DeviceRow = DeviceRecord & { curveId: string; batchId: string; fitted: boolean };
+export type DeviceRow = ComparisonDevice;
 
-type RecordTuple = [
-  id: string,
-  batchId: string,
-  deviceId: string,
-  metrics: Partial<Record<ParamKey, number | null>>,
-  cells: number | null,
-  area_cm2: number | null,
-  flags: string,
-  stc: number | null,
-  fitted: boolean,
-  iph: number | null,
-  i0: number | null,
-  n: number | null,
-  rs: number | null,
-  rsh: number | null,
-  rmse: number | null,
-];
-
-const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null);
+/**
+ * The comparison record built from a curve's columns, for curves stored before `curve.record`
+ * existed (migration 0004 backfilled them the same way). One SQL expression per field of
+ * lib/quality/comparison-record.ts, joined in its order.
+ */
+const RECORD_FROM_COLUMNS: Record<ComparisonRecordField, SQL> = {
+  curveId: sql`${curve.id}`,
+  batchId: sql`${curve.batchId}`,
+  deviceId: sql`${curve.deviceId}`,
+  metrics: sql`${curve.metrics}`,
+  cells: sql`(${curve.meta}->>'cells')::int`,
+  area_cm2: sql`(${curve.meta}->>'area_cm2')::float8`,
+  flagCodes: sql`${curve.flagCodes}`,
+  stc_pmp_w: sql`${curve.stc_pmp_w}`,
+  fitted: sql`${curve.fitted}`,
+  iph_a: sql`${curve.iph_a}`,
+  i0_a: sql`${curve.i0_a}`,
+  n: sql`${curve.n}`,
+  rs_ohm: sql`${curve.rs_ohm}`,
+  rsh_ohm: sql`${curve.rsh_ohm}`,
+  rmse_a: sql`${curve.rmse_a}`,
+};
+const recordFromColumns = sql`json_build_array(${sql.join(
+  COMPARISON_RECORD_FIELDS.map((k) => RECORD_FROM_COLUMNS[k]),
+  sql`, `,
+)})::text`;
 
 /** Every curve of the given batches as a device record with all engine keys, ordered by device. */
 export async function deviceRecords(db: Db, batchIds: string[]): Promise<DeviceRow[]> {
   if (!batchIds.length) return [];
   // One table, no JSON of the fits, and one field in all: each curve keeps its comparison record
-  // as JSON text (comparisonRecord in server/services/curves.ts). PGlite's reader costs per
-  // field: 10,000 rows × 15 columns took ~650 ms, this ~100 ms with parsing (measured).
-  const fallback = sql`json_build_array(${curve.id}, ${curve.batchId}, ${curve.deviceId}, ${curve.metrics}, (${curve.meta}->>'cells')::int, (${curve.meta}->>'area_cm2')::float8, ${curve.flagCodes}, ${curve.stc_pmp_w}, ${curve.fitted}, ${curve.iph_a}, ${curve.i0_a}, ${curve.n}, ${curve.rs_ohm}, ${curve.rsh_ohm}, ${curve.rmse_a})::text`;
+  // as JSON text. PGlite's reader costs per field: 10,000 rows × 15 columns took ~650 ms, this
+  // ~100 ms with parsing (measured).
   const result = await db.execute<{ j: string | null }>(sql`
-    select '[' || string_agg(coalesce(${curve.record}, ${fallback}), ',' order by ${curve.deviceId}) || ']' as j
+    select '[' || string_agg(coalesce(${curve.record}, ${recordFromColumns}), ',' order by ${curve.deviceId}) || ']' as j
     from ${curve} where ${inArray(curve.batchId, batchIds)}`);
   const text = result.rows[0]?.j;
-  const tuples: RecordTuple[] = text ? JSON.parse(text) : [];
-  return tuples.map(([id, batchId, deviceId, metrics, cells, area, flags, stc, fitted, iph, i0, n, rs, rsh, rmse]) => {
-    const ok = fitted === true;
-    const cellArea = num(area) ? (area as number) / (num(cells) ?? 1) : null;
-    // Filled in place (an object spread per row costs more than the query here).
-    const values: Partial<Record<ParamKey, number | null>> = metrics;
-    values.iph_a = ok ? num(iph) : null;
-    values.i0_a = ok ? num(i0) : null;
-    values.n = ok ? num(n) : null;
-    values.rs_ohm = ok ? num(rs) : null;
-    values.rsh_ohm = ok ? num(rsh) : null;
-    values.rmse_a = ok ? num(rmse) : null;
-    values.j0_a_cm2 = ok && num(i0) != null && cellArea ? (i0 as number) / cellArea : null;
-    values.stc_pmp_w = num(stc);
-    return { curveId: id, batchId, deviceId, values, flags: flags.split(' ').filter(Boolean), fitted: ok };
-  });
-}
-
-export type SpecRow = typeof spec.$inferSelect;
-
-/** One spec version of the caller's organisation, parsed; 404 otherwise. */
-export async function loadSpec(db: Db, organizationId: string, id: string): Promise<{ row: SpecRow; spec: Spec }> {
-  const [row] = await db.select().from(spec).where(and(eq(spec.id, id), eq(spec.organizationId, organizationId)));
-  if (!row) throw notFound('That spec');
-  return { row, spec: parseSpec(row.body) };
-}
-
-/** The newest version of every spec family of an organisation. */
-export async function latestSpecs(db: Db, organizationId: string): Promise<SpecRow[]> {
-  const rows = await db.select().from(spec).where(eq(spec.organizationId, organizationId)).orderBy(desc(spec.version));
-  const seen = new Set<string>();
-  return rows.filter((r) => (seen.has(r.familyId) ? false : (seen.add(r.familyId), true))).sort((a, b) => a.name.localeCompare(b.name));
-}
-
-/** The differences between two spec bodies, in words, for the version history. */
-export function describeChanges(before: Spec | null, after: Spec): string[] {
-  if (!before) return ['first version'];
-  const out: string[] = [];
-  if (before.name !== after.name) out.push(`renamed from “${before.name}”`);
-  const keys = new Set([...Object.keys(before.limits ?? {}), ...Object.keys(after.limits ?? {})]) as Set<ParamKey>;
-  for (const k of keys) {
-    const a = before.limits?.[k];
-    const b = after.limits?.[k];
-    const show = (l?: { min?: number; max?: number }) => (l ? `${l.min ?? '−∞'} … ${l.max ?? '+∞'}` : 'none');
-    if (JSON.stringify(a ?? null) !== JSON.stringify(b ?? null)) out.push(`${k}: ${show(a)} → ${show(b)}`);
-  }
-  if (JSON.stringify(before.powerClasses ?? null) !== JSON.stringify(after.powerClasses ?? null)) out.push('power classes changed');
-  const fa = [...(before.failFlags ?? [])].sort().join(', ');
-  const fb = [...(after.failFlags ?? [])].sort().join(', ');
-  if (fa !== fb) out.push(`failing flags: ${fa || 'none'} → ${fb || 'none'}`);
-  if ((before.notes ?? '') !== (after.notes ?? '')) out.push('notes changed');
-  return out.length ? out : ['saved without changes'];
+  const tuples: ComparisonRecordTuple[] = text ? JSON.parse(text) : [];
+  return tuples.map(deviceRecordOf);
 }

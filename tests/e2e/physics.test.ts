@@ -5,7 +5,7 @@
  * physics-*.png go to artifacts/screenshots (git-ignored).
  */
 import type { Page } from 'playwright-core';
-import { readDemoAccounts } from '@/db/seed';
+import { readDemoAccounts } from '@/server/services/seed';
 import { layoutProblems, openBrowser, screenshot, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
 import { startServerProcess } from '@/tests/support/server-process';
 import type { ServerProcess } from '@/tests/support/server-process';

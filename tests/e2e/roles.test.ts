@@ -3,7 +3,7 @@
  * its role allows (and not the others), with the shipped font and nothing cut off; screenshots go
  * to artifacts/screenshots (git-ignored).
  */
-import { readDemoAccounts } from '@/db/seed';
+import { readDemoAccounts } from '@/server/services/seed';
 import { ROLE_LABELS } from '@/lib/auth/roles';
 import { layoutProblems, openBrowser, screenshot, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
 import { startServerProcess } from '@/tests/support/server-process';

@@ -4,7 +4,7 @@
  * each input came from and the expanded high-voltage caution; bad input shows the library's
  * message and no figures. Screenshots strings-*.png go to artifacts/screenshots.
  */
-import { readDemoAccounts } from '@/db/seed';
+import { readDemoAccounts } from '@/server/services/seed';
 import { layoutProblems, openBrowser, screenshot, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
 import { startServerProcess } from '@/tests/support/server-process';
 import type { ServerProcess } from '@/tests/support/server-process';

@@ -12,7 +12,7 @@
 import { eq } from 'drizzle-orm';
 import type { Express } from 'express';
 import { batch, member, organization, user } from '@/db/schema';
-import { seedDemoBatches } from '@/db/seed';
+import { seedDemoBatches } from '@/server/services/seed';
 import { analyseFile } from '@/lib/analysis/analyse-file';
 import type { FileAnalysis } from '@/lib/analysis/analyse-file';
 import { can, ROLE_PERMISSIONS, ROLES } from '@/lib/auth/roles';

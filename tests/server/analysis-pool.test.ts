@@ -8,7 +8,7 @@ import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { asc, eq } from 'drizzle-orm';
 import { curve, fit } from '@/db/schema';
-import { SAMPLE_DIR, demoCurveFiles } from '@/db/seed';
+import { SAMPLE_DIR, demoCurveFiles } from '@/server/services/seed';
 import { analyseToOutcome, analysisThreads, inlineAnalyser, workerAnalyser } from '@/server/services/analysis-pool';
 import type { AnalysisRequest } from '@/server/services/analysis-pool';
 import { signUp, startHarness } from '@/tests/server/harness';

@@ -10,7 +10,7 @@ import { eq } from 'drizzle-orm';
 import { openDatabase } from '@/db/client';
 import type { Database } from '@/db/client';
 import { batch, curve, organization } from '@/db/schema';
-import { demoCurveFiles } from '@/db/seed';
+import { demoCurveFiles } from '@/server/services/seed';
 import { analyseFile } from '@/lib/analysis/analyse-file';
 import type { FileAnalysis } from '@/lib/analysis/analyse-file';
 import { storeCurves } from '@/server/services/curves';

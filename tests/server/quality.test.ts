@@ -6,7 +6,7 @@
 import { eq } from 'drizzle-orm';
 import Papa from 'papaparse';
 import { batch, curve, fit, member, organization, user } from '@/db/schema';
-import { seedDemoBatches } from '@/db/seed';
+import { seedDemoBatches } from '@/server/services/seed';
 import { rowsOfColumns } from '@/lib/quality';
 import { signIn, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
@@ -273,7 +273,7 @@ describe('comparison', () => {
   it('marks outliers on the chosen parameter exactly as the batch evaluation does, and counts them', async () => {
     const spec = (await qa.get('/api/specs')).body.specs.find((s: { name: string }) => s.name === moduleSpec.name);
     // The evaluation endpoint marks robust outliers on pmp_w, voc_v, isc_a, ff and rs_ohm at once
-    // (server/routes/reviews.ts); per parameter the marks must agree with the comparison's.
+    // (server/services/reviews.ts); per parameter the marks must agree with the comparison's.
     const evaluation = (await designer.get(`/api/batches/${lineTwo}/evaluation?spec=${spec.id}`)).body;
     for (const param of ['pmp_w', 'rs_ohm', 'ff']) {
       const res = await designer.get(`/api/compare?batches=${lineTwo},${lineThree}&spec=${spec.id}&param=${param}`);

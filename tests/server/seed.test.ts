@@ -1,6 +1,6 @@
 import { eq } from 'drizzle-orm';
 import { batch, curve, member, organization, user } from '@/db/schema';
-import { readDemoAccounts, seedDemo } from '@/db/seed';
+import { readDemoAccounts, seedDemo } from '@/server/services/seed';
 import { ROLES } from '@/lib/auth/roles';
 import { signIn, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';

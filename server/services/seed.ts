@@ -13,7 +13,7 @@ import { ROLES } from '@/lib/auth/roles';
 import type { Auth } from '@/server/auth';
 import { storeCurve } from '@/server/services/curves';
 
-export const SAMPLE_DIR = path.resolve(__dirname, '..', 'sample-data');
+export const SAMPLE_DIR = path.resolve(__dirname, '..', '..', 'sample-data');
 
 const accountsSchema = z.array(
   z.object({ email: z.email(), password: z.string().min(8), role: z.enum(ROLES), name: z.string().min(1) }),

@@ -1,0 +1,298 @@
+/**
+ * The physics answers, assembled from the engines (pure: stored values in, JSON-ready objects
+ * out): a material at a temperature, a band diagram with both statistics, the physics of a
+ * curve's current fits, and a curve translated to other conditions. server/services/physics.ts
+ * loads the curve and its fits and sends these.
+ */
+import { doubleDiodeParamsOf, singleDiodeParamsOf } from '@/lib/iv';
+import type { DoubleDiodeParams, FitResult, IvCurve, Metrics, SingleDiodeParams } from '@/lib/iv';
+import { STC, ZERO_C_IN_K } from '@/lib/physics/constants';
+import {
+  bandDiagram,
+  cellAreaOf,
+  impliedVocFromJ0,
+  j0FromI0,
+  materialAt,
+  occupationCurve,
+  PhysicsError,
+  predictVocVsTemperature,
+  quasiFermiLevels,
+  recombinationSharesAtMpp,
+  SILICON,
+  translateCurve,
+  vocTempCoefficient,
+} from '@/lib/physics';
+import type { TranslationRequest } from '@/lib/physics';
+import type { BandDiagramRequest, TranslateRequest } from '@/lib/schemas/physics';
+
+/**
+ * The n_i value the screen shows beside the model's: Altermatt et al. (2003), J. Appl. Phys.
+ * 93:1598, silicon at 300 K. The library's model (Couderc et al. 2014) is fitted to agree with it.
+ */
+export const NI_REFERENCE = { tempK: 300, ni_cm3: 9.65e9, source: 'Altermatt et al. 2003, J. Appl. Phys. 93:1598' } as const;
+
+/** Temperatures of the n_i chart, K. */
+const NI_SERIES_K = { from: 200, to: 400, step: 5 };
+/** Temperatures of the Voc prediction, °C (a module's datasheet range). */
+const VOC_SERIES_C = { from: -40, to: 85, step: 5 };
+/** Most points a translated curve is sent with. */
+const MAX_CURVE_POINTS = 200;
+
+/** The first value in `x` that is a number but not finite, with where it is (`result.single.j0`), or null. */
+export function firstNonFinite(x: unknown, where = 'result'): { where: string; value: number } | null {
+  if (typeof x === 'number') return Number.isFinite(x) ? null : { where, value: x };
+  if (Array.isArray(x)) {
+    for (let k = 0; k < x.length; k++) {
+      const bad = firstNonFinite(x[k], `${where}[${k}]`);
+      if (bad) return bad;
+    }
+  } else if (x && typeof x === 'object') {
+    for (const [k, v] of Object.entries(x)) {
+      const bad = firstNonFinite(v, `${where}.${k}`);
+      if (bad) return bad;
+    }
+  }
+  return null;
+}
+
+/** Evenly spaced indices, first and last kept, at most `max` points. */
+export function thinCurve(c: { voltage_V: number[]; current_A: number[] }, max = MAX_CURVE_POINTS): { voltage_V: number[]; current_A: number[] } {
+  const n = c.voltage_V.length;
+  if (n <= max) return { voltage_V: [...c.voltage_V], current_A: [...c.current_A] };
+  const idx = Array.from({ length: max }, (_, k) => Math.round((k * (n - 1)) / (max - 1)));
+  return { voltage_V: idx.map((k) => c.voltage_V[k]), current_A: idx.map((k) => c.current_A[k]) };
+}
+
+/** The single-diode parameters of a converged fit, or null. */
+export const singleOf = (f: FitResult | undefined): SingleDiodeParams | null => singleDiodeParamsOf(f);
+
+/** The double-diode parameters of a converged fit, or null. */
+export const doubleOf = (f: FitResult | undefined): DoubleDiodeParams | null => doubleDiodeParamsOf(f);
+
+/** Runs `fn`; a PhysicsError becomes a note and null, so one section's failure does not sink the rest. */
+function attempt<T>(what: string, notes: string[], fn: () => T): T | null {
+  try {
+    return fn();
+  } catch (err) {
+    if (err instanceof PhysicsError) {
+      notes.push(`${what} could not be computed: ${err.message}`);
+      return null;
+    }
+    throw err;
+  }
+}
+
+/** n_i, Eg, Nc, Nv of silicon at tempK (keys as `ni --json`), the Altermatt et al. (2003) reference, and n_i over 200–400 K. */
+export function materialReport(tempK: number) {
+  const s = materialAt(tempK);
+  const series: { tempK: number[]; ni_cm3: number[] } = { tempK: [], ni_cm3: [] };
+  for (let t = NI_SERIES_K.from; t <= NI_SERIES_K.to; t += NI_SERIES_K.step) {
+    series.tempK.push(t);
+    series.ni_cm3.push(materialAt(t).ni_cm3);
+  }
+  return {
+    tempK,
+    tempC: tempK - ZERO_C_IN_K,
+    ni_cm3: s.ni_cm3,
+    eg_ev: s.eg_eV,
+    nc_cm3: s.nc_cm3,
+    nv_cm3: s.nv_cm3,
+    egDos_eV: s.egDos_eV,
+    kT_eV: s.kT_eV,
+    material: { id: SILICON.id, name: SILICON.name, tempRangeK: SILICON.tempRangeK, maxDoping_cm3: SILICON.maxDoping_cm3, sources: SILICON.sources },
+    reference: { ...NI_REFERENCE, modelAtReference_cm3: materialAt(NI_REFERENCE.tempK).ni_cm3 },
+    series,
+  };
+}
+
+/** The band-diagram answer: the Fermi–Dirac result, the Boltzmann one beside it, occupation curves. */
+export function bandDiagramReport(input: BandDiagramRequest) {
+  const q = quasiFermiLevels(input);
+  const d = bandDiagram(input);
+  const occupation = occupationCurve(d, { points: 121 });
+  return {
+    input: { type: input.type, doping_cm3: input.doping_cm3, excess_cm3: q.excess_cm3, tempK: input.tempK },
+    material: { name: SILICON.name, eg_ev: q.material.eg_eV, egDos_eV: q.material.egDos_eV, ni_cm3: q.material.ni_cm3, kT_eV: q.material.kT_eV },
+    diagram: d,
+    fermiDirac: {
+      ef_eV: q.ef_eV,
+      efn_eV: q.efn_eV,
+      efp_eV: q.efp_eV,
+      n0_cm3: q.n0_cm3,
+      p0_cm3: q.p0_cm3,
+      n_cm3: q.n_cm3,
+      p_cm3: q.p_cm3,
+      etaN: q.etaN,
+      etaP: q.etaP,
+      splitting_eV: q.splitting_eV,
+      impliedVoc_V: q.impliedVoc_V,
+    },
+    boltzmann: {
+      ef_eV: q.boltzmann.ef_eV,
+      efn_eV: q.boltzmann.efn_eV,
+      efp_eV: q.boltzmann.efp_eV,
+      n0_cm3: q.boltzmann.n0_cm3,
+      p0_cm3: q.boltzmann.p0_cm3,
+      splitting_eV: q.boltzmann.splitting_eV,
+      impliedVoc_V: q.boltzmann.impliedVoc_V,
+    },
+    /** Boltzmann minus Fermi–Dirac. */
+    difference: { splitting_eV: q.boltzmann.splitting_eV - q.splitting_eV, impliedVoc_V: q.boltzmann.impliedVoc_V - q.impliedVoc_V },
+    degenerate: q.degenerate,
+    occupation,
+  };
+}
+
+/** A stored curve as the reports read it. */
+export type StoredCurve = {
+  id: string;
+  deviceId: string;
+  meta: IvCurve['meta'];
+  metrics: Metrics;
+  stc: unknown;
+  voltage_V: number[];
+  current_A: number[];
+};
+
+/** A curve's current fits: their results and the conditions they were made at. */
+export type CurrentFits = {
+  single?: { result: FitResult; conditions: Record<string, unknown> };
+  double?: { result: FitResult; conditions: Record<string, unknown> };
+};
+
+/** Cell temperature, cells in series and irradiance a curve's fits used (fit conditions, then metadata). */
+export function curveConditions(c: Pick<StoredCurve, 'meta'>, fit: { conditions: Record<string, unknown> } | undefined) {
+  const num = (v: unknown) => (typeof v === 'number' && Number.isFinite(v) ? v : null);
+  const tempC = num(fit?.conditions.tempC) ?? num(c.meta.tempC) ?? 25;
+  const cells = num(fit?.conditions.cells) ?? num(c.meta.cells) ?? 1;
+  const irradiance = num(fit?.conditions.irradiance_Wm2) ?? num(c.meta.irradiance_Wm2);
+  return { tempC, cells, irradiance_Wm2: irradiance, area_cm2: num(c.meta.area_cm2) };
+}
+
+/**
+ * The physics of a curve's current fits: J0 per cell area, Voc predicted over −40…+85 °C, the Voc
+ * temperature coefficient (two I0 laws), the implied Voc from Jsc and J0, the double-diode
+ * recombination shares at MPP, and the stored STC figures. What cannot be computed is a note.
+ */
+export function curvePhysicsReport(c: StoredCurve, fits: CurrentFits, batch: { id: string; name: string } | null) {
+  const cond = curveConditions(c, fits.single ?? fits.double);
+  const notes: string[] = [];
+  const cellArea_cm2 = cond.area_cm2 != null ? attempt('The cell area', notes, () => cellAreaOf(cond.area_cm2 as number, cond.cells)) : null;
+  if (cond.area_cm2 == null) notes.push('The curve has no device area, so J0 (a current per area) cannot be given; refit it with the area to see J0.');
+
+  const sp = singleOf(fits.single?.result);
+  if (!fits.single) notes.push('The curve has no single-diode fit.');
+  else if (!sp) notes.push(`The single-diode fit did not converge${fits.single.result.message ? `: ${fits.single.result.message}` : ''}.`);
+  const single = sp
+    ? (() => {
+        const j0 = cellArea_cm2 != null ? attempt('J0', notes, () => j0FromI0(sp.i0_a, cellArea_cm2)) : null;
+        const isc = c.metrics.isc_a;
+        const impliedVoc_V =
+          isc > 0
+            ? attempt('The implied Voc', notes, () =>
+                // Jsc/J0 = Isc/I0: the area cancels, so the implied Voc needs no area.
+                impliedVocFromJ0({ jsc_A_per_cm2: cellArea_cm2 ? isc / cellArea_cm2 : isc, j0_A_per_cm2: j0 ?? sp.i0_a, n: sp.n, tempC: cond.tempC, cells: cond.cells }),
+              )
+            : null;
+        const opts = { cells: cond.cells, tempC: cond.tempC };
+        const coefficient = attempt('The Voc temperature coefficient', notes, () => vocTempCoefficient(sp, opts));
+        const coefficientDeSoto = attempt('The Voc temperature coefficient (De Soto law)', notes, () => vocTempCoefficient(sp, { ...opts, law: 'desoto' }));
+        const series = attempt('Voc across temperature', notes, () =>
+          predictVocVsTemperature(sp, { cells: cond.cells, fitTempC: cond.tempC, fromC: VOC_SERIES_C.from, toC: VOC_SERIES_C.to, stepC: VOC_SERIES_C.step }),
+        );
+        return {
+          params: sp,
+          j0_A_per_cm2: j0,
+          impliedVoc: impliedVoc_V == null ? null : { voc_V: impliedVoc_V, jsc_A_per_cm2: cellArea_cm2 ? isc / cellArea_cm2 : null, isc_a: isc, measuredVoc_V: c.metrics.voc_v },
+          coefficient,
+          coefficientDeSoto,
+          vocVsTemperature: series ? { law: series.law, points: series.points.map((p) => ({ tempC: p.tempC, voc_V: p.voc_V })) } : null,
+        };
+      })()
+    : null;
+
+  const dp = doubleOf(fits.double?.result);
+  if (fits.double && !dp) notes.push('The double-diode fit did not converge.');
+  const double = dp
+    ? {
+        params: dp,
+        j01_A_per_cm2: cellArea_cm2 != null ? attempt('J01', notes, () => j0FromI0(dp.i01_a, cellArea_cm2)) : null,
+        j02_A_per_cm2: cellArea_cm2 != null ? attempt('J02', notes, () => j0FromI0(dp.i02_a, cellArea_cm2)) : null,
+        shares: attempt('The recombination shares at MPP', notes, () => recombinationSharesAtMpp(dp, { cells: cond.cells, tempC: cond.tempC })),
+      }
+    : null;
+
+  return {
+    curve: { id: c.id, device_id: c.deviceId, batch, meta: c.meta, metrics: c.metrics },
+    conditions: { ...cond, cellArea_cm2 },
+    stc: c.stc,
+    single,
+    double,
+    notes,
+  };
+}
+
+/**
+ * A stored curve moved to the target conditions by the chosen method: its key figures beside
+ * the measured ones and the translated curve (≤ 200 points); `no_fit` when the model
+ * translation has no converged single-diode fit to use.
+ */
+export function translationReport(c: StoredCurve, fits: CurrentFits, body: TranslateRequest): { ok: true; report: ReturnType<typeof assembleTranslation> } | { ok: false; reason: 'no_fit' } {
+  const cond = curveConditions(c, fits.single);
+  const notes: string[] = [];
+  const from = { irradiance_Wm2: cond.irradiance_Wm2 ?? STC.irradiance_Wm2, tempC: cond.tempC };
+  if (cond.irradiance_Wm2 == null) notes.push('The curve gives no irradiance: it was taken as measured at 1000 W/m².');
+  const measured: IvCurve = { voltage_V: c.voltage_V, current_A: c.current_A, meta: c.meta, notes: [] };
+  let request: TranslationRequest;
+  if (body.method === 'model') {
+    const sp = singleOf(fits.single?.result);
+    if (!sp) return { ok: false, reason: 'no_fit' };
+    request = { method: 'model', params: sp, cells: cond.cells, from, to: body.to, alpha_isc_A_per_K: body.alpha_isc_A_per_K, i0Law: body.i0Law, points: 121 };
+  } else if (body.method === 'iec60891-1') {
+    request = {
+      method: 'iec60891-1',
+      from,
+      to: body.to,
+      alpha_A_per_K: body.alpha_A_per_K as number,
+      beta_V_per_K: body.beta_V_per_K as number,
+      rs_ohm: body.rs_ohm as number,
+      kappa_ohm_per_K: body.kappa_ohm_per_K as number,
+      isc1_a: c.metrics.isc_a,
+    };
+  } else {
+    request = {
+      method: 'iec60891-2',
+      from,
+      to: body.to,
+      alpha_rel_per_K: body.alpha_rel_per_K as number,
+      beta_rel_per_K: body.beta_rel_per_K as number,
+      rs_ohm: body.rs_ohm as number,
+      kappa_ohm_per_K: body.kappa_ohm_per_K as number,
+      a_irradiance: body.a_irradiance as number,
+      voc1_V: c.metrics.voc_v,
+    };
+  }
+  return { ok: true, report: assembleTranslation(c, measured, from, cond.area_cm2, translateCurve(measured, request), notes) };
+}
+
+function assembleTranslation(c: StoredCurve, measured: IvCurve, from: { irradiance_Wm2: number; tempC: number }, area_cm2: number | null, t: ReturnType<typeof translateCurve>, notes: string[]) {
+  const area_m2 = area_cm2 != null ? area_cm2 * 1e-4 : null;
+  const best = t.modelFigures
+    ? { isc_a: t.modelFigures.isc_a, voc_v: t.modelFigures.voc_v, pmp_w: t.modelFigures.pmp_w, imp_a: t.modelFigures.imp_a, vmp_v: t.modelFigures.vmp_v, ff: t.modelFigures.ff }
+    : t.figures
+      ? { isc_a: t.figures.isc_a, voc_v: t.figures.voc_v, pmp_w: t.figures.pmp_w, imp_a: t.figures.imp_a, vmp_v: t.figures.vmp_v, ff: t.figures.ff }
+      : null;
+  return {
+    method: t.method,
+    from,
+    to: t.to,
+    figures: best ? { ...best, efficiency: area_m2 ? best.pmp_w / (t.to.irradiance_Wm2 * area_m2) : null } : null,
+    figuresSource: t.modelFigures ? 'model' : best ? 'curve' : null,
+    figuresError: t.figuresError ?? null,
+    measured: { conditions: from, figures: c.metrics, curve: thinCurve(measured) },
+    params: t.params ?? null,
+    curve: thinCurve(t.curve),
+    points_total: t.curve.voltage_V.length,
+    notes: [...notes, ...t.notes],
+  };
+}

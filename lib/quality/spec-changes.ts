@@ -1,0 +1,23 @@
+/** The differences between two versions of an acceptance spec, in words, for its version history. */
+import type { ParamKey } from '@/lib/quality/params';
+import type { Spec } from '@/lib/quality/spec';
+
+/** What changed from `before` (null for a first version) to `after`, one sentence each. */
+export function describeChanges(before: Spec | null, after: Spec): string[] {
+  if (!before) return ['first version'];
+  const out: string[] = [];
+  if (before.name !== after.name) out.push(`renamed from “${before.name}”`);
+  const keys = new Set([...Object.keys(before.limits ?? {}), ...Object.keys(after.limits ?? {})]) as Set<ParamKey>;
+  for (const k of keys) {
+    const a = before.limits?.[k];
+    const b = after.limits?.[k];
+    const show = (l?: { min?: number; max?: number }) => (l ? `${l.min ?? '−∞'} … ${l.max ?? '+∞'}` : 'none');
+    if (JSON.stringify(a ?? null) !== JSON.stringify(b ?? null)) out.push(`${k}: ${show(a)} → ${show(b)}`);
+  }
+  if (JSON.stringify(before.powerClasses ?? null) !== JSON.stringify(after.powerClasses ?? null)) out.push('power classes changed');
+  const fa = [...(before.failFlags ?? [])].sort().join(', ');
+  const fb = [...(after.failFlags ?? [])].sort().join(', ');
+  if (fa !== fb) out.push(`failing flags: ${fa || 'none'} → ${fb || 'none'}`);
+  if ((before.notes ?? '') !== (after.notes ?? '')) out.push('notes changed');
+  return out.length ? out : ['saved without changes'];
+}

@@ -1,0 +1,69 @@
+/**
+ * Batches: the caller's batch or 404, the writable check, the API shape, creating and editing.
+ * The cached read answers (list, summary, pages, overlay) are in batch-reads.ts.
+ */
+import { and, eq } from 'drizzle-orm';
+import type { Db } from '@/db/client';
+import { batch } from '@/db/schema';
+import type { batchCreateSchema, batchUpdateSchema } from '@/lib/schemas/curves';
+import { HttpError, notFound } from '@/server/errors';
+import { touchBatch } from '@/server/services/answer-cache';
+
+export type BatchRow = typeof batch.$inferSelect;
+
+/** The organisation's batch or 404 (another organisation's batch is "not found", never "forbidden"). */
+export async function loadBatch(db: Db, organizationId: string, id: string): Promise<BatchRow> {
+  const [b] = await db.select().from(batch).where(and(eq(batch.id, id), eq(batch.organizationId, organizationId)));
+  if (!b) throw notFound('That batch');
+  return b;
+}
+
+/** 409 unless the batch may still change. */
+export function assertWritable(b: BatchRow): void {
+  if (b.state === 'released') throw new HttpError(409, 'batch_released', 'This batch is released and read-only.');
+  if (b.archived) throw new HttpError(409, 'batch_archived', 'This batch is archived; restore it before changing it.');
+}
+
+/** The caller's batch, 409 unless it may still change. */
+export async function loadWritableBatch(db: Db, organizationId: string, id: string): Promise<BatchRow> {
+  const b = await loadBatch(db, organizationId, id);
+  assertWritable(b);
+  return b;
+}
+
+/** The API shape of a batch, with extra fields (counts, summary) after its own. */
+export function batchJson(b: BatchRow, extra: Record<string, unknown> = {}) {
+  return {
+    id: b.id,
+    name: b.name,
+    productType: b.productType,
+    supplier: b.supplier,
+    line: b.line,
+    lot: b.lot,
+    batchDate: b.batchDate,
+    cells: b.cells,
+    area_cm2: b.area_cm2,
+    nameplate_w: b.nameplate_w,
+    description: b.description,
+    archived: b.archived,
+    state: b.state,
+    createdAt: b.createdAt,
+    updatedAt: b.updatedAt,
+    ...extra,
+  };
+}
+
+/** Creates a batch in the caller's organisation. */
+export async function createBatch(db: Db, who: { organizationId: string; userId: string }, input: ReturnType<typeof batchCreateSchema.parse>) {
+  const [b] = await db.insert(batch).values({ id: crypto.randomUUID(), organizationId: who.organizationId, createdBy: who.userId, ...input }).returning();
+  return batchJson(b);
+}
+
+/** Renames, describes, archives or restores a batch; 409 once it is released. */
+export async function updateBatch(db: Db, organizationId: string, id: string, input: ReturnType<typeof batchUpdateSchema.parse>) {
+  const b = await loadBatch(db, organizationId, id);
+  if (b.state === 'released') throw new HttpError(409, 'batch_released', 'This batch is released and read-only.');
+  const changes = Object.fromEntries(Object.entries(input).filter(([, v]) => v !== undefined));
+  const [u] = await touchBatch(db, b.id, changes);
+  return batchJson(u);
+}

@@ -1,0 +1,182 @@
+/**
+ * Review and release of a batch: judging it against a spec version, the pass/fail export, the
+ * review record, submitting it to the QA leads and their decision, with the mails both send.
+ */
+import { and, desc, eq } from 'drizzle-orm';
+import type { Db } from '@/db/client';
+import { batch, batchReview, member, user } from '@/db/schema';
+import { evaluateBatch, passFailCsv } from '@/lib/quality';
+import type { BatchEvaluation } from '@/lib/quality';
+import type { decisionSchema } from '@/lib/schemas/quality';
+import { HV_CAUTION } from '@/lib/strings/cautions';
+import { HttpError } from '@/server/errors';
+import type { Mailer, OutgoingMail } from '@/server/mail';
+import type { Caller } from '@/server/permissions';
+import { touchBatch } from '@/server/services/answer-cache';
+import { batchJson, loadBatch } from '@/server/services/batches';
+import type { BatchRow } from '@/server/services/batches';
+import { deviceRecords } from '@/server/services/quality';
+import { loadSpec } from '@/server/services/specs';
+
+/** The parameters whose outliers an evaluation marks. */
+const OUTLIER_PARAMS = ['pmp_w', 'voc_v', 'isc_a', 'ff', 'rs_ohm'] as const;
+/** The columns of the pass/fail export, in order. */
+const EXPORT_PARAMS = ['isc_a', 'voc_v', 'pmp_w', 'imp_a', 'vmp_v', 'ff', 'efficiency', 'stc_pmp_w', 'n', 'rs_ohm', 'rsh_ohm', 'j0_a_cm2'] as const;
+
+/** Judges a batch against a spec version: per device pass/fail with reasons, classes, outliers, stats. */
+async function evaluate(db: Db, batchId: string, organizationId: string, specId: string) {
+  const { row, spec } = await loadSpec(db, organizationId, specId);
+  const devices = await deviceRecords(db, [batchId]);
+  const evaluation = evaluateBatch(devices, spec, { outlierParams: [...OUTLIER_PARAMS] });
+  return { specRow: row, evaluation, devices };
+}
+
+function counts(e: BatchEvaluation) {
+  return { total: e.counts.total, pass: e.counts.pass, fail: e.counts.fail, outliers: e.counts.outliers };
+}
+
+/** The spec asked for, else the one of the batch's last review decision; 400 when there is neither. */
+async function specFor(db: Db, batchId: string, asked: string | undefined): Promise<string> {
+  if (asked) return asked;
+  const rows = await db.select({ specId: batchReview.specId }).from(batchReview).where(eq(batchReview.batchId, batchId)).orderBy(desc(batchReview.createdAt));
+  const last = rows.find((x) => x.specId)?.specId;
+  if (!last) throw new HttpError(400, 'spec_required', 'Choose the spec to judge the batch against (?spec=<id>).');
+  return last;
+}
+
+/** Every device of the batch judged against the spec version (default: the last decision's). */
+export async function batchEvaluation(db: Db, organizationId: string, batchId: string, specId?: string) {
+  const b = await loadBatch(db, organizationId, batchId);
+  const { specRow, evaluation, devices } = await evaluate(db, b.id, organizationId, await specFor(db, b.id, specId));
+  return {
+    batch: batchJson(b),
+    spec: { id: specRow.id, name: specRow.name, version: specRow.version, familyId: specRow.familyId },
+    counts: counts(evaluation),
+    powerClassCounts: evaluation.powerClassCounts,
+    stats: evaluation.stats,
+    devices: evaluation.devices.map((d, k) => ({ ...d, curveId: devices[k].curveId })),
+  };
+}
+
+/** The pass/fail CSV (formula-safe, lib/quality/csv.ts) with the high-voltage caution last, and its file name. */
+export async function passFailExport(db: Db, organizationId: string, batchId: string, specId?: string): Promise<{ fileName: string; text: string }> {
+  const b = await loadBatch(db, organizationId, batchId);
+  const { specRow, evaluation } = await evaluate(db, b.id, organizationId, await specFor(db, b.id, specId));
+  const text = passFailCsv(evaluation, { specVersion: `${specRow.name} v${specRow.version}`, releaseState: b.state, params: [...EXPORT_PARAMS] }, [`# ${HV_CAUTION.short}`]);
+  const safeName = b.name.replace(/[^A-Za-z0-9._-]+/g, '_').slice(0, 60) || 'batch';
+  return { fileName: `${safeName}-pass-fail-v${specRow.version}.csv`, text };
+}
+
+/** The review record: who did what, when, against which spec, with which counts; newest first. */
+export async function reviewHistory(db: Db, organizationId: string, batchId: string) {
+  const b = await loadBatch(db, organizationId, batchId);
+  const rows = await db
+    .select({ id: batchReview.id, action: batchReview.action, specId: batchReview.specId, counts: batchReview.counts, comment: batchReview.comment, createdAt: batchReview.createdAt, actor: user.name, actorEmail: user.email })
+    .from(batchReview)
+    .leftJoin(user, eq(user.id, batchReview.actorId))
+    .where(eq(batchReview.batchId, b.id))
+    .orderBy(desc(batchReview.createdAt));
+  return { reviews: rows };
+}
+
+/** The mail to a QA lead when a batch is submitted for review. */
+export function reviewRequestMail(to: { email: string; name: string }, b: Pick<BatchRow, 'name'>, by: Caller, devices: number, comment: string | undefined): OutgoingMail {
+  return {
+    to: to.email,
+    kind: 'review-request',
+    organizationId: by.organization.id,
+    subject: `Quasilevel: batch “${b.name}” is ready for review`,
+    text: [
+      `Hello ${to.name},`,
+      '',
+      `${by.user.name} submitted the batch “${b.name}” (${devices} devices) for release review.`,
+      comment ? `Their note: ${comment}` : '',
+      '',
+      'Open the batch in Quasilevel, judge it against an acceptance spec and release it or put it on hold.',
+    ].join('\n'),
+  };
+}
+
+/** The mail to the submitter when a QA lead releases or holds the batch. */
+export function decisionMail(
+  to: { email: string; name: string },
+  b: Pick<BatchRow, 'name'>,
+  by: Caller,
+  state: 'released' | 'on_hold',
+  spec: { name: string; version: number },
+  tally: ReturnType<typeof counts>,
+  comment: string,
+): OutgoingMail {
+  const done = state === 'released' ? 'released' : 'put on hold';
+  return {
+    to: to.email,
+    kind: 'release-decision',
+    organizationId: by.organization.id,
+    subject: `Quasilevel: batch “${b.name}” was ${done}`,
+    text: [
+      `Hello ${to.name},`,
+      '',
+      `${by.user.name} ${done} the batch “${b.name}”.`,
+      `Judged against ${spec.name} v${spec.version}: ${tally.pass} pass, ${tally.fail} fail, ${tally.outliers} outliers of ${tally.total}.`,
+      comment ? `Comment: ${comment}` : '',
+    ].join('\n'),
+  };
+}
+
+/** A test engineer hands the batch to the QA leads (e-mailed); 409 unless every curve has a converged fit. */
+export async function submitBatch(db: Db, mailer: Mailer, by: Caller, batchId: string, comment: string | undefined) {
+  const b = await loadBatch(db, by.organization.id, batchId);
+  if (b.archived) throw new HttpError(409, 'batch_archived', 'Restore the batch from the archive before submitting it.');
+  if (b.state === 'released') throw new HttpError(409, 'batch_released', 'This batch is already released.');
+  if (b.state === 'in_review') throw new HttpError(409, 'already_in_review', 'This batch is already waiting for review.');
+  const devices = await deviceRecords(db, [b.id]);
+  if (!devices.length) throw new HttpError(409, 'batch_empty', 'Upload curves before submitting the batch for review.');
+  const unfitted = devices.filter((d) => !d.fitted);
+  if (unfitted.length) {
+    throw new HttpError(409, 'unfitted_curves', `${unfitted.length} curve(s) have no converged fit (${unfitted.slice(0, 5).map((d) => d.deviceId).join(', ')}${unfitted.length > 5 ? ', …' : ''}). Refit or remove them first.`);
+  }
+  await db.transaction(async (tx) => {
+    await touchBatch(tx, b.id, { state: 'in_review' });
+    await tx.insert(batchReview).values({ id: crypto.randomUUID(), batchId: b.id, action: 'submitted', counts: { total: devices.length }, comment: comment || null, actorId: by.user.id });
+  });
+  const leads = await db
+    .select({ email: user.email, name: user.name })
+    .from(member)
+    .innerJoin(user, eq(user.id, member.userId))
+    .where(and(eq(member.organizationId, by.organization.id), eq(member.role, 'qa_lead')));
+  for (const l of leads) await mailer.send(reviewRequestMail(l, b, by, devices.length, comment));
+  const [after] = await db.select().from(batch).where(eq(batch.id, b.id));
+  return { batch: batchJson(after), notified: leads.length };
+}
+
+/**
+ * The QA lead's decision on a batch in review, recorded with the spec version and the pass/fail
+ * counts; the submitter is e-mailed. A released batch becomes read-only.
+ */
+export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: string, body: ReturnType<typeof decisionSchema.parse>) {
+  const b = await loadBatch(db, by.organization.id, batchId);
+  if (b.state !== 'in_review') {
+    throw new HttpError(409, 'not_in_review', b.state === 'released' ? 'This batch is already released.' : 'Only a batch submitted for review can be released or held.');
+  }
+  const { specRow, evaluation, devices } = await evaluate(db, b.id, by.organization.id, body.specId);
+  const unfitted = devices.filter((d) => !d.fitted);
+  if (body.decision === 'release' && unfitted.length) {
+    throw new HttpError(409, 'unfitted_curves', `${unfitted.length} curve(s) have no converged fit; the batch cannot be released.`);
+  }
+  const state = body.decision === 'release' ? 'released' : 'on_hold';
+  const tally = counts(evaluation);
+  await db.transaction(async (tx) => {
+    await touchBatch(tx, b.id, { state });
+    await tx.insert(batchReview).values({ id: crypto.randomUUID(), batchId: b.id, action: body.decision === 'release' ? 'released' : 'held', specId: specRow.id, counts: tally, comment: body.comment || null, actorId: by.user.id });
+  });
+  const [submission] = await db
+    .select({ email: user.email, name: user.name })
+    .from(batchReview)
+    .innerJoin(user, eq(user.id, batchReview.actorId))
+    .where(and(eq(batchReview.batchId, b.id), eq(batchReview.action, 'submitted')))
+    .orderBy(desc(batchReview.createdAt))
+    .limit(1);
+  if (submission) await mailer.send(decisionMail(submission, b, by, state, specRow, tally, body.comment));
+  const [after] = await db.select().from(batch).where(eq(batch.id, b.id));
+  return { batch: batchJson(after), counts: tally, spec: { id: specRow.id, version: specRow.version, name: specRow.name } };
+}
