@@ -11,7 +11,7 @@
  * `npx tsx bench/cli-vs-minpack.ts [--quick]`, or as the `cli` section of `npm run bench`.
  */
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { quantile, round } from '@/bench/stats';
@@ -22,15 +22,25 @@ const ROOT = path.resolve(__dirname, '..');
 const FILES = 200;
 export const TARGET_NI_START_S = 0.4;
 
-type Run = { wall_s: number; stdout: string };
+type Run = { wall_s: number; cpu_s: number; stdout: string };
 
-/** Runs a command to its end, timing its wall clock from outside (process start included). */
+const TIME = '/usr/bin/time';
+const HAS_TIME = existsSync(TIME);
+
+/**
+ * Runs a command to its end, timing its wall clock from outside (process start included) and,
+ * where /usr/bin/time exists, its CPU time with all its children (npm, the shell, node and its
+ * threads): on a shared machine the CPU time moves less than the wall time.
+ */
 function timed(cmd: string, args: string[], env: NodeJS.ProcessEnv = process.env): Run {
   const t0 = performance.now();
-  const out = spawnSync(cmd, args, { cwd: ROOT, env, encoding: 'utf8', maxBuffer: 256 * 2 ** 20 });
+  const out = HAS_TIME
+    ? spawnSync(TIME, ['-f', 'cpu %U %S', cmd, ...args], { cwd: ROOT, env, encoding: 'utf8', maxBuffer: 256 * 2 ** 20 })
+    : spawnSync(cmd, args, { cwd: ROOT, env, encoding: 'utf8', maxBuffer: 256 * 2 ** 20 });
   const wall_s = (performance.now() - t0) / 1000;
   if (out.status !== 0) throw new Error(`${cmd} ${args.slice(0, 3).join(' ')} … exited ${out.status}: ${out.stderr.slice(0, 500)}`);
-  return { wall_s, stdout: out.stdout };
+  const cpu = /cpu ([\d.]+) ([\d.]+)\s*$/.exec(out.stderr);
+  return { wall_s, cpu_s: cpu ? Number(cpu[1]) + Number(cpu[2]) : NaN, stdout: out.stdout };
 }
 
 /** The 60-cell modules of the synthetic set, written to a fresh directory. */
@@ -51,7 +61,7 @@ function pythonAvailable(): string | null {
   return out.status === 0 ? out.stdout.trim() : null;
 }
 
-type PythonAnswer = { files: number; fit_s: number; converged: number; evaluations_mean: number; rmse_a: number[] };
+type PythonAnswer = { files: number; fit_s: number; fit_cpu_s: number; converged: number; evaluations_mean: number; rmse_a: number[] };
 
 /** Runs the benchmark; `quick` repeats each measurement 3 times instead of 7. */
 export async function benchCliVsMinpack(opts: { quick?: boolean } = {}): Promise<Record<string, unknown>> {
@@ -68,20 +78,27 @@ export async function benchCliVsMinpack(opts: { quick?: boolean } = {}): Promise
     const npmFit = ['run', '--silent', 'cli', '--', 'fit', ...files, '--json'];
     const oneThread = { ...process.env, QUASILEVEL_CLI_THREADS: '1' };
     const cli: number[] = [];
+    const cliCpu: number[] = [];
     const cliOneThread: number[] = [];
     const python: number[] = [];
+    const pythonCpu: number[] = [];
     const ni: number[] = [];
+    const niCpu: number[] = [];
     let lastCli = '';
     let lastPython: PythonAnswer | null = null;
     for (let r = 0; r < repeats; r++) {
       const c = timed('npm', npmFit);
       cli.push(c.wall_s);
+      cliCpu.push(c.cpu_s);
       lastCli = c.stdout;
       const p = timed('python3', [path.join('bench', 'minpack-fit.py'), ...files]);
       lastPython = JSON.parse(p.stdout) as PythonAnswer;
       python.push(lastPython.fit_s);
+      pythonCpu.push(lastPython.fit_cpu_s);
       cliOneThread.push(timed('npm', npmFit, oneThread).wall_s);
-      ni.push(timed('npm', ['run', '--silent', 'cli', '--', 'ni', '--temp-k', '300', '--json']).wall_s);
+      const n = timed('npm', ['run', '--silent', 'cli', '--', 'ni', '--temp-k', '300', '--json']);
+      ni.push(n.wall_s);
+      niCpu.push(n.cpu_s);
     }
     const nodeStart: number[] = [];
     for (let r = 0; r < repeats; r++) nodeStart.push(timed(process.execPath, ['-e', '0']).wall_s);
@@ -101,33 +118,38 @@ export async function benchCliVsMinpack(opts: { quick?: boolean } = {}): Promise
       repeats,
       cli_wall_s_median: med(cli),
       cli_wall_s_all: cli.map((x) => round(x)),
+      cli_cpu_s_median: med(cliCpu),
       cli_one_thread_wall_s_median: med(cliOneThread),
       cli_fit_ms_median: med(fitMs),
       cli_fit_s_sum: round(fitMs.reduce((s, x) => s + x, 0) / 1000),
       cli_converged: lines.filter((l) => l.fit.converged).length,
       python_fit_s_median: med(python),
       python_fit_s_all: python.map((x) => round(x)),
+      python_fit_cpu_s_median: med(pythonCpu),
       python_converged: py.converged,
       python_evaluations_mean: round(py.evaluations_mean),
       scipy_numpy: scipy,
       same_optimum: `${sameOptimum}/${files.length}`,
       rmse_ratio_median: round(quantile(ratios, 0.5), 6),
       ni_wall_s_median: med(ni),
+      ni_wall_s_all: ni.map((x) => round(x)),
+      ni_cpu_s_median: med(niCpu),
       node_empty_start_s_median: med(nodeStart),
       bundle_rebuilt_first: built,
+      load_average_at_end: os.loadavg().map((x) => round(x)),
       threads: os.availableParallelism(),
       ok: quantile(cli, 0.5) < quantile(python, 0.5) && quantile(ni, 0.5) < TARGET_NI_START_S,
     };
     console.log(
       [
         `CLI vs MINPACK — ${files.length} synthetic 60-cell module files × 200 points, ${repeats} alternating runs, medians${quick ? ' [quick]' : ''}`,
-        `  npm run cli -- fit FILES --json, wall incl. start: ${figures.cli_wall_s_median} s (one thread: ${figures.cli_one_thread_wall_s_median} s);` +
-          ` fits inside ${figures.cli_fit_ms_median} ms median, ${figures.cli_fit_s_sum} s summed`,
-        `  MINPACK (least_squares lm, scipy/numpy ${scipy}), fit time only: ${figures.python_fit_s_median} s;` +
+        `  npm run cli -- fit FILES --json, wall incl. start: ${figures.cli_wall_s_median} s (one thread: ${figures.cli_one_thread_wall_s_median} s),` +
+          ` CPU incl. npm ${figures.cli_cpu_s_median} s; fits inside ${figures.cli_fit_ms_median} ms median, ${figures.cli_fit_s_sum} s summed`,
+        `  MINPACK (least_squares lm, scipy/numpy ${scipy}), fit time only: ${figures.python_fit_s_median} s (CPU ${figures.python_fit_cpu_s_median} s);` +
           ` ${figures.python_evaluations_mean} evaluations a fit, converged ${figures.python_converged}/${files.length}`,
         `  same optimum (RMSE within 0.1 %): ${figures.same_optimum}; CLI faster: ${quantile(cli, 0.5) < quantile(python, 0.5) ? 'ok' : 'MISSED'}`,
-        `  npm run cli -- ni --temp-k 300 --json: ${figures.ni_wall_s_median} s (target < ${TARGET_NI_START_S} s: ${quantile(ni, 0.5) < TARGET_NI_START_S ? 'ok' : 'MISSED'});` +
-          ` an empty node process: ${figures.node_empty_start_s_median} s`,
+        `  npm run cli -- ni --temp-k 300 --json: ${figures.ni_wall_s_median} s, CPU ${figures.ni_cpu_s_median} s (target < ${TARGET_NI_START_S} s: ${quantile(ni, 0.5) < TARGET_NI_START_S ? 'ok' : 'MISSED'});` +
+          ` an empty node process: ${figures.node_empty_start_s_median} s; load average at the end ${figures.load_average_at_end.join(' ')}`,
       ].join('\n'),
     );
     return figures;
