@@ -30,6 +30,10 @@ if (!fresh()) {
   const unregister = require('tsx/cjs/api').register();
   try {
     require(path.join(root, 'scripts', 'build-cli.ts')).buildCli();
+  } catch (err) {
+    // esbuild has printed the errors with their places; the old bundle must not run instead.
+    console.error(`the command line could not be built: ${err instanceof Error ? err.message.split('\n')[0] : String(err)}`);
+    process.exit(1);
   } finally {
     unregister();
   }

@@ -50,6 +50,19 @@ describe('cli/launch.cjs builds the bundle when it is missing or stale', () => {
     const again = runCli([], { launcher: launcher() });
     expect(again.stdout).toMatch(/^Quasilevel command line, edited/);
   });
+
+  it('a source that does not compile stops the command instead of running the old bundle', () => {
+    const ni = path.join(tree, 'cli', 'commands', 'ni.ts');
+    const text = readFileSync(ni, 'utf8');
+    writeFileSync(ni, `${text}\nexport const broken = ;\n`);
+    const r = runCli(['ni', '--temp-k', '300', '--json'], { launcher: launcher() });
+    expect(r.status).toBe(1);
+    expect(r.stdout).toBe('');
+    expect(r.stderr).toMatch(/cli\/commands\/ni\.ts/);
+    expect(r.stderr).toMatch(/the command line could not be built/);
+    writeFileSync(ni, text);
+    expect(runCli(['ni', '--temp-k', '300', '--json'], { launcher: launcher() }).status).toBe(0);
+  });
 });
 
 describe('fit on worker threads', () => {
