@@ -3,12 +3,13 @@
  * turn, prints its block and a summary against the targets of issues 3 and 8, and writes all
  * figures with the date and machine to artifacts/bench.json.
  * Sections: iv-fit (the engine's fits), server (upload-to-stored, comparison grid API),
- * bundle (first-load JavaScript of the web export).
+ * bundle (first-load JavaScript of the web export), cli (the command line against MINPACK).
  */
 import { mkdirSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { benchBundle } from '@/bench/bundle';
+import { benchCliVsMinpack } from '@/bench/cli-vs-minpack';
 import { benchIvFit } from '@/bench/iv-fit';
 import { benchServer } from '@/bench/server-bench';
 import { REPO_ROOT } from '@/tests/support/server-process';
@@ -19,6 +20,7 @@ const sections: Section[] = [
   { name: 'iv-fit', run: benchIvFit },
   { name: 'server', run: benchServer },
   { name: 'bundle', run: () => benchBundle() },
+  { name: 'cli', run: benchCliVsMinpack },
 ];
 
 /** The machine, for the record: cores, CPU model, memory, Node, and how busy it was. */

@@ -2,7 +2,11 @@
  * Quasilevel command line: `npm run --silent cli -- <command> [options]`.
  * Each command lives in cli/commands/<name>.ts and exports `run(argv): Promise<number>`
  * (the exit status). Options are parsed with node:util parseArgs in each command.
+ * `npm run cli` runs the bundle of this file (build/cli.cjs, see cli/launch.cjs); the same bundle
+ * started as a worker thread fits files for `fit` (cli/fit-threads.ts).
  */
+import { isMainThread } from 'node:worker_threads';
+
 type CommandModule = { run: (argv: string[]) => Promise<number>; summary: string };
 
 const commands: Record<string, () => Promise<CommandModule>> = {
@@ -33,10 +37,14 @@ async function main(): Promise<number> {
   return (await commands[name]()).run(rest);
 }
 
-main().then(
-  (code) => process.exit(code),
-  (err: unknown) => {
-    console.error(err instanceof Error ? err.message : String(err));
-    process.exit(1);
-  },
-);
+if (isMainThread) {
+  main().then(
+    (code) => process.exit(code),
+    (err: unknown) => {
+      console.error(err instanceof Error ? err.message : String(err));
+      process.exit(1);
+    },
+  );
+} else {
+  void import('./fit-threads').then((m) => m.serveFitWorker());
+}

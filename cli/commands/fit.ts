@@ -6,10 +6,10 @@
  * {"file", "metrics", "fit", "flags"} or {"file", "error"}; the exit status is 2 when any file
  * could not be read (after processing the others) or the options are wrong.
  */
-import { readFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
-import { analyseCurve, IvInputError, parseIvBytes } from '@/lib/iv';
-import type { CurveMeta, FitResult, Flag, Metrics } from '@/lib/iv';
+import type { FitSettings } from '@/cli/fit-file';
+import { fitFiles } from '@/cli/fit-threads';
+import type { CurveMeta } from '@/lib/iv';
 
 export const summary = 'key figures and single/double-diode fits of measured I-V files';
 
@@ -35,51 +35,6 @@ function numberOption(raw: string | undefined, name: string, check: (x: number) 
   const x = Number(raw);
   if (raw.trim() === '' || !Number.isFinite(x) || !check(x)) throw new UsageError(`--${name} must be ${what}, got "${raw}"`);
   return x;
-}
-
-const sig = (x: number | null | undefined, digits = 5) => (x === null || x === undefined ? '–' : Number(x.toPrecision(digits)).toString());
-const tidyObject = <T extends Record<string, unknown>>(o: T): T =>
-  Object.fromEntries(Object.entries(o).map(([k, v]) => [k, typeof v === 'number' ? Number(v.toPrecision(12)) : v])) as T;
-
-function table(file: string, meta: CurveMeta, metrics: Metrics, fit: FitResult, flags: Flag[], tempC: string, cells: string): string {
-  const lines: string[] = [];
-  lines.push(`${file}${meta.deviceId ? `  (${meta.deviceId})` : ''}  ${tempC}, ${cells}`);
-  lines.push(
-    `  Isc ${sig(metrics.isc_a)} A   Voc ${sig(metrics.voc_v)} V   Pmp ${sig(metrics.pmp_w)} W at ${sig(metrics.vmp_v)} V, ${sig(metrics.imp_a)} A` +
-      `   FF ${sig(metrics.ff * 100, 4)} %   efficiency ${metrics.efficiency === null ? '– (needs area and irradiance)' : `${sig(metrics.efficiency * 100, 4)} %`}`,
-  );
-  lines.push(`  slope at Isc: Rsh0 ${sig(metrics.rsh0_ohm, 4)} Ω   slope at Voc: Rs0 ${sig(metrics.rs0_ohm, 4)} Ω`);
-  const objective = fit.objective === 'true-current' ? 'true current' : 'implicit residual';
-  lines.push(`  ${fit.model} fit (${objective}): ${fit.converged ? 'converged' : 'DID NOT CONVERGE'}, ${fit.evaluations} evaluations, ${sig(fit.elapsed_ms, 3)} ms`);
-  if (fit.converged) {
-    const rows: [string, string, string][] =
-      fit.model === 'single-diode'
-        ? [
-            ['Iph', 'iph_a', 'A'],
-            ['I0', 'i0_a', 'A'],
-            ['n', 'n', 'per cell'],
-            ['Rs', 'rs_ohm', 'Ω'],
-            ['Rsh', 'rsh_ohm', 'Ω'],
-          ]
-        : [
-            ['Iph', 'iph_a', 'A'],
-            ['I01', 'i01_a', 'A'],
-            ['n1', 'n1', 'per cell'],
-            ['I02', 'i02_a', 'A'],
-            ['n2', 'n2', 'per cell'],
-            ['Rs', 'rs_ohm', 'Ω'],
-            ['Rsh', 'rsh_ohm', 'Ω'],
-          ];
-    const record = fit as unknown as Record<string, number | null>;
-    for (const [label, key, unit] of rows) {
-      const se = fit.stderr[key];
-      lines.push(`    ${label.padEnd(4)} ${sig(record[key], 6).padStart(12)} ± ${se === null || se === undefined ? '–' : sig(se, 2)} ${unit}`);
-    }
-    lines.push(`    RMSE ${sig(fit.rmse_a, 5)} A, largest residual ${sig(fit.max_residual_a, 3)} A`);
-  }
-  if (fit.message) lines.push(`  note: ${fit.message}`);
-  for (const f of flags) lines.push(`  [${f.severity}] ${f.message}`);
-  return lines.join('\n');
 }
 
 /** Runs the fit command; returns the exit status. */
@@ -137,39 +92,7 @@ export async function run(argv: string[]): Promise<number> {
     return 2;
   }
 
-  let failures = 0;
-  const json = values.json === true;
-  for (const file of files) {
-    try {
-      let bytes: Uint8Array;
-      try {
-        bytes = readFileSync(file);
-      } catch (err) {
-        const code = (err as NodeJS.ErrnoException).code;
-        throw new IvInputError('unreadable', code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'this is a directory, not a file' : `cannot read the file (${code ?? 'unknown error'})`);
-      }
-      const curve = parseIvBytes(bytes, { fileName: file, overrides });
-      const { metrics, flags, fits } = analyseCurve(curve, { models: [model], objective, idealities });
-      const fit = fits[0];
-      if (json) {
-        console.log(JSON.stringify({ file, deviceId: curve.meta.deviceId, metrics: tidyObject(metrics), fit, flags }));
-      } else {
-        const tempC = curve.meta.tempC === undefined ? '25 °C (assumed)' : `${curve.meta.tempC} °C`;
-        const cells = curve.meta.cells === undefined ? '1 cell (assumed)' : `${curve.meta.cells} cell${curve.meta.cells > 1 ? 's' : ''}`;
-        console.log(table(file, curve.meta, metrics, fit, flags, tempC, cells) + '\n');
-      }
-    } catch (err) {
-      failures++;
-      if (!(err instanceof IvInputError)) {
-        // A bug, not bad input: still one line per file, but say so.
-        const message = err instanceof Error ? err.message : String(err);
-        if (json) console.log(JSON.stringify({ file, error: `internal error: ${message}`, code: 'internal' }));
-        else console.error(`${file}: internal error: ${message}`);
-        continue;
-      }
-      if (json) console.log(JSON.stringify({ file, error: err.message, code: err.code, ...(err.line !== undefined ? { line: err.line } : {}) }));
-      else console.error(`${file}: ${err.message}`);
-    }
-  }
-  return failures > 0 ? 2 : 0;
+  const settings: FitSettings = { overrides, model, objective, idealities, json: values.json === true };
+  const outputs = await fitFiles(files, settings);
+  return outputs.some((o) => o.failed) ? 2 : 0;
 }

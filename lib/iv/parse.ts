@@ -134,7 +134,10 @@ export function parseIvText(text: string, opts: ParseOptions = {}): IvCurve {
 function buildCurve(rows: { v: number; i: number; line: number }[], fileMeta: CurveMeta, notes: string[], opts: ParseOptions): IvCurve {
   const descending = rows.length > 1 && rows[0].v > rows[rows.length - 1].v;
   if (descending) notes.push('sweep ran from high to low voltage; points sorted by voltage');
-  const sorted = rows.map((r, k) => ({ ...r, k })).sort((a, b) => a.v - b.v || a.k - b.k);
+  // Most sweeps arrive in rising voltage: those skip the sort (stable by position, so repeated voltages keep their order).
+  let rising = true;
+  for (let k = 1; k < rows.length && rising; k++) rising = rows[k].v >= rows[k - 1].v;
+  const sorted = rising ? rows : rows.map((r, k) => ({ ...r, k })).sort((a, b) => a.v - b.v || a.k - b.k);
 
   const voltage_V: number[] = [];
   const current_A: number[] = [];

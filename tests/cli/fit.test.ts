@@ -1,16 +1,12 @@
-import { spawnSync } from 'node:child_process';
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
+import { runCli } from '@/tests/cli/built-cli';
 
-// Each spawn costs about a second (tsx start-up); three in all.
-const REPO = path.resolve(__dirname, '../..');
+// The built command line (build/cli.cjs through cli/launch.cjs), as `npm run cli` starts it.
 const REF_DIR = path.resolve(__dirname, '../../../shared/reference-data');
 
-function cli(args: string[]) {
-  const out = spawnSync('npx', ['tsx', 'cli/main.ts', 'fit', ...args], { cwd: REPO, encoding: 'utf8', timeout: 60_000 });
-  return { status: out.status, lines: out.stdout.trim().split('\n').filter(Boolean), stdout: out.stdout, stderr: out.stderr };
-}
+const cli = (args: string[]) => runCli(['fit', ...args]);
 
 describe('cli fit', () => {
   jest.setTimeout(60_000);

@@ -1,10 +1,9 @@
-import { execFileSync } from 'node:child_process';
-import path from 'node:path';
 import { run as fermi } from '@/cli/commands/fermi';
 import { run as ni } from '@/cli/commands/ni';
 import { run as split } from '@/cli/commands/split';
 import { run as translate } from '@/cli/commands/translate';
 import { KB_EV_PER_K } from '@/lib/physics/constants';
+import { runCli } from '@/tests/cli/built-cli';
 
 type Run = (argv: string[]) => Promise<number>;
 
@@ -223,9 +222,9 @@ describe('translate command', () => {
 });
 
 describe('through the real command line', () => {
-  it('npm run cli -- ni --temp-k 300 --json prints the four keys', () => {
-    const root = path.resolve(__dirname, '..', '..');
-    const out = execFileSync('npx', ['tsx', 'cli/main.ts', 'ni', '--temp-k', '300', '--json'], { cwd: root, encoding: 'utf8' });
-    expect(Object.keys(JSON.parse(out)).sort()).toEqual(['eg_ev', 'nc_cm3', 'ni_cm3', 'nv_cm3']);
+  it('npm run cli -- ni --temp-k 300 --json prints the four keys (the built CLI)', () => {
+    const r = runCli(['ni', '--temp-k', '300', '--json']);
+    expect(r.status).toBe(0);
+    expect(Object.keys(JSON.parse(r.stdout)).sort()).toEqual(['eg_ev', 'nc_cm3', 'ni_cm3', 'nv_cm3']);
   });
 });

@@ -1,6 +1,5 @@
-import { execFileSync } from 'node:child_process';
-import path from 'node:path';
 import { run } from '@/cli/commands/strings';
+import { runCli } from '@/tests/cli/built-cli';
 
 async function capture(argv: string[]): Promise<{ code: number; out: string; err: string }> {
   let out = '';
@@ -76,12 +75,9 @@ describe('strings command', () => {
     expect(err).toMatch(/usage:/);
   });
 
-  it('works end to end through cli/main.ts', () => {
-    const root = path.resolve(__dirname, '../..');
-    const stdout = execFileSync(path.join(root, 'node_modules/.bin/tsx'), ['cli/main.ts', 'strings', ...EXAMPLE, '--json'], {
-      cwd: root,
-      encoding: 'utf8',
-    });
-    expect(JSON.parse(stdout).max_modules).toBe(27);
+  it('works end to end through the built command line', () => {
+    const r = runCli(['strings', ...EXAMPLE, '--json']);
+    expect(r.status).toBe(0);
+    expect(JSON.parse(r.stdout).max_modules).toBe(27);
   });
 });
