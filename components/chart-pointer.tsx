@@ -67,7 +67,8 @@ export function ChartPointer({
           />
         ) : null}
       </View>
-      <Txt variant="caption" aria-live="polite" style={{ fontFamily: theme.font.mono, color: at ? theme.color.ink : theme.color.muted }} testID={testID ? `${testID}-readout` : undefined}>
+      {/* Two lines' room on a phone, where a reading with a device id wraps: the legend below does not jump. */}
+      <Txt variant="caption" aria-live="polite" style={{ fontFamily: theme.font.mono, color: at ? theme.color.ink : theme.color.muted, minHeight: frame.width < 520 ? 32 : 16 }} testID={testID ? `${testID}-readout` : undefined}>
         {picked != null && points[picked] ? describe(picked) : hint}
       </Txt>
     </View>

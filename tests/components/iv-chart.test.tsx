@@ -19,7 +19,7 @@ const svgLabels = (root: ReactTestInstance) => root.findAll((n) => (n.type as un
 
 /** Host views' background colours under a node (the legend's marks). */
 const fills = (root: ReactTestInstance) =>
-  root.findAll((n) => typeof n.type === 'string' && n.type === 'View').map((n) => [n.props.style].flat(3).find((s) => s && typeof s === 'object' && 'backgroundColor' in s)?.backgroundColor).filter(Boolean);
+  root.findAll((n) => (n.type as unknown) === 'View').map((n) => [n.props.style].flat(3).find((s) => s && typeof s === 'object' && 'backgroundColor' in s)?.backgroundColor).filter(Boolean);
 
 describe('ChartFrame', () => {
   it('renders nothing until it knows its width, then children(width) with the width floored', () => {
