@@ -64,7 +64,12 @@ export function svgFileText(markup: string, opts: { width: number; height: numbe
   for (const [k, v] of [['height', opts.height], ['width', opts.width], ['y', 0], ['x', 0]] as const) {
     root = new RegExp(`\\s${k}\\s*=`).test(root) ? root.replace(new RegExp(`\\s${k}\\s*=\\s*"[^"]*"`), ` ${k}="${v}"`) : root.replace(/^<svg\b/i, `<svg ${k}="${v}"`);
   }
-  const plot = root + markup.trim().slice(open[0].trim().length);
+  // The page's CSS sizing (`style="width: 100%; height: 100%"`) would stretch the nested plot
+  // over the legend: its attributes size it instead.
+  root = root.replace(/\sstyle\s*=\s*"[^"]*"/, '');
+  // The app's fonts are not inside the file: name a generic family after each one.
+  const body = markup.trim().slice(open[0].trim().length).replace(/font-family:\s*([^;",]+?)\s*(;|")/g, 'font-family: $1, sans-serif$2');
+  const plot = root + body;
   const legend = legendSvg(opts.legend ?? [], opts.width);
   const total = opts.height + legend.height;
   return [

@@ -84,7 +84,8 @@ describe('ivReadout', () => {
 });
 
 describe('svgFileText', () => {
-  const rendered = '<svg width="300" height="200" viewBox="0 0 300 200" style="pointer-events: all;"><g><path d="M0 0L10 10" stroke-width="2"/><text>Voltage (V)</text></g></svg>';
+  const rendered =
+    '<svg width="300" height="200" viewBox="0 0 300 200" style="width: 100%; height: 100%;"><g><path d="M0 0L10 10" stroke-width="2"/><text>Voltage (V)</text><tspan style="font-family: PlexMono; font-size: 10px;">0.1</tspan></g></svg>';
 
   it('makes a standalone file: declaration, namespace, title, background, the plot nested at its size', () => {
     const text = svgFileText(rendered, { width: 300, height: 200, title: 'KF <1> & co', background: '#FFFFFF' });
@@ -94,6 +95,9 @@ describe('svgFileText', () => {
     // The plot keeps its viewBox and content; stroke-width is not mistaken for the width attribute.
     expect(text).toContain('<svg x="0" y="0" xmlns="http://www.w3.org/2000/svg" width="300" height="200" viewBox="0 0 300 200"');
     expect(text).toContain('<path d="M0 0L10 10" stroke-width="2"/><text>Voltage (V)</text>');
+    // The page's 100 % sizing is dropped from the nested plot; app fonts get a generic fallback.
+    expect(text).not.toContain('width: 100%');
+    expect(text).toContain('style="font-family: PlexMono, sans-serif; font-size: 10px;"');
     // Well formed: as many <svg as </svg>.
     expect(text.match(/<svg\b/g)?.length).toBe(text.match(/<\/svg>/g)?.length);
   });

@@ -4,8 +4,9 @@
  * the I-V chart downloads as <device>-iv.svg (and .png), at phone and wide width.
  */
 import { readFileSync } from 'node:fs';
+import path from 'node:path';
 import type { Page } from 'playwright-core';
-import { layoutProblems, openBrowser, screenshot, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
+import { layoutProblems, openBrowser, screenshot, SCREENSHOT_DIR, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
 import { startServerProcess } from '@/tests/support/server-process';
 import type { ServerProcess } from '@/tests/support/server-process';
 
@@ -97,6 +98,9 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       expect(png.suggestedFilename()).toBe(`${DEVICE}-iv.png`);
       const bytes = readFileSync((await png.path())!);
       expect(bytes.subarray(0, 8)).toEqual(Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]));
+      // Kept beside the screenshots, to look at what a person gets.
+      await svg.saveAs(path.join(SCREENSHOT_DIR, `charts-download-${vpName}.svg`));
+      await png.saveAs(path.join(SCREENSHOT_DIR, `charts-download-${vpName}.png`));
     } finally {
       await b.close();
     }
