@@ -2,6 +2,13 @@ import { VictoryAxis, VictoryBoxPlot, VictoryChart, VictoryScatter } from 'victo
 import { ChartFrame } from '@/components/chart-frame';
 import { chartStyle, tick } from '@/components/chart-style';
 import { theme } from '@/components/theme';
+import { edgeAxes } from '@/lib/charts/plot-frame';
+
+const PADDING = { ...chartStyle.padding, bottom: 56 };
+const AXES = edgeAxes(PADDING);
+
+/** The parameter's label as a file-name part: "Rs (Ω)" → "rs". */
+const fileKind = (label: string) => label.replace(/\(.*\)/, '').trim().toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '') || 'parameter';
 
 /**
  * Box plots of one parameter for several batches on one axis (box: quartiles, whiskers: min and
@@ -11,10 +18,11 @@ export function DistributionChart({ groups, label, height = 260, testID }: { gro
   const data = groups.filter((g) => g.values.length > 0).map((g, k) => ({ x: k + 1, y: g.values, name: g.name }));
   const dots = data.flatMap((g) => g.y.map((v, j) => ({ x: g.x + (((j * 7919) % 100) / 100 - 0.5) * 0.3, y: v })));
   return (
-    <ChartFrame height={height} testID={testID}>
+    <ChartFrame height={height} testID={testID} download={{ name: 'comparison', kind: fileKind(label), title: label }}>
       {(width) => (
-        <VictoryChart width={width} height={height} padding={{ ...chartStyle.padding, bottom: 56 }} domainPadding={{ x: 30 }}>
+        <VictoryChart width={width} height={height} padding={PADDING} domainPadding={{ x: 30 }}>
           <VictoryAxis
+            {...AXES.x}
             style={{ ...chartStyle.axis, tickLabels: { ...chartStyle.axis.tickLabels, fontFamily: theme.font.regular } }}
             tickValues={data.map((d) => d.x)}
             tickFormat={(t: number) => {
@@ -22,7 +30,7 @@ export function DistributionChart({ groups, label, height = 260, testID }: { gro
               return n.length > 18 ? n.slice(0, 17) + '…' : n;
             }}
           />
-          <VictoryAxis dependentAxis label={label} style={chartStyle.axis} tickFormat={tick} tickCount={5} />
+          <VictoryAxis dependentAxis {...AXES.y} label={label} style={chartStyle.axis} tickFormat={tick} tickCount={5} />
           <VictoryBoxPlot
             data={data}
             boxWidth={Math.min(40, width / (data.length * 3 + 1))}

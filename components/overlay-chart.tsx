@@ -1,28 +1,61 @@
-import { VictoryAxis, VictoryChart, VictoryGroup, VictoryLine } from 'victory-native';
+import { useMemo } from 'react';
+import { VictoryAxis, VictoryChart, VictoryLine } from 'victory-native';
 import { ChartFrame } from '@/components/chart-frame';
+import { ChartPointer } from '@/components/chart-pointer';
 import { chartStyle, tick } from '@/components/chart-style';
 import { theme } from '@/components/theme';
 import type { OverlayCurve } from '@/lib/api/batches';
+import { overlayTones } from '@/lib/charts/overlay-tones';
+import type { OverlayTone } from '@/lib/charts/overlay-tones';
+import { domainOf, edgeAxes } from '@/lib/charts/plot-frame';
+import type { Point } from '@/lib/charts/plot-frame';
+import { ivReadout } from '@/lib/charts/readout';
+import type { LegendItem } from '@/lib/charts/svg-file';
 
-/** Many curves of a batch on one I-V chart; flagged devices stand out in amber. */
-export function OverlayChart({ curves, height = 260, testID }: { curves: OverlayCurve[]; height?: number; testID?: string }) {
-  const ordered = [...curves].sort((a, b) => Number(a.flagged) - Number(b.flagged));
+const AXES = edgeAxes(chartStyle.padding);
+
+/** Flagged curves in amber on top; the rest in one neutral grey, thin and faint, behind them. */
+const TONE_STYLE: Record<OverlayTone, { stroke: string; strokeWidth: number; opacity: number }> = {
+  flagged: { stroke: theme.color.hole, strokeWidth: 1.6, opacity: 0.95 },
+  other: { stroke: theme.color.muted, strokeWidth: 1, opacity: 0.35 },
+};
+
+/**
+ * Many curves of a batch on one I-V chart. Only flagged devices are coloured; the legend counts
+ * them with the same rule that colours them. The pointer reads the nearest point of any curve,
+ * with its device id.
+ */
+export function OverlayChart({ curves, batchName, height = 260, testID }: { curves: OverlayCurve[]; batchName?: string; height?: number; testID?: string }) {
+  const { ordered, counts } = useMemo(() => overlayTones(curves), [curves]);
+  const lines = useMemo(
+    () => ordered.map(({ curve, tone }) => ({ curve, tone, data: curve.voltage_V.map((v, k) => ({ x: v, y: curve.current_A[k] })).filter((p) => p.y >= 0) })),
+    [ordered],
+  );
+  // Every drawn point, with the curve it belongs to, for the pointer.
+  const all = useMemo(() => lines.flatMap((l) => l.data.map((p) => ({ ...p, curve: l.curve }))), [lines]);
+  const domain = useMemo(() => domainOf([all as Point[]]), [all]);
+  const legend: LegendItem[] = [
+    { label: `${counts.flagged} flagged`, colour: TONE_STYLE.flagged.stroke, mark: 'line' },
+    { label: `${counts.other} not flagged`, colour: TONE_STYLE.other.stroke, mark: 'line' },
+  ];
   return (
-    <ChartFrame height={height} testID={testID}>
+    <ChartFrame height={height} testID={testID} legend={legend} download={{ name: batchName ?? 'batch', kind: 'overlay', title: `${batchName ?? 'Batch'}: I-V curves` }}>
       {(width) => (
-        <VictoryChart width={width} height={height} padding={chartStyle.padding}>
-          <VictoryAxis label="Voltage (V)" style={chartStyle.axis} tickFormat={tick} tickCount={6} />
-          <VictoryAxis dependentAxis label="Current (A)" style={chartStyle.axis} tickFormat={tick} tickCount={5} />
-          <VictoryGroup>
-            {ordered.map((c) => (
-              <VictoryLine
-                key={c.id}
-                data={c.voltage_V.map((v, k) => ({ x: v, y: c.current_A[k] })).filter((p) => p.y >= 0)}
-                style={{ data: { stroke: c.flagged ? theme.color.hole : theme.color.electron, strokeWidth: c.flagged ? 1.6 : 1, opacity: c.flagged ? 0.95 : 0.45 } }}
-              />
+        <ChartPointer
+          frame={{ width, height, padding: chartStyle.padding, domain }}
+          points={all}
+          describe={(k) => ivReadout(all[k].x, all[k].y, all[k].curve.device_id)}
+          hint="Point at a curve to read its device, V, I and P."
+          testID={testID}
+        >
+          <VictoryChart width={width} height={height} padding={chartStyle.padding} domain={domain}>
+            <VictoryAxis {...AXES.x} label="Voltage (V)" style={chartStyle.axis} tickFormat={tick} tickCount={6} />
+            <VictoryAxis dependentAxis {...AXES.y} label="Current (A)" style={chartStyle.axis} tickFormat={tick} tickCount={5} />
+            {lines.map((l) => (
+              <VictoryLine key={l.curve.id} data={l.data} style={{ data: TONE_STYLE[l.tone] }} />
             ))}
-          </VictoryGroup>
-        </VictoryChart>
+          </VictoryChart>
+        </ChartPointer>
       )}
     </ChartFrame>
   );

@@ -28,11 +28,11 @@ export function PhysicsNiChart({
   for (let e = eMin; e <= eMax; e += eMax - eMin > 6 ? 2 : 1) ticks.push(10 ** e);
   const inRange = (t: number) => t >= series.tempK[0] && t <= series.tempK[series.tempK.length - 1];
   return (
-    <ChartFrame height={height} testID={testID}>
+    <ChartFrame height={height} testID={testID} download={{ name: 'intrinsic-density', kind: 'temperature', title: 'Intrinsic carrier density against temperature' }}>
       {(width) => (
         <VictoryChart width={width} height={height} padding={LOG_CHART.padding} scale={{ y: 'log' }} domain={{ y: [10 ** eMin, 10 ** eMax] }}>
-          <VictoryAxis label="Temperature (K)" style={chartStyle.axis} tickFormat={tick} tickCount={5} />
-          <VictoryAxis dependentAxis label="n_i (cm⁻³)" style={LOG_CHART.yAxis} tickValues={ticks} tickFormat={powerOfTenTick} />
+          <VictoryAxis crossAxis={false} offsetY={LOG_CHART.padding.bottom} label="Temperature (K)" style={chartStyle.axis} tickFormat={tick} tickCount={5} />
+          <VictoryAxis dependentAxis crossAxis={false} offsetX={LOG_CHART.padding.left} label="n_i (cm⁻³)" style={LOG_CHART.yAxis} tickValues={ticks} tickFormat={powerOfTenTick} />
           <VictoryLine data={data} style={chartStyle.model} />
           {reference && inRange(reference.tempK) ? (
             <VictoryScatter data={[{ x: reference.tempK, y: reference.ni_cm3 }]} size={6} symbol="diamond" style={chartStyle.mpp} />

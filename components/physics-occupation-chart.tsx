@@ -20,10 +20,10 @@ export function PhysicsOccupationChart({ occupation, scale, height = 240, testID
   const pts = (f: number[]) => occupation.energy_eV.map((e, k) => ({ x: e, y: log ? Math.max(FLOOR, f[k]) : f[k] }));
   const edge = (x: number) => [{ x, y: lo }, { x, y: 1 }];
   return (
-    <ChartFrame height={height} testID={testID}>
+    <ChartFrame height={height} testID={testID} download={{ name: 'occupation', kind: scale, title: 'Occupation across the gap' }}>
       {(width) => (
         <VictoryChart width={width} height={height} padding={LOG_CHART.padding} scale={{ y: log ? 'log' : 'linear' }} domain={{ y: [lo, 1] }}>
-          <VictoryAxis crossAxis={false} offsetY={chartStyle.padding.bottom} label="Energy from Ei (eV)" style={chartStyle.axis} tickFormat={tick} tickCount={6} />
+          <VictoryAxis crossAxis={false} offsetY={LOG_CHART.padding.bottom} label="Energy from Ei (eV)" style={chartStyle.axis} tickFormat={tick} tickCount={6} />
           <VictoryAxis
             dependentAxis
             crossAxis={false}

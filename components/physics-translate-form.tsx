@@ -146,9 +146,9 @@ export function PhysicsTranslateForm({ physics }: { physics: CurvePhysicsJson })
             {TRANSLATION_METHOD_LABELS[result.method]}: from {result.from.tempC} °C, {result.from.irradiance_Wm2} W/m² to {result.to.tempC} °C, {result.to.irradiance_Wm2} W/m²
           </Txt>
           {result.figures ? <FigureRow figures={result.figures} measured={physics.curve.metrics} /> : <Txt variant="body">No key figures for the translated curve: {result.figuresError}</Txt>}
-          <IvChart mode="iv" measured={result.measured.curve} model={result.curve} height={240} testID="translate-chart" />
+          <IvChart mode="iv" measured={result.measured.curve} model={result.curve} labels={{ model: 'translated' }} height={240} testID="translate-chart" />
           <Txt variant="caption">
-            ● measured   — translated{result.points_total > result.curve.voltage_V.length ? ` (drawn with ${result.curve.voltage_V.length} of ${result.points_total} points)` : ''}. {result.figuresSource === 'model' ? 'Figures from the translated model.' : 'Figures from the translated curve.'} {result.notes.join(' · ')}
+            {result.points_total > result.curve.voltage_V.length ? `Translated curve drawn with ${result.curve.voltage_V.length} of ${result.points_total} points. ` : ''}{result.figuresSource === 'model' ? 'Figures from the translated model.' : 'Figures from the translated curve.'} {result.notes.join(' · ')}
           </Txt>
         </View>
       ) : null}

@@ -18,7 +18,7 @@ export function PhysicsVocChart({
   testID?: string;
 }) {
   return (
-    <ChartFrame height={height} testID={testID}>
+    <ChartFrame height={height} testID={testID} download={{ name: 'voc', kind: 'temperature', title: 'Open-circuit voltage against cell temperature' }}>
       {(width) => (
         <VictoryChart width={width} height={height} padding={chartStyle.padding} domainPadding={{ y: 8 }}>
           <VictoryAxis crossAxis={false} offsetY={chartStyle.padding.bottom} label="Cell temperature (°C)" style={chartStyle.axis} tickFormat={tick} tickValues={[-40, -20, 0, 20, 40, 60, 80]} />

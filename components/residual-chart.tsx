@@ -1,28 +1,32 @@
 import { VictoryAxis, VictoryChart, VictoryLine, VictoryScatter } from 'victory-native';
 import { ChartFrame } from '@/components/chart-frame';
+import type { ChartDownload } from '@/components/chart-frame';
 import { chartStyle, tick } from '@/components/chart-style';
 import { theme } from '@/components/theme';
+import { domainOf, edgeAxes } from '@/lib/charts/plot-frame';
+import type { LegendItem } from '@/lib/charts/svg-file';
 
-/** Residuals (measured − model current, in mA) against voltage for one or two fits. */
-export function ResidualChart({ voltage_V, residuals, labels, height = 180, testID }: { voltage_V: number[]; residuals: number[][]; labels: string[]; height?: number; testID?: string }) {
-  const colours = [theme.color.electron, theme.color.hole];
-  const vMin = Math.min(...voltage_V);
-  const vMax = Math.max(...voltage_V);
+const AXES = edgeAxes(chartStyle.padding);
+const COLOURS = [theme.color.electron, theme.color.hole];
+
+/**
+ * Residuals (measured − model current, in mA) against voltage for one or two fits. The zero
+ * line is drawn as data; the axes stay on the plot's edges.
+ */
+export function ResidualChart({ voltage_V, residuals, labels, download, height = 180, testID }: { voltage_V: number[]; residuals: number[][]; labels: string[]; download?: string; height?: number; testID?: string }) {
+  const sets = residuals.map((r) => r.map((y, j) => ({ x: voltage_V[j], y: y * 1000 })));
+  const domain = domainOf([...sets, [{ x: voltage_V[0], y: 0 }]]);
+  const legend: LegendItem[] = labels.map((l, k) => ({ label: l, colour: COLOURS[k % 2], mark: k === 0 ? 'dot' : 'diamond' }));
+  const save: ChartDownload | undefined = download ? { name: download, kind: 'residuals', title: `${download}: residuals` } : undefined;
   return (
-    <ChartFrame height={height} testID={testID} caption={labels.map((l, k) => `${k === 0 ? '●' : '◆'} ${l}`).join('    ')}>
+    <ChartFrame height={height} testID={testID} legend={legend} download={save}>
       {(width) => (
-        <VictoryChart width={width} height={height} padding={chartStyle.padding}>
-          <VictoryAxis label="Voltage (V)" style={chartStyle.axis} tickFormat={tick} tickCount={6} />
-          <VictoryAxis dependentAxis label="Residual (mA)" style={chartStyle.axis} tickFormat={tick} tickCount={5} />
-          <VictoryLine data={[{ x: vMin, y: 0 }, { x: vMax, y: 0 }]} style={{ data: { stroke: theme.color.muted, strokeWidth: 1 } }} />
-          {residuals.map((r, k) => (
-            <VictoryScatter
-              key={labels[k]}
-              data={r.map((y, j) => ({ x: voltage_V[j], y: y * 1000 }))}
-              size={2.5}
-              symbol={k === 0 ? 'circle' : 'diamond'}
-              style={{ data: { fill: colours[k % 2] } }}
-            />
+        <VictoryChart width={width} height={height} padding={chartStyle.padding} domain={domain}>
+          <VictoryAxis {...AXES.x} label="Voltage (V)" style={chartStyle.axis} tickFormat={tick} tickCount={6} />
+          <VictoryAxis dependentAxis {...AXES.y} label="Residual (mA)" style={chartStyle.axis} tickFormat={tick} tickCount={5} />
+          <VictoryLine data={[{ x: domain.x[0], y: 0 }, { x: domain.x[1], y: 0 }]} style={{ data: { stroke: theme.color.muted, strokeWidth: 1 } }} />
+          {sets.map((data, k) => (
+            <VictoryScatter key={labels[k]} data={data} size={2.5} symbol={k === 0 ? 'circle' : 'diamond'} style={{ data: { fill: COLOURS[k % 2] } }} />
           ))}
         </VictoryChart>
       )}

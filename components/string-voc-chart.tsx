@@ -45,6 +45,7 @@ export function StringVocChart({
     <ChartFrame
       height={height}
       testID={testID}
+      download={{ name: `string-${modules}-modules`, kind: 'voc', title: `String Voc of ${modules} modules against ambient temperature` }}
       caption={`— ${modules} modules in series    - - system limit ${vSys_V} V    ● record low ${tMin_C} °C: ${atMin.toFixed(1)} V${over ? ' (above the limit)' : ''}`}
     >
       {(width) => (

@@ -99,9 +99,9 @@ export default function BatchScreen() {
                 <QueryState query={overlay} isEmpty={(d) => d.curves.length === 0} empty="No curves yet.">
                   {(d) => (
                     <>
-                      <OverlayChart curves={d.curves} testID="overlay-chart" />
+                      <OverlayChart curves={d.curves} batchName={b.name} testID="overlay-chart" />
                       <Txt variant="caption">
-                        {d.sampled < d.total ? `${d.sampled} of ${d.total} curves, evenly sampled by device id. ` : `${d.total} curves. `}Flagged devices in amber.
+                        {d.sampled < d.total ? `${d.sampled} of ${d.total} curves, evenly sampled by device id.` : `${d.total} curves.`}
                       </Txt>
                     </>
                   )}

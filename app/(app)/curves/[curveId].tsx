@@ -148,11 +148,10 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
 
       <View style={[{ gap: 16 }, wide && { flexDirection: 'row' }]}>
         <Card title="I-V curve" style={wide ? { flex: 1 } : undefined}>
-          <IvChart mode="iv" measured={c.points} model={singleModel} second={doubleModel} mpp={mpp} testID="iv-chart" />
-          <Txt variant="caption">● measured   — single diode   - - double diode   ◆ maximum power point</Txt>
+          <IvChart mode="iv" measured={c.points} model={singleModel} second={doubleModel} mpp={mpp} download={c.device_id} testID="iv-chart" />
         </Card>
         <Card title="P-V curve" style={wide ? { flex: 1 } : undefined}>
-          <IvChart mode="pv" measured={c.points} model={singleModel} mpp={mpp} testID="pv-chart" />
+          <IvChart mode="pv" measured={c.points} model={singleModel} mpp={mpp} download={c.device_id} testID="pv-chart" />
           <Txt variant="caption">Pmax {fmtParam('pmp_w', m.pmp_w)} from a local fit around the highest measured V·I.</Txt>
         </Card>
       </View>
@@ -168,7 +167,7 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
           <Txt variant="body">The two fits cannot be compared: one of them did not converge.</Txt>
         )}
         {residualSets.length ? (
-          <ResidualChart voltage_V={c.points.voltage_V} residuals={residualSets.map((f) => f.residuals_a)} labels={residualSets.map((f) => (f.model === 'single-diode' ? 'single diode' : 'double diode'))} testID="residual-chart" />
+          <ResidualChart voltage_V={c.points.voltage_V} residuals={residualSets.map((f) => f.residuals_a)} labels={residualSets.map((f) => (f.model === 'single-diode' ? 'single diode' : 'double diode'))} download={c.device_id} testID="residual-chart" />
         ) : null}
       </Card>
 
