@@ -6,19 +6,23 @@ import { Card } from '@/components/card';
 import { Figure } from '@/components/figure';
 import { FormError } from '@/components/form-error';
 import { QueryState } from '@/components/query-state';
+import { ReleaseDialog } from '@/components/release-dialog';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import type { Batch } from '@/lib/api/batches';
-import { passFailUrl, useDecision, useEvaluation, useReviews, useSpecs, useSubmitBatch } from '@/lib/api/quality';
+import { passFailUrl, useDecision, useEvaluation, useReopen, useReviews, useSpecs, useSubmitBatch } from '@/lib/api/quality';
 import type { Me } from '@/lib/api/session';
 import type { Permission } from '@/lib/auth/roles';
 import { downloadFromUrl } from '@/lib/download';
 
-const ACTION_WORDS: Record<string, string> = { submitted: 'submitted for review', released: 'released', held: 'put on hold' };
+const ACTION_WORDS: Record<string, string> = { submitted: 'submitted for review', released: 'released', held: 'put on hold', reopened: 'reopened' };
 
 /**
  * Judging and releasing a batch: pick a spec version, see pass/fail with every reason, the power
  * classes and outliers, download the pass/fail list, submit (test engineer) or decide (QA lead).
+ * Release goes through a confirmation (ReleaseDialog); someone who submitted the batch or uploaded
+ * its curves is told why they cannot release it; a released batch can be reopened with a reason,
+ * and each release's pass/fail list stays downloadable from the record.
  */
 export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
   const specs = useSpecs();
@@ -29,10 +33,17 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
   const evaluation = useEvaluation(b.id, specId);
   const submit = useSubmitBatch(b.id);
   const decide = useDecision(b.id);
+  const reopen = useReopen(b.id);
   const [comment, setComment] = useState('');
+  const [confirming, setConfirming] = useState(false);
+  const [reopening, setReopening] = useState(false);
+  const [reason, setReason] = useState('');
+  const check = reviews.data?.release_check;
   const can = (p: Permission) => me.permissions.includes(p);
   const canSubmit = can('batch:submit') && (b.state === 'open' || b.state === 'on_hold') && !b.archived;
   const canDecide = can('release:decide') && b.state === 'in_review';
+  const canReopen = can('release:decide') && b.state === 'released';
+  const releaseCsv = new Map((reviews.data?.releases ?? []).map((r) => [r.id, r]));
 
   return (
     <Card title="Acceptance and release" testID="review-panel">
@@ -110,7 +121,7 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
           <TextInput
             value={comment}
             onChangeText={setComment}
-            placeholder={canDecide ? 'Comment (needed to hold)' : 'Note for the QA lead (optional)'}
+            placeholder={canDecide ? 'Comment (needed to hold; the release asks for its own)' : 'Note for the QA lead (optional)'}
             placeholderTextColor={theme.color.muted}
             style={styles.input}
             multiline
@@ -122,11 +133,43 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
             {canSubmit ? <Button label="Submit for review" onPress={() => submit.mutate(comment, { onSuccess: () => setComment('') })} busy={submit.isPending} testID="submit-review" /> : null}
             {canDecide ? (
               <>
-                <Button label="Release" onPress={() => decide.mutate({ decision: 'release', specId, comment }, { onSuccess: () => setComment('') })} busy={decide.isPending} disabled={!specId} testID="release" />
+                {check && !check.allowed ? null : <Button label="Release…" onPress={() => { decide.reset(); setConfirming(true); }} disabled={!specId || !evaluation.data || !check} testID="release" />}
                 <Button label="Hold" kind="danger" onPress={() => decide.mutate({ decision: 'hold', specId, comment }, { onSuccess: () => setComment('') })} busy={decide.isPending} disabled={!specId} testID="hold" />
               </>
             ) : null}
           </View>
+          {canDecide && check && !check.allowed ? (
+            <Txt variant="caption" style={styles.notice} testID="same-person">
+              {check.message} You can still put it on hold.
+            </Txt>
+          ) : null}
+          {confirming && evaluation.data ? (
+            <ReleaseDialog
+              evaluation={evaluation.data}
+              busy={decide.isPending}
+              error={decide.error}
+              onClose={() => setConfirming(false)}
+              onConfirm={(text) => decide.mutate({ decision: 'release', specId, comment: text }, { onSuccess: () => { setConfirming(false); setComment(''); } })}
+            />
+          ) : null}
+        </View>
+      ) : canReopen ? (
+        <View style={{ gap: 8 }} testID="reopen">
+          <Txt variant="caption">Released batches are read-only. Reopening makes a new revision: the batch goes on hold for changes and a new submission; this release stays in the record.</Txt>
+          {reopening ? (
+            <>
+              <TextInput value={reason} onChangeText={setReason} placeholder="Why is the released batch reopened? (required)" placeholderTextColor={theme.color.muted} style={styles.input} multiline accessibilityLabel="Reason for reopening" testID="reopen-reason" />
+              <FormError error={reopen.error} />
+              <View style={{ flexDirection: 'row', gap: 8, flexWrap: 'wrap' }}>
+                <Button label="Reopen batch" kind="danger" onPress={() => reopen.mutate(reason.trim(), { onSuccess: () => { setReopening(false); setReason(''); } })} busy={reopen.isPending} disabled={!reason.trim()} testID="reopen-confirm" />
+                <Button label="Cancel" kind="quiet" onPress={() => setReopening(false)} />
+              </View>
+            </>
+          ) : (
+            <View style={{ flexDirection: 'row' }}>
+              <Button label="Reopen…" kind="secondary" onPress={() => setReopening(true)} testID="reopen-start" />
+            </View>
+          )}
         </View>
       ) : b.state === 'in_review' ? (
         <Txt variant="caption">Waiting for a QA lead’s decision.</Txt>
@@ -142,6 +185,11 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
                 {new Date(r.createdAt).toLocaleString()} · {r.actor ?? 'someone'} {ACTION_WORDS[r.action] ?? r.action}
                 {r.counts && r.counts.pass != null ? ` · ${r.counts.pass} pass, ${r.counts.fail} fail, ${r.counts.outliers} outliers` : ''}
                 {r.comment ? ` · “${r.comment}”` : ''}
+                {r.release_id && releaseCsv.get(r.release_id) ? (
+                  <Txt variant="caption" style={{ color: theme.color.electron }} onPress={() => downloadFromUrl(releaseCsv.get(r.release_id!)!.csv_url)} testID={`release-csv-${releaseCsv.get(r.release_id)!.revision}`}>
+                    {` · pass/fail list of revision ${releaseCsv.get(r.release_id)!.revision} (CSV)`}
+                  </Txt>
+                ) : null}
               </Txt>
             ))}
           </View>
@@ -158,5 +206,6 @@ const styles = StyleSheet.create({
   figures: { flexDirection: 'row', flexWrap: 'wrap', gap: 14 },
   classChip: { flexDirection: 'row', gap: 4, alignItems: 'baseline', backgroundColor: theme.color.sunken, borderRadius: 6, paddingHorizontal: 8, paddingVertical: 2 },
   failRow: { flexDirection: 'row', gap: 10, flexWrap: 'wrap', alignItems: 'baseline' },
+  notice: { backgroundColor: theme.color.holeSoft, borderRadius: theme.radius.m, padding: 10, color: theme.color.ink },
   input: { minHeight: 60, borderWidth: 1, borderColor: theme.color.line, borderRadius: theme.radius.m, padding: 10, fontFamily: theme.font.regular, fontSize: 14, color: theme.color.ink, backgroundColor: theme.color.surface },
 });

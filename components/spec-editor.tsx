@@ -4,7 +4,7 @@ import { Button } from '@/components/button';
 import { FormError } from '@/components/form-error';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
-import { useSaveSpec } from '@/lib/api/quality';
+import { specConflictOf, useSaveSpec } from '@/lib/api/quality';
 import type { SpecJson } from '@/lib/api/quality';
 import { PARAM_LABELS, unitOf } from '@/lib/format';
 import { FLAG_CODES } from '@/lib/iv/flag-codes';
@@ -12,32 +12,50 @@ import { PARAM_KEYS } from '@/lib/quality/params';
 import type { ParamKey } from '@/lib/quality/params';
 import { specIssueMessages } from '@/lib/quality/spec';
 import { specSaveSchema } from '@/lib/schemas/quality';
+import { mergeSpecForms, PERCENT_PARAMS, specFormOf } from '@/lib/schemas/spec-form';
+import type { SpecForm } from '@/lib/schemas/spec-form';
 
-/** Ratios are typed as % in the form and stored as fractions, like the engine. */
-const PERCENT = new Set<ParamKey>(['ff', 'efficiency']);
-const toForm = (k: ParamKey, v: number | undefined) => (v == null ? '' : String(PERCENT.has(k) ? Number((v * 100).toPrecision(6)) : v));
 const fromForm = (k: ParamKey, s: string) => {
   const t = s.trim().replace(',', '.');
   if (!t) return undefined;
   const n = Number(t);
-  return Number.isFinite(n) ? (PERCENT.has(k) ? n / 100 : n) : NaN;
+  return Number.isFinite(n) ? (PERCENT_PARAMS.has(k) ? n / 100 : n) : NaN;
 };
 
 /**
  * Edits acceptance limits, power classes and failing flags. Saving makes a new version; the
- * form runs the same zod schema as the server and shows its messages before sending.
+ * form runs the same zod schema as the server and shows its messages before sending. A save
+ * names the version it started from; when someone saved a newer one meanwhile, the editor shows
+ * what they changed and offers to load it with this person's edits applied on top.
  */
 export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson; onSaved: (s: SpecJson) => void; onCancel?: () => void }) {
   const save = useSaveSpec();
-  const [name, setName] = useState(initial?.name ?? '');
-  const [notes, setNotes] = useState(initial?.notes ?? '');
-  const [limits, setLimits] = useState<Record<string, { min: string; max: string }>>(() =>
-    Object.fromEntries(PARAM_KEYS.map((k) => [k, { min: toForm(k, initial?.limits?.[k]?.min), max: toForm(k, initial?.limits?.[k]?.max) }])),
-  );
-  const [step, setStep] = useState(initial?.powerClasses?.step_w != null ? String(initial.powerClasses.step_w) : '');
-  const [basis, setBasis] = useState<'pmp_w' | 'stc_pmp_w'>(initial?.powerClasses?.basis ?? 'stc_pmp_w');
-  const [flags, setFlags] = useState<string[]>(initial?.failFlags ?? ['step', 'fit-failed']);
+  const start = specFormOf(initial);
+  /** The version this edit is based on: the one opened, or the newer one reloaded after a conflict. */
+  const [base, setBase] = useState<SpecJson | undefined>(initial);
+  const [name, setName] = useState(start.name);
+  const [notes, setNotes] = useState(start.notes);
+  const [limits, setLimits] = useState<Record<string, { min: string; max: string }>>(start.limits);
+  const [step, setStep] = useState(start.step);
+  const [basis, setBasis] = useState<'pmp_w' | 'stc_pmp_w'>(start.basis);
+  const [flags, setFlags] = useState<string[]>(start.flags);
   const [issues, setIssues] = useState<string[]>([]);
+  const conflict = specConflictOf(save.error);
+
+  /** Loads the newer version with this person's edits (against the old base) applied on top. */
+  const reapply = () => {
+    if (!conflict) return;
+    const mine: SpecForm = { name, notes, limits, step, basis, flags };
+    const merged = mergeSpecForms(specFormOf(base), mine, specFormOf(conflict.newer.spec));
+    setName(merged.name);
+    setNotes(merged.notes);
+    setLimits(merged.limits);
+    setStep(merged.step);
+    setBasis(merged.basis);
+    setFlags(merged.flags);
+    setBase(conflict.newer.spec);
+    save.reset();
+  };
 
   const submit = () => {
     const lim: Record<string, { min?: number; max?: number }> = {};
@@ -53,7 +71,7 @@ export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson;
       ...(stepW !== undefined ? { powerClasses: { step_w: stepW, basis } } : {}),
       failFlags: flags,
       ...(notes.trim() ? { notes: notes.trim() } : {}),
-      ...(initial ? { familyId: initial.familyId } : {}),
+      ...(base ? { familyId: base.familyId, base_version: base.version } : {}),
     };
     const r = specSaveSchema.safeParse(input);
     if (!r.success) {
@@ -119,9 +137,23 @@ export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson;
           ))}
         </View>
       ) : null}
-      <FormError error={save.error} />
+      {conflict ? (
+        <View style={styles.conflict} accessibilityRole="alert" testID="spec-conflict">
+          <Txt variant="label">Version {conflict.newer.version} was saved while you were editing version {base?.version}</Txt>
+          <Txt variant="body">What changed since version {base?.version}:</Txt>
+          {conflict.newer.changes.map((c) => (
+            <Txt key={c} variant="body">· {c}</Txt>
+          ))}
+          <Txt variant="caption">Reloading shows version {conflict.newer.version} with your own changes applied on top; check it and save again.</Txt>
+          <View style={{ flexDirection: 'row' }}>
+            <Button label={`Reload version ${conflict.newer.version} and re-apply my changes`} kind="secondary" onPress={reapply} testID="spec-reapply" />
+          </View>
+        </View>
+      ) : (
+        <FormError error={save.error} />
+      )}
       <View style={{ flexDirection: 'row', gap: 8, flexWrap: 'wrap' }}>
-        <Button label={initial ? `Save as version ${initial.version + 1}` : 'Save spec'} onPress={submit} busy={save.isPending} testID="spec-save" />
+        <Button label={base ? `Save as version ${base.version + 1}` : 'Save spec'} onPress={submit} busy={save.isPending} disabled={!!conflict} testID="spec-save" />
         {onCancel ? <Button label="Cancel" kind="quiet" onPress={onCancel} /> : null}
       </View>
     </View>
@@ -135,5 +167,6 @@ const styles = StyleSheet.create({
   limitRow: { flexDirection: 'row', alignItems: 'center', gap: 8, minWidth: 320 },
   chip: { paddingHorizontal: 10, paddingVertical: 5, borderRadius: 999, borderWidth: 1, borderColor: theme.color.line },
   chipOn: { backgroundColor: theme.color.ink, borderColor: theme.color.ink },
+  conflict: { backgroundColor: theme.color.holeSoft, borderRadius: theme.radius.m, padding: 12, gap: 4 },
   issues: { backgroundColor: theme.color.dangerSoft, borderRadius: theme.radius.m, padding: 10, gap: 4 },
 });

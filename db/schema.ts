@@ -199,6 +199,8 @@ export const curve = pgTable(
     flagCodes: text('flag_codes').notNull().default(''),
     /** The curve as one comparison record, JSON (server/services/curves.ts comparisonRecord): a 10,000-curve comparison reads one field a curve. */
     record: text('record'),
+    /** SHA-256 (hex) of the uploaded file's bytes, when the curve came from an upload; a release record keeps it. */
+    file_sha256: text('file_sha256'),
     createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   },
@@ -266,3 +268,47 @@ export const batchReview = pgTable(
   },
   (t) => [index('batch_review_batch_idx').on(t.batchId, t.createdAt)],
 );
+
+/**
+ * What a release froze: the spec version, the counts, every device's figures, result and a
+ * SHA-256 of its data, and the pass/fail CSV exactly as served (`csv`, UTF-8 text). Rows are
+ * never changed: a reopened batch keeps its old releases readable and downloadable.
+ */
+export const batchRelease = pgTable(
+  'batch_release',
+  {
+    id: text('id').primaryKey(),
+    organizationId: text('organization_id')
+      .notNull()
+      .references(() => organization.id, { onDelete: 'cascade' }),
+    batchId: text('batch_id')
+      .notNull()
+      .references(() => batch.id, { onDelete: 'cascade' }),
+    /** 1 for the first release, one more after each reopening. */
+    revision: integer('revision').notNull(),
+    /** The batch_review row of the decision. */
+    reviewId: text('review_id').notNull(),
+    specId: text('spec_id'),
+    specName: text('spec_name').notNull(),
+    specVersion: integer('spec_version').notNull(),
+    counts: jsonb('counts').$type<Record<string, number>>().notNull(),
+    /** One entry a device: device_id, curve_id, result, reasons, power_class, figures, points_sha256, file_sha256. */
+    devices: jsonb('devices').$type<Record<string, unknown>[]>().notNull(),
+    csvFileName: text('csv_file_name').notNull(),
+    csv: text('csv').notNull(),
+    csvSha256: text('csv_sha256').notNull(),
+    comment: text('comment'),
+    releasedBy: text('released_by').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index('batch_release_batch_idx').on(t.batchId, t.revision)],
+);
+
+/** An organisation's settings; no row means every default. */
+export const organizationSetting = pgTable('organization_setting', {
+  organizationId: text('organization_id')
+    .primaryKey()
+    .references(() => organization.id, { onDelete: 'cascade' }),
+  /** Separation of duties: whoever submitted a batch or uploaded any of its curves may not release it. */
+  separateRelease: boolean('separate_release').notNull().default(true),
+});

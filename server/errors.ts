@@ -11,9 +11,22 @@ export class HttpError extends Error {
     readonly code: string,
     message: string,
     readonly details?: unknown,
+    /** Further top-level fields of the answer (snake_case), e.g. `newer` of a spec conflict. */
+    readonly extra?: Record<string, unknown>,
   ) {
     super(message);
   }
+}
+
+/** SQLSTATE raised by the database guard of released batches (db/migrations/0006_released_batch_guard.sql). */
+export const RELEASED_BATCH_SQLSTATE = 'QL409';
+
+/** True for the database's refusal to change a released batch (Drizzle wraps the driver's error in `cause`). */
+export function isReleasedBatchError(err: unknown): boolean {
+  for (let e = err as { code?: unknown; cause?: unknown } | undefined, depth = 0; e && depth < 4; e = e.cause as typeof e, depth++) {
+    if (e.code === RELEASED_BATCH_SQLSTATE) return true;
+  }
+  return false;
 }
 
 export const notFound = (what: string) => new HttpError(404, 'not_found', `${what} was not found.`);
@@ -34,7 +47,11 @@ function describeZod(err: ZodError): string {
 export const errorHandler: ErrorRequestHandler = (err, _req, res, next) => {
   if (res.headersSent) return next(err);
   if (err instanceof HttpError) {
-    res.status(err.status).json({ code: err.code, message: err.message, ...(err.details ? { details: err.details } : {}) });
+    res.status(err.status).json({ code: err.code, message: err.message, ...(err.details ? { details: err.details } : {}), ...err.extra });
+    return;
+  }
+  if (isReleasedBatchError(err)) {
+    res.status(409).json({ code: 'batch_released', message: 'This batch is released and read-only; nothing was changed.' });
     return;
   }
   // The engines' own input errors (lib/iv, lib/physics, lib/quality, lib/strings) name the input.

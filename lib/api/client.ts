@@ -8,6 +8,8 @@ export class ApiError extends Error {
     readonly code: string,
     message: string,
     readonly details?: unknown,
+    /** The whole answer, for errors that carry more than `{ code, message }` (e.g. a spec conflict's `newer`). */
+    readonly body?: unknown,
   ) {
     super(message);
   }
@@ -47,7 +49,7 @@ export async function apiFetch<T>(path: string, init: { method?: string; body?: 
   }
   if (!res.ok) {
     const d = (data ?? {}) as { code?: string; message?: string; details?: unknown };
-    throw new ApiError(res.status, d.code ?? `http_${res.status}`, d.message ?? `The server answered ${res.status}.`, d.details);
+    throw new ApiError(res.status, d.code ?? `http_${res.status}`, d.message ?? `The server answered ${res.status}.`, d.details, data);
   }
   return data as T;
 }

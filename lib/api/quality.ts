@@ -1,6 +1,6 @@
 /** Specs, evaluations, reviews and comparisons. */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { apiFetch } from '@/lib/api/client';
+import { ApiError, apiFetch } from '@/lib/api/client';
 import { invalidateBatchReview } from '@/lib/api/invalidate';
 import { qualityKeys, specKeys } from '@/lib/api/keys';
 import type { Batch, DescribeStats } from '@/lib/api/batches';
@@ -31,7 +31,37 @@ export type Evaluation = {
   devices: DeviceEval[];
 };
 
-export type Review = { id: string; action: string; specId: string | null; counts: Record<string, number> | null; comment: string | null; createdAt: string; actor: string | null };
+export type Review = { id: string; action: string; specId: string | null; counts: Record<string, number> | null; comment: string | null; createdAt: string; actor: string | null; release_id: string | null };
+
+/** A release as listed: what it froze, and where its pass/fail CSV stays downloadable. */
+export type ReleaseSummary = {
+  id: string;
+  revision: number;
+  spec_id: string | null;
+  spec_name: string;
+  spec_version: number;
+  counts: Record<string, number>;
+  comment: string | null;
+  released_by: string | null;
+  created_at: string;
+  csv_file_name: string;
+  csv_sha256: string;
+  csv_url: string;
+};
+
+/** Whether the caller may release the batch (separation of duties), with the reason when not. */
+export type ReleaseCheck = { allowed: true } | { allowed: false; code: 'same_person'; message: string };
+
+export type ReviewRecord = { reviews: Review[]; releases: ReleaseSummary[]; release_check: ReleaseCheck };
+
+/** The 409 answer to a spec saved on an outdated version: the newer version and what it changed. */
+export type SpecConflict = { code: 'spec_conflict'; message: string; newer: { id: string; version: number; changes: string[]; spec: SpecJson } };
+
+/** The conflict carried by a failed spec save, if that is what it was. */
+export function specConflictOf(error: unknown): SpecConflict | null {
+  const body = error instanceof ApiError ? (error.body as Partial<SpecConflict> | undefined) : undefined;
+  return body?.code === 'spec_conflict' && body.newer ? (body as SpecConflict) : null;
+}
 
 export type { CompareRow };
 export type Difference = { batchA: string; batchB: string; param: string; difference?: number; ciLow?: number; ciHigh?: number; p?: number; dof?: number; sentence?: string; significant?: boolean; error?: string };
@@ -66,7 +96,7 @@ export function useSpec(id: string) {
 export function useSaveSpec() {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: SpecInput & { familyId?: string }) => apiFetch<SpecJson>('/api/specs', { body: input as Record<string, unknown> }),
+    mutationFn: (input: SpecInput & { familyId?: string; base_version?: number }) => apiFetch<SpecJson>('/api/specs', { body: input as Record<string, unknown> }),
     // A save adds a version with a new id: evaluations and comparisons cached under an existing
     // spec id stay true, only the spec list and details change.
     onSuccess: async () => {
@@ -84,7 +114,7 @@ export function useEvaluation(batchId: string, specId: string) {
 }
 
 export function useReviews(batchId: string) {
-  return useQuery({ queryKey: qualityKeys.reviews(batchId), queryFn: () => apiFetch<{ reviews: Review[] }>(`/api/batches/${encodeURIComponent(batchId)}/reviews`) });
+  return useQuery({ queryKey: qualityKeys.reviews(batchId), queryFn: () => apiFetch<ReviewRecord>(`/api/batches/${encodeURIComponent(batchId)}/reviews`) });
 }
 
 export function useSubmitBatch(batchId: string) {
@@ -103,6 +133,18 @@ export function useDecision(batchId: string) {
   return useMutation({
     mutationFn: (input: { decision: 'release' | 'hold'; specId: string; comment: string }) => apiFetch(`/api/batches/${encodeURIComponent(batchId)}/decision`, { body: input }),
     // Released or on hold shows in the list, the comparison and the curve pages; the decision is mailed.
+    onSuccess: async () => {
+      await invalidateBatchReview(qc, batchId);
+    },
+  });
+}
+
+/** A QA lead reopens a released batch with a written reason; it goes on hold as a new revision. */
+export function useReopen(batchId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (reason: string) => apiFetch(`/api/batches/${encodeURIComponent(batchId)}/reopen`, { body: { reason } }),
+    // Like a decision: the state shows in the list, the comparison and the curve pages; the record grows.
     onSuccess: async () => {
       await invalidateBatchReview(qc, batchId);
     },

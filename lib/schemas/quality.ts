@@ -2,8 +2,16 @@
 import { z } from 'zod';
 import { specInputSchema } from '@/lib/quality/spec';
 
-/** A new spec, or (with familyId) a new version of an existing one. */
-export const specSaveSchema = specInputSchema.extend({ familyId: z.string().min(1).optional() });
+/**
+ * A new spec, or (with familyId) a new version of an existing one; `base_version` is the version
+ * the edit started from, so a save on top of someone else's newer version is refused (409).
+ */
+export const specSaveSchema = specInputSchema
+  .extend({
+    familyId: z.string().min(1).optional(),
+    base_version: z.number({ message: 'Say which version this edit started from.' }).int().min(1).optional(),
+  })
+  .refine((s) => !s.familyId || s.base_version != null, { message: 'Say which version this edit started from.', path: ['base_version'] });
 
 export const submitSchema = z.object({ comment: z.string().trim().max(2000).optional() });
 
@@ -14,6 +22,11 @@ export const decisionSchema = z
     comment: z.string().trim().max(2000).optional().default(''),
   })
   .refine((d) => d.decision !== 'hold' || d.comment.length > 0, { message: 'Say why the batch is held.', path: ['comment'] });
+
+/** Reopening a released batch: the reason is kept in its review record. */
+export const reopenSchema = z.object({
+  reason: z.string({ message: 'Write why the released batch is reopened.' }).trim().min(1, 'Write why the released batch is reopened.').max(2000),
+});
 
 export const compareQuerySchema = z.object({
   batches: z

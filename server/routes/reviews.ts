@@ -1,14 +1,22 @@
 import { Router } from 'express';
-import type { Request } from 'express';
+import type { Request, Response } from 'express';
 import type { Db } from '@/db/client';
-import { decisionSchema, submitSchema } from '@/lib/schemas/quality';
+import { decisionSchema, reopenSchema, submitSchema } from '@/lib/schemas/quality';
 import type { Mailer } from '@/server/mail';
 import { callerOf, requirePermission } from '@/server/permissions';
+import { releaseCsv, releaseDetail, reopenBatch } from '@/server/services/releases';
 import { batchEvaluation, decideBatch, passFailExport, reviewHistory, submitBatch } from '@/server/services/reviews';
 import { validate } from '@/server/validate';
 
 /** The ?spec=<id> of a request, if any. */
 const specParam = (req: Request) => String(req.query.spec ?? '') || undefined;
+
+/** Sends a CSV file as an attachment. */
+function sendCsv(res: Response, csv: { fileName: string; text: string }) {
+  res.setHeader('Content-Type', 'text/csv; charset=utf-8');
+  res.setHeader('Content-Disposition', `attachment; filename="${csv.fileName}"`);
+  res.send(csv.text);
+}
 
 /** Review, release and export routes of a batch (mounted under /api/batches). */
 export function reviewsRouter(db: Db, mailer: Mailer): Router {
@@ -25,15 +33,34 @@ export function reviewsRouter(db: Db, mailer: Mailer): Router {
    * as a formula are escaped. Without ?spec, the spec of the batch's last review decision is used.
    */
   r.get('/:id/pass-fail.csv', requirePermission('batch:read'), async (req, res) => {
-    const csv = await passFailExport(db, callerOf(req).organization.id, String(req.params.id), specParam(req));
-    res.setHeader('Content-Type', 'text/csv; charset=utf-8');
-    res.setHeader('Content-Disposition', `attachment; filename="${csv.fileName}"`);
-    res.send(csv.text);
+    sendCsv(res, await passFailExport(db, callerOf(req).organization.id, String(req.params.id), specParam(req)));
   });
 
-  /** GET /api/batches/:id/reviews — the review record: who did what, when, against which spec, with which counts. */
+  /**
+   * GET /api/batches/:id/reviews — the review record (who did what, when, against which spec, with
+   * which counts; `release_id` on releases), every release (`releases`, newest first) and whether
+   * the caller may release the batch (`release_check`).
+   */
   r.get('/:id/reviews', requirePermission('batch:read'), async (req, res) => {
-    res.json(await reviewHistory(db, callerOf(req).organization.id, String(req.params.id)));
+    res.json(await reviewHistory(db, callerOf(req), String(req.params.id)));
+  });
+
+  /** GET /api/batches/:id/releases/:releaseId — one release as frozen: spec version, counts, each device's figures, result and data hash. */
+  r.get('/:id/releases/:releaseId', requirePermission('batch:read'), async (req, res) => {
+    res.json(await releaseDetail(db, callerOf(req).organization.id, String(req.params.id), String(req.params.releaseId)));
+  });
+
+  /** GET /api/batches/:id/releases/:releaseId/pass-fail.csv — the pass/fail CSV that release shipped, byte for byte. */
+  r.get('/:id/releases/:releaseId/pass-fail.csv', requirePermission('batch:read'), async (req, res) => {
+    sendCsv(res, await releaseCsv(db, callerOf(req).organization.id, String(req.params.id), String(req.params.releaseId)));
+  });
+
+  /**
+   * POST /api/batches/:id/reopen { reason } — a QA lead reopens a released batch with a written
+   * reason; it goes on hold as the next revision, its releases stay readable.
+   */
+  r.post('/:id/reopen', requirePermission('release:decide'), validate(reopenSchema), async (req, res) => {
+    res.json(await reopenBatch(db, callerOf(req), String(req.params.id), (req.body as ReturnType<typeof reopenSchema.parse>).reason));
   });
 
   /** POST /api/batches/:id/submit { comment? } — a test engineer hands a batch to the QA leads (e-mailed). */
@@ -44,7 +71,8 @@ export function reviewsRouter(db: Db, mailer: Mailer): Router {
   /**
    * POST /api/batches/:id/decision { decision: 'release'|'hold', specId, comment } — the QA lead's
    * decision, recorded with the spec version and the pass/fail counts; the submitter is e-mailed.
-   * A released batch becomes read-only.
+   * A release needs a comment when a device fails (400), is refused to the batch's submitter or
+   * uploaders (403 same_person) and writes the release record; the batch becomes read-only.
    */
   r.post('/:id/decision', requirePermission('release:decide'), validate(decisionSchema), async (req, res) => {
     res.json(await decideBatch(db, mailer, callerOf(req), String(req.params.id), req.body as ReturnType<typeof decisionSchema.parse>));

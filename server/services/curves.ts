@@ -13,6 +13,7 @@ import type { refitSchema } from '@/lib/schemas/curves';
 import { HttpError, notFound } from '@/server/errors';
 import type { Analyser } from '@/server/services/analysis-pool';
 import { touchBatch } from '@/server/services/answer-cache';
+import { lockWritableBatch } from '@/server/services/batch-lock';
 import { assertWritable } from '@/server/services/batches';
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
@@ -76,8 +77,8 @@ function nextStamp(): Date {
   return new Date(lastStamp);
 }
 
-/** One analysed curve to store; `id` is chosen by the caller so it can answer before the write. */
-export type CurveToStore = { id: string; fileName: string; analysis: FileAnalysis; replaceIds?: string[] };
+/** One analysed curve to store; `id` is chosen by the caller so it can answer before the write; `fileSha256` of the uploaded bytes when known. */
+export type CurveToStore = { id: string; fileName: string; analysis: FileAnalysis; replaceIds?: string[]; fileSha256?: string };
 
 /**
  * Inserts analysed curves and their fits in one transaction (a multi-row insert: about three
@@ -88,9 +89,10 @@ export async function storeCurves(db: Db, target: { organizationId: string; batc
   if (!items.length) return;
   const replaced = [...new Set(items.flatMap((x) => x.replaceIds ?? []))];
   await db.transaction(async (tx) => {
+    await lockWritableBatch(tx, target.batchId);
     if (replaced.length) await tx.delete(curve).where(and(inArray(curve.id, replaced), eq(curve.batchId, target.batchId)));
     await tx.insert(curve).values(
-      items.map(({ id, fileName, analysis: a }) => {
+      items.map(({ id, fileName, analysis: a, fileSha256 }) => {
         const deviceId = a.curve.meta.deviceId ?? fileName;
         const derived = derivedColumns(a);
         return {
@@ -108,6 +110,7 @@ export async function storeCurves(db: Db, target: { organizationId: string; batc
           stc: a.stc,
           createdBy: target.userId,
           createdAt: nextStamp(),
+          file_sha256: fileSha256 ?? null,
           ...derived,
           record: comparisonRecord({ id, batchId: target.batchId, deviceId }, a, derived),
         };
@@ -228,6 +231,7 @@ export async function curveDetail(db: Db, organizationId: string, id: string) {
 export async function refitCurve(db: Db, analyser: Analyser, who: { organizationId: string; userId: string }, id: string, body: ReturnType<typeof refitSchema.parse>) {
   const row = await loadCurve(db, who.organizationId, id);
   const [b] = await db.select().from(batch).where(eq(batch.id, row.batchId));
+  // An early answer before the fit is computed; the check that counts is the locked one below.
   assertWritable(b);
   const meta: CurveMeta = { ...row.meta };
   const changed: string[] = [];
@@ -247,6 +251,8 @@ export async function refitCurve(db: Db, analyser: Analyser, who: { organization
   const analysis = outcome.analysis;
   const reason = `refit${changed.length ? ': ' + changed.join(', ') : ''}${body.idealities === 'free' ? ' (free idealities)' : ''}`;
   await db.transaction(async (tx) => {
+    // Released while the fit was computed: nothing is written (409).
+    await lockWritableBatch(tx, row.batchId);
     for (const f of analysis.fits) {
       await tx.update(fit).set({ current: false }).where(and(eq(fit.curveId, row.id), eq(fit.model, f.model), eq(fit.current, true)));
     }

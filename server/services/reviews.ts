@@ -4,7 +4,7 @@
  */
 import { and, desc, eq } from 'drizzle-orm';
 import type { Db } from '@/db/client';
-import { batch, batchReview, member, user } from '@/db/schema';
+import { batch, batchRelease, batchReview, member, user } from '@/db/schema';
 import { evaluateBatch, passFailCsv } from '@/lib/quality';
 import type { BatchEvaluation } from '@/lib/quality';
 import type { decisionSchema } from '@/lib/schemas/quality';
@@ -13,9 +13,11 @@ import { HttpError } from '@/server/errors';
 import type { Mailer, OutgoingMail } from '@/server/mail';
 import type { Caller } from '@/server/permissions';
 import { touchBatch } from '@/server/services/answer-cache';
+import { lockBatch } from '@/server/services/batch-lock';
 import { batchJson, loadBatch } from '@/server/services/batches';
 import type { BatchRow } from '@/server/services/batches';
 import { deviceRecords } from '@/server/services/quality';
+import { currentRevision, frozenDevices, latestRelease, releaseCheck, releaseIdsByReview, releasesOf, sha256 } from '@/server/services/releases';
 import { loadSpec } from '@/server/services/specs';
 
 /** The parameters whose outliers an evaluation marks. */
@@ -58,25 +60,47 @@ export async function batchEvaluation(db: Db, organizationId: string, batchId: s
   };
 }
 
-/** The pass/fail CSV (formula-safe, lib/quality/csv.ts) with the high-voltage caution last, and its file name. */
-export async function passFailExport(db: Db, organizationId: string, batchId: string, specId?: string): Promise<{ fileName: string; text: string }> {
-  const b = await loadBatch(db, organizationId, batchId);
-  const { specRow, evaluation } = await evaluate(db, b.id, organizationId, await specFor(db, b.id, specId));
-  const text = passFailCsv(evaluation, { specVersion: `${specRow.name} v${specRow.version}`, releaseState: b.state, params: [...EXPORT_PARAMS] }, [`# ${HV_CAUTION.short}`]);
+/** The pass/fail CSV text of an evaluation and its file name. */
+function passFailFile(b: Pick<BatchRow, 'name'>, specRow: { name: string; version: number }, evaluation: BatchEvaluation, releaseState: string) {
+  const text = passFailCsv(evaluation, { specVersion: `${specRow.name} v${specRow.version}`, releaseState, params: [...EXPORT_PARAMS] }, [`# ${HV_CAUTION.short}`]);
   const safeName = b.name.replace(/[^A-Za-z0-9._-]+/g, '_').slice(0, 60) || 'batch';
   return { fileName: `${safeName}-pass-fail-v${specRow.version}.csv`, text };
 }
 
-/** The review record: who did what, when, against which spec, with which counts; newest first. */
-export async function reviewHistory(db: Db, organizationId: string, batchId: string) {
+/**
+ * The pass/fail CSV (formula-safe, lib/quality/csv.ts) with the high-voltage caution last, and
+ * its file name. A released batch's CSV (without ?spec or with the release's spec) is the one
+ * its release record keeps, byte for byte; otherwise it is computed now.
+ */
+export async function passFailExport(db: Db, organizationId: string, batchId: string, specId?: string): Promise<{ fileName: string; text: string }> {
   const b = await loadBatch(db, organizationId, batchId);
+  if (b.state === 'released') {
+    const release = await latestRelease(db, b.id);
+    if (release && (!specId || specId === release.specId)) return { fileName: release.csvFileName, text: release.csv };
+  }
+  const { specRow, evaluation } = await evaluate(db, b.id, organizationId, await specFor(db, b.id, specId));
+  return passFailFile(b, specRow, evaluation, b.state);
+}
+
+/**
+ * The review record: who did what, when, against which spec, with which counts, newest first;
+ * every release with its frozen CSV's address; and whether the caller may release the batch
+ * (separation of duties), so the screen can say why not instead of offering the button.
+ */
+export async function reviewHistory(db: Db, by: Caller, batchId: string) {
+  const b = await loadBatch(db, by.organization.id, batchId);
   const rows = await db
     .select({ id: batchReview.id, action: batchReview.action, specId: batchReview.specId, counts: batchReview.counts, comment: batchReview.comment, createdAt: batchReview.createdAt, actor: user.name, actorEmail: user.email })
     .from(batchReview)
     .leftJoin(user, eq(user.id, batchReview.actorId))
     .where(eq(batchReview.batchId, b.id))
     .orderBy(desc(batchReview.createdAt));
-  return { reviews: rows };
+  const releaseIds = await releaseIdsByReview(db, rows.map((r) => r.id));
+  return {
+    reviews: rows.map((r) => ({ ...r, release_id: releaseIds.get(r.id) ?? null })),
+    releases: await releasesOf(db, b.id),
+    release_check: await releaseCheck(db, by.organization.id, b.id, by.user.id),
+  };
 }
 
 /** The mail to a QA lead when a batch is submitted for review. */
@@ -151,23 +175,64 @@ export async function submitBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
 
 /**
  * The QA lead's decision on a batch in review, recorded with the spec version and the pass/fail
- * counts; the submitter is e-mailed. A released batch becomes read-only.
+ * counts; the submitter is e-mailed. A release needs a comment when any device fails (400),
+ * is refused to whoever submitted the batch or uploaded its curves (403 `same_person`, while the
+ * organisation separates duties), and freezes what was judged in a release record: each
+ * device's figures, result and data hash, and the pass/fail CSV served from then on. The batch
+ * is judged outside the transaction; inside it, under the batch's row lock, the decision goes
+ * through only if nothing changed the batch since (its revision stamp is the same).
  */
 export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: string, body: ReturnType<typeof decisionSchema.parse>) {
   const b = await loadBatch(db, by.organization.id, batchId);
   if (b.state !== 'in_review') {
     throw new HttpError(409, 'not_in_review', b.state === 'released' ? 'This batch is already released.' : 'Only a batch submitted for review can be released or held.');
   }
+  const releasing = body.decision === 'release';
+  if (releasing) {
+    const check = await releaseCheck(db, by.organization.id, b.id, by.user.id);
+    if (!check.allowed) throw new HttpError(403, check.code, check.message);
+  }
   const { specRow, evaluation, devices } = await evaluate(db, b.id, by.organization.id, body.specId);
   const unfitted = devices.filter((d) => !d.fitted);
-  if (body.decision === 'release' && unfitted.length) {
+  if (releasing && unfitted.length) {
     throw new HttpError(409, 'unfitted_curves', `${unfitted.length} curve(s) have no converged fit; the batch cannot be released.`);
   }
-  const state = body.decision === 'release' ? 'released' : 'on_hold';
   const tally = counts(evaluation);
+  if (releasing && tally.fail > 0 && !body.comment) {
+    throw new HttpError(400, 'comment_required', `comment: ${tally.fail} of ${tally.total} devices fail; write a comment saying why the batch is released anyway.`, { field: 'comment' });
+  }
+  const state = releasing ? 'released' : 'on_hold';
+  const frozen = releasing ? await frozenDevices(db, b.id, evaluation, devices.map((d) => d.curveId)) : [];
+  const csv = releasing ? passFailFile(b, specRow, evaluation, 'released') : null;
+  const reviewId = crypto.randomUUID();
   await db.transaction(async (tx) => {
+    const now = await lockBatch(tx, b.id);
+    if (now.state !== 'in_review') throw new HttpError(409, 'not_in_review', now.state === 'released' ? 'This batch is already released.' : 'This batch is no longer in review.');
+    if (releasing && now.updatedAt.getTime() !== b.updatedAt.getTime()) {
+      throw new HttpError(409, 'batch_changed', 'The batch changed while it was being judged. Look at it again, then decide.');
+    }
+    // The batch was unchanged since it was judged, so the same person check above still holds.
     await touchBatch(tx, b.id, { state });
-    await tx.insert(batchReview).values({ id: crypto.randomUUID(), batchId: b.id, action: body.decision === 'release' ? 'released' : 'held', specId: specRow.id, counts: tally, comment: body.comment || null, actorId: by.user.id });
+    await tx.insert(batchReview).values({ id: reviewId, batchId: b.id, action: releasing ? 'released' : 'held', specId: specRow.id, counts: tally, comment: body.comment || null, actorId: by.user.id });
+    if (csv) {
+      await tx.insert(batchRelease).values({
+        id: crypto.randomUUID(),
+        organizationId: by.organization.id,
+        batchId: b.id,
+        revision: await currentRevision(tx, b.id),
+        reviewId,
+        specId: specRow.id,
+        specName: specRow.name,
+        specVersion: specRow.version,
+        counts: tally,
+        devices: frozen,
+        csvFileName: csv.fileName,
+        csv: csv.text,
+        csvSha256: sha256(csv.text),
+        comment: body.comment || null,
+        releasedBy: by.user.id,
+      });
+    }
   });
   const [submission] = await db
     .select({ email: user.email, name: user.name })

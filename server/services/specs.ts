@@ -49,23 +49,35 @@ export async function specDetail(db: Db, organizationId: string, id: string) {
   return specJson(row, { versions });
 }
 
-/** Saves a new spec (version 1) or, with familyId, the next version of that family; 404 for another organisation's family. */
+/**
+ * Saves a new spec (version 1) or, with familyId, the next version of that family; 404 for
+ * another organisation's family. `base_version` must be the family's newest version: otherwise
+ * someone saved in between, and the answer is 409 `spec_conflict` with that newer version and
+ * what changed from the base to it (lib/quality/spec-changes.ts), so the edit can be re-applied.
+ */
 export async function saveSpec(db: Db, who: { organizationId: string; userId: string }, input: ReturnType<typeof specSaveSchema.parse>) {
-  const { familyId: requested, ...body } = input;
+  const { familyId: requested, base_version: baseVersion, ...body } = input;
   const parsed = parseSpec(body);
   const row = await db.transaction(async (tx) => {
     let familyId: string = crypto.randomUUID();
     let version = 1;
     let previous: Spec | null = null;
     if (requested) {
+      // The family's rows locked: a second save on the same base waits here, then finds the newer version.
       const [first] = await tx
         .select({ id: spec.id })
         .from(spec)
         .where(and(eq(spec.familyId, requested), eq(spec.organizationId, who.organizationId)))
-        .limit(1);
+        .for('update');
       if (!first) throw new HttpError(404, 'not_found', 'That spec was not found.');
       const [{ v }] = await tx.select({ v: max(spec.version) }).from(spec).where(eq(spec.familyId, requested));
       const [newest] = await tx.select().from(spec).where(and(eq(spec.familyId, requested), eq(spec.version, v!)));
+      if (baseVersion !== newest.version) {
+        const [base] = await tx.select().from(spec).where(and(eq(spec.familyId, requested), eq(spec.version, baseVersion ?? 0)));
+        throw new HttpError(409, 'spec_conflict', `Version ${newest.version} of “${newest.name}” was saved after version ${baseVersion ?? '?'}, which this edit started from. Reload it and apply your changes again.`, undefined, {
+          newer: { id: newest.id, version: newest.version, changes: describeChanges(base ? parseSpec(base.body) : null, parseSpec(newest.body)), spec: specJson(newest) },
+        });
+      }
       familyId = requested;
       version = (v ?? 0) + 1;
       previous = parseSpec(newest.body);

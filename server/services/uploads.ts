@@ -3,6 +3,7 @@
  * in the server), the results are checked for duplicates and stored in file order as they
  * arrive, a group of curves per transaction, while later files are still being fitted.
  */
+import { createHash } from 'node:crypto';
 import { eq } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { curve } from '@/db/schema';
@@ -48,16 +49,30 @@ export async function uploadCurves(
 
   const overrides = { tempC: opts.tempC ?? undefined, irradiance_Wm2: opts.irradiance_Wm2 ?? undefined, cells: opts.cells ?? undefined, area_cm2: opts.area_cm2 ?? undefined };
   const jobs = files.map(({ name, bytes }) => {
-    const job: { name: string; outcome?: AnalysisOutcome; done?: Promise<unknown> } = { name };
+    const job: { name: string; sha256?: string; outcome?: AnalysisOutcome; done?: Promise<unknown> } = { name };
     if (!TEXT_EXTENSIONS.test(name)) return job;
+    // Hashed before the bytes go to an analysis thread; a release record keeps the hash of what was received.
+    job.sha256 = createHash('sha256').update(bytes).digest('hex');
     job.done = analyser.analyse({ bytes, fileName: name, overrides, defaults: { cells: b.cells, area_cm2: b.area_cm2 } }).then((o) => (job.outcome = o));
     return job;
   });
   const target = { organizationId: who.organizationId, batchId: b.id, userId: who.userId };
   const group: CurveToStore[] = [];
+  let stored = 0;
   const flush = async () => {
     if (!group.length) return;
-    await storeCurves(db, target, group.splice(0));
+    const items = group.splice(0);
+    try {
+      await storeCurves(db, target, items);
+    } catch (err) {
+      // Released (or archived) while this upload was received or fitted: the state is checked where the curves are written.
+      if (err instanceof HttpError && err.status === 409) {
+        const before = stored ? ` The ${stored} curve(s) stored before that are part of it; the rest was not stored.` : ' Nothing was stored.';
+        throw new HttpError(409, err.code, `${err.message}${before}`);
+      }
+      throw err;
+    }
+    stored += items.length;
     // Hand the event loop back between groups so other requests are served during a big upload.
     await new Promise((r) => setImmediate(r));
   };
@@ -91,7 +106,7 @@ export async function uploadCurves(
     // A curve replacing one still waiting in the group: store that one first, as the upload's order says.
     if (replaceIds.some((id) => group.some((g) => g.id === id))) await flush();
     const curveId = crypto.randomUUID();
-    group.push({ id: curveId, fileName: name, analysis, replaceIds });
+    group.push({ id: curveId, fileName: name, analysis, replaceIds, fileSha256: job.sha256 });
     byDevice.set(deviceId, opts.onDuplicate === 'replace' ? [curveId] : [...already, curveId]);
     results.push({ file: name, accepted: true, curveId, deviceId, ...(replaceIds.length ? { replaced: replaceIds.length } : {}) });
     if (group.length >= STORE_GROUP) await flush();

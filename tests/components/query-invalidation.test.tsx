@@ -10,7 +10,7 @@ import type { ReactNode } from 'react';
 import { batchKeys, curveKeys, useAfterUpload, useCreateBatch, useRefit, useUpdateBatch } from '@/lib/api/batches';
 import { outboxKeys } from '@/lib/api/outbox';
 import { physicsKeys } from '@/lib/api/physics';
-import { qualityKeys, specKeys, useComparison, useDecision, useSaveSpec, useSubmitBatch } from '@/lib/api/quality';
+import { qualityKeys, specKeys, useComparison, useDecision, useReopen, useSaveSpec, useSubmitBatch } from '@/lib/api/quality';
 import { sessionKeys, useRequestPasswordReset, useSignIn } from '@/lib/api/session';
 import { useChangeRole, userKeys } from '@/lib/api/users';
 
@@ -117,6 +117,12 @@ const cases: Case[] = [
   {
     what: 'holding b1',
     run: (wrapper) => mutate(() => useDecision('b1'), { decision: 'hold', specId: 's1', comment: 'Rs too high' }, wrapper),
+    stale: [...batchData, 'b1Reviews', 'outbox'],
+    fresh: ['compareB3', 'b3', 'specList'],
+  },
+  {
+    what: 'reopening b1',
+    run: (wrapper) => mutate(() => useReopen('b1'), 'Customer found a mislabelled cell.', wrapper),
     stale: [...batchData, 'b1Reviews', 'outbox'],
     fresh: ['compareB3', 'b3', 'specList'],
   },

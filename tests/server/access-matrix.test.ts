@@ -11,7 +11,7 @@
  */
 import { eq } from 'drizzle-orm';
 import type { Express } from 'express';
-import { batch, member, organization, user } from '@/db/schema';
+import { batch, member, organization, spec, user } from '@/db/schema';
 import { seedDemoBatches } from '@/server/services/seed';
 import { analyseFile } from '@/lib/analysis/analyse-file';
 import type { FileAnalysis } from '@/lib/analysis/analyse-file';
@@ -53,7 +53,7 @@ const OTHER = 'other-org.example';
 let h: Harness;
 const agents = {} as Record<Role, Agent>;
 const outsiders = {} as Record<'admin' | 'qa_lead', Agent>;
-const ids = { batch: '', curve: '', spec: '', specFamily: '', spareUser: '', org: '', engineer: '' };
+const ids = { batch: '', curve: '', spec: '', specFamily: '', spareUser: '', org: '', engineer: '', released: '', release: '' };
 /** Strings that must never appear in an answer to the other organisation. */
 let ours: string[] = [];
 let analysis: FileAnalysis;
@@ -71,6 +71,22 @@ async function freshBatch(state: 'open' | 'in_review'): Promise<{ batchId: strin
   const curveId = await storeCurve(h.database.db, { organizationId: ids.org, batchId, fileName: 'matrix.csv', analysis, userId: ids.engineer });
   ours.push(batchId, curveId);
   return { batchId, curveId };
+}
+
+/** A batch of ours released by the QA lead through the API (so it has a release record), with its release's id. */
+async function releasedBatch(): Promise<{ batchId: string; releaseId: string }> {
+  const { batchId } = await freshBatch('in_review');
+  const res = await agents.qa_lead.post(`/api/batches/${batchId}/decision`).send({ decision: 'release', specId: ids.spec, comment: 'matrix release' });
+  if (res.status !== 200) throw new Error(`matrix release failed: ${res.status} ${res.text}`);
+  const releaseId = (await agents.qa_lead.get(`/api/batches/${batchId}/reviews`)).body.releases[0].id as string;
+  ours.push(releaseId);
+  return { batchId, releaseId };
+}
+
+/** The newest version of our matrix spec, which a new version must name as its base. */
+async function newestSpecVersion(): Promise<number> {
+  const rows = await h.database.db.select({ v: spec.version }).from(spec).where(eq(spec.familyId, ids.specFamily));
+  return Math.max(...rows.map((r) => r.v));
 }
 
 /** The benchmark cell simulated from its published optimum (../shared/reference-data/README.md), as a CSV file. */
@@ -111,10 +127,20 @@ const ROUTES: RouteCase[] = [
     foreign: 'not_found',
     build: async () => ({ url: `/api/batches/${(await freshBatch('in_review')).batchId}/decision`, body: { decision: 'hold', specId: ids.spec, comment: 'matrix check' } }),
   },
+  { method: 'GET', path: '/api/batches/:id/releases/:releaseId', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.released}/releases/${ids.release}` }) },
+  { method: 'GET', path: '/api/batches/:id/releases/:releaseId/pass-fail.csv', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.released}/releases/${ids.release}/pass-fail.csv` }) },
+  { method: 'POST', path: '/api/batches/:id/reopen', need: 'release:decide', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${(await releasedBatch()).batchId}/reopen`, body: { reason: 'matrix check' } }) },
   { method: 'GET', path: '/api/specs', need: 'spec:read', ok: 200, foreign: 'own', build: async () => ({ url: '/api/specs' }) },
   { method: 'GET', path: '/api/specs/:id', need: 'spec:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/specs/${ids.spec}` }) },
   // A new version of our spec (familyId): the other organisation's QA lead must get 404, not a version of it.
-  { method: 'POST', path: '/api/specs', need: 'spec:write', ok: 201, foreign: 'not_found', build: async () => ({ url: '/api/specs', body: { name: 'Matrix spec', limits: { pmp_w: { min: 0 } }, familyId: ids.specFamily } }) },
+  {
+    method: 'POST',
+    path: '/api/specs',
+    need: 'spec:write',
+    ok: 201,
+    foreign: 'not_found',
+    build: async () => ({ url: '/api/specs', body: { name: 'Matrix spec', limits: { pmp_w: { min: 0 } }, familyId: ids.specFamily, base_version: await newestSpecVersion() } }),
+  },
   { method: 'GET', path: '/api/compare', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/compare?batches=${ids.batch}&param=pmp_w` }) },
   { method: 'GET', path: '/api/curves/:id', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/curves/${ids.curve}` }) },
   { method: 'POST', path: '/api/curves/:id/refit', need: 'batch:write', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/curves/${(await freshBatch('open')).curveId}/refit`, body: { model: 'single' } }) },
@@ -203,6 +229,9 @@ beforeAll(async () => {
   ids.specFamily = spec.body.familyId;
   analysis = analyseFile(cellCsv, { fileName: 'matrix.csv' });
   ours = [ORG, org.id, ids.spareUser, ids.spec, ids.specFamily, ids.curve, ...batches.map((b) => b.id)];
+  const released = await releasedBatch();
+  ids.released = released.batchId;
+  ids.release = released.releaseId;
 });
 afterAll(async () => {
   await h.close();

@@ -87,7 +87,7 @@ describe('specs', () => {
   });
 
   it('a second save makes version 2 with who changed what; version 1 stays as it was', async () => {
-    const res = await qa.post('/api/specs').send({ ...moduleSpec, familyId, limits: { ...moduleSpec.limits, rs_ohm: { max: 0.5 } } });
+    const res = await qa.post('/api/specs').send({ ...moduleSpec, familyId, base_version: 1, limits: { ...moduleSpec.limits, rs_ohm: { max: 0.5 } } });
     expect(res.status).toBe(201);
     expect(res.body.version).toBe(2);
     expect(res.body.changes).toEqual(['rs_ohm: −∞ … 0.6 → −∞ … 0.5']);
