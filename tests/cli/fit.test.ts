@@ -2,10 +2,11 @@ import { spawnSync } from 'node:child_process';
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
 // Each spawn costs about a second (tsx start-up); three in all.
 const REPO = path.resolve(__dirname, '../..');
-const REF_DIR = path.resolve(__dirname, '../../../shared/reference-data');
+const REF_DIR = REFERENCE_DATA_DIR;
 
 function cli(args: string[]) {
   const out = spawnSync('npx', ['tsx', 'cli/main.ts', 'fit', ...args], { cwd: REPO, encoding: 'utf8', timeout: 60_000 });

@@ -2,7 +2,7 @@
  * deviceRecords reads each curve's stored comparison record (one JSON text a curve). It must give
  * exactly what the curve's columns give — the SQL fallback, which is also migration 0004's
  * backfill — and the figures the engine found for the file, for fitted and unfitted curves alike.
- * Curves: the demo files (invented, sample-data/) and the 1986 reference cell (../shared/reference-data).
+ * Curves: the demo files (invented, sample-data/) and the 1986 reference cell (tests/fixtures/reference-data).
  */
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
@@ -15,8 +15,9 @@ import { analyseFile } from '@/lib/analysis/analyse-file';
 import type { FileAnalysis } from '@/lib/analysis/analyse-file';
 import { storeCurves } from '@/server/services/curves';
 import { deviceRecords } from '@/server/services/quality';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
-const REF = path.resolve(__dirname, '../../../shared/reference-data');
+const REF = REFERENCE_DATA_DIR;
 let d: Database;
 const analyses = new Map<string, FileAnalysis>();
 
