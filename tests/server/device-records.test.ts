@@ -7,7 +7,6 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { eq } from 'drizzle-orm';
-import { openDatabase } from '@/db/client';
 import type { Database } from '@/db/client';
 import { batch, curve, organization } from '@/db/schema';
 import { demoCurveFiles } from '@/db/seed';
@@ -16,13 +15,14 @@ import type { FileAnalysis } from '@/lib/analysis/analyse-file';
 import { storeCurves } from '@/server/services/curves';
 import { deviceRecords } from '@/server/services/quality';
 import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
+import { openTestDatabase } from '@/tests/support/test-database';
 
 const REF = REFERENCE_DATA_DIR;
 let d: Database;
 const analyses = new Map<string, FileAnalysis>();
 
 beforeAll(async () => {
-  d = await openDatabase('memory');
+  d = await openTestDatabase();
   await d.db.insert(organization).values({ id: 'org', name: 'Records', slug: 'records', domain: 'records.example', createdAt: new Date() } as typeof organization.$inferInsert);
   await d.db.insert(batch).values({ id: 'b1', organizationId: 'org', name: 'Demo files' });
   const items = demoCurveFiles()

@@ -14,7 +14,7 @@ import path from 'node:path';
 import { eq } from 'drizzle-orm';
 import Papa from 'papaparse';
 import request from 'supertest';
-import { dataDir, openDatabase } from '@/db/client';
+import { dataDir } from '@/db/client';
 import type { Database } from '@/db/client';
 import { curve, member, organization, session, user } from '@/db/schema';
 import { simulateCurve } from '@/lib/iv';
@@ -23,6 +23,7 @@ import { createAuth } from '@/server/auth';
 import { createMailer } from '@/server/mail';
 import { agentFor, signIn, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
+import { openTestDatabase } from '@/tests/support/test-database';
 
 /** The benchmark cell simulated from its published optimum (tests/fixtures/reference-data/README.md). */
 const cellRows = (() => {
@@ -33,7 +34,7 @@ const cellFile = (header = '') => Buffer.from(header + cellRows);
 
 /** An app like the harness's, with the auth settings the harness does not expose. */
 async function customApp(opts: { baseURL: string; sessionSeconds?: number }) {
-  const database: Database = await openDatabase('memory');
+  const database: Database = await openTestDatabase();
   const outboxDir = fs.mkdtempSync(path.join(os.tmpdir(), 'ql-sec-outbox-'));
   const mailer = createMailer({ db: database.db, outboxDir });
   const auth = createAuth({
