@@ -5,19 +5,8 @@
  *  - components: React Native components through the jest-expo preset
  *  - e2e:        headless Chromium against the real server (run by scripts/test.ts after the web export)
  */
-const nodeBabel = [
-  'babel-jest',
-  {
-    configFile: false,
-    babelrc: false,
-    presets: [['@babel/preset-typescript', { allowDeclareFields: true }]],
-    plugins: [
-      '@babel/plugin-transform-modules-commonjs',
-      '@babel/plugin-transform-dynamic-import',
-      'babel-plugin-transform-import-meta',
-    ],
-  },
-];
+// TypeScript and the ES-module packages through esbuild (see the file for why not Babel).
+const nodeTransform = '<rootDir>/tests/support/esbuild-transform.js';
 
 const esmPackages = [
   'better-auth', '@better-auth', 'better-call', 'jose', 'nanostores', '@noble', 'rou3', 'uncrypto',
@@ -32,7 +21,7 @@ const nodeProject = (name, roots) => ({
   testEnvironment: 'node',
   roots,
   testMatch: ['**/*.test.ts'],
-  transform: { '\\.[cm]?[jt]sx?$': nodeBabel },
+  transform: { '\\.[cm]?[jt]sx?$': nodeTransform },
   transformIgnorePatterns: [`/node_modules/(?!(${esmPackages.join('|')})/)`],
   moduleNameMapper: { '^@/(.*)$': '<rootDir>/$1' },
   moduleFileExtensions: ['ts', 'tsx', 'js', 'mjs', 'cjs', 'json'],

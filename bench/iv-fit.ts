@@ -15,6 +15,7 @@ import {
   singleDiodeVoltage,
 } from '@/lib/iv';
 import type { FitResult, IvCurve, SingleDiodeParams } from '@/lib/iv';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
 type Device = { kind: 'cell' | 'module-60' | 'module-72'; params: SingleDiodeParams; cells: number; tempC: number; curve: IvCurve };
 
@@ -97,19 +98,14 @@ export async function benchIvFit(opts: { quick?: boolean } = {}): Promise<Record
     res.filter((r, k) => r.converged && own.results[k].rmse_a !== null && r.rmse_a !== null && r.rmse_a <= (own.results[k].rmse_a as number) * 1.001).length;
 
   // The published reference curves through both solvers.
-  const refDir = path.resolve(__dirname, '../../shared/reference-data');
+  const refDir = REFERENCE_DATA_DIR;
   const reference: Record<string, unknown> = {};
   for (const [file, tempC, cells, target] of [
     ['cell-57mm-33C.csv', 33, 1, 7.7301e-4],
     ['module-36cell-45C.csv', 45, 36, 2.053e-3],
   ] as const) {
-    let curve: IvCurve;
-    try {
-      curve = parseIvText(readFileSync(path.join(refDir, file), 'utf8'), { fileName: file });
-    } catch {
-      reference[file] = 'reference data not found';
-      continue;
-    }
+    // In the repository (tests/fixtures/reference-data): a missing file is an error, not a skip.
+    const curve = parseIvText(readFileSync(path.join(refDir, file), 'utf8'), { fileName: file });
     const a = fitSingleDiode(curve, { tempC, cells });
     const b = fitSingleDiodeMl(curve, { tempC, cells, maxIterations: 20, jacobian: 'analytic' });
     reference[file] = { target_rmse_a: target, own_rmse_a: a.rmse_a, own_evaluations: a.evaluations, ml_rmse_a: b.rmse_a, ml_evaluations: b.evaluations };

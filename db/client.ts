@@ -23,11 +23,13 @@ export function dataDir(): string {
 
 /**
  * Opens the database. `location` is a folder on disk, or 'memory' for a throw-away instance.
+ * `template` (memory only) is a `dumpDataDir()` tarball of a migrated database to start from:
+ * it skips initdb, the slow part of a new PGlite (the tests open one per file).
  */
-export async function openDatabase(location: string | 'memory'): Promise<Database> {
+export async function openDatabase(location: string | 'memory', opts: { template?: Blob } = {}): Promise<Database> {
   let pg: PGlite;
   if (location === 'memory') {
-    pg = new PGlite();
+    pg = opts.template ? new PGlite({ loadDataDir: opts.template }) : new PGlite();
   } else {
     // PGlite does not create parent folders itself.
     mkdirSync(location, { recursive: true });

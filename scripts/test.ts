@@ -46,7 +46,9 @@ function main(): number {
   const results: JestJson[] = [];
   const wantUnit = only.length === 0 || only.includes('unit');
   const wantE2e = only.length === 0 || only.includes('e2e');
-  if (wantUnit) results.push(runJest('unit', ['--selectProjects', 'lib', 'server', 'components']));
+  // Two workers on two cores: jest's default there is one (all suites in a row), which leaves a
+  // core idle whenever a suite waits on a child process, a worker thread or a timer.
+  if (wantUnit) results.push(runJest('unit', ['--selectProjects', 'lib', 'server', 'components', '--maxWorkers=2']));
   if (wantE2e) {
     try {
       ensureChromium();

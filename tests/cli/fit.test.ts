@@ -2,9 +2,10 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { runCli } from '@/tests/cli/built-cli';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
 // The built command line (build/cli.cjs through cli/launch.cjs), as `npm run cli` starts it.
-const REF_DIR = path.resolve(__dirname, '../../../shared/reference-data');
+const REF_DIR = REFERENCE_DATA_DIR;
 
 const cli = (args: string[]) => runCli(['fit', ...args]);
 

@@ -4,6 +4,7 @@ import { run as split } from '@/cli/commands/split';
 import { run as translate } from '@/cli/commands/translate';
 import { KB_EV_PER_K } from '@/lib/physics/constants';
 import { runCli } from '@/tests/cli/built-cli';
+import { REFERENCE_MODULE, referencePath } from '@/tests/support/reference-data';
 
 type Run = (argv: string[]) => Promise<number>;
 
@@ -21,7 +22,7 @@ async function capture(run: Run, argv: string[]): Promise<{ code: number; out: s
   }
 }
 
-const MODULE_CSV = '/work/shared/reference-data/module-36cell-45C.csv';
+const MODULE_CSV = referencePath(REFERENCE_MODULE);
 
 describe('ni command', () => {
   it('prints exactly {ni_cm3, eg_ev, nc_cm3, nv_cm3}; n_i(300 K) within 2 % of 9.65e9 (Altermatt et al. 2003)', async () => {

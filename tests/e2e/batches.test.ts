@@ -8,8 +8,9 @@ import path from 'node:path';
 import { layoutProblems, openBrowser, screenshot, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
 import { startServerProcess } from '@/tests/support/server-process';
 import type { ServerProcess } from '@/tests/support/server-process';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
-const REF = path.resolve(__dirname, '../../../shared/reference-data');
+const REF = REFERENCE_DATA_DIR;
 let srv: ServerProcess;
 let files: string[];
 

@@ -4,8 +4,9 @@
  * names the problem. Built once per test file (the 12 MB and 100,001-row files take a moment).
  *
  * The readable curve all variants start from is the 57 mm cell of Easwarakhanthan et al. (1986),
- * simulated from its published true-current single-diode optimum (../shared/reference-data/
- * README.md: Iph 0.760788 A, I0 3.1068e-7 A, n 1.47727, Rs 0.036547 Ω, Rsh 52.890 Ω, 33 °C, one cell).
+ * simulated from its published true-current single-diode optimum
+ * (tests/fixtures/reference-data/README.md: Iph 0.760788 A, I0 3.1068e-7 A, n 1.47727,
+ * Rs 0.036547 Ω, Rsh 52.890 Ω, 33 °C, one cell).
  */
 import { MAX_DATA_ROWS, MAX_FILE_BYTES, simulateCurve } from '@/lib/iv';
 

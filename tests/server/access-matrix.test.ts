@@ -89,7 +89,7 @@ async function newestSpecVersion(): Promise<number> {
   return Math.max(...rows.map((r) => r.v));
 }
 
-/** The benchmark cell simulated from its published optimum (../shared/reference-data/README.md), as a CSV file. */
+/** The benchmark cell simulated from its published optimum (tests/fixtures/reference-data/README.md), as a CSV file. */
 const cellCsv = (() => {
   const c = simulateCurve({ iph_a: 0.760788, i0_a: 3.1068e-7, n: 1.47727, rs_ohm: 0.036547, rsh_ohm: 52.89 }, { cells: 1, tempC: 33, points: 30 });
   return Buffer.from(['# cell temperature: 33', 'V,I', ...c.voltage_V.map((v, k) => `${v},${c.current_A[k]}`)].join('\n'));

@@ -2,7 +2,7 @@
  * The upload analysers: the worker-thread pool the server uses gives exactly the inline results
  * (same engine, structured-cloned), reports unreadable files as outcomes, shares one queue, and
  * an upload through the app on the pool stores every curve whole, in file order.
- * Reference curves: ../shared/reference-data (Easwarakhanthan et al. 1986, see its README).
+ * Reference curves: tests/fixtures/reference-data (Easwarakhanthan et al. 1986, see its README).
  */
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
@@ -12,8 +12,9 @@ import { SAMPLE_DIR, demoCurveFiles } from '@/server/services/seed';
 import { analyseToOutcome, analysisThreads, inlineAnalyser, workerAnalyser } from '@/server/services/analysis-pool';
 import type { AnalysisRequest } from '@/server/services/analysis-pool';
 import { signUp, startHarness } from '@/tests/server/harness';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
-const REF = path.resolve(__dirname, '../../../shared/reference-data');
+const REF = REFERENCE_DATA_DIR;
 const bytes = (p: string) => new Uint8Array(readFileSync(p));
 const cell: AnalysisRequest = { bytes: bytes(path.join(REF, 'cell-57mm-33C.csv')), fileName: 'cell.csv', overrides: { tempC: 33, cells: 1 } };
 const moduleReq: AnalysisRequest = { bytes: bytes(path.join(REF, 'module-36cell-45C.csv')), fileName: 'module.csv', overrides: { tempC: 45, cells: 36 } };

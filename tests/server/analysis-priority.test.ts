@@ -5,10 +5,11 @@
  */
 import { existsSync, readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 import { workerAnalyser } from '@/server/services/analysis-pool';
 import { demoCurveFiles } from '@/server/services/seed';
 
-const REF = path.resolve(__dirname, '../../../shared/reference-data');
+const REF = REFERENCE_DATA_DIR;
 const cell = { bytes: new Uint8Array(readFileSync(path.join(REF, 'cell-57mm-33C.csv'))), fileName: 'cell.csv', overrides: { tempC: 33, cells: 1 } };
 
 /** The nice value of a thread of this process (Linux: /proc/self/task/<tid>/stat, field 19), null once it has ended. */

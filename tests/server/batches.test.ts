@@ -1,7 +1,7 @@
 /**
  * Batches and uploads through the real app: files in several formats and broken ones in one
  * request, fitted values compared with the published optima of the benchmark data
- * (Easwarakhanthan et al. 1986, as tabulated in ../shared/reference-data/README.md).
+ * (Easwarakhanthan et al. 1986, as tabulated in tests/fixtures/reference-data/README.md).
  */
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
@@ -9,8 +9,9 @@ import { eq } from 'drizzle-orm';
 import { batch, curve, fit, member, user } from '@/db/schema';
 import { signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
-const REF = path.resolve(__dirname, '../../../shared/reference-data');
+const REF = REFERENCE_DATA_DIR;
 const cellCsv = readFileSync(path.join(REF, 'cell-57mm-33C.csv'), 'utf8');
 const moduleCsv = readFileSync(path.join(REF, 'module-36cell-45C.csv'), 'utf8');
 

@@ -7,13 +7,14 @@ import { createServer } from 'node:http';
 import type { Server } from 'node:http';
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 import request from 'supertest';
 import * as quality from '@/server/services/quality';
 import { AnswerCache } from '@/server/services/answer-cache';
 import { signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
 
-const REF = path.resolve(__dirname, '../../../shared/reference-data');
+const REF = REFERENCE_DATA_DIR;
 const cellCsv = readFileSync(path.join(REF, 'cell-57mm-33C.csv'), 'utf8');
 const N = 12;
 

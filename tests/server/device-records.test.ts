@@ -2,12 +2,11 @@
  * deviceRecords reads each curve's stored comparison record (one JSON text a curve). It must give
  * exactly what the curve's columns give — the SQL fallback, which is also migration 0004's
  * backfill — and the figures the engine found for the file, for fitted and unfitted curves alike.
- * Curves: the demo files (invented, sample-data/) and the 1986 reference cell (../shared/reference-data).
+ * Curves: the demo files (invented, sample-data/) and the 1986 reference cell (tests/fixtures/reference-data).
  */
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { eq } from 'drizzle-orm';
-import { openDatabase } from '@/db/client';
 import type { Database } from '@/db/client';
 import { batch, curve, organization } from '@/db/schema';
 import { demoCurveFiles } from '@/server/services/seed';
@@ -15,13 +14,15 @@ import { analyseFile } from '@/lib/analysis/analyse-file';
 import type { FileAnalysis } from '@/lib/analysis/analyse-file';
 import { storeCurves } from '@/server/services/curves';
 import { deviceRecords } from '@/server/services/quality';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
+import { openTestDatabase } from '@/tests/support/test-database';
 
-const REF = path.resolve(__dirname, '../../../shared/reference-data');
+const REF = REFERENCE_DATA_DIR;
 let d: Database;
 const analyses = new Map<string, FileAnalysis>();
 
 beforeAll(async () => {
-  d = await openDatabase('memory');
+  d = await openTestDatabase();
   await d.db.insert(organization).values({ id: 'org', name: 'Records', slug: 'records', domain: 'records.example', createdAt: new Date() } as typeof organization.$inferInsert);
   await d.db.insert(batch).values({ id: 'b1', organizationId: 'org', name: 'Demo files' });
   const items = demoCurveFiles()

@@ -1,14 +1,14 @@
 /**
- * Test harness: the real app on a fresh in-memory PGlite with the committed migrations, the real
- * better-auth, and the mail module writing to a temporary outbox (the only thing faked is the
- * mail server, by the file transport the product itself uses offline).
+ * Test harness: the real app on a fresh in-memory PGlite with the committed migrations (started
+ * from a migrated template, tests/support/test-database.ts), the real better-auth, and the mail
+ * module writing to a temporary outbox (the only thing faked is the mail server, by the file
+ * transport the product itself uses offline).
  */
 import { mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import request from 'supertest';
 import type { Express } from 'express';
-import { openDatabase } from '@/db/client';
 import type { Database } from '@/db/client';
 import { createApp } from '@/server/app';
 import { createAuth } from '@/server/auth';
@@ -16,6 +16,7 @@ import type { Auth } from '@/server/auth';
 import { createMailer } from '@/server/mail';
 import type { Mailer } from '@/server/mail';
 import type { Analyser } from '@/server/services/analysis-pool';
+import { openTestDatabase } from '@/tests/support/test-database';
 
 export const BASE_URL = 'http://localhost:8080';
 
@@ -31,7 +32,7 @@ export type Harness = {
 };
 
 export async function startHarness(opts: { signInPerMinute?: number; analyser?: Analyser; sessionCacheMs?: number } = {}): Promise<Harness> {
-  const database = await openDatabase('memory');
+  const database = await openTestDatabase();
   const outboxDir = mkdtempSync(path.join(os.tmpdir(), 'ql-outbox-'));
   const mailer = createMailer({ db: database.db, outboxDir });
   const auth = createAuth({

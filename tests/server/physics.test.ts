@@ -2,7 +2,7 @@
  * The device-physics API through the real app: every role may use it, another organisation's
  * curve is not found, bad input names itself, and the numbers agree with the library's sources
  * and with arithmetic done by hand here. The benchmark module (Easwarakhanthan et al. 1986, see
- * ../shared/reference-data/README.md) is uploaded and fitted like any user's file.
+ * tests/fixtures/reference-data/README.md) is uploaded and fitted like any user's file.
  */
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
@@ -12,8 +12,9 @@ import { member, user } from '@/db/schema';
 import { circuitCurve, singleDiodeCircuit } from '@/lib/physics';
 import { signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
-const REF = path.resolve(__dirname, '../../../shared/reference-data');
+const REF = REFERENCE_DATA_DIR;
 const moduleCsv = readFileSync(path.join(REF, 'module-36cell-45C.csv'), 'utf8');
 const cellCsv = readFileSync(path.join(REF, 'cell-57mm-33C.csv'), 'utf8');
 

@@ -48,7 +48,7 @@ const gatedAnalyser: Analyser = {
   close: async () => undefined,
 };
 
-/** A cell curve simulated from the benchmark cell's published optimum (../shared/reference-data/README.md), `rs_ohm` changed for a failing device. */
+/** A cell curve simulated from the benchmark cell's published optimum (tests/fixtures/reference-data/README.md), `rs_ohm` changed for a failing device. */
 function cellFile(device: string, scale: number, rs_ohm = 0.036547): Buffer {
   const c = simulateCurve({ iph_a: 0.760788 * scale, i0_a: 3.1068e-7, n: 1.47727, rs_ohm, rsh_ohm: 52.89 }, { cells: 1, tempC: 33, points: 30 });
   return Buffer.from([`# device: ${device}`, '# cell temperature: 33', 'V,I', ...c.voltage_V.map((v, k) => `${v},${c.current_A[k]}`)].join('\n'));

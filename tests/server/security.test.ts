@@ -14,7 +14,7 @@ import path from 'node:path';
 import { eq } from 'drizzle-orm';
 import Papa from 'papaparse';
 import request from 'supertest';
-import { dataDir, openDatabase } from '@/db/client';
+import { dataDir } from '@/db/client';
 import type { Database } from '@/db/client';
 import { curve, member, organization, session, user } from '@/db/schema';
 import { simulateCurve } from '@/lib/iv';
@@ -23,8 +23,9 @@ import { createAuth } from '@/server/auth';
 import { createMailer } from '@/server/mail';
 import { agentFor, signIn, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
+import { openTestDatabase } from '@/tests/support/test-database';
 
-/** The benchmark cell simulated from its published optimum (../shared/reference-data/README.md). */
+/** The benchmark cell simulated from its published optimum (tests/fixtures/reference-data/README.md). */
 const cellRows = (() => {
   const c = simulateCurve({ iph_a: 0.760788, i0_a: 3.1068e-7, n: 1.47727, rs_ohm: 0.036547, rsh_ohm: 52.89 }, { cells: 1, tempC: 33, points: 30 });
   return ['V,I', ...c.voltage_V.map((v, k) => `${v},${c.current_A[k]}`)].join('\n');
@@ -33,7 +34,7 @@ const cellFile = (header = '') => Buffer.from(header + cellRows);
 
 /** An app like the harness's, with the auth settings the harness does not expose. */
 async function customApp(opts: { baseURL: string; sessionSeconds?: number }) {
-  const database: Database = await openDatabase('memory');
+  const database: Database = await openTestDatabase();
   const outboxDir = fs.mkdtempSync(path.join(os.tmpdir(), 'ql-sec-outbox-'));
   const mailer = createMailer({ db: database.db, outboxDir });
   const auth = createAuth({
@@ -245,6 +246,7 @@ describe('uploads never write to the file system', () => {
       expect(row.fileName).toBe(`${tag}-${'abcde'[k]}.csv`);
       expect(row.deviceId).toBe(`${tag}-${'abcde'[k]}`);
     }
+    // repository-check: outside on purpose: the upload names above climb out of the working folder, so look there too.
     const places = [process.cwd(), path.resolve(process.cwd(), '..'), path.resolve(process.cwd(), '../..'), dataDir(), os.tmpdir(), '/tmp', '/'];
     for (const dir of places) {
       const listing = fs.existsSync(dir) ? fs.readdirSync(dir) : [];

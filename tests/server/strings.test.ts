@@ -2,7 +2,7 @@
  * POST /api/strings/size through the real app: a worked example checked by hand, every role,
  * other organisations, bad input, and coefficients taken from uploaded batches (measured across
  * temperatures, or from the fitted diode model of the benchmark module of Easwarakhanthan et al.
- * 1986, as republished in ../shared/reference-data).
+ * 1986, as republished in tests/fixtures/reference-data).
  */
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
@@ -11,8 +11,9 @@ import { member, user } from '@/db/schema';
 import { HV_CAUTION } from '@/lib/strings/cautions';
 import { agentFor, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
-const REF = path.resolve(__dirname, '../../../shared/reference-data');
+const REF = REFERENCE_DATA_DIR;
 const moduleCsv = readFileSync(path.join(REF, 'module-36cell-45C.csv'), 'utf8');
 
 /** The benchmark module with metadata lines in front, optionally with every voltage scaled. */

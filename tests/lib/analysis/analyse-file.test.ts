@@ -4,8 +4,9 @@ import { analyseFile } from '@/lib/analysis/analyse-file';
 import type { FileAnalysis, FileOverrides } from '@/lib/analysis/analyse-file';
 import { compareFits } from '@/lib/analysis/compare-fits';
 import { IvInputError } from '@/lib/iv/errors';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
-const REF_DIR = path.resolve(__dirname, '../../../../shared/reference-data');
+const REF_DIR = REFERENCE_DATA_DIR;
 const CELL_CSV = readFileSync(path.join(REF_DIR, 'cell-57mm-33C.csv'), 'utf8');
 const bytesOf = (text: string) => new TextEncoder().encode(text);
 const single = (r: FileAnalysis) => r.fits.find((f) => f.model === 'single-diode');

@@ -4,8 +4,9 @@ import { analyseCurve } from '@/lib/iv/analyse';
 import { singleDiodeVoltage } from '@/lib/iv/diode';
 import { parseIvText } from '@/lib/iv/parse';
 import type { IvCurve, SingleDiodeParams } from '@/lib/iv/types';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
-const REF_DIR = path.resolve(__dirname, '../../../../shared/reference-data');
+const REF_DIR = REFERENCE_DATA_DIR;
 const readRef = (file: string) => parseIvText(readFileSync(path.join(REF_DIR, file), 'utf8'), { fileName: file });
 
 describe('analyseCurve()', () => {

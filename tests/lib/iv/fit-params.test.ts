@@ -5,13 +5,14 @@
  */
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 import { doubleDiodeParamsOf, isDoubleDiodeFit, isSingleDiodeFit, singleDiodeParamsOf } from '@/lib/iv/fit-params';
 import { fitDoubleDiode } from '@/lib/iv/fit-double';
 import { fitSingleDiode } from '@/lib/iv/fit-single';
 import { parseIvText } from '@/lib/iv/parse';
 import type { FitResult } from '@/lib/iv/types';
 
-const REF_DIR = path.resolve(__dirname, '../../../../shared/reference-data');
+const REF_DIR = REFERENCE_DATA_DIR;
 const FILE = 'cell-57mm-33C.csv';
 const curve = parseIvText(readFileSync(path.join(REF_DIR, FILE), 'utf8'), { fileName: FILE });
 

@@ -7,15 +7,16 @@ import { fitSingleDiode, singleDiodeBounds, singleDiodeProblem } from '@/lib/iv/
 import { keyFigures } from '@/lib/iv/key-figures';
 import { parseIvText } from '@/lib/iv/parse';
 import type { DoubleDiodeParams, FitResult, SingleDiodeParams } from '@/lib/iv/types';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
-const REF_DIR = path.resolve(__dirname, '../../../../shared/reference-data');
+const REF_DIR = REFERENCE_DATA_DIR;
 const readRef = (file: string) => parseIvText(readFileSync(path.join(REF_DIR, file), 'utf8'), { fileName: file });
 const CELL = { file: 'cell-57mm-33C.csv', tempC: 33, cells: 1 };
 const MODULE = { file: 'module-36cell-45C.csv', tempC: 45, cells: 36 };
 const rel = (a: number | null | undefined, b: number) => Math.abs((a as number) / b - 1);
 
 describe('fitSingleDiode() — published benchmark of Easwarakhanthan et al. (1986), true current', () => {
-  // Expected values: ../shared/reference-data/README.md, table "Best values".
+  // Expected values: tests/fixtures/reference-data/README.md, table "Best values".
   // cell, true current: "widely published optimum; reproduced … by an independent least-squares fit and a global search".
   // module, true current: "computed here by an independent fit and global search; no published source found".
   it.each([

@@ -5,8 +5,9 @@ import { IvInputError } from '@/lib/iv/errors';
 import { keyFigures } from '@/lib/iv/key-figures';
 import { parseIvText } from '@/lib/iv/parse';
 import type { IvCurve, SingleDiodeParams } from '@/lib/iv/types';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
-const REF_DIR = path.resolve(__dirname, '../../../../shared/reference-data');
+const REF_DIR = REFERENCE_DATA_DIR;
 const readRef = (file: string) => parseIvText(readFileSync(path.join(REF_DIR, file), 'utf8'), { fileName: file });
 
 // Parameters written for these tests (the cell's published optimum, reference-data README).

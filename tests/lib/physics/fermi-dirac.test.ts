@@ -42,7 +42,7 @@ describe('Fermi–Dirac occupation f(E)', () => {
 });
 
 describe('F½(η): method = series for η ≤ −1, composite Gauss–Legendre above (see lib/physics/fermi-dirac.ts)', () => {
-  // Reference table in /work/shared/reference-data/README.md: arbitrary-precision polylogarithm
+  // Reference table in tests/fixtures/reference-data/README.md: arbitrary-precision polylogarithm
   // F½(η) = −Li_{3/2}(−e^η), 12 significant digits (some entries 11); tolerance covers the rounding.
   it.each([
     [-5, 0.00672195431451],

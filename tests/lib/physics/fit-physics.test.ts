@@ -17,7 +17,7 @@ const rel = (a: number, b: number) => Math.abs(a / b - 1);
 /** Misiakos & Tsamakis (1993) n_i(T) fit, cm⁻³ (memory, checked in materials.test.ts). */
 const niMT = (tempK: number) => 5.29e19 * (tempK / 300) ** 2.54 * Math.exp(-6726 / tempK);
 
-// Reference data README (/work/shared/reference-data): 36-cell module at 45 °C, true-current
+// Reference data README (tests/fixtures/reference-data): 36-cell module at 45 °C, true-current
 // single-diode fit (n per cell).
 const MODULE: SingleDiodeParams = { iph_a: 1.031434, i0_a: 2.6381e-6, n: 1.32217, rs_ohm: 1.235634, rsh_ohm: 821.64 };
 // Same README: 57 mm cell at 33 °C, true-current fit; derived Isc 0.76026 A, Voc 0.57278 V, Pmp 0.31070 W.

@@ -10,6 +10,7 @@ import {
 import { simulateCurve } from '@/lib/iv/diode';
 import { parseIvText } from '@/lib/iv/parse';
 import type { SingleDiodeParams } from '@/lib/iv/types';
+import { REFERENCE_MODULE, readReference } from '@/tests/support/reference-data';
 
 const rel = (a: number, b: number) => Math.abs(a / b - 1);
 
@@ -173,7 +174,7 @@ describe('translated curves with key figures', () => {
   });
 
   it('translates the measured reference module (CSV) to STC, extending the Isc end to 0 V and saying so', () => {
-    const text = readFileSync('/work/shared/reference-data/module-36cell-45C.csv', 'utf8');
+    const text = readReference(REFERENCE_MODULE);
     const curve = parseIvText(text, { overrides: { cells: 36, tempC: 45, irradiance_Wm2: 1000 } });
     const r = translateCurve(curve, {
       method: 'iec60891-1',

@@ -1,0 +1,52 @@
+/**
+ * In-memory PGlite for the API tests, started from a migrated template instead of from nothing.
+ * A new PGlite runs initdb, which costs several CPU-seconds; loading a tarball of an
+ * already-migrated database costs a fraction of that. The template is made once and kept in the
+ * system's temporary folder under a name that hashes the PGlite version and every migration file,
+ * so a changed migration makes a new one. openDatabase still runs the migrations on the copy
+ * (a no-op when the template is current), so a test database is always the committed schema.
+ */
+import { createHash } from 'node:crypto';
+import { existsSync, readdirSync, readFileSync, renameSync, writeFileSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { MIGRATIONS_DIR, openDatabase } from '@/db/client';
+import type { Database } from '@/db/client';
+
+function templateFile(): string {
+  const hash = createHash('sha256');
+  // The package's exports hide its package.json: it sits one folder above the entry (dist/).
+  const pgliteManifest = path.join(path.dirname(require.resolve('@electric-sql/pglite')), '..', 'package.json');
+  hash.update(JSON.parse(readFileSync(pgliteManifest, 'utf8')).version as string);
+  const files = (dir: string): string[] =>
+    readdirSync(dir, { withFileTypes: true }).flatMap((e) => (e.isDirectory() ? files(path.join(dir, e.name)) : [path.join(dir, e.name)]));
+  for (const f of files(MIGRATIONS_DIR).sort()) hash.update(path.relative(MIGRATIONS_DIR, f)).update(readFileSync(f));
+  return path.join(os.tmpdir(), `quasilevel-pglite-template-${hash.digest('hex').slice(0, 16)}.tar`);
+}
+
+/** PGlite reads a tarball by its name (.tar, not gzipped). */
+const asTarball = (bytes: Uint8Array<ArrayBuffer>) => new File([bytes], 'template.tar', { type: 'application/x-tar' });
+
+let template: Promise<File> | null = null;
+
+async function migratedTemplate(): Promise<File> {
+  const file = templateFile();
+  if (existsSync(file)) return asTarball(new Uint8Array(readFileSync(file)));
+  const fresh = await openDatabase('memory');
+  try {
+    const bytes = new Uint8Array(await (await fresh.pg.dumpDataDir('none')).arrayBuffer());
+    // Written under a private name and renamed: another test process may be making it too.
+    const partial = `${file}.${process.pid}.partial`;
+    writeFileSync(partial, bytes);
+    renameSync(partial, file);
+    return asTarball(bytes);
+  } finally {
+    await fresh.close();
+  }
+}
+
+/** A fresh, migrated in-memory database of its own. */
+export async function openTestDatabase(): Promise<Database> {
+  template ??= migratedTemplate();
+  return openDatabase('memory', { template: await template });
+}
