@@ -2,15 +2,19 @@ import { QueryClientProvider } from '@tanstack/react-query';
 import { useFonts } from 'expo-font';
 import { Stack } from 'expo-router';
 import { ActivityIndicator, View } from 'react-native';
+import { AccountWaiting } from '@/components/account-waiting';
 import { theme } from '@/components/theme';
 import { queryClient } from '@/lib/api/query-client';
-import { useMe } from '@/lib/api/session';
+import { useAccount } from '@/lib/api/session';
 
 export { ErrorBoundary } from 'expo-router';
 
-/** Chooses the signed-in or signed-out route group from the session. */
+/**
+ * Chooses the signed-in or signed-out route group from the session; a signed-in person who is not
+ * (yet) an active member — address unverified, request waiting — sees only what to do about it.
+ */
 function Routes() {
-  const me = useMe();
+  const me = useAccount();
   if (me.isPending) {
     return (
       <View style={{ flex: 1, alignItems: 'center', justifyContent: 'center', backgroundColor: theme.color.paper }} testID="app-loading">
@@ -18,6 +22,7 @@ function Routes() {
       </View>
     );
   }
+  if (me.data && me.data.account_state !== 'active') return <AccountWaiting account={me.data} />;
   const signedIn = !!me.data;
   return (
     <Stack screenOptions={{ headerShown: false, contentStyle: { backgroundColor: theme.color.paper } }}>

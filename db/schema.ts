@@ -77,6 +77,11 @@ export const organization = pgTable('organization', {
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   /** E-mail domain (lower case) whose sign-ups join this organisation. Quasilevel's own field. */
   domain: text('domain').notNull().unique(),
+  /**
+   * Whether a newcomer with a verified address at `domain` joins at once (as test engineer);
+   * off, they ask to join and an administrator decides. Quasilevel's own field, set by admins.
+   */
+  joinByDomain: boolean('join_by_domain').notNull().default(false),
 });
 
 export const member = pgTable(
@@ -91,6 +96,8 @@ export const member = pgTable(
       .references(() => user.id, { onDelete: 'cascade' }),
     role: text('role').notNull().default('test_engineer'),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+    /** Set while an administrator has deactivated the member (Quasilevel's own field): no access, records kept. */
+    deactivatedAt: timestamp('deactivated_at', { withTimezone: true }),
   },
   (t) => [uniqueIndex('member_org_user_idx').on(t.organizationId, t.userId), index('member_user_idx').on(t.userId)],
 );
@@ -109,6 +116,65 @@ export const invitation = pgTable('invitation', {
     .notNull()
     .references(() => user.id, { onDelete: 'cascade' }),
 });
+
+// ---------------------------------------------------------------- membership and trust
+/**
+ * A person with a verified address at an organisation's domain asking to join it (when the
+ * organisation does not let its domain join by itself). One per person and organisation.
+ */
+export const membershipRequest = pgTable(
+  'membership_request',
+  {
+    id: text('id').primaryKey(),
+    organizationId: text('organization_id')
+      .notNull()
+      .references(() => organization.id, { onDelete: 'cascade' }),
+    userId: text('user_id')
+      .notNull()
+      .references(() => user.id, { onDelete: 'cascade' }),
+    /** pending | approved | refused */
+    status: text('status').notNull().default('pending'),
+    /** The role granted on approval. */
+    role: text('role'),
+    decidedBy: text('decided_by').references(() => user.id, { onDelete: 'set null' }),
+    decidedAt: timestamp('decided_at', { withTimezone: true }),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [uniqueIndex('membership_request_org_user_idx').on(t.organizationId, t.userId), index('membership_request_org_idx').on(t.organizationId, t.status)],
+);
+
+/** Who changed what about an organisation's members, and when (the admins' users screen lists it). */
+export const auditLog = pgTable(
+  'audit_log',
+  {
+    id: text('id').primaryKey(),
+    organizationId: text('organization_id')
+      .notNull()
+      .references(() => organization.id, { onDelete: 'cascade' }),
+    /** Null when the system acted (a verified newcomer joining by domain or invitation). */
+    actorId: text('actor_id').references(() => user.id, { onDelete: 'set null' }),
+    /** The actor's name and e-mail when it happened; kept when the account goes. */
+    actorName: text('actor_name'),
+    action: text('action').notNull(),
+    subjectUserId: text('subject_user_id').references(() => user.id, { onDelete: 'set null' }),
+    subjectName: text('subject_name'),
+    subjectEmail: text('subject_email'),
+    details: jsonb('details').$type<Record<string, string | boolean | null>>(),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index('audit_log_org_idx').on(t.organizationId, t.createdAt)],
+);
+
+/** Failed sign-ins by e-mail address (lower case), for the per-account slow-down; older rows are pruned. */
+export const signInFailure = pgTable(
+  'sign_in_failure',
+  {
+    id: text('id').primaryKey(),
+    email: text('email').notNull(),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index('sign_in_failure_email_idx').on(t.email, t.createdAt)],
+);
 
 // ---------------------------------------------------------------- product tables
 /** Every message the mail module sent (or wrote to the local outbox), for the admins' Outbox screen. */

@@ -14,12 +14,16 @@ import type { Db } from '@/db/client';
 import type { Auth } from '@/server/auth';
 import { apiNotFound, errorHandler } from '@/server/errors';
 import type { Mailer } from '@/server/mail';
-import { CallerCache, invalidatesCallers, requireSession } from '@/server/permissions';
+import { CallerCache, guardOrganizationEndpoints, invalidatesCallers, requireAccount, requireSession } from '@/server/permissions';
+import type { Account } from '@/server/permissions';
 import { batchesRouter } from '@/server/routes/batches';
 import { compareRouter } from '@/server/routes/compare';
 import { curvesRouter } from '@/server/routes/curves';
 import { healthRouter } from '@/server/routes/health';
+import { invitationsRouter } from '@/server/routes/invitations';
+import { membershipRequestsRouter } from '@/server/routes/membership-requests';
 import { meRouter } from '@/server/routes/me';
+import { organizationRouter } from '@/server/routes/organization';
 import { physicsRouter } from '@/server/routes/physics';
 import { reviewsRouter } from '@/server/routes/reviews';
 import { specsRouter } from '@/server/routes/specs';
@@ -60,16 +64,23 @@ export function createApp(deps: AppDeps): Express {
   const assetCompression = compression();
   app.use((req, res, next) => (req.path.startsWith('/api/') ? apiCompression : assetCompression)(req, res, next));
 
-  const callers = new CallerCache(deps.sessionCacheMs ?? 0);
+  const callers = new CallerCache<Account>(deps.sessionCacheMs ?? 0);
   const authHandler = toNodeHandler(auth);
+  app.use('/api/auth/organization', guardOrganizationEndpoints(auth, db, callers));
   app.all('/api/auth/{*splat}', invalidatesCallers(callers), (req, res) => authHandler(req, res));
 
   app.use('/api', express.json({ limit: '1mb' }));
   app.use('/api/health', healthRouter());
 
   const session = requireSession(auth, db, callers);
-  app.use('/api/me', session, meRouter());
-  app.use('/api/users', invalidatesCallers(callers), session, usersRouter(db, auth));
+  // Public links in mails point at the address better-auth was configured with.
+  const baseUrl = String(auth.options.baseURL ?? '').replace(/\/$/, '');
+  app.use('/api/me', requireAccount(auth, db, callers), meRouter(db));
+  // Membership changes clear the resolved callers, like role changes.
+  app.use('/api/users', invalidatesCallers(callers), session, usersRouter(db));
+  app.use('/api/invitations', invalidatesCallers(callers), session, invitationsRouter(db, deps.mailer, baseUrl));
+  app.use('/api/membership-requests', invalidatesCallers(callers), session, membershipRequestsRouter(db, deps.mailer, baseUrl));
+  app.use('/api/organization', session, organizationRouter(db));
   app.use('/api/outbox', session, outboxRouter(db));
   app.use('/api/batches', session, batchesRouter(db, deps.analyser), reviewsRouter(db, deps.mailer));
   app.use('/api/specs', session, specsRouter(db));

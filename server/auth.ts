@@ -1,19 +1,27 @@
 /**
  * Sign-in, sessions and organisation roles through better-auth (e-mail + password, the
  * organization plugin with Quasilevel's own roles through its access control).
- * Sign-up joins the organisation that owns the e-mail's domain as test engineer, or founds a new
- * organisation for a new domain and becomes its admin.
+ *
+ * Trust: a sign-up creates an unverified account and mails a verification link; sign-up answers
+ * the same whether or not the address has an account (its owner is mailed instead). Only a
+ * verified address is placed in an organisation (server/services/membership.ts). Passwords follow
+ * lib/auth/password.ts on sign-up, reset and change; a reset ends every session of the account;
+ * failed sign-ins slow down per account (server/services/sign-in-throttle.ts) and per client.
  */
 import { betterAuth } from 'better-auth';
 import { drizzleAdapter } from 'better-auth/adapters/drizzle';
+import { APIError, createAuthMiddleware, isAPIError } from 'better-auth/api';
 import { organization as organizationPlugin } from 'better-auth/plugins';
 import { createAccessControl } from 'better-auth/plugins/access';
-import { eq } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import * as schema from '@/db/schema';
+import { loadPasswordChecker, passwordProblem, PASSWORD_MAX_LENGTH, PASSWORD_MIN_LENGTH } from '@/lib/auth/password';
 import { ROLE_PERMISSIONS, ROLES, STATEMENTS } from '@/lib/auth/roles';
 import type { Role } from '@/lib/auth/roles';
 import type { Mailer } from '@/server/mail';
+import { existingAccountMail, verifyEmailMail } from '@/server/services/account-mails';
+import { placeVerifiedUser } from '@/server/services/membership';
+import { clearSignInFailures, recordSignInFailure, signInBlockedUntil } from '@/server/services/sign-in-throttle';
 
 /** better-auth's own organisation statements, granted to our admin role only. */
 const ORG_STATEMENTS = {
@@ -56,34 +64,14 @@ export type AuthConfig = {
   logLevel?: 'debug' | 'info' | 'warn' | 'error';
 };
 
-/** Lower-cased domain of an e-mail address, or null when it has none. */
-export function emailDomain(email: string): string | null {
-  const at = email.lastIndexOf('@');
-  if (at < 0) return null;
-  const d = email.slice(at + 1).trim().toLowerCase();
-  return d || null;
-}
+/** Where the verification link leads after it has run: the app (signed in) or the sign-in screen with a message. */
+export const VERIFIED_CALLBACK = '/sign-in?verified=1';
 
-/** Makes a URL-safe slug from a domain; uniqueness is the domain's. */
-function slugFor(domain: string): string {
-  return domain.replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '') || 'org';
-}
+/** The endpoints that set a new password, and the body field holding it. */
+const NEW_PASSWORD_FIELD: Record<string, string> = { '/sign-up/email': 'password', '/reset-password': 'newPassword', '/change-password': 'newPassword' };
 
-/** Puts a new user into the organisation of their e-mail domain (or founds it). */
-export async function placeNewUser(db: Db, u: { id: string; email: string }): Promise<void> {
-  const domain = emailDomain(u.email);
-  if (!domain) return;
-  await db.transaction(async (tx) => {
-    const [org] = await tx.select().from(schema.organization).where(eq(schema.organization.domain, domain));
-    if (org) {
-      await tx.insert(schema.member).values({ id: crypto.randomUUID(), organizationId: org.id, userId: u.id, role: 'test_engineer' });
-      return;
-    }
-    const orgId = crypto.randomUUID();
-    await tx.insert(schema.organization).values({ id: orgId, name: domain, slug: slugFor(domain), domain });
-    await tx.insert(schema.member).values({ id: crypto.randomUUID(), organizationId: orgId, userId: u.id, role: 'admin' });
-  });
-}
+type Body = Record<string, unknown> | undefined;
+const text = (v: unknown) => (typeof v === 'string' ? v : '');
 
 export function createAuth(cfg: AuthConfig) {
   return buildAuth(cfg) as Auth;
@@ -100,8 +88,15 @@ function buildAuth(cfg: AuthConfig) {
     database: drizzleAdapter(cfg.db, { provider: 'pg', schema }),
     emailAndPassword: {
       enabled: true,
-      minPasswordLength: 8,
-      maxPasswordLength: 128,
+      minPasswordLength: PASSWORD_MIN_LENGTH,
+      maxPasswordLength: PASSWORD_MAX_LENGTH,
+      // No session at sign-up: the verification link signs in. This also makes better-auth answer a
+      // sign-up with a taken address exactly like a new one, and call onExistingUserSignUp.
+      autoSignIn: false,
+      revokeSessionsOnPasswordReset: true,
+      onExistingUserSignUp: async ({ user }) => {
+        await cfg.mailer.send({ to: user.email, ...existingAccountMail(user.name, cfg.baseURL) });
+      },
       resetPasswordTokenExpiresIn: 60 * 60,
       sendResetPassword: async ({ user, url }) => {
         await cfg.mailer.send({
@@ -121,6 +116,56 @@ function buildAuth(cfg: AuthConfig) {
         });
       },
     },
+    emailVerification: {
+      sendOnSignUp: true,
+      autoSignInAfterVerification: true,
+      expiresIn: 24 * 60 * 60,
+      sendVerificationEmail: async ({ user, url }) => {
+        // One landing place whatever the client asked for (the link is opened in a fresh tab).
+        const link = new URL(url);
+        link.searchParams.set('callbackURL', VERIFIED_CALLBACK);
+        await cfg.mailer.send({ to: user.email, ...verifyEmailMail(user.name, link.toString()) });
+      },
+      afterEmailVerification: async (user) => {
+        await placeVerifiedUser(cfg.db, cfg.mailer, cfg.baseURL, user);
+      },
+    },
+    hooks: {
+      before: createAuthMiddleware(async (ctx) => {
+        const body = ctx.body as Body;
+        const field = NEW_PASSWORD_FIELD[ctx.path];
+        if (field && typeof body?.[field] === 'string') {
+          const problem = passwordProblem(await loadPasswordChecker(), body[field] as string, [text(body.email), text(body.name)].filter(Boolean));
+          if (problem) throw new APIError('BAD_REQUEST', { code: 'WEAK_PASSWORD', message: problem });
+        }
+        if (ctx.path === '/sign-in/email' && text(body?.email)) {
+          const until = await signInBlockedUntil(cfg.db, text(body?.email));
+          if (until) {
+            const seconds = Math.max(1, Math.ceil((until.getTime() - Date.now()) / 1000));
+            throw new APIError(
+              'TOO_MANY_REQUESTS',
+              {
+                code: 'ACCOUNT_SLOWED_DOWN',
+                message: `Too many failed sign-ins for this e-mail address. Try again in ${Math.ceil(seconds / 60)} minute${seconds > 60 ? 's' : ''} (after ${until.toISOString().slice(11, 16)} UTC).`,
+                retry_at: until.toISOString(),
+              },
+              { 'Retry-After': String(seconds) },
+            );
+          }
+        }
+      }),
+      after: createAuthMiddleware(async (ctx) => {
+        if (ctx.path !== '/sign-in/email') return;
+        const email = text((ctx.body as Body)?.email);
+        if (!email) return;
+        const returned = ctx.context.returned;
+        if (isAPIError(returned)) {
+          if (returned.statusCode === 401) await recordSignInFailure(cfg.db, email);
+        } else {
+          await clearSignInFailures(cfg.db, email);
+        }
+      }),
+    },
     session: {
       expiresIn: cfg.sessionSeconds ?? 60 * 60 * 12,
       updateAge: 60 * 60,
@@ -138,15 +183,6 @@ function buildAuth(cfg: AuthConfig) {
       ipAddress: { ipAddressHeaders: ['x-quasilevel-client-ip'] },
       defaultCookieAttributes: { httpOnly: true, sameSite: 'lax' },
     },
-    databaseHooks: {
-      user: {
-        create: {
-          after: async (u) => {
-            await placeNewUser(cfg.db, u);
-          },
-        },
-      },
-    },
     plugins: [
       organizationPlugin({
         ac,
@@ -161,11 +197,4 @@ function buildAuth(cfg: AuthConfig) {
   });
 }
 
-type BaseAuth = ReturnType<typeof buildAuth>;
-
-/** The organization plugin's endpoint we call from our own routes (its inferred type is lost in the generic). */
-type OrgApi = {
-  updateMemberRole: (req: { headers: Headers; body: { memberId: string; role: string; organizationId: string } }) => Promise<unknown>;
-};
-
-export type Auth = BaseAuth & { api: BaseAuth['api'] & OrgApi };
+export type Auth = ReturnType<typeof buildAuth>;

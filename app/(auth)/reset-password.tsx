@@ -8,6 +8,7 @@ import { FormError } from '@/components/form-error';
 import { TextField } from '@/components/text-field';
 import { Txt } from '@/components/txt';
 import { useResetPassword } from '@/lib/api/session';
+import { PASSWORD_RULE_TEXT } from '@/lib/auth/password';
 import { resetPasswordSchema } from '@/lib/schemas/auth';
 
 export default function ResetPassword() {
@@ -34,14 +35,14 @@ export default function ResetPassword() {
       <Txt variant="title">Choose a new password</Txt>
       {reset.isSuccess ? (
         <>
-          <Txt variant="body">Your password is changed. Sign in with the new one.</Txt>
+          <Txt variant="body">Your password is changed, and every session of your account has been signed out. Sign in with the new password.</Txt>
           <Link href="/sign-in">
             <Txt variant="label" style={{ textDecorationLine: 'underline' }}>Sign in</Txt>
           </Link>
         </>
       ) : (
         <>
-          <TextField control={control} name="password" label="New password" hint="At least 8 characters." secureTextEntry autoComplete="new-password" onSubmitEditing={submit} />
+          <TextField control={control} name="password" label="New password" hint={PASSWORD_RULE_TEXT} secureTextEntry autoComplete="new-password" onSubmitEditing={submit} />
           <FormError error={reset.error} />
           <Button label="Set password" onPress={submit} busy={reset.isPending} />
         </>

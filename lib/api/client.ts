@@ -59,6 +59,8 @@ export function toUserMessage(error: unknown): string {
   if (error instanceof ApiError) {
     if (error.status === 401 && !error.message) return 'Your session has ended. Sign in again.';
     if (error.code === 'INVALID_EMAIL_OR_PASSWORD') return 'That e-mail and password do not match an account.';
+    // The per-account slow-down says when to try again; the per-client limit does not.
+    if (error.code === 'ACCOUNT_SLOWED_DOWN') return error.message;
     if (error.code === 'TOO_MANY_REQUESTS' || error.status === 429) return 'Too many attempts. Wait a minute and try again.';
     return error.message;
   }

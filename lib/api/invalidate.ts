@@ -3,7 +3,7 @@
  * lib/api. Invalidation marks queries stale; only those on screen fetch again at once.
  */
 import type { Query, QueryClient } from '@tanstack/react-query';
-import { batchKeys, comparedBatches, curveKeys, outboxKeys, qualityKeys } from '@/lib/api/keys';
+import { batchKeys, comparedBatches, curveKeys, outboxKeys, qualityKeys, sessionKeys, userKeys } from '@/lib/api/keys';
 
 /**
  * A batch's figures changed (curves added or refitted): the batch list (counts, mean Pmax), all
@@ -48,4 +48,17 @@ export async function invalidateBatchData(qc: QueryClient, batchId: string): Pro
 /** A review request or decision was recorded and mailed: the batch as a whole and the outbox. */
 export async function invalidateBatchReview(qc: QueryClient, batchId: string): Promise<void> {
   await Promise.all([invalidateBatchData(qc, batchId), qc.invalidateQueries({ queryKey: outboxKeys.all })]);
+}
+
+/**
+ * A membership change (role, invitation, request answered, deactivation, removal, the joining
+ * setting): everything under the users root (members, invitations, requests, the record), the
+ * session (an admin may have changed their own role) and the outbox (most of them mail someone).
+ */
+export async function invalidateMembership(qc: QueryClient): Promise<void> {
+  await Promise.all([
+    qc.invalidateQueries({ queryKey: userKeys.all }),
+    qc.invalidateQueries({ queryKey: sessionKeys.me() }),
+    qc.invalidateQueries({ queryKey: outboxKeys.all }),
+  ]);
 }

@@ -69,9 +69,14 @@ export const specKeys = {
   detail: (id: string) => [...specKeys.all, 'detail', id] as const,
 };
 
+/** Everything the admins' users screen holds: members, invitations, requests to join, the setting, the record. */
 export const userKeys = {
   all: ['users'] as const,
   list: () => [...userKeys.all, 'list'] as const,
+  invitations: () => [...userKeys.all, 'invitations'] as const,
+  requests: () => [...userKeys.all, 'requests'] as const,
+  organisation: () => [...userKeys.all, 'organisation'] as const,
+  audit: () => [...userKeys.all, 'audit'] as const,
 };
 
 export const outboxKeys = {

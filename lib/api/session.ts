@@ -6,29 +6,51 @@ import { ApiError, apiFetch } from '@/lib/api/client';
 import { outboxKeys, sessionKeys } from '@/lib/api/keys';
 import type { SignInInput, SignUpInput } from '@/lib/schemas/auth';
 
-export type Me = {
+/** Where a signed-in person stands (GET /api/me `account_state`). */
+export type AccountState = 'active' | 'email_unverified' | 'awaiting_approval' | 'refused' | 'no_organisation' | 'deactivated';
+
+/** GET /api/me as it comes: any signed-in person, verified or not, member or not. */
+export type Account = {
+  user: { id: string; name: string; email: string; role: Role | null };
+  organization: { id: string; name: string; domain: string } | null;
+  role: Role | null;
+  permissions: Permission[];
+  email_verified: boolean;
+  account_state: AccountState;
+  join_request: { status: string; organization_name: string; created_at: string } | null;
+};
+
+/** An active, verified member: what the signed-in screens work with. */
+export type Me = Account & {
   user: { id: string; name: string; email: string; role: Role };
   organization: { id: string; name: string; domain: string };
   role: Role;
-  permissions: Permission[];
+  account_state: 'active';
 };
 
 export { sessionKeys };
 
-/** The signed-in user, or null when signed out (401). */
+function isMember(a: Account | null): a is Me {
+  return !!a && a.account_state === 'active' && !!a.organization && !!a.role;
+}
+
+async function fetchAccount(): Promise<Account | null> {
+  try {
+    return await apiFetch<Account>('/api/me');
+  } catch (err) {
+    if (err instanceof ApiError && err.status === 401) return null;
+    throw err;
+  }
+}
+
+/** The signed-in person whatever their state, or null when signed out (401). */
+export function useAccount() {
+  return useQuery({ queryKey: sessionKeys.me(), queryFn: fetchAccount, staleTime: 60_000 });
+}
+
+/** The signed-in active member, or null (signed out, or not yet let in: see useAccount). */
 export function useMe() {
-  return useQuery({
-    queryKey: sessionKeys.me(),
-    queryFn: async (): Promise<Me | null> => {
-      try {
-        return await apiFetch<Me>('/api/me');
-      } catch (err) {
-        if (err instanceof ApiError && err.status === 401) return null;
-        throw err;
-      }
-    },
-    staleTime: 60_000,
-  });
+  return useQuery({ queryKey: sessionKeys.me(), queryFn: fetchAccount, staleTime: 60_000, select: (a) => (isMember(a) ? a : null) });
 }
 
 /**
@@ -48,11 +70,17 @@ export function useSignIn() {
   });
 }
 
+/** Sign-up signs nobody in: the answer is the same for a new and a taken address, and a mail follows. */
 export function useSignUp() {
-  const qc = useQueryClient();
   return useMutation({
     mutationFn: (input: SignUpInput) => apiFetch('/api/auth/sign-up/email', { body: input }),
-    onSuccess: () => afterAccountChange(qc),
+  });
+}
+
+/** Mails a new verification link to the signed-in person's address. */
+export function useResendVerification() {
+  return useMutation({
+    mutationFn: (email: string) => apiFetch('/api/auth/send-verification-email', { body: { email } }),
   });
 }
 

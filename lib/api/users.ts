@@ -1,10 +1,16 @@
-/** Organisation users and roles (admins). */
+/** The organisation's members, invitations, requests to join, joining setting and record (admins). */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { apiFetch } from '@/lib/api/client';
-import { sessionKeys, userKeys } from '@/lib/api/keys';
+import { invalidateMembership } from '@/lib/api/invalidate';
+import { userKeys } from '@/lib/api/keys';
+import type { AuditEntryJson } from '@/lib/auth/audit';
 import type { Role } from '@/lib/auth/roles';
+import type { InviteInput, RequestDecisionInput } from '@/lib/schemas/auth';
 
-export type OrgUser = { id: string; name: string; email: string; role: Role; memberId: string; joinedAt: string };
+export type OrgUser = { id: string; name: string; email: string; role: Role; memberId: string; joinedAt: string; active: boolean; deactivated_at: string | null };
+export type Invitation = { id: string; email: string; role: Role; expires_at: string; created_at: string; invited_by: string | null };
+export type JoinRequest = { id: string; user_id: string; name: string; email: string; created_at: string };
+export type OrganisationSettings = { id: string; name: string; domain: string; join_by_domain: boolean };
 
 export { userKeys };
 
@@ -12,14 +18,59 @@ export function useUsers() {
   return useQuery({ queryKey: userKeys.list(), queryFn: () => apiFetch<{ users: OrgUser[] }>('/api/users') });
 }
 
-export function useChangeRole() {
+export function useInvitations() {
+  return useQuery({ queryKey: userKeys.invitations(), queryFn: () => apiFetch<{ invitations: Invitation[] }>('/api/invitations') });
+}
+
+export function useJoinRequests() {
+  return useQuery({ queryKey: userKeys.requests(), queryFn: () => apiFetch<{ requests: JoinRequest[] }>('/api/membership-requests') });
+}
+
+export function useOrganisationSettings() {
+  return useQuery({ queryKey: userKeys.organisation(), queryFn: () => apiFetch<OrganisationSettings>('/api/organization') });
+}
+
+export function useAudit() {
+  return useQuery({ queryKey: userKeys.audit(), queryFn: () => apiFetch<{ entries: AuditEntryJson[] }>('/api/organization/audit') });
+}
+
+/** A mutation that changes membership: afterwards the users screen, the session and the outbox are stale. */
+function useMembershipMutation<V>(fn: (v: V) => Promise<unknown>) {
   const qc = useQueryClient();
-  return useMutation({
-    mutationFn: (input: { userId: string; role: Role }) =>
-      apiFetch(`/api/users/${encodeURIComponent(input.userId)}/role`, { method: 'PATCH', body: { role: input.role } }),
-    // An admin may change their own role, and with it what /api/me permits (the server drops its cached caller).
-    onSuccess: async () => {
-      await Promise.all([qc.invalidateQueries({ queryKey: userKeys.all }), qc.invalidateQueries({ queryKey: sessionKeys.me() })]);
-    },
+  return useMutation({ mutationFn: fn, onSuccess: () => invalidateMembership(qc) });
+}
+
+export function useChangeRole() {
+  return useMembershipMutation((input: { userId: string; role: Role }) =>
+    apiFetch(`/api/users/${encodeURIComponent(input.userId)}/role`, { method: 'PATCH', body: { role: input.role } }),
+  );
+}
+
+export function useSetMemberActive() {
+  return useMembershipMutation((input: { userId: string; active: boolean }) =>
+    apiFetch(`/api/users/${encodeURIComponent(input.userId)}/active`, { method: 'PATCH', body: { active: input.active } }),
+  );
+}
+
+export function useRemoveMember() {
+  return useMembershipMutation((userId: string) => apiFetch(`/api/users/${encodeURIComponent(userId)}`, { method: 'DELETE' }));
+}
+
+export function useInvite() {
+  return useMembershipMutation((input: InviteInput) => apiFetch('/api/invitations', { body: input }));
+}
+
+export function useCancelInvitation() {
+  return useMembershipMutation((id: string) => apiFetch(`/api/invitations/${encodeURIComponent(id)}`, { method: 'DELETE' }));
+}
+
+export function useDecideRequest() {
+  return useMembershipMutation((input: { id: string } & RequestDecisionInput) => {
+    const { id, ...body } = input;
+    return apiFetch(`/api/membership-requests/${encodeURIComponent(id)}/decision`, { body });
   });
+}
+
+export function useSetJoinByDomain() {
+  return useMembershipMutation((on: boolean) => apiFetch('/api/organization', { method: 'PATCH', body: { join_by_domain: on } }));
 }

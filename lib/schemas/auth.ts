@@ -1,5 +1,6 @@
 /** Form and request schemas for accounts, shared by the screens and the server. */
 import { z } from 'zod';
+import { loadPasswordChecker, passwordProblem, PASSWORD_MAX_LENGTH, PASSWORD_MIN_LENGTH } from '@/lib/auth/password';
 import { ROLES } from '@/lib/auth/roles';
 
 export const signInSchema = z.object({
@@ -8,20 +9,56 @@ export const signInSchema = z.object({
 });
 export type SignInInput = z.infer<typeof signInSchema>;
 
-export const signUpSchema = z.object({
-  name: z.string().trim().min(1, 'Enter your name.').max(120),
-  email: z.email('Enter an e-mail address.'),
-  password: z.string().min(8, 'Use at least 8 characters.').max(128),
-});
+/** Length only; the strength rule needs the dictionaries and is checked by `checkNewPassword`. */
+const newPassword = z
+  .string()
+  .min(PASSWORD_MIN_LENGTH, `The password needs at least ${PASSWORD_MIN_LENGTH} characters.`)
+  .max(PASSWORD_MAX_LENGTH, `The password may have at most ${PASSWORD_MAX_LENGTH} characters.`);
+
+/**
+ * Adds the strength rule of lib/auth/password.ts to a form's password field (asynchronous: the
+ * dictionaries load on first use), naming the reason the server would give.
+ */
+async function checkNewPassword(password: string, userInputs: string[], ctx: z.RefinementCtx, path: string) {
+  if (password.length < PASSWORD_MIN_LENGTH || password.length > PASSWORD_MAX_LENGTH) return;
+  const problem = passwordProblem(await loadPasswordChecker(), password, userInputs);
+  if (problem) ctx.addIssue({ code: 'custom', path: [path], message: problem });
+}
+
+export const signUpSchema = z
+  .object({
+    name: z.string().trim().min(1, 'Enter your name.').max(120),
+    email: z.email('Enter an e-mail address.'),
+    password: newPassword,
+  })
+  .superRefine((v, ctx) => checkNewPassword(v.password, [v.email, v.name], ctx, 'password'));
 export type SignUpInput = z.infer<typeof signUpSchema>;
 
 export const forgotPasswordSchema = z.object({ email: z.email('Enter an e-mail address.') });
 
-export const resetPasswordSchema = z.object({
-  password: z.string().min(8, 'Use at least 8 characters.').max(128),
-});
+export const resetPasswordSchema = z
+  .object({ password: newPassword })
+  .superRefine((v, ctx) => checkNewPassword(v.password, [], ctx, 'password'));
 
-export const roleChangeSchema = z.object({
-  role: z.enum(ROLES, { message: `Role must be one of ${ROLES.join(', ')}.` }),
-});
+const role = z.enum(ROLES, { message: `Role must be one of ${ROLES.join(', ')}.` });
+
+export const roleChangeSchema = z.object({ role });
 export type RoleChangeInput = z.infer<typeof roleChangeSchema>;
+
+/** PATCH /api/users/:id/active — deactivate (false) or reactivate (true) a member. */
+export const memberActiveSchema = z.object({ active: z.boolean({ message: 'active must be true or false.' }) });
+
+/** POST /api/invitations — invite an address with a role. */
+export const inviteSchema = z.object({ email: z.email('Enter the e-mail address to invite.'), role });
+export type InviteInput = z.infer<typeof inviteSchema>;
+
+/** POST /api/membership-requests/:id/decision — approve with a role, or refuse. */
+export const requestDecisionSchema = z.discriminatedUnion(
+  'decision',
+  [z.object({ decision: z.literal('approve'), role }), z.object({ decision: z.literal('refuse') })],
+  { message: 'decision must be approve (with a role) or refuse.' },
+);
+export type RequestDecisionInput = z.infer<typeof requestDecisionSchema>;
+
+/** PATCH /api/organization — the administrators' setting for joining by e-mail domain. */
+export const organisationSettingsSchema = z.object({ join_by_domain: z.boolean({ message: 'join_by_domain must be true or false.' }) });

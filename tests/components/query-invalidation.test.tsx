@@ -12,7 +12,7 @@ import { outboxKeys } from '@/lib/api/outbox';
 import { physicsKeys } from '@/lib/api/physics';
 import { qualityKeys, specKeys, useComparison, useDecision, useReopen, useSaveSpec, useSubmitBatch } from '@/lib/api/quality';
 import { sessionKeys, useRequestPasswordReset, useSignIn } from '@/lib/api/session';
-import { useChangeRole, userKeys } from '@/lib/api/users';
+import { useCancelInvitation, useChangeRole, useDecideRequest, useInvite, useRemoveMember, useSetJoinByDomain, useSetMemberActive, userKeys } from '@/lib/api/users';
 
 const page = { page: 1, pageSize: 50, sort: 'device_id', dir: 'asc', q: '' } as const;
 
@@ -38,6 +38,9 @@ const cached = {
   spec: specKeys.detail('s1'),
   outbox: outboxKeys.list(),
   users: userKeys.list(),
+  invitations: userKeys.invitations(),
+  requests: userKeys.requests(),
+  audit: userKeys.audit(),
   me: sessionKeys.me(),
 } satisfies Record<string, QueryKey>;
 type Name = keyof typeof cached;
@@ -155,10 +158,21 @@ const cases: Case[] = [
   {
     what: 'changing a role',
     run: (wrapper) => mutate(() => useChangeRole(), { userId: 'u1', role: 'designer' }, wrapper),
-    // The admin may have changed their own role, and with it what /api/me permits.
-    stale: ['users', 'me'],
+    // The admin may have changed their own role, and with it what /api/me permits; the record grows.
+    stale: ['users', 'me', 'audit'],
     fresh: ['batchList', 'compareB1B2'],
   },
+  // Every membership change is recorded and most mail someone: the users screen, the record and the outbox.
+  ...(
+    [
+      ['inviting someone', (w) => mutate(() => useInvite(), { email: 'x@example.com', role: 'designer' }, w)],
+      ['withdrawing an invitation', (w) => mutate(() => useCancelInvitation(), 'i1', w)],
+      ['approving a request to join', (w) => mutate(() => useDecideRequest(), { id: 'r1', decision: 'approve', role: 'qa_lead' }, w)],
+      ['deactivating a member', (w) => mutate(() => useSetMemberActive(), { userId: 'u1', active: false }, w)],
+      ['removing a member', (w) => mutate(() => useRemoveMember(), 'u1', w)],
+      ['turning joining by domain on', (w) => mutate(() => useSetJoinByDomain(), true, w)],
+    ] as const satisfies readonly (readonly [string, Case['run']])[]
+  ).map(([what, run]): Case => ({ what, run, stale: ['users', 'invitations', 'requests', 'audit', 'me', 'outbox'], fresh: ['batchList', 'compareB1B2', 'specList'] })),
   {
     what: 'asking for a password reset',
     run: (wrapper) => mutate(() => useRequestPasswordReset(), 'dana@example.com', wrapper),

@@ -5,13 +5,15 @@
  * so the table and this test cannot drift apart silently. The routes are also found by walking
  * the Express app: a route added without an entry here fails the test.
  *
- * Rules checked (server/permissions.ts): no session → 401; a role without the permission → 403
- * naming it; a record of another organisation → 404 (never 403, so ids leak nothing); requests
- * that name no record answer the other organisation about its own data only.
+ * Rules checked (server/permissions.ts): no session → 401; an address not yet verified → 403
+ * email_unverified and a verified newcomer still waiting for approval → 403 no_organisation on
+ * every route but health and /api/me; a role without the permission → 403 naming it; a record of
+ * another organisation → 404 (never 403, so ids leak nothing); requests that name no record
+ * answer the other organisation about its own data only.
  */
 import { eq } from 'drizzle-orm';
 import type { Express } from 'express';
-import { batch, member, organization, spec, user } from '@/db/schema';
+import { batch, invitation, member, membershipRequest, organization, spec, user } from '@/db/schema';
 import { seedDemoBatches } from '@/server/services/seed';
 import { analyseFile } from '@/lib/analysis/analyse-file';
 import type { FileAnalysis } from '@/lib/analysis/analyse-file';
@@ -19,13 +21,13 @@ import { can, ROLE_PERMISSIONS, ROLES } from '@/lib/auth/roles';
 import type { Permission, Role } from '@/lib/auth/roles';
 import { simulateCurve } from '@/lib/iv';
 import { storeCurve } from '@/server/services/curves';
-import { agentFor, signUp, startHarness } from '@/tests/server/harness';
+import { agentFor, signIn, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
 
 type Agent = ReturnType<typeof agentFor>;
-type Method = 'GET' | 'POST' | 'PATCH';
-type Who = 'signed_out' | Role | 'other_org';
-const WHO: Who[] = ['signed_out', ...ROLES, 'other_org'];
+type Method = 'GET' | 'POST' | 'PATCH' | 'DELETE';
+type Who = 'signed_out' | 'unverified' | 'awaiting' | Role | 'other_org';
+const WHO: Who[] = ['signed_out', 'unverified', 'awaiting', ...ROLES, 'other_org'];
 
 /** One request of a matrix cell; built fresh per cell so state-changing routes find the state they need. */
 type Req = { url: string; body?: Record<string, unknown>; file?: { name: string; bytes: Buffer } };
@@ -51,7 +53,7 @@ const ORG = 'matrix-pv.example';
 const OTHER = 'other-org.example';
 
 let h: Harness;
-const agents = {} as Record<Role, Agent>;
+const agents = {} as Record<Role | 'unverified' | 'awaiting', Agent>;
 const outsiders = {} as Record<'admin' | 'qa_lead', Agent>;
 const ids = { batch: '', curve: '', spec: '', specFamily: '', spareUser: '', org: '', engineer: '', released: '', release: '' };
 /** Strings that must never appear in an answer to the other organisation. */
@@ -71,6 +73,32 @@ async function freshBatch(state: 'open' | 'in_review'): Promise<{ batchId: strin
   const curveId = await storeCurve(h.database.db, { organizationId: ids.org, batchId, fileName: 'matrix.csv', analysis, userId: ids.engineer });
   ours.push(batchId, curveId);
   return { batchId, curveId };
+}
+
+/** A user of our organisation made straight in the database (verified), for routes that remove or answer one. */
+async function freshUser(opts: { member: boolean }): Promise<string> {
+  const id = crypto.randomUUID();
+  await h.database.db.insert(user).values({ id, name: 'Matrix spare', email: `spare-${id}@${ORG}`, emailVerified: true });
+  if (opts.member) await h.database.db.insert(member).values({ id: crypto.randomUUID(), organizationId: ids.org, userId: id, role: 'designer' });
+  ours.push(id);
+  return id;
+}
+
+/** A pending request to join our organisation. */
+async function freshRequest(): Promise<string> {
+  const id = crypto.randomUUID();
+  await h.database.db.insert(membershipRequest).values({ id, organizationId: ids.org, userId: await freshUser({ member: false }) });
+  ours.push(id);
+  return id;
+}
+
+/** A pending invitation of our organisation. */
+async function freshInvitation(): Promise<string> {
+  const id = crypto.randomUUID();
+  const [admin] = await h.database.db.select().from(user).where(eq(user.email, `admin@${ORG}`));
+  await h.database.db.insert(invitation).values({ id, organizationId: ids.org, email: `invited-${id}@${ORG}`, role: 'designer', expiresAt: new Date(Date.now() + 86_400_000), inviterId: admin.id });
+  ours.push(id);
+  return id;
 }
 
 /** A batch of ours released by the QA lead through the API (so it has a release record), with its release's id. */
@@ -100,6 +128,24 @@ const ROUTES: RouteCase[] = [
   { method: 'GET', path: '/api/me', need: 'session', ok: 200, foreign: 'own', build: async () => ({ url: '/api/me' }) },
   { method: 'GET', path: '/api/users', need: 'users:manage', ok: 200, foreign: 'own', build: async () => ({ url: '/api/users' }) },
   { method: 'PATCH', path: '/api/users/:id/role', need: 'users:manage', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/users/${ids.spareUser}/role`, body: { role: 'designer' } }) },
+  { method: 'PATCH', path: '/api/users/:id/active', need: 'users:manage', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/users/${ids.spareUser}/active`, body: { active: true } }) },
+  { method: 'DELETE', path: '/api/users/:id', need: 'users:manage', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/users/${await freshUser({ member: true })}` }) },
+  { method: 'GET', path: '/api/invitations', need: 'users:manage', ok: 200, foreign: 'own', build: async () => ({ url: '/api/invitations' }) },
+  // The other organisation's administrator invites to their own organisation.
+  { method: 'POST', path: '/api/invitations', need: 'users:manage', ok: 201, foreign: 'own', build: async () => ({ url: '/api/invitations', body: { email: `invitee-${crypto.randomUUID()}@elsewhere.example`, role: 'designer' } }) },
+  { method: 'DELETE', path: '/api/invitations/:id', need: 'users:manage', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/invitations/${await freshInvitation()}` }) },
+  { method: 'GET', path: '/api/membership-requests', need: 'users:manage', ok: 200, foreign: 'own', build: async () => ({ url: '/api/membership-requests' }) },
+  {
+    method: 'POST',
+    path: '/api/membership-requests/:id/decision',
+    need: 'users:manage',
+    ok: 200,
+    foreign: 'not_found',
+    build: async () => ({ url: `/api/membership-requests/${await freshRequest()}/decision`, body: { decision: 'approve', role: 'designer' } }),
+  },
+  { method: 'GET', path: '/api/organization', need: 'users:manage', ok: 200, foreign: 'own', build: async () => ({ url: '/api/organization' }) },
+  { method: 'PATCH', path: '/api/organization', need: 'users:manage', ok: 200, foreign: 'own', build: async () => ({ url: '/api/organization', body: { join_by_domain: false } }) },
+  { method: 'GET', path: '/api/organization/audit', need: 'users:manage', ok: 200, foreign: 'own', build: async () => ({ url: '/api/organization/audit' }) },
   { method: 'GET', path: '/api/outbox', need: 'outbox:read', ok: 200, foreign: 'own', build: async () => ({ url: '/api/outbox' }) },
   { method: 'GET', path: '/api/batches', need: 'batch:read', ok: 200, foreign: 'own', build: async () => ({ url: '/api/batches' }) },
   { method: 'POST', path: '/api/batches', need: 'batch:write', ok: 201, foreign: 'own', build: async () => ({ url: '/api/batches', body: { name: 'Matrix batch', cells: 1 } }) },
@@ -162,6 +208,7 @@ const ROUTES: RouteCase[] = [
 function expectedStatus(route: RouteCase, who: Who): number {
   if (route.need === 'public') return route.ok;
   if (who === 'signed_out') return 401;
+  if (who === 'unverified' || who === 'awaiting') return route.need === 'session' ? route.ok : 403;
   if (who === 'other_org') return route.foreign === 'not_found' ? 404 : route.ok;
   if (route.need === 'session') return route.ok;
   return can(who, route.need) ? route.ok : 403;
@@ -175,7 +222,7 @@ function outsiderFor(route: RouteCase): Agent {
 }
 
 async function send(agent: Agent, method: Method, req: Req) {
-  const m = method === 'GET' ? agent.get(req.url) : method === 'POST' ? agent.post(req.url) : agent.patch(req.url);
+  const m = method === 'GET' ? agent.get(req.url) : method === 'POST' ? agent.post(req.url) : method === 'PATCH' ? agent.patch(req.url) : agent.delete(req.url);
   if (req.file) return m.attach('files', req.file.bytes, req.file.name);
   return req.body ? m.send(req.body) : m;
 }
@@ -214,6 +261,10 @@ beforeAll(async () => {
   outsiders.admin = await signUp(h.app, { email: `admin@${OTHER}` });
   outsiders.qa_lead = await signUp(h.app, { email: `qa@${OTHER}` });
   await setRole(`qa@${OTHER}`, 'qa_lead');
+  // Signed in with an address not yet verified, and verified but waiting for an administrator.
+  expect((await agentFor(h.app).post('/api/auth/sign-up/email').send({ email: `unverified@${ORG}`, password: 'correct-horse-9', name: 'Unverified' })).status).toBe(200);
+  agents.unverified = await signIn(h.app, `unverified@${ORG}`, 'correct-horse-9');
+  agents.awaiting = await signUp(h.app, { email: `awaiting@${ORG}` }, { approve: false });
 
   const [org] = await h.database.db.select().from(organization).where(eq(organization.domain, ORG));
   ids.org = org.id;
@@ -232,7 +283,7 @@ beforeAll(async () => {
   const released = await releasedBatch();
   ids.released = released.batchId;
   ids.release = released.releaseId;
-});
+}, 240_000); // seven sign-ups with verification, the demo batches and a release, on a shared machine
 afterAll(async () => {
   await h.close();
 });
@@ -263,8 +314,12 @@ describe('every route × every kind of caller', () => {
     const res = await send(agent, route.method, req);
     expect(res.status).toBe(status);
     if (status === 401) expect(res.body.code).toBe('unauthenticated');
-    if (status === 403) expect(res.body).toEqual({ code: 'forbidden', message: expect.stringContaining(String(route.need)) });
+    if (status === 403 && who === 'unverified') expect(res.body.code).toBe('email_unverified');
+    else if (status === 403 && who === 'awaiting') expect(res.body.code).toBe('no_organisation');
+    else if (status === 403) expect(res.body).toEqual({ code: 'forbidden', message: expect.stringContaining(String(route.need)) });
     if (status === 404) expect(res.body.code).toBe('not_found');
     if (who === 'other_org') for (const s of ours) expect(res.text).not.toContain(s);
+    // Their own address and the organisation's name (its domain) may appear; none of our records' ids.
+    if (who === 'unverified' || who === 'awaiting') for (const s of ours.filter((x) => x !== ORG)) expect(res.text).not.toContain(s);
   });
 });

@@ -1,6 +1,6 @@
 import { eq } from 'drizzle-orm';
 import { member, session, user } from '@/db/schema';
-import { agentFor, signIn, signUp, startHarness } from '@/tests/server/harness';
+import { agentFor, lastMail, signIn, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
 
 let h: Harness;
@@ -25,7 +25,7 @@ describe('health', () => {
 });
 
 describe('sign-up places people by e-mail domain', () => {
-  it('founds an organisation for a new domain with the first user as admin, and later users join as test engineers', async () => {
+  it('founds an organisation for a new domain with the first verified user as admin; later users join once approved (as test engineers here)', async () => {
     const first = await signUp(h.app, { email: 'founder@alpha-cells.example' });
     const me1 = await first.get('/api/me');
     expect(me1.status).toBe(200);
@@ -40,14 +40,23 @@ describe('sign-up places people by e-mail domain', () => {
     expect(me2.body.permissions).not.toContain('users:manage');
   });
 
-  it('refuses a duplicate sign-up with a JSON error and keeps one account', async () => {
+  it('answers a sign-up with a taken address like a new one, keeps one account and its password, and mails the owner', async () => {
     await signUp(h.app, { email: 'dup@beta-modules.example' });
-    const res = await agentFor(h.app).post('/api/auth/sign-up/email').send({ email: 'dup@beta-modules.example', password: 'another-pass-1', name: 'Dup' });
-    expect(res.status).toBeGreaterThanOrEqual(400);
-    expect(res.status).toBeLessThan(500);
-    expect(typeof res.body.message).toBe('string');
+    const taken = await agentFor(h.app).post('/api/auth/sign-up/email').send({ email: 'dup@beta-modules.example', password: 'another-pass-1', name: 'Dup' });
+    const fresh = await agentFor(h.app).post('/api/auth/sign-up/email').send({ email: 'fresh@beta-modules.example', password: 'another-pass-1', name: 'Dup' });
+    expect(taken.status).toBe(200);
+    expect(taken.status).toBe(fresh.status);
+    // Same fields with the same kinds of value; neither answer signs anyone in.
+    const shape = (b: { token: unknown; user: Record<string, unknown> }) => ({ token: b.token, user: Object.fromEntries(Object.entries(b.user).map(([k, v]) => [k, typeof v])) });
+    expect(shape(taken.body)).toEqual(shape(fresh.body));
+    expect(taken.body.user.emailVerified).toBe(false);
+    expect(taken.headers['set-cookie']).toBeUndefined();
+    expect(fresh.headers['set-cookie']).toBeUndefined();
     const rows = await h.database.db.select().from(user).where(eq(user.email, 'dup@beta-modules.example'));
     expect(rows).toHaveLength(1);
+    expect((await lastMail(h.app, 'dup@beta-modules.example', 'sign-up-existing'))?.body).toMatch(/already has one/);
+    expect(await lastMail(h.app, 'fresh@beta-modules.example', 'verify-email')).not.toBeNull();
+    await signIn(h.app, 'dup@beta-modules.example', 'correct-horse-9');
   });
 
   it('refuses a short password', async () => {
