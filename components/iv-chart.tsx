@@ -2,7 +2,7 @@ import { VictoryAxis, VictoryChart, VictoryLine, VictoryScatter } from 'victory-
 import { ChartFrame } from '@/components/chart-frame';
 import { chartStyle, tick } from '@/components/chart-style';
 
-export type Series = { voltage_V: number[]; current_A: number[] };
+export type Series = { voltage_v: number[]; current_a: number[] };
 
 /**
  * The measured points and fitted model(s) as an I-V or a P-V chart, with the maximum power
@@ -26,7 +26,7 @@ export function IvChart({
   testID?: string;
 }) {
   const y = (v: number, i: number) => (mode === 'iv' ? i : v * i);
-  const pts = (s: Series) => s.voltage_V.map((v, k) => ({ x: v, y: y(v, s.current_A[k]) }));
+  const pts = (s: Series) => s.voltage_v.map((v, k) => ({ x: v, y: y(v, s.current_a[k]) }));
   const dots = pts(measured);
   return (
     <ChartFrame height={height} testID={testID}>

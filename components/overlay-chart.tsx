@@ -17,7 +17,7 @@ export function OverlayChart({ curves, height = 260, testID }: { curves: Overlay
             {ordered.map((c) => (
               <VictoryLine
                 key={c.id}
-                data={c.voltage_V.map((v, k) => ({ x: v, y: c.current_A[k] })).filter((p) => p.y >= 0)}
+                data={c.voltage_v.map((v, k) => ({ x: v, y: c.current_a[k] })).filter((p) => p.y >= 0)}
                 style={{ data: { stroke: c.flagged ? theme.color.hole : theme.color.electron, strokeWidth: c.flagged ? 1.6 : 1, opacity: c.flagged ? 0.95 : 0.45 } }}
               />
             ))}

@@ -4,10 +4,10 @@ import { chartStyle, tick } from '@/components/chart-style';
 import { theme } from '@/components/theme';
 
 /** Residuals (measured − model current, in mA) against voltage for one or two fits. */
-export function ResidualChart({ voltage_V, residuals, labels, height = 180, testID }: { voltage_V: number[]; residuals: number[][]; labels: string[]; height?: number; testID?: string }) {
+export function ResidualChart({ voltage_v, residuals, labels, height = 180, testID }: { voltage_v: number[]; residuals: number[][]; labels: string[]; height?: number; testID?: string }) {
   const colours = [theme.color.electron, theme.color.hole];
-  const vMin = Math.min(...voltage_V);
-  const vMax = Math.max(...voltage_V);
+  const vMin = Math.min(...voltage_v);
+  const vMax = Math.max(...voltage_v);
   return (
     <ChartFrame height={height} testID={testID} caption={labels.map((l, k) => `${k === 0 ? '●' : '◆'} ${l}`).join('    ')}>
       {(width) => (
@@ -18,7 +18,7 @@ export function ResidualChart({ voltage_V, residuals, labels, height = 180, test
           {residuals.map((r, k) => (
             <VictoryScatter
               key={labels[k]}
-              data={r.map((y, j) => ({ x: voltage_V[j], y: y * 1000 }))}
+              data={r.map((y, j) => ({ x: voltage_v[j], y: y * 1000 }))}
               size={2.5}
               symbol={k === 0 ? 'circle' : 'diamond'}
               style={{ data: { fill: colours[k % 2] } }}

@@ -34,9 +34,9 @@ export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson;
   const [limits, setLimits] = useState<Record<string, { min: string; max: string }>>(() =>
     Object.fromEntries(PARAM_KEYS.map((k) => [k, { min: toForm(k, initial?.limits?.[k]?.min), max: toForm(k, initial?.limits?.[k]?.max) }])),
   );
-  const [step, setStep] = useState(initial?.powerClasses?.step_w != null ? String(initial.powerClasses.step_w) : '');
-  const [basis, setBasis] = useState<'pmp_w' | 'stc_pmp_w'>(initial?.powerClasses?.basis ?? 'stc_pmp_w');
-  const [flags, setFlags] = useState<string[]>(initial?.failFlags ?? ['step', 'fit-failed']);
+  const [step, setStep] = useState(initial?.power_classes?.step_w != null ? String(initial.power_classes.step_w) : '');
+  const [basis, setBasis] = useState<'pmp_w' | 'stc_pmp_w'>(initial?.power_classes?.basis ?? 'stc_pmp_w');
+  const [flags, setFlags] = useState<string[]>(initial?.fail_flags ?? ['step', 'fit-failed']);
   const [issues, setIssues] = useState<string[]>([]);
 
   const submit = () => {
@@ -50,10 +50,10 @@ export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson;
     const input = {
       name,
       limits: lim,
-      ...(stepW !== undefined ? { powerClasses: { step_w: stepW, basis } } : {}),
-      failFlags: flags,
+      ...(stepW !== undefined ? { power_classes: { step_w: stepW, basis } } : {}),
+      fail_flags: flags,
       ...(notes.trim() ? { notes: notes.trim() } : {}),
-      ...(initial ? { familyId: initial.familyId } : {}),
+      ...(initial ? { family_id: initial.family_id } : {}),
     };
     const r = specSaveSchema.safeParse(input);
     if (!r.success) {

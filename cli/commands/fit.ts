@@ -41,9 +41,9 @@ const sig = (x: number | null | undefined, digits = 5) => (x === null || x === u
 const tidyObject = <T extends Record<string, unknown>>(o: T): T =>
   Object.fromEntries(Object.entries(o).map(([k, v]) => [k, typeof v === 'number' ? Number(v.toPrecision(12)) : v])) as T;
 
-function table(file: string, meta: CurveMeta, metrics: Metrics, fit: FitResult, flags: Flag[], tempC: string, cells: string): string {
+function table(file: string, meta: CurveMeta, metrics: Metrics, fit: FitResult, flags: Flag[], temp_c: string, cells: string): string {
   const lines: string[] = [];
-  lines.push(`${file}${meta.deviceId ? `  (${meta.deviceId})` : ''}  ${tempC}, ${cells}`);
+  lines.push(`${file}${meta.device_id ? `  (${meta.device_id})` : ''}  ${temp_c}, ${cells}`);
   lines.push(
     `  Isc ${sig(metrics.isc_a)} A   Voc ${sig(metrics.voc_v)} V   Pmp ${sig(metrics.pmp_w)} W at ${sig(metrics.vmp_v)} V, ${sig(metrics.imp_a)} A` +
       `   FF ${sig(metrics.ff * 100, 4)} %   efficiency ${metrics.efficiency === null ? '– (needs area and irradiance)' : `${sig(metrics.efficiency * 100, 4)} %`}`,
@@ -127,10 +127,10 @@ export async function run(argv: string[]): Promise<number> {
     idealities = (values.idealities ?? 'fixed') as 'fixed' | 'free';
     if (idealities !== 'fixed' && idealities !== 'free') throw new UsageError(`--idealities must be fixed or free, got "${String(values.idealities)}"`);
     overrides = {
-      tempC: numberOption(values['temp-c'] as string | undefined, 'temp-c', (x) => x > -100 && x < 250, 'a cell temperature in °C between −100 and 250'),
+      temp_c: numberOption(values['temp-c'] as string | undefined, 'temp-c', (x) => x > -100 && x < 250, 'a cell temperature in °C between −100 and 250'),
       cells: numberOption(values.cells as string | undefined, 'cells', (x) => Number.isInteger(x) && x >= 1 && x <= 10000, 'a whole number of cells from 1 to 10000'),
       area_cm2: numberOption(values['area-cm2'] as string | undefined, 'area-cm2', (x) => x > 0, 'a positive area in cm²'),
-      irradiance_Wm2: numberOption(values['irradiance-wm2'] as string | undefined, 'irradiance-wm2', (x) => x > 0 && x <= 5000, 'an irradiance in W/m² above 0 and at most 5000'),
+      irradiance_w_m2: numberOption(values['irradiance-wm2'] as string | undefined, 'irradiance-wm2', (x) => x > 0 && x <= 5000, 'an irradiance in W/m² above 0 and at most 5000'),
     };
   } catch (err) {
     console.error(`${err instanceof Error ? err.message : String(err)}\n\n${USAGE}`);
@@ -152,11 +152,11 @@ export async function run(argv: string[]): Promise<number> {
       const { metrics, flags, fits } = analyseCurve(curve, { models: [model], objective, idealities });
       const fit = fits[0];
       if (json) {
-        console.log(JSON.stringify({ file, deviceId: curve.meta.deviceId, metrics: tidyObject(metrics), fit, flags }));
+        console.log(JSON.stringify({ file, deviceId: curve.meta.device_id, metrics: tidyObject(metrics), fit, flags }));
       } else {
-        const tempC = curve.meta.tempC === undefined ? '25 °C (assumed)' : `${curve.meta.tempC} °C`;
+        const temp_c = curve.meta.temp_c === undefined ? '25 °C (assumed)' : `${curve.meta.temp_c} °C`;
         const cells = curve.meta.cells === undefined ? '1 cell (assumed)' : `${curve.meta.cells} cell${curve.meta.cells > 1 ? 's' : ''}`;
-        console.log(table(file, curve.meta, metrics, fit, flags, tempC, cells) + '\n');
+        console.log(table(file, curve.meta, metrics, fit, flags, temp_c, cells) + '\n');
       }
     } catch (err) {
       failures++;

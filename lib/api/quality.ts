@@ -3,49 +3,17 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { apiFetch } from '@/lib/api/client';
 import { invalidateBatchReview } from '@/lib/api/invalidate';
 import { qualityKeys, specKeys } from '@/lib/api/keys';
-import type { Batch, DescribeStats } from '@/lib/api/batches';
+import type { ComparisonWire, Evaluation, ReviewList, SpecJson, SpecList } from '@/lib/schemas/responses';
 import { rowsOfColumns } from '@/lib/quality/compare-table';
-import type { BatchColumns, CompareRow } from '@/lib/quality/compare-table';
-import type { Spec, SpecInput } from '@/lib/quality/spec';
+import type { CompareRow } from '@/lib/quality/compare-table';
+import type { SpecInput } from '@/lib/quality/spec';
 
-export type SpecJson = Spec & { id: string; familyId: string; version: number; changes: string[]; createdAt: string; versions?: { id: string; version: number; changes: string[]; createdAt: string; by: string | null }[] };
-
-export type DeviceEval = {
-  deviceId: string;
-  curveId: string;
-  result: 'pass' | 'fail';
-  reasons: { kind: string; param: string; value: number | string | null; message: string }[];
-  powerClass: string | null;
-  outlier: boolean;
-  outlierParams: string[];
-  values: Record<string, number | null>;
-  flags: string[];
-};
-
-export type Evaluation = {
-  batch: Batch;
-  spec: { id: string; name: string; version: number; familyId: string };
-  counts: { total: number; pass: number; fail: number; outliers: number };
-  powerClassCounts: Record<string, number>;
-  stats: Record<string, DescribeStats | null>;
-  devices: DeviceEval[];
-};
-
-export type Review = { id: string; action: string; specId: string | null; counts: Record<string, number> | null; comment: string | null; createdAt: string; actor: string | null };
+export type { DeviceEval, Difference, Evaluation, Review, SpecJson } from '@/lib/schemas/responses';
 
 export type { CompareRow };
-export type Difference = { batchA: string; batchB: string; param: string; difference?: number; ciLow?: number; ciHigh?: number; p?: number; dof?: number; sentence?: string; significant?: boolean; error?: string };
-export type Comparison = {
-  batches: { id: string; name: string; state: string; count: number }[];
-  spec: { id: string; name: string; version: number } | null;
-  param: string;
-  rows: CompareRow[];
-  stats: Record<string, Record<string, DescribeStats | null>>;
-  counts: Record<string, { total: number; pass: number; fail: number; outliers: number } | null>;
-  differences: Difference[];
-};
-/** The comparison as the server sends it: each batch's rows as columns, outlier marks apart (lib/quality/compare-table.ts). */
-export type ComparisonWire = Omit<Comparison, 'rows'> & { tables: BatchColumns[]; outliers: (boolean | null)[][] };
+/** The comparison as the grid uses it: the wire answer with its rows as objects again. */
+export type Comparison = Omit<ComparisonWire, 'tables' | 'outliers'> & { rows: CompareRow[] };
+export type { ComparisonWire };
 
 /** The wire answer with its rows as objects again, as the grid, filters and charts use them. */
 export function comparisonOfWire(w: ComparisonWire): Comparison {
@@ -56,7 +24,7 @@ export function comparisonOfWire(w: ComparisonWire): Comparison {
 export { qualityKeys, specKeys };
 
 export function useSpecs() {
-  return useQuery({ queryKey: specKeys.list(), queryFn: () => apiFetch<{ specs: SpecJson[] }>('/api/specs') });
+  return useQuery({ queryKey: specKeys.list(), queryFn: () => apiFetch<SpecList>('/api/specs') });
 }
 
 export function useSpec(id: string) {
@@ -66,7 +34,7 @@ export function useSpec(id: string) {
 export function useSaveSpec() {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: SpecInput & { familyId?: string }) => apiFetch<SpecJson>('/api/specs', { body: input as Record<string, unknown> }),
+    mutationFn: (input: SpecInput & { family_id?: string }) => apiFetch<SpecJson>('/api/specs', { body: input as Record<string, unknown> }),
     // A save adds a version with a new id: evaluations and comparisons cached under an existing
     // spec id stay true, only the spec list and details change.
     onSuccess: async () => {
@@ -84,7 +52,7 @@ export function useEvaluation(batchId: string, specId: string) {
 }
 
 export function useReviews(batchId: string) {
-  return useQuery({ queryKey: qualityKeys.reviews(batchId), queryFn: () => apiFetch<{ reviews: Review[] }>(`/api/batches/${encodeURIComponent(batchId)}/reviews`) });
+  return useQuery({ queryKey: qualityKeys.reviews(batchId), queryFn: () => apiFetch<ReviewList>(`/api/batches/${encodeURIComponent(batchId)}/reviews`) });
 }
 
 export function useSubmitBatch(batchId: string) {
@@ -101,7 +69,7 @@ export function useSubmitBatch(batchId: string) {
 export function useDecision(batchId: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: { decision: 'release' | 'hold'; specId: string; comment: string }) => apiFetch(`/api/batches/${encodeURIComponent(batchId)}/decision`, { body: input }),
+    mutationFn: (input: { decision: 'release' | 'hold'; spec_id: string; comment: string }) => apiFetch(`/api/batches/${encodeURIComponent(batchId)}/decision`, { body: input }),
     // Released or on hold shows in the list, the comparison and the curve pages; the decision is mailed.
     onSuccess: async () => {
       await invalidateBatchReview(qc, batchId);

@@ -1,17 +1,12 @@
 /** Session, sign-in and account hooks (better-auth's endpoints and /api/me). */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { QueryClient } from '@tanstack/react-query';
-import type { Permission, Role } from '@/lib/auth/roles';
+import type { Me } from '@/lib/schemas/responses';
 import { ApiError, apiFetch } from '@/lib/api/client';
 import { outboxKeys, sessionKeys } from '@/lib/api/keys';
 import type { SignInInput, SignUpInput } from '@/lib/schemas/auth';
 
-export type Me = {
-  user: { id: string; name: string; email: string; role: Role };
-  organization: { id: string; name: string; domain: string };
-  role: Role;
-  permissions: Permission[];
-};
+export type { Me };
 
 export { sessionKeys };
 

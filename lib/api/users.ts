@@ -3,13 +3,14 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { apiFetch } from '@/lib/api/client';
 import { sessionKeys, userKeys } from '@/lib/api/keys';
 import type { Role } from '@/lib/auth/roles';
+import type { UserList } from '@/lib/schemas/responses';
 
-export type OrgUser = { id: string; name: string; email: string; role: Role; memberId: string; joinedAt: string };
+export type { OrgUser } from '@/lib/schemas/responses';
 
 export { userKeys };
 
 export function useUsers() {
-  return useQuery({ queryKey: userKeys.list(), queryFn: () => apiFetch<{ users: OrgUser[] }>('/api/users') });
+  return useQuery({ queryKey: userKeys.list(), queryFn: () => apiFetch<UserList>('/api/users') });
 }
 
 export function useChangeRole() {

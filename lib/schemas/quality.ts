@@ -2,15 +2,15 @@
 import { z } from 'zod';
 import { specInputSchema } from '@/lib/quality/spec';
 
-/** A new spec, or (with familyId) a new version of an existing one. */
-export const specSaveSchema = specInputSchema.extend({ familyId: z.string().min(1).optional() });
+/** A new spec, or (with family_id) a new version of an existing one. */
+export const specSaveSchema = specInputSchema.extend({ family_id: z.string().min(1).optional() });
 
 export const submitSchema = z.object({ comment: z.string().trim().max(2000).optional() });
 
 export const decisionSchema = z
   .object({
     decision: z.enum(['release', 'hold'], { message: 'decision must be "release" or "hold".' }),
-    specId: z.string().min(1, 'Choose the spec version the batch was judged against.'),
+    spec_id: z.string().min(1, 'Choose the spec version the batch was judged against.'),
     comment: z.string().trim().max(2000).optional().default(''),
   })
   .refine((d) => d.decision !== 'hold' || d.comment.length > 0, { message: 'Say why the batch is held.', path: ['comment'] });

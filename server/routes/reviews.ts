@@ -42,7 +42,7 @@ export function reviewsRouter(db: Db, mailer: Mailer): Router {
   });
 
   /**
-   * POST /api/batches/:id/decision { decision: 'release'|'hold', specId, comment } — the QA lead's
+   * POST /api/batches/:id/decision { decision: 'release'|'hold', spec_id, comment } — the QA lead's
    * decision, recorded with the spec version and the pass/fail counts; the submitter is e-mailed.
    * A released batch becomes read-only.
    */

@@ -36,19 +36,19 @@ export function batchJson(b: BatchRow, extra: Record<string, unknown> = {}) {
   return {
     id: b.id,
     name: b.name,
-    productType: b.productType,
+    product_type: b.product_type,
     supplier: b.supplier,
     line: b.line,
     lot: b.lot,
-    batchDate: b.batchDate,
+    batch_date: b.batch_date,
     cells: b.cells,
     area_cm2: b.area_cm2,
     nameplate_w: b.nameplate_w,
     description: b.description,
     archived: b.archived,
     state: b.state,
-    createdAt: b.createdAt,
-    updatedAt: b.updatedAt,
+    created_at: b.createdAt,
+    updated_at: b.updatedAt,
     ...extra,
   };
 }

@@ -27,7 +27,7 @@ const EXPORT_PARAMS = ['isc_a', 'voc_v', 'pmp_w', 'imp_a', 'vmp_v', 'ff', 'effic
 async function evaluate(db: Db, batchId: string, organizationId: string, specId: string) {
   const { row, spec } = await loadSpec(db, organizationId, specId);
   const devices = await deviceRecords(db, [batchId]);
-  const evaluation = evaluateBatch(devices, spec, { outlierParams: [...OUTLIER_PARAMS] });
+  const evaluation = evaluateBatch(devices, spec, { outlier_params: [...OUTLIER_PARAMS] });
   return { specRow: row, evaluation, devices };
 }
 
@@ -50,11 +50,11 @@ export async function batchEvaluation(db: Db, organizationId: string, batchId: s
   const { specRow, evaluation, devices } = await evaluate(db, b.id, organizationId, await specFor(db, b.id, specId));
   return {
     batch: batchJson(b),
-    spec: { id: specRow.id, name: specRow.name, version: specRow.version, familyId: specRow.familyId },
+    spec: { id: specRow.id, name: specRow.name, version: specRow.version, family_id: specRow.family_id },
     counts: counts(evaluation),
-    powerClassCounts: evaluation.powerClassCounts,
+    power_class_counts: evaluation.power_class_counts,
     stats: evaluation.stats,
-    devices: evaluation.devices.map((d, k) => ({ ...d, curveId: devices[k].curveId })),
+    devices: evaluation.devices.map((d, k) => ({ ...d, curve_id: devices[k].curve_id })),
   };
 }
 
@@ -71,7 +71,7 @@ export async function passFailExport(db: Db, organizationId: string, batchId: st
 export async function reviewHistory(db: Db, organizationId: string, batchId: string) {
   const b = await loadBatch(db, organizationId, batchId);
   const rows = await db
-    .select({ id: batchReview.id, action: batchReview.action, specId: batchReview.specId, counts: batchReview.counts, comment: batchReview.comment, createdAt: batchReview.createdAt, actor: user.name, actorEmail: user.email })
+    .select({ id: batchReview.id, action: batchReview.action, spec_id: batchReview.specId, counts: batchReview.counts, comment: batchReview.comment, created_at: batchReview.createdAt, actor: user.name, actor_email: user.email })
     .from(batchReview)
     .leftJoin(user, eq(user.id, batchReview.actorId))
     .where(eq(batchReview.batchId, b.id))
@@ -133,7 +133,7 @@ export async function submitBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
   if (!devices.length) throw new HttpError(409, 'batch_empty', 'Upload curves before submitting the batch for review.');
   const unfitted = devices.filter((d) => !d.fitted);
   if (unfitted.length) {
-    throw new HttpError(409, 'unfitted_curves', `${unfitted.length} curve(s) have no converged fit (${unfitted.slice(0, 5).map((d) => d.deviceId).join(', ')}${unfitted.length > 5 ? ', …' : ''}). Refit or remove them first.`);
+    throw new HttpError(409, 'unfitted_curves', `${unfitted.length} curve(s) have no converged fit (${unfitted.slice(0, 5).map((d) => d.device_id).join(', ')}${unfitted.length > 5 ? ', …' : ''}). Refit or remove them first.`);
   }
   await db.transaction(async (tx) => {
     await touchBatch(tx, b.id, { state: 'in_review' });
@@ -158,7 +158,7 @@ export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
   if (b.state !== 'in_review') {
     throw new HttpError(409, 'not_in_review', b.state === 'released' ? 'This batch is already released.' : 'Only a batch submitted for review can be released or held.');
   }
-  const { specRow, evaluation, devices } = await evaluate(db, b.id, by.organization.id, body.specId);
+  const { specRow, evaluation, devices } = await evaluate(db, b.id, by.organization.id, body.spec_id);
   const unfitted = devices.filter((d) => !d.fitted);
   if (body.decision === 'release' && unfitted.length) {
     throw new HttpError(409, 'unfitted_curves', `${unfitted.length} curve(s) have no converged fit; the batch cannot be released.`);

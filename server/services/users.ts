@@ -9,7 +9,7 @@ import { HttpError } from '@/server/errors';
 /** Everyone in the organisation, by name. */
 export async function listUsers(db: Db, organizationId: string) {
   const rows = await db
-    .select({ id: user.id, name: user.name, email: user.email, role: member.role, memberId: member.id, joinedAt: member.createdAt })
+    .select({ id: user.id, name: user.name, email: user.email, role: member.role, member_id: member.id, joined_at: member.createdAt })
     .from(member)
     .innerJoin(user, eq(member.userId, user.id))
     .where(eq(member.organizationId, organizationId))
@@ -35,5 +35,5 @@ export async function changeRole(db: Db, auth: Auth, by: { organizationId: strin
 /** The last 200 messages sent for the organisation, newest first. */
 export async function outbox(db: Db, organizationId: string) {
   const rows = await db.select().from(mailLog).where(eq(mailLog.organizationId, organizationId)).orderBy(desc(mailLog.createdAt)).limit(200);
-  return { messages: rows };
+  return { messages: rows.map((m) => ({ id: m.id, to: m.to, subject: m.subject, body: m.body, kind: m.kind, transport: m.transport, file: m.file, created_at: m.createdAt })) };
 }

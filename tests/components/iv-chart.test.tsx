@@ -34,7 +34,7 @@ describe('ChartFrame', () => {
 
 describe('IvChart (smoke render on victory-native 36 / react-native-svg)', () => {
   // Three points of the 57 mm reference cell (reference-data CSV, rounded).
-  const measured = { voltage_V: [0.0057, 0.4, 0.5728], current_A: [0.7605, 0.72, 0] };
+  const measured = { voltage_v: [0.0057, 0.4, 0.5728], current_a: [0.7605, 0.72, 0] };
 
   it('I-V mode: axes labelled with units once it has a width', () => {
     render(<IvChart measured={measured} mpp={{ v: 0.45, i: 0.69 }} mode="iv" testID="chart" />);

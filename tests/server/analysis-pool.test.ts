@@ -15,8 +15,8 @@ import { signUp, startHarness } from '@/tests/server/harness';
 
 const REF = path.resolve(__dirname, '../../../shared/reference-data');
 const bytes = (p: string) => new Uint8Array(readFileSync(p));
-const cell: AnalysisRequest = { bytes: bytes(path.join(REF, 'cell-57mm-33C.csv')), fileName: 'cell.csv', overrides: { tempC: 33, cells: 1 } };
-const moduleReq: AnalysisRequest = { bytes: bytes(path.join(REF, 'module-36cell-45C.csv')), fileName: 'module.csv', overrides: { tempC: 45, cells: 36 } };
+const cell: AnalysisRequest = { bytes: bytes(path.join(REF, 'cell-57mm-33C.csv')), fileName: 'cell.csv', overrides: { temp_c: 33, cells: 1 } };
+const moduleReq: AnalysisRequest = { bytes: bytes(path.join(REF, 'module-36cell-45C.csv')), fileName: 'module.csv', overrides: { temp_c: 45, cells: 36 } };
 const garbage: AnalysisRequest = { bytes: new TextEncoder().encode('V,I\nabc,def\n'), fileName: 'garbage.csv' };
 
 describe('workerAnalyser()', () => {
