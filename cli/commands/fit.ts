@@ -152,7 +152,7 @@ export async function run(argv: string[]): Promise<number> {
       const { metrics, flags, fits } = analyseCurve(curve, { models: [model], objective, idealities });
       const fit = fits[0];
       if (json) {
-        console.log(JSON.stringify({ file, deviceId: curve.meta.device_id, metrics: tidyObject(metrics), fit, flags }));
+        console.log(JSON.stringify({ file, device_id: curve.meta.device_id, metrics: tidyObject(metrics), fit, flags }));
       } else {
         const temp_c = curve.meta.temp_c === undefined ? '25 °C (assumed)' : `${curve.meta.temp_c} °C`;
         const cells = curve.meta.cells === undefined ? '1 cell (assumed)' : `${curve.meta.cells} cell${curve.meta.cells > 1 ? 's' : ''}`;

@@ -60,7 +60,7 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
           method: 'POST',
           credentials: 'include',
           headers: { 'Content-Type': 'application/json' },
-          body: JSON.stringify({ batchId, t_min_c: -25, t_cell_max_c: 70, v_sys_v: 1500, mpp_window_min_v: 500, mpp_window_max_v: 1300 }),
+          body: JSON.stringify({ batch_id: batchId, t_min_c: -25, t_cell_max_c: 70, v_sys_v: 1500, mpp_window_min_v: 500, mpp_window_max_v: 1300 }),
         });
         return res.json();
       }, DEMO_BATCH);

@@ -110,7 +110,7 @@ const ROUTES: RouteCase[] = [
     need: 'release:decide',
     ok: 200,
     foreign: 'not_found',
-    build: async () => ({ url: `/api/batches/${(await freshBatch('in_review')).batchId}/decision`, body: { decision: 'hold', specId: ids.spec, comment: 'matrix check' } }),
+    build: async () => ({ url: `/api/batches/${(await freshBatch('in_review')).batchId}/decision`, body: { decision: 'hold', spec_id: ids.spec, comment: 'matrix check' } }),
   },
   { method: 'GET', path: '/api/specs', need: 'spec:read', ok: 200, foreign: 'own', build: async () => ({ url: '/api/specs' }) },
   { method: 'GET', path: '/api/specs/:id', need: 'spec:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/specs/${ids.spec}` }) },
@@ -130,7 +130,7 @@ const ROUTES: RouteCase[] = [
     foreign: 'not_found',
     build: async () => ({ url: `/api/physics/curves/${ids.curve}/translate`, body: { method: 'model', to: { irradiance_w_m2: 1000, temp_c: 25 } } }),
   },
-  { method: 'POST', path: '/api/strings/size', need: 'physics:use', ok: 200, foreign: 'not_found', build: async () => ({ url: '/api/strings/size', body: { batchId: ids.batch, t_min_c: -10, v_sys_v: 1000 } }) },
+  { method: 'POST', path: '/api/strings/size', need: 'physics:use', ok: 200, foreign: 'not_found', build: async () => ({ url: '/api/strings/size', body: { batch_id: ids.batch, t_min_c: -10, v_sys_v: 1000 } }) },
 ];
 
 /** The status a cell must answer, from the route's entry and the role table. */

@@ -112,7 +112,7 @@ describe('upload', () => {
     expect(results[3].error).toMatch(/current/i);
     expect(results[4].error).toMatch(/empty/i);
     expect(results[5].error).toMatch(/not an I-V text file/);
-    for (const r of results.slice(0, 3)) expect(r.curveId).toEqual(expect.any(String));
+    for (const r of results.slice(0, 3)) expect(r.curve_id).toEqual(expect.any(String));
   });
 
   it('stores rejected files not at all', async () => {
@@ -120,7 +120,7 @@ describe('upload', () => {
   });
 
   it('fits the benchmark cell to the published single-diode optimum (RMSE 7.7301e-4 A ±0.1 %)', async () => {
-    const res = await tester.get(`/api/curves/${results[0].curveId}`);
+    const res = await tester.get(`/api/curves/${results[0].curve_id}`);
     expect(res.status).toBe(200);
     const c = res.body;
     expect(c.device_id).toBe('RTC-57-cell'); // file name without its extension
@@ -147,7 +147,7 @@ describe('upload', () => {
   });
 
   it('reads the module’s metadata lines; a form field overrides the file’s temperature', async () => {
-    const c = (await tester.get(`/api/curves/${results[1].curveId}`)).body;
+    const c = (await tester.get(`/api/curves/${results[1].curve_id}`)).body;
     expect(c.device_id).toBe('RTC-36M');
     expect(c.meta).toEqual(expect.objectContaining({ cells: 36, irradiance_w_m2: 1000 }));
     // The form's temp_c (33) overrides the file's 45 °C: overrides win, as documented.
@@ -155,8 +155,8 @@ describe('upload', () => {
   });
 
   it('reads the semicolon/decimal-comma mV/mA file to the same curve as the plain one', async () => {
-    const a = (await tester.get(`/api/curves/${results[0].curveId}`)).body;
-    const b = (await tester.get(`/api/curves/${results[2].curveId}`)).body;
+    const a = (await tester.get(`/api/curves/${results[0].curve_id}`)).body;
+    const b = (await tester.get(`/api/curves/${results[2].curve_id}`)).body;
     expect(b.points.voltage_v).toHaveLength(a.points.voltage_v.length);
     b.points.voltage_v.forEach((v: number, k: number) => expect(v).toBeCloseTo(a.points.voltage_v[k], 4));
     expect(b.metrics.pmp_w).toBeCloseTo(a.metrics.pmp_w, 6);
@@ -195,7 +195,7 @@ describe('upload', () => {
     expect(replace.status).toBe(201);
     expect(replace.body.results[0]).toEqual(expect.objectContaining({ accepted: true, replaced: 1 }));
     expect((await counts()).curves).toBe(3);
-    expect((await tester.get(`/api/curves/${results[0].curveId}`)).status).toBe(404);
+    expect((await tester.get(`/api/curves/${results[0].curve_id}`)).status).toBe(404);
 
     const keep = await tester.post(`/api/batches/${batchId}/curves`).field('temp_c', '33').field('on_duplicate', 'keep').attach('files', Buffer.from(cellCsv), 'RTC-57-cell.csv');
     expect(keep.status).toBe(201);

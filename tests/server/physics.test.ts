@@ -57,7 +57,7 @@ beforeAll(async () => {
     .field('irradiance_w_m2', '1000')
     .attach('files', Buffer.from(moduleCsv), 'module-36cell-45C.csv');
   expect(up.status).toBe(201);
-  moduleId = up.body.results[0].curveId;
+  moduleId = up.body.results[0].curve_id;
 
   // A dense synthetic curve of the same module (401 points) to see the translated curve thinned.
   const p = { iph_a: 1.031434, i0_a: 2.6381e-6, n: 1.32217, rs_ohm: 1.235634, rsh_ohm: 821.64 }; // README true-current optimum
@@ -70,12 +70,12 @@ beforeAll(async () => {
     .field('irradiance_w_m2', '1000')
     .attach('files', Buffer.from(denseCsv), 'dense-module.csv');
   expect(up2.status).toBe(201);
-  denseId = up2.body.results[0].curveId;
+  denseId = up2.body.results[0].curve_id;
 
   const noArea = await tester.post('/api/batches').send({ name: 'Cell without area' });
   const up3 = await tester.post(`/api/batches/${noArea.body.id}/curves`).field('temp_c', '33').attach('files', Buffer.from(cellCsv), 'cell-57mm.csv');
   expect(up3.status).toBe(201);
-  cellId = up3.body.results[0].curveId;
+  cellId = up3.body.results[0].curve_id;
 });
 afterAll(async () => {
   await h.close();

@@ -188,8 +188,8 @@ describe('review and release', () => {
 
   it('holding needs a reason; only a QA lead decides', async () => {
     const spec = (await qa.get('/api/specs')).body.specs.find((s: { name: string }) => s.name === moduleSpec.name);
-    expect((await tester.post(`/api/batches/${lineThree}/decision`).send({ decision: 'release', specId: spec.id })).status).toBe(403);
-    const hold = await qa.post(`/api/batches/${lineThree}/decision`).send({ decision: 'hold', specId: spec.id });
+    expect((await tester.post(`/api/batches/${lineThree}/decision`).send({ decision: 'release', spec_id: spec.id })).status).toBe(403);
+    const hold = await qa.post(`/api/batches/${lineThree}/decision`).send({ decision: 'hold', spec_id: spec.id });
     expect(hold.status).toBe(400);
     expect(hold.body.message).toMatch(/why/);
     expect((await qa.get(`/api/batches/${lineThree}`)).body.state).toBe('in_review');
@@ -199,7 +199,7 @@ describe('review and release', () => {
     const spec = (await qa.get('/api/specs')).body.specs.find((s: { name: string }) => s.name === moduleSpec.name);
     const evaluation = (await qa.get(`/api/batches/${lineThree}/evaluation?spec=${spec.id}`)).body;
     const before = h.mails().length;
-    const res = await qa.post(`/api/batches/${lineThree}/decision`).send({ decision: 'release', specId: spec.id, comment: 'All within limits.' });
+    const res = await qa.post(`/api/batches/${lineThree}/decision`).send({ decision: 'release', spec_id: spec.id, comment: 'All within limits.' });
     expect(res.status).toBe(200);
     expect(res.body.batch.state).toBe('released');
     expect(res.body.counts).toEqual(evaluation.counts);
@@ -209,12 +209,12 @@ describe('review and release', () => {
     expect(mail[0]).toMatch(/released/);
     const reviews = (await designer.get(`/api/batches/${lineThree}/reviews`)).body.reviews;
     expect(reviews.map((r: { action: string }) => r.action)).toEqual(['released', 'submitted']);
-    expect(reviews[0]).toEqual(expect.objectContaining({ specId: spec.id, actor: 'Quentin QA', counts: evaluation.counts, comment: 'All within limits.' }));
+    expect(reviews[0]).toEqual(expect.objectContaining({ spec_id: spec.id, actor: 'Quentin QA', counts: evaluation.counts, comment: 'All within limits.' }));
 
     const up = await tester.post(`/api/batches/${lineThree}/curves`).attach('files', Buffer.from('V,I\n0,1\n'), 'late.csv');
     expect(up.status).toBe(409);
     expect((await tester.patch(`/api/batches/${lineThree}`).send({ name: 'renamed' })).status).toBe(409);
-    expect((await qa.post(`/api/batches/${lineThree}/decision`).send({ decision: 'hold', specId: spec.id, comment: 'x' })).status).toBe(409);
+    expect((await qa.post(`/api/batches/${lineThree}/decision`).send({ decision: 'hold', spec_id: spec.id, comment: 'x' })).status).toBe(409);
     // The export now carries the release state and, without ?spec, the spec of the decision.
     const csv = await designer.get(`/api/batches/${lineThree}/pass-fail.csv`);
     expect(csv.status).toBe(200);
@@ -251,7 +251,7 @@ describe('comparison', () => {
     const rows = rowsOfColumns(res.body.tables, res.body.outliers, res.body.batches);
     expect(rows).toHaveLength(n2 + n3);
     expect(rows.filter((r) => r.batchId === lineTwo)).toHaveLength(n2);
-    expect(rows[0]).toEqual(expect.objectContaining({ deviceId: expect.any(String), pmp_w: expect.any(Number), rs_ohm: expect.any(Number), result: expect.stringMatching(/pass|fail/) }));
+    expect(rows[0]).toEqual(expect.objectContaining({ device_id: expect.any(String), pmp_w: expect.any(Number), rs_ohm: expect.any(Number), result: expect.stringMatching(/pass|fail/) }));
     const s2 = res.body.stats[lineTwo].rs_ohm;
     expect(s2.n).toBe(n2);
     expect(s2.cpk).toEqual(expect.any(Number)); // against the spec's rs_ohm max
@@ -279,9 +279,9 @@ describe('comparison', () => {
       const res = await designer.get(`/api/compare?batches=${lineTwo},${lineThree}&spec=${spec.id}&param=${param}`);
       expect(res.status).toBe(200);
       const rows = rowsOfColumns(res.body.tables, res.body.outliers, res.body.batches).filter((r) => r.batchId === lineTwo);
-      const expected = new Map(evaluation.devices.map((d: { deviceId: string; outlier_params: string[] }) => [d.deviceId, d.outlier_params.includes(param)]));
+      const expected = new Map(evaluation.devices.map((d: { device_id: string; outlier_params: string[] }) => [d.device_id, d.outlier_params.includes(param)]));
       expect(rows).toHaveLength(expected.size);
-      for (const r of rows) expect(r.outlier).toBe(expected.get(r.deviceId));
+      for (const r of rows) expect(r.outlier).toBe(expected.get(r.device_id));
       expect(res.body.counts[lineTwo].outliers).toBe([...expected.values()].filter(Boolean).length);
       expect(res.body.counts[lineTwo].pass).toBe(evaluation.counts.pass);
     }
@@ -289,12 +289,12 @@ describe('comparison', () => {
 
   it('answers again after a refit changed a batch (no stale comparison)', async () => {
     const first = await designer.get(`/api/compare?batches=${lineTwo}&param=n`);
-    const row = rowsOfColumns(first.body.tables, first.body.outliers, first.body.batches).find((r) => r.deviceId === 'M2611-005')!;
-    const temp_c = (await tester.get(`/api/curves/${row.curveId}`)).body.meta.temp_c;
-    const refit = await tester.post(`/api/curves/${row.curveId}/refit`).send({ temp_c: temp_c + 20, model: 'single' });
+    const row = rowsOfColumns(first.body.tables, first.body.outliers, first.body.batches).find((r) => r.device_id === 'M2611-005')!;
+    const temp_c = (await tester.get(`/api/curves/${row.curve_id}`)).body.meta.temp_c;
+    const refit = await tester.post(`/api/curves/${row.curve_id}/refit`).send({ temp_c: temp_c + 20, model: 'single' });
     expect(refit.status).toBe(200);
     const again = await designer.get(`/api/compare?batches=${lineTwo}&param=n`);
-    const after = rowsOfColumns(again.body.tables, again.body.outliers, again.body.batches).find((r) => r.deviceId === 'M2611-005')!;
+    const after = rowsOfColumns(again.body.tables, again.body.outliers, again.body.batches).find((r) => r.device_id === 'M2611-005')!;
     // n·T is what the fit determines, so n falls by the ratio of absolute temperatures.
     expect((after.n as number) / (row.n as number)).toBeCloseTo((temp_c + 273.15) / (temp_c + 20 + 273.15), 2);
   });

@@ -237,10 +237,10 @@ describe('uploads never write to the file system', () => {
 
     expect(res.status).toBe(201);
     expect(calls).toEqual([]);
-    const results = res.body.results as { file: string; accepted: boolean; curveId: string; deviceId: string }[];
+    const results = res.body.results as { file: string; accepted: boolean; curve_id: string; device_id: string }[];
     expect(results.map((r) => r.accepted)).toEqual(names.map(() => true));
     for (const [k, r] of results.entries()) {
-      const [row] = await h.database.db.select({ fileName: curve.fileName, deviceId: curve.deviceId }).from(curve).where(eq(curve.id, r.curveId));
+      const [row] = await h.database.db.select({ fileName: curve.fileName, deviceId: curve.deviceId }).from(curve).where(eq(curve.id, r.curve_id));
       // The multipart reader keeps only the last path segment; the id is that name without its extension.
       expect(row.fileName).toBe(`${tag}-${'abcde'[k]}.csv`);
       expect(row.deviceId).toBe(`${tag}-${'abcde'[k]}`);

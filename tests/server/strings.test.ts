@@ -39,7 +39,7 @@ async function setRole(email: string, role: string) {
 }
 
 /** Creates a batch and uploads files to it; returns the batch id and the curve ids in order. */
-async function batchWith(name: string, files: [string, string][]): Promise<{ batchId: string; curveIds: string[] }> {
+async function batchWith(name: string, files: [string, string][]): Promise<{ batch_id: string; curveIds: string[] }> {
   const b = await tester.post('/api/batches').send({ name, cells: 36 });
   expect(b.status).toBe(201);
   let req = tester.post(`/api/batches/${b.body.id}/curves`).field('on_duplicate', 'keep');
@@ -47,7 +47,7 @@ async function batchWith(name: string, files: [string, string][]): Promise<{ bat
   const up = await req;
   expect(up.status).toBe(201);
   expect(up.body.rejected).toBe(0);
-  return { batchId: b.body.id, curveIds: up.body.results.map((r: { curveId: string }) => r.curveId) };
+  return { batch_id: b.body.id, curveIds: up.body.results.map((r: { curve_id: string }) => r.curve_id) };
 }
 
 beforeAll(async () => {
@@ -140,7 +140,7 @@ describe('bad input gives a message and no number', () => {
     ['no system limit', { v_sys_v: '' }, 400, /v_sys_v: Enter the system voltage limit/],
     ['a word for a number', { voc_stc_v: 'fifty' }, 400, /voc_stc_v: Voc at STC \(V\) must be a number/],
     ['one end of the MPP window', { mpp_window_min_v: 500 }, 400, /Give both ends of the MPP window/],
-    ['a batch and a curve at once', { batchId: 'a', curveId: 'b' }, 400, /a batch or one curve, not both/],
+    ['a batch and a curve at once', { batch_id: 'a', curve_id: 'b' }, 400, /a batch or one curve, not both/],
   ])('%s', async (_what, change, status, message) => {
     const res = await designer.post('/api/strings/size').send({ ...WORKED, ...change });
     expect(res.status).toBe(status);
@@ -168,8 +168,8 @@ describe('bad input gives a message and no number', () => {
 });
 
 describe('from uploaded batches', () => {
-  let modelBatch: { batchId: string; curveIds: string[] };
-  let measuredBatch: { batchId: string; curveIds: string[] };
+  let modelBatch: { batch_id: string; curveIds: string[] };
+  let measuredBatch: { batch_id: string; curveIds: string[] };
 
   beforeAll(async () => {
     modelBatch = await batchWith('Benchmark module at 45 °C', [['rtc-36m.csv', moduleFile('RTC-36M', 45)]]);
@@ -182,13 +182,13 @@ describe('from uploaded batches', () => {
   });
 
   it('another organisation gets 404 for the batch and for the curve, and no numbers', async () => {
-    const b = await outsider.post('/api/strings/size').send({ batchId: modelBatch.batchId, t_min_c: -10, v_sys_v: 1000 });
+    const b = await outsider.post('/api/strings/size').send({ batch_id: modelBatch.batch_id, t_min_c: -10, v_sys_v: 1000 });
     expect(b.status).toBe(404);
     expect(b.body.code).toBe('not_found');
     expect(b.body.max_modules).toBeUndefined();
-    const c = await outsider.post('/api/strings/size').send({ curveId: modelBatch.curveIds[0], t_min_c: -10, v_sys_v: 1000 });
+    const c = await outsider.post('/api/strings/size').send({ curve_id: modelBatch.curveIds[0], t_min_c: -10, v_sys_v: 1000 });
     expect(c.status).toBe(404);
-    const unknown = await designer.post('/api/strings/size').send({ batchId: 'no-such-batch', t_min_c: -10, v_sys_v: 1000 });
+    const unknown = await designer.post('/api/strings/size').send({ batch_id: 'no-such-batch', t_min_c: -10, v_sys_v: 1000 });
     expect(unknown.status).toBe(404);
   });
 
@@ -197,35 +197,35 @@ describe('from uploaded batches', () => {
     // 0.65–0.70 V. This 1986 module's cells reach only ≈ 0.52 V at 25 °C, and dVoc/dT ≈ −(Eg/q − Voc)/T
     // per cell makes its relative coefficient steeper (tests/lib/physics/fit-physics.test.ts):
     // the band −0.6…−0.3 %/K is asserted, not the common-practice figure itself.
-    const res = await designer.post('/api/strings/size').send({ batchId: modelBatch.batchId, t_min_c: -10, v_sys_v: 1000 });
+    const res = await designer.post('/api/strings/size').send({ batch_id: modelBatch.batch_id, t_min_c: -10, v_sys_v: 1000 });
     expect(res.status).toBe(200);
     const r = res.body;
-    expect(r.source.betaVoc).toEqual(expect.objectContaining({ kind: 'model', law: 'ni-power', deviceId: 'RTC-36M', curveId: modelBatch.curveIds[0], fit_temp_c: 45, cells: 36 }));
+    expect(r.source.beta_voc).toEqual(expect.objectContaining({ kind: 'model', law: 'ni-power', device_id: 'RTC-36M', curve_id: modelBatch.curveIds[0], fit_temp_c: 45, cells: 36 }));
     expect(r.inputs.beta_voc_pct_per_k).toBeLessThan(-0.3);
     expect(r.inputs.beta_voc_pct_per_k).toBeGreaterThan(-0.6);
     // Voc at STC is the curve's own STC figure; the sizing follows the formula with the values it reports.
     const curve = (await designer.get(`/api/curves/${modelBatch.curveIds[0]}`)).body;
-    expect(r.source.module).toEqual(expect.objectContaining({ kind: 'batch', deviceId: 'RTC-36M', modules: 1 }));
+    expect(r.source.module).toEqual(expect.objectContaining({ kind: 'batch', device_id: 'RTC-36M', modules: 1 }));
     expect(r.inputs.voc_stc_v).toBeCloseTo(curve.stc.voc_v, 5);
     const perModule = r.inputs.voc_stc_v * (1 + (r.inputs.beta_voc_pct_per_k / 100) * (-10 - 25));
     expect(r.voc_max_per_module_v).toBeCloseTo(perModule, 4);
     expect(r.max_modules).toBe(Math.floor(1000 / perModule));
-    expect(r.source.batch).toEqual({ id: modelBatch.batchId, name: 'Benchmark module at 45 °C' });
+    expect(r.source.batch).toEqual({ id: modelBatch.batch_id, name: 'Benchmark module at 45 °C' });
     expect(r.caution).toBe(HV_CAUTION.short);
   });
 
   it('one curve by id gives the same model coefficient as its one-curve batch', async () => {
-    const a = await designer.post('/api/strings/size').send({ batchId: modelBatch.batchId, t_min_c: -10, v_sys_v: 1000 });
-    const b = await designer.post('/api/strings/size').send({ curveId: modelBatch.curveIds[0], t_min_c: -10, v_sys_v: 1000 });
+    const a = await designer.post('/api/strings/size').send({ batch_id: modelBatch.batch_id, t_min_c: -10, v_sys_v: 1000 });
+    const b = await designer.post('/api/strings/size').send({ curve_id: modelBatch.curveIds[0], t_min_c: -10, v_sys_v: 1000 });
     expect(b.status).toBe(200);
     expect(b.body.source.module.kind).toBe('curve');
     expect(b.body.inputs.beta_voc_pct_per_k).toBeCloseTo(a.body.inputs.beta_voc_pct_per_k, 9);
   });
 
   it('two temperatures 20 K apart: β is measured, with the points used', async () => {
-    const res = await designer.post('/api/strings/size').send({ batchId: measuredBatch.batchId, t_min_c: -10, v_sys_v: 1000 });
+    const res = await designer.post('/api/strings/size').send({ batch_id: measuredBatch.batch_id, t_min_c: -10, v_sys_v: 1000 });
     expect(res.status).toBe(200);
-    const src = res.body.source.betaVoc;
+    const src = res.body.source.beta_voc;
     expect(src.kind).toBe('measured');
     expect(src.points.map((p: { temp_c: number }) => p.temp_c)).toEqual([25, 45]);
     expect(src.span_k).toBe(20);
@@ -246,28 +246,28 @@ describe('from uploaded batches', () => {
       ['a.csv', moduleFile('RTC-36M-A', 45)],
       ['b.csv', moduleFile('RTC-36M-B', 42)],
     ]);
-    const res = await designer.post('/api/strings/size').send({ batchId: close.batchId, t_min_c: -10, v_sys_v: 1000 });
+    const res = await designer.post('/api/strings/size').send({ batch_id: close.batch_id, t_min_c: -10, v_sys_v: 1000 });
     expect(res.status).toBe(200);
-    expect(res.body.source.betaVoc.kind).toBe('model');
-    expect(res.body.source.betaVoc.note).toMatch(/span only 3 K of cell temperature, less than the 5 K/);
+    expect(res.body.source.beta_voc.kind).toBe('model');
+    expect(res.body.source.beta_voc.note).toMatch(/span only 3 K of cell temperature, less than the 5 K/);
   });
 
   it('explicit values in the request override the batch’s', async () => {
-    const res = await designer.post('/api/strings/size').send({ batchId: measuredBatch.batchId, voc_stc_v: 20, beta_voc_pct_per_k: -0.3, t_min_c: -10, v_sys_v: 1000 });
+    const res = await designer.post('/api/strings/size').send({ batch_id: measuredBatch.batch_id, voc_stc_v: 20, beta_voc_pct_per_k: -0.3, t_min_c: -10, v_sys_v: 1000 });
     expect(res.status).toBe(200);
     expect(res.body.source.module).toEqual({ kind: 'entered' });
-    expect(res.body.source.betaVoc).toEqual({ kind: 'entered' });
+    expect(res.body.source.beta_voc).toEqual({ kind: 'entered' });
     // By hand: 20·(1 + (−0.003)·(−35)) = 20·1.105 = 22.1 V → ⌊1000/22.1⌋ = ⌊45.25⌋ = 45.
     expect(res.body.voc_max_per_module_v).toBeCloseTo(22.1, 6);
     expect(res.body.max_modules).toBe(45);
   });
 
   it('the MPP window takes the batch’s lowest Vmp and the model’s Vmp coefficient', async () => {
-    const res = await designer.post('/api/strings/size').send({ batchId: modelBatch.batchId, t_min_c: -10, t_cell_max_c: 65, v_sys_v: 1000, mpp_window_min_v: 200, mpp_window_max_v: 800 });
+    const res = await designer.post('/api/strings/size').send({ batch_id: modelBatch.batch_id, t_min_c: -10, t_cell_max_c: 65, v_sys_v: 1000, mpp_window_min_v: 200, mpp_window_max_v: 800 });
     expect(res.status).toBe(200);
     const r = res.body;
-    expect(r.source.vmpStc).toEqual(expect.objectContaining({ kind: 'batch', deviceId: 'RTC-36M' }));
-    expect(r.source.betaVmp.kind).toBe('model');
+    expect(r.source.vmp_stc).toEqual(expect.objectContaining({ kind: 'batch', device_id: 'RTC-36M' }));
+    expect(r.source.beta_vmp.kind).toBe('model');
     // Vmp falls faster than Voc with temperature (common practice ≈ −0.4 vs −0.3 %/K for c-Si).
     expect(r.inputs.beta_vmp_pct_per_k).toBeLessThan(r.inputs.beta_voc_pct_per_k);
     const hot = r.inputs.vmp_stc_v * (1 + (r.inputs.beta_vmp_pct_per_k / 100) * (65 - 25));
@@ -277,7 +277,7 @@ describe('from uploaded batches', () => {
 
   it('a batch without curves says so (422) and sizes nothing', async () => {
     const b = await tester.post('/api/batches').send({ name: 'Empty batch' });
-    const res = await designer.post('/api/strings/size').send({ batchId: b.body.id, t_min_c: -10, v_sys_v: 1000 });
+    const res = await designer.post('/api/strings/size').send({ batch_id: b.body.id, t_min_c: -10, v_sys_v: 1000 });
     expect(res.status).toBe(422);
     expect(res.body.code).toBe('no_module_data');
     expect(res.body.message).toMatch(/no curves yet/);
