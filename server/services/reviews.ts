@@ -17,6 +17,7 @@ import { batchJson, loadBatch } from '@/server/services/batches';
 import type { BatchRow } from '@/server/services/batches';
 import { deviceRecords } from '@/server/services/quality';
 import { loadSpec } from '@/server/services/specs';
+import type { ReviewListOut } from '@/lib/schemas/responses';
 
 /** The parameters whose outliers an evaluation marks. */
 const OUTLIER_PARAMS = ['pmp_w', 'voc_v', 'isc_a', 'ff', 'rs_ohm'] as const;
@@ -76,7 +77,7 @@ export async function reviewHistory(db: Db, organizationId: string, batchId: str
     .leftJoin(user, eq(user.id, batchReview.actorId))
     .where(eq(batchReview.batchId, b.id))
     .orderBy(desc(batchReview.createdAt));
-  return { reviews: rows };
+  return { reviews: rows } satisfies ReviewListOut;
 }
 
 /** The mail to a QA lead when a batch is submitted for review. */

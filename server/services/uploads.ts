@@ -12,6 +12,7 @@ import type { AnalysisOutcome, Analyser } from '@/server/services/analysis-pool'
 import { loadWritableBatch } from '@/server/services/batches';
 import { storeCurves } from '@/server/services/curves';
 import type { CurveToStore } from '@/server/services/curves';
+import type { UploadAnswerOut, UploadFileResult } from '@/lib/schemas/responses';
 
 /** Curves stored per transaction during an upload (measured: ~1 ms a curve in groups of 25, ~3.5 ms one by one). */
 export const STORE_GROUP = 25;
@@ -20,11 +21,10 @@ const TEXT_EXTENSIONS = /\.(csv|tsv|txt|dat|iv)$/i;
 /** One received file: its name as sent (UTF-8) and its bytes. */
 export type UploadedFile = { name: string; bytes: Uint8Array };
 
-export type UploadResult =
-  | { file: string; accepted: true; curve_id: string; device_id: string; replaced?: number }
-  | { file: string; accepted: false; error: string; code: string; device_id?: string; line?: number };
+/** One file's answer (lib/schemas/responses.ts uploadResultSchema). */
+export type UploadResult = UploadFileResult;
 
-export type UploadAnswer = { results: UploadResult[]; accepted: number; rejected: number };
+export type UploadAnswer = UploadAnswerOut;
 
 /**
  * Reads, fits and stores the files in the batch. A rejected file stores nothing and the others go

@@ -3,6 +3,7 @@ import { and, asc, desc, eq } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { mailLog, member, user } from '@/db/schema';
 import type { Role } from '@/lib/auth/roles';
+import type { OutboxOut, UserListOut } from '@/lib/schemas/responses';
 import type { Auth } from '@/server/auth';
 import { HttpError } from '@/server/errors';
 
@@ -14,7 +15,7 @@ export async function listUsers(db: Db, organizationId: string) {
     .innerJoin(user, eq(member.userId, user.id))
     .where(eq(member.organizationId, organizationId))
     .orderBy(asc(user.name));
-  return { users: rows };
+  return { users: rows.map((r) => ({ ...r, role: r.role as Role })) } satisfies UserListOut;
 }
 
 /**
@@ -35,5 +36,5 @@ export async function changeRole(db: Db, auth: Auth, by: { organizationId: strin
 /** The last 200 messages sent for the organisation, newest first. */
 export async function outbox(db: Db, organizationId: string) {
   const rows = await db.select().from(mailLog).where(eq(mailLog.organizationId, organizationId)).orderBy(desc(mailLog.createdAt)).limit(200);
-  return { messages: rows.map((m) => ({ id: m.id, to: m.to, subject: m.subject, body: m.body, kind: m.kind, transport: m.transport, file: m.file, created_at: m.createdAt })) };
+  return { messages: rows.map((m) => ({ id: m.id, to: m.to, subject: m.subject, body: m.body, kind: m.kind, transport: m.transport, file: m.file, created_at: m.createdAt })) } satisfies OutboxOut;
 }

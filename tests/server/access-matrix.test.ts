@@ -20,6 +20,24 @@ import type { Permission, Role } from '@/lib/auth/roles';
 import { simulateCurve } from '@/lib/iv';
 import { storeCurve } from '@/server/services/curves';
 import { nonSnakeKeys } from '@/tests/support/json-keys';
+import type { ZodType } from 'zod';
+import {
+  batchListSchema,
+  batchSchema,
+  comparisonWireSchema,
+  curveDetailSchema,
+  curvePageSchema,
+  evaluationSchema,
+  meSchema,
+  outboxSchema,
+  overlaySchema,
+  refitAnswerSchema,
+  reviewListSchema,
+  specJsonSchema,
+  specListSchema,
+  uploadAnswerSchema,
+  userListSchema,
+} from '@/lib/schemas/responses';
 import { agentFor, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
 
@@ -260,5 +278,41 @@ describe('one vocabulary: every key of every JSON answer is snake_case', () => {
     // The test can fail: a made-up answer with one wrong key at each depth.
     const answer = { batches: [{ id: 'x', curve_count: 2, power_class_counts: { P400: 1 } }], meta: { temp_c: 25 } };
     expect(nonSnakeKeys(answer)).toEqual(['$.batches[0].curve_count', '$.meta.temp_c']);
+  });
+});
+
+/** The response schema of each route (lib/schemas/responses.ts); the client's types are inferred from them. */
+const RESPONSE_SCHEMAS: Record<string, ZodType> = {
+  'GET /api/me': meSchema,
+  'GET /api/users': userListSchema,
+  'GET /api/outbox': outboxSchema,
+  'GET /api/batches': batchListSchema,
+  'POST /api/batches': batchSchema,
+  'GET /api/batches/:id': batchSchema,
+  'PATCH /api/batches/:id': batchSchema,
+  'POST /api/batches/:id/curves': uploadAnswerSchema,
+  'GET /api/batches/:id/curves': curvePageSchema,
+  'GET /api/batches/:id/overlay': overlaySchema,
+  'GET /api/batches/:id/evaluation': evaluationSchema,
+  'GET /api/batches/:id/reviews': reviewListSchema,
+  'GET /api/specs': specListSchema,
+  'GET /api/specs/:id': specJsonSchema,
+  'POST /api/specs': specJsonSchema,
+  'GET /api/compare': comparisonWireSchema,
+  'GET /api/curves/:id': curveDetailSchema,
+  'POST /api/curves/:id/refit': refitAnswerSchema,
+};
+
+describe('the answers match the response schemas the client is typed with (strict objects)', () => {
+  it.each(Object.entries(RESPONSE_SCHEMAS))('%s', async (name, schema) => {
+    const route = ROUTES.find((r) => `${r.method} ${r.path}` === name)!;
+    const res = await send(allowedAgent(route), route.method, await route.build());
+    expect(res.status).toBe(route.ok);
+    const parsed = schema.safeParse(res.body);
+    expect(parsed.success ? [] : parsed.error.issues.slice(0, 5)).toEqual([]);
+  });
+
+  it('a strict schema refuses a key it does not name (the test can fail)', () => {
+    expect(batchListSchema.safeParse({ batches: [{ id: 'x', createdAt: 'then' }] }).success).toBe(false);
   });
 });

@@ -83,7 +83,7 @@ describe('batches', () => {
 });
 
 describe('upload', () => {
-  let results: { file: string; accepted: boolean; curveId?: string; error?: string; code?: string }[];
+  let results: { file: string; accepted: boolean; curve_id?: string; error?: string; code?: string }[];
 
   beforeAll(async () => {
     const res = await tester
