@@ -200,6 +200,7 @@ export const QUANTITIES: readonly Quantity[] = [
   q('strings', 'curves', 'Curves', '', count),
   q('strings', 'span_k', 'Temperature span', 'K', { digits: 3 }),
   q('strings', 'r2', 'R²', '', { digits: 3 }),
+  q('strings', 'points', 'Points on the line', '', count),
   q('strings', 'value_v', 'Value used', 'V'),
   q('strings', 'mean_v', 'Mean', 'V'),
 ];
