@@ -177,7 +177,7 @@ describe('POST /api/physics/band-diagram', () => {
     expect(b.diagram.splitting_ev).toBeCloseTo(lv.EFn - lv.EFp, 12);
     // Occupation curves: probabilities, one per energy.
     expect(b.occupation.energy_ev).toHaveLength(121);
-    for (const key of ['equilibrium', 'electrons', 'holes']) {
+    for (const key of ['occupation_equilibrium', 'occupation_electrons', 'occupation_holes']) {
       expect(b.occupation[key]).toHaveLength(121);
       for (const f of b.occupation[key]) expect(f >= 0 && f <= 1).toBe(true);
     }

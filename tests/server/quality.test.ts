@@ -250,7 +250,7 @@ describe('comparison', () => {
     expect(res.body.rows).toBeUndefined();
     const rows = rowsOfColumns(res.body.tables, res.body.outliers, res.body.batches);
     expect(rows).toHaveLength(n2 + n3);
-    expect(rows.filter((r) => r.batchId === lineTwo)).toHaveLength(n2);
+    expect(rows.filter((r) => r.batch_id === lineTwo)).toHaveLength(n2);
     expect(rows[0]).toEqual(expect.objectContaining({ device_id: expect.any(String), pmp_w: expect.any(Number), rs_ohm: expect.any(Number), result: expect.stringMatching(/pass|fail/) }));
     const s2 = res.body.stats[lineTwo].rs_ohm;
     expect(s2.n).toBe(n2);
@@ -258,7 +258,7 @@ describe('comparison', () => {
     const d = res.body.differences[0];
     // Independent check of the difference and the Welch–Satterthwaite degrees of freedom
     // (Welch 1947) from the rows themselves.
-    const pick = (id: string) => rows.filter((r) => r.batchId === id).map((r) => r.rs_ohm as number);
+    const pick = (id: string) => rows.filter((r) => r.batch_id === id).map((r) => r.rs_ohm as number);
     const a = pick(lineTwo);
     const b = pick(lineThree);
     const mean = (x: number[]) => x.reduce((s, v) => s + v, 0) / x.length;
@@ -278,7 +278,7 @@ describe('comparison', () => {
     for (const param of ['pmp_w', 'rs_ohm', 'ff']) {
       const res = await designer.get(`/api/compare?batches=${lineTwo},${lineThree}&spec=${spec.id}&param=${param}`);
       expect(res.status).toBe(200);
-      const rows = rowsOfColumns(res.body.tables, res.body.outliers, res.body.batches).filter((r) => r.batchId === lineTwo);
+      const rows = rowsOfColumns(res.body.tables, res.body.outliers, res.body.batches).filter((r) => r.batch_id === lineTwo);
       const expected = new Map(evaluation.devices.map((d: { device_id: string; outlier_params: string[] }) => [d.device_id, d.outlier_params.includes(param)]));
       expect(rows).toHaveLength(expected.size);
       for (const r of rows) expect(r.outlier).toBe(expected.get(r.device_id));

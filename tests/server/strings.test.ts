@@ -101,7 +101,7 @@ describe('POST /api/strings/size with typed values', () => {
     expect(r.above_elv).toBe(true); // 1449 V is far above the 60 V DC touch limit (common practice)
     expect(r.warnings).toEqual([]);
     expect(r.caution).toBe(HV_CAUTION.short);
-    expect(r.source).toEqual({ batch: null, module: { kind: 'entered' }, betaVoc: { kind: 'entered' }, vmpStc: { kind: 'entered' }, betaVmp: { kind: 'entered' } });
+    expect(r.source).toEqual({ batch: null, module: { kind: 'entered' }, beta_voc: { kind: 'entered' }, vmp_stc: { kind: 'entered' }, beta_vmp: { kind: 'entered' } });
     expect(r.inputs).toEqual({ ...WORKED, t_cell_max_c: 70 });
   });
 
@@ -139,7 +139,7 @@ describe('bad input gives a message and no number', () => {
     ['no record low', { t_min_c: undefined }, 400, /t_min_c: Enter the site’s record low/],
     ['no system limit', { v_sys_v: '' }, 400, /v_sys_v: Enter the system voltage limit/],
     ['a word for a number', { voc_stc_v: 'fifty' }, 400, /voc_stc_v: Voc at STC \(V\) must be a number/],
-    ['one end of the MPP window', { mpp_window_min_v: 500 }, 400, /Give both ends of the MPP window/],
+    ['one end of the MPP window', { mpp_window_max_v: null }, 400, /Give both ends of the MPP window/],
     ['a batch and a curve at once', { batch_id: 'a', curve_id: 'b' }, 400, /a batch or one curve, not both/],
   ])('%s', async (_what, change, status, message) => {
     const res = await designer.post('/api/strings/size').send({ ...WORKED, ...change });
