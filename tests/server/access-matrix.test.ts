@@ -276,8 +276,9 @@ describe('one vocabulary: every key of every JSON answer is snake_case', () => {
 
   it('the walk finds a camelCase key, also deep in arrays, and skips only data maps', () => {
     // The test can fail: a made-up answer with one wrong key at each depth.
-    const answer = { batches: [{ id: 'x', curve_count: 2, power_class_counts: { P400: 1 } }], meta: { temp_c: 25 } };
-    expect(nonSnakeKeys(answer)).toEqual(['$.batches[0].curve_count', '$.meta.temp_c']);
+    // (Made-up names that no renaming touches, so the check stays a check.)
+    const answer = { batches: [{ id: 'x', curvesTotal: 2, power_class_counts: { P400: 1 } }], meta: { cellTemp_C: 25 } };
+    expect(nonSnakeKeys(answer)).toEqual(['$.batches[0].curvesTotal', '$.meta.cellTemp_C']);
   });
 });
 
