@@ -9,7 +9,7 @@
  * bundle do not carry ml-matrix.
  */
 import { levenbergMarquardt as mlLevenbergMarquardt } from 'ml-levenberg-marquardt';
-import { thermalVoltage_V } from '@/lib/physics/constants';
+import { thermal_voltage_v } from '@/lib/physics/constants';
 import { sdCurrent } from '@/lib/iv/diode';
 import { fitConditions, nowMs } from '@/lib/iv/fit-common';
 import { singleDiodeBounds, singleDiodeProblem, singleDiodeResult } from '@/lib/iv/fit-single';
@@ -20,7 +20,7 @@ import type { IvCurve, Metrics, SingleDiodeFit } from '@/lib/iv/types';
 
 /** Options of the library-based fit (true-current objective only). */
 export type MlFitOptions = {
-  tempC?: number;
+  temp_c?: number;
   cells?: number;
   metrics?: Metrics;
   /** 'analytic' passes our Jacobian to the library; 'central' lets it difference (default). */
@@ -31,13 +31,13 @@ export type MlFitOptions = {
 /** Single-diode fit (true current) by ml-levenberg-marquardt from the same Phang start. */
 export function fitSingleDiodeMl(curve: IvCurve, opts: MlFitOptions = {}): SingleDiodeFit {
   const t0 = nowMs();
-  const { tempC, cells } = fitConditions(curve, opts);
+  const { temp_c, cells } = fitConditions(curve, opts);
   const { v, i } = validateCurve(curve);
   const metrics = opts.metrics ?? keyFiguresOfSorted(v, i, curve, false).metrics;
   const isc = metrics.isc_a;
   const rRef = metrics.voc_v / isc;
-  const cv = cells * thermalVoltage_V(tempC);
-  const start = phangStart(metrics, cells, tempC);
+  const cv = cells * thermal_voltage_v(temp_c);
+  const start = phangStart(metrics, cells, temp_c);
   const toPhysical = (p: ArrayLike<number>) => ({ iph: p[0] * isc, lnI0: p[1] + Math.log(isc), n: p[2], rs: p[3] * rRef, lnRsh: p[4] + Math.log(rRef) });
   const bounds = singleDiodeBounds(metrics);
   const scaleMin = [bounds.lower[0] / isc, bounds.lower[1] - Math.log(isc), bounds.lower[2], bounds.lower[3] / rRef, bounds.lower[4] - Math.log(rRef)];
@@ -88,7 +88,7 @@ export function fitSingleDiodeMl(curve: IvCurve, opts: MlFitOptions = {}): Singl
   const x = Float64Array.from([q.iph, q.lnI0, q.n, q.rs, q.lnRsh]);
 
   // Judge convergence with the engine's own stationarity test at the library's answer.
-  const problem = singleDiodeProblem(v, i, cells, tempC, 'true-current', bounds);
+  const problem = singleDiodeProblem(v, i, cells, temp_c, 'true-current', bounds);
   const r = new Float64Array(v.length);
   const jac = new Float64Array(v.length * 5);
   const ok = problem.evaluate(x, r, jac);
@@ -114,7 +114,7 @@ export function fitSingleDiodeMl(curve: IvCurve, opts: MlFitOptions = {}): Singl
     v,
     i,
     cells,
-    tempC,
+    temp_c,
     'true-current',
     t0,
     converged ? undefined : `ml-levenberg-marquardt stopped after ${out.iterations} iterations away from a stationary point (largest residual–Jacobian cosine ${gmax.toExponential(1)}).`,

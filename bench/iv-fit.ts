@@ -17,7 +17,7 @@ import {
 import type { FitResult, IvCurve, SingleDiodeParams } from '@/lib/iv';
 import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
-type Device = { kind: 'cell' | 'module-60' | 'module-72'; params: SingleDiodeParams; cells: number; tempC: number; curve: IvCurve };
+type Device = { kind: 'cell' | 'module-60' | 'module-72'; params: SingleDiodeParams; cells: number; temp_c: number; curve: IvCurve };
 
 const quantile = (xs: number[], q: number) => {
   const s = [...xs].sort((a, b) => a - b);
@@ -34,7 +34,7 @@ function makeDevices(count: number, seed: number): Device[] {
   for (let k = 0; k < count; k++) {
     const kind = (['cell', 'module-60', 'module-72'] as const)[k % 3];
     const cells = kind === 'cell' ? 1 : kind === 'module-60' ? 60 : 72;
-    const tempC = between(20, 50);
+    const temp_c = between(20, 50);
     const iph = between(8, 11);
     const n = between(1.0, 1.6);
     const params: SingleDiodeParams = {
@@ -44,9 +44,9 @@ function makeDevices(count: number, seed: number): Device[] {
       rs_ohm: cells * between(0.002, 0.008),
       rsh_ohm: cells * logBetween(5, 100),
     };
-    const voc = singleDiodeVoltage(params, 0, cells, tempC);
-    const curve = simulateCurve(params, { cells, tempC, points: 200, vMin: -0.02 * voc, vMax: 1.02 * voc, noise_a: 0.001 * iph, seed: seed + k });
-    out.push({ kind, params, cells, tempC, curve });
+    const voc = singleDiodeVoltage(params, 0, cells, temp_c);
+    const curve = simulateCurve(params, { cells, temp_c, points: 200, vMin: -0.02 * voc, vMax: 1.02 * voc, noise_a: 0.001 * iph, seed: seed + k });
+    out.push({ kind, params, cells, temp_c, curve });
   }
   return out;
 }
@@ -75,9 +75,9 @@ export async function benchIvFit(opts: { quick?: boolean } = {}): Promise<Record
   const devices = makeDevices(n, 20240601);
 
   // Warm the JIT so the first curves do not carry compile time.
-  for (const d of makeDevices(30, 7)) fitSingleDiode(d.curve, { cells: d.cells, tempC: d.tempC });
+  for (const d of makeDevices(30, 7)) fitSingleDiode(d.curve, { cells: d.cells, temp_c: d.temp_c });
 
-  const own = timeFits(devices, (d) => fitSingleDiode(d.curve, { cells: d.cells, tempC: d.tempC }));
+  const own = timeFits(devices, (d) => fitSingleDiode(d.curve, { cells: d.cells, temp_c: d.temp_c }));
   const converged = own.results.filter((r) => r.converged).length;
   const nErr = own.results.map((r, k) => (r.n ? Math.abs(r.n / devices[k].params.n - 1) : Infinity));
   const rsErr = own.results.map((r, k) => (r.rs_ohm !== null && r.rs_ohm !== undefined ? Math.abs(r.rs_ohm / devices[k].params.rs_ohm - 1) : Infinity));
@@ -87,27 +87,27 @@ export async function benchIvFit(opts: { quick?: boolean } = {}): Promise<Record
   }
 
   const doubleSet = devices.slice(0, nDouble);
-  const dFixed = timeFits(doubleSet, (d) => fitDoubleDiode(d.curve, { cells: d.cells, tempC: d.tempC }));
-  const dFree = timeFits(doubleSet, (d) => fitDoubleDiode(d.curve, { cells: d.cells, tempC: d.tempC, idealities: 'free', i0Max_a: 1e-3 }));
+  const dFixed = timeFits(doubleSet, (d) => fitDoubleDiode(d.curve, { cells: d.cells, temp_c: d.temp_c }));
+  const dFree = timeFits(doubleSet, (d) => fitDoubleDiode(d.curve, { cells: d.cells, temp_c: d.temp_c, idealities: 'free', i0Max_a: 1e-3 }));
 
   // ml-levenberg-marquardt on the same curves, same start; 20 iterations (it has no stopping test).
   const mlSet = devices.slice(0, nMl);
-  const mlCentral = timeFits(mlSet, (d) => fitSingleDiodeMl(d.curve, { cells: d.cells, tempC: d.tempC, maxIterations: 20 }));
-  const mlAnalytic = timeFits(mlSet, (d) => fitSingleDiodeMl(d.curve, { cells: d.cells, tempC: d.tempC, maxIterations: 20, jacobian: 'analytic' }));
+  const mlCentral = timeFits(mlSet, (d) => fitSingleDiodeMl(d.curve, { cells: d.cells, temp_c: d.temp_c, maxIterations: 20 }));
+  const mlAnalytic = timeFits(mlSet, (d) => fitSingleDiodeMl(d.curve, { cells: d.cells, temp_c: d.temp_c, maxIterations: 20, jacobian: 'analytic' }));
   const sameOptimum = (res: FitResult[]) =>
     res.filter((r, k) => r.converged && own.results[k].rmse_a !== null && r.rmse_a !== null && r.rmse_a <= (own.results[k].rmse_a as number) * 1.001).length;
 
   // The published reference curves through both solvers.
   const refDir = REFERENCE_DATA_DIR;
   const reference: Record<string, unknown> = {};
-  for (const [file, tempC, cells, target] of [
+  for (const [file, temp_c, cells, target] of [
     ['cell-57mm-33C.csv', 33, 1, 7.7301e-4],
     ['module-36cell-45C.csv', 45, 36, 2.053e-3],
   ] as const) {
     // In the repository (tests/fixtures/reference-data): a missing file is an error, not a skip.
     const curve = parseIvText(readFileSync(path.join(refDir, file), 'utf8'), { fileName: file });
-    const a = fitSingleDiode(curve, { tempC, cells });
-    const b = fitSingleDiodeMl(curve, { tempC, cells, maxIterations: 20, jacobian: 'analytic' });
+    const a = fitSingleDiode(curve, { temp_c, cells });
+    const b = fitSingleDiodeMl(curve, { temp_c, cells, maxIterations: 20, jacobian: 'analytic' });
     reference[file] = { target_rmse_a: target, own_rmse_a: a.rmse_a, own_evaluations: a.evaluations, ml_rmse_a: b.rmse_a, ml_evaluations: b.evaluations };
   }
 

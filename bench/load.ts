@@ -125,14 +125,14 @@ async function main(): Promise<number> {
     for (let k = 0; k < opts.uploaders; k++) writers.push(await signIn(server.url, ENGINEER.email, ENGINEER.password));
     const writerBatches: string[] = [];
     for (let k = 0; k < opts.uploaders; k++) writerBatches.push(await createBatch(writers[k], { name: `Load client ${k + 1}`, description: 'npm run load' }));
-    const demo = (await api<{ batches: { id: string; curveCount: number }[] }>(readerSession, 'GET', '/api/batches')).batches.filter((b) => !writerBatches.includes(b.id));
+    const demo = (await api<{ batches: { id: string; curve_count: number }[] }>(readerSession, 'GET', '/api/batches')).batches.filter((b) => !writerBatches.includes(b.id));
 
     // The read mix: the batch list, each batch's summary, and curve pages sorted by Pmax.
     const paths = ['/api/batches'];
     for (const id of [...demo.map((b) => b.id), ...writerBatches]) {
-      paths.push(`/api/batches/${id}`, `/api/batches/${id}/curves?page=1&pageSize=50&sort=pmp_w&dir=desc`);
+      paths.push(`/api/batches/${id}`, `/api/batches/${id}/curves?page=1&page_size=50&sort=pmp_w&dir=desc`);
     }
-    for (const id of writerBatches) paths.push(`/api/batches/${id}/curves?page=2&pageSize=50&sort=pmp_w&dir=desc`);
+    for (const id of writerBatches) paths.push(`/api/batches/${id}/curves?page=2&page_size=50&sort=pmp_w&dir=desc`);
 
     // Warm the server (JIT, caches) with two quiet passes, as a server in use would be: otherwise the
     // first burst of 50 simultaneous requests on a cold process dominates the tail.
@@ -172,7 +172,7 @@ async function main(): Promise<number> {
     if (readerCode !== 0 || !existsSync(out)) throw new Error(`the reader process failed (${readerCode}):\n${r.log()}`);
     const reads = JSON.parse(readFileSync(out, 'utf8')) as ReaderFigures;
 
-    const stored = (await api<{ batches: { id: string; curveCount: number }[] }>(readerSession, 'GET', '/api/batches')).batches.filter((b) => writerBatches.includes(b.id)).reduce((s, b) => s + b.curveCount, 0);
+    const stored = (await api<{ batches: { id: string; curve_count: number }[] }>(readerSession, 'GET', '/api/batches')).batches.filter((b) => writerBatches.includes(b.id)).reduce((s, b) => s + b.curve_count, 0);
     const accepted = uploads.reduce((s, u) => s + u.accepted, 0);
     const uploadErrors = uploads.filter((u) => u.error);
     const readErrors = reads.non2xx + reads.errors; // autocannon counts timeouts among its errors

@@ -104,8 +104,8 @@ export async function benchServer(opts: { quick?: boolean } = {}): Promise<Recor
     const spec = await api<{ id: string }>(qa, 'POST', '/api/specs', {
       name: 'Bench spec',
       limits: { pmp_w: { min: 4 }, ff: { min: 0.7, max: 0.86 }, rs_ohm: { max: 0.6 } },
-      powerClasses: { step_w: 5 },
-      failFlags: ['step'],
+      power_classes: { step_w: 5 },
+      fail_flags: ['step'],
     });
     const designer = await signIn(baseUrl, DESIGNER.email, DESIGNER.password);
 
@@ -116,9 +116,9 @@ export async function benchServer(opts: { quick?: boolean } = {}): Promise<Recor
         const group = [];
         for (let j = j0; j < Math.min(perBatch, j0 + 25); j++) {
           const a = pool[(j * 7 + b) % pool.length];
-          const deviceId = `CMP${b}-${String(j).padStart(5, '0')}`;
-          const analysis: FileAnalysis = { ...a, curve: { ...a.curve, meta: { ...a.curve.meta, deviceId } } };
-          group.push({ id: crypto.randomUUID(), fileName: `${deviceId}.csv`, analysis });
+          const device_id = `CMP${b}-${String(j).padStart(5, '0')}`;
+          const analysis: FileAnalysis = { ...a, curve: { ...a.curve, meta: { ...a.curve.meta, device_id } } };
+          group.push({ id: crypto.randomUUID(), fileName: `${device_id}.csv`, analysis });
         }
         await storeCurves(db, { organizationId: org.id, batchId: id, userId: eng.id }, group);
       }

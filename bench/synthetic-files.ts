@@ -12,12 +12,12 @@ export type SyntheticFile = {
   name: string;
   deviceId: string;
   cells: number;
-  tempC: number;
+  temp_c: number;
   /** The file's text, as uploaded. */
   text: string;
   /** The points as written to the file (rounded to 5 decimals, as parsed back by the server). */
-  voltage_V: number[];
-  current_A: number[];
+  voltage_v: number[];
+  current_a: number[];
 };
 
 export const SYNTHETIC_POINTS = 200;
@@ -35,7 +35,7 @@ export function syntheticFiles(count: number, opts: { seed?: number; prefix?: st
   const out: SyntheticFile[] = [];
   for (let k = 0; k < count; k++) {
     const cells = k % 2 === 0 ? 1 : 60;
-    const tempC = Math.round(between(22, 30) * 10) / 10;
+    const temp_c = Math.round(between(22, 30) * 10) / 10;
     const iph = between(9, 11);
     const n = between(1.0, 1.4);
     const params: SingleDiodeParams = {
@@ -45,21 +45,21 @@ export function syntheticFiles(count: number, opts: { seed?: number; prefix?: st
       rs_ohm: cells * between(0.002, 0.006),
       rsh_ohm: cells * logBetween(10, 100),
     };
-    const voc = singleDiodeVoltage(params, 0, cells, tempC);
-    const curve = simulateCurve(params, { cells, tempC, points: SYNTHETIC_POINTS, vMin: -0.02 * voc, vMax: 1.02 * voc, noise_a: 0.001 * iph, seed: seed + k });
+    const voc = singleDiodeVoltage(params, 0, cells, temp_c);
+    const curve = simulateCurve(params, { cells, temp_c, points: SYNTHETIC_POINTS, vMin: -0.02 * voc, vMax: 1.02 * voc, noise_a: 0.001 * iph, seed: seed + k });
     const deviceId = `${prefix}-${cells === 1 ? 'C' : 'M'}-${String(k + 1).padStart(5, '0')}`;
-    const voltage_V = curve.voltage_V.map((v) => Number(v.toFixed(5)));
-    const current_A = curve.current_A.map((i) => Number(i.toFixed(5)));
+    const voltage_v = curve.voltage_v.map((v) => Number(v.toFixed(5)));
+    const current_a = curve.current_a.map((i) => Number(i.toFixed(5)));
     const lines = [
       `# device: ${deviceId}`,
-      `# cell temperature: ${tempC}`,
+      `# cell temperature: ${temp_c}`,
       '# irradiance: 1000',
       `# cells in series: ${cells}`,
       `# area: ${cells === 1 ? 244.3 : 16610}`,
       'Voltage (V),Current (A)',
-      ...voltage_V.map((v, j) => `${v.toFixed(5)},${current_A[j].toFixed(5)}`),
+      ...voltage_v.map((v, j) => `${v.toFixed(5)},${current_a[j].toFixed(5)}`),
     ];
-    out.push({ name: `${deviceId}.csv`, deviceId, cells, tempC, text: lines.join('\n') + '\n', voltage_V, current_A });
+    out.push({ name: `${deviceId}.csv`, deviceId, cells, temp_c, text: lines.join('\n') + '\n', voltage_v, current_a });
   }
   return out;
 }

@@ -33,10 +33,10 @@ export function fitFileOutput(file: string, settings: FitSettings): FileOutput {
     const curve = parseIvBytes(bytes, { fileName: file, overrides });
     const { metrics, flags, fits } = analyseCurve(curve, { models: [model], objective, idealities });
     const fit = fits[0];
-    if (json) return { stdout: `${JSON.stringify({ file, deviceId: curve.meta.deviceId, metrics: tidyObject(metrics), fit, flags })}\n`, stderr: '', failed: false };
-    const tempC = curve.meta.tempC === undefined ? '25 °C (assumed)' : `${curve.meta.tempC} °C`;
+    if (json) return { stdout: `${JSON.stringify({ file, device_id: curve.meta.device_id, metrics: tidyObject(metrics), fit, flags })}\n`, stderr: '', failed: false };
+    const temp_c = curve.meta.temp_c === undefined ? '25 °C (assumed)' : `${curve.meta.temp_c} °C`;
     const cells = curve.meta.cells === undefined ? '1 cell (assumed)' : `${curve.meta.cells} cell${curve.meta.cells > 1 ? 's' : ''}`;
-    return { stdout: `${table(file, curve.meta, metrics, fit, flags, tempC, cells)}\n\n`, stderr: '', failed: false };
+    return { stdout: `${table(file, curve.meta, metrics, fit, flags, temp_c, cells)}\n\n`, stderr: '', failed: false };
   } catch (err) {
     if (!(err instanceof IvInputError)) {
       // A bug, not bad input: still one line per file, but say so.
@@ -53,9 +53,9 @@ const sig = (x: number | null | undefined, digits = 5) => (x === null || x === u
 const tidyObject = <T extends Record<string, unknown>>(o: T): T =>
   Object.fromEntries(Object.entries(o).map(([k, v]) => [k, typeof v === 'number' ? Number(v.toPrecision(12)) : v])) as T;
 
-function table(file: string, meta: CurveMeta, metrics: Metrics, fit: FitResult, flags: Flag[], tempC: string, cells: string): string {
+function table(file: string, meta: CurveMeta, metrics: Metrics, fit: FitResult, flags: Flag[], temp_c: string, cells: string): string {
   const lines: string[] = [];
-  lines.push(`${file}${meta.deviceId ? `  (${meta.deviceId})` : ''}  ${tempC}, ${cells}`);
+  lines.push(`${file}${meta.device_id ? `  (${meta.device_id})` : ''}  ${temp_c}, ${cells}`);
   lines.push(
     `  Isc ${sig(metrics.isc_a)} A   Voc ${sig(metrics.voc_v)} V   Pmp ${sig(metrics.pmp_w)} W at ${sig(metrics.vmp_v)} V, ${sig(metrics.imp_a)} A` +
       `   FF ${sig(metrics.ff * 100, 4)} %   efficiency ${metrics.efficiency === null ? '– (needs area and irradiance)' : `${sig(metrics.efficiency * 100, 4)} %`}`,

@@ -39,12 +39,12 @@ function spread(ys: number[], gap: number, lo: number, hi: number): number[] {
  * Ei, the equilibrium Fermi level E_F and, under injection, the quasi-Fermi levels E_Fn and E_Fp
  * with their splitting. Energies in eV measured from Ei; labels carry the values.
  */
-export function BandDiagram({ levels, splitting_eV, height = 300, testID }: { levels: BandLevel[]; splitting_eV: number; height?: number; testID?: string }) {
-  const at = Object.fromEntries(levels.map((l) => [l.key, l.energy_eV])) as Record<Key, number>;
+export function BandDiagram({ levels, splitting_ev, height = 300, testID }: { levels: BandLevel[]; splitting_ev: number; height?: number; testID?: string }) {
+  const at = Object.fromEntries(levels.map((l) => [l.key, l.energy_ev])) as Record<Key, number>;
   const gap = at.Ec - at.Ev;
   const eTop = at.Ec + 0.16 * gap;
   const eBottom = at.Ev - 0.16 * gap;
-  const summary = levels.map((l) => `${LOOK[l.key].name} ${signed(l.energy_eV)} eV`).join(', ');
+  const summary = levels.map((l) => `${LOOK[l.key].name} ${signed(l.energy_ev)} eV`).join(', ');
   return (
     <ChartFrame height={height} testID={testID}>
       {(width) => {
@@ -53,8 +53,8 @@ export function BandDiagram({ levels, splitting_eV, height = 300, testID }: { le
         const y = (e: number) => top + ((eTop - e) / (eTop - eBottom)) * (bottom - top);
         const x0 = 8;
         const x1 = Math.max(x0 + 80, width - LABEL_COLUMN);
-        const order = [...levels].sort((a, b) => b.energy_eV - a.energy_eV);
-        const labelY = spread(order.map((l) => y(l.energy_eV)), LABEL_GAP, top + 10, bottom - 4);
+        const order = [...levels].sort((a, b) => b.energy_ev - a.energy_ev);
+        const labelY = spread(order.map((l) => y(l.energy_ev)), LABEL_GAP, top + 10, bottom - 4);
         const yn = y(at.EFn);
         const yp = y(at.EFp);
         const ax = x0 + (x1 - x0) * 0.62;
@@ -71,7 +71,7 @@ export function BandDiagram({ levels, splitting_eV, height = 300, testID }: { le
             </SvgText>
             {order.map((l, k) => {
               const look = LOOK[l.key];
-              const yl = y(l.energy_eV);
+              const yl = y(l.energy_ev);
               const ylab = labelY[k];
               return (
                 <G key={l.key}>
@@ -82,7 +82,7 @@ export function BandDiagram({ levels, splitting_eV, height = 300, testID }: { le
                     <TSpan fontSize={9} dy={3}>
                       {look.sub}
                     </TSpan>
-                    <TSpan dy={-3}>{` ${signed(l.energy_eV)} eV`}</TSpan>
+                    <TSpan dy={-3}>{` ${signed(l.energy_ev)} eV`}</TSpan>
                   </SvgText>
                 </G>
               );
@@ -94,7 +94,7 @@ export function BandDiagram({ levels, splitting_eV, height = 300, testID }: { le
                 <Path d={`M ${ax - 4} ${yp - 7} L ${ax} ${yp - 1} L ${ax + 4} ${yp - 7} Z`} fill={theme.color.ink} />
                 <Rect x={ax - 8 - 7.3 * 15} y={(yn + yp) / 2 - 9} width={7.3 * 15 + 2} height={18} rx={3} fill={theme.color.surface} opacity={0.9} />
                 <SvgText x={ax - 6} y={(yn + yp) / 2 + 4} fontSize={12} fill={theme.color.ink} fontFamily={theme.font.mono} textAnchor="end">
-                  {`ΔE = ${splitting_eV.toFixed(3)} eV`}
+                  {`ΔE = ${splitting_ev.toFixed(3)} eV`}
                 </SvgText>
               </G>
             ) : null}

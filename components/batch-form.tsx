@@ -16,11 +16,11 @@ export function BatchForm({ initial, submitLabel, busy, error, onSubmit, onCance
     resolver: zodResolver(batchCreateSchema),
     defaultValues: {
       name: initial?.name ?? '',
-      productType: text(initial?.productType),
+      product_type: text(initial?.product_type),
       supplier: text(initial?.supplier),
       line: text(initial?.line),
       lot: text(initial?.lot),
-      batchDate: text(initial?.batchDate),
+      batch_date: text(initial?.batch_date),
       cells: text(initial?.cells),
       area_cm2: text(initial?.area_cm2),
       nameplate_w: text(initial?.nameplate_w),
@@ -33,11 +33,11 @@ export function BatchForm({ initial, submitLabel, busy, error, onSubmit, onCance
     <View style={{ gap: 12 }} testID="batch-form">
       <TextField control={control} name="name" label="Name" placeholder="e.g. Line 2, lot 2611, 14 Nov" testID="batch-name" />
       <View style={styles.grid}>
-        <View style={styles.cell}><TextField control={control} name="productType" label="Product / cell type" /></View>
+        <View style={styles.cell}><TextField control={control} name="product_type" label="Product / cell type" /></View>
         <View style={styles.cell}><TextField control={control} name="supplier" label="Cell supplier" /></View>
         <View style={styles.cell}><TextField control={control} name="line" label="Line" /></View>
         <View style={styles.cell}><TextField control={control} name="lot" label="Lot" /></View>
-        <View style={styles.cell}><TextField control={control} name="batchDate" label="Date (yyyy-mm-dd)" /></View>
+        <View style={styles.cell}><TextField control={control} name="batch_date" label="Date (yyyy-mm-dd)" /></View>
         <View style={styles.cell}><TextField control={control} name="cells" label="Cells in series" keyboardType="numeric" hint="Used when a file does not say." /></View>
         <View style={styles.cell}><TextField control={control} name="area_cm2" label="Device area (cm²)" keyboardType="numeric" hint="For efficiency." /></View>
         <View style={styles.cell}><TextField control={control} name="nameplate_w" label="Nameplate power (W)" keyboardType="numeric" /></View>

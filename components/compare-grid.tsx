@@ -40,7 +40,7 @@ export function CompareGrid({
     onSortingChange: (u) => onSortingChange(typeof u === 'function' ? u(sorting) : u),
     getCoreRowModel: getCoreRowModel(),
     getSortedRowModel: getSortedRowModel(),
-    getRowId: (r) => r.curveId,
+    getRowId: (r) => r.curve_id,
   });
   const scrollRef = useRef<View>(null);
   const model = table.getRowModel().rows;
@@ -83,7 +83,7 @@ export function CompareGrid({
               key={row.id}
               onPress={() => onOpen(row.original)}
               style={StyleSheet.flatten([styles.row, { width: totalWidth, transform: [{ translateY: vi.start }] }, web({ position: 'absolute', top: ROW_HEIGHT, left: 0 })])}
-              testID={`grid-row-${row.original.deviceId}`}
+              testID={`grid-row-${row.original.device_id}`}
             >
               {row.getVisibleCells().map((cell, k) => {
                 const def = cell.column.columnDef.cell;

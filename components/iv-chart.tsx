@@ -7,7 +7,7 @@ import { domainOf, edgeAxes } from '@/lib/charts/plot-frame';
 import { ivReadout } from '@/lib/charts/readout';
 import type { LegendItem } from '@/lib/charts/svg-file';
 
-export type Series = { voltage_V: number[]; current_A: number[] };
+export type Series = { voltage_v: number[]; current_a: number[] };
 
 /** Names of the series in the legend; a chart without a series leaves its entry out. */
 export type IvLegendLabels = { measured?: string; model?: string; second?: string; mpp?: string };
@@ -42,7 +42,7 @@ export function IvChart({
   testID?: string;
 }) {
   const y = (v: number, i: number) => (mode === 'iv' ? i : v * i);
-  const pts = (s: Series) => s.voltage_V.map((v, k) => ({ x: v, y: y(v, s.current_A[k]) }));
+  const pts = (s: Series) => s.voltage_v.map((v, k) => ({ x: v, y: y(v, s.current_a[k]) }));
   const dots = pts(measured);
   const modelPts = model ? pts(model) : [];
   const secondPts = second ? pts(second) : [];
@@ -63,7 +63,7 @@ export function IvChart({
         <ChartPointer
           frame={{ width, height, padding: chartStyle.padding, domain }}
           points={dots}
-          describe={(k) => ivReadout(measured.voltage_V[k], measured.current_A[k])}
+          describe={(k) => ivReadout(measured.voltage_v[k], measured.current_a[k])}
           hint={`Point at the ${kind} chart to read V, I and P of a measured point.`}
           testID={testID}
         >

@@ -25,10 +25,10 @@ const TONE_STYLE: Record<OverlayTone, { stroke: string; strokeWidth: number; opa
  * them with the same rule that colours them. The pointer reads the nearest point of any curve,
  * with its device id.
  */
-export function OverlayChart({ curves, batchName, height = 260, testID }: { curves: OverlayCurve[]; batchName?: string; height?: number; testID?: string }) {
+export function OverlayChart({ curves, batch_name, height = 260, testID }: { curves: OverlayCurve[]; batch_name?: string; height?: number; testID?: string }) {
   const { ordered, counts } = useMemo(() => overlayTones(curves), [curves]);
   const lines = useMemo(
-    () => ordered.map(({ curve, tone }) => ({ curve, tone, data: curve.voltage_V.map((v, k) => ({ x: v, y: curve.current_A[k] })).filter((p) => p.y >= 0) })),
+    () => ordered.map(({ curve, tone }) => ({ curve, tone, data: curve.voltage_v.map((v, k) => ({ x: v, y: curve.current_a[k] })).filter((p) => p.y >= 0) })),
     [ordered],
   );
   // Every drawn point, with the curve it belongs to, for the pointer.
@@ -39,7 +39,7 @@ export function OverlayChart({ curves, batchName, height = 260, testID }: { curv
     { label: `${counts.other} not flagged`, colour: TONE_STYLE.other.stroke, mark: 'line' },
   ];
   return (
-    <ChartFrame height={height} testID={testID} legend={legend} download={{ name: batchName ?? 'batch', kind: 'overlay', title: `${batchName ?? 'Batch'}: I-V curves` }}>
+    <ChartFrame height={height} testID={testID} legend={legend} download={{ name: batch_name ?? 'batch', kind: 'overlay', title: `${batch_name ?? 'Batch'}: I-V curves` }}>
       {(width) => (
         <ChartPointer
           frame={{ width, height, padding: chartStyle.padding, domain }}

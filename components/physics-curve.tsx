@@ -25,8 +25,8 @@ export function PhysicsCurve({ p, wide }: { p: CurvePhysicsJson; wide: boolean }
   const module = c.cells > 1 || isAboveElv(p.curve.metrics.voc_v);
   const coef = s?.coefficient;
   const lawName = (law: string) => (law === 'desoto' ? 'I0 ∝ T³·exp(−Eg/kT) (De Soto et al. 2006)' : 'I0 ∝ n_i(T)^(2/n)');
-  const conditions = [`${c.tempC} °C`, c.irradiance_Wm2 != null ? `${c.irradiance_Wm2} W/m²` : 'irradiance not given', `${c.cells} cell${c.cells === 1 ? '' : 's'} in series`, c.area_cm2 != null ? `${c.area_cm2} cm²` : 'no area'].join(' · ');
-  const measured = useMemo(() => ({ tempC: c.tempC, voc_V: p.curve.metrics.voc_v }), [c.tempC, p.curve.metrics.voc_v]);
+  const conditions = [`${c.temp_c} °C`, c.irradiance_w_m2 != null ? `${c.irradiance_w_m2} W/m²` : 'irradiance not given', `${c.cells} cell${c.cells === 1 ? '' : 's'} in series`, c.area_cm2 != null ? `${c.area_cm2} cm²` : 'no area'].join(' · ');
+  const measured = useMemo(() => ({ temp_c: c.temp_c, voc_v: p.curve.metrics.voc_v }), [c.temp_c, p.curve.metrics.voc_v]);
 
   const head = (
     <Card testID="physics-curve">
@@ -62,27 +62,27 @@ export function PhysicsCurve({ p, wide }: { p: CurvePhysicsJson; wide: boolean }
       <View style={styles.figures}>
         <Figure
           label="J0 per cell area (A/cm²)"
-          value={s.j0_A_per_cm2 != null ? sig(s.j0_A_per_cm2, 3) : 'no area'}
-          note={s.j0_A_per_cm2 != null ? `I0 ${fmtParam('i0_a', s.params.i0_a, 3)} over ${sig(c.cellArea_cm2, 4)} cm² per cell, n = ${s.params.n.toFixed(3)}` : 'J0 needs the device area: refit the curve with it.'}
+          value={s.j0_a_cm2 != null ? sig(s.j0_a_cm2, 3) : 'no area'}
+          note={s.j0_a_cm2 != null ? `I0 ${fmtParam('i0_a', s.params.i0_a, 3)} over ${sig(c.cell_area_cm2, 4)} cm² per cell, n = ${s.params.n.toFixed(3)}` : 'J0 needs the device area: refit the curve with it.'}
           testID="j0-figure"
         />
         <Figure
           label="Implied Voc from Jsc and J0"
-          value={s.impliedVoc ? fmtParam('voc_v', s.impliedVoc.voc_V) : '—'}
-          note={s.impliedVoc ? `measured Voc ${fmtParam('voc_v', s.impliedVoc.measuredVoc_V)}; n·Ns·kT/q·ln(Jsc/J0 + 1)` : undefined}
-          warn={!!s.impliedVoc && isAboveElv(s.impliedVoc.voc_V)}
+          value={s.implied_voc ? fmtParam('voc_v', s.implied_voc.voc_v) : '—'}
+          note={s.implied_voc ? `measured Voc ${fmtParam('voc_v', s.implied_voc.measured_voc_v)}; n·Ns·kT/q·ln(Jsc/J0 + 1)` : undefined}
+          warn={!!s.implied_voc && isAboveElv(s.implied_voc.voc_v)}
           testID="implied-voc"
         />
         {coef ? (
           <Figure
             label="Voc temperature coefficient β"
-            value={`${(coef.beta_V_per_K * 1000).toFixed(1)} mV/K`}
-            note={`${coef.beta_pct_per_K.toFixed(3)} %/K · ${(coef.betaPerCell_V_per_K * 1000).toFixed(2)} mV/K per cell · ${lawName(coef.law)}, Isc +${(coef.alphaIsc_rel_per_K * 100).toFixed(2)} %/K`}
+            value={`${(coef.beta_v_per_k * 1000).toFixed(1)} mV/K`}
+            note={`${coef.beta_pct_per_k.toFixed(3)} %/K · ${(coef.beta_per_cell_v_per_k * 1000).toFixed(2)} mV/K per cell · ${lawName(coef.law)}, Isc +${(coef.alpha_isc_rel_per_k * 100).toFixed(2)} %/K`}
             testID="voc-coefficient"
           />
         ) : null}
-        {s.coefficientDeSoto ? (
-          <Figure label="β with the De Soto law" value={`${s.coefficientDeSoto.beta_pct_per_K.toFixed(3)} %/K`} note={`${(s.coefficientDeSoto.beta_V_per_K * 1000).toFixed(1)} mV/K; no 1/n in its exponent, so steeper for n > 1`} />
+        {s.coefficient_de_soto ? (
+          <Figure label="β with the De Soto law" value={`${s.coefficient_de_soto.beta_pct_per_k.toFixed(3)} %/K`} note={`${(s.coefficient_de_soto.beta_v_per_k * 1000).toFixed(1)} mV/K; no 1/n in its exponent, so steeper for n > 1`} />
         ) : null}
       </View>
       {p.double ? (
@@ -90,8 +90,8 @@ export function PhysicsCurve({ p, wide }: { p: CurvePhysicsJson; wide: boolean }
           <Txt variant="label">Double-diode fit: where the diode current goes at the maximum power point</Txt>
           {p.double.shares ? (
             <View style={styles.figures}>
-              <Figure label={`Diffusion (n1 = ${p.double.params.n1.toFixed(2)})`} value={`${(100 * p.double.shares.diffusionShare).toFixed(1)} %`} note={`${fmtParam('i0_a', p.double.shares.diode1_a, 3)}${p.double.j01_A_per_cm2 != null ? ` · J01 ${fmtParam('j0_a_cm2', p.double.j01_A_per_cm2, 3)}` : ''}`} />
-              <Figure label={`Depletion region (n2 = ${p.double.params.n2.toFixed(2)})`} value={`${(100 * p.double.shares.depletionShare).toFixed(1)} %`} note={`${fmtParam('i0_a', p.double.shares.diode2_a, 3)}${p.double.j02_A_per_cm2 != null ? ` · J02 ${fmtParam('j0_a_cm2', p.double.j02_A_per_cm2, 3)}` : ''}`} />
+              <Figure label={`Diffusion (n1 = ${p.double.params.n1.toFixed(2)})`} value={`${(100 * p.double.shares.diffusion_share).toFixed(1)} %`} note={`${fmtParam('i0_a', p.double.shares.diode1_a, 3)}${p.double.j01_a_cm2 != null ? ` · J01 ${fmtParam('j0_a_cm2', p.double.j01_a_cm2, 3)}` : ''}`} />
+              <Figure label={`Depletion region (n2 = ${p.double.params.n2.toFixed(2)})`} value={`${(100 * p.double.shares.depletion_share).toFixed(1)} %`} note={`${fmtParam('i0_a', p.double.shares.diode2_a, 3)}${p.double.j02_a_cm2 != null ? ` · J02 ${fmtParam('j0_a_cm2', p.double.j02_a_cm2, 3)}` : ''}`} />
             </View>
           ) : (
             <Txt variant="caption">The shares could not be computed (see the notes below).</Txt>
@@ -103,11 +103,11 @@ export function PhysicsCurve({ p, wide }: { p: CurvePhysicsJson; wide: boolean }
 
   const chart = (
     <Card title="Voc across cell temperature">
-      {s.vocVsTemperature ? (
+      {s.voc_vs_temperature ? (
         <>
-          <PhysicsVocChart points={s.vocVsTemperature.points} measured={measured} testID="voc-temperature-chart" />
+          <PhysicsVocChart points={s.voc_vs_temperature.points} measured={measured} testID="voc-temperature-chart" />
           <Txt variant="caption">
-            ━ predicted from the single-diode fit ({lawName(s.vocVsTemperature.law)}, n, Rs, Rsh held) ◆ measured {fmtParam('voc_v', measured.voc_V)} at {measured.tempC} °C. −40 to +85 °C. The coldest morning gives the highest voltage.
+            ━ predicted from the single-diode fit ({lawName(s.voc_vs_temperature.law)}, n, Rs, Rsh held) ◆ measured {fmtParam('voc_v', measured.voc_v)} at {measured.temp_c} °C. −40 to +85 °C. The coldest morning gives the highest voltage.
           </Txt>
         </>
       ) : (
@@ -127,7 +127,7 @@ export function PhysicsCurve({ p, wide }: { p: CurvePhysicsJson; wide: boolean }
             <Figure label="Fill factor" value={fmtParam('ff', p.stc.ff)} />
             {p.stc.efficiency != null ? <Figure label="Efficiency" value={fmtParam('efficiency', p.stc.efficiency)} /> : null}
           </View>
-          <Txt variant="caption">Stored with the curve: the fit at {p.stc.from.tempC} °C and {p.stc.from.irradiance_Wm2} W/m² moved to 1000 W/m², 25 °C (De Soto et al. 2006). {p.stc.notes.join(' ')}</Txt>
+          <Txt variant="caption">Stored with the curve: the fit at {p.stc.from.temp_c} °C and {p.stc.from.irradiance_w_m2} W/m² moved to 1000 W/m², 25 °C (De Soto et al. 2006). {p.stc.notes.join(' ')}</Txt>
         </>
       ) : (
         <Txt variant="body">No STC figures are stored for this curve.</Txt>

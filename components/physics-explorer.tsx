@@ -73,23 +73,23 @@ export function PhysicsExplorer({ wide }: { wide: boolean }) {
   const [scale, setScale] = useState<'log' | 'linear'>('log');
 
   const tempValue = readNumber(tempText);
-  const tempK = Number.isFinite(tempValue) ? (unit === 'K' ? tempValue : tempValue + ZERO_C_IN_K) : null;
-  const tempError = tempK == null ? `Write the temperature as a number in ${unit === 'K' ? 'kelvin' : '°C'}.` : null;
+  const temp_k = Number.isFinite(tempValue) ? (unit === 'K' ? tempValue : tempValue + ZERO_C_IN_K) : null;
+  const tempError = temp_k == null ? `Write the temperature as a number in ${unit === 'K' ? 'kelvin' : '°C'}.` : null;
 
-  const parsed = bandDiagramSchema.safeParse({ type, doping_cm3: dopingText, excess_cm3: excessText, tempK: tempK ?? Number.NaN });
+  const parsed = bandDiagramSchema.safeParse({ type, doping_cm3: dopingText, excess_cm3: excessText, temp_k: temp_k ?? Number.NaN });
   const fieldError = (name: string) => (parsed.success ? null : (parsed.error.issues.find((i) => i.path[0] === name)?.message ?? null));
-  const settledRequest = useSettled<BandDiagramRequest | null>(parsed.success && tempK != null ? parsed.data : null);
-  const settledTempK = useSettled(tempK);
+  const settledRequest = useSettled<BandDiagramRequest | null>(parsed.success && temp_k != null ? parsed.data : null);
+  const settledTempK = useSettled(temp_k);
   const material = useMaterial(settledTempK);
   const diagram = useBandDiagram(settledRequest);
 
   const setUnitKeepingValue = (u: 'K' | 'C') => {
     if (u === unit) return;
-    if (tempK != null) setTempText(String(Number((u === 'K' ? tempK : tempK - ZERO_C_IN_K).toFixed(2))));
+    if (temp_k != null) setTempText(String(Number((u === 'K' ? temp_k : temp_k - ZERO_C_IN_K).toFixed(2))));
     setUnit(u);
   };
   const stepTemp = (dir: -1 | 1) => {
-    const k = Math.min(TEMP_LIMITS_K.max, Math.max(TEMP_LIMITS_K.min, (tempK ?? 300) + dir * TEMP_STEP));
+    const k = Math.min(TEMP_LIMITS_K.max, Math.max(TEMP_LIMITS_K.min, (temp_k ?? 300) + dir * TEMP_STEP));
     setTempText(String(Number((unit === 'K' ? k : k - ZERO_C_IN_K).toFixed(2))));
   };
   const stepDensity = (text: string, set: (t: string) => void, dir: -1 | 1) => {
@@ -126,7 +126,7 @@ export function PhysicsExplorer({ wide }: { wide: boolean }) {
             onChangeText={setTempText}
             onStep={stepTemp}
             error={tempError}
-            note={tempK != null ? (unit === 'K' ? `= ${(tempK - ZERO_C_IN_K).toFixed(2)} °C` : `= ${tempK.toFixed(2)} K`) : undefined}
+            note={temp_k != null ? (unit === 'K' ? `= ${(temp_k - ZERO_C_IN_K).toFixed(2)} °C` : `= ${temp_k.toFixed(2)} K`) : undefined}
             testID="temp"
           />
         </View>
@@ -162,9 +162,9 @@ export function PhysicsExplorer({ wide }: { wide: boolean }) {
       <QueryState query={diagram}>
         {(d) => (
           <>
-            <BandDiagram levels={d.diagram.levels} splitting_eV={d.diagram.splitting_eV} testID="band-diagram" />
+            <BandDiagram levels={d.diagram.levels} splitting_ev={d.diagram.splitting_ev} testID="band-diagram" />
             <Txt variant="caption">
-              Energies in eV from the intrinsic level Ei; Ec − Ev = {eV(d.material.egDos_eV, 3)} (the gap implied by n_i). {d.input.type}-type {sig(d.input.doping_cm3, 3)} cm⁻³ at {d.input.tempK.toFixed(1)} K.
+              Energies in eV from the intrinsic level Ei; Ec − Ev = {eV(d.material.eg_dos_ev, 3)} (the gap implied by n_i). {d.input.type}-type {sig(d.input.doping_cm3, 3)} cm⁻³ at {d.input.temp_k.toFixed(1)} K.
             </Txt>
           </>
         )}

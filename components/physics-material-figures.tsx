@@ -8,23 +8,23 @@ import { sig } from '@/lib/format';
 
 /** n_i, Eg, Nc·Nv at the chosen temperature, the reference n_i beside the model, and n_i across temperature. */
 export function PhysicsMaterialFigures({ m }: { m: MaterialJson }) {
-  const offRef = m.reference.modelAtReference_cm3 / m.reference.ni_cm3 - 1;
+  const offRef = m.reference.model_at_reference_cm3 / m.reference.ni_cm3 - 1;
   return (
     <View style={{ gap: 10 }}>
       <View style={styles.figures}>
-        <Figure label={`n_i at ${m.tempK.toFixed(1)} K (cm⁻³)`} value={sig(m.ni_cm3, 3)} testID="ni-value" />
+        <Figure label={`n_i at ${m.temp_k.toFixed(1)} K (cm⁻³)`} value={sig(m.ni_cm3, 3)} testID="ni-value" />
         <Figure
-          label={`Reference n_i at ${m.reference.tempK} K (cm⁻³)`}
+          label={`Reference n_i at ${m.reference.temp_k} K (cm⁻³)`}
           value={sig(m.reference.ni_cm3, 3)}
-          note={`${m.reference.source}; this model: ${sig(m.reference.modelAtReference_cm3, 3)} (${offRef >= 0 ? '+' : ''}${(100 * offRef).toFixed(1)} %)`}
+          note={`${m.reference.source}; this model: ${sig(m.reference.model_at_reference_cm3, 3)} (${offRef >= 0 ? '+' : ''}${(100 * offRef).toFixed(1)} %)`}
           testID="ni-reference"
         />
         <Figure label="Band gap Eg" value={eV(m.eg_ev)} />
         <Figure label="Nc · Nv (cm⁻³)" value={`${sig(m.nc_cm3, 3)} · ${sig(m.nv_cm3, 3)}`} />
       </View>
-      <PhysicsNiChart series={m.series} current={{ tempK: m.tempK, ni_cm3: m.ni_cm3 }} reference={m.reference} testID="ni-chart" />
+      <PhysicsNiChart series={m.series} current={{ temp_k: m.temp_k, ni_cm3: m.ni_cm3 }} reference={m.reference} testID="ni-chart" />
       <Txt variant="caption">
-        ━ n_i model ({m.material.sources.intrinsicDensity}) ● this temperature ◆ {m.reference.source}. Eg: {m.material.sources.bandgap}. Nc, Nv: {m.material.sources.densityOfStates}.
+        ━ n_i model ({m.material.sources.intrinsic_density}) ● this temperature ◆ {m.reference.source}. Eg: {m.material.sources.bandgap}. Nc, Nv: {m.material.sources.density_of_states}.
       </Txt>
     </View>
   );

@@ -15,18 +15,18 @@ export function PhysicsNiChart({
   height = 220,
   testID,
 }: {
-  series: { tempK: number[]; ni_cm3: number[] };
-  current?: { tempK: number; ni_cm3: number } | null;
-  reference?: { tempK: number; ni_cm3: number } | null;
+  series: { temp_k: number[]; ni_cm3: number[] };
+  current?: { temp_k: number; ni_cm3: number } | null;
+  reference?: { temp_k: number; ni_cm3: number } | null;
   height?: number;
   testID?: string;
 }) {
-  const data = series.tempK.map((t, k) => ({ x: t, y: series.ni_cm3[k] }));
+  const data = series.temp_k.map((t, k) => ({ x: t, y: series.ni_cm3[k] }));
   const eMin = Math.floor(Math.log10(Math.min(...series.ni_cm3)));
   const eMax = Math.ceil(Math.log10(Math.max(...series.ni_cm3)));
   const ticks: number[] = [];
   for (let e = eMin; e <= eMax; e += eMax - eMin > 6 ? 2 : 1) ticks.push(10 ** e);
-  const inRange = (t: number) => t >= series.tempK[0] && t <= series.tempK[series.tempK.length - 1];
+  const inRange = (t: number) => t >= series.temp_k[0] && t <= series.temp_k[series.temp_k.length - 1];
   return (
     <ChartFrame height={height} testID={testID} download={{ name: 'intrinsic-density', kind: 'temperature', title: 'Intrinsic carrier density against temperature' }}>
       {(width) => (
@@ -34,11 +34,11 @@ export function PhysicsNiChart({
           <VictoryAxis crossAxis={false} offsetY={LOG_CHART.padding.bottom} label="Temperature (K)" style={chartStyle.axis} tickFormat={tick} tickCount={5} />
           <VictoryAxis dependentAxis crossAxis={false} offsetX={LOG_CHART.padding.left} label="n_i (cm⁻³)" style={LOG_CHART.yAxis} tickValues={ticks} tickFormat={powerOfTenTick} />
           <VictoryLine data={data} style={chartStyle.model} />
-          {reference && inRange(reference.tempK) ? (
-            <VictoryScatter data={[{ x: reference.tempK, y: reference.ni_cm3 }]} size={6} symbol="diamond" style={chartStyle.mpp} />
+          {reference && inRange(reference.temp_k) ? (
+            <VictoryScatter data={[{ x: reference.temp_k, y: reference.ni_cm3 }]} size={6} symbol="diamond" style={chartStyle.mpp} />
           ) : null}
-          {current && inRange(current.tempK) ? (
-            <VictoryScatter data={[{ x: current.tempK, y: current.ni_cm3 }]} size={4} style={{ data: { fill: theme.color.ink } }} />
+          {current && inRange(current.temp_k) ? (
+            <VictoryScatter data={[{ x: current.temp_k, y: current.ni_cm3 }]} size={4} style={{ data: { fill: theme.color.ink } }} />
           ) : null}
         </VictoryChart>
       )}

@@ -17,7 +17,7 @@ const LOG_TICKS = [1e-20, 1e-15, 1e-10, 1e-5, 1];
 export function PhysicsOccupationChart({ occupation, scale, height = 240, testID }: { occupation: OccupationCurve; scale: 'log' | 'linear'; height?: number; testID?: string }) {
   const log = scale === 'log';
   const lo = log ? FLOOR : 0;
-  const pts = (f: number[]) => occupation.energy_eV.map((e, k) => ({ x: e, y: log ? Math.max(FLOOR, f[k]) : f[k] }));
+  const pts = (f: number[]) => occupation.energy_ev.map((e, k) => ({ x: e, y: log ? Math.max(FLOOR, f[k]) : f[k] }));
   const edge = (x: number) => [{ x, y: lo }, { x, y: 1 }];
   return (
     <ChartFrame height={height} testID={testID} download={{ name: 'occupation', kind: scale, title: 'Occupation across the gap' }}>
@@ -33,13 +33,13 @@ export function PhysicsOccupationChart({ occupation, scale, height = 240, testID
             tickValues={log ? LOG_TICKS : [0, 0.25, 0.5, 0.75, 1]}
             tickFormat={log ? powerOfTenTick : tick}
           />
-          <VictoryLine data={edge(occupation.ev_eV)} style={{ data: { stroke: theme.color.ink, strokeWidth: 1 } }} />
-          <VictoryLine data={edge(occupation.ec_eV)} style={{ data: { stroke: theme.color.ink, strokeWidth: 1 } }} />
-          <VictoryLine data={pts(occupation.equilibrium)} style={{ data: { stroke: theme.color.muted, strokeWidth: 1.5, strokeDasharray: '6,4' } }} />
-          <VictoryLine data={pts(occupation.electrons)} style={{ data: { stroke: theme.color.electron, strokeWidth: 2 } }} />
-          <VictoryLine data={pts(occupation.holes)} style={{ data: { stroke: theme.color.hole, strokeWidth: 2 } }} />
+          <VictoryLine data={edge(occupation.ev_ev)} style={{ data: { stroke: theme.color.ink, strokeWidth: 1 } }} />
+          <VictoryLine data={edge(occupation.ec_ev)} style={{ data: { stroke: theme.color.ink, strokeWidth: 1 } }} />
+          <VictoryLine data={pts(occupation.occupation_equilibrium)} style={{ data: { stroke: theme.color.muted, strokeWidth: 1.5, strokeDasharray: '6,4' } }} />
+          <VictoryLine data={pts(occupation.occupation_electrons)} style={{ data: { stroke: theme.color.electron, strokeWidth: 2 } }} />
+          <VictoryLine data={pts(occupation.occupation_holes)} style={{ data: { stroke: theme.color.hole, strokeWidth: 2 } }} />
           <VictoryScatter
-            data={[{ x: occupation.ev_eV, y: 1 }, { x: occupation.ec_eV, y: 1 }]}
+            data={[{ x: occupation.ev_ev, y: 1 }, { x: occupation.ec_ev, y: 1 }]}
             size={0}
             labels={['Ev', 'Ec']}
             style={{ labels: { fontFamily: theme.font.mono, fontSize: 10, fill: theme.color.ink } }}

@@ -11,7 +11,7 @@ import { Txt } from '@/components/txt';
 import { useTranslate } from '@/lib/api/physics';
 import type { CurvePhysicsJson, TranslatedFigures } from '@/lib/api/physics';
 import { fmtParam } from '@/lib/format';
-import { thermalVoltage_V } from '@/lib/physics/constants';
+import { thermal_voltage_v } from '@/lib/physics/constants';
 import { METHOD_COEFFICIENTS, TRANSLATION_COEFFICIENTS, TRANSLATION_METHOD_LABELS, TRANSLATION_METHODS, translateSchema } from '@/lib/schemas/physics';
 import type { TranslateInput, TranslateRequest, TranslationCoefficient, TranslationMethod } from '@/lib/schemas/physics';
 
@@ -25,18 +25,18 @@ function suggestions(p: CurvePhysicsJson): Partial<Record<TranslationCoefficient
   const out: Partial<Record<TranslationCoefficient, { value: string; from: string }>> = {};
   const isc = p.curve.metrics.isc_a;
   const voc = p.curve.metrics.voc_v;
-  out.alpha_A_per_K = { value: plain(ALPHA_REL_PER_K * isc), from: '+0.05 %/K of Isc (common practice)' };
-  out.alpha_rel_per_K = { value: String(ALPHA_REL_PER_K), from: '+0.05 %/K (common practice)' };
-  out.kappa_ohm_per_K = { value: '0', from: 'κ = 0: no curve-shape correction' };
+  out.alpha_a_per_k = { value: plain(ALPHA_REL_PER_K * isc), from: '+0.05 %/K of Isc (common practice)' };
+  out.alpha_rel_per_k = { value: String(ALPHA_REL_PER_K), from: '+0.05 %/K (common practice)' };
+  out.kappa_ohm_per_k = { value: '0', from: 'κ = 0: no curve-shape correction' };
   const s = p.single;
   if (s) {
     out.rs_ohm = { value: plain(s.params.rs_ohm), from: 'Rs of the single-diode fit' };
     if (s.coefficient) {
-      out.beta_V_per_K = { value: plain(s.coefficient.beta_V_per_K), from: 'β predicted from the fit (n_i law)' };
-      out.beta_rel_per_K = { value: plain(s.coefficient.beta_pct_per_K / 100), from: 'β predicted from the fit (n_i law)' };
+      out.beta_v_per_k = { value: plain(s.coefficient.beta_v_per_k), from: 'β predicted from the fit (n_i law)' };
+      out.beta_rel_per_k = { value: plain(s.coefficient.beta_pct_per_k / 100), from: 'β predicted from the fit (n_i law)' };
     }
     if (voc > 0) {
-      out.a_irradiance = { value: plain((s.params.n * p.conditions.cells * thermalVoltage_V(p.conditions.tempC)) / voc), from: 'n·Ns·Vt/Voc of the fit (the diode’s own log-irradiance slope)' };
+      out.a_irradiance = { value: plain((s.params.n * p.conditions.cells * thermal_voltage_v(p.conditions.temp_c)) / voc), from: 'n·Ns·Vt/Voc of the fit (the diode’s own log-irradiance slope)' };
     }
   }
   return out;
@@ -72,8 +72,8 @@ export function PhysicsTranslateForm({ physics }: { physics: CurvePhysicsJson })
   const hints = suggestions(physics);
   const defaults: TranslateInput = {
     method: physics.single ? 'model' : 'iec60891-1',
-    to: { irradiance_Wm2: '1000', tempC: '25' },
-    i0Law: 'desoto',
+    to: { irradiance_w_m2: '1000', temp_c: '25' },
+    i0_law: 'desoto',
     ...Object.fromEntries(Object.entries(hints).map(([k, h]) => [k, h.value])),
   };
   const { control, handleSubmit, watch } = useForm<TranslateInput, unknown, TranslateRequest>({
@@ -103,15 +103,15 @@ export function PhysicsTranslateForm({ physics }: { physics: CurvePhysicsJson })
       />
       <View style={styles.grid}>
         <View style={styles.cell}>
-          <TextField control={control} name="to.irradiance_Wm2" label="Target irradiance (W/m²)" keyboardType="numeric" testID="translate-irradiance" />
+          <TextField control={control} name="to.irradiance_w_m2" label="Target irradiance (W/m²)" keyboardType="numeric" testID="translate-irradiance" />
         </View>
         <View style={styles.cell}>
-          <TextField control={control} name="to.tempC" label="Target cell temperature (°C)" keyboardType="numbers-and-punctuation" testID="translate-temp" />
+          <TextField control={control} name="to.temp_c" label="Target cell temperature (°C)" keyboardType="numbers-and-punctuation" testID="translate-temp" />
         </View>
         {fields.map((k) => {
           const c = TRANSLATION_COEFFICIENTS[k];
           const h = hints[k];
-          const hint = k === 'alpha_isc_A_per_K' ? 'Empty: +0.05 %/K of Iph (common practice)' : h ? `Suggested: ${h.from}` : undefined;
+          const hint = k === 'alpha_isc_a_per_k' ? 'Empty: +0.05 %/K of Iph (common practice)' : h ? `Suggested: ${h.from}` : undefined;
           return (
             <View key={k} style={styles.cell}>
               <TextField control={control} name={k} label={`${c.label} (${c.unit})`} hint={hint} keyboardType="numbers-and-punctuation" autoCapitalize="none" testID={`translate-${k}`} />
@@ -122,7 +122,7 @@ export function PhysicsTranslateForm({ physics }: { physics: CurvePhysicsJson })
       {method === 'model' ? (
         <Controller
           control={control}
-          name="i0Law"
+          name="i0_law"
           render={({ field }) => (
             <PhysicsChoice
               label="How I0 follows temperature"
@@ -143,12 +143,12 @@ export function PhysicsTranslateForm({ physics }: { physics: CurvePhysicsJson })
       {result ? (
         <View style={{ gap: 10 }} testID="translate-result">
           <Txt variant="label">
-            {TRANSLATION_METHOD_LABELS[result.method]}: from {result.from.tempC} °C, {result.from.irradiance_Wm2} W/m² to {result.to.tempC} °C, {result.to.irradiance_Wm2} W/m²
+            {TRANSLATION_METHOD_LABELS[result.method]}: from {result.from.temp_c} °C, {result.from.irradiance_w_m2} W/m² to {result.to.temp_c} °C, {result.to.irradiance_w_m2} W/m²
           </Txt>
-          {result.figures ? <FigureRow figures={result.figures} measured={physics.curve.metrics} /> : <Txt variant="body">No key figures for the translated curve: {result.figuresError}</Txt>}
+          {result.figures ? <FigureRow figures={result.figures} measured={physics.curve.metrics} /> : <Txt variant="body">No key figures for the translated curve: {result.figures_error}</Txt>}
           <IvChart mode="iv" measured={result.measured.curve} model={result.curve} labels={{ model: 'translated' }} height={240} testID="translate-chart" />
           <Txt variant="caption">
-            {result.points_total > result.curve.voltage_V.length ? `Translated curve drawn with ${result.curve.voltage_V.length} of ${result.points_total} points. ` : ''}{result.figuresSource === 'model' ? 'Figures from the translated model.' : 'Figures from the translated curve.'} {result.notes.join(' · ')}
+            {result.points_total > result.curve.voltage_v.length ? `Translated curve drawn with ${result.curve.voltage_v.length} of ${result.points_total} points. ` : ''}{result.figures_source === 'model' ? 'Figures from the translated model.' : 'Figures from the translated curve.'} {result.notes.join(' · ')}
           </Txt>
         </View>
       ) : null}

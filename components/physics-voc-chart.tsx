@@ -12,8 +12,8 @@ export function PhysicsVocChart({
   height = 240,
   testID,
 }: {
-  points: { tempC: number; voc_V: number }[];
-  measured?: { tempC: number; voc_V: number } | null;
+  points: { temp_c: number; voc_v: number }[];
+  measured?: { temp_c: number; voc_v: number } | null;
   height?: number;
   testID?: string;
 }) {
@@ -23,8 +23,8 @@ export function PhysicsVocChart({
         <VictoryChart width={width} height={height} padding={chartStyle.padding} domainPadding={{ y: 8 }}>
           <VictoryAxis crossAxis={false} offsetY={chartStyle.padding.bottom} label="Cell temperature (°C)" style={chartStyle.axis} tickFormat={tick} tickValues={[-40, -20, 0, 20, 40, 60, 80]} />
           <VictoryAxis dependentAxis crossAxis={false} offsetX={chartStyle.padding.left} label="Voc (V)" style={chartStyle.axis} tickFormat={tick} tickCount={5} />
-          <VictoryLine data={points.map((p) => ({ x: p.tempC, y: p.voc_V }))} style={chartStyle.model} />
-          {measured ? <VictoryScatter data={[{ x: measured.tempC, y: measured.voc_V }]} size={6} symbol="diamond" style={chartStyle.mpp} /> : null}
+          <VictoryLine data={points.map((p) => ({ x: p.temp_c, y: p.voc_v }))} style={chartStyle.model} />
+          {measured ? <VictoryScatter data={[{ x: measured.temp_c, y: measured.voc_v }]} size={6} symbol="diamond" style={chartStyle.mpp} /> : null}
         </VictoryChart>
       )}
     </ChartFrame>

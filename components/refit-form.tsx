@@ -34,8 +34,8 @@ export function RefitForm({ c, onDone }: { c: CurveDetail; onDone?: () => void }
     defaultValues: {
       model: 'both',
       idealities: 'fixed',
-      tempC: c.meta.tempC != null ? String(c.meta.tempC) : '',
-      irradiance_Wm2: c.meta.irradiance_Wm2 != null ? String(c.meta.irradiance_Wm2) : '',
+      temp_c: c.meta.temp_c != null ? String(c.meta.temp_c) : '',
+      irradiance_w_m2: c.meta.irradiance_w_m2 != null ? String(c.meta.irradiance_w_m2) : '',
       cells: c.meta.cells != null ? String(c.meta.cells) : '',
       area_cm2: c.meta.area_cm2 != null ? String(c.meta.area_cm2) : '',
     },
@@ -50,8 +50,8 @@ export function RefitForm({ c, onDone }: { c: CurveDetail; onDone?: () => void }
         <Choice label="Double-diode ideality factors" value={(field.value ?? 'fixed') as 'fixed' | 'free'} onChange={field.onChange} options={[{ value: 'fixed', label: 'Fixed n1 = 1, n2 = 2' }, { value: 'free', label: 'Free in [1, 2] (slower)' }]} />
       )} />
       <View style={styles.grid}>
-        <View style={styles.cell}><TextField control={control} name="tempC" label="Cell temp. (°C)" keyboardType="numeric" /></View>
-        <View style={styles.cell}><TextField control={control} name="irradiance_Wm2" label="Irradiance (W/m²)" keyboardType="numeric" /></View>
+        <View style={styles.cell}><TextField control={control} name="temp_c" label="Cell temp. (°C)" keyboardType="numeric" /></View>
+        <View style={styles.cell}><TextField control={control} name="irradiance_w_m2" label="Irradiance (W/m²)" keyboardType="numeric" /></View>
         <View style={styles.cell}><TextField control={control} name="cells" label="Cells in series" keyboardType="numeric" /></View>
         <View style={styles.cell}><TextField control={control} name="area_cm2" label="Area (cm²)" keyboardType="numeric" /></View>
       </View>

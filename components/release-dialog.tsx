@@ -40,8 +40,8 @@ export function ReleaseDialog({ evaluation, busy, error, onConfirm, onClose }: {
               <View style={{ gap: 6 }} testID="release-dialog-failing">
                 <Txt variant="label">Failing devices</Txt>
                 {failing.slice(0, SHOWN).map((d) => (
-                  <View key={d.curveId} style={styles.failRow}>
-                    <Txt variant="figure" style={{ fontSize: 13 }}>{d.deviceId}</Txt>
+                  <View key={d.curve_id} style={styles.failRow}>
+                    <Txt variant="figure" style={{ fontSize: 13 }}>{d.device_id}</Txt>
                     <Txt variant="caption" style={{ flex: 1, minWidth: 180 }}>{d.reasons.map((r) => r.message).join('; ')}</Txt>
                   </View>
                 ))}

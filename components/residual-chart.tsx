@@ -13,9 +13,9 @@ const COLOURS = [theme.color.electron, theme.color.hole];
  * Residuals (measured − model current, in mA) against voltage for one or two fits. The zero
  * line is drawn as data; the axes stay on the plot's edges.
  */
-export function ResidualChart({ voltage_V, residuals, labels, download, height = 180, testID }: { voltage_V: number[]; residuals: number[][]; labels: string[]; download?: string; height?: number; testID?: string }) {
-  const sets = residuals.map((r) => r.map((y, j) => ({ x: voltage_V[j], y: y * 1000 })));
-  const domain = domainOf([...sets, [{ x: voltage_V[0], y: 0 }]]);
+export function ResidualChart({ voltage_v, residuals, labels, download, height = 180, testID }: { voltage_v: number[]; residuals: number[][]; labels: string[]; download?: string; height?: number; testID?: string }) {
+  const sets = residuals.map((r) => r.map((y, j) => ({ x: voltage_v[j], y: y * 1000 })));
+  const domain = domainOf([...sets, [{ x: voltage_v[0], y: 0 }]]);
   const legend: LegendItem[] = labels.map((l, k) => ({ label: l, colour: COLOURS[k % 2], mark: k === 0 ? 'dot' : 'diamond' }));
   const save: ChartDownload | undefined = download ? { name: download, kind: 'residuals', title: `${download}: residuals` } : undefined;
   return (

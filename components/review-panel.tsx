@@ -27,7 +27,7 @@ const ACTION_WORDS: Record<string, string> = { submitted: 'submitted for review'
 export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
   const specs = useSpecs();
   const reviews = useReviews(b.id);
-  const lastSpec = reviews.data?.reviews.find((r) => r.specId)?.specId ?? '';
+  const lastSpec = reviews.data?.reviews.find((r) => r.spec_id)?.spec_id ?? '';
   const [chosen, setChosen] = useState('');
   const specId = chosen || lastSpec || specs.data?.specs[0]?.id || '';
   const evaluation = useEvaluation(b.id, specId);
@@ -79,8 +79,8 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
                     <View style={{ gap: 4 }} testID="power-classes">
                       <Txt variant="label">Power classes</Txt>
                       <View style={styles.chips}>
-                        {Object.keys(e.powerClassCounts).length ? (
-                          Object.entries(e.powerClassCounts)
+                        {Object.keys(e.power_class_counts).length ? (
+                          Object.entries(e.power_class_counts)
                             .sort()
                             .map(([k, n]) => (
                               <View key={k} style={styles.classChip}>
@@ -97,9 +97,9 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
                       <View style={{ gap: 6 }}>
                         <Txt variant="label">Failing devices</Txt>
                         {failing.slice(0, 25).map((x) => (
-                          <View key={x.curveId} style={styles.failRow}>
-                            <Link href={`/curves/${x.curveId}`}>
-                              <Txt variant="figure" style={{ color: theme.color.electron, fontSize: 13 }}>{x.deviceId}</Txt>
+                          <View key={x.curve_id} style={styles.failRow}>
+                            <Link href={`/curves/${x.curve_id}`}>
+                              <Txt variant="figure" style={{ color: theme.color.electron, fontSize: 13 }}>{x.device_id}</Txt>
                             </Link>
                             <Txt variant="caption" style={{ flex: 1, minWidth: 200 }}>{x.reasons.map((r) => r.message).join('; ')}</Txt>
                           </View>
@@ -107,7 +107,7 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
                         {failing.length > 25 ? <Txt variant="caption">…and {failing.length - 25} more in the pass/fail list.</Txt> : null}
                       </View>
                     ) : null}
-                    {outliers.length ? <Txt variant="caption">Outliers: {outliers.map((x) => `${x.deviceId} (${x.outlierParams.join(', ')})`).join('; ')}</Txt> : null}
+                    {outliers.length ? <Txt variant="caption">Outliers: {outliers.map((x) => `${x.device_id} (${x.outlier_params.join(', ')})`).join('; ')}</Txt> : null}
                     <Button label="Download pass/fail list (CSV)" kind="secondary" onPress={() => downloadFromUrl(passFailUrl(b.id, e.spec.id))} testID="download-pass-fail" />
                   </View>
                 );
@@ -134,7 +134,7 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
             {canDecide ? (
               <>
                 {check && !check.allowed ? null : <Button label="Release…" onPress={() => { decide.reset(); setConfirming(true); }} disabled={!specId || !evaluation.data || !check} testID="release" />}
-                <Button label="Hold" kind="danger" onPress={() => decide.mutate({ decision: 'hold', specId, comment }, { onSuccess: () => setComment('') })} busy={decide.isPending} disabled={!specId} testID="hold" />
+                <Button label="Hold" kind="danger" onPress={() => decide.mutate({ decision: 'hold', spec_id: specId, comment }, { onSuccess: () => setComment('') })} busy={decide.isPending} disabled={!specId} testID="hold" />
               </>
             ) : null}
           </View>
@@ -149,7 +149,7 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
               busy={decide.isPending}
               error={decide.error}
               onClose={() => setConfirming(false)}
-              onConfirm={(text) => decide.mutate({ decision: 'release', specId, comment: text }, { onSuccess: () => { setConfirming(false); setComment(''); } })}
+              onConfirm={(text) => decide.mutate({ decision: 'release', spec_id: specId, comment: text }, { onSuccess: () => { setConfirming(false); setComment(''); } })}
             />
           ) : null}
         </View>
@@ -182,7 +182,7 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
             <Txt variant="label">Record</Txt>
             {d.reviews.map((r) => (
               <Txt key={r.id} variant="caption">
-                {new Date(r.createdAt).toLocaleString()} · {r.actor ?? 'someone'} {ACTION_WORDS[r.action] ?? r.action}
+                {new Date(r.created_at).toLocaleString()} · {r.actor ?? 'someone'} {ACTION_WORDS[r.action] ?? r.action}
                 {r.counts && r.counts.pass != null ? ` · ${r.counts.pass} pass, ${r.counts.fail} fail, ${r.counts.outliers} outliers` : ''}
                 {r.comment ? ` · “${r.comment}”` : ''}
                 {r.release_id && releaseCsv.get(r.release_id) ? (

@@ -68,10 +68,10 @@ export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson;
     const input = {
       name,
       limits: lim,
-      ...(stepW !== undefined ? { powerClasses: { step_w: stepW, basis } } : {}),
-      failFlags: flags,
+      ...(stepW !== undefined ? { power_classes: { step_w: stepW, basis } } : {}),
+      fail_flags: flags,
       ...(notes.trim() ? { notes: notes.trim() } : {}),
-      ...(base ? { familyId: base.familyId, base_version: base.version } : {}),
+      ...(base ? { family_id: base.family_id, base_version: base.version } : {}),
     };
     const r = specSaveSchema.safeParse(input);
     if (!r.success) {

@@ -66,26 +66,26 @@ export function StringForm({
     formState: { errors },
   } = useForm<StringSizeInput, unknown, StringSizeRequest>({
     resolver: zodResolver(stringSizeSchema),
-    defaultValues: { batchId: '', vocStc_V: '', betaVoc_pct_per_K: '', vmpStc_V: '', betaVmp_pct_per_K: '', tMin_C: '', tCellMax_C: '', vSys_V: '', mppWindow: { min_V: '', max_V: '' } },
+    defaultValues: { batch_id: '', voc_stc_v: '', beta_voc_pct_per_k: '', vmp_stc_v: '', beta_vmp_pct_per_k: '', t_min_c: '', t_cell_max_c: '', v_sys_v: '', mpp_window_min_v: '', mpp_window_max_v: '' },
   });
-  const batchId = watch('batchId');
+  const batch_id = watch('batch_id');
 
   const submit = handleSubmit((v) => {
-    if (mode === 'batch' && !v.batchId) {
+    if (mode === 'batch' && !v.batch_id) {
       setPickError('Pick a batch, or choose to type the module’s values.');
       return;
     }
     setPickError(null);
-    if (mode === 'typed') onSubmit({ ...v, batchId: undefined });
-    else onSubmit(overrides ? v : { ...v, vocStc_V: undefined, betaVoc_pct_per_K: undefined, vmpStc_V: undefined, betaVmp_pct_per_K: undefined });
+    if (mode === 'typed') onSubmit({ ...v, batch_id: undefined });
+    else onSubmit(overrides ? v : { ...v, voc_stc_v: undefined, beta_voc_pct_per_k: undefined, vmp_stc_v: undefined, beta_vmp_pct_per_k: undefined });
   });
 
   const moduleFields = (
     <View style={styles.grid}>
-      <View style={styles.cell}><TextField control={control} name="vocStc_V" label="Voc at STC (V)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. 49.5'} hint="Use the highest module, not the mean." testID="voc-stc" /></View>
-      <View style={styles.cell}><TextField control={control} name="betaVoc_pct_per_K" label="Voc coefficient (%/K)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. −0.28'} hint="Negative for silicon." testID="beta-voc" /></View>
-      <View style={styles.cell}><TextField control={control} name="vmpStc_V" label="Vmp at STC (V)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. 41.2'} hint="For the MPP window." testID="vmp-stc" /></View>
-      <View style={styles.cell}><TextField control={control} name="betaVmp_pct_per_K" label="Vmp coefficient (%/K)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. −0.37'} hint="For the MPP window." testID="beta-vmp" /></View>
+      <View style={styles.cell}><TextField control={control} name="voc_stc_v" label="Voc at STC (V)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. 49.5'} hint="Use the highest module, not the mean." testID="voc-stc" /></View>
+      <View style={styles.cell}><TextField control={control} name="beta_voc_pct_per_k" label="Voc coefficient (%/K)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. −0.28'} hint="Negative for silicon." testID="beta-voc" /></View>
+      <View style={styles.cell}><TextField control={control} name="vmp_stc_v" label="Vmp at STC (V)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. 41.2'} hint="For the MPP window." testID="vmp-stc" /></View>
+      <View style={styles.cell}><TextField control={control} name="beta_vmp_pct_per_k" label="Vmp coefficient (%/K)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. −0.37'} hint="For the MPP window." testID="beta-vmp" /></View>
     </View>
   );
 
@@ -112,12 +112,12 @@ export function StringForm({
                   {d.batches
                     .filter((b) => !b.archived)
                     .map((b) => {
-                      const on = b.id === batchId;
+                      const on = b.id === batch_id;
                       return (
                         <Pressable
                           key={b.id}
                           onPress={() => {
-                            setValue('batchId', b.id);
+                            setValue('batch_id', b.id);
                             setPickError(null);
                           }}
                           accessibilityRole="radio"
@@ -128,7 +128,7 @@ export function StringForm({
                           <View style={[styles.radio, on && styles.radioOn]} />
                           <View style={{ flex: 1, gap: 2 }}>
                             <Txt variant="body" style={{ fontFamily: theme.font.medium }} numberOfLines={2}>{b.name}</Txt>
-                            <Txt variant="caption">{[b.productType, b.cells && `${b.cells} cells in series`, b.batchDate].filter(Boolean).join(' · ') || 'No description'}</Txt>
+                            <Txt variant="caption">{[b.product_type, b.cells && `${b.cells} cells in series`, b.batch_date].filter(Boolean).join(' · ') || 'No description'}</Txt>
                           </View>
                         </Pressable>
                       );
@@ -153,10 +153,10 @@ export function StringForm({
       <Card title="Site and inverter">
         <View style={styles.grid}>
           <View style={styles.cell}>
-            <TextField control={control} name="tMin_C" label="Record low ambient (°C)" {...NUMERIC} placeholder="e.g. −15" hint="The lowest ever recorded, not an average: cells sit at ambient at first light." testID="tmin" />
+            <TextField control={control} name="t_min_c" label="Record low ambient (°C)" {...NUMERIC} placeholder="e.g. −15" hint="The lowest ever recorded, not an average: cells sit at ambient at first light." testID="tmin" />
           </View>
           <View style={styles.cell}>
-            <TextField control={control} name="tCellMax_C" label="Hottest cell temperature (°C)" {...NUMERIC} placeholder="e.g. 70" hint="Needed for the least modules." testID="tcellmax" />
+            <TextField control={control} name="t_cell_max_c" label="Hottest cell temperature (°C)" {...NUMERIC} placeholder="e.g. 70" hint="Needed for the least modules." testID="tcellmax" />
           </View>
         </View>
         <Chips<Limit>
@@ -164,7 +164,7 @@ export function StringForm({
           value={limit}
           onChange={(l) => {
             setLimit(l);
-            setValue('vSys_V', l === 'other' ? '' : l, { shouldValidate: l !== 'other' });
+            setValue('v_sys_v', l === 'other' ? '' : l, { shouldValidate: l !== 'other' });
           }}
           options={[
             { value: '1000', label: '1000 V', testID: 'vsys-1000' },
@@ -173,13 +173,13 @@ export function StringForm({
           ]}
         />
         {limit === 'other' ? (
-          <TextField control={control} name="vSys_V" label="System voltage limit (V DC)" {...NUMERIC} hint="The lower of the modules’ and the inverter’s rating." testID="vsys" />
-        ) : errors.vSys_V?.message ? (
-          <Txt variant="caption" style={{ color: theme.color.danger }} accessibilityRole="alert">{errors.vSys_V.message}</Txt>
+          <TextField control={control} name="v_sys_v" label="System voltage limit (V DC)" {...NUMERIC} hint="The lower of the modules’ and the inverter’s rating." testID="vsys" />
+        ) : errors.v_sys_v?.message ? (
+          <Txt variant="caption" style={{ color: theme.color.danger }} accessibilityRole="alert">{errors.v_sys_v.message}</Txt>
         ) : null}
         <View style={styles.grid}>
-          <View style={styles.cell}><TextField control={control} name="mppWindow.min_V" label="MPP window from (V)" {...NUMERIC} placeholder="e.g. 500" testID="mpp-min" /></View>
-          <View style={styles.cell}><TextField control={control} name="mppWindow.max_V" label="MPP window to (V)" {...NUMERIC} placeholder="e.g. 1300" testID="mpp-max" /></View>
+          <View style={styles.cell}><TextField control={control} name="mpp_window_min_v" label="MPP window from (V)" {...NUMERIC} placeholder="e.g. 500" testID="mpp-min" /></View>
+          <View style={styles.cell}><TextField control={control} name="mpp_window_max_v" label="MPP window to (V)" {...NUMERIC} placeholder="e.g. 1300" testID="mpp-max" /></View>
         </View>
         {error ? <SizingError message={error} /> : null}
         <Button label="Size the string" onPress={submit} busy={busy} testID="size-submit" />

@@ -40,13 +40,13 @@ function moduleText(s: ModuleSource | null, what: string): string {
 function coefficientText(s: CoefficientSource | null, lawInFull: boolean): string {
   if (!s || s.kind === 'entered') return 'Typed in.';
   if (s.kind === 'measured') {
-    const pts = s.points.map((p) => `${p.tempC} °C: ${p.voc_V.toFixed(2)} V (${p.curves} curve${p.curves === 1 ? '' : 's'})`).join('; ');
-    return `Measured across ${s.points.length} temperatures spanning ${s.span_K} K (${pts}); r² ${s.r2.toFixed(3)}. Rule: ${s.rule}`;
+    const pts = s.points.map((p) => `${p.temp_c} °C: ${p.voc_v.toFixed(2)} V (${p.curves} curve${p.curves === 1 ? '' : 's'})`).join('; ');
+    return `Measured across ${s.points.length} temperatures spanning ${s.span_k} K (${pts}); r² ${s.r2.toFixed(3)}. Rule: ${s.rule}`;
   }
   return [
-    `Derived from the fitted diode model of ${s.deviceId} (fitted at ${s.fitTempC} °C, ${s.cells} cells in series), not measured.`,
+    `Derived from the fitted diode model of ${s.device_id} (fitted at ${s.fit_temp_c} °C, ${s.cells} cells in series), not measured.`,
     s.note,
-    lawInFull ? `Method: ${s.lawText}` : 'Same model and method as the Voc coefficient.',
+    lawInFull ? `Method: ${s.law_text}` : 'Same model and method as the Voc coefficient.',
     lawInFull ? `Curves at two temperatures ${MEASURED_MIN_SPAN_K} K or more apart would give a measured coefficient.` : null,
   ]
     .filter(Boolean)
@@ -78,15 +78,15 @@ export function StringResult({ r, wide }: { r: StringSizeResponse; wide: boolean
     <View style={{ gap: 16 }} testID="string-result">
       <View style={styles.figures} testID="string-figures">
         <BigFigure label="Most modules in series" value={String(r.max_modules)} unit={r.max_modules === 1 ? 'module' : 'modules'} note={`cold Voc per module ${volts(r.voc_max_per_module_v, 2)}`} testID="max-modules" />
-        <BigFigure label={`String Voc at ${i.tMin_C} °C`} value={r.string_voc_max_v.toFixed(1)} unit="V" warn={isAboveElv(r.string_voc_max_v)} note={`${r.max_modules} × ${volts(r.voc_max_per_module_v, 2)}`} testID="string-voc" />
-        <BigFigure label={`Margin to ${i.vSys_V} V`} value={r.margin_v.toFixed(1)} unit="V" note={`${r.margin_pct.toFixed(2)} % of the limit`} testID="margin" />
+        <BigFigure label={`String Voc at ${i.t_min_c} °C`} value={r.string_voc_max_v.toFixed(1)} unit="V" warn={isAboveElv(r.string_voc_max_v)} note={`${r.max_modules} × ${volts(r.voc_max_per_module_v, 2)}`} testID="string-voc" />
+        <BigFigure label={`Margin to ${i.v_sys_v} V`} value={r.margin_v.toFixed(1)} unit="V" note={`${r.margin_pct.toFixed(2)} % of the limit`} testID="margin" />
         <BigFigure
           label="Least modules (MPP window)"
           value={r.min_modules !== undefined ? String(r.min_modules) : '—'}
           unit={r.min_modules !== undefined ? (r.min_modules === 1 ? 'module' : 'modules') : undefined}
           note={
-            r.min_modules !== undefined && r.vmp_min_per_module_v !== undefined && i.mppWindow
-              ? `hot Vmp per module ${volts(r.vmp_min_per_module_v, 2)} at ${i.tCellMax_C} °C; window ${i.mppWindow.min_V}–${i.mppWindow.max_V} V`
+            r.min_modules !== undefined && r.vmp_min_per_module_v !== undefined && i.mpp_window_min_v != null
+              ? `hot Vmp per module ${volts(r.vmp_min_per_module_v, 2)} at ${i.t_cell_max_c} °C; window ${i.mpp_window_min_v}–${i.mpp_window_max_v} V`
               : 'Enter the MPP window and the hottest cell temperature.'
           }
           testID="min-modules"
@@ -114,14 +114,14 @@ export function StringResult({ r, wide }: { r: StringSizeResponse; wide: boolean
       <View style={[{ gap: 16 }, wide && { flexDirection: 'row', alignItems: 'flex-start' }]}>
         <Card title="Where each input came from" style={wide ? { flex: 1 } : undefined} testID="string-sources">
           {r.source.batch ? <Txt variant="caption">Batch: {r.source.batch.name}</Txt> : null}
-          <SourceRow label="Module Voc at STC" value={volts(i.vocStc_V, 2)} warn={isAboveElv(i.vocStc_V)} text={moduleText(r.source.module, 'Voc at STC')} testID={`source-voc-${kindOf(r.source.module)}`} />
-          <SourceRow label="Voc coefficient" value={`${signed(i.betaVoc_pct_per_K)} %/K`} text={coefficientText(r.source.betaVoc, true)} testID={`source-beta-${kindOf(r.source.betaVoc)}`} />
-          <SourceRow label="Record low (ambient)" value={`${i.tMin_C} °C`} text="Typed in. At first light the cells sit at ambient temperature, so the coldest morning gives the highest Voc." />
-          <SourceRow label="System voltage limit" value={`${i.vSys_V} V DC`} text="Typed in: the lower of the modules’ and the inverter’s maximum system voltage." />
-          <SourceRow label="Hottest cell temperature" value={i.tCellMax_C !== null ? `${i.tCellMax_C} °C` : '—'} text={i.tCellMax_C !== null ? 'Typed in.' : 'Not given.'} />
-          {i.vmpStc_V !== null ? <SourceRow label="Module Vmp at STC" value={volts(i.vmpStc_V, 2)} warn={isAboveElv(i.vmpStc_V)} text={moduleText(r.source.vmpStc, 'Vmp at STC')} /> : null}
-          {i.betaVmp_pct_per_K !== null ? <SourceRow label="Vmp coefficient" value={`${signed(i.betaVmp_pct_per_K)} %/K`} text={coefficientText(r.source.betaVmp, r.source.betaVoc.kind !== 'model')} /> : null}
-          {i.mppWindow ? <SourceRow label="Inverter MPP window" value={`${i.mppWindow.min_V}–${i.mppWindow.max_V} V`} text="Typed in." /> : null}
+          <SourceRow label="Module Voc at STC" value={volts(i.voc_stc_v, 2)} warn={isAboveElv(i.voc_stc_v)} text={moduleText(r.source.module, 'Voc at STC')} testID={`source-voc-${kindOf(r.source.module)}`} />
+          <SourceRow label="Voc coefficient" value={`${signed(i.beta_voc_pct_per_k)} %/K`} text={coefficientText(r.source.beta_voc, true)} testID={`source-beta-${kindOf(r.source.beta_voc)}`} />
+          <SourceRow label="Record low (ambient)" value={`${i.t_min_c} °C`} text="Typed in. At first light the cells sit at ambient temperature, so the coldest morning gives the highest Voc." />
+          <SourceRow label="System voltage limit" value={`${i.v_sys_v} V DC`} text="Typed in: the lower of the modules’ and the inverter’s maximum system voltage." />
+          <SourceRow label="Hottest cell temperature" value={i.t_cell_max_c !== null ? `${i.t_cell_max_c} °C` : '—'} text={i.t_cell_max_c !== null ? 'Typed in.' : 'Not given.'} />
+          {i.vmp_stc_v !== null ? <SourceRow label="Module Vmp at STC" value={volts(i.vmp_stc_v, 2)} warn={isAboveElv(i.vmp_stc_v)} text={moduleText(r.source.vmp_stc, 'Vmp at STC')} /> : null}
+          {i.beta_vmp_pct_per_k !== null ? <SourceRow label="Vmp coefficient" value={`${signed(i.beta_vmp_pct_per_k)} %/K`} text={coefficientText(r.source.beta_vmp, r.source.beta_voc.kind !== 'model')} /> : null}
+          {i.mpp_window_min_v != null ? <SourceRow label="Inverter MPP window" value={`${i.mpp_window_min_v}–${i.mpp_window_max_v} V`} text="Typed in." /> : null}
         </Card>
 
         <Card title="String Voc against ambient temperature" style={wide ? { flex: 1 } : undefined} testID="string-chart-card">
@@ -135,7 +135,7 @@ export function StringResult({ r, wide }: { r: StringSizeResponse; wide: boolean
               <Txt variant="figure">+</Txt>
             </Pressable>
           </View>
-          <StringVocChart modules={chartN} vocStc_V={i.vocStc_V} betaVoc_pct_per_K={i.betaVoc_pct_per_K} vSys_V={i.vSys_V} tMin_C={i.tMin_C} testID="string-voc-chart" />
+          <StringVocChart modules={chartN} voc_stc_v={i.voc_stc_v} beta_voc_pct_per_k={i.beta_voc_pct_per_k} v_sys_v={i.v_sys_v} t_min_c={i.t_min_c} testID="string-voc-chart" />
         </Card>
       </View>
       <Txt variant="caption">{r.caution}</Txt>

@@ -34,7 +34,7 @@ export function UploadPanel({ batchId }: { batchId: string }) {
   const { width } = useWindowDimensions();
   const { control, handleSubmit } = useForm<OverrideForm>({
     resolver: zodResolver(uploadOverridesSchema),
-    defaultValues: { tempC: '', irradiance_Wm2: '', cells: '', area_cm2: '' },
+    defaultValues: { temp_c: '', irradiance_w_m2: '', cells: '', area_cm2: '' },
   });
 
   useEffect(() => {
@@ -80,12 +80,12 @@ export function UploadPanel({ batchId }: { batchId: string }) {
     try {
       const r = await uploadFiles(batchId, list, options, (done, total, phase) => setProgress({ done, total, phase }));
       setResults((prev) => {
-        if (!prev || options.onDuplicate === 'ask') return r;
+        if (!prev || options.on_duplicate === 'ask') return r;
         // A second pass answers the held-back duplicates: merge by file name.
         const byName = new Map(r.map((x) => [x.file, x]));
         return prev.map((x) => byName.get(x.file) ?? x);
       });
-      if (options.onDuplicate === 'ask' || !options.onDuplicate) setFiles(list.filter((f) => r.some((x) => !x.accepted && x.code === 'duplicate' && x.file === f.name)));
+      if (options.on_duplicate === 'ask' || !options.on_duplicate) setFiles(list.filter((f) => r.some((x) => !x.accepted && x.code === 'duplicate' && x.file === f.name)));
       else setFiles([]);
       await afterUpload();
     } catch (err) {
@@ -97,11 +97,11 @@ export function UploadPanel({ batchId }: { batchId: string }) {
 
   const start = handleSubmit((v) => {
     const options: UploadOptions = {
-      tempC: v.tempC == null ? undefined : String(v.tempC),
-      irradiance_Wm2: v.irradiance_Wm2 == null ? undefined : String(v.irradiance_Wm2),
+      temp_c: v.temp_c == null ? undefined : String(v.temp_c),
+      irradiance_w_m2: v.irradiance_w_m2 == null ? undefined : String(v.irradiance_w_m2),
       cells: v.cells == null ? undefined : String(v.cells),
       area_cm2: v.area_cm2 == null ? undefined : String(v.area_cm2),
-      onDuplicate: 'ask',
+      on_duplicate: 'ask',
     };
     setLastOptions(options);
     setResults(null);
@@ -131,8 +131,8 @@ export function UploadPanel({ batchId }: { batchId: string }) {
 
       <Txt variant="label">Override for every file (optional)</Txt>
       <View style={styles.fields}>
-        <View style={styles.field}><TextField control={control} name="tempC" label="Cell temp. (°C)" keyboardType="numeric" placeholder="from file" /></View>
-        <View style={styles.field}><TextField control={control} name="irradiance_Wm2" label="Irradiance (W/m²)" keyboardType="numeric" placeholder="from file" /></View>
+        <View style={styles.field}><TextField control={control} name="temp_c" label="Cell temp. (°C)" keyboardType="numeric" placeholder="from file" /></View>
+        <View style={styles.field}><TextField control={control} name="irradiance_w_m2" label="Irradiance (W/m²)" keyboardType="numeric" placeholder="from file" /></View>
         <View style={styles.field}><TextField control={control} name="cells" label="Cells in series" keyboardType="numeric" placeholder="batch default" /></View>
         <View style={styles.field}><TextField control={control} name="area_cm2" label="Area (cm²)" keyboardType="numeric" placeholder="batch default" /></View>
       </View>
@@ -160,24 +160,24 @@ export function UploadPanel({ batchId }: { batchId: string }) {
           {duplicates.length ? (
             <View style={styles.ask} testID="duplicate-question">
               <Txt variant="body">
-                {duplicates.length === 1 ? `Device ${duplicates[0].deviceId} is` : `${duplicates.length} devices are`} already in this batch. Replace the stored curve{duplicates.length === 1 ? '' : 's'}, or keep both?
+                {duplicates.length === 1 ? `Device ${duplicates[0].device_id} is` : `${duplicates.length} devices are`} already in this batch. Replace the stored curve{duplicates.length === 1 ? '' : 's'}, or keep both?
               </Txt>
               <View style={{ flexDirection: 'row', gap: 8, flexWrap: 'wrap' }}>
-                <Button label="Replace" onPress={() => void send(files, { ...lastOptions, onDuplicate: 'replace' })} disabled={busy} testID="dup-replace" />
-                <Button label="Keep both" kind="secondary" onPress={() => void send(files, { ...lastOptions, onDuplicate: 'keep' })} disabled={busy} testID="dup-keep" />
+                <Button label="Replace" onPress={() => void send(files, { ...lastOptions, on_duplicate: 'replace' })} disabled={busy} testID="dup-replace" />
+                <Button label="Keep both" kind="secondary" onPress={() => void send(files, { ...lastOptions, on_duplicate: 'keep' })} disabled={busy} testID="dup-keep" />
                 <Button label="Skip them" kind="quiet" onPress={() => { setResults((r) => r?.filter((x) => x.accepted || x.code !== 'duplicate') ?? null); setFiles([]); }} disabled={busy} />
               </View>
             </View>
           ) : null}
           {results.map((r) => (
-            <View key={r.file + (r.accepted ? r.curveId : r.code)} style={styles.resultRow}>
+            <View key={r.file + (r.accepted ? r.curve_id : r.code)} style={styles.resultRow}>
               <Txt variant="figure" style={{ color: r.accepted ? theme.color.ok : r.code === 'duplicate' ? theme.color.hole : theme.color.danger, fontSize: 13 }}>
                 {r.accepted ? '✓' : r.code === 'duplicate' ? '?' : '✕'}
               </Txt>
               <View style={{ flex: 1, minWidth: 0 }}>
                 {r.accepted ? (
-                  <Link href={`/curves/${r.curveId}`}>
-                    <Txt variant="body" style={{ color: theme.color.electron }}>{r.file} → {r.deviceId}{r.replaced ? ' (replaced)' : ''}</Txt>
+                  <Link href={`/curves/${r.curve_id}`}>
+                    <Txt variant="body" style={{ color: theme.color.electron }}>{r.file} → {r.device_id}{r.replaced ? ' (replaced)' : ''}</Txt>
                   </Link>
                 ) : (
                   <>

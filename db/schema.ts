@@ -203,12 +203,12 @@ export const batch = pgTable(
       .notNull()
       .references(() => organization.id, { onDelete: 'cascade' }),
     name: text('name').notNull(),
-    productType: text('product_type'),
+    product_type: text('product_type'),
     supplier: text('supplier'),
     line: text('line'),
     lot: text('lot'),
     /** Measurement date of the batch, ISO yyyy-mm-dd. */
-    batchDate: text('batch_date'),
+    batch_date: text('batch_date'),
     /** Default cells in series for curves whose files do not say. */
     cells: integer('cells'),
     /** Default device area, cm², for efficiency. */
@@ -242,8 +242,8 @@ export const curve = pgTable(
     deviceId: text('device_id').notNull(),
     fileName: text('file_name').notNull(),
     meta: jsonb('meta').$type<CurveMeta>().notNull(),
-    voltage_V: jsonb('voltage_v').$type<number[]>().notNull(),
-    current_A: jsonb('current_a').$type<number[]>().notNull(),
+    voltage_v: jsonb('voltage_v').$type<number[]>().notNull(),
+    current_a: jsonb('current_a').$type<number[]>().notNull(),
     notes: jsonb('notes').$type<string[]>().notNull(),
     metrics: jsonb('metrics').$type<Metrics>().notNull(),
     flags: jsonb('flags').$type<Flag[]>().notNull(),
@@ -294,7 +294,7 @@ export const fit = pgTable(
 );
 
 /**
- * Acceptance specs, versioned: every save makes a new row; `familyId` ties the versions of one
+ * Acceptance specs, versioned: every save makes a new row; `family_id` ties the versions of one
  * spec together and `version` counts 1, 2, 3… within it. Rows are never changed afterwards.
  */
 export const spec = pgTable(
@@ -304,7 +304,7 @@ export const spec = pgTable(
     organizationId: text('organization_id')
       .notNull()
       .references(() => organization.id, { onDelete: 'cascade' }),
-    familyId: text('family_id').notNull(),
+    family_id: text('family_id').notNull(),
     version: integer('version').notNull(),
     name: text('name').notNull(),
     /** The validated spec body (lib/quality specInputSchema output). */
@@ -314,7 +314,7 @@ export const spec = pgTable(
     createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   },
-  (t) => [uniqueIndex('spec_family_version_idx').on(t.familyId, t.version), index('spec_org_idx').on(t.organizationId)],
+  (t) => [uniqueIndex('spec_family_version_idx').on(t.family_id, t.version), index('spec_org_idx').on(t.organizationId)],
 );
 
 /** The review record of a batch: submissions, releases, holds — who, when, which spec, the counts. */

@@ -4,9 +4,9 @@
  * how the stored value becomes the shown one (FF and efficiency are fractions in the engine and
  * % on screen). Screens, exports, reasons and messages take labels and units from here only.
  *
- * `key` is the vocabulary's name: snake_case with the unit as suffix. `wire` lists the names the
- * API, the CLI and the stored JSON still use where they differ (tempC, egDos_eV, …); a later
- * step renames those to `key`. Lookups accept either name. Pure data and functions, no I/O.
+ * `key` is the one name of the quantity everywhere — API, CLI JSON, CSV columns, stored JSON and
+ * the engine's result types: snake_case with the unit as suffix (`temp_c`, `eg_dos_ev`,
+ * `j0_a_cm2`). There are no aliases. Pure data and functions, no I/O.
  */
 import { sig } from '@/lib/numeric/significant';
 
@@ -29,11 +29,9 @@ export type Quantity = {
   /** Significant digits when `decimals` is null. */
   digits: number;
   group: QuantityGroup;
-  /** Names used on the wire today where they differ from `key` ("parent.child" for a nested one). */
-  wire: readonly string[];
 };
 
-type Extra = { wire?: string[]; stored?: string; scale?: number; decimals?: number; digits?: number };
+type Extra = { stored?: string; scale?: number; decimals?: number; digits?: number };
 
 function q(group: QuantityGroup, key: string, label: string, unit: string, extra: Extra = {}): Quantity {
   return {
@@ -45,32 +43,31 @@ function q(group: QuantityGroup, key: string, label: string, unit: string, extra
     decimals: extra.decimals ?? null,
     digits: extra.digits ?? 4,
     group,
-    wire: extra.wire ?? [],
   };
 }
 
 /** A fraction shown as a percentage with `decimals` decimals. */
-const percent = (decimals: number, wire?: string[]): Extra => ({ stored: '', scale: 100, decimals, wire });
+const percent = (decimals: number): Extra => ({ stored: '', scale: 100, decimals });
 /** A count. */
 const count: Extra = { decimals: 0 };
 
 export const QUANTITIES: readonly Quantity[] = [
   // The measured curve and what is known about the device.
-  q('curve', 'voltage_v', 'Voltage', 'V', { wire: ['voltage_V'] }),
-  q('curve', 'current_a', 'Current', 'A', { wire: ['current_A'] }),
-  q('curve', 'temp_c', 'Cell temperature', '°C', { wire: ['tempC'] }),
-  q('curve', 'irradiance_w_m2', 'Irradiance', 'W/m²', { wire: ['irradiance_Wm2'] }),
+  q('curve', 'voltage_v', 'Voltage', 'V'),
+  q('curve', 'current_a', 'Current', 'A'),
+  q('curve', 'temp_c', 'Cell temperature', '°C'),
+  q('curve', 'irradiance_w_m2', 'Irradiance', 'W/m²'),
   q('curve', 'cells', 'Cells in series', '', count),
   q('curve', 'area_cm2', 'Area', 'cm²'),
   q('curve', 'nameplate_w', 'Nameplate power', 'W'),
-  q('curve', 'mean_pmp_w', 'Mean Pmax', 'W', { wire: ['meanPmp_w'] }),
+  q('curve', 'mean_pmp_w', 'Mean Pmax', 'W'),
 
   // Key figures without a model (lib/iv Metrics); the STC figures (curve.stc) use the same keys.
   q('metric', 'isc_a', 'Isc', 'A'),
-  q('metric', 'voc_v', 'Voc', 'V', { wire: ['voc_V'] }),
+  q('metric', 'voc_v', 'Voc', 'V'),
   q('metric', 'pmp_w', 'Pmax', 'W'),
   q('metric', 'imp_a', 'Imp', 'A'),
-  q('metric', 'vmp_v', 'Vmp', 'V', { wire: ['vmp_V'] }),
+  q('metric', 'vmp_v', 'Vmp', 'V'),
   q('metric', 'ff', 'FF', '%', percent(1)),
   q('metric', 'efficiency', 'Efficiency', '%', percent(2)),
   q('metric', 'rsh0_ohm', 'Rsh0 (slope)', 'Ω'),
@@ -99,92 +96,92 @@ export const QUANTITIES: readonly Quantity[] = [
 
   // Figures derived from a fit.
   q('derived', 'stc_pmp_w', 'Pmax at STC', 'W'),
-  q('derived', 'j0_a_cm2', 'J0', 'A/cm²', { wire: ['j0_A_per_cm2'] }),
-  q('derived', 'j01_a_cm2', 'J01', 'A/cm²', { wire: ['j01_A_per_cm2'] }),
-  q('derived', 'j02_a_cm2', 'J02', 'A/cm²', { wire: ['j02_A_per_cm2'] }),
-  q('derived', 'jsc_a_cm2', 'Jsc', 'A/cm²', { wire: ['jsc_A_per_cm2'] }),
-  q('derived', 'cell_area_cm2', 'Cell area', 'cm²', { wire: ['cellArea_cm2'] }),
-  q('derived', 'stc_voc_v', 'Voc at STC', 'V', { wire: ['stcVoc_V'] }),
-  q('derived', 'stc_vmp_v', 'Vmp at STC', 'V', { wire: ['stcVmp_V'] }),
+  q('derived', 'j0_a_cm2', 'J0', 'A/cm²'),
+  q('derived', 'j01_a_cm2', 'J01', 'A/cm²'),
+  q('derived', 'j02_a_cm2', 'J02', 'A/cm²'),
+  q('derived', 'jsc_a_cm2', 'Jsc', 'A/cm²'),
+  q('derived', 'cell_area_cm2', 'Cell area', 'cm²'),
+  q('derived', 'stc_voc_v', 'Voc at STC', 'V'),
+  q('derived', 'stc_vmp_v', 'Vmp at STC', 'V'),
 
   // Material (lib/physics/materials).
-  q('material', 'temp_k', 'Temperature', 'K', { wire: ['tempK'] }),
-  q('material', 'eg_ev', 'Band gap Eg', 'eV', { wire: ['eg_eV'] }),
-  q('material', 'eg_dos_ev', 'Ec − Ev from n_i and Nc·Nv', 'eV', { wire: ['egDos_eV', 'gap_eV'] }),
+  q('material', 'temp_k', 'Temperature', 'K'),
+  q('material', 'eg_ev', 'Band gap Eg', 'eV'),
+  q('material', 'eg_dos_ev', 'Ec − Ev from n_i and Nc·Nv', 'eV'),
   q('material', 'nc_cm3', 'Nc', 'cm⁻³'),
   q('material', 'nv_cm3', 'Nv', 'cm⁻³'),
   q('material', 'ni_cm3', 'n_i', 'cm⁻³'),
-  q('material', 'kt_ev', 'kT', 'eV', { wire: ['kT_eV'] }),
-  q('material', 'max_doping_cm3', 'Largest doping', 'cm⁻³', { wire: ['maxDoping_cm3'] }),
-  q('material', 'model_at_reference_cm3', 'n_i of the model at the reference', 'cm⁻³', { wire: ['modelAtReference_cm3'] }),
+  q('material', 'kt_ev', 'kT', 'eV'),
+  q('material', 'max_doping_cm3', 'Largest doping', 'cm⁻³'),
+  q('material', 'model_at_reference_cm3', 'n_i of the model at the reference', 'cm⁻³'),
 
   // Carriers and band diagrams (lib/physics/carriers); energies in eV from E_i.
   q('carriers', 'doping_cm3', 'Doping', 'cm⁻³'),
   q('carriers', 'excess_cm3', 'Excess carriers Δn', 'cm⁻³'),
-  q('carriers', 'generation_cm3_s', 'Generation rate', 'cm⁻³·s⁻¹', { wire: ['generation_cm3s'] }),
+  q('carriers', 'generation_cm3_s', 'Generation rate', 'cm⁻³·s⁻¹'),
   q('carriers', 'lifetime_s', 'Lifetime', 's'),
   q('carriers', 'n_cm3', 'Electrons n', 'cm⁻³'),
   q('carriers', 'p_cm3', 'Holes p', 'cm⁻³'),
   q('carriers', 'n0_cm3', 'Electrons n0 (dark)', 'cm⁻³'),
   q('carriers', 'p0_cm3', 'Holes p0 (dark)', 'cm⁻³'),
-  q('carriers', 'ec_ev', 'Ec', 'eV', { wire: ['ec_eV'] }),
-  q('carriers', 'ev_ev', 'Ev', 'eV', { wire: ['ev_eV'] }),
-  q('carriers', 'ei_ev', 'Ei', 'eV', { wire: ['ei_eV'] }),
-  q('carriers', 'ef_ev', 'EF', 'eV', { wire: ['ef_eV'] }),
-  q('carriers', 'efn_ev', 'EFn', 'eV', { wire: ['efn_eV'] }),
-  q('carriers', 'efp_ev', 'EFp', 'eV', { wire: ['efp_eV'] }),
-  q('carriers', 'splitting_ev', 'EFn − EFp', 'eV', { wire: ['splitting_eV'] }),
-  q('carriers', 'boltzmann_splitting_ev', 'EFn − EFp (Boltzmann)', 'eV', { wire: ['boltzmannSplitting_eV'] }),
-  q('carriers', 'implied_voc_v', 'Implied Voc', 'V', { wire: ['impliedVoc_V'] }),
-  q('carriers', 'energy_ev', 'Energy', 'eV', { wire: ['energy_eV'] }),
-  q('carriers', 'eta_n', 'ηn = (EF − Ec)/kT', '', { wire: ['etaN'], digits: 3 }),
-  q('carriers', 'eta_p', 'ηp = (Ev − EF)/kT', '', { wire: ['etaP'], digits: 3 }),
-  q('carriers', 'occupation_equilibrium', 'f(E) with EF', '', { wire: ['equilibrium'], digits: 3 }),
-  q('carriers', 'occupation_electrons', 'f(E) with EFn', '', { wire: ['electrons'], digits: 3 }),
-  q('carriers', 'occupation_holes', '1 − f(E) with EFp', '', { wire: ['holes'], digits: 3 }),
-  q('carriers', 'boltzmann_error_n', 'Boltzmann error in n', '%', percent(2, ['boltzmannError.n'])),
-  q('carriers', 'boltzmann_error_p', 'Boltzmann error in p', '%', percent(2, ['boltzmannError.p'])),
+  q('carriers', 'ec_ev', 'Ec', 'eV'),
+  q('carriers', 'ev_ev', 'Ev', 'eV'),
+  q('carriers', 'ei_ev', 'Ei', 'eV'),
+  q('carriers', 'ef_ev', 'EF', 'eV'),
+  q('carriers', 'efn_ev', 'EFn', 'eV'),
+  q('carriers', 'efp_ev', 'EFp', 'eV'),
+  q('carriers', 'splitting_ev', 'EFn − EFp', 'eV'),
+  q('carriers', 'boltzmann_splitting_ev', 'EFn − EFp (Boltzmann)', 'eV'),
+  q('carriers', 'implied_voc_v', 'Implied Voc', 'V'),
+  q('carriers', 'energy_ev', 'Energy', 'eV'),
+  q('carriers', 'eta_n', 'ηn = (EF − Ec)/kT', '', { digits: 3 }),
+  q('carriers', 'eta_p', 'ηp = (Ev − EF)/kT', '', { digits: 3 }),
+  q('carriers', 'occupation_equilibrium', 'f(E) with EF', '', { digits: 3 }),
+  q('carriers', 'occupation_electrons', 'f(E) with EFn', '', { digits: 3 }),
+  q('carriers', 'occupation_holes', '1 − f(E) with EFp', '', { digits: 3 }),
+  q('carriers', 'boltzmann_error_n', 'Boltzmann error in n', '%', percent(2)),
+  q('carriers', 'boltzmann_error_p', 'Boltzmann error in p', '%', percent(2)),
 
   // Physics of a fitted device (lib/physics/fit-physics).
-  q('device', 'fit_temp_c', 'Fit temperature', '°C', { wire: ['fitTempC'] }),
-  q('device', 'from_c', 'From', '°C', { wire: ['fromC'] }),
-  q('device', 'to_c', 'To', '°C', { wire: ['toC'] }),
-  q('device', 'step_c', 'Step', '°C', { wire: ['stepC'] }),
-  q('device', 'beta_v_per_k', 'β, Voc temperature coefficient', 'V/K', { wire: ['beta_V_per_K'] }),
-  q('device', 'beta_pct_per_k', 'β, Voc temperature coefficient', '%/K', { wire: ['beta_pct_per_K'], digits: 3 }),
-  q('device', 'beta_per_cell_v_per_k', 'β per cell', 'V/K', { wire: ['betaPerCell_V_per_K'] }),
-  q('device', 'alpha_isc_rel_per_k', 'α, relative Isc coefficient', '1/K', { wire: ['alphaIsc_rel_per_K'] }),
+  q('device', 'fit_temp_c', 'Fit temperature', '°C'),
+  q('device', 'from_c', 'From', '°C'),
+  q('device', 'to_c', 'To', '°C'),
+  q('device', 'step_c', 'Step', '°C'),
+  q('device', 'beta_v_per_k', 'β, Voc temperature coefficient', 'V/K'),
+  q('device', 'beta_pct_per_k', 'β, Voc temperature coefficient', '%/K', { digits: 3 }),
+  q('device', 'beta_per_cell_v_per_k', 'β per cell', 'V/K'),
+  q('device', 'alpha_isc_rel_per_k', 'α, relative Isc coefficient', '1/K'),
   q('device', 'diode1_a', 'Diode 1 current (diffusion)', 'A'),
   q('device', 'diode2_a', 'Diode 2 current (depletion region)', 'A'),
-  q('device', 'shunt_a', 'Shunt current', 'A', { wire: ['shunt_A'] }),
-  q('device', 'diodes_a', 'Diode currents', 'A', { wire: ['diodes_A'] }),
-  q('device', 'junction_v', 'Junction voltage V + I·Rs', 'V', { wire: ['junction_V'] }),
-  q('device', 'depletion_share', 'Depletion-region share', '%', percent(1, ['depletionShare'])),
-  q('device', 'diffusion_share', 'Diffusion share', '%', percent(1, ['diffusionShare'])),
-  q('device', 'measured_voc_v', 'Measured Voc', 'V', { wire: ['measuredVoc_V'] }),
-  q('device', 'thermal_voltage_v', 'Thermal voltage kT/q', 'V', { wire: ['thermalVoltage_V'] }),
+  q('device', 'shunt_a', 'Shunt current', 'A'),
+  q('device', 'diodes_a', 'Diode currents', 'A'),
+  q('device', 'junction_v', 'Junction voltage V + I·Rs', 'V'),
+  q('device', 'depletion_share', 'Depletion-region share', '%', percent(1)),
+  q('device', 'diffusion_share', 'Diffusion share', '%', percent(1)),
+  q('device', 'measured_voc_v', 'Measured Voc', 'V'),
+  q('device', 'thermal_voltage_v', 'Thermal voltage kT/q', 'V'),
 
   // Translation to other conditions (lib/physics/translate) and its coefficients.
-  q('translation', 'alpha_a_per_k', 'α, Isc temperature coefficient', 'A/K', { wire: ['alpha_A_per_K'] }),
-  q('translation', 'alpha_rel_per_k', 'α, relative Isc coefficient', '1/K', { wire: ['alpha_rel_per_K'] }),
-  q('translation', 'beta_rel_per_k', 'β, relative Voc coefficient', '1/K', { wire: ['beta_rel_per_K'] }),
-  q('translation', 'kappa_ohm_per_k', 'κ, curve correction factor', 'Ω/K', { wire: ['kappa_ohm_per_K'] }),
+  q('translation', 'alpha_a_per_k', 'α, Isc temperature coefficient', 'A/K'),
+  q('translation', 'alpha_rel_per_k', 'α, relative Isc coefficient', '1/K'),
+  q('translation', 'beta_rel_per_k', 'β, relative Voc coefficient', '1/K'),
+  q('translation', 'kappa_ohm_per_k', 'κ, curve correction factor', 'Ω/K'),
   q('translation', 'a_irradiance', 'a, irradiance correction of Voc', ''),
-  q('translation', 'alpha_isc_a_per_k', 'α, Isc temperature coefficient', 'A/K', { wire: ['alpha_isc_A_per_K'] }),
+  q('translation', 'alpha_isc_a_per_k', 'α, Isc temperature coefficient', 'A/K'),
   q('translation', 'isc1_a', 'Isc as measured', 'A'),
-  q('translation', 'voc1_v', 'Voc as measured', 'V', { wire: ['voc1_V'] }),
+  q('translation', 'voc1_v', 'Voc as measured', 'V'),
   q('translation', 'points_total', 'Points', '', count),
 
   // String sizing (lib/strings): the request and the answer.
-  q('strings', 'voc_stc_v', 'Voc at STC', 'V', { wire: ['vocStc_V'] }),
-  q('strings', 'beta_voc_pct_per_k', 'Voc coefficient', '%/K', { wire: ['betaVoc_pct_per_K'], digits: 3 }),
-  q('strings', 't_min_c', 'Record low ambient', '°C', { wire: ['tMin_C'] }),
-  q('strings', 't_cell_max_c', 'Hottest cell temperature', '°C', { wire: ['tCellMax_C'] }),
-  q('strings', 'v_sys_v', 'System voltage limit', 'V', { wire: ['vSys_V'] }),
-  q('strings', 'vmp_stc_v', 'Vmp at STC', 'V', { wire: ['vmpStc_V'] }),
-  q('strings', 'beta_vmp_pct_per_k', 'Vmp coefficient', '%/K', { wire: ['betaVmp_pct_per_K'], digits: 3 }),
-  q('strings', 'mpp_window_min_v', 'MPP window from', 'V', { wire: ['mppWindow.min_V', 'min_V'] }),
-  q('strings', 'mpp_window_max_v', 'MPP window to', 'V', { wire: ['mppWindow.max_V', 'max_V'] }),
+  q('strings', 'voc_stc_v', 'Voc at STC', 'V'),
+  q('strings', 'beta_voc_pct_per_k', 'Voc coefficient', '%/K', { digits: 3 }),
+  q('strings', 't_min_c', 'Record low ambient', '°C'),
+  q('strings', 't_cell_max_c', 'Hottest cell temperature', '°C'),
+  q('strings', 'v_sys_v', 'System voltage limit', 'V'),
+  q('strings', 'vmp_stc_v', 'Vmp at STC', 'V'),
+  q('strings', 'beta_vmp_pct_per_k', 'Vmp coefficient', '%/K', { digits: 3 }),
+  q('strings', 'mpp_window_min_v', 'MPP window from', 'V'),
+  q('strings', 'mpp_window_max_v', 'MPP window to', 'V'),
   q('strings', 'voc_max_per_module_v', 'Cold Voc per module', 'V'),
   q('strings', 'max_modules', 'Most modules in series', '', count),
   q('strings', 'string_voc_max_v', 'Cold string Voc', 'V'),
@@ -198,37 +195,33 @@ export const QUANTITIES: readonly Quantity[] = [
   q('strings', 'count', 'Modules with a Voc', '', count),
   q('strings', 'index', 'Position in the list', '', count),
   q('strings', 'mean_voc_v', 'Mean Voc', 'V'),
-  q('strings', 'slope_v_per_k', 'dVoc/dT', 'V/K', { wire: ['slope_V_per_K'] }),
-  q('strings', 'voc_at_25_v', 'Voc at 25 °C', 'V', { wire: ['vocAt25_V'] }),
+  q('strings', 'slope_v_per_k', 'dVoc/dT', 'V/K'),
+  q('strings', 'voc_at_25_v', 'Voc at 25 °C', 'V'),
   q('strings', 'curves', 'Curves', '', count),
-  q('strings', 'span_k', 'Temperature span', 'K', { wire: ['span_K'], digits: 3 }),
+  q('strings', 'span_k', 'Temperature span', 'K', { digits: 3 }),
   q('strings', 'r2', 'R²', '', { digits: 3 }),
-  q('strings', 'value_v', 'Value used', 'V', { wire: ['value_V'] }),
-  q('strings', 'mean_v', 'Mean', 'V', { wire: ['mean_V'] }),
+  q('strings', 'points', 'Points on the line', '', count),
+  q('strings', 'value_v', 'Value used', 'V'),
+  q('strings', 'mean_v', 'Mean', 'V'),
 ];
 
-const BY_NAME: ReadonlyMap<string, Quantity> = (() => {
+const BY_KEY: ReadonlyMap<string, Quantity> = (() => {
   const map = new Map<string, Quantity>();
   for (const x of QUANTITIES) {
-    for (const name of [x.key, ...x.wire]) {
-      if (map.has(name)) throw new Error(`vocabulary: "${name}" is defined twice`);
-      map.set(name, x);
-    }
+    if (map.has(x.key)) throw new Error(`vocabulary: "${x.key}" is defined twice`);
+    map.set(x.key, x);
   }
   return map;
 })();
 
-/**
- * The quantity of a key: its vocabulary name or a name still on the wire ("tempC"). A nested
- * wire name ("boltzmannError.n") is found by its path; `parent` is tried first.
- */
-export function quantity(key: string, parent?: string): Quantity | undefined {
-  return (parent ? BY_NAME.get(`${parent}.${key}`) : undefined) ?? BY_NAME.get(key);
+/** The quantity of a key ("temp_c"), or undefined for a key the table does not know. */
+export function quantity(key: string): Quantity | undefined {
+  return BY_KEY.get(key);
 }
 
 /** True when the key has an entry in the table. */
-export function isKnownKey(key: string, parent?: string): boolean {
-  return quantity(key, parent) !== undefined;
+export function isKnownKey(key: string): boolean {
+  return quantity(key) !== undefined;
 }
 
 /** Label as a person reads it; the key itself when it is not in the table. */

@@ -12,15 +12,15 @@ import type { SingleDiodeParams } from '@/lib/iv';
 
 const OUT = path.resolve(__dirname, '..', 'sample-data', 'batches');
 
-type Device = { id: string; params: SingleDiodeParams; tempC: number; shadedSubstring?: number };
+type Device = { id: string; params: SingleDiodeParams; temp_c: number; shadedSubstring?: number };
 type BatchSpec = {
   slug: string;
   name: string;
-  productType: string;
+  product_type: string;
   supplier: string;
   line: string;
   lot: string;
-  batchDate: string;
+  batch_date: string;
   cells: number;
   area_cm2: number;
   nameplate_w: number | null;
@@ -37,16 +37,16 @@ function cells(): BatchSpec {
   for (let k = 1; k <= 30; k++) {
     const p: SingleDiodeParams = { iph_a: jitter(13.86, 0.006), i0_a: jitter(1.3e-10, 0.12), n: jitter(1.05, 0.01), rs_ohm: jitter(0.0016, 0.06), rsh_ohm: jitter(320, 0.15) };
     if (k === 17) p.rsh_ohm = 0.9; // shunted cell: edge leakage or a crack
-    devices.push({ id: `KF-C24-${String(k).padStart(4, '0')}`, params: p, tempC: Number((25 + 0.6 * normal()).toFixed(1)) });
+    devices.push({ id: `KF-C24-${String(k).padStart(4, '0')}`, params: p, temp_c: Number((25 + 0.6 * normal()).toFixed(1)) });
   }
   return {
     slug: 'kf-c24-cells',
     name: 'KF-C24 incoming cells, lot A-1187',
-    productType: 'M10 mono PERC cell',
+    product_type: 'M10 mono PERC cell',
     supplier: 'Aster Wafer (invented)',
     line: 'cell incoming',
     lot: 'A-1187',
-    batchDate: '2026-11-12',
+    batch_date: '2026-11-12',
     cells: 1,
     area_cm2: 330.2,
     nameplate_w: null,
@@ -59,7 +59,7 @@ function modules(slug: string, name: string, line: string, lot: string, date: st
   const devices: Device[] = [];
   for (let k = 1; k <= 24; k++) {
     const p: SingleDiodeParams = { iph_a: jitter(iph, 0.005), i0_a: jitter(2.2e-10, 0.12), n: jitter(1.08, 0.01), rs_ohm: jitter(rs, 0.05), rsh_ohm: jitter(450, 0.2) };
-    const d: Device = { id: `${lot}-${String(k).padStart(3, '0')}`, params: p, tempC: Number((25 + 1.0 * normal()).toFixed(1)) };
+    const d: Device = { id: `${lot}-${String(k).padStart(3, '0')}`, params: p, temp_c: Number((25 + 1.0 * normal()).toFixed(1)) };
     if (defects && k === 9) p.rs_ohm = rs * 3.2; // high series resistance: a failed solder joint
     if (defects && k === 15) d.shadedSubstring = 0.72; // one substring at 72 % current: bypass diode conducts
     devices.push(d);
@@ -67,11 +67,11 @@ function modules(slug: string, name: string, line: string, lot: string, date: st
   return {
     slug,
     name,
-    productType: '60-cell mono PERC module',
+    product_type: '60-cell mono PERC module',
     supplier,
     line,
     lot,
-    batchDate: date,
+    batch_date: date,
     cells: 60,
     area_cm2: 16610,
     nameplate_w: 330,
@@ -83,7 +83,7 @@ function modules(slug: string, name: string, line: string, lot: string, date: st
 /** Current-voltage samples of one device; a shaded substring is modelled with its bypass diode. */
 function curveOf(d: Device, cellsInSeries: number, points: number): { v: number[]; i: number[] } {
   const p = d.params;
-  const voc = singleDiodeVoltage(p, 0, cellsInSeries, d.tempC);
+  const voc = singleDiodeVoltage(p, 0, cellsInSeries, d.temp_c);
   const v: number[] = [];
   const i: number[] = [];
   const noise = 0.0012 * p.iph_a;
@@ -91,7 +91,7 @@ function curveOf(d: Device, cellsInSeries: number, points: number): { v: number[
     for (let k = 0; k < points; k++) {
       const x = -0.02 * voc + (1.04 * voc * k) / (points - 1);
       v.push(x);
-      i.push(singleDiodeCurrent(p, x, cellsInSeries, d.tempC) + noise * normal());
+      i.push(singleDiodeCurrent(p, x, cellsInSeries, d.temp_c) + noise * normal());
     }
     return { v, i };
   }
@@ -101,8 +101,8 @@ function curveOf(d: Device, cellsInSeries: number, points: number): { v: number[
   const shaded: SingleDiodeParams = { ...p, iph_a: p.iph_a * d.shadedSubstring, rs_ohm: p.rs_ohm / 3 };
   const lit: SingleDiodeParams = { ...p, rs_ohm: p.rs_ohm / 3 };
   const vAt = (cur: number) => {
-    const vLit = 2 * singleDiodeVoltage(lit, cur, sub, d.tempC);
-    const vShaded = cur < shaded.iph_a * 0.995 ? singleDiodeVoltage(shaded, Math.max(cur, -0.1 * shaded.iph_a), sub, d.tempC) : -0.45;
+    const vLit = 2 * singleDiodeVoltage(lit, cur, sub, d.temp_c);
+    const vShaded = cur < shaded.iph_a * 0.995 ? singleDiodeVoltage(shaded, Math.max(cur, -0.1 * shaded.iph_a), sub, d.temp_c) : -0.45;
     return vLit + Math.max(vShaded, -0.45);
   };
   // Sample the I(V) relation on a fine current grid, then read it off at even voltages.
@@ -130,12 +130,12 @@ function curveOf(d: Device, cellsInSeries: number, points: number): { v: number[
 function write(b: BatchSpec) {
   const dir = path.join(OUT, b.slug);
   mkdirSync(dir, { recursive: true });
-  const day = new Date(`${b.batchDate}T07:30:00Z`).getTime();
+  const day = new Date(`${b.batch_date}T07:30:00Z`).getTime();
   b.devices.forEach((d, idx) => {
     const { v, i } = curveOf(d, b.cells, b.cells === 1 ? 110 : 140);
     const lines = [
       `# device: ${d.id}`,
-      `# cell temperature: ${d.tempC}`,
+      `# cell temperature: ${d.temp_c}`,
       '# irradiance: 1000',
       `# cells in series: ${b.cells}`,
       `# area: ${b.area_cm2}`,

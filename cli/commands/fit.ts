@@ -82,10 +82,10 @@ export async function run(argv: string[]): Promise<number> {
     idealities = (values.idealities ?? 'fixed') as 'fixed' | 'free';
     if (idealities !== 'fixed' && idealities !== 'free') throw new UsageError(`--idealities must be fixed or free, got "${String(values.idealities)}"`);
     overrides = {
-      tempC: numberOption(values['temp-c'] as string | undefined, 'temp-c', (x) => x > -100 && x < 250, 'a cell temperature in °C between −100 and 250'),
+      temp_c: numberOption(values['temp-c'] as string | undefined, 'temp-c', (x) => x > -100 && x < 250, 'a cell temperature in °C between −100 and 250'),
       cells: numberOption(values.cells as string | undefined, 'cells', (x) => Number.isInteger(x) && x >= 1 && x <= 10000, 'a whole number of cells from 1 to 10000'),
       area_cm2: numberOption(values['area-cm2'] as string | undefined, 'area-cm2', (x) => x > 0, 'a positive area in cm²'),
-      irradiance_Wm2: numberOption(values['irradiance-wm2'] as string | undefined, 'irradiance-wm2', (x) => x > 0 && x <= 5000, 'an irradiance in W/m² above 0 and at most 5000'),
+      irradiance_w_m2: numberOption(values['irradiance-wm2'] as string | undefined, 'irradiance-wm2', (x) => x > 0 && x <= 5000, 'an irradiance in W/m² above 0 and at most 5000'),
     };
   } catch (err) {
     console.error(`${err instanceof Error ? err.message : String(err)}\n\n${USAGE}`);

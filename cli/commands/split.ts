@@ -30,9 +30,9 @@ const FLAGS = {
   doping_cm3: 'doping-cm3',
   type: 'type',
   excess_cm3: 'excess-cm3',
-  generation_cm3s: 'generation-cm3s',
+  generation_cm3_s: 'generation-cm3s',
   lifetime_s: 'lifetime-s',
-  tempK: 'temp-k',
+  temp_k: 'temp-k',
 };
 
 const ev = (x: number) => x.toFixed(5);
@@ -46,33 +46,33 @@ export async function run(argv: string[]): Promise<number> {
     const input: InjectionInput = {
       type: type as DopingType,
       doping_cm3: requiredNumber(parsed, 'doping-cm3'),
-      tempK: requiredNumber(parsed, 'temp-k'),
+      temp_k: requiredNumber(parsed, 'temp-k'),
       excess_cm3: numberOption(parsed, 'excess-cm3'),
-      generation_cm3s: numberOption(parsed, 'generation-cm3s'),
+      generation_cm3_s: numberOption(parsed, 'generation-cm3s'),
       lifetime_s: numberOption(parsed, 'lifetime-s'),
     };
     const q = quasiFermiLevels(input);
     if (parsed.json) {
       process.stdout.write(
-        `${JSON.stringify({ splitting_ev: q.splitting_eV, implied_voc_v: q.impliedVoc_V, efn_ev: q.efn_eV, efp_ev: q.efp_eV })}\n`,
+        `${JSON.stringify({ splitting_ev: q.splitting_ev, implied_voc_v: q.implied_voc_v, efn_ev: q.efn_ev, efp_ev: q.efp_ev })}\n`,
       );
       return 0;
     }
     const table = formatTable(
-      `${type}-type silicon, ${formatNumber(input.doping_cm3)} cm⁻³, Δn = ${formatNumber(q.excess_cm3)} cm⁻³, ${input.tempK} K`,
+      `${type}-type silicon, ${formatNumber(input.doping_cm3)} cm⁻³, Δn = ${formatNumber(q.excess_cm3)} cm⁻³, ${input.temp_k} K`,
       [
-        ['Conduction band edge Ec', ev(q.edges.ec_eV), 'eV'],
-        ['Electron quasi-Fermi level E_Fn', ev(q.efn_eV), 'eV'],
-        ['Equilibrium Fermi level E_F', ev(q.ef_eV), 'eV'],
+        ['Conduction band edge Ec', ev(q.edges.ec_ev), 'eV'],
+        ['Electron quasi-Fermi level E_Fn', ev(q.efn_ev), 'eV'],
+        ['Equilibrium Fermi level E_F', ev(q.ef_ev), 'eV'],
         ['Intrinsic level E_i', ev(0), 'eV'],
-        ['Hole quasi-Fermi level E_Fp', ev(q.efp_eV), 'eV'],
-        ['Valence band edge Ev', ev(q.edges.ev_eV), 'eV'],
+        ['Hole quasi-Fermi level E_Fp', ev(q.efp_ev), 'eV'],
+        ['Valence band edge Ev', ev(q.edges.ev_ev), 'eV'],
         ['Electrons n', formatNumber(q.n_cm3), 'cm⁻³'],
         ['Holes p', formatNumber(q.p_cm3), 'cm⁻³'],
-        ['Splitting E_Fn − E_Fp (Fermi–Dirac)', ev(q.splitting_eV), 'eV'],
-        ['Implied Voc (Fermi–Dirac)', q.impliedVoc_V.toFixed(4), 'V'],
-        ['Splitting (Boltzmann)', ev(q.boltzmann.splitting_eV), 'eV'],
-        ['Implied Voc (Boltzmann)', q.boltzmann.impliedVoc_V.toFixed(4), 'V'],
+        ['Splitting E_Fn − E_Fp (Fermi–Dirac)', ev(q.splitting_ev), 'eV'],
+        ['Implied Voc (Fermi–Dirac)', q.implied_voc_v.toFixed(4), 'V'],
+        ['Splitting (Boltzmann)', ev(q.boltzmann.splitting_ev), 'eV'],
+        ['Implied Voc (Boltzmann)', q.boltzmann.implied_voc_v.toFixed(4), 'V'],
       ],
       [
         'Energies from the intrinsic level E_i. Dopants fully ionised, no band-gap narrowing.',

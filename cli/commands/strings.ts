@@ -79,14 +79,15 @@ function parse(argv: string[]): { input: StringSizingInput; json: boolean; help:
     throw new UsageError('give both --mpp-min-v and --mpp-max-v, or neither');
   }
   const input: StringSizingInput = {
-    vocStc_V: num('voc-v') as number,
-    betaVoc_pct_per_K: num('beta-pct-per-k') as number,
-    tMin_C: num('tmin-c') as number,
-    vSys_V: num('vsys-v') as number,
-    tCellMax_C: num('tcell-max-c'),
-    vmpStc_V: num('vmp-v'),
-    betaVmp_pct_per_K: num('beta-vmp-pct-per-k'),
-    mppWindow: mppMin === undefined ? undefined : { min_V: mppMin, max_V: mppMax as number },
+    voc_stc_v: num('voc-v') as number,
+    beta_voc_pct_per_k: num('beta-pct-per-k') as number,
+    t_min_c: num('tmin-c') as number,
+    v_sys_v: num('vsys-v') as number,
+    t_cell_max_c: num('tcell-max-c'),
+    vmp_stc_v: num('vmp-v'),
+    beta_vmp_pct_per_k: num('beta-vmp-pct-per-k'),
+    mpp_window_min_v: mppMin,
+    mpp_window_max_v: mppMin === undefined ? undefined : mppMax,
   };
   const missing = (['voc-v', 'beta-pct-per-k', 'tmin-c', 'vsys-v'] as const).filter((k) => values[k] === undefined);
   if (missing.length) throw new UsageError(`missing ${missing.map((k) => `--${k}`).join(', ')}`);
@@ -115,18 +116,18 @@ function jsonOf(r: StringSizingResult): Record<string, unknown> {
 const volts = (v: number): string => `${v.toFixed(2)} V${isAboveElv(v) ? `  ⚠ above ${ELV_LIMIT_V} V DC` : ''}`;
 
 function tableOf(input: StringSizingInput, r: StringSizingResult): string {
-  const t = `${input.tMin_C} °C`;
+  const t = `${input.t_min_c} °C`;
   const rows: [string, string][] = [
-    ['Module Voc at STC', volts(input.vocStc_V)],
-    ['Voc coefficient', `${input.betaVoc_pct_per_K} %/K`],
+    ['Module Voc at STC', volts(input.voc_stc_v)],
+    ['Voc coefficient', `${input.beta_voc_pct_per_k} %/K`],
     ['Record low temperature', t],
-    ['System voltage limit', volts(input.vSys_V)],
+    ['System voltage limit', volts(input.v_sys_v)],
     [`Module Voc at ${t}`, volts(r.voc_max_per_module_v)],
     ['Most modules in series', String(r.max_modules)],
     [`String Voc at ${t}`, volts(r.string_voc_max_v)],
     ['Margin to the limit', `${r.margin_v.toFixed(2)} V (${r.margin_pct.toFixed(1)} %)`],
   ];
-  if (r.vmp_min_per_module_v !== undefined) rows.push([`Module Vmp at ${input.tCellMax_C} °C`, volts(r.vmp_min_per_module_v)]);
+  if (r.vmp_min_per_module_v !== undefined) rows.push([`Module Vmp at ${input.t_cell_max_c} °C`, volts(r.vmp_min_per_module_v)]);
   if (r.min_modules !== undefined) rows.push(['Least modules (MPP window)', String(r.min_modules)]);
   if (r.max_modules_mpp !== undefined) rows.push(['Most modules (MPP window)', String(r.max_modules_mpp)]);
   const width = Math.max(...rows.map(([k]) => k.length));

@@ -54,20 +54,20 @@ const USAGE = usageText(
 
 /** Library input names → option names, so errors point at what the user typed. */
 const FLAGS: Record<string, string> = {
-  alpha_A_per_K: 'alpha-a-per-k',
-  beta_V_per_K: 'beta-v-per-k',
-  alpha_rel_per_K: 'alpha-rel-per-k',
-  beta_rel_per_K: 'beta-rel-per-k',
+  alpha_a_per_k: 'alpha-a-per-k',
+  beta_v_per_k: 'beta-v-per-k',
+  alpha_rel_per_k: 'alpha-rel-per-k',
+  beta_rel_per_k: 'beta-rel-per-k',
   a_irradiance: 'a-irradiance',
   rs_ohm: 'rs-ohm',
-  kappa_ohm_per_K: 'kappa-ohm-per-k',
-  alpha_isc_A_per_K: 'alpha-isc-a-per-k',
-  'to.irradiance_Wm2': 'to-irradiance-wm2',
-  'to.tempC': 'to-temp-c',
-  'from.irradiance_Wm2': 'from-irradiance-wm2',
-  'from.tempC': 'from-temp-c',
-  tempC: 'to-temp-c',
-  fitTempC: 'from-temp-c',
+  kappa_ohm_per_k: 'kappa-ohm-per-k',
+  alpha_isc_a_per_k: 'alpha-isc-a-per-k',
+  'to.irradiance_w_m2': 'to-irradiance-wm2',
+  'to.temp_c': 'to-temp-c',
+  'from.irradiance_w_m2': 'from-irradiance-wm2',
+  'from.temp_c': 'from-temp-c',
+  temp_c: 'to-temp-c',
+  fit_temp_c: 'from-temp-c',
   cells: 'cells',
   points: 'points',
   law: 'i0-law',
@@ -89,21 +89,21 @@ function readCurve(file: string, overrides: IvCurve['meta']): IvCurve {
 }
 
 function conditionsOf(curve: IvCurve, parsedFrom: Partial<Conditions>): Conditions {
-  const irradiance = parsedFrom.irradiance_Wm2 ?? curve.meta.irradiance_Wm2;
-  const tempC = parsedFrom.tempC ?? curve.meta.tempC;
+  const irradiance = parsedFrom.irradiance_w_m2 ?? curve.meta.irradiance_w_m2;
+  const temp_c = parsedFrom.temp_c ?? curve.meta.temp_c;
   if (irradiance === undefined) {
     throw new UsageError('the file does not state its irradiance: give --from-irradiance-wm2', '--from-irradiance-wm2');
   }
-  if (tempC === undefined) {
+  if (temp_c === undefined) {
     throw new UsageError('the file does not state its cell temperature: give --from-temp-c', '--from-temp-c');
   }
-  return { irradiance_Wm2: irradiance, tempC };
+  return { irradiance_w_m2: irradiance, temp_c };
 }
 
 type Fit = { iph_a: number; i0_a: number; n: number; rs_ohm: number; rsh_ohm: number; rmse_a: number };
 
 function fitForModel(curve: IvCurve, from: Conditions, cells: number): Fit {
-  const fit = fitSingleDiode(curve, { tempC: from.tempC, cells });
+  const fit = fitSingleDiode(curve, { temp_c: from.temp_c, cells });
   if (!fit.converged || fit.iph_a === null || fit.i0_a == null || fit.n == null || fit.rs_ohm === null || fit.rsh_ohm === null) {
     throw new UsageError(`the single-diode fit of the curve did not converge${fit.message ? `: ${fit.message}` : ''}`, 'FILE');
   }
@@ -125,7 +125,7 @@ function tableOf(file: string, measured: Metrics | null, r: TranslationResult): 
     const v = m?.[key];
     return typeof v === 'number' ? f(v) : '—';
   };
-  const cond = (c: Conditions) => `${c.irradiance_Wm2} W/m², ${c.tempC} °C`;
+  const cond = (c: Conditions) => `${c.irradiance_w_m2} W/m², ${c.temp_c} °C`;
   const rows = FIGURE_ROWS.map(([key, label, unit, f]) => [label, show(measured, key, f), show(r.figures, key, f), unit]);
   const header = ['', 'measured', 'translated', ''];
   const widths = [0, 1, 2].map((c) => Math.max(...[header, ...rows].map((row) => row[c].length)));
@@ -136,7 +136,7 @@ function tableOf(file: string, measured: Metrics | null, r: TranslationResult): 
     line(header),
     ...rows.map(line),
   ];
-  if (r.figuresError) lines.push('', `Key figures of the translated curve: ${r.figuresError}`);
+  if (r.figures_error) lines.push('', `Key figures of the translated curve: ${r.figures_error}`);
   if (r.params) {
     lines.push(
       '',
@@ -168,21 +168,21 @@ export async function run(argv: string[]): Promise<number> {
       throw new UsageError(`--method must be one of ${METHODS.join(', ')} (got "${method}")`, '--method');
     }
     const to: Conditions = {
-      irradiance_Wm2: requiredNumber(parsed, 'to-irradiance-wm2'),
-      tempC: requiredNumber(parsed, 'to-temp-c'),
+      irradiance_w_m2: requiredNumber(parsed, 'to-irradiance-wm2'),
+      temp_c: requiredNumber(parsed, 'to-temp-c'),
     };
     const cellsOption = numberOption(parsed, 'cells');
     if (cellsOption !== undefined && !(Number.isInteger(cellsOption) && cellsOption >= 1)) {
       throw new UsageError(`--cells must be a whole number ≥ 1 (got ${cellsOption})`, '--cells');
     }
     const fromOptions: Partial<Conditions> = {
-      irradiance_Wm2: numberOption(parsed, 'from-irradiance-wm2'),
-      tempC: numberOption(parsed, 'from-temp-c'),
+      irradiance_w_m2: numberOption(parsed, 'from-irradiance-wm2'),
+      temp_c: numberOption(parsed, 'from-temp-c'),
     };
     const curve = readCurve(file, {
       ...(cellsOption !== undefined ? { cells: cellsOption } : {}),
-      ...(fromOptions.irradiance_Wm2 !== undefined ? { irradiance_Wm2: fromOptions.irradiance_Wm2 } : {}),
-      ...(fromOptions.tempC !== undefined ? { tempC: fromOptions.tempC } : {}),
+      ...(fromOptions.irradiance_w_m2 !== undefined ? { irradiance_w_m2: fromOptions.irradiance_w_m2 } : {}),
+      ...(fromOptions.temp_c !== undefined ? { temp_c: fromOptions.temp_c } : {}),
     });
     const from = conditionsOf(curve, fromOptions);
     let measured: Metrics | null = null;
@@ -201,10 +201,10 @@ export async function run(argv: string[]): Promise<number> {
         method: m,
         from,
         to,
-        alpha_A_per_K: numberOption(parsed, 'alpha-a-per-k') as number,
-        beta_V_per_K: numberOption(parsed, 'beta-v-per-k') as number,
+        alpha_a_per_k: numberOption(parsed, 'alpha-a-per-k') as number,
+        beta_v_per_k: numberOption(parsed, 'beta-v-per-k') as number,
         rs_ohm: numberOption(parsed, 'rs-ohm') as number,
-        kappa_ohm_per_K: numberOption(parsed, 'kappa-ohm-per-k') as number,
+        kappa_ohm_per_k: numberOption(parsed, 'kappa-ohm-per-k') as number,
         isc1_a: measured.isc_a,
       };
     } else if (m === 'iec60891-2') {
@@ -212,12 +212,12 @@ export async function run(argv: string[]): Promise<number> {
         method: m,
         from,
         to,
-        alpha_rel_per_K: numberOption(parsed, 'alpha-rel-per-k') as number,
-        beta_rel_per_K: numberOption(parsed, 'beta-rel-per-k') as number,
+        alpha_rel_per_k: numberOption(parsed, 'alpha-rel-per-k') as number,
+        beta_rel_per_k: numberOption(parsed, 'beta-rel-per-k') as number,
         rs_ohm: numberOption(parsed, 'rs-ohm') as number,
-        kappa_ohm_per_K: numberOption(parsed, 'kappa-ohm-per-k') as number,
+        kappa_ohm_per_k: numberOption(parsed, 'kappa-ohm-per-k') as number,
         a_irradiance: numberOption(parsed, 'a-irradiance') as number,
-        voc1_V: measured.voc_v,
+        voc1_v: measured.voc_v,
       };
     } else {
       const cells = curve.meta.cells;
@@ -231,25 +231,25 @@ export async function run(argv: string[]): Promise<number> {
         cells,
         from,
         to,
-        alpha_isc_A_per_K: numberOption(parsed, 'alpha-isc-a-per-k'),
-        i0Law: law as I0Law,
+        alpha_isc_a_per_k: numberOption(parsed, 'alpha-isc-a-per-k'),
+        i0_law: law as I0Law,
         points: numberOption(parsed, 'points'),
       };
     }
     const result = translateCurve(curve, request);
-    if (fit) result.notes.unshift(`fitted at ${from.tempC} °C: RMSE ${fit.rmse_a.toExponential(3)} A`);
+    if (fit) result.notes.unshift(`fitted at ${from.temp_c} °C: RMSE ${fit.rmse_a.toExponential(3)} A`);
 
     if (parsed.json) {
       const out = {
         method: result.method,
-        from: { irradiance_wm2: result.from.irradiance_Wm2, temp_c: result.from.tempC },
-        to: { irradiance_wm2: result.to.irradiance_Wm2, temp_c: result.to.tempC },
+        from: { irradiance_wm2: result.from.irradiance_w_m2, temp_c: result.from.temp_c },
+        to: { irradiance_wm2: result.to.irradiance_w_m2, temp_c: result.to.temp_c },
         measured_key_figures: measured,
         key_figures: result.figures,
-        ...(result.figuresError ? { key_figures_error: result.figuresError } : {}),
-        ...(result.modelFigures ? { model_figures: result.modelFigures } : {}),
+        ...(result.figures_error ? { key_figures_error: result.figures_error } : {}),
+        ...(result.model_figures ? { model_figures: result.model_figures } : {}),
         ...(result.params ? { params: result.params } : {}),
-        curve: { voltage_v: result.curve.voltage_V, current_a: result.curve.current_A },
+        curve: { voltage_v: result.curve.voltage_v, current_a: result.curve.current_a },
         notes: result.notes,
         caution: HV_CAUTION.short,
       };

@@ -10,7 +10,7 @@ import { STC } from '@/lib/physics/constants';
 import type { StcFigures } from '@/lib/schemas/curves';
 
 export type FileDefaults = { cells?: number | null; area_cm2?: number | null };
-export type FileOverrides = Partial<Pick<CurveMeta, 'tempC' | 'irradiance_Wm2' | 'cells' | 'area_cm2'>>;
+export type FileOverrides = Partial<Pick<CurveMeta, 'temp_c' | 'irradiance_w_m2' | 'cells' | 'area_cm2'>>;
 
 export type FileAnalysis = {
   curve: IvCurve;
@@ -18,7 +18,7 @@ export type FileAnalysis = {
   flags: Flag[];
   fits: FitResult[];
   stc: StcFigures | null;
-  conditions: { tempC: number; cells: number; irradiance_Wm2: number | null; idealities: 'fixed' | 'free' };
+  conditions: { temp_c: number; cells: number; irradiance_w_m2: number | null; idealities: 'fixed' | 'free' };
 };
 
 function clean<T extends object>(o: T): Partial<T> {
@@ -34,15 +34,15 @@ export function singleParams(fits: FitResult[]): SingleDiodeParams | null {
  * STC figures from the fitted single-diode model (De Soto et al. 2006 scaling). When the file
  * gives no irradiance, 1000 W/m² is assumed and said in the notes.
  */
-export function stcFigures(params: SingleDiodeParams, cells: number, tempC: number, irradiance_Wm2: number | null, area_cm2: number | null): StcFigures | null {
+export function stcFigures(params: SingleDiodeParams, cells: number, temp_c: number, irradiance_w_m2: number | null, area_cm2: number | null): StcFigures | null {
   const notes: string[] = [];
-  const g = irradiance_Wm2 ?? STC.irradiance_Wm2;
-  if (irradiance_Wm2 == null) notes.push('No irradiance given: the measurement was taken as 1000 W/m².');
+  const g = irradiance_w_m2 ?? STC.irradiance_w_m2;
+  if (irradiance_w_m2 == null) notes.push('No irradiance given: the measurement was taken as 1000 W/m².');
   try {
-    const t = translateModel(params, { cells, from: { irradiance_Wm2: g, tempC }, to: { irradiance_Wm2: STC.irradiance_Wm2, tempC: STC.tempC } });
-    const f = circuitFigures(singleDiodeCircuit(t.params), cells, STC.tempC);
-    const efficiency = area_cm2 ? f.pmp_w / (STC.irradiance_Wm2 * area_cm2 * 1e-4) : null;
-    return { method: 'model', from: { irradiance_Wm2: g, tempC }, ...f, efficiency, notes: [...notes, ...t.notes] };
+    const t = translateModel(params, { cells, from: { irradiance_w_m2: g, temp_c }, to: { irradiance_w_m2: STC.irradiance_w_m2, temp_c: STC.temp_c } });
+    const f = circuitFigures(singleDiodeCircuit(t.params), cells, STC.temp_c);
+    const efficiency = area_cm2 ? f.pmp_w / (STC.irradiance_w_m2 * area_cm2 * 1e-4) : null;
+    return { method: 'model', from: { irradiance_w_m2: g, temp_c }, ...f, efficiency, notes: [...notes, ...t.notes] };
   } catch {
     return null;
   }
@@ -64,9 +64,9 @@ export function analyseFile(
 /** The pipeline after reading: used for refits with corrected metadata too. */
 export function analyseParsed(curve: IvCurve, idealities: 'fixed' | 'free' = 'fixed', models?: ('single' | 'double')[]): FileAnalysis {
   const { metrics, flags, fits } = analyseCurve(curve, { idealities, models });
-  const tempC = curve.meta.tempC ?? 25;
+  const temp_c = curve.meta.temp_c ?? 25;
   const cells = curve.meta.cells ?? 1;
   const p = singleParams(fits);
-  const stc = p ? stcFigures(p, cells, tempC, curve.meta.irradiance_Wm2 ?? null, curve.meta.area_cm2 ?? null) : null;
-  return { curve, metrics, flags, fits, stc, conditions: { tempC, cells, irradiance_Wm2: curve.meta.irradiance_Wm2 ?? null, idealities } };
+  const stc = p ? stcFigures(p, cells, temp_c, curve.meta.irradiance_w_m2 ?? null, curve.meta.area_cm2 ?? null) : null;
+  return { curve, metrics, flags, fits, stc, conditions: { temp_c, cells, irradiance_w_m2: curve.meta.irradiance_w_m2 ?? null, idealities } };
 }

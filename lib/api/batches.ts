@@ -4,60 +4,17 @@ import { ApiError, apiFetch } from '@/lib/api/client';
 import { invalidateBatchData, invalidateBatchFigures } from '@/lib/api/invalidate';
 import { batchKeys, curveKeys } from '@/lib/api/keys';
 import type { CurveListParams } from '@/lib/api/keys';
-import type { CurveMeta, FitResult, Flag, Metrics } from '@/lib/iv/types';
-import type { BatchCreateInput, RefitInput, StcFigures } from '@/lib/schemas/curves';
+import type { BatchCreateInput, RefitInput } from '@/lib/schemas/curves';
+import type { Batch, BatchList, CurveDetail, CurvePage, CurveRow, Overlay, RefitAnswer, UploadFileResult } from '@/lib/schemas/responses';
 
 export { batchKeys, curveKeys };
 export type { CurveListParams };
 
-export type DescribeStats = { n: number; mean: number; sd: number | null; min: number; p5: number; median: number; p95: number; max: number; cpk: number | null };
-
-export type Batch = {
-  id: string;
-  name: string;
-  productType: string | null;
-  supplier: string | null;
-  line: string | null;
-  lot: string | null;
-  batchDate: string | null;
-  cells: number | null;
-  area_cm2: number | null;
-  nameplate_w: number | null;
-  description: string | null;
-  archived: boolean;
-  state: 'open' | 'in_review' | 'released' | 'on_hold';
-  createdAt: string;
-  updatedAt: string;
-  curveCount?: number;
-  meanPmp_w?: number | null;
-  summary?: Record<string, DescribeStats | null>;
-  flagCounts?: Record<string, number>;
-};
-
-export type FitJson = FitResult & { fit_id: string; conditions: Record<string, unknown>; reason: string; created_at: string };
-
-export type CurveRow = {
-  id: string;
-  batch_id: string;
-  device_id: string;
-  file_name: string;
-  meta: CurveMeta;
-  metrics: Metrics;
-  flags: Flag[];
-  stc: StcFigures | null;
-  fits: FitJson[];
-  created_at: string;
-};
-
-export type CurveDetail = CurveRow & {
-  points: { voltage_V: number[]; current_A: number[] };
-  notes: string[];
-  history: { fit_id: string; model: string; current: boolean; reason: string; conditions: Record<string, unknown>; rmse_a: number | null; converged: boolean; created_at: string }[];
-  batch: { id: string; name: string; state: string };
-};
+export type { Batch, CurveDetail, CurveRow, DescribeStats, OverlayCurve, UploadFileResult } from '@/lib/schemas/responses';
+export type FitJson = CurveRow['fits'][number];
 
 export function useBatches() {
-  return useQuery({ queryKey: batchKeys.list(), queryFn: () => apiFetch<{ batches: Batch[] }>('/api/batches') });
+  return useQuery({ queryKey: batchKeys.list(), queryFn: () => apiFetch<BatchList>('/api/batches') });
 }
 
 export function useBatch(id: string) {
@@ -65,21 +22,19 @@ export function useBatch(id: string) {
 }
 
 export function useBatchCurves(id: string, p: CurveListParams) {
-  const qs = new URLSearchParams({ page: String(p.page), pageSize: String(p.pageSize), sort: p.sort, dir: p.dir, q: p.q, ...(p.flag ? { flag: p.flag } : {}) });
+  const qs = new URLSearchParams({ page: String(p.page), page_size: String(p.page_size), sort: p.sort, dir: p.dir, q: p.q, ...(p.flag ? { flag: p.flag } : {}) });
   return useQuery({
     queryKey: batchKeys.curves(id, p),
-    queryFn: () => apiFetch<{ curves: CurveRow[]; total: number; page: number; pageSize: number }>(`/api/batches/${encodeURIComponent(id)}/curves?${qs}`),
+    queryFn: () => apiFetch<CurvePage>(`/api/batches/${encodeURIComponent(id)}/curves?${qs}`),
     placeholderData: keepPreviousData,
     enabled: !!id,
   });
 }
 
-export type OverlayCurve = { id: string; device_id: string; flagged: boolean; voltage_V: number[]; current_A: number[] };
-
 export function useOverlay(id: string) {
   return useQuery({
     queryKey: batchKeys.overlay(id),
-    queryFn: () => apiFetch<{ total: number; sampled: number; curves: OverlayCurve[] }>(`/api/batches/${encodeURIComponent(id)}/overlay?max=30`),
+    queryFn: () => apiFetch<Overlay>(`/api/batches/${encodeURIComponent(id)}/overlay?max=30`),
     enabled: !!id,
   });
 }
@@ -112,7 +67,7 @@ export function useCurve(id: string) {
 export function useRefit(id: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: RefitInput) => apiFetch<CurveDetail>(`/api/curves/${encodeURIComponent(id)}/refit`, { body: input as Record<string, unknown> }),
+    mutationFn: (input: RefitInput) => apiFetch<RefitAnswer>(`/api/curves/${encodeURIComponent(id)}/refit`, { body: input as Record<string, unknown> }),
     onSuccess: async (data) => {
       // The answer is the new curve (without its batch): written, not fetched again, as it can hold 100,000 points.
       qc.setQueryData(curveKeys.detail(id), (old: CurveDetail | undefined) => (old ? { ...data, batch: old.batch } : old));
@@ -122,11 +77,7 @@ export function useRefit(id: string) {
   });
 }
 
-export type UploadFileResult =
-  | { file: string; accepted: true; curveId: string; deviceId: string; replaced?: number }
-  | { file: string; accepted: false; error: string; code: string; deviceId?: string; line?: number };
-
-export type UploadOptions = { tempC?: string; irradiance_Wm2?: string; cells?: string; area_cm2?: string; onDuplicate?: 'ask' | 'replace' | 'keep' };
+export type UploadOptions = { temp_c?: string; irradiance_w_m2?: string; cells?: string; area_cm2?: string; on_duplicate?: 'ask' | 'replace' | 'keep' };
 
 /** Files per request: small enough that progress moves and one failure costs little. */
 export const UPLOAD_CHUNK = 40;

@@ -15,7 +15,7 @@
 import type { BandDiagramRequest } from '@/lib/schemas/physics';
 import type { CurveSortKey } from '@/lib/schemas/curves';
 
-export type CurveListParams = { page: number; pageSize: number; sort: CurveSortKey; dir: 'asc' | 'desc'; q: string; flag?: string };
+export type CurveListParams = { page: number; page_size: number; sort: CurveSortKey; dir: 'asc' | 'desc'; q: string; flag?: string };
 
 /** The third element of a comparison key. */
 export type CompareKeyPart = { batches: string[]; specId: string; param: string };
@@ -57,7 +57,7 @@ export const curveKeys = {
 
 export const physicsKeys = {
   all: ['physics'] as const,
-  material: (tempK: number) => [...physicsKeys.all, 'material', tempK] as const,
+  material: (temp_k: number) => [...physicsKeys.all, 'material', temp_k] as const,
   bandDiagram: (input: BandDiagramRequest | null) => [...physicsKeys.all, 'band-diagram', input ?? 'none'] as const,
   /** Under the curve's root: a refit of the curve makes it stale. */
   curve: (id: string) => curveKeys.physics(id),

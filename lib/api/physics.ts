@@ -9,29 +9,29 @@ import type { StcFigures } from '@/lib/schemas/curves';
 
 /** GET /api/physics/material. */
 export type MaterialJson = {
-  tempK: number;
-  tempC: number;
+  temp_k: number;
+  temp_c: number;
   ni_cm3: number;
   eg_ev: number;
   nc_cm3: number;
   nv_cm3: number;
-  egDos_eV: number;
-  kT_eV: number;
-  material: { id: string; name: string; tempRangeK: { min: number; max: number }; maxDoping_cm3: number; sources: Record<string, string> };
-  reference: { tempK: number; ni_cm3: number; source: string; modelAtReference_cm3: number };
-  series: { tempK: number[]; ni_cm3: number[] };
+  eg_dos_ev: number;
+  kt_ev: number;
+  material: { id: string; name: string; temp_range_k: { min: number; max: number }; max_doping_cm3: number; sources: Record<string, string> };
+  reference: { temp_k: number; ni_cm3: number; source: string; model_at_reference_cm3: number };
+  series: { temp_k: number[]; ni_cm3: number[] };
 };
 
-type Levels = { ef_eV: number; efn_eV: number; efp_eV: number; n0_cm3: number; p0_cm3: number; splitting_eV: number; impliedVoc_V: number };
+type Levels = { ef_ev: number; efn_ev: number; efp_ev: number; n0_cm3: number; p0_cm3: number; splitting_ev: number; implied_voc_v: number };
 
 /** POST /api/physics/band-diagram. */
 export type BandDiagramJson = {
-  input: { type: 'p' | 'n'; doping_cm3: number; excess_cm3: number; tempK: number };
-  material: { name: string; eg_ev: number; egDos_eV: number; ni_cm3: number; kT_eV: number };
+  input: { type: 'p' | 'n'; doping_cm3: number; excess_cm3: number; temp_k: number };
+  material: { name: string; eg_ev: number; eg_dos_ev: number; ni_cm3: number; kt_ev: number };
   diagram: BandDiagram;
-  fermiDirac: Levels & { n_cm3: number; p_cm3: number; etaN: number; etaP: number };
+  fermi_dirac: Levels & { n_cm3: number; p_cm3: number; eta_n: number; eta_p: number };
   boltzmann: Levels;
-  difference: { splitting_eV: number; impliedVoc_V: number };
+  difference: { splitting_ev: number; implied_voc_v: number };
   degenerate: boolean;
   occupation: OccupationCurve;
 };
@@ -39,17 +39,17 @@ export type BandDiagramJson = {
 /** GET /api/physics/curves/:id. */
 export type CurvePhysicsJson = {
   curve: { id: string; device_id: string; batch: { id: string; name: string } | null; meta: CurveMeta; metrics: Metrics };
-  conditions: { tempC: number; cells: number; irradiance_Wm2: number | null; area_cm2: number | null; cellArea_cm2: number | null };
+  conditions: { temp_c: number; cells: number; irradiance_w_m2: number | null; area_cm2: number | null; cell_area_cm2: number | null };
   stc: StcFigures | null;
   single: {
     params: SingleDiodeParams;
-    j0_A_per_cm2: number | null;
-    impliedVoc: { voc_V: number; jsc_A_per_cm2: number | null; isc_a: number; measuredVoc_V: number } | null;
+    j0_a_cm2: number | null;
+    implied_voc: { voc_v: number; jsc_a_cm2: number | null; isc_a: number; measured_voc_v: number } | null;
     coefficient: VocTempCoefficient | null;
-    coefficientDeSoto: VocTempCoefficient | null;
-    vocVsTemperature: { law: string; points: { tempC: number; voc_V: number }[] } | null;
+    coefficient_de_soto: VocTempCoefficient | null;
+    voc_vs_temperature: { law: string; points: { temp_c: number; voc_v: number }[] } | null;
   } | null;
-  double: { params: DoubleDiodeParams; j01_A_per_cm2: number | null; j02_A_per_cm2: number | null; shares: RecombinationShares | null } | null;
+  double: { params: DoubleDiodeParams; j01_a_cm2: number | null; j02_a_cm2: number | null; shares: RecombinationShares | null } | null;
   notes: string[];
 };
 
@@ -58,26 +58,26 @@ export type TranslatedFigures = { isc_a: number; voc_v: number; pmp_w: number; i
 /** POST /api/physics/curves/:id/translate. */
 export type TranslationJson = {
   method: TranslationMethod;
-  from: { irradiance_Wm2: number; tempC: number };
-  to: { irradiance_Wm2: number; tempC: number };
+  from: { irradiance_w_m2: number; temp_c: number };
+  to: { irradiance_w_m2: number; temp_c: number };
   figures: TranslatedFigures | null;
-  figuresSource: 'model' | 'curve' | null;
-  figuresError: string | null;
-  measured: { conditions: { irradiance_Wm2: number; tempC: number }; figures: Metrics; curve: { voltage_V: number[]; current_A: number[] } };
+  figures_source: 'model' | 'curve' | null;
+  figures_error: string | null;
+  measured: { conditions: { irradiance_w_m2: number; temp_c: number }; figures: Metrics; curve: { voltage_v: number[]; current_a: number[] } };
   params: SingleDiodeParams | null;
-  curve: { voltage_V: number[]; current_A: number[] };
+  curve: { voltage_v: number[]; current_a: number[] };
   points_total: number;
   notes: string[];
 };
 
 export { physicsKeys };
 
-/** Silicon's n_i, Eg, Nc, Nv at tempK and n_i over 200–400 K; the previous answer stays while the next loads. */
-export function useMaterial(tempK: number | null) {
+/** Silicon's n_i, Eg, Nc, Nv at temp_k and n_i over 200–400 K; the previous answer stays while the next loads. */
+export function useMaterial(temp_k: number | null) {
   return useQuery({
-    queryKey: physicsKeys.material(tempK ?? 0),
-    queryFn: () => apiFetch<MaterialJson>(`/api/physics/material?tempK=${encodeURIComponent(String(tempK))}`),
-    enabled: tempK != null,
+    queryKey: physicsKeys.material(temp_k ?? 0),
+    queryFn: () => apiFetch<MaterialJson>(`/api/physics/material?temp_k=${encodeURIComponent(String(temp_k))}`),
+    enabled: temp_k != null,
     placeholderData: keepPreviousData,
     staleTime: Infinity,
   });

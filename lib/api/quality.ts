@@ -3,56 +3,12 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { ApiError, apiFetch } from '@/lib/api/client';
 import { invalidateBatchReview } from '@/lib/api/invalidate';
 import { qualityKeys, specKeys } from '@/lib/api/keys';
-import type { Batch, DescribeStats } from '@/lib/api/batches';
+import type { ComparisonWire, Evaluation, ReviewRecord, SpecJson, SpecList } from '@/lib/schemas/responses';
 import { rowsOfColumns } from '@/lib/quality/compare-table';
-import type { BatchColumns, CompareRow } from '@/lib/quality/compare-table';
-import type { Spec, SpecInput } from '@/lib/quality/spec';
+import type { CompareRow } from '@/lib/quality/compare-table';
+import type { SpecInput } from '@/lib/quality/spec';
 
-export type SpecJson = Spec & { id: string; familyId: string; version: number; changes: string[]; createdAt: string; versions?: { id: string; version: number; changes: string[]; createdAt: string; by: string | null }[] };
-
-export type DeviceEval = {
-  deviceId: string;
-  curveId: string;
-  result: 'pass' | 'fail';
-  reasons: { kind: string; param: string; value: number | string | null; message: string }[];
-  powerClass: string | null;
-  outlier: boolean;
-  outlierParams: string[];
-  values: Record<string, number | null>;
-  flags: string[];
-};
-
-export type Evaluation = {
-  batch: Batch;
-  spec: { id: string; name: string; version: number; familyId: string };
-  counts: { total: number; pass: number; fail: number; outliers: number };
-  powerClassCounts: Record<string, number>;
-  stats: Record<string, DescribeStats | null>;
-  devices: DeviceEval[];
-};
-
-export type Review = { id: string; action: string; specId: string | null; counts: Record<string, number> | null; comment: string | null; createdAt: string; actor: string | null; release_id: string | null };
-
-/** A release as listed: what it froze, and where its pass/fail CSV stays downloadable. */
-export type ReleaseSummary = {
-  id: string;
-  revision: number;
-  spec_id: string | null;
-  spec_name: string;
-  spec_version: number;
-  counts: Record<string, number>;
-  comment: string | null;
-  released_by: string | null;
-  created_at: string;
-  csv_file_name: string;
-  csv_sha256: string;
-  csv_url: string;
-};
-
-/** Whether the caller may release the batch (separation of duties), with the reason when not. */
-export type ReleaseCheck = { allowed: true } | { allowed: false; code: 'same_person'; message: string };
-
-export type ReviewRecord = { reviews: Review[]; releases: ReleaseSummary[]; release_check: ReleaseCheck };
+export type { DeviceEval, Difference, Evaluation, ReleaseCheck, ReleaseSummary, Review, ReviewRecord, SpecJson } from '@/lib/schemas/responses';
 
 /** The 409 answer to a spec saved on an outdated version: the newer version and what it changed. */
 export type SpecConflict = { code: 'spec_conflict'; message: string; newer: { id: string; version: number; changes: string[]; spec: SpecJson } };
@@ -64,18 +20,9 @@ export function specConflictOf(error: unknown): SpecConflict | null {
 }
 
 export type { CompareRow };
-export type Difference = { batchA: string; batchB: string; param: string; difference?: number; ciLow?: number; ciHigh?: number; p?: number; dof?: number; sentence?: string; significant?: boolean; error?: string };
-export type Comparison = {
-  batches: { id: string; name: string; state: string; count: number }[];
-  spec: { id: string; name: string; version: number } | null;
-  param: string;
-  rows: CompareRow[];
-  stats: Record<string, Record<string, DescribeStats | null>>;
-  counts: Record<string, { total: number; pass: number; fail: number; outliers: number } | null>;
-  differences: Difference[];
-};
-/** The comparison as the server sends it: each batch's rows as columns, outlier marks apart (lib/quality/compare-table.ts). */
-export type ComparisonWire = Omit<Comparison, 'rows'> & { tables: BatchColumns[]; outliers: (boolean | null)[][] };
+/** The comparison as the grid uses it: the wire answer with its rows as objects again. */
+export type Comparison = Omit<ComparisonWire, 'tables' | 'outliers'> & { rows: CompareRow[] };
+export type { ComparisonWire };
 
 /** The wire answer with its rows as objects again, as the grid, filters and charts use them. */
 export function comparisonOfWire(w: ComparisonWire): Comparison {
@@ -86,7 +33,7 @@ export function comparisonOfWire(w: ComparisonWire): Comparison {
 export { qualityKeys, specKeys };
 
 export function useSpecs() {
-  return useQuery({ queryKey: specKeys.list(), queryFn: () => apiFetch<{ specs: SpecJson[] }>('/api/specs') });
+  return useQuery({ queryKey: specKeys.list(), queryFn: () => apiFetch<SpecList>('/api/specs') });
 }
 
 export function useSpec(id: string) {
@@ -96,7 +43,7 @@ export function useSpec(id: string) {
 export function useSaveSpec() {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: SpecInput & { familyId?: string; base_version?: number }) => apiFetch<SpecJson>('/api/specs', { body: input as Record<string, unknown> }),
+    mutationFn: (input: SpecInput & { family_id?: string; base_version?: number }) => apiFetch<SpecJson>('/api/specs', { body: input as Record<string, unknown> }),
     // A save adds a version with a new id: evaluations and comparisons cached under an existing
     // spec id stay true, only the spec list and details change.
     onSuccess: async () => {
@@ -131,7 +78,7 @@ export function useSubmitBatch(batchId: string) {
 export function useDecision(batchId: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: { decision: 'release' | 'hold'; specId: string; comment: string }) => apiFetch(`/api/batches/${encodeURIComponent(batchId)}/decision`, { body: input }),
+    mutationFn: (input: { decision: 'release' | 'hold'; spec_id: string; comment: string }) => apiFetch(`/api/batches/${encodeURIComponent(batchId)}/decision`, { body: input }),
     // Released or on hold shows in the list, the comparison and the curve pages; the decision is mailed.
     onSuccess: async () => {
       await invalidateBatchReview(qc, batchId);

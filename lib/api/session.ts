@@ -1,32 +1,12 @@
 /** Session, sign-in and account hooks (better-auth's endpoints and /api/me). */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { QueryClient } from '@tanstack/react-query';
-import type { Permission, Role } from '@/lib/auth/roles';
+import type { Account, AccountState, Me } from '@/lib/schemas/responses';
 import { ApiError, apiFetch } from '@/lib/api/client';
 import { outboxKeys, sessionKeys } from '@/lib/api/keys';
 import type { SignInInput, SignUpInput } from '@/lib/schemas/auth';
 
-/** Where a signed-in person stands (GET /api/me `account_state`). */
-export type AccountState = 'active' | 'email_unverified' | 'awaiting_approval' | 'refused' | 'no_organisation' | 'deactivated';
-
-/** GET /api/me as it comes: any signed-in person, verified or not, member or not. */
-export type Account = {
-  user: { id: string; name: string; email: string; role: Role | null };
-  organization: { id: string; name: string; domain: string } | null;
-  role: Role | null;
-  permissions: Permission[];
-  email_verified: boolean;
-  account_state: AccountState;
-  join_request: { status: string; organization_name: string; created_at: string } | null;
-};
-
-/** An active, verified member: what the signed-in screens work with. */
-export type Me = Account & {
-  user: { id: string; name: string; email: string; role: Role };
-  organization: { id: string; name: string; domain: string };
-  role: Role;
-  account_state: 'active';
-};
+export type { Account, AccountState, Me };
 
 export { sessionKeys };
 

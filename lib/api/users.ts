@@ -6,8 +6,9 @@ import { userKeys } from '@/lib/api/keys';
 import type { AuditEntryJson } from '@/lib/auth/audit';
 import type { Role } from '@/lib/auth/roles';
 import type { InviteInput, RequestDecisionInput } from '@/lib/schemas/auth';
+import type { UserList } from '@/lib/schemas/responses';
 
-export type OrgUser = { id: string; name: string; email: string; role: Role; memberId: string; joinedAt: string; active: boolean; deactivated_at: string | null };
+export type { OrgUser } from '@/lib/schemas/responses';
 export type Invitation = { id: string; email: string; role: Role; expires_at: string; created_at: string; invited_by: string | null };
 export type JoinRequest = { id: string; user_id: string; name: string; email: string; created_at: string };
 export type OrganisationSettings = { id: string; name: string; domain: string; join_by_domain: boolean };
@@ -15,7 +16,7 @@ export type OrganisationSettings = { id: string; name: string; domain: string; j
 export { userKeys };
 
 export function useUsers() {
-  return useQuery({ queryKey: userKeys.list(), queryFn: () => apiFetch<{ users: OrgUser[] }>('/api/users') });
+  return useQuery({ queryKey: userKeys.list(), queryFn: () => apiFetch<UserList>('/api/users') });
 }
 
 export function useInvitations() {

@@ -9,7 +9,7 @@ function sig4(v: number): string {
 }
 
 /** "V = 0.4520 V · I = 0.6900 A · P = 0.3119 W", optionally after a label (the device id on the overlay). */
-export function ivReadout(voltage_V: number, current_A: number, label?: string): string {
-  const text = `V = ${sig4(voltage_V)} V · I = ${sig4(current_A)} A · P = ${sig4(voltage_V * current_A)} W`;
+export function ivReadout(voltage_v: number, current_a: number, label?: string): string {
+  const text = `V = ${sig4(voltage_v)} V · I = ${sig4(current_a)} A · P = ${sig4(voltage_v * current_a)} W`;
   return label ? `${label}: ${text}` : text;
 }

@@ -5,9 +5,9 @@ import { fitSingleDiode } from '@/lib/iv/fit-single';
 import { keyFigures } from '@/lib/iv/key-figures';
 import type { FitObjective, FitResult, Flag, IvCurve, Metrics, SingleDiodeFit } from '@/lib/iv/types';
 
-/** Options of `analyseCurve`; tempC and cells override the curve's metadata. */
+/** Options of `analyseCurve`; temp_c and cells override the curve's metadata. */
 export type AnalyseOptions = {
-  tempC?: number;
+  temp_c?: number;
   cells?: number;
   objective?: FitObjective;
   /** Idealities of the double-diode fit (default 'fixed': n1 = 1, n2 = 2). */
@@ -25,8 +25,8 @@ const POOR_FIT_SHARE = 0.01;
  */
 export function analyseCurve(curve: IvCurve, opts: AnalyseOptions = {}): { metrics: Metrics; flags: Flag[]; fits: FitResult[] } {
   const { metrics, flags } = keyFigures(curve);
-  const { tempC, cells } = fitConditions(curve, opts);
-  if (opts.tempC === undefined && curve.meta?.tempC === undefined) {
+  const { temp_c, cells } = fitConditions(curve, opts);
+  if (opts.temp_c === undefined && curve.meta?.temp_c === undefined) {
     flags.push({
       code: 'temperature-assumed',
       severity: 'info',
@@ -45,10 +45,10 @@ export function analyseCurve(curve: IvCurve, opts: AnalyseOptions = {}): { metri
   let single: SingleDiodeFit | undefined;
   for (const model of opts.models ?? ['single', 'double']) {
     if (model === 'single') {
-      single = fitSingleDiode(curve, { tempC, cells, metrics, objective: opts.objective });
+      single = fitSingleDiode(curve, { temp_c, cells, metrics, objective: opts.objective });
       fits.push(single);
     } else {
-      fits.push(fitDoubleDiode(curve, { tempC, cells, metrics, objective: opts.objective, idealities: opts.idealities, single: single?.objective === 'true-current' ? single : undefined }));
+      fits.push(fitDoubleDiode(curve, { temp_c, cells, metrics, objective: opts.objective, idealities: opts.idealities, single: single?.objective === 'true-current' ? single : undefined }));
     }
   }
   for (const fit of fits) {

@@ -8,14 +8,14 @@
  * Double diode: no closed form; a Newton iteration on I that converges monotonically because
  * the residual is decreasing and concave in I (see `solveDoubleDiodeCurrent`).
  */
-import { thermalVoltage_V } from '@/lib/physics/constants';
+import { thermal_voltage_v } from '@/lib/physics/constants';
 import { IvInputError } from '@/lib/iv/errors';
 import { lambertWExp } from '@/lib/iv/lambert-w';
 import type { DoubleDiodeParams, IvCurve, SingleDiodeParams } from '@/lib/iv/types';
 
 /** Modified ideality voltage a = n·cells·kT/q, V. */
-export function idealityVoltage_V(n: number, cells: number, tempC: number): number {
-  return n * cells * thermalVoltage_V(tempC);
+export function idealityVoltage_V(n: number, cells: number, temp_c: number): number {
+  return n * cells * thermal_voltage_v(temp_c);
 }
 
 /**
@@ -123,55 +123,55 @@ function checkParams(p: Record<string, number>, where: string): void {
   if (p.rs_ohm < 0) throw new IvInputError('bad-parameter', `${where}: rs_ohm must not be negative, got ${p.rs_ohm}`);
 }
 
-function checkConditions(cells: number, tempC: number, where: string): void {
+function checkConditions(cells: number, temp_c: number, where: string): void {
   if (!(Number.isInteger(cells) && cells >= 1)) throw new IvInputError('bad-parameter', `${where}: cells must be a whole number ≥ 1, got ${cells}`);
-  if (!(Number.isFinite(tempC) && tempC > -273.15)) throw new IvInputError('bad-parameter', `${where}: tempC must be above absolute zero, got ${tempC}`);
+  if (!(Number.isFinite(temp_c) && temp_c > -273.15)) throw new IvInputError('bad-parameter', `${where}: temp_c must be above absolute zero, got ${temp_c}`);
 }
 
-/** Single-diode current, A, at terminal voltage voltage_V for `cells` in series at cell temperature tempC (°C). */
-export function singleDiodeCurrent(p: SingleDiodeParams, voltage_V: number, cells: number, tempC: number): number {
+/** Single-diode current, A, at terminal voltage voltage_v for `cells` in series at cell temperature temp_c (°C). */
+export function singleDiodeCurrent(p: SingleDiodeParams, voltage_v: number, cells: number, temp_c: number): number {
   checkParams(p, 'singleDiodeCurrent');
-  checkConditions(cells, tempC, 'singleDiodeCurrent');
-  return sdCurrent(p.iph_a, p.i0_a, idealityVoltage_V(p.n, cells, tempC), p.rs_ohm, p.rsh_ohm, voltage_V);
+  checkConditions(cells, temp_c, 'singleDiodeCurrent');
+  return sdCurrent(p.iph_a, p.i0_a, idealityVoltage_V(p.n, cells, temp_c), p.rs_ohm, p.rsh_ohm, voltage_v);
 }
 
-/** Single-diode currents, A, at each voltage in voltages_V. */
-export function singleDiodeCurrents(p: SingleDiodeParams, voltages_V: readonly number[], cells: number, tempC: number): number[] {
+/** Single-diode currents, A, at each voltage in voltages_v. */
+export function singleDiodeCurrents(p: SingleDiodeParams, voltages_v: readonly number[], cells: number, temp_c: number): number[] {
   checkParams(p, 'singleDiodeCurrents');
-  checkConditions(cells, tempC, 'singleDiodeCurrents');
-  const a = idealityVoltage_V(p.n, cells, tempC);
-  return voltages_V.map((v) => sdCurrent(p.iph_a, p.i0_a, a, p.rs_ohm, p.rsh_ohm, v));
+  checkConditions(cells, temp_c, 'singleDiodeCurrents');
+  const a = idealityVoltage_V(p.n, cells, temp_c);
+  return voltages_v.map((v) => sdCurrent(p.iph_a, p.i0_a, a, p.rs_ohm, p.rsh_ohm, v));
 }
 
-/** Single-diode terminal voltage, V, at current current_A (explicit Lambert W form). */
-export function singleDiodeVoltage(p: SingleDiodeParams, current_A: number, cells: number, tempC: number): number {
+/** Single-diode terminal voltage, V, at current current_a (explicit Lambert W form). */
+export function singleDiodeVoltage(p: SingleDiodeParams, current_a: number, cells: number, temp_c: number): number {
   checkParams(p, 'singleDiodeVoltage');
-  checkConditions(cells, tempC, 'singleDiodeVoltage');
-  return sdVoltage(p.iph_a, p.i0_a, idealityVoltage_V(p.n, cells, tempC), p.rs_ohm, p.rsh_ohm, current_A);
+  checkConditions(cells, temp_c, 'singleDiodeVoltage');
+  return sdVoltage(p.iph_a, p.i0_a, idealityVoltage_V(p.n, cells, temp_c), p.rs_ohm, p.rsh_ohm, current_a);
 }
 
-/** Double-diode current, A, at terminal voltage voltage_V (n1, n2 per cell). */
-export function doubleDiodeCurrent(p: DoubleDiodeParams, voltage_V: number, cells: number, tempC: number): number {
+/** Double-diode current, A, at terminal voltage voltage_v (n1, n2 per cell). */
+export function doubleDiodeCurrent(p: DoubleDiodeParams, voltage_v: number, cells: number, temp_c: number): number {
   checkParams(p, 'doubleDiodeCurrent');
-  checkConditions(cells, tempC, 'doubleDiodeCurrent');
-  const a1 = idealityVoltage_V(p.n1, cells, tempC);
-  const a2 = idealityVoltage_V(p.n2, cells, tempC);
-  return solveDoubleDiodeCurrent(p.iph_a, p.i01_a, a1, p.i02_a, a2, p.rs_ohm, p.rsh_ohm, voltage_V);
+  checkConditions(cells, temp_c, 'doubleDiodeCurrent');
+  const a1 = idealityVoltage_V(p.n1, cells, temp_c);
+  const a2 = idealityVoltage_V(p.n2, cells, temp_c);
+  return solveDoubleDiodeCurrent(p.iph_a, p.i01_a, a1, p.i02_a, a2, p.rs_ohm, p.rsh_ohm, voltage_v);
 }
 
-/** Double-diode terminal voltage, V, at current current_A. */
-export function doubleDiodeVoltage(p: DoubleDiodeParams, current_A: number, cells: number, tempC: number): number {
+/** Double-diode terminal voltage, V, at current current_a. */
+export function doubleDiodeVoltage(p: DoubleDiodeParams, current_a: number, cells: number, temp_c: number): number {
   checkParams(p, 'doubleDiodeVoltage');
-  checkConditions(cells, tempC, 'doubleDiodeVoltage');
-  const a1 = idealityVoltage_V(p.n1, cells, tempC);
-  const a2 = idealityVoltage_V(p.n2, cells, tempC);
-  return solveDoubleDiodeVoltage(p.iph_a, p.i01_a, a1, p.i02_a, a2, p.rs_ohm, p.rsh_ohm, current_A);
+  checkConditions(cells, temp_c, 'doubleDiodeVoltage');
+  const a1 = idealityVoltage_V(p.n1, cells, temp_c);
+  const a2 = idealityVoltage_V(p.n2, cells, temp_c);
+  return solveDoubleDiodeVoltage(p.iph_a, p.i01_a, a1, p.i02_a, a2, p.rs_ohm, p.rsh_ohm, current_a);
 }
 
 /** Options of `simulateCurve`. Defaults: vMin 0 V, vMax 1.02·Voc, no noise. */
 export type SimulateOptions = {
   cells: number;
-  tempC: number;
+  temp_c: number;
   points: number;
   vMin?: number;
   vMax?: number;
@@ -202,14 +202,14 @@ export function gaussian(random: () => number): () => number {
 
 /**
  * Curve of a single- or double-diode device on an even voltage grid, generator convention.
- * Used by tests, demo data and translation; `meta` carries cells and tempC.
+ * Used by tests, demo data and translation; `meta` carries cells and temp_c.
  */
 export function simulateCurve(p: SingleDiodeParams | DoubleDiodeParams, opts: SimulateOptions): IvCurve {
-  const { cells, tempC, points } = opts;
-  checkConditions(cells, tempC, 'simulateCurve');
+  const { cells, temp_c, points } = opts;
+  checkConditions(cells, temp_c, 'simulateCurve');
   if (!(Number.isInteger(points) && points >= 2)) throw new IvInputError('bad-parameter', `simulateCurve: points must be a whole number ≥ 2, got ${points}`);
-  const current = (v: number) => ('i0_a' in p ? singleDiodeCurrent(p, v, cells, tempC) : doubleDiodeCurrent(p, v, cells, tempC));
-  const voc = 'i0_a' in p ? singleDiodeVoltage(p, 0, cells, tempC) : doubleDiodeVoltage(p, 0, cells, tempC);
+  const current = (v: number) => ('i0_a' in p ? singleDiodeCurrent(p, v, cells, temp_c) : doubleDiodeCurrent(p, v, cells, temp_c));
+  const voc = 'i0_a' in p ? singleDiodeVoltage(p, 0, cells, temp_c) : doubleDiodeVoltage(p, 0, cells, temp_c);
   const vMin = opts.vMin ?? 0;
   const vMax = opts.vMax ?? 1.02 * voc;
   if (!(Number.isFinite(vMin) && Number.isFinite(vMax) && vMax > vMin)) {
@@ -217,12 +217,12 @@ export function simulateCurve(p: SingleDiodeParams | DoubleDiodeParams, opts: Si
   }
   const noise = opts.noise_a ?? 0;
   const normal = gaussian(seededRandom(opts.seed ?? 1));
-  const voltage_V: number[] = [];
-  const current_A: number[] = [];
+  const voltage_v: number[] = [];
+  const current_a: number[] = [];
   for (let k = 0; k < points; k++) {
     const v = vMin + ((vMax - vMin) * k) / (points - 1);
-    voltage_V.push(v);
-    current_A.push(current(v) + (noise > 0 ? noise * normal() : 0));
+    voltage_v.push(v);
+    current_a.push(current(v) + (noise > 0 ? noise * normal() : 0));
   }
-  return { voltage_V, current_A, meta: { cells, tempC }, notes: ['simulated'] };
+  return { voltage_v, current_a, meta: { cells, temp_c }, notes: ['simulated'] };
 }

@@ -6,12 +6,12 @@ import type { FitObjective, FitResult, IvCurve } from '@/lib/iv/types';
 export const DEFAULT_TEMP_C = 25;
 
 /** Cell temperature (°C) and cells in series for a fit: caller first, then file metadata, then defaults. */
-export function fitConditions(curve: IvCurve, opts: { tempC?: number; cells?: number }): { tempC: number; cells: number } {
-  const tempC = opts.tempC ?? curve.meta?.tempC ?? DEFAULT_TEMP_C;
+export function fitConditions(curve: IvCurve, opts: { temp_c?: number; cells?: number }): { temp_c: number; cells: number } {
+  const temp_c = opts.temp_c ?? curve.meta?.temp_c ?? DEFAULT_TEMP_C;
   const cells = opts.cells ?? curve.meta?.cells ?? 1;
-  if (!(Number.isFinite(tempC) && tempC > -273.15 && tempC < 1000)) throw new IvInputError('bad-option', `cell temperature must be a finite value in °C, got ${tempC}`);
+  if (!(Number.isFinite(temp_c) && temp_c > -273.15 && temp_c < 1000)) throw new IvInputError('bad-option', `cell temperature must be a finite value in °C, got ${temp_c}`);
   if (!(Number.isInteger(cells) && cells >= 1)) throw new IvInputError('bad-option', `cells in series must be a whole number ≥ 1, got ${cells}`);
-  return { tempC, cells };
+  return { temp_c, cells };
 }
 
 /** Checks the objective option. */

@@ -6,7 +6,7 @@
  * several minima (the two diodes trade current), so the fit runs from a few splits of the
  * single-diode fit's diode current and keeps the best.
  */
-import { thermalVoltage_V } from '@/lib/physics/constants';
+import { thermal_voltage_v } from '@/lib/physics/constants';
 import { IvInputError } from '@/lib/iv/errors';
 import { solveDoubleDiodeCurrent } from '@/lib/iv/diode';
 import { failedFit, fitConditions, fitObjective, nowMs, residualStats, tidy } from '@/lib/iv/fit-common';
@@ -23,7 +23,7 @@ export type DoubleFitOptions = {
   /** 'fixed' (default): n1 = 1, n2 = 2. 'free': n1, n2 in [1, 2] and I01, I02 ≤ i0Max_a. */
   idealities?: 'fixed' | 'free';
   objective?: FitObjective;
-  tempC?: number;
+  temp_c?: number;
   cells?: number;
   /** Upper bound of I01 and I02 with free idealities, A (default 1 µA). */
   i0Max_a?: number;
@@ -43,7 +43,7 @@ function doubleDiodeProblem(
   v: readonly number[],
   i: readonly number[],
   cells: number,
-  tempC: number,
+  temp_c: number,
   objective: FitObjective,
   freeIdx: number[],
   fixedValues: number[],
@@ -51,7 +51,7 @@ function doubleDiodeProblem(
   upper: Float64Array,
 ): LmProblem {
   const m = v.length;
-  const cv = cells * thermalVoltage_V(tempC);
+  const cv = cells * thermal_voltage_v(temp_c);
   const full = Float64Array.from(fixedValues);
   const q = freeIdx.length;
   const model = new Float64Array(m);
@@ -111,7 +111,7 @@ export function fitDoubleDiode(curve: IvCurve, opts: DoubleFitOptions = {}): Dou
   if (idealities !== 'fixed' && idealities !== 'free') throw new IvInputError('bad-option', `idealities must be "fixed" or "free", got "${String(idealities)}"`);
   const i0Max = opts.i0Max_a ?? DEFAULT_I0_MAX_A;
   if (!(i0Max > 0 && Number.isFinite(i0Max))) throw new IvInputError('bad-option', `i0Max_a must be a positive number of amperes, got ${i0Max}`);
-  const { tempC, cells } = fitConditions(curve, opts);
+  const { temp_c, cells } = fitConditions(curve, opts);
   const { v, i } = validateCurve(curve);
   const metrics = opts.metrics ?? keyFiguresOfSorted(v, i, curve, false).metrics;
   const free = idealities === 'free';
@@ -120,11 +120,11 @@ export function fitDoubleDiode(curve: IvCurve, opts: DoubleFitOptions = {}): Dou
   let single = opts.single;
   let evaluations = 0;
   if (!single || !single.converged) {
-    single = fitSingleDiode(curve, { tempC, cells, metrics });
+    single = fitSingleDiode(curve, { temp_c, cells, metrics });
     evaluations += single.evaluations;
   }
-  const sp = singleDiodeParamsOf(single) ?? phangStart(metrics, cells, tempC);
-  const cv = cells * thermalVoltage_V(tempC);
+  const sp = singleDiodeParamsOf(single) ?? phangStart(metrics, cells, temp_c);
+  const cv = cells * thermal_voltage_v(temp_c);
   const rRef = metrics.voc_v / metrics.isc_a;
   const i0Upper = free ? i0Max : metrics.isc_a;
   const lower = [0, -230, 1, -230, 1, 0, Math.log(1e-2 * rRef)];
@@ -150,7 +150,7 @@ export function fitDoubleDiode(curve: IvCurve, opts: DoubleFitOptions = {}): Dou
     v,
     i,
     cells,
-    tempC,
+    temp_c,
     objective,
     freeIdx,
     fixedValues,

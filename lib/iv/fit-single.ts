@@ -5,7 +5,7 @@
  * F(I; θ) = Iph − I0·(e^{(V+I·Rs)/a} − 1) − (V+I·Rs)/Rsh − I = 0, i.e. dI/dθ = (∂F/∂θ)/(1 + Rs·g)
  * with g = I0·e^{…}/a + 1/Rsh the junction conductance.
  */
-import { thermalVoltage_V } from '@/lib/physics/constants';
+import { thermal_voltage_v } from '@/lib/physics/constants';
 import { sdCurrent } from '@/lib/iv/diode';
 import { lambertWExp } from '@/lib/iv/lambert-w';
 import { failedFit, fitConditions, fitObjective, nowMs, residualStats, tidy } from '@/lib/iv/fit-common';
@@ -15,10 +15,10 @@ import type { LmProblem, LmResult } from '@/lib/iv/lm';
 import { phangStart } from '@/lib/iv/start';
 import type { FitObjective, IvCurve, Metrics, SingleDiodeFit, SingleDiodeParams } from '@/lib/iv/types';
 
-/** Options of `fitSingleDiode`. tempC and cells override the curve's metadata. */
+/** Options of `fitSingleDiode`. temp_c and cells override the curve's metadata. */
 export type SingleFitOptions = {
   objective?: FitObjective;
-  tempC?: number;
+  temp_c?: number;
   cells?: number;
   /** Start values instead of the automatic start from the key points. */
   start?: SingleDiodeParams;
@@ -43,12 +43,12 @@ export function singleDiodeProblem(
   v: readonly number[],
   i: readonly number[],
   cells: number,
-  tempC: number,
+  temp_c: number,
   objective: FitObjective,
   bounds: { lower: Float64Array; upper: Float64Array },
 ): LmProblem {
   const m = v.length;
-  const cv = cells * thermalVoltage_V(tempC);
+  const cv = cells * thermal_voltage_v(temp_c);
   const evaluate = (x: Float64Array, r: Float64Array, jac: Float64Array): boolean => {
     const iph = x[0];
     const lnI0 = x[1];
@@ -110,8 +110,8 @@ const toVector = (s: SingleDiodeParams) => [s.iph_a, Math.log(s.i0_a), s.n, s.rs
  * Phang start alone reaches the published optima of both reference curves; these cost time
  * only when it fails.
  */
-function alternativeStarts(base: SingleDiodeParams, metrics: Metrics, cells: number, tempC: number): SingleDiodeParams[] {
-  const vt = cells * thermalVoltage_V(tempC);
+function alternativeStarts(base: SingleDiodeParams, metrics: Metrics, cells: number, temp_c: number): SingleDiodeParams[] {
+  const vt = cells * thermal_voltage_v(temp_c);
   const rRef = metrics.voc_v / metrics.isc_a;
   const out: SingleDiodeParams[] = [];
   for (const n of [1.0, 1.5, 2.0]) {
@@ -152,15 +152,15 @@ export function runSingleDiode(
 export function fitSingleDiode(curve: IvCurve, opts: SingleFitOptions = {}): SingleDiodeFit {
   const t0 = nowMs();
   const objective = fitObjective(opts.objective);
-  const { tempC, cells } = fitConditions(curve, opts);
+  const { temp_c, cells } = fitConditions(curve, opts);
   const { v, i } = validateCurve(curve);
   const metrics = opts.metrics ?? keyFiguresOfSorted(v, i, curve, false).metrics;
   const bounds = singleDiodeBounds(metrics);
-  const problem = singleDiodeProblem(v, i, cells, tempC, objective, bounds);
-  const base = opts.start ?? phangStart(metrics, cells, tempC);
-  const starts = [base, ...(opts.start ? [] : alternativeStarts(base, metrics, cells, tempC))];
+  const problem = singleDiodeProblem(v, i, cells, temp_c, objective, bounds);
+  const base = opts.start ?? phangStart(metrics, cells, temp_c);
+  const starts = [base, ...(opts.start ? [] : alternativeStarts(base, metrics, cells, temp_c))];
   const { best, evaluations } = runSingleDiode(problem, starts, opts.maxEvaluations ?? 600);
-  return singleDiodeResult(best, evaluations, v, i, cells, tempC, objective, t0);
+  return singleDiodeResult(best, evaluations, v, i, cells, temp_c, objective, t0);
 }
 
 /** Turns a solver result into a single-diode fit (numbers only for a converged fit). */
@@ -170,7 +170,7 @@ export function singleDiodeResult(
   v: readonly number[],
   i: readonly number[],
   cells: number,
-  tempC: number,
+  temp_c: number,
   objective: FitObjective,
   t0: number,
   message?: string,
@@ -187,7 +187,7 @@ export function singleDiodeResult(
   }
   const x = best.x;
   const p: SingleDiodeParams = { iph_a: x[0], i0_a: Math.exp(x[1]), n: x[2], rs_ohm: x[3], rsh_ohm: Math.exp(x[4]) };
-  const a = p.n * cells * thermalVoltage_V(tempC);
+  const a = p.n * cells * thermal_voltage_v(temp_c);
   const trueResiduals = v.map((vk, k) => sdCurrent(p.iph_a, p.i0_a, a, p.rs_ohm, p.rsh_ohm, vk) - i[k]);
   const objResiduals = objective === 'true-current' ? trueResiduals : Array.from(best.r);
   const stats = residualStats(objResiduals);

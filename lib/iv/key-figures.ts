@@ -27,20 +27,20 @@ const STEP_LIMIT = 0.03;
 
 /** Throws unless the arrays form a usable curve; returns sorted copies. */
 export function validateCurve(curve: IvCurve): { v: number[]; i: number[] } {
-  const { voltage_V, current_A } = curve ?? ({} as IvCurve);
-  if (!Array.isArray(voltage_V) || !Array.isArray(current_A)) throw new IvInputError('bad-curve', 'the curve needs voltage_V and current_A arrays');
-  if (voltage_V.length !== current_A.length) {
-    throw new IvInputError('bad-curve', `voltage_V has ${voltage_V.length} values but current_A has ${current_A.length}`);
+  const { voltage_v, current_a } = curve ?? ({} as IvCurve);
+  if (!Array.isArray(voltage_v) || !Array.isArray(current_a)) throw new IvInputError('bad-curve', 'the curve needs voltage_v and current_a arrays');
+  if (voltage_v.length !== current_a.length) {
+    throw new IvInputError('bad-curve', `voltage_v has ${voltage_v.length} values but current_a has ${current_a.length}`);
   }
-  if (voltage_V.length < MIN_POINTS) throw new IvInputError('too-few-points', `the curve has ${voltage_V.length} points; at least ${MIN_POINTS} are needed`);
-  for (let k = 0; k < voltage_V.length; k++) {
-    if (!Number.isFinite(voltage_V[k]) || !Number.isFinite(current_A[k])) {
-      throw new IvInputError('non-finite', `point ${k + 1} of the curve is not a finite number (V=${voltage_V[k]}, I=${current_A[k]})`);
+  if (voltage_v.length < MIN_POINTS) throw new IvInputError('too-few-points', `the curve has ${voltage_v.length} points; at least ${MIN_POINTS} are needed`);
+  for (let k = 0; k < voltage_v.length; k++) {
+    if (!Number.isFinite(voltage_v[k]) || !Number.isFinite(current_a[k])) {
+      throw new IvInputError('non-finite', `point ${k + 1} of the curve is not a finite number (V=${voltage_v[k]}, I=${current_a[k]})`);
     }
   }
-  const order = voltage_V.map((_, k) => k).sort((a, b) => voltage_V[a] - voltage_V[b]);
-  const v = order.map((k) => voltage_V[k]);
-  const i = order.map((k) => current_A[k]);
+  const order = voltage_v.map((_, k) => k).sort((a, b) => voltage_v[a] - voltage_v[b]);
+  const v = order.map((k) => voltage_v[k]);
+  const i = order.map((k) => current_a[k]);
   for (let k = 1; k < v.length; k++) {
     if (v[k] === v[k - 1]) throw new IvInputError('bad-curve', `the curve has two points at ${v[k]} V; average repeated voltages first`);
   }
@@ -88,10 +88,10 @@ export function estimateNoise_A(v: readonly number[], i: readonly number[]): num
 }
 
 /** Largest dip (A) of the curve below its concave envelope between 0 V and Voc, and where. */
-function largestDip(v: readonly number[], i: readonly number[], voc: number): { dip_a: number; at_V: number } {
+function largestDip(v: readonly number[], i: readonly number[], voc: number): { dip_a: number; at_v: number } {
   const idx: number[] = [];
   for (let k = 0; k < v.length; k++) if (v[k] >= Math.min(0, v[v.length - 1]) && v[k] <= voc) idx.push(k);
-  if (idx.length < 3) return { dip_a: 0, at_V: 0 };
+  if (idx.length < 3) return { dip_a: 0, at_v: 0 };
   // A single- or double-diode curve is concave in the generator convention, so its upper
   // concave hull lies on it; a bypass-diode step or second knee leaves a dip below the hull.
   const hull: number[] = [];
@@ -118,7 +118,7 @@ function largestDip(v: readonly number[], i: readonly number[], voc: number): { 
       at = v[k];
     }
   }
-  return { dip_a: dip, at_V: at };
+  return { dip_a: dip, at_v: at };
 }
 
 const f3 = (x: number) => Number(x.toPrecision(3)).toString();
@@ -253,7 +253,7 @@ export function keyFiguresOfSorted(v: readonly number[], i: readonly number[], c
     throw new IvInputError('no-power', `the curve delivers no power (Isc ${f3(isc)} A, Voc ${f3(voc)} V); check the sign and the columns`);
   }
   const ff = pmp / (isc * voc);
-  const { irradiance_Wm2: g, area_cm2: area } = curve.meta ?? {};
+  const { irradiance_w_m2: g, area_cm2: area } = curve.meta ?? {};
   const efficiency = g && area && g > 0 && area > 0 ? pmp / (g * area * 1e-4) : null;
 
   if (isAboveElv(voc)) {
@@ -280,7 +280,7 @@ export function keyFiguresOfSorted(v: readonly number[], i: readonly number[], c
     flags.push({
       code: 'step',
       severity: 'fail',
-      message: `The curve has a step or second knee near ${f3(dip.at_V)} V (it dips ${f3((dip.dip_a / isc) * 100)} % of Isc below a smooth curve): part of the device is limiting the current, for example a conducting bypass diode, mismatched or cracked cells.`,
+      message: `The curve has a step or second knee near ${f3(dip.at_v)} V (it dips ${f3((dip.dip_a / isc) * 100)} % of Isc below a smooth curve): part of the device is limiting the current, for example a conducting bypass diode, mismatched or cracked cells.`,
     });
   }
   if (rsh0 !== null && rsh0 < (LOW_SHUNT_RATIO * voc) / isc) {

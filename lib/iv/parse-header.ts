@@ -9,7 +9,7 @@ const DENSITY_NAMES = new Set(['j', 'jmeas', 'currentdensity', 'density']);
 const VOLTAGE_UNITS: Record<string, number> = { '': 1, v: 1, volt: 1, volts: 1, mv: 1e-3, kv: 1e3, uv: 1e-6, 'µv': 1e-6, 'μv': 1e-6 };
 const CURRENT_UNITS: Record<string, number> = { '': 1, a: 1, amp: 1, amps: 1, ma: 1e-3, ua: 1e-6, 'µa': 1e-6, 'μa': 1e-6, na: 1e-9 };
 
-/** Splits a header cell like "Voltage (mV)", "current_A", "I / mA" or "V [V]" into name and unit. */
+/** Splits a header cell like "Voltage (mV)", "current_a", "I / mA" or "V [V]" into name and unit. */
 function splitNameUnit(cell: string): { name: string; unit: string } {
   const text = cell.trim().replace(/^["']|["']$/g, '').trim();
   const bracket = /^(.*?)[\s_]*[([]\s*([^)\]]*?)\s*[)\]]\s*$/.exec(text);
@@ -34,12 +34,12 @@ const normUnit = (s: string) => s.trim().toLowerCase().replace(/\s+/g, '');
 
 type MetaKey = keyof CurveMeta;
 const META_KEYS: Record<string, MetaKey> = {};
-for (const k of ['deviceid', 'device', 'id', 'serial', 'serialnumber', 'serialno', 'sn', 'sample', 'sampleid', 'module', 'moduleid', 'cell', 'cellid', 'name']) META_KEYS[k] = 'deviceId';
-for (const k of ['celltemperature', 'temperature', 'temp', 'tempc', 'celltemp', 'tcell', 't', 'devicetemperature', 'moduletemperature']) META_KEYS[k] = 'tempC';
-for (const k of ['irradiance', 'g', 'irradiancewm', 'irr', 'intensity', 'poairradiance']) META_KEYS[k] = 'irradiance_Wm2';
+for (const k of ['deviceid', 'device', 'id', 'serial', 'serialnumber', 'serialno', 'sn', 'sample', 'sampleid', 'module', 'moduleid', 'cell', 'cellid', 'name']) META_KEYS[k] = 'device_id';
+for (const k of ['celltemperature', 'temperature', 'temp', 'tempc', 'celltemp', 'tcell', 't', 'devicetemperature', 'moduletemperature']) META_KEYS[k] = 'temp_c';
+for (const k of ['irradiance', 'g', 'irradiancewm', 'irr', 'intensity', 'poairradiance']) META_KEYS[k] = 'irradiance_w_m2';
 for (const k of ['cells', 'cellsinseries', 'ns', 'numberofcells', 'cellcount', 'seriescells', 'ncells', 'cellsseries']) META_KEYS[k] = 'cells';
 for (const k of ['area', 'areacm', 'devicearea', 'cellarea', 'modulearea', 'totalarea', 'aperturearea']) META_KEYS[k] = 'area_cm2';
-for (const k of ['measuredat', 'date', 'measured', 'timestamp', 'time', 'datetime', 'measurementdate', 'measurementtime']) META_KEYS[k] = 'measuredAt';
+for (const k of ['measuredat', 'date', 'measured', 'timestamp', 'time', 'datetime', 'measurementdate', 'measurementtime']) META_KEYS[k] = 'measured_at';
 
 /** A metadata number with an optional unit: "25 °C", "0,1 m²", "1 kW/m2". */
 function metaNumber(raw: string, lineNo: number, key: string): { value: number; unit: string } {
@@ -50,11 +50,11 @@ function metaNumber(raw: string, lineNo: number, key: string): { value: number; 
 
 function parseMetaValue(field: MetaKey, raw: string, unitFromKey: string, lineNo: number, key: string): CurveMeta[MetaKey] {
   const value = raw.trim();
-  if (field === 'deviceId') {
+  if (field === 'device_id') {
     if (value === '') throw new IvInputError('bad-metadata', `metadata "${clip(key)}" is empty`, lineNo);
     return value;
   }
-  if (field === 'measuredAt') {
+  if (field === 'measured_at') {
     const ms = Date.parse(value);
     return Number.isFinite(ms) && /\d{4}/.test(value) ? new Date(ms).toISOString() : value;
   }
@@ -64,14 +64,14 @@ function parseMetaValue(field: MetaKey, raw: string, unitFromKey: string, lineNo
     throw new IvInputError('bad-metadata', `metadata "${clip(key)}": ${what}, got "${clip(raw.trim())}"`, lineNo);
   };
   switch (field) {
-    case 'tempC': {
+    case 'temp_c': {
       let t = parsed.value;
       if (unit === 'k') t -= 273.15;
       else if (unit !== '' && unit !== 'c') bad('temperature must be in °C or K');
       if (!(t > -100 && t < 250)) bad('cell temperature must lie between −100 °C and 250 °C');
       return t;
     }
-    case 'irradiance_Wm2': {
+    case 'irradiance_w_m2': {
       const factor: Record<string, number> = { '': 1, 'w/m2': 1, wm2: 1, 'w/m^2': 1, 'kw/m2': 1000, 'w/cm2': 1e4, 'mw/cm2': 10, suns: 1000, sun: 1000 };
       if (!(unit in factor)) bad('irradiance must be in W/m²');
       const g = parsed.value * factor[unit];
@@ -141,11 +141,11 @@ export function readHeader(cells: string[], lineNo: number, notes: string[]) {
   });
   const SHOWN_CELLS = 8;
   const shown = cells.slice(0, SHOWN_CELLS).map((c) => `"${clip(c, 40)}"`).join(', ') + (cells.length > SHOWN_CELLS ? ` and ${cells.length - SHOWN_CELLS} more` : '');
-  if (v < 0) throw new IvInputError('no-voltage-column', `no voltage column in the header (${shown}); name it V, U, Voltage, voltage_V or Voltage (mV)`, lineNo);
+  if (v < 0) throw new IvInputError('no-voltage-column', `no voltage column in the header (${shown}); name it V, U, Voltage, voltage_v or Voltage (mV)`, lineNo);
   if (i < 0 && density) {
     throw new IvInputError('bad-unit', `column "${clip(density)}" holds a current density; give the current in A or mA (a column named I or Current)`, lineNo);
   }
-  if (i < 0) throw new IvInputError('no-current-column', `no current column in the header (${shown}); name it I, Current, current_A or Current (mA)`, lineNo);
+  if (i < 0) throw new IvInputError('no-current-column', `no current column in the header (${shown}); name it I, Current, current_a or Current (mA)`, lineNo);
   if (ignored.length) notes.push(`columns not used: ${ignored.join(', ')}`);
   if (vFactor !== 1) notes.push('voltage converted from mV to V');
   if (iFactor !== 1) notes.push(`current converted to A (×${iFactor})`);

@@ -22,7 +22,7 @@ export const ISC_EXTRAPOLATION_LIMIT = 0.1;
 /** Voc is extrapolated only when the sweep ends with less than this fraction of Isc still flowing. */
 export const VOC_EXTRAPOLATION_LIMIT = 0.05;
 
-/** Options of the readers: a file name (for deviceId and messages) and caller overrides of metadata. */
+/** Options of the readers: a file name (for device_id and messages) and caller overrides of metadata. */
 export type ParseOptions = { fileName?: string; overrides?: Partial<CurveMeta> };
 
 /**
@@ -30,31 +30,31 @@ export type ParseOptions = { fileName?: string; overrides?: Partial<CurveMeta> }
  * some current ≤ 0 (or within VOC_EXTRAPOLATION_LIMIT of it) and some voltage ≤ 0 (or the
  * first voltage within ISC_EXTRAPOLATION_LIMIT·Voc). `lines` maps points to file lines.
  */
-export function checkCurveReach(voltage_V: readonly number[], current_A: readonly number[], lines?: readonly number[]): void {
-  const n = voltage_V.length;
+export function checkCurveReach(voltage_v: readonly number[], current_a: readonly number[], lines?: readonly number[]): void {
+  const n = voltage_v.length;
   const lineOf = (k: number) => (lines ? lines[k] : undefined);
-  const iMax = Math.max(...current_A);
+  const iMax = Math.max(...current_a);
   if (!(iMax > 0)) {
     throw new IvInputError('no-power', 'the current is never positive, so no point delivers power: this looks like a dark curve or a broken measurement', lineOf(0));
   }
-  const crossing = current_A.findIndex((c) => c <= 0);
+  const crossing = current_a.findIndex((c) => c <= 0);
   const last = n - 1;
   if (crossing < 0) {
-    const share = current_A[last] / iMax;
+    const share = current_a[last] / iMax;
     if (share > VOC_EXTRAPOLATION_LIMIT) {
       throw new IvInputError(
         'no-voc',
-        `the current never falls to zero, so the curve has no Voc: the sweep ends at ${fmt(voltage_V[last])} V with ${fmt(current_A[last])} A still flowing (${(share * 100).toFixed(0)} % of the largest current; Voc is extrapolated only below ${VOC_EXTRAPOLATION_LIMIT * 100} %). Extend the sweep past open circuit`,
+        `the current never falls to zero, so the curve has no Voc: the sweep ends at ${fmt(voltage_v[last])} V with ${fmt(current_a[last])} A still flowing (${(share * 100).toFixed(0)} % of the largest current; Voc is extrapolated only below ${VOC_EXTRAPOLATION_LIMIT * 100} %). Extend the sweep past open circuit`,
         lineOf(last),
       );
     }
   }
-  if (voltage_V[0] > 0) {
-    const vocEstimate = crossing > 0 ? voltage_V[crossing] : voltage_V[last];
-    if (voltage_V[0] > ISC_EXTRAPOLATION_LIMIT * vocEstimate) {
+  if (voltage_v[0] > 0) {
+    const vocEstimate = crossing > 0 ? voltage_v[crossing] : voltage_v[last];
+    if (voltage_v[0] > ISC_EXTRAPOLATION_LIMIT * vocEstimate) {
       throw new IvInputError(
         'no-isc',
-        `the sweep never reaches 0 V: it starts at ${fmt(voltage_V[0])} V, ${((voltage_V[0] / vocEstimate) * 100).toFixed(0)} % of Voc, and Isc is extrapolated only from within ${ISC_EXTRAPOLATION_LIMIT * 100} % of Voc. Start the sweep at or below 0 V`,
+        `the sweep never reaches 0 V: it starts at ${fmt(voltage_v[0])} V, ${((voltage_v[0] / vocEstimate) * 100).toFixed(0)} % of Voc, and Isc is extrapolated only from within ${ISC_EXTRAPOLATION_LIMIT * 100} % of Voc. Start the sweep at or below 0 V`,
         lineOf(0),
       );
     }
@@ -65,7 +65,7 @@ const fmt = (x: number) => Number(x.toPrecision(4)).toString();
 
 /**
  * Parses I-V text into a curve sorted by voltage, in volts and amperes, generator convention.
- * deviceId falls back to the file name without extension; `overrides` win over file metadata.
+ * device_id falls back to the file name without extension; `overrides` win over file metadata.
  */
 export function parseIvText(text: string, opts: ParseOptions = {}): IvCurve {
   if (typeof text !== 'string') throw new IvInputError('not-text', 'the I-V input must be text');
@@ -139,8 +139,8 @@ function buildCurve(rows: { v: number; i: number; line: number }[], fileMeta: Cu
   for (let k = 1; k < rows.length && rising; k++) rising = rows[k].v >= rows[k - 1].v;
   const sorted = rising ? rows : rows.map((r, k) => ({ ...r, k })).sort((a, b) => a.v - b.v || a.k - b.k);
 
-  const voltage_V: number[] = [];
-  const current_A: number[] = [];
+  const voltage_v: number[] = [];
+  const current_a: number[] = [];
   const lineOf: number[] = [];
   let duplicates = 0;
   for (let k = 0; k < sorted.length; ) {
@@ -148,36 +148,36 @@ function buildCurve(rows: { v: number; i: number; line: number }[], fileMeta: Cu
     let sum = 0;
     while (j < sorted.length && sorted[j].v === sorted[k].v) sum += sorted[j++].i;
     duplicates += j - k - 1;
-    voltage_V.push(sorted[k].v);
-    current_A.push(sum / (j - k));
+    voltage_v.push(sorted[k].v);
+    current_a.push(sum / (j - k));
     lineOf.push(sorted[k].line);
     k = j;
   }
   if (duplicates) notes.push(`${duplicates} repeated voltage${duplicates > 1 ? 's' : ''} averaged`);
-  if (voltage_V.length < MIN_POINTS) {
-    throw new IvInputError('too-few-points', `only ${voltage_V.length} distinct voltages; at least ${MIN_POINTS} points are needed`);
+  if (voltage_v.length < MIN_POINTS) {
+    throw new IvInputError('too-few-points', `only ${voltage_v.length} distinct voltages; at least ${MIN_POINTS} points are needed`);
   }
 
   // Load convention: current rises with voltage (negative while delivering power). Compare the
   // low-voltage and high-voltage ends rather than single samples, so noise cannot flip it.
-  const tenth = Math.max(1, Math.floor(voltage_V.length / 10));
-  const mean = (from: number, to: number) => current_A.slice(from, to).reduce((s, x) => s + x, 0) / (to - from);
-  if (mean(0, tenth) < mean(voltage_V.length - tenth, voltage_V.length)) {
-    for (let k = 0; k < current_A.length; k++) current_A[k] = -current_A[k];
+  const tenth = Math.max(1, Math.floor(voltage_v.length / 10));
+  const mean = (from: number, to: number) => current_a.slice(from, to).reduce((s, x) => s + x, 0) / (to - from);
+  if (mean(0, tenth) < mean(voltage_v.length - tenth, voltage_v.length)) {
+    for (let k = 0; k < current_a.length; k++) current_a[k] = -current_a[k];
     notes.push('current was negative while delivering power (load convention); sign turned around');
   }
-  checkCurveReach(voltage_V, current_A, lineOf);
+  checkCurveReach(voltage_v, current_a, lineOf);
 
   const meta: CurveMeta = { ...fileMeta };
   for (const [key, value] of Object.entries(opts.overrides ?? {})) {
     if (value !== undefined && value !== null) (meta as Record<string, unknown>)[key] = value;
   }
-  if (meta.deviceId === undefined && opts.fileName) {
+  if (meta.device_id === undefined && opts.fileName) {
     const base = opts.fileName.split(/[\\/]/).pop() ?? opts.fileName;
     const stem = base.replace(/\.[^.]+$/, '');
-    if (stem) meta.deviceId = stem;
+    if (stem) meta.device_id = stem;
   }
-  return { voltage_V, current_A, meta, notes };
+  return { voltage_v, current_a, meta, notes };
 }
 
 /**

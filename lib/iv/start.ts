@@ -4,16 +4,16 @@
  * closed forms give n, I0, Rs and Iph. Measured slopes can be poor (quantised currents make
  * Rsh0 nearly infinite), so each value is kept inside a physically plausible range.
  */
-import { thermalVoltage_V } from '@/lib/physics/constants';
+import { thermal_voltage_v } from '@/lib/physics/constants';
 import type { Metrics, SingleDiodeParams } from '@/lib/iv/types';
 
 const clamp = (x: number, lo: number, hi: number) => Math.min(Math.max(x, lo), hi);
 
-/** Phang et al. (1984) start for the single-diode model; n per cell, tempC in °C. */
-export function phangStart(metrics: Metrics, cells: number, tempC: number): SingleDiodeParams {
+/** Phang et al. (1984) start for the single-diode model; n per cell, temp_c in °C. */
+export function phangStart(metrics: Metrics, cells: number, temp_c: number): SingleDiodeParams {
   const { isc_a: isc, voc_v: voc, imp_a: imp, vmp_v: vmp } = metrics;
   const rRef = voc / isc;
-  const vt = cells * thermalVoltage_V(tempC);
+  const vt = cells * thermal_voltage_v(temp_c);
   const rsh = clamp(metrics.rsh0_ohm ?? 1e3 * rRef, 10 * rRef, 1e6 * rRef);
   const rso = clamp(metrics.rs0_ohm ?? 0.1 * rRef, 1e-4 * rRef, rRef);
 

@@ -2,17 +2,17 @@
 
 /** What is known about the device and the measurement; every field optional. */
 export type CurveMeta = {
-  deviceId?: string;
+  device_id?: string;
   /** Cell temperature, °C. */
-  tempC?: number;
+  temp_c?: number;
   /** Plane-of-array irradiance, W/m². */
-  irradiance_Wm2?: number;
+  irradiance_w_m2?: number;
   /** Cells in series (1 for a single cell). */
   cells?: number;
   /** Device area, cm². */
   area_cm2?: number;
   /** Measurement time as written in the file (ISO 8601 when it could be read as a date). */
-  measuredAt?: string;
+  measured_at?: string;
 };
 
 /**
@@ -20,8 +20,8 @@ export type CurveMeta = {
  * device delivers power). `notes` record what reading the file changed (units, sign, order).
  */
 export type IvCurve = {
-  voltage_V: number[];
-  current_A: number[];
+  voltage_v: number[];
+  current_a: number[];
   meta: CurveMeta;
   notes: string[];
 };

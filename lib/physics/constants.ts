@@ -16,9 +16,9 @@ export const KB_EV_PER_K = KB_J_PER_K / Q_C;
 export const ZERO_C_IN_K = 273.15;
 
 /** Thermal voltage k_B·T/q in volts at a cell temperature in °C. */
-export function thermalVoltage_V(tempC: number): number {
-  return (KB_J_PER_K * (tempC + ZERO_C_IN_K)) / Q_C;
+export function thermal_voltage_v(temp_c: number): number {
+  return (KB_J_PER_K * (temp_c + ZERO_C_IN_K)) / Q_C;
 }
 
 /** Standard test conditions (IEC 60904-3 / IEC 61215): 1000 W/m², 25 °C cell temperature. */
-export const STC = { irradiance_Wm2: 1000, tempC: 25 } as const;
+export const STC = { irradiance_w_m2: 1000, temp_c: 25 } as const;

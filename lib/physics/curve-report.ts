@@ -29,7 +29,7 @@ import type { BandDiagramRequest, TranslateRequest } from '@/lib/schemas/physics
  * The n_i value the screen shows beside the model's: Altermatt et al. (2003), J. Appl. Phys.
  * 93:1598, silicon at 300 K. The library's model (Couderc et al. 2014) is fitted to agree with it.
  */
-export const NI_REFERENCE = { tempK: 300, ni_cm3: 9.65e9, source: 'Altermatt et al. 2003, J. Appl. Phys. 93:1598' } as const;
+export const NI_REFERENCE = { temp_k: 300, ni_cm3: 9.65e9, source: 'Altermatt et al. 2003, J. Appl. Phys. 93:1598' } as const;
 
 /** Temperatures of the n_i chart, K. */
 const NI_SERIES_K = { from: 200, to: 400, step: 5 };
@@ -56,11 +56,11 @@ export function firstNonFinite(x: unknown, where = 'result'): { where: string; v
 }
 
 /** Evenly spaced indices, first and last kept, at most `max` points. */
-export function thinCurve(c: { voltage_V: number[]; current_A: number[] }, max = MAX_CURVE_POINTS): { voltage_V: number[]; current_A: number[] } {
-  const n = c.voltage_V.length;
-  if (n <= max) return { voltage_V: [...c.voltage_V], current_A: [...c.current_A] };
+export function thinCurve(c: { voltage_v: number[]; current_a: number[] }, max = MAX_CURVE_POINTS): { voltage_v: number[]; current_a: number[] } {
+  const n = c.voltage_v.length;
+  if (n <= max) return { voltage_v: [...c.voltage_v], current_a: [...c.current_a] };
   const idx = Array.from({ length: max }, (_, k) => Math.round((k * (n - 1)) / (max - 1)));
-  return { voltage_V: idx.map((k) => c.voltage_V[k]), current_A: idx.map((k) => c.current_A[k]) };
+  return { voltage_v: idx.map((k) => c.voltage_v[k]), current_a: idx.map((k) => c.current_a[k]) };
 }
 
 /** The single-diode parameters of a converged fit, or null. */
@@ -82,25 +82,25 @@ function attempt<T>(what: string, notes: string[], fn: () => T): T | null {
   }
 }
 
-/** n_i, Eg, Nc, Nv of silicon at tempK (keys as `ni --json`), the Altermatt et al. (2003) reference, and n_i over 200–400 K. */
-export function materialReport(tempK: number) {
-  const s = materialAt(tempK);
-  const series: { tempK: number[]; ni_cm3: number[] } = { tempK: [], ni_cm3: [] };
+/** n_i, Eg, Nc, Nv of silicon at temp_k (keys as `ni --json`), the Altermatt et al. (2003) reference, and n_i over 200–400 K. */
+export function materialReport(temp_k: number) {
+  const s = materialAt(temp_k);
+  const series: { temp_k: number[]; ni_cm3: number[] } = { temp_k: [], ni_cm3: [] };
   for (let t = NI_SERIES_K.from; t <= NI_SERIES_K.to; t += NI_SERIES_K.step) {
-    series.tempK.push(t);
+    series.temp_k.push(t);
     series.ni_cm3.push(materialAt(t).ni_cm3);
   }
   return {
-    tempK,
-    tempC: tempK - ZERO_C_IN_K,
+    temp_k,
+    temp_c: temp_k - ZERO_C_IN_K,
     ni_cm3: s.ni_cm3,
-    eg_ev: s.eg_eV,
+    eg_ev: s.eg_ev,
     nc_cm3: s.nc_cm3,
     nv_cm3: s.nv_cm3,
-    egDos_eV: s.egDos_eV,
-    kT_eV: s.kT_eV,
-    material: { id: SILICON.id, name: SILICON.name, tempRangeK: SILICON.tempRangeK, maxDoping_cm3: SILICON.maxDoping_cm3, sources: SILICON.sources },
-    reference: { ...NI_REFERENCE, modelAtReference_cm3: materialAt(NI_REFERENCE.tempK).ni_cm3 },
+    eg_dos_ev: s.eg_dos_ev,
+    kt_ev: s.kt_ev,
+    material: { id: SILICON.id, name: SILICON.name, temp_range_k: SILICON.temp_range_k, max_doping_cm3: SILICON.max_doping_cm3, sources: SILICON.sources },
+    reference: { ...NI_REFERENCE, model_at_reference_cm3: materialAt(NI_REFERENCE.temp_k).ni_cm3 },
     series,
   };
 }
@@ -111,33 +111,33 @@ export function bandDiagramReport(input: BandDiagramRequest) {
   const d = bandDiagram(input);
   const occupation = occupationCurve(d, { points: 121 });
   return {
-    input: { type: input.type, doping_cm3: input.doping_cm3, excess_cm3: q.excess_cm3, tempK: input.tempK },
-    material: { name: SILICON.name, eg_ev: q.material.eg_eV, egDos_eV: q.material.egDos_eV, ni_cm3: q.material.ni_cm3, kT_eV: q.material.kT_eV },
+    input: { type: input.type, doping_cm3: input.doping_cm3, excess_cm3: q.excess_cm3, temp_k: input.temp_k },
+    material: { name: SILICON.name, eg_ev: q.material.eg_ev, eg_dos_ev: q.material.eg_dos_ev, ni_cm3: q.material.ni_cm3, kt_ev: q.material.kt_ev },
     diagram: d,
-    fermiDirac: {
-      ef_eV: q.ef_eV,
-      efn_eV: q.efn_eV,
-      efp_eV: q.efp_eV,
+    fermi_dirac: {
+      ef_ev: q.ef_ev,
+      efn_ev: q.efn_ev,
+      efp_ev: q.efp_ev,
       n0_cm3: q.n0_cm3,
       p0_cm3: q.p0_cm3,
       n_cm3: q.n_cm3,
       p_cm3: q.p_cm3,
-      etaN: q.etaN,
-      etaP: q.etaP,
-      splitting_eV: q.splitting_eV,
-      impliedVoc_V: q.impliedVoc_V,
+      eta_n: q.eta_n,
+      eta_p: q.eta_p,
+      splitting_ev: q.splitting_ev,
+      implied_voc_v: q.implied_voc_v,
     },
     boltzmann: {
-      ef_eV: q.boltzmann.ef_eV,
-      efn_eV: q.boltzmann.efn_eV,
-      efp_eV: q.boltzmann.efp_eV,
+      ef_ev: q.boltzmann.ef_ev,
+      efn_ev: q.boltzmann.efn_ev,
+      efp_ev: q.boltzmann.efp_ev,
       n0_cm3: q.boltzmann.n0_cm3,
       p0_cm3: q.boltzmann.p0_cm3,
-      splitting_eV: q.boltzmann.splitting_eV,
-      impliedVoc_V: q.boltzmann.impliedVoc_V,
+      splitting_ev: q.boltzmann.splitting_ev,
+      implied_voc_v: q.boltzmann.implied_voc_v,
     },
     /** Boltzmann minus Fermi–Dirac. */
-    difference: { splitting_eV: q.boltzmann.splitting_eV - q.splitting_eV, impliedVoc_V: q.boltzmann.impliedVoc_V - q.impliedVoc_V },
+    difference: { splitting_ev: q.boltzmann.splitting_ev - q.splitting_ev, implied_voc_v: q.boltzmann.implied_voc_v - q.implied_voc_v },
     degenerate: q.degenerate,
     occupation,
   };
@@ -150,8 +150,8 @@ export type StoredCurve = {
   meta: IvCurve['meta'];
   metrics: Metrics;
   stc: unknown;
-  voltage_V: number[];
-  current_A: number[];
+  voltage_v: number[];
+  current_a: number[];
 };
 
 /** A curve's current fits: their results and the conditions they were made at. */
@@ -163,10 +163,10 @@ export type CurrentFits = {
 /** Cell temperature, cells in series and irradiance a curve's fits used (fit conditions, then metadata). */
 export function curveConditions(c: Pick<StoredCurve, 'meta'>, fit: { conditions: Record<string, unknown> } | undefined) {
   const num = (v: unknown) => (typeof v === 'number' && Number.isFinite(v) ? v : null);
-  const tempC = num(fit?.conditions.tempC) ?? num(c.meta.tempC) ?? 25;
+  const temp_c = num(fit?.conditions.temp_c) ?? num(c.meta.temp_c) ?? 25;
   const cells = num(fit?.conditions.cells) ?? num(c.meta.cells) ?? 1;
-  const irradiance = num(fit?.conditions.irradiance_Wm2) ?? num(c.meta.irradiance_Wm2);
-  return { tempC, cells, irradiance_Wm2: irradiance, area_cm2: num(c.meta.area_cm2) };
+  const irradiance = num(fit?.conditions.irradiance_w_m2) ?? num(c.meta.irradiance_w_m2);
+  return { temp_c, cells, irradiance_w_m2: irradiance, area_cm2: num(c.meta.area_cm2) };
 }
 
 /**
@@ -177,7 +177,7 @@ export function curveConditions(c: Pick<StoredCurve, 'meta'>, fit: { conditions:
 export function curvePhysicsReport(c: StoredCurve, fits: CurrentFits, batch: { id: string; name: string } | null) {
   const cond = curveConditions(c, fits.single ?? fits.double);
   const notes: string[] = [];
-  const cellArea_cm2 = cond.area_cm2 != null ? attempt('The cell area', notes, () => cellAreaOf(cond.area_cm2 as number, cond.cells)) : null;
+  const cell_area_cm2 = cond.area_cm2 != null ? attempt('The cell area', notes, () => cellAreaOf(cond.area_cm2 as number, cond.cells)) : null;
   if (cond.area_cm2 == null) notes.push('The curve has no device area, so J0 (a current per area) cannot be given; refit it with the area to see J0.');
 
   const sp = singleOf(fits.single?.result);
@@ -185,28 +185,28 @@ export function curvePhysicsReport(c: StoredCurve, fits: CurrentFits, batch: { i
   else if (!sp) notes.push(`The single-diode fit did not converge${fits.single.result.message ? `: ${fits.single.result.message}` : ''}.`);
   const single = sp
     ? (() => {
-        const j0 = cellArea_cm2 != null ? attempt('J0', notes, () => j0FromI0(sp.i0_a, cellArea_cm2)) : null;
+        const j0 = cell_area_cm2 != null ? attempt('J0', notes, () => j0FromI0(sp.i0_a, cell_area_cm2)) : null;
         const isc = c.metrics.isc_a;
-        const impliedVoc_V =
+        const implied_voc_v =
           isc > 0
             ? attempt('The implied Voc', notes, () =>
                 // Jsc/J0 = Isc/I0: the area cancels, so the implied Voc needs no area.
-                impliedVocFromJ0({ jsc_A_per_cm2: cellArea_cm2 ? isc / cellArea_cm2 : isc, j0_A_per_cm2: j0 ?? sp.i0_a, n: sp.n, tempC: cond.tempC, cells: cond.cells }),
+                impliedVocFromJ0({ jsc_a_cm2: cell_area_cm2 ? isc / cell_area_cm2 : isc, j0_a_cm2: j0 ?? sp.i0_a, n: sp.n, temp_c: cond.temp_c, cells: cond.cells }),
               )
             : null;
-        const opts = { cells: cond.cells, tempC: cond.tempC };
+        const opts = { cells: cond.cells, temp_c: cond.temp_c };
         const coefficient = attempt('The Voc temperature coefficient', notes, () => vocTempCoefficient(sp, opts));
-        const coefficientDeSoto = attempt('The Voc temperature coefficient (De Soto law)', notes, () => vocTempCoefficient(sp, { ...opts, law: 'desoto' }));
+        const coefficient_de_soto = attempt('The Voc temperature coefficient (De Soto law)', notes, () => vocTempCoefficient(sp, { ...opts, law: 'desoto' }));
         const series = attempt('Voc across temperature', notes, () =>
-          predictVocVsTemperature(sp, { cells: cond.cells, fitTempC: cond.tempC, fromC: VOC_SERIES_C.from, toC: VOC_SERIES_C.to, stepC: VOC_SERIES_C.step }),
+          predictVocVsTemperature(sp, { cells: cond.cells, fit_temp_c: cond.temp_c, from_c: VOC_SERIES_C.from, to_c: VOC_SERIES_C.to, step_c: VOC_SERIES_C.step }),
         );
         return {
           params: sp,
-          j0_A_per_cm2: j0,
-          impliedVoc: impliedVoc_V == null ? null : { voc_V: impliedVoc_V, jsc_A_per_cm2: cellArea_cm2 ? isc / cellArea_cm2 : null, isc_a: isc, measuredVoc_V: c.metrics.voc_v },
+          j0_a_cm2: j0,
+          implied_voc: implied_voc_v == null ? null : { voc_v: implied_voc_v, jsc_a_cm2: cell_area_cm2 ? isc / cell_area_cm2 : null, isc_a: isc, measured_voc_v: c.metrics.voc_v },
           coefficient,
-          coefficientDeSoto,
-          vocVsTemperature: series ? { law: series.law, points: series.points.map((p) => ({ tempC: p.tempC, voc_V: p.voc_V })) } : null,
+          coefficient_de_soto,
+          voc_vs_temperature: series ? { law: series.law, points: series.points.map((p) => ({ temp_c: p.temp_c, voc_v: p.voc_v })) } : null,
         };
       })()
     : null;
@@ -216,15 +216,15 @@ export function curvePhysicsReport(c: StoredCurve, fits: CurrentFits, batch: { i
   const double = dp
     ? {
         params: dp,
-        j01_A_per_cm2: cellArea_cm2 != null ? attempt('J01', notes, () => j0FromI0(dp.i01_a, cellArea_cm2)) : null,
-        j02_A_per_cm2: cellArea_cm2 != null ? attempt('J02', notes, () => j0FromI0(dp.i02_a, cellArea_cm2)) : null,
-        shares: attempt('The recombination shares at MPP', notes, () => recombinationSharesAtMpp(dp, { cells: cond.cells, tempC: cond.tempC })),
+        j01_a_cm2: cell_area_cm2 != null ? attempt('J01', notes, () => j0FromI0(dp.i01_a, cell_area_cm2)) : null,
+        j02_a_cm2: cell_area_cm2 != null ? attempt('J02', notes, () => j0FromI0(dp.i02_a, cell_area_cm2)) : null,
+        shares: attempt('The recombination shares at MPP', notes, () => recombinationSharesAtMpp(dp, { cells: cond.cells, temp_c: cond.temp_c })),
       }
     : null;
 
   return {
     curve: { id: c.id, device_id: c.deviceId, batch, meta: c.meta, metrics: c.metrics },
-    conditions: { ...cond, cellArea_cm2 },
+    conditions: { ...cond, cell_area_cm2 },
     stc: c.stc,
     single,
     double,
@@ -240,23 +240,23 @@ export function curvePhysicsReport(c: StoredCurve, fits: CurrentFits, batch: { i
 export function translationReport(c: StoredCurve, fits: CurrentFits, body: TranslateRequest): { ok: true; report: ReturnType<typeof assembleTranslation> } | { ok: false; reason: 'no_fit' } {
   const cond = curveConditions(c, fits.single);
   const notes: string[] = [];
-  const from = { irradiance_Wm2: cond.irradiance_Wm2 ?? STC.irradiance_Wm2, tempC: cond.tempC };
-  if (cond.irradiance_Wm2 == null) notes.push('The curve gives no irradiance: it was taken as measured at 1000 W/m².');
-  const measured: IvCurve = { voltage_V: c.voltage_V, current_A: c.current_A, meta: c.meta, notes: [] };
+  const from = { irradiance_w_m2: cond.irradiance_w_m2 ?? STC.irradiance_w_m2, temp_c: cond.temp_c };
+  if (cond.irradiance_w_m2 == null) notes.push('The curve gives no irradiance: it was taken as measured at 1000 W/m².');
+  const measured: IvCurve = { voltage_v: c.voltage_v, current_a: c.current_a, meta: c.meta, notes: [] };
   let request: TranslationRequest;
   if (body.method === 'model') {
     const sp = singleOf(fits.single?.result);
     if (!sp) return { ok: false, reason: 'no_fit' };
-    request = { method: 'model', params: sp, cells: cond.cells, from, to: body.to, alpha_isc_A_per_K: body.alpha_isc_A_per_K, i0Law: body.i0Law, points: 121 };
+    request = { method: 'model', params: sp, cells: cond.cells, from, to: body.to, alpha_isc_a_per_k: body.alpha_isc_a_per_k, i0_law: body.i0_law, points: 121 };
   } else if (body.method === 'iec60891-1') {
     request = {
       method: 'iec60891-1',
       from,
       to: body.to,
-      alpha_A_per_K: body.alpha_A_per_K as number,
-      beta_V_per_K: body.beta_V_per_K as number,
+      alpha_a_per_k: body.alpha_a_per_k as number,
+      beta_v_per_k: body.beta_v_per_k as number,
       rs_ohm: body.rs_ohm as number,
-      kappa_ohm_per_K: body.kappa_ohm_per_K as number,
+      kappa_ohm_per_k: body.kappa_ohm_per_k as number,
       isc1_a: c.metrics.isc_a,
     };
   } else {
@@ -264,21 +264,21 @@ export function translationReport(c: StoredCurve, fits: CurrentFits, body: Trans
       method: 'iec60891-2',
       from,
       to: body.to,
-      alpha_rel_per_K: body.alpha_rel_per_K as number,
-      beta_rel_per_K: body.beta_rel_per_K as number,
+      alpha_rel_per_k: body.alpha_rel_per_k as number,
+      beta_rel_per_k: body.beta_rel_per_k as number,
       rs_ohm: body.rs_ohm as number,
-      kappa_ohm_per_K: body.kappa_ohm_per_K as number,
+      kappa_ohm_per_k: body.kappa_ohm_per_k as number,
       a_irradiance: body.a_irradiance as number,
-      voc1_V: c.metrics.voc_v,
+      voc1_v: c.metrics.voc_v,
     };
   }
   return { ok: true, report: assembleTranslation(c, measured, from, cond.area_cm2, translateCurve(measured, request), notes) };
 }
 
-function assembleTranslation(c: StoredCurve, measured: IvCurve, from: { irradiance_Wm2: number; tempC: number }, area_cm2: number | null, t: ReturnType<typeof translateCurve>, notes: string[]) {
+function assembleTranslation(c: StoredCurve, measured: IvCurve, from: { irradiance_w_m2: number; temp_c: number }, area_cm2: number | null, t: ReturnType<typeof translateCurve>, notes: string[]) {
   const area_m2 = area_cm2 != null ? area_cm2 * 1e-4 : null;
-  const best = t.modelFigures
-    ? { isc_a: t.modelFigures.isc_a, voc_v: t.modelFigures.voc_v, pmp_w: t.modelFigures.pmp_w, imp_a: t.modelFigures.imp_a, vmp_v: t.modelFigures.vmp_v, ff: t.modelFigures.ff }
+  const best = t.model_figures
+    ? { isc_a: t.model_figures.isc_a, voc_v: t.model_figures.voc_v, pmp_w: t.model_figures.pmp_w, imp_a: t.model_figures.imp_a, vmp_v: t.model_figures.vmp_v, ff: t.model_figures.ff }
     : t.figures
       ? { isc_a: t.figures.isc_a, voc_v: t.figures.voc_v, pmp_w: t.figures.pmp_w, imp_a: t.figures.imp_a, vmp_v: t.figures.vmp_v, ff: t.figures.ff }
       : null;
@@ -286,13 +286,13 @@ function assembleTranslation(c: StoredCurve, measured: IvCurve, from: { irradian
     method: t.method,
     from,
     to: t.to,
-    figures: best ? { ...best, efficiency: area_m2 ? best.pmp_w / (t.to.irradiance_Wm2 * area_m2) : null } : null,
-    figuresSource: t.modelFigures ? 'model' : best ? 'curve' : null,
-    figuresError: t.figuresError ?? null,
+    figures: best ? { ...best, efficiency: area_m2 ? best.pmp_w / (t.to.irradiance_w_m2 * area_m2) : null } : null,
+    figures_source: t.model_figures ? 'model' : best ? 'curve' : null,
+    figures_error: t.figures_error ?? null,
     measured: { conditions: from, figures: c.metrics, curve: thinCurve(measured) },
     params: t.params ?? null,
     curve: thinCurve(t.curve),
-    points_total: t.curve.voltage_V.length,
+    points_total: t.curve.voltage_v.length,
     notes: [...notes, ...t.notes],
   };
 }

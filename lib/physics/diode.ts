@@ -11,7 +11,7 @@
  * branch currents.
  */
 import { goldenMax } from '@/lib/numeric/golden';
-import { thermalVoltage_V } from '@/lib/physics/constants';
+import { thermal_voltage_v } from '@/lib/physics/constants';
 import { PhysicsError, requireFinite, requireNonNegative, requirePositive } from '@/lib/physics/errors';
 import { sdCurrent, sdVoltage, solveDoubleDiodeCurrent, solveDoubleDiodeVoltage } from '@/lib/iv/diode';
 import type { DoubleDiodeParams, SingleDiodeParams } from '@/lib/iv/types';
@@ -61,20 +61,20 @@ type Junction = { c: Circuit; a: number[] };
 // exp() argument cap, as in lib/iv/diode.ts: beyond it the diode current is astronomically large anyway.
 const EXP_CAP = 700;
 
-function junction(c: Circuit, cells: number, tempC: number): Junction {
+function junction(c: Circuit, cells: number, temp_c: number): Junction {
   checkCircuit(c, cells);
-  requireFinite('tempC', tempC);
-  const vt = thermalVoltage_V(tempC);
-  if (!(vt > 0)) throw new PhysicsError('tempC', `tempC must be above absolute zero (got ${tempC} °C)`);
+  requireFinite('temp_c', temp_c);
+  const vt = thermal_voltage_v(temp_c);
+  if (!(vt > 0)) throw new PhysicsError('temp_c', `temp_c must be above absolute zero (got ${temp_c} °C)`);
   return { c, a: c.diodes.map((d) => d.n * cells * vt) };
 }
 
-function currentAt(j: Junction, voltage_V: number): number {
+function currentAt(j: Junction, voltage_v: number): number {
   const { c, a } = j;
   const [d1, d2] = c.diodes;
   return d2 === undefined
-    ? sdCurrent(c.iph_a, d1.i0_a, a[0], c.rs_ohm, c.rsh_ohm, voltage_V)
-    : solveDoubleDiodeCurrent(c.iph_a, d1.i0_a, a[0], d2.i0_a, a[1], c.rs_ohm, c.rsh_ohm, voltage_V);
+    ? sdCurrent(c.iph_a, d1.i0_a, a[0], c.rs_ohm, c.rsh_ohm, voltage_v)
+    : solveDoubleDiodeCurrent(c.iph_a, d1.i0_a, a[0], d2.i0_a, a[1], c.rs_ohm, c.rsh_ohm, voltage_v);
 }
 
 function vocOf(j: Junction): number {
@@ -86,11 +86,11 @@ function vocOf(j: Junction): number {
     : solveDoubleDiodeVoltage(c.iph_a, d1.i0_a, a[0], d2.i0_a, a[1], c.rs_ohm, c.rsh_ohm, 0);
 }
 
-/** Terminal current I(V), A, of the circuit at cell temperature tempC (°C). */
-export function circuitCurrent(c: Circuit, voltage_V: number, cells: number, tempC: number): number {
-  requireFinite('voltage_V', voltage_V);
-  const j = junction(c, cells, tempC);
-  return currentAt(j, voltage_V);
+/** Terminal current I(V), A, of the circuit at cell temperature temp_c (°C). */
+export function circuitCurrent(c: Circuit, voltage_v: number, cells: number, temp_c: number): number {
+  requireFinite('voltage_v', voltage_v);
+  const j = junction(c, cells, temp_c);
+  return currentAt(j, voltage_v);
 }
 
 /** Model key figures and, optionally, a sampled curve. */
@@ -104,13 +104,13 @@ export type CircuitFigures = {
 };
 
 /** Open-circuit voltage, V. */
-export function circuitVoc(c: Circuit, cells: number, tempC: number): number {
-  return vocOf(junction(c, cells, tempC));
+export function circuitVoc(c: Circuit, cells: number, temp_c: number): number {
+  return vocOf(junction(c, cells, temp_c));
 }
 
 /** Isc, Voc, maximum power point (golden-section search on P(V)) and fill factor of the circuit. */
-export function circuitFigures(c: Circuit, cells: number, tempC: number): CircuitFigures {
-  const j = junction(c, cells, tempC);
+export function circuitFigures(c: Circuit, cells: number, temp_c: number): CircuitFigures {
+  const j = junction(c, cells, temp_c);
   if (!(c.iph_a > 0)) throw new PhysicsError('iph_a', `iph_a must be greater than 0 for key figures (got ${c.iph_a})`);
   const isc_a = currentAt(j, 0);
   const voc_v = vocOf(j);
@@ -121,42 +121,42 @@ export function circuitFigures(c: Circuit, cells: number, tempC: number): Circui
   return { isc_a, voc_v, pmp_w, vmp_v, imp_a, ff: isc_a > 0 && voc_v > 0 ? pmp_w / (isc_a * voc_v) : 0 };
 }
 
-/** The circuit's curve sampled at `points` voltages from vMin_V (default 0) to vMax_V (default Voc). */
+/** The circuit's curve sampled at `points` voltages from v_min_v (default 0) to v_max_v (default Voc). */
 export function circuitCurve(
   c: Circuit,
   cells: number,
-  tempC: number,
-  options: { points?: number; vMin_V?: number; vMax_V?: number } = {},
-): { voltage_V: number[]; current_A: number[] } {
-  const j = junction(c, cells, tempC);
+  temp_c: number,
+  options: { points?: number; v_min_v?: number; v_max_v?: number } = {},
+): { voltage_v: number[]; current_a: number[] } {
+  const j = junction(c, cells, temp_c);
   const points = options.points ?? 101;
   if (!Number.isInteger(points) || points < 2 || points > 100000) {
     throw new PhysicsError('points', `points must be a whole number from 2 to 100000 (got ${points})`);
   }
-  const vMin = requireFinite('vMin_V', options.vMin_V ?? 0);
-  const vMax = requireFinite('vMax_V', options.vMax_V ?? vocOf(j));
-  if (!(vMax > vMin)) throw new PhysicsError('vMax_V', `vMax_V must be above vMin_V (got ${vMax} ≤ ${vMin})`);
-  const voltage_V: number[] = [];
-  const current_A: number[] = [];
+  const vMin = requireFinite('v_min_v', options.v_min_v ?? 0);
+  const vMax = requireFinite('v_max_v', options.v_max_v ?? vocOf(j));
+  if (!(vMax > vMin)) throw new PhysicsError('v_max_v', `v_max_v must be above v_min_v (got ${vMax} ≤ ${vMin})`);
+  const voltage_v: number[] = [];
+  const current_a: number[] = [];
   for (let i = 0; i < points; i++) {
     const v = vMin + ((vMax - vMin) * i) / (points - 1);
-    voltage_V.push(v);
-    current_A.push(currentAt(j, v));
+    voltage_v.push(v);
+    current_a.push(currentAt(j, v));
   }
-  return { voltage_V, current_A };
+  return { voltage_v, current_a };
 }
 
 /** Per-diode currents, A, at terminal voltage V (what each recombination path carries there). */
 export function circuitBranchCurrents(
   c: Circuit,
-  voltage_V: number,
+  voltage_v: number,
   cells: number,
-  tempC: number,
-): { current_A: number; junction_V: number; diodes_A: number[]; shunt_A: number } {
-  requireFinite('voltage_V', voltage_V);
-  const j = junction(c, cells, tempC);
-  const current_A = currentAt(j, voltage_V);
-  const vj = voltage_V + current_A * c.rs_ohm;
-  const diodes_A = c.diodes.map((d, k) => d.i0_a * (Math.exp(Math.min(vj / j.a[k], EXP_CAP)) - 1));
-  return { current_A, junction_V: vj, diodes_A, shunt_A: vj / c.rsh_ohm };
+  temp_c: number,
+): { current_a: number; junction_v: number; diodes_a: number[]; shunt_a: number } {
+  requireFinite('voltage_v', voltage_v);
+  const j = junction(c, cells, temp_c);
+  const current_a = currentAt(j, voltage_v);
+  const vj = voltage_v + current_a * c.rs_ohm;
+  const diodes_a = c.diodes.map((d, k) => d.i0_a * (Math.exp(Math.min(vj / j.a[k], EXP_CAP)) - 1));
+  return { current_a, junction_v: vj, diodes_a, shunt_a: vj / c.rsh_ohm };
 }

@@ -1,6 +1,6 @@
 /**
  * Bad input to the device-physics functions. `input` names the offending input (as the caller
- * spelled it, e.g. "tempK" or "beta_V_per_K") so a form or the command line can point at it.
+ * spelled it, e.g. "temp_k" or "beta_v_per_k") so a form or the command line can point at it.
  */
 export class PhysicsError extends Error {
   readonly input: string;

@@ -20,12 +20,12 @@ import { PhysicsError, requireFinite, requirePositive } from '@/lib/physics/erro
 /** Supported range of the reduced Fermi level η for the public integral functions. */
 export const ETA_RANGE = { min: -40, max: 100 } as const;
 
-/** Fermi–Dirac occupation f(E) = 1/(1 + exp((E − E_F)/k_B·T)) of a state at energy_eV. */
-export function fermiOccupation(energy_eV: number, fermiLevel_eV: number, tempK: number): number {
-  requireFinite('energy_eV', energy_eV);
-  requireFinite('fermiLevel_eV', fermiLevel_eV);
-  requirePositive('tempK', tempK);
-  return logistic((energy_eV - fermiLevel_eV) / (KB_EV_PER_K * tempK));
+/** Fermi–Dirac occupation f(E) = 1/(1 + exp((E − E_F)/k_B·T)) of a state at energy_ev. */
+export function fermiOccupation(energy_ev: number, fermi_level_ev: number, temp_k: number): number {
+  requireFinite('energy_ev', energy_ev);
+  requireFinite('fermi_level_ev', fermi_level_ev);
+  requirePositive('temp_k', temp_k);
+  return logistic((energy_ev - fermi_level_ev) / (KB_EV_PER_K * temp_k));
 }
 
 /** 1/(1 + e^x) without overflow for large |x|. */

@@ -11,37 +11,37 @@ export type CompareResult = 'pass' | 'fail' | null;
 
 /** One curve of the comparison, as the grid reads it (values under the engine's keys: pmp_w, rs_ohm…). */
 export type CompareRow = Record<string, unknown> & {
-  curveId: string;
-  batchId: string;
-  batchName: string;
-  deviceId: string;
+  curve_id: string;
+  batch_id: string;
+  batch_name: string;
+  device_id: string;
   flags: string[];
   result: CompareResult;
   reasons: string[];
-  powerClass: string | null;
+  power_class: string | null;
   outlier: boolean | null;
 };
 
 /** A row of one batch as the server builds it, before it is put into columns. */
 export type CompareRowInput = {
-  curveId: string;
-  deviceId: string;
+  curve_id: string;
+  device_id: string;
   values: Partial<Record<string, number | null>>;
   flags: string[];
   result: CompareResult;
   reasons: string[];
-  powerClass: string | null;
+  power_class: string | null;
 };
 
 /** One batch's rows as columns. */
 export type BatchColumns = {
   length: number;
-  curveId: string[];
-  deviceId: string[];
+  curve_id: string[];
+  device_id: string[];
   flags: string[][];
   result: CompareResult[];
   reasons: string[][];
-  powerClass: (string | null)[];
+  power_class: (string | null)[];
   /** One column per figure; null where a curve has none (not fitted, no area…). */
   values: Record<string, (number | null)[]>;
 };
@@ -61,12 +61,12 @@ export function columnsOfRows(rows: readonly CompareRowInput[]): BatchColumns {
   }
   return {
     length: rows.length,
-    curveId: rows.map((r) => r.curveId),
-    deviceId: rows.map((r) => r.deviceId),
+    curve_id: rows.map((r) => r.curve_id),
+    device_id: rows.map((r) => r.device_id),
     flags: rows.map((r) => r.flags),
     result: rows.map((r) => r.result),
     reasons: rows.map((r) => r.reasons),
-    powerClass: rows.map((r) => r.powerClass),
+    power_class: rows.map((r) => r.power_class),
     values,
   };
 }
@@ -87,14 +87,14 @@ export function rowsOfColumns(tables: readonly BatchColumns[], outliers: readonl
     const keys = Object.keys(t.values);
     for (let j = 0; j < t.length; j++) {
       const row: CompareRow = {
-        curveId: t.curveId[j],
-        batchId: batch.id,
-        batchName: batch.name,
-        deviceId: t.deviceId[j],
+        curve_id: t.curve_id[j],
+        batch_id: batch.id,
+        batch_name: batch.name,
+        device_id: t.device_id[j],
         flags: t.flags[j],
         result: t.result[j],
         reasons: t.reasons[j],
-        powerClass: t.powerClass[j],
+        power_class: t.power_class[j],
         outlier: marks[j],
       };
       for (const k of keys) row[k] = t.values[k][j];

@@ -15,11 +15,11 @@ import type { ParamKey } from '@/lib/quality/params';
 /** The fields of a record, in their order in the stored array. */
 export const COMPARISON_RECORD_FIELDS = [
   /** curve.id */
-  'curveId',
+  'curve_id',
   /** batch.id */
-  'batchId',
+  'batch_id',
   /** the device id (file metadata, else the file name) */
-  'deviceId',
+  'device_id',
   /** the measured key figures (lib/iv key figures: isc_a, voc_v, pmp_w, …) */
   'metrics',
   /** cells in series (metadata), null when unknown */
@@ -44,9 +44,9 @@ export type ComparisonRecordField = (typeof COMPARISON_RECORD_FIELDS)[number];
 
 /** A record by name. */
 export type ComparisonRecordFields = {
-  curveId: string;
-  batchId: string;
-  deviceId: string;
+  curve_id: string;
+  batch_id: string;
+  device_id: string;
   metrics: Partial<Record<ParamKey, number | null>>;
   cells: number | null;
   area_cm2: number | null;
@@ -79,7 +79,7 @@ export function comparisonRecordFields(tuple: ComparisonRecordTuple | readonly u
 }
 
 /** A device as the quality rules judge it, with the curve and batch it came from. */
-export type ComparisonDevice = DeviceRecord & { curveId: string; batchId: string; fitted: boolean };
+export type ComparisonDevice = DeviceRecord & { curve_id: string; batch_id: string; fitted: boolean };
 
 const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null);
 
@@ -103,5 +103,5 @@ export function deviceRecordOf(tuple: ComparisonRecordTuple | readonly unknown[]
   values.rmse_a = ok ? num(r.rmse_a) : null;
   values.j0_a_cm2 = ok && i0 != null && cellArea ? i0 / cellArea : null;
   values.stc_pmp_w = num(r.stc_pmp_w);
-  return { curveId: r.curveId, batchId: r.batchId, deviceId: r.deviceId, values, flags: r.flagCodes.split(' ').filter(Boolean), fitted: ok };
+  return { curve_id: r.curve_id, batch_id: r.batch_id, device_id: r.device_id, values, flags: r.flagCodes.split(' ').filter(Boolean), fitted: ok };
 }

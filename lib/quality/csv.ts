@@ -67,12 +67,12 @@ export function passFailRows(batch: BatchEvaluation, meta: PassFailMeta): { fiel
   const fields = ['device_id', 'result', 'reasons', 'power_class', 'outlier', 'outlier_params', ...params, 'spec_version', 'release_state'];
   const data = batch.devices.map((d) =>
     [
-      d.deviceId,
+      d.device_id,
       d.result,
       d.reasons.map((r) => r.message).join('; '),
-      d.powerClass,
+      d.power_class,
       d.outlier ? 'yes' : 'no',
-      d.outlierParams.join(' '),
+      d.outlier_params.join(' '),
       ...params.map((k) => d.values[k] ?? null),
       typeof meta.specVersion === 'number' ? meta.specVersion : String(meta.specVersion),
       meta.releaseState,

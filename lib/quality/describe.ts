@@ -23,7 +23,7 @@ export type Description = {
    */
   cpk: number | null;
   /** Which limits entered Cpk. */
-  cpkSide: 'both' | 'upper' | 'lower' | null;
+  cpk_side: 'both' | 'upper' | 'lower' | null;
 };
 
 /** Throws unless every entry is a finite number; `what` names the input in the message. */
@@ -89,13 +89,13 @@ export function assertLimits(limits: Limits | undefined, what = 'limits'): void 
  * Cpk of a process with mean `mu` and standard deviation `sd` against `limits`
  * (one-sided when only one limit is given).
  */
-export function cpkOf(mu: number, sd: number | null, limits?: Limits): Pick<Description, 'cpk' | 'cpkSide'> {
+export function cpkOf(mu: number, sd: number | null, limits?: Limits): Pick<Description, 'cpk' | 'cpk_side'> {
   const hasMin = limits?.min !== undefined;
   const hasMax = limits?.max !== undefined;
-  if (!limits || (!hasMin && !hasMax) || sd === null || sd === 0) return { cpk: null, cpkSide: null };
+  if (!limits || (!hasMin && !hasMax) || sd === null || sd === 0) return { cpk: null, cpk_side: null };
   const upper = hasMax ? (limits.max! - mu) / (3 * sd) : Infinity;
   const lower = hasMin ? (mu - limits.min!) / (3 * sd) : Infinity;
-  return { cpk: Math.min(upper, lower), cpkSide: hasMin && hasMax ? 'both' : hasMax ? 'upper' : 'lower' };
+  return { cpk: Math.min(upper, lower), cpk_side: hasMin && hasMax ? 'both' : hasMax ? 'upper' : 'lower' };
 }
 
 /**

@@ -10,7 +10,7 @@ import type { PowerClasses, Spec } from '@/lib/quality/spec';
 
 /** One measured device as the engine and database hand it over. */
 export type DeviceRecord = {
-  deviceId: string;
+  device_id: string;
   values: Partial<Record<ParamKey, number | null>>;
   /** Flag codes raised on the device's curve or fit. */
   flags: string[];
@@ -29,11 +29,11 @@ export type FailReason = {
 };
 
 export type DeviceEvaluation = {
-  deviceId: string;
+  device_id: string;
   result: 'pass' | 'fail';
   /** Every failed rule, in spec order (limits in parameter order, then power class, then flags). */
   reasons: FailReason[];
-  powerClass: string | null;
+  power_class: string | null;
 };
 
 /** Reads a device value: null when absent; throws on NaN/±Infinity (never valid JSON, so a bug upstream). */
@@ -41,7 +41,7 @@ function valueOf(device: DeviceRecord, key: ParamKey): number | null {
   const v = device.values?.[key];
   if (v === undefined || v === null) return null;
   if (typeof v !== 'number' || !Number.isFinite(v)) {
-    throw new QualityError(`device "${device.deviceId}": ${key} is ${String(v)}, not a finite number`);
+    throw new QualityError(`device "${device.device_id}": ${key} is ${String(v)}, not a finite number`);
   }
   return v;
 }
@@ -68,7 +68,7 @@ export function powerClassOf(power_w: number, pc: PowerClasses): { label: string
     return { label: null, problem: `${shown} falls in no power class (classes cover ${formatValue(lo)}–${formatValue(hi)} W)` };
   }
   const step = pc.step_w;
-  if (step === undefined || !(step > 0)) throw new QualityError('powerClasses needs step_w (W) or explicit bins');
+  if (step === undefined || !(step > 0)) throw new QualityError('power_classes needs step_w (W) or explicit bins');
   const minus = pc.tolerance?.minus_w ?? 0;
   const prefix = pc.label_prefix ?? 'P';
   // The small offset keeps a value sitting exactly on a boundary (405 W with 5 W steps) in the
@@ -85,21 +85,21 @@ export function powerClassOf(power_w: number, pc: PowerClasses): { label: string
 /** Checks the device record's shape; throws QualityError naming the device and the field. */
 function assertDevice(device: DeviceRecord, where = 'device'): void {
   if (!device || typeof device !== 'object') throw new QualityError(`${where} must be an object`);
-  if (typeof device.deviceId !== 'string' || device.deviceId.length === 0) {
-    throw new QualityError(`${where}.deviceId must be a non-empty string`);
+  if (typeof device.device_id !== 'string' || device.device_id.length === 0) {
+    throw new QualityError(`${where}.device_id must be a non-empty string`);
   }
   if (!device.values || typeof device.values !== 'object') {
-    throw new QualityError(`device "${device.deviceId}": values must be an object keyed by parameter`);
+    throw new QualityError(`device "${device.device_id}": values must be an object keyed by parameter`);
   }
   if (device.flags !== undefined && (!Array.isArray(device.flags) || device.flags.some((f) => typeof f !== 'string'))) {
-    throw new QualityError(`device "${device.deviceId}": flags must be an array of flag codes`);
+    throw new QualityError(`device "${device.device_id}": flags must be an array of flag codes`);
   }
 }
 
 /**
  * Pass or fail one device against a (validated) spec, with every reason. Bounds are
  * inclusive; a limited parameter without a value fails as "not measured"; each of the
- * device's flags listed in spec.failFlags fails; with power classes, a module that cannot
+ * device's flags listed in spec.fail_flags fails; with power classes, a module that cannot
  * be classed fails.
  */
 export function evaluateDevice(device: DeviceRecord, spec: Spec): DeviceEvaluation {
@@ -135,9 +135,9 @@ export function evaluateDevice(device: DeviceRecord, spec: Spec): DeviceEvaluati
       });
     }
   }
-  let powerClass: string | null = null;
-  if (spec.powerClasses) {
-    const basis = spec.powerClasses.basis ?? 'pmp_w';
+  let power_class: string | null = null;
+  if (spec.power_classes) {
+    const basis = spec.power_classes.basis ?? 'pmp_w';
     const p = valueOf(device, basis);
     if (p === null) {
       reasons.push({
@@ -149,29 +149,29 @@ export function evaluateDevice(device: DeviceRecord, spec: Spec): DeviceEvaluati
         message: `${basis} not measured: no power class`,
       });
     } else {
-      const pc = powerClassOf(p, spec.powerClasses);
-      powerClass = pc.label;
+      const pc = powerClassOf(p, spec.power_classes);
+      power_class = pc.label;
       if (pc.problem) {
         reasons.push({ kind: 'power_class', param: basis, value: p, limit: null, bound: null, message: pc.problem });
       }
     }
   }
-  const failFlags = new Set(spec.failFlags ?? []);
+  const fail_flags = new Set(spec.fail_flags ?? []);
   for (const flag of new Set(device.flags ?? [])) {
-    if (failFlags.has(flag)) {
+    if (fail_flags.has(flag)) {
       reasons.push({ kind: 'flag', param: 'flags', value: flag, limit: null, bound: null, message: `flag "${flag}" is raised and fails this spec` });
     }
   }
-  return { deviceId: device.deviceId, result: reasons.length ? 'fail' : 'pass', reasons, powerClass };
+  return { device_id: device.device_id, result: reasons.length ? 'fail' : 'pass', reasons, power_class };
 }
 
 export type BatchDeviceEvaluation = DeviceEvaluation & {
   values: Partial<Record<ParamKey, number | null>>;
   flags: string[];
   /** Modified z-score per outlier-checked parameter (null when the device lacks the value). */
-  robustZ: Partial<Record<ParamKey, number | null>>;
+  robust_z: Partial<Record<ParamKey, number | null>>;
   /** Parameters on which the device is an outlier (|z| > 3.5). */
-  outlierParams: ParamKey[];
+  outlier_params: ParamKey[];
   outlier: boolean;
 };
 
@@ -180,9 +180,9 @@ export type BatchEvaluation = {
   devices: BatchDeviceEvaluation[];
   counts: { total: number; pass: number; fail: number; outliers: number };
   /** Devices per power class label; devices without a class are not counted here. */
-  powerClassCounts: Record<string, number>;
+  power_class_counts: Record<string, number>;
   /** Parameters checked for outliers. */
-  outlierParams: ParamKey[];
+  outlier_params: ParamKey[];
   /**
    * Statistics of every parameter that is limited, outlier-checked or measured on any device,
    * with Cpk against the spec's limits; null when no device has a value.
@@ -192,7 +192,7 @@ export type BatchEvaluation = {
 
 export type BatchOptions = {
   /** Parameters to mark outliers on (default ['pmp_w']). */
-  outlierParams?: ParamKey[];
+  outlier_params?: ParamKey[];
 };
 
 /**
@@ -225,24 +225,24 @@ export function robustZOn(devices: readonly DeviceRecord[], key: ParamKey): { z:
 export function evaluateBatch(devices: readonly DeviceRecord[], spec: Spec, options: BatchOptions = {}): BatchEvaluation {
   if (!Array.isArray(devices)) throw new QualityError('devices must be an array of device records');
   devices.forEach((d, i) => assertDevice(d, `devices[${i}]`));
-  const outlierParams: ParamKey[] = [...new Set<ParamKey>(options.outlierParams ?? ['pmp_w'])];
-  for (const k of outlierParams) {
-    if (!isParamKey(k)) throw new QualityError(`outlierParams: unknown parameter "${String(k)}"`);
+  const outlier_params: ParamKey[] = [...new Set<ParamKey>(options.outlier_params ?? ['pmp_w'])];
+  for (const k of outlier_params) {
+    if (!isParamKey(k)) throw new QualityError(`outlier_params: unknown parameter "${String(k)}"`);
   }
   const evaluated: BatchDeviceEvaluation[] = devices.map((d) => {
     const e = evaluateDevice(d, spec);
     // Written out rather than spread: this runs for every device of a 10,000-curve comparison.
-    return { deviceId: e.deviceId, result: e.result, reasons: e.reasons, powerClass: e.powerClass, values: Object.assign({}, d.values), flags: d.flags ? d.flags.slice() : [], robustZ: {}, outlierParams: [], outlier: false };
+    return { device_id: e.device_id, result: e.result, reasons: e.reasons, power_class: e.power_class, values: Object.assign({}, d.values), flags: d.flags ? d.flags.slice() : [], robust_z: {}, outlier_params: [], outlier: false };
   });
 
-  for (const key of outlierParams) {
+  for (const key of outlier_params) {
     const marks = robustZOn(devices, key);
     marks.forEach((m, i) => {
-      evaluated[i].robustZ[key] = m.z;
-      if (m.outlier) evaluated[i].outlierParams.push(key);
+      evaluated[i].robust_z[key] = m.z;
+      if (m.outlier) evaluated[i].outlier_params.push(key);
     });
   }
-  for (const e of evaluated) e.outlier = e.outlierParams.length > 0;
+  for (const e of evaluated) e.outlier = e.outlier_params.length > 0;
 
   // Every parameter's values in one pass over the devices (10,000 devices × 25 parameters in a comparison).
   const columns = new Map<ParamKey, number[]>(PARAM_KEYS.map((k) => [k, []]));
@@ -255,20 +255,20 @@ export function evaluateBatch(devices: readonly DeviceRecord[], spec: Spec, opti
   const stats: BatchEvaluation['stats'] = {};
   for (const key of PARAM_KEYS) {
     const vals = columns.get(key)!;
-    if (!(spec.limits?.[key] !== undefined || outlierParams.includes(key) || vals.length)) continue;
+    if (!(spec.limits?.[key] !== undefined || outlier_params.includes(key) || vals.length)) continue;
     stats[key] = vals.length ? describe(vals, spec.limits?.[key]) : null;
   }
 
-  const powerClassCounts: Record<string, number> = {};
-  for (const e of evaluated) if (e.powerClass) powerClassCounts[e.powerClass] = (powerClassCounts[e.powerClass] ?? 0) + 1;
+  const power_class_counts: Record<string, number> = {};
+  for (const e of evaluated) if (e.power_class) power_class_counts[e.power_class] = (power_class_counts[e.power_class] ?? 0) + 1;
 
   const pass = evaluated.filter((e) => e.result === 'pass').length;
   return {
     specName: spec.name,
     devices: evaluated,
     counts: { total: evaluated.length, pass, fail: evaluated.length - pass, outliers: evaluated.filter((e) => e.outlier).length },
-    powerClassCounts,
-    outlierParams,
+    power_class_counts,
+    outlier_params,
     stats,
   };
 }

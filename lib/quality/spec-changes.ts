@@ -14,9 +14,9 @@ export function describeChanges(before: Spec | null, after: Spec): string[] {
     const show = (l?: { min?: number; max?: number }) => (l ? `${l.min ?? '−∞'} … ${l.max ?? '+∞'}` : 'none');
     if (JSON.stringify(a ?? null) !== JSON.stringify(b ?? null)) out.push(`${k}: ${show(a)} → ${show(b)}`);
   }
-  if (JSON.stringify(before.powerClasses ?? null) !== JSON.stringify(after.powerClasses ?? null)) out.push('power classes changed');
-  const fa = [...(before.failFlags ?? [])].sort().join(', ');
-  const fb = [...(after.failFlags ?? [])].sort().join(', ');
+  if (JSON.stringify(before.power_classes ?? null) !== JSON.stringify(after.power_classes ?? null)) out.push('power classes changed');
+  const fa = [...(before.fail_flags ?? [])].sort().join(', ');
+  const fb = [...(after.fail_flags ?? [])].sort().join(', ');
   if (fa !== fb) out.push(`failing flags: ${fa || 'none'} → ${fb || 'none'}`);
   if ((before.notes ?? '') !== (after.notes ?? '')) out.push('notes changed');
   return out.length ? out : ['saved without changes'];

@@ -134,15 +134,15 @@ export const powerClassesSchema = z
     }
   });
 
-const SPEC_FIELDS = ['name', 'limits', 'powerClasses', 'failFlags', 'notes'] as const;
+const SPEC_FIELDS = ['name', 'limits', 'power_classes', 'fail_flags', 'notes'] as const;
 
 /** Input of an acceptance specification (form and API body alike). */
 export const specInputSchema = z.strictObject(
   {
     name: z.string({ error: 'name is required' }).trim().min(1, 'name is required').max(120, 'name is at most 120 characters'),
     limits: limitsSchema.default({}),
-    powerClasses: powerClassesSchema.optional(),
-    failFlags: z
+    power_classes: powerClassesSchema.optional(),
+    fail_flags: z
       .array(z.string().trim().min(1, 'a flag code cannot be empty').max(64))
       .max(100)
       .optional(),

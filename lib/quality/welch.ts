@@ -22,27 +22,27 @@ export type WelchWording = {
 };
 
 export type WelchResult = {
-  nA: number;
-  nB: number;
-  meanA: number;
-  meanB: number;
-  sdA: number;
-  sdB: number;
-  /** meanB − meanA, in the samples' unit. */
+  n_a: number;
+  n_b: number;
+  mean_a: number;
+  mean_b: number;
+  sd_a: number;
+  sd_b: number;
+  /** mean_b − mean_a, in the samples' unit. */
   difference: number;
-  /** sqrt(sA²/nA + sB²/nB). */
-  standardError: number;
+  /** sqrt(sA²/n_a + sB²/n_b). */
+  standard_error: number;
   /** Welch–Satterthwaite degrees of freedom (not rounded). */
   dof: number;
-  /** difference / standardError. */
+  /** difference / standard_error. */
   t: number;
   /** Two-sided p-value. */
   p: number;
   confidence: number;
   /** Two-sided Student t quantile at (1 + confidence)/2 with `dof`. */
-  tCritical: number;
-  ciLow: number;
-  ciHigh: number;
+  t_critical: number;
+  ci_low: number;
+  ci_high: number;
   /** True when the confidence interval excludes zero. */
   significant: boolean;
   direction: 'higher' | 'lower' | 'equal';
@@ -80,35 +80,35 @@ export function welchFromSummary(
   if (!(se2 > 0)) {
     throw new QualityError('both samples have zero spread: the difference has no standard error and no test is possible');
   }
-  const standardError = Math.sqrt(se2);
+  const standard_error = Math.sqrt(se2);
   const dof = (se2 * se2) / ((va * va) / (a.n - 1) + (vb * vb) / (b.n - 1));
   const difference = b.mean - a.mean;
-  const t = difference / standardError;
+  const t = difference / standard_error;
   // Two-sided p through the regularised incomplete beta, I_{ν/(ν+t²)}(ν/2, 1/2): no
   // 1 − cdf cancellation, so tiny p-values keep their relative precision.
   const p = Math.min(1, jStat.ibeta(dof / (dof + t * t), dof / 2, 0.5));
-  const tCritical = jStat.studentt.inv(1 - (1 - confidence) / 2, dof);
-  const half = tCritical * standardError;
-  const ciLow = difference - half;
-  const ciHigh = difference + half;
-  const significant = ciLow > 0 || ciHigh < 0;
+  const t_critical = jStat.studentt.inv(1 - (1 - confidence) / 2, dof);
+  const half = t_critical * standard_error;
+  const ci_low = difference - half;
+  const ci_high = difference + half;
+  const significant = ci_low > 0 || ci_high < 0;
   const direction = difference > 0 ? 'higher' : difference < 0 ? 'lower' : 'equal';
   const result: Omit<WelchResult, 'sentence'> = {
-    nA: a.n,
-    nB: b.n,
-    meanA: a.mean,
-    meanB: b.mean,
-    sdA: a.sd,
-    sdB: b.sd,
+    n_a: a.n,
+    n_b: b.n,
+    mean_a: a.mean,
+    mean_b: b.mean,
+    sd_a: a.sd,
+    sd_b: b.sd,
     difference,
-    standardError,
+    standard_error,
     dof,
     t,
     p,
     confidence,
-    tCritical,
-    ciLow,
-    ciHigh,
+    t_critical,
+    ci_low,
+    ci_high,
     significant,
     direction,
   };
@@ -168,12 +168,12 @@ function welchSentence(r: Omit<WelchResult, 'sentence'>, w: WelchWording): strin
   const nameB = w.nameB ?? 'Batch B';
   const param = w.param ?? 'mean value';
   const unit = w.unit ? ` ${w.unit}` : '';
-  const fmt = makeFormatter(r.tCritical * r.standardError, r.difference);
+  const fmt = makeFormatter(r.t_critical * r.standard_error, r.difference);
   const pct = `${Number((r.confidence * 100).toPrecision(4))} %`;
   const stats = `Welch t = ${minusSign(String(Number(r.t.toPrecision(3))))} on ${r.dof.toFixed(1)} degrees of freedom, ${formatP(r.p)}`;
   const subject = `${possessive(nameB)} ${param}`;
   if (r.significant) {
-    const [lo, hi] = r.direction === 'higher' ? [r.ciLow, r.ciHigh] : [-r.ciHigh, -r.ciLow];
+    const [lo, hi] = r.direction === 'higher' ? [r.ci_low, r.ci_high] : [-r.ci_high, -r.ci_low];
     return (
       `${subject} is ${r.direction} than ${possessive(nameA)} by ${fmt(Math.abs(r.difference))}${unit} ` +
       `(${pct} CI ${fmt(lo)}–${fmt(hi)}${unit}; ${stats}).`
@@ -184,7 +184,7 @@ function welchSentence(r: Omit<WelchResult, 'sentence'>, w: WelchWording): strin
       ? `${subject} has the same mean as ${possessive(nameA)}`
       : `${subject} is ${r.direction} than ${possessive(nameA)} by ${fmt(Math.abs(r.difference))}${unit}`;
   return (
-    `${lead}, but the ${pct} CI of the difference (${fmt(r.ciLow)} to ${fmt(r.ciHigh)}${unit}) includes zero: ` +
+    `${lead}, but the ${pct} CI of the difference (${fmt(r.ci_low)} to ${fmt(r.ci_high)}${unit}) includes zero: ` +
     `no clear difference (${stats}).`
   );
 }

@@ -5,7 +5,7 @@ import { optNumber, optNumberOrNull } from '@/lib/schemas/numbers';
 /** Figures of a curve translated to standard test conditions (from the fitted model). */
 export type StcFigures = {
   method: 'model';
-  from: { irradiance_Wm2: number; tempC: number };
+  from: { irradiance_w_m2: number; temp_c: number };
   isc_a: number;
   voc_v: number;
   pmp_w: number;
@@ -26,11 +26,11 @@ const optText = (max: number) =>
     .transform((v) => (v ? v : null));
 
 export const batchFieldsSchema = z.object({
-  productType: optText(120),
+  product_type: optText(120),
   supplier: optText(120),
   line: optText(60),
   lot: optText(60),
-  batchDate: z
+  batch_date: z
     .string()
     .trim()
     .optional()
@@ -55,19 +55,19 @@ export const batchUpdateSchema = batchFieldsSchema.partial().extend({
 
 /** Form fields that may accompany an upload and override every file's metadata. */
 export const uploadOverridesSchema = z.object({
-  tempC: optNumberOrNull('Cell temperature (°C)', { min: -60, max: 150 }),
-  irradiance_Wm2: optNumberOrNull('Irradiance (W/m²)', { min: 1, max: 2000 }),
+  temp_c: optNumberOrNull('Cell temperature (°C)', { min: -60, max: 150 }),
+  irradiance_w_m2: optNumberOrNull('Irradiance (W/m²)', { min: 1, max: 2000 }),
   cells: optNumberOrNull('Cells in series', { min: 1, max: 1000, integer: true }),
   area_cm2: optNumberOrNull('Area (cm²)', { min: 0.01, max: 100000 }),
-  onDuplicate: z.enum(['ask', 'replace', 'keep']).optional().default('ask'),
+  on_duplicate: z.enum(['ask', 'replace', 'keep']).optional().default('ask'),
 });
 
 export const refitSchema = z.object({
   model: z.enum(['single', 'double', 'both']).optional().default('both'),
   idealities: z.enum(['fixed', 'free']).optional().default('fixed'),
   objective: z.enum(['true-current', 'implicit']).optional().default('true-current'),
-  tempC: optNumberOrNull('Cell temperature (°C)', { min: -60, max: 150 }),
-  irradiance_Wm2: optNumberOrNull('Irradiance (W/m²)', { min: 1, max: 2000 }),
+  temp_c: optNumberOrNull('Cell temperature (°C)', { min: -60, max: 150 }),
+  irradiance_w_m2: optNumberOrNull('Irradiance (W/m²)', { min: 1, max: 2000 }),
   cells: optNumberOrNull('Cells in series', { min: 1, max: 1000, integer: true }),
   area_cm2: optNumberOrNull('Area (cm²)', { min: 0.01, max: 100000 }),
 });
@@ -79,7 +79,7 @@ export type CurveSortKey = (typeof CURVE_SORT_KEYS)[number];
 
 export const curveListQuerySchema = z.object({
   page: optNumber('page', { min: 1, integer: true }).transform((v) => v ?? 1),
-  pageSize: optNumber('pageSize', { min: 1, max: 500, integer: true }).transform((v) => v ?? 50),
+  page_size: optNumber('page_size', { min: 1, max: 500, integer: true }).transform((v) => v ?? 50),
   sort: z.enum(CURVE_SORT_KEYS).optional().default('device_id'),
   dir: z.enum(['asc', 'desc']).optional().default('asc'),
   q: z.string().trim().max(120).optional().default(''),

@@ -14,9 +14,9 @@ const requiredNumber = (name: string, unit: string) => reqNumber(name, { unit })
 /** An optional number (undefined when left empty). */
 const optionalNumber = (name: string, unit: string) => optNumber(name, { unit });
 
-/** GET /api/physics/material?tempK= (300 K when omitted). */
+/** GET /api/physics/material?temp_k= (300 K when omitted). */
 export const materialQuerySchema = z.object({
-  tempK: optionalNumber('tempK', 'K').transform((v) => v ?? 300),
+  temp_k: optionalNumber('temp_k', 'K').transform((v) => v ?? 300),
 });
 
 export const DOPING_TYPES = ['p', 'n'] as const;
@@ -29,9 +29,9 @@ export const bandDiagramSchema = z.object({
   type: z.enum(DOPING_TYPES, { message: 'type must be "p" or "n".' }),
   doping_cm3: requiredNumber('doping_cm3', 'cm⁻³'),
   excess_cm3: optionalNumber('excess_cm3', 'cm⁻³'),
-  generation_cm3s: optionalNumber('generation_cm3s', 'cm⁻³·s⁻¹'),
+  generation_cm3_s: optionalNumber('generation_cm3_s', 'cm⁻³·s⁻¹'),
   lifetime_s: optionalNumber('lifetime_s', 's'),
-  tempK: requiredNumber('tempK', 'K'),
+  temp_k: requiredNumber('temp_k', 'K'),
 });
 export type BandDiagramInput = z.input<typeof bandDiagramSchema>;
 export type BandDiagramRequest = z.output<typeof bandDiagramSchema>;
@@ -45,7 +45,7 @@ export const TRANSLATION_METHOD_LABELS: Record<TranslationMethod, string> = {
   'iec60891-2': 'IEC 60891 procedure 2',
 };
 
-const COEFFICIENT_KEYS = ['alpha_A_per_K', 'beta_V_per_K', 'alpha_rel_per_K', 'beta_rel_per_K', 'rs_ohm', 'kappa_ohm_per_K', 'a_irradiance', 'alpha_isc_A_per_K'] as const;
+const COEFFICIENT_KEYS = ['alpha_a_per_k', 'beta_v_per_k', 'alpha_rel_per_k', 'beta_rel_per_k', 'rs_ohm', 'kappa_ohm_per_k', 'a_irradiance', 'alpha_isc_a_per_k'] as const;
 
 /**
  * Every coefficient a translation may take, with its label and unit for forms (from the key
@@ -58,9 +58,9 @@ export type TranslationCoefficient = keyof typeof TRANSLATION_COEFFICIENTS;
 
 /** Coefficients each method uses; `required` ones must be given. */
 export const METHOD_COEFFICIENTS: Record<TranslationMethod, { required: TranslationCoefficient[]; optional: TranslationCoefficient[] }> = {
-  'iec60891-1': { required: ['alpha_A_per_K', 'beta_V_per_K', 'rs_ohm', 'kappa_ohm_per_K'], optional: [] },
-  'iec60891-2': { required: ['alpha_rel_per_K', 'beta_rel_per_K', 'rs_ohm', 'kappa_ohm_per_K', 'a_irradiance'], optional: [] },
-  model: { required: [], optional: ['alpha_isc_A_per_K'] },
+  'iec60891-1': { required: ['alpha_a_per_k', 'beta_v_per_k', 'rs_ohm', 'kappa_ohm_per_k'], optional: [] },
+  'iec60891-2': { required: ['alpha_rel_per_k', 'beta_rel_per_k', 'rs_ohm', 'kappa_ohm_per_k', 'a_irradiance'], optional: [] },
+  model: { required: [], optional: ['alpha_isc_a_per_k'] },
 };
 
 const coefficientFields = Object.fromEntries(
@@ -76,12 +76,12 @@ export const translateSchema = z
     method: z.enum(TRANSLATION_METHODS, { message: 'method must be model, iec60891-1 or iec60891-2.' }),
     to: z.object(
       {
-        irradiance_Wm2: requiredNumber('to.irradiance_Wm2', 'W/m²'),
-        tempC: requiredNumber('to.tempC', '°C'),
+        irradiance_w_m2: requiredNumber('to.irradiance_w_m2', 'W/m²'),
+        temp_c: requiredNumber('to.temp_c', '°C'),
       },
-      { message: 'the target conditions (irradiance_Wm2 and tempC) are required' },
+      { message: 'the target conditions (irradiance_w_m2 and temp_c) are required' },
     ),
-    i0Law: z.enum(['desoto', 'ni-power']).optional(),
+    i0_law: z.enum(['desoto', 'ni-power']).optional(),
     ...coefficientFields,
   })
   .superRefine((v, ctx) => {

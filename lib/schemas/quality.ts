@@ -3,22 +3,22 @@ import { z } from 'zod';
 import { specInputSchema } from '@/lib/quality/spec';
 
 /**
- * A new spec, or (with familyId) a new version of an existing one; `base_version` is the version
+ * A new spec, or (with family_id) a new version of an existing one; `base_version` is the version
  * the edit started from, so a save on top of someone else's newer version is refused (409).
  */
 export const specSaveSchema = specInputSchema
   .extend({
-    familyId: z.string().min(1).optional(),
+    family_id: z.string().min(1).optional(),
     base_version: z.number({ message: 'Say which version this edit started from.' }).int().min(1).optional(),
   })
-  .refine((s) => !s.familyId || s.base_version != null, { message: 'Say which version this edit started from.', path: ['base_version'] });
+  .refine((s) => !s.family_id || s.base_version != null, { message: 'Say which version this edit started from.', path: ['base_version'] });
 
 export const submitSchema = z.object({ comment: z.string().trim().max(2000).optional() });
 
 export const decisionSchema = z
   .object({
     decision: z.enum(['release', 'hold'], { message: 'decision must be "release" or "hold".' }),
-    specId: z.string().min(1, 'Choose the spec version the batch was judged against.'),
+    spec_id: z.string().min(1, 'Choose the spec version the batch was judged against.'),
     comment: z.string().trim().max(2000).optional().default(''),
   })
   .refine((d) => d.decision !== 'hold' || d.comment.length > 0, { message: 'Say why the batch is held.', path: ['comment'] });

@@ -27,9 +27,9 @@ export function specFormOf(s?: Spec): SpecForm {
     name: s?.name ?? '',
     notes: s?.notes ?? '',
     limits: Object.fromEntries(PARAM_KEYS.map((k) => [k, { min: limitToForm(k, s?.limits?.[k]?.min), max: limitToForm(k, s?.limits?.[k]?.max) }])),
-    step: s?.powerClasses?.step_w != null ? String(s.powerClasses.step_w) : '',
-    basis: s?.powerClasses?.basis ?? 'stc_pmp_w',
-    flags: s?.failFlags ?? ['step', 'fit-failed'],
+    step: s?.power_classes?.step_w != null ? String(s.power_classes.step_w) : '',
+    basis: s?.power_classes?.basis ?? 'stc_pmp_w',
+    flags: s?.fail_flags ?? ['step', 'fit-failed'],
   };
 }
 

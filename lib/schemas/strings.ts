@@ -26,52 +26,46 @@ const optId = z
 
 export const stringSizeSchema = z
   .object({
-    batchId: optId,
-    curveId: optId,
-    vocStc_V: optNumber('Voc at STC (V)'),
-    betaVoc_pct_per_K: optNumber('Voc coefficient (%/K)'),
-    tMin_C: reqNumber('Record low temperature (°C)', {}, 'Enter the site’s record low ambient temperature in °C.'),
-    tCellMax_C: optNumber('Hottest cell temperature (°C)'),
-    vSys_V: reqNumber('System voltage limit (V)', {}, 'Enter the system voltage limit in V DC (1000, 1500 or another rating).'),
-    mppWindow: z
-      .object({ min_V: optNumber('MPP window minimum (V)'), max_V: optNumber('MPP window maximum (V)') })
-      .optional()
-      .nullable(),
-    vmpStc_V: optNumber('Vmp at STC (V)'),
-    betaVmp_pct_per_K: optNumber('Vmp coefficient (%/K)'),
+    batch_id: optId,
+    curve_id: optId,
+    voc_stc_v: optNumber('Voc at STC (V)'),
+    beta_voc_pct_per_k: optNumber('Voc coefficient (%/K)'),
+    t_min_c: reqNumber('Record low temperature (°C)', {}, 'Enter the site’s record low ambient temperature in °C.'),
+    t_cell_max_c: optNumber('Hottest cell temperature (°C)'),
+    v_sys_v: reqNumber('System voltage limit (V)', {}, 'Enter the system voltage limit in V DC (1000, 1500 or another rating).'),
+    mpp_window_min_v: optNumber('MPP window minimum (V)'),
+    mpp_window_max_v: optNumber('MPP window maximum (V)'),
+    vmp_stc_v: optNumber('Vmp at STC (V)'),
+    beta_vmp_pct_per_k: optNumber('Vmp coefficient (%/K)'),
   })
   .transform((v, ctx) => {
-    if (v.batchId && v.curveId) {
-      ctx.addIssue({ code: 'custom', path: ['curveId'], message: 'Give a batch or one curve, not both.' });
+    if (v.batch_id && v.curve_id) {
+      ctx.addIssue({ code: 'custom', path: ['curve_id'], message: 'Give a batch or one curve, not both.' });
       return z.NEVER;
     }
-    const lo = v.mppWindow?.min_V;
-    const hi = v.mppWindow?.max_V;
-    if ((lo === undefined) !== (hi === undefined)) {
-      ctx.addIssue({ code: 'custom', path: ['mppWindow', lo === undefined ? 'min_V' : 'max_V'], message: 'Give both ends of the MPP window, or neither.' });
+    if ((v.mpp_window_min_v === undefined) !== (v.mpp_window_max_v === undefined)) {
+      ctx.addIssue({ code: 'custom', path: [v.mpp_window_min_v === undefined ? 'mpp_window_min_v' : 'mpp_window_max_v'], message: 'Give both ends of the MPP window, or neither.' });
       return z.NEVER;
     }
-    const { mppWindow: _window, ...rest } = v;
-    return { ...rest, mppWindow: lo === undefined || hi === undefined ? undefined : { min_V: lo, max_V: hi } };
+    return v;
   });
 
 /** The request's field names as the /strings form labels them (quantities from the key table). */
 export const STRING_FIELD_LABELS: Record<string, string> = {
   ...Object.fromEntries(
-    ['vocStc_V', 'betaVoc_pct_per_K', 'tMin_C', 'tCellMax_C', 'vSys_V', 'mppWindow.min_V', 'mppWindow.max_V', 'vmpStc_V', 'betaVmp_pct_per_K'].map((k) => [k, labelOf(k)]),
+    ['voc_stc_v', 'beta_voc_pct_per_k', 't_min_c', 't_cell_max_c', 'v_sys_v', 'mpp_window_min_v', 'mpp_window_max_v', 'vmp_stc_v', 'beta_vmp_pct_per_k'].map((k) => [k, labelOf(k)]),
   ),
-  mppWindow: 'MPP window',
-  batchId: 'Batch',
-  curveId: 'Curve',
+  batch_id: 'Batch',
+  curve_id: 'Curve',
 };
 
 /**
- * A sizing message for people reading the form: the API's field names (tMin_C, …) become the
+ * A sizing message for people reading the form: the API's field names (t_min_c, …) become the
  * form's labels. The API itself keeps the field names, which is what a script needs.
  */
 export function sizingMessageForForm(message: string): string {
   const names = Object.keys(STRING_FIELD_LABELS).sort((a, b) => b.length - a.length);
-  const pattern = new RegExp(`\\b(${names.map((n) => n.replace('.', '\\.')).join('|')})\\b`, 'g');
+  const pattern = new RegExp(`\\b(${names.join('|')})\\b`, 'g');
   return message.replace(pattern, (m) => STRING_FIELD_LABELS[m] ?? m);
 }
 
@@ -81,7 +75,7 @@ export type StringSizeInput = z.input<typeof stringSizeSchema>;
 export type StringSizeRequest = z.output<typeof stringSizeSchema>;
 
 /** A point of the measured Voc(T) line: the mean Voc of the curves at one cell temperature. */
-export type MeasuredPoint = { tempC: number; voc_V: number; curves: number };
+export type MeasuredPoint = { temp_c: number; voc_v: number; curves: number };
 
 /** Where a temperature coefficient came from. */
 export type CoefficientSource =
@@ -90,7 +84,7 @@ export type CoefficientSource =
       kind: 'measured';
       /** The points the straight line went through. */
       points: MeasuredPoint[];
-      span_K: number;
+      span_k: number;
       r2: number;
       rule: string;
       warnings: string[];
@@ -99,10 +93,10 @@ export type CoefficientSource =
       kind: 'model';
       /** Temperature law of I0 used (lib/physics vocTempCoefficient). */
       law: 'ni-power';
-      lawText: string;
-      deviceId: string;
-      curveId: string;
-      fitTempC: number;
+      law_text: string;
+      device_id: string;
+      curve_id: string;
+      fit_temp_c: number;
       cells: number;
       /** Why no measured coefficient was used, when the batch had curves at several temperatures. */
       note: string | null;
@@ -113,14 +107,14 @@ export type ModuleSource =
   | { kind: 'entered' }
   | {
       kind: 'batch' | 'curve';
-      deviceId: string;
-      curveId: string;
+      device_id: string;
+      curve_id: string;
       /** The value used, V. */
-      value_V: number;
+      value_v: number;
       /** Curves with STC figures that were compared. */
       modules: number;
       /** Their mean, V (to show how far the worst case is from it). */
-      mean_V: number;
+      mean_v: number;
       note: string;
     };
 
@@ -128,23 +122,24 @@ export type ModuleSource =
 export type StringSizeResponse = StringSizingResult & {
   /** The values the sizing used, after the batch's were filled in and the request's applied. */
   inputs: {
-    vocStc_V: number;
-    betaVoc_pct_per_K: number;
-    tMin_C: number;
-    tCellMax_C: number | null;
-    vSys_V: number;
-    vmpStc_V: number | null;
-    betaVmp_pct_per_K: number | null;
-    mppWindow: { min_V: number; max_V: number } | null;
+    voc_stc_v: number;
+    beta_voc_pct_per_k: number;
+    t_min_c: number;
+    t_cell_max_c: number | null;
+    v_sys_v: number;
+    vmp_stc_v: number | null;
+    beta_vmp_pct_per_k: number | null;
+    mpp_window_min_v: number | null;
+    mpp_window_max_v: number | null;
   };
   source: {
     batch: { id: string; name: string } | null;
     /** The module the sizing is based on: the batch's highest Voc at STC (worst case), or entered. */
     module: ModuleSource;
-    betaVoc: CoefficientSource;
+    beta_voc: CoefficientSource;
     /** Vmp at STC: the batch's lowest (the worst case for the MPP window's minimum), or entered. */
-    vmpStc: ModuleSource | null;
-    betaVmp: CoefficientSource | null;
+    vmp_stc: ModuleSource | null;
+    beta_vmp: CoefficientSource | null;
   };
   /** HV_CAUTION.short: the caution travels with the numbers. */
   caution: string;

@@ -6,9 +6,9 @@
 /** The usual extra-low-voltage touch limit for DC, in volts (common practice; codes differ). */
 export const ELV_LIMIT_V = 60;
 
-/** True when |voltage_V| exceeds the extra-low-voltage limit and should be highlighted. */
-export function isAboveElv(voltage_V: number): boolean {
-  return Number.isFinite(voltage_V) && Math.abs(voltage_V) > ELV_LIMIT_V;
+/** True when |voltage_v| exceeds the extra-low-voltage limit and should be highlighted. */
+export function isAboveElv(voltage_v: number): boolean {
+  return Number.isFinite(voltage_v) && Math.abs(voltage_v) > ELV_LIMIT_V;
 }
 
 export type Caution = { title: string; bullets: readonly string[]; short: string };

@@ -27,18 +27,18 @@ export const MODEL_LAW_TEXT =
 /** What sizing needs of one stored curve. */
 export type CurveFacts = {
   id: string;
-  deviceId: string;
-  tempC: number | null;
-  irradiance_Wm2: number | null;
+  device_id: string;
+  temp_c: number | null;
+  irradiance_w_m2: number | null;
   cells: number | null;
-  voc_V: number;
-  vmp_V: number;
-  stcVoc_V: number | null;
-  stcVmp_V: number | null;
+  voc_v: number;
+  vmp_v: number;
+  stc_voc_v: number | null;
+  stc_vmp_v: number | null;
 };
 
 /** A curve's fitted model moved to 25 °C and 1000 W/m², with the conditions it was fitted at. */
-export type StcModel = { p25: SingleDiodeParams; fitTempC: number; cells: number };
+export type StcModel = { p25: SingleDiodeParams; fit_temp_c: number; cells: number };
 
 /** Rounds to 1 µV (or 1e-6 of any unit): exact enough, and free of binary noise in JSON. */
 export const r6 = (x: number): number => Math.round(x * 1e6) / 1e6;
@@ -49,30 +49,30 @@ const finite = (x: unknown): x is number => typeof x === 'number' && Number.isFi
 /** The facts of a stored curve (its metadata, measured and STC figures); unusable values become null. */
 export function curveFacts(x: {
   id: string;
-  deviceId: string;
-  meta: { tempC?: number; irradiance_Wm2?: number; cells?: number };
+  device_id: string;
+  meta: { temp_c?: number; irradiance_w_m2?: number; cells?: number };
   voc_v: number;
   metrics: { vmp_v: number };
   stc: { voc_v: number; vmp_v: number } | null;
 }): CurveFacts {
   return {
     id: x.id,
-    deviceId: x.deviceId,
-    tempC: finite(x.meta.tempC) ? x.meta.tempC : null,
-    irradiance_Wm2: finite(x.meta.irradiance_Wm2) ? x.meta.irradiance_Wm2 : null,
+    device_id: x.device_id,
+    temp_c: finite(x.meta.temp_c) ? x.meta.temp_c : null,
+    irradiance_w_m2: finite(x.meta.irradiance_w_m2) ? x.meta.irradiance_w_m2 : null,
     cells: finite(x.meta.cells) && x.meta.cells >= 1 ? x.meta.cells : null,
-    voc_V: x.voc_v,
-    vmp_V: x.metrics.vmp_v,
-    stcVoc_V: x.stc && finite(x.stc.voc_v) && x.stc.voc_v > 0 ? x.stc.voc_v : null,
-    stcVmp_V: x.stc && finite(x.stc.vmp_v) && x.stc.vmp_v > 0 ? x.stc.vmp_v : null,
+    voc_v: x.voc_v,
+    vmp_v: x.metrics.vmp_v,
+    stc_voc_v: x.stc && finite(x.stc.voc_v) && x.stc.voc_v > 0 ? x.stc.voc_v : null,
+    stc_vmp_v: x.stc && finite(x.stc.vmp_v) && x.stc.vmp_v > 0 ? x.stc.vmp_v : null,
   };
 }
 
 /** The single-diode parameters of a fit moved to STC (25 °C, 1000 W/m²) by the n_i law, or null. */
-export function paramsAtStc(params: SingleDiodeParams, cells: number, fitTempC: number, irradiance_Wm2: number): SingleDiodeParams | null {
+export function paramsAtStc(params: SingleDiodeParams, cells: number, fit_temp_c: number, irradiance_w_m2: number): SingleDiodeParams | null {
   try {
-    const p = paramsAtTemperature(params, STC.tempC, { cells, fitTempC });
-    return { ...p, iph_a: (p.iph_a * STC.irradiance_Wm2) / irradiance_Wm2 };
+    const p = paramsAtTemperature(params, STC.temp_c, { cells, fit_temp_c });
+    return { ...p, iph_a: (p.iph_a * STC.irradiance_w_m2) / irradiance_w_m2 };
   } catch (err) {
     if (err instanceof PhysicsError) return null;
     throw err;
@@ -83,21 +83,21 @@ export function paramsAtStc(params: SingleDiodeParams, cells: number, fitTempC: 
  * The STC model of a curve's current single-diode fit, or null when it did not converge. The fit's
  * own conditions win over the curve's metadata (`fallback`); irradiance defaults to 1000 W/m².
  */
-export function stcModelOf(fits: { result: FitResult; conditions: Record<string, unknown> }[], fallback: { tempC: number | null; cells: number; irradiance_Wm2: number | null }): StcModel | null {
+export function stcModelOf(fits: { result: FitResult; conditions: Record<string, unknown> }[], fallback: { temp_c: number | null; cells: number; irradiance_w_m2: number | null }): StcModel | null {
   const params = singleParams(fits.map((r) => r.result));
   if (!params) return null;
-  const cond = fits[0].conditions as { tempC?: unknown; cells?: unknown; irradiance_Wm2?: unknown };
-  const fitTempC = finite(cond.tempC) ? cond.tempC : (fallback.tempC ?? STC.tempC);
+  const cond = fits[0].conditions as { temp_c?: unknown; cells?: unknown; irradiance_w_m2?: unknown };
+  const fit_temp_c = finite(cond.temp_c) ? cond.temp_c : (fallback.temp_c ?? STC.temp_c);
   const cells = finite(cond.cells) && cond.cells >= 1 ? cond.cells : fallback.cells;
-  const g = finite(cond.irradiance_Wm2) && cond.irradiance_Wm2 > 0 ? cond.irradiance_Wm2 : (fallback.irradiance_Wm2 ?? STC.irradiance_Wm2);
-  const p25 = paramsAtStc(params, cells, fitTempC, g);
-  return p25 ? { p25, fitTempC, cells } : null;
+  const g = finite(cond.irradiance_w_m2) && cond.irradiance_w_m2 > 0 ? cond.irradiance_w_m2 : (fallback.irradiance_w_m2 ?? STC.irradiance_w_m2);
+  const p25 = paramsAtStc(params, cells, fit_temp_c, g);
+  return p25 ? { p25, fit_temp_c, cells } : null;
 }
 
 /** Relative Voc coefficient of a model at 25 °C, %/K (n_i law), or null when the physics refuses. */
 export function modelBetaVoc(p25: SingleDiodeParams, cells: number): number | null {
   try {
-    const b = vocTempCoefficient(p25, { cells, tempC: STC.tempC }).beta_pct_per_K;
+    const b = vocTempCoefficient(p25, { cells, temp_c: STC.temp_c }).beta_pct_per_k;
     return finite(b) ? b : null;
   } catch (err) {
     if (err instanceof PhysicsError) return null;
@@ -108,9 +108,9 @@ export function modelBetaVoc(p25: SingleDiodeParams, cells: number): number | nu
 /** Relative Vmp coefficient of a model at 25 °C, %/K: central difference over ±0.5 K with the n_i law. */
 export function modelBetaVmp(p25: SingleDiodeParams, cells: number): number | null {
   try {
-    const at = (t: number) => circuitFigures(singleDiodeCircuit(paramsAtTemperature(p25, t, { cells, fitTempC: STC.tempC })), cells, t).vmp_v;
-    const v25 = at(STC.tempC);
-    const slope = (at(STC.tempC + 0.5) - at(STC.tempC - 0.5)) / 1;
+    const at = (t: number) => circuitFigures(singleDiodeCircuit(paramsAtTemperature(p25, t, { cells, fit_temp_c: STC.temp_c })), cells, t).vmp_v;
+    const v25 = at(STC.temp_c);
+    const slope = (at(STC.temp_c + 0.5) - at(STC.temp_c - 0.5)) / 1;
     const beta = (100 * slope) / v25;
     return Number.isFinite(beta) && v25 > 0 ? beta : null;
   } catch (err) {
@@ -120,85 +120,85 @@ export function modelBetaVmp(p25: SingleDiodeParams, cells: number): number | nu
 }
 
 /** Batch-mean values per cell temperature, when the rule above says they make a measurement. */
-export function measuredPoints(curves: readonly CurveFacts[], pick: (c: CurveFacts) => number): { points: MeasuredPoint[]; span_K: number } {
+export function measuredPoints(curves: readonly CurveFacts[], pick: (c: CurveFacts) => number): { points: MeasuredPoint[]; span_k: number } {
   const groups = new Map<number, { sum: number; n: number }>();
   for (const c of curves) {
-    if (c.tempC === null || !finite(c.tempC)) continue;
-    if (c.irradiance_Wm2 !== null && (c.irradiance_Wm2 < IRRADIANCE_BAND_WM2.min || c.irradiance_Wm2 > IRRADIANCE_BAND_WM2.max)) continue;
+    if (c.temp_c === null || !finite(c.temp_c)) continue;
+    if (c.irradiance_w_m2 !== null && (c.irradiance_w_m2 < IRRADIANCE_BAND_WM2.min || c.irradiance_w_m2 > IRRADIANCE_BAND_WM2.max)) continue;
     const v = pick(c);
     if (!finite(v) || v <= 0) continue;
-    const t = Math.round(c.tempC * 10) / 10;
+    const t = Math.round(c.temp_c * 10) / 10;
     const g = groups.get(t) ?? { sum: 0, n: 0 };
     g.sum += v;
     g.n += 1;
     groups.set(t, g);
   }
-  const points = [...groups.entries()].sort((a, b) => a[0] - b[0]).map(([tempC, g]) => ({ tempC, voc_V: g.sum / g.n, curves: g.n }));
-  const span_K = points.length ? points[points.length - 1].tempC - points[0].tempC : 0;
-  return { points, span_K };
+  const points = [...groups.entries()].sort((a, b) => a[0] - b[0]).map(([temp_c, g]) => ({ temp_c, voc_v: g.sum / g.n, curves: g.n }));
+  const span_k = points.length ? points[points.length - 1].temp_c - points[0].temp_c : 0;
+  return { points, span_k };
 }
 
 /** Whether measured points make a coefficient: two or more temperatures spanning MEASURED_MIN_SPAN_K. */
-export function spansEnough(m: { points: MeasuredPoint[]; span_K: number }): boolean {
-  return m.points.length >= 2 && m.span_K >= MEASURED_MIN_SPAN_K;
+export function spansEnough(m: { points: MeasuredPoint[]; span_k: number }): boolean {
+  return m.points.length >= 2 && m.span_k >= MEASURED_MIN_SPAN_K;
 }
 
 /** The measured coefficient through the points (%/K) and its source; `of` names the voltage in the rule's text. */
 export function measuredCoefficient(m: { points: MeasuredPoint[] }, of: 'Voc' | 'Vmp'): { beta: number; source: CoefficientSource; warnings: string[] } {
-  const fit = betaVocFromMeasurements(m.points.map((p) => ({ tempC: p.tempC, voc_v: p.voc_V })));
+  const fit = betaVocFromMeasurements(m.points.map((p) => ({ temp_c: p.temp_c, voc_v: p.voc_v })));
   const warnings = of === 'Voc' ? fit.warnings : [];
   return {
-    beta: fit.betaVoc_pct_per_K,
-    source: { kind: 'measured', points: m.points.map((p) => ({ ...p, voc_V: r6(p.voc_V) })), span_K: r6(fit.span_K), r2: r6(fit.r2), rule: of === 'Voc' ? MEASURED_RULE : MEASURED_RULE.replace(/Voc/g, 'Vmp'), warnings },
+    beta: fit.beta_voc_pct_per_k,
+    source: { kind: 'measured', points: m.points.map((p) => ({ ...p, voc_v: r6(p.voc_v) })), span_k: r6(fit.span_k), r2: r6(fit.r2), rule: of === 'Voc' ? MEASURED_RULE : MEASURED_RULE.replace(/Voc/g, 'Vmp'), warnings },
     warnings,
   };
 }
 
 /** The source of a coefficient taken from a curve's model. */
-export function modelSource(m: StcModel, of: { id: string; deviceId: string }, note: string | null = null): CoefficientSource {
-  return { kind: 'model', law: 'ni-power', lawText: MODEL_LAW_TEXT, deviceId: of.deviceId, curveId: of.id, fitTempC: m.fitTempC, cells: m.cells, note };
+export function modelSource(m: StcModel, of: { id: string; device_id: string }, note: string | null = null): CoefficientSource {
+  return { kind: 'model', law: 'ni-power', law_text: MODEL_LAW_TEXT, device_id: of.device_id, curve_id: of.id, fit_temp_c: m.fit_temp_c, cells: m.cells, note };
 }
 
 /** Voc at STC for sizing: the highest of the curves with STC figures (worst case), or null when none has one. */
-export function highestVocStc(withStc: readonly CurveFacts[], mode: 'batch' | 'curve'): { voc_V: number; source: ModuleSource } | null {
+export function highestVocStc(withStc: readonly CurveFacts[], mode: 'batch' | 'curve'): { voc_v: number; source: ModuleSource } | null {
   if (!withStc.length) return null;
-  const w = worstModule(withStc.map((x) => ({ deviceId: x.deviceId, voc_v: x.stcVoc_V })));
+  const w = worstModule(withStc.map((x) => ({ device_id: x.device_id, voc_v: x.stc_voc_v })));
   const top = withStc[w.index];
   return {
-    voc_V: w.voc_v,
+    voc_v: w.voc_v,
     source: {
       kind: mode,
-      deviceId: top.deviceId,
-      curveId: top.id,
-      value_V: r6(w.voc_v),
+      device_id: top.device_id,
+      curve_id: top.id,
+      value_v: r6(w.voc_v),
       modules: w.count,
-      mean_V: r6(w.mean_voc_v),
-      note: mode === 'batch' ? w.note : `Sized on the one curve chosen (${top.deviceId}, Voc ${r6(w.voc_v)} V at STC).`,
+      mean_v: r6(w.mean_voc_v),
+      note: mode === 'batch' ? w.note : `Sized on the one curve chosen (${top.device_id}, Voc ${r6(w.voc_v)} V at STC).`,
     },
   };
 }
 
 /** Vmp at STC for the least modules: the lowest of the curves (not the mean), or null when none has one. */
-export function lowestVmpStc(curves: readonly CurveFacts[], mode: 'batch' | 'curve'): { vmp_V: number; source: ModuleSource } | null {
-  const withVmp = curves.filter((x) => x.stcVmp_V !== null);
+export function lowestVmpStc(curves: readonly CurveFacts[], mode: 'batch' | 'curve'): { vmp_v: number; source: ModuleSource } | null {
+  const withVmp = curves.filter((x) => x.stc_vmp_v !== null);
   if (!withVmp.length) return null;
   let low = withVmp[0];
-  for (const x of withVmp) if ((x.stcVmp_V as number) < (low.stcVmp_V as number)) low = x;
-  const mean = withVmp.reduce((s, x) => s + (x.stcVmp_V as number), 0) / withVmp.length;
-  const vmp = low.stcVmp_V as number;
+  for (const x of withVmp) if ((x.stc_vmp_v as number) < (low.stc_vmp_v as number)) low = x;
+  const mean = withVmp.reduce((s, x) => s + (x.stc_vmp_v as number), 0) / withVmp.length;
+  const vmp = low.stc_vmp_v as number;
   return {
-    vmp_V: vmp,
+    vmp_v: vmp,
     source: {
       kind: mode,
-      deviceId: low.deviceId,
-      curveId: low.id,
-      value_V: r6(vmp),
+      device_id: low.device_id,
+      curve_id: low.id,
+      value_v: r6(vmp),
       modules: withVmp.length,
-      mean_V: r6(mean),
+      mean_v: r6(mean),
       note:
         withVmp.length > 1
-          ? `The least modules use the lowest Vmp at STC of ${withVmp.length} modules (${low.deviceId}, ${round3(vmp)} V), not the mean (${round3(mean)} V), so that a string reaches the MPP window even if every module were as low.`
-          : `Vmp at STC of ${low.deviceId}.`,
+          ? `The least modules use the lowest Vmp at STC of ${withVmp.length} modules (${low.device_id}, ${round3(vmp)} V), not the mean (${round3(mean)} V), so that a string reaches the MPP window even if every module were as low.`
+          : `Vmp at STC of ${low.device_id}.`,
     },
   };
 }

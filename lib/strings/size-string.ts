@@ -17,39 +17,41 @@ export const TEMP_RANGE_C = { min: -60, max: 100 } as const;
 
 export type StringSizingInput = {
   /** Open-circuit voltage of one module at STC, V (use the batch's highest, see worstModule). */
-  vocStc_V: number;
+  voc_stc_v: number;
   /** Relative Voc temperature coefficient, %/K (negative for silicon, ≈ −0.3 %/K). */
-  betaVoc_pct_per_K: number;
+  beta_voc_pct_per_k: number;
   /** Site's record low ambient temperature, °C (cells sit at ambient at first light). */
-  tMin_C: number;
+  t_min_c: number;
   /** Highest expected cell temperature, °C (needed for the least modules). */
-  tCellMax_C?: number;
+  t_cell_max_c?: number;
   /** Maximum system voltage: the lower of the modules' and the inverter's rating, V DC. */
-  vSys_V: number;
+  v_sys_v: number;
   /** MPP voltage of one module at STC, V. */
-  vmpStc_V?: number;
+  vmp_stc_v?: number;
   /** Relative Vmp temperature coefficient, %/K. */
-  betaVmp_pct_per_K?: number;
-  /** Inverter MPP-tracking window, V. */
-  mppWindow?: { min_V: number; max_V: number };
+  beta_vmp_pct_per_k?: number;
+  /** Inverter MPP-tracking window, bottom, V (give both ends or neither). */
+  mpp_window_min_v?: number;
+  /** Inverter MPP-tracking window, top, V. */
+  mpp_window_max_v?: number;
 };
 
 export type StringSizingResult = {
   /** One module's Voc at T_min, V. */
   voc_max_per_module_v: number;
-  /** Most modules in series whose cold Voc stays at or below vSys_V. */
+  /** Most modules in series whose cold Voc stays at or below v_sys_v. */
   max_modules: number;
   /** max_modules · voc_max_per_module_v, V. */
   string_voc_max_v: number;
-  /** vSys_V − string_voc_max_v, V. */
+  /** v_sys_v − string_voc_max_v, V. */
   margin_v: number;
-  /** margin_v as % of vSys_V. */
+  /** margin_v as % of v_sys_v. */
   margin_pct: number;
   /** Least modules whose hot Vmp stays at or above the MPP window's minimum. */
   min_modules?: number;
-  /** One module's Vmp at tCellMax_C, V. */
+  /** One module's Vmp at t_cell_max_c, V. */
   vmp_min_per_module_v?: number;
-  /** One module's Vmp at tMin_C, V. */
+  /** One module's Vmp at t_min_c, V. */
   vmp_max_per_module_v?: number;
   /** Most modules whose cold Vmp stays within the MPP window's maximum. */
   max_modules_mpp?: number;
@@ -82,11 +84,11 @@ function temperature(name: string, v: unknown, what: string): number {
 }
 
 /** The factor 1 + β/100·(T − 25 °C); throws when the coefficient would make the voltage ≤ 0. */
-function tempFactor(name: string, beta_pct_per_K: number, tempC: number): number {
-  const f = 1 + (beta_pct_per_K / 100) * (tempC - STC.tempC);
+function tempFactor(name: string, beta_pct_per_k: number, temp_c: number): number {
+  const f = 1 + (beta_pct_per_k / 100) * (temp_c - STC.temp_c);
   if (!(f > 0)) {
     throw new StringSizingError(
-      `${name} = ${beta_pct_per_K} %/K at ${tempC} °C gives a voltage ≤ 0: the coefficient must be in %/K (silicon ≈ −0.3 %/K)`,
+      `${name} = ${beta_pct_per_k} %/K at ${temp_c} °C gives a voltage ≤ 0: the coefficient must be in %/K (silicon ≈ −0.3 %/K)`,
     );
   }
   return f;
@@ -104,18 +106,18 @@ const ceilRatio = (x: number): number => Math.ceil(x * (1 - 1e-12));
 export function sizeString(input: StringSizingInput): StringSizingResult {
   if (!input || typeof input !== 'object') throw new StringSizingError('string sizing needs an input object');
   const warnings: string[] = [];
-  const vocStc = required('vocStc_V', input.vocStc_V, "the module's open-circuit voltage at STC in V");
-  if (vocStc <= 0) throw new StringSizingError(`vocStc_V is ${vocStc} V: an open-circuit voltage must be above 0 V`);
-  const beta = required('betaVoc_pct_per_K', input.betaVoc_pct_per_K, 'the Voc temperature coefficient in %/K (silicon ≈ −0.3 %/K)');
-  const tMin = temperature('tMin_C', input.tMin_C, "the site's record low temperature in °C");
-  const vSys = required('vSys_V', input.vSys_V, 'the maximum system voltage in V DC (e.g. 1000 or 1500)');
-  if (vSys <= 0) throw new StringSizingError(`vSys_V is ${vSys} V: the system voltage limit must be above 0 V`);
+  const vocStc = required('voc_stc_v', input.voc_stc_v, "the module's open-circuit voltage at STC in V");
+  if (vocStc <= 0) throw new StringSizingError(`voc_stc_v is ${vocStc} V: an open-circuit voltage must be above 0 V`);
+  const beta = required('beta_voc_pct_per_k', input.beta_voc_pct_per_k, 'the Voc temperature coefficient in %/K (silicon ≈ −0.3 %/K)');
+  const tMin = temperature('t_min_c', input.t_min_c, "the site's record low temperature in °C");
+  const vSys = required('v_sys_v', input.v_sys_v, 'the maximum system voltage in V DC (e.g. 1000 or 1500)');
+  if (vSys <= 0) throw new StringSizingError(`v_sys_v is ${vSys} V: the system voltage limit must be above 0 V`);
   const tCellMax =
-    input.tCellMax_C === undefined || input.tCellMax_C === null
+    input.t_cell_max_c === undefined || input.t_cell_max_c === null
       ? undefined
-      : temperature('tCellMax_C', input.tCellMax_C, 'the highest cell temperature in °C');
+      : temperature('t_cell_max_c', input.t_cell_max_c, 'the highest cell temperature in °C');
   if (tCellMax !== undefined && tCellMax < tMin) {
-    throw new StringSizingError(`tCellMax_C (${tCellMax} °C) is below tMin_C (${tMin} °C): the two look swapped`);
+    throw new StringSizingError(`t_cell_max_c (${tCellMax} °C) is below t_min_c (${tMin} °C): the two look swapped`);
   }
 
   if (beta > 0) {
@@ -128,12 +130,12 @@ export function sizeString(input: StringSizingInput): StringSizingResult {
   } else if (beta < -1) {
     warnings.push(`The Voc coefficient ${beta} %/K is unusually large in magnitude (silicon ≈ −0.3 %/K): check it is in %/K, not mV/K.`);
   }
-  if (tMin > STC.tempC) {
-    warnings.push(`tMin_C is ${tMin} °C, above 25 °C: check that it is the site's record low, not an average.`);
+  if (tMin > STC.temp_c) {
+    warnings.push(`t_min_c is ${tMin} °C, above 25 °C: check that it is the site's record low, not an average.`);
   }
-  if (vSys > 1500) warnings.push(`vSys_V is ${vSys} V, above the 1500 V DC that PV equipment is usually rated for.`);
+  if (vSys > 1500) warnings.push(`v_sys_v is ${vSys} V, above the 1500 V DC that PV equipment is usually rated for.`);
 
-  const vocMax = vocStc * tempFactor('betaVoc_pct_per_K', beta, tMin);
+  const vocMax = vocStc * tempFactor('beta_voc_pct_per_k', beta, tMin);
   if (vocMax > vSys) {
     throw new StringSizingError(
       `The system voltage limit (${vSys} V) is below one module's cold-weather Voc (${round3(vocMax)} V at ${tMin} °C): ` +
@@ -156,35 +158,34 @@ export function sizeString(input: StringSizingInput): StringSizingResult {
     warnings,
   };
 
-  const wantsMpp = input.mppWindow !== undefined && input.mppWindow !== null;
-  const hasVmp = input.vmpStc_V !== undefined && input.vmpStc_V !== null;
+  const wantsMpp = input.mpp_window_min_v != null || input.mpp_window_max_v != null;
+  const hasVmp = input.vmp_stc_v !== undefined && input.vmp_stc_v !== null;
   if (wantsMpp || hasVmp) {
-    const need = wantsMpp ? 'the least modules for the MPP window need' : 'vmpStc_V needs';
-    const vmpStc = required('vmpStc_V', input.vmpStc_V, `the module's MPP voltage at STC in V (${need} it)`);
+    const need = wantsMpp ? 'the least modules for the MPP window need' : 'vmp_stc_v needs';
+    const vmpStc = required('vmp_stc_v', input.vmp_stc_v, `the module's MPP voltage at STC in V (${need} it)`);
     if (vmpStc <= 0 || vmpStc >= vocStc) {
-      throw new StringSizingError(`vmpStc_V is ${vmpStc} V: it must lie between 0 V and vocStc_V (${vocStc} V)`);
+      throw new StringSizingError(`vmp_stc_v is ${vmpStc} V: it must lie between 0 V and voc_stc_v (${vocStc} V)`);
     }
     const betaVmp = required(
-      'betaVmp_pct_per_K',
-      input.betaVmp_pct_per_K,
+      'beta_vmp_pct_per_k',
+      input.beta_vmp_pct_per_k,
       `the Vmp temperature coefficient in %/K, silicon ≈ −0.4 %/K (${need} it)`,
     );
     if (betaVmp > 0) {
       warnings.push(`The Vmp coefficient is positive (${betaVmp} %/K); silicon's Vmp falls with temperature. Check the sign.`);
     }
-    const vmpMax = vmpStc * tempFactor('betaVmp_pct_per_K', betaVmp, tMin);
+    const vmpMax = vmpStc * tempFactor('beta_vmp_pct_per_k', betaVmp, tMin);
     result.vmp_max_per_module_v = vmpMax;
     if (tCellMax === undefined) {
-      if (wantsMpp) throw new StringSizingError('tCellMax_C is missing: enter the highest cell temperature in °C (the least modules for the MPP window need it)');
+      if (wantsMpp) throw new StringSizingError('t_cell_max_c is missing: enter the highest cell temperature in °C (the least modules for the MPP window need it)');
     } else {
-      result.vmp_min_per_module_v = vmpStc * tempFactor('betaVmp_pct_per_K', betaVmp, tCellMax);
+      result.vmp_min_per_module_v = vmpStc * tempFactor('beta_vmp_pct_per_k', betaVmp, tCellMax);
     }
     if (wantsMpp) {
-      const w = input.mppWindow!;
-      const lo = required('mppWindow.min_V', w.min_V, "the inverter's lowest MPP voltage in V");
-      const hi = required('mppWindow.max_V', w.max_V, "the inverter's highest MPP voltage in V");
+      const lo = required('mpp_window_min_v', input.mpp_window_min_v, "the inverter's lowest MPP voltage in V");
+      const hi = required('mpp_window_max_v', input.mpp_window_max_v, "the inverter's highest MPP voltage in V");
       if (lo <= 0 || hi <= lo) {
-        throw new StringSizingError(`mppWindow ${lo}–${hi} V is not a window: need 0 < min_V < max_V`);
+        throw new StringSizingError(`MPP window ${lo}–${hi} V is not a window: need 0 < mpp_window_min_v < mpp_window_max_v`);
       }
       if (hi > vSys) warnings.push(`The MPP window's maximum (${hi} V) is above the system voltage limit (${vSys} V).`);
       const minModules = Math.max(1, ceilRatio(lo / result.vmp_min_per_module_v!));
@@ -211,10 +212,10 @@ function round3(x: number): number {
   return Math.round(x * 1000) / 1000;
 }
 
-export type ModuleVoc = { deviceId: string; voc_v: number | null | undefined };
+export type ModuleVoc = { device_id: string; voc_v: number | null | undefined };
 
 export type WorstModule = {
-  deviceId: string;
+  device_id: string;
   /** Highest Voc in the batch, V (at the conditions the caller supplied, normally STC). */
   voc_v: number;
   /** Position in the input list. */
@@ -231,7 +232,7 @@ export type WorstModule = {
  * not the mean, because every module in a string could be as high as the highest one measured.
  */
 export function worstModule(modules: readonly ModuleVoc[]): WorstModule {
-  if (!Array.isArray(modules)) throw new StringSizingError('worstModule needs an array of { deviceId, voc_v }');
+  if (!Array.isArray(modules)) throw new StringSizingError('worstModule needs an array of { device_id, voc_v }');
   let best = -1;
   let sum = 0;
   let count = 0;
@@ -239,7 +240,7 @@ export function worstModule(modules: readonly ModuleVoc[]): WorstModule {
     const v = m?.voc_v;
     if (v === undefined || v === null) return;
     if (typeof v !== 'number' || !Number.isFinite(v) || v <= 0) {
-      throw new StringSizingError(`module ${i} ("${m.deviceId}"): voc_v is ${String(v)}, not a positive number of volts`);
+      throw new StringSizingError(`module ${i} ("${m.device_id}"): voc_v is ${String(v)}, not a positive number of volts`);
     }
     sum += v;
     count += 1;
@@ -250,30 +251,30 @@ export function worstModule(modules: readonly ModuleVoc[]): WorstModule {
   const mean = sum / count;
   const voc = top.voc_v as number;
   return {
-    deviceId: top.deviceId,
+    device_id: top.device_id,
     voc_v: voc,
     index: best,
     count,
     mean_voc_v: mean,
     note:
-      `Sized on the highest-Voc module of ${count} (${top.deviceId}, ${round3(voc)} V), not the batch mean ` +
+      `Sized on the highest-Voc module of ${count} (${top.device_id}, ${round3(voc)} V), not the batch mean ` +
       `(${round3(mean)} V), so that no module in the string exceeds the voltage used here.`,
   };
 }
 
-export type VocTempPoint = { tempC: number; voc_v: number };
+export type VocTempPoint = { temp_c: number; voc_v: number };
 
 export type MeasuredBeta = {
   /** Relative coefficient (dVoc/dT)/Voc(25 °C)·100, %/K. */
-  betaVoc_pct_per_K: number;
+  beta_voc_pct_per_k: number;
   /** Least-squares slope dVoc/dT, V/K. */
-  slope_V_per_K: number;
+  slope_v_per_k: number;
   /** Fitted Voc at 25 °C, V. */
-  vocAt25_V: number;
+  voc_at_25_v: number;
   /** Coefficient of determination of the straight line. */
   r2: number;
-  n: number;
-  span_K: number;
+  points: number;
+  span_k: number;
   warnings: string[];
 };
 
@@ -287,32 +288,32 @@ export function betaVocFromMeasurements(points: readonly VocTempPoint[]): Measur
     throw new StringSizingError('the Voc coefficient needs curves at two or more temperatures');
   }
   points.forEach((p, i) => {
-    if (!Number.isFinite(p?.tempC) || p.tempC < TEMP_RANGE_C.min || p.tempC > TEMP_RANGE_C.max) {
-      throw new StringSizingError(`points[${i}].tempC is ${String(p?.tempC)}: need a cell temperature within −60…+100 °C`);
+    if (!Number.isFinite(p?.temp_c) || p.temp_c < TEMP_RANGE_C.min || p.temp_c > TEMP_RANGE_C.max) {
+      throw new StringSizingError(`points[${i}].temp_c is ${String(p?.temp_c)}: need a cell temperature within −60…+100 °C`);
     }
     if (!Number.isFinite(p.voc_v) || p.voc_v <= 0) {
       throw new StringSizingError(`points[${i}].voc_v is ${String(p.voc_v)}: need a positive voltage`);
     }
   });
   const n = points.length;
-  const tm = points.reduce((s, p) => s + p.tempC, 0) / n;
+  const tm = points.reduce((s, p) => s + p.temp_c, 0) / n;
   const vm = points.reduce((s, p) => s + p.voc_v, 0) / n;
   let stt = 0;
   let stv = 0;
   let svv = 0;
   for (const p of points) {
-    stt += (p.tempC - tm) ** 2;
-    stv += (p.tempC - tm) * (p.voc_v - vm);
+    stt += (p.temp_c - tm) ** 2;
+    stv += (p.temp_c - tm) * (p.voc_v - vm);
     svv += (p.voc_v - vm) ** 2;
   }
-  const span = Math.max(...points.map((p) => p.tempC)) - Math.min(...points.map((p) => p.tempC));
+  const span = Math.max(...points.map((p) => p.temp_c)) - Math.min(...points.map((p) => p.temp_c));
   if (!(stt > 0)) throw new StringSizingError('all curves are at the same temperature: no coefficient can be measured');
   const slope = stv / stt;
-  const voc25 = vm + slope * (STC.tempC - tm);
+  const voc25 = vm + slope * (STC.temp_c - tm);
   const warnings: string[] = [];
   if (span < 10) warnings.push(`The temperatures span only ${round3(span)} K: the coefficient is uncertain (aim for 20 K or more).`);
   const r2 = svv > 0 ? (stv * stv) / (stt * svv) : 1;
   const beta = (100 * slope) / voc25;
   if (beta > 0) warnings.push(`The measured Voc rises with temperature (${round3(beta)} %/K): check the temperature records.`);
-  return { betaVoc_pct_per_K: beta, slope_V_per_K: slope, vocAt25_V: voc25, r2, n, span_K: span, warnings };
+  return { beta_voc_pct_per_k: beta, slope_v_per_k: slope, voc_at_25_v: voc25, r2, points: n, span_k: span, warnings };
 }

@@ -65,8 +65,8 @@ export function batchesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Ro
    * POST /api/batches/:id/curves — multipart upload, field `files` (one or many). Each file is
    * read and fitted on its own (on the analysis threads): a rejected file stores nothing and the
    * others go on; accepted curves are stored whole, up to 25 to a transaction.
-   * Form fields tempC, irradiance_Wm2, cells, area_cm2 override every file's metadata;
-   * onDuplicate = ask (default: a device already in the batch is refused) | replace | keep.
+   * Form fields temp_c, irradiance_w_m2, cells, area_cm2 override every file's metadata;
+   * on_duplicate = ask (default: a device already in the batch is refused) | replace | keep.
    */
   r.post(
     '/:id/curves',

@@ -22,15 +22,15 @@ export function physicsRouter(db: Db): Router {
   const r = Router();
 
   /**
-   * GET /api/physics/material?tempK= — n_i, Eg, Nc, Nv of silicon at tempK (300 K when omitted;
+   * GET /api/physics/material?temp_k= — n_i, Eg, Nc, Nv of silicon at temp_k (300 K when omitted;
    * keys as `ni --json`), the Altermatt et al. (2003) reference, and n_i over 200–400 K for a chart.
    */
   r.get('/material', requirePermission('physics:use'), (req, res) => {
-    res.json(material(materialQuerySchema.parse(req.query).tempK));
+    res.json(material(materialQuerySchema.parse(req.query).temp_k));
   });
 
   /**
-   * POST /api/physics/band-diagram — { type, doping_cm3, excess_cm3 | generation_cm3s + lifetime_s, tempK }:
+   * POST /api/physics/band-diagram — { type, doping_cm3, excess_cm3 | generation_cm3_s + lifetime_s, temp_k }:
    * Ec, Ev, Ei, E_F, E_Fn, E_Fp (eV from E_i) with Fermi–Dirac statistics, the Boltzmann result
    * beside it (splitting, implied Voc and their difference) and the occupation curves f(E).
    */
@@ -49,7 +49,7 @@ export function physicsRouter(db: Db): Router {
 
   /**
    * POST /api/physics/curves/:id/translate — { method: model | iec60891-1 | iec60891-2, to:
-   * { irradiance_Wm2, tempC }, coefficients… }: the curve moved to the target conditions, its key
+   * { irradiance_w_m2, temp_c }, coefficients… }: the curve moved to the target conditions, its key
    * figures beside the measured ones, and the translated curve (≤ 200 points).
    */
   r.post('/curves/:id/translate', requirePermission('physics:use'), validate(translateSchema), async (req, res) => {

@@ -69,7 +69,7 @@ export function reviewsRouter(db: Db, mailer: Mailer): Router {
   });
 
   /**
-   * POST /api/batches/:id/decision { decision: 'release'|'hold', specId, comment } — the QA lead's
+   * POST /api/batches/:id/decision { decision: 'release'|'hold', spec_id, comment } — the QA lead's
    * decision, recorded with the spec version and the pass/fail counts; the submitter is e-mailed.
    * A release needs a comment when a device fails (400), is refused to the batch's submitter or
    * uploaders (403 same_person) and writes the release record; the batch becomes read-only.

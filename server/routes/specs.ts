@@ -20,8 +20,8 @@ export function specsRouter(db: Db): Router {
   });
 
   /**
-   * POST /api/specs { name, limits: { <key>: { min?, max? } }, powerClasses?, failFlags?, notes?, familyId? }
-   * — saves a new spec (version 1) or, with familyId, the next version of that spec. Returns it with id and version.
+   * POST /api/specs { name, limits: { <key>: { min?, max? } }, power_classes?, fail_flags?, notes?, family_id? }
+   * — saves a new spec (version 1) or, with family_id, the next version of that spec. Returns it with id and version.
    */
   r.post('/', requirePermission('spec:write'), validate(specSaveSchema), async (req, res) => {
     const c = callerOf(req);

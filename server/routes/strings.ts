@@ -22,7 +22,7 @@ export function stringsRouter(db: Db): Router {
   r.post('/size', requirePermission('physics:use'), validate(stringSizeSchema), async (req, res) => {
     const c = callerOf(req);
     const body = req.body as StringSizeRequest;
-    if ((body.batchId || body.curveId) && !can(c.role, 'batch:read')) {
+    if ((body.batch_id || body.curve_id) && !can(c.role, 'batch:read')) {
       throw new HttpError(403, 'forbidden', `Your role (${c.role}) may not read batches: it needs batch:read. Type the module's values instead.`);
     }
     res.json(await sizeStringFor(db, c.organization.id, body));

@@ -67,7 +67,7 @@ export function batchReads(db: Db, answers = new AnswerCache()) {
           found.set(b.id, a);
         }
       }
-      return { batches: rows.map((b) => batchJson(b, { curveCount: found.get(b.id)!.curves, meanPmp_w: found.get(b.id)!.meanPmp })) };
+      return { batches: rows.map((b) => batchJson(b, { curve_count: found.get(b.id)!.curves, mean_pmp_w: found.get(b.id)!.meanPmp })) };
     });
   }
 
@@ -85,9 +85,9 @@ export function batchReads(db: Db, answers = new AnswerCache()) {
         const v = pick(col);
         stats[key] = v.length ? describeValues(v) : null;
       }
-      const flagCounts: Record<string, number> = {};
-      for (const x of rows) for (const f of x.flags.split(' ').filter(Boolean)) flagCounts[f] = (flagCounts[f] ?? 0) + 1;
-      return batchJson(b, { curveCount: rows.length, summary: stats, flagCounts });
+      const flag_counts: Record<string, number> = {};
+      for (const x of rows) for (const f of x.flags.split(' ').filter(Boolean)) flag_counts[f] = (flag_counts[f] ?? 0) + 1;
+      return batchJson(b, { curve_count: rows.length, summary: stats, flag_counts });
     });
   }
 
@@ -106,10 +106,10 @@ export function batchReads(db: Db, answers = new AnswerCache()) {
         .from(curve)
         .where(where)
         .orderBy(q.dir === 'asc' ? sql`${sortCol} asc nulls last` : sql`${sortCol} desc nulls last`, asc(curve.id))
-        .limit(q.pageSize)
-        .offset((q.page - 1) * q.pageSize);
+        .limit(q.page_size)
+        .offset((q.page - 1) * q.page_size);
       const fits = await fitsFor(db, rows.map((x) => x.id), true, false);
-      return { curves: rows.map((x) => curveJson(x, fits.get(x.id) ?? [], false)), total, page: q.page, pageSize: q.pageSize };
+      return { curves: rows.map((x) => curveJson(x, fits.get(x.id) ?? [], false)), total, page: q.page, page_size: q.page_size };
     });
   }
 
@@ -122,7 +122,7 @@ export function batchReads(db: Db, answers = new AnswerCache()) {
       const chosen = Array.from({ length: Math.min(most, ids.length) }, (_, k) => ids[Math.floor(k * step)].id);
       const rows = chosen.length
         ? await db
-            .select({ id: curve.id, deviceId: curve.deviceId, v: curve.voltage_V, i: curve.current_A, flags: curve.flagCodes })
+            .select({ id: curve.id, deviceId: curve.deviceId, v: curve.voltage_v, i: curve.current_a, flags: curve.flagCodes })
             .from(curve)
             .where(sql`${curve.id} in ${chosen}`)
         : [];
@@ -132,7 +132,7 @@ export function batchReads(db: Db, answers = new AnswerCache()) {
         sampled: rows.length,
         curves: rows.map((x) => {
           const k = Math.max(1, Math.ceil(x.v.length / 80));
-          return { id: x.id, device_id: x.deviceId, flagged: x.flags.length > 0, voltage_V: thin(x.v, k), current_A: thin(x.i, k) };
+          return { id: x.id, device_id: x.deviceId, flagged: x.flags.length > 0, voltage_v: thin(x.v, k), current_a: thin(x.i, k) };
         }),
       };
     });

@@ -6,6 +6,7 @@ import { and, eq } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { batch } from '@/db/schema';
 import type { batchCreateSchema, batchUpdateSchema } from '@/lib/schemas/curves';
+import type { BatchOut } from '@/lib/schemas/responses';
 import { HttpError, notFound } from '@/server/errors';
 import { touchBatch } from '@/server/services/answer-cache';
 
@@ -32,23 +33,23 @@ export async function loadWritableBatch(db: Db, organizationId: string, id: stri
 }
 
 /** The API shape of a batch, with extra fields (counts, summary) after its own. */
-export function batchJson(b: BatchRow, extra: Record<string, unknown> = {}) {
+export function batchJson(b: BatchRow, extra: Partial<Pick<BatchOut, 'curve_count' | 'mean_pmp_w' | 'summary' | 'flag_counts'>> = {}): BatchOut {
   return {
     id: b.id,
     name: b.name,
-    productType: b.productType,
+    product_type: b.product_type,
     supplier: b.supplier,
     line: b.line,
     lot: b.lot,
-    batchDate: b.batchDate,
+    batch_date: b.batch_date,
     cells: b.cells,
     area_cm2: b.area_cm2,
     nameplate_w: b.nameplate_w,
     description: b.description,
     archived: b.archived,
-    state: b.state,
-    createdAt: b.createdAt,
-    updatedAt: b.updatedAt,
+    state: b.state as BatchOut['state'],
+    created_at: b.createdAt,
+    updated_at: b.updatedAt,
     ...extra,
   };
 }

@@ -35,11 +35,11 @@ type BatchPart = {
 function batchPart(list: DeviceRow[], spec: Spec | null): BatchPart {
   if (spec) {
     // Outliers depend on the parameter chosen: marked per request with robustZOn and kept in the part.
-    const e = evaluateBatch(list, spec, { outlierParams: [] });
-    const rows: CompareRowInput[] = e.devices.map((d, k) => ({ curveId: list[k].curveId, deviceId: d.deviceId, values: d.values, flags: d.flags, result: d.result, reasons: d.reasons.map((x) => x.message), powerClass: d.powerClass }));
+    const e = evaluateBatch(list, spec, { outlier_params: [] });
+    const rows: CompareRowInput[] = e.devices.map((d, k) => ({ curve_id: list[k].curve_id, device_id: d.device_id, values: d.values, flags: d.flags, result: d.result, reasons: d.reasons.map((x) => x.message), power_class: d.power_class }));
     return { json: Buffer.from(JSON.stringify(columnsOfRows(rows))), stats: e.stats, counts: { total: e.counts.total, pass: e.counts.pass, fail: e.counts.fail }, outliers: { list, byParam: new Map() } };
   }
-  const rows: CompareRowInput[] = list.map((d) => ({ curveId: d.curveId, deviceId: d.deviceId, values: d.values, flags: d.flags, result: null, reasons: [], powerClass: null }));
+  const rows: CompareRowInput[] = list.map((d) => ({ curve_id: d.curve_id, device_id: d.device_id, values: d.values, flags: d.flags, result: null, reasons: [], power_class: null }));
   const columns = columnsOfRows(rows);
   const stats: Partial<Record<ParamKey, Description | null>> = {};
   for (const k of PARAM_KEYS) {
@@ -112,9 +112,9 @@ export function comparisons(db: Db) {
       const differences = found.slice(1).map((b) => {
         const bb = values(b.id);
         try {
-          return { batchA: first.id, batchB: b.id, param, ...welchDifference(a, bb, 0.95, { nameA: first.name, nameB: b.name, param, unit: PARAM_UNITS[param] }) };
+          return { batch_a: first.id, batch_b: b.id, param, ...welchDifference(a, bb, 0.95, { nameA: first.name, nameB: b.name, param, unit: PARAM_UNITS[param] }) };
         } catch (err) {
-          return { batchA: first.id, batchB: b.id, param, error: (err as Error).message };
+          return { batch_a: first.id, batch_b: b.id, param, error: (err as Error).message };
         }
       });
 

@@ -21,7 +21,7 @@ type CurveRow = typeof curve.$inferSelect;
 type FitRow = typeof fit.$inferSelect;
 
 /** Which curve a comparison record is of. */
-export type CurveKey = { id: string; batchId: string; deviceId: string };
+export type CurveKey = { id: string; batch_id: string; device_id: string };
 
 /**
  * A curve's comparison record as stored in `curve.record` (the fields and their order:
@@ -31,9 +31,9 @@ export type CurveKey = { id: string; batchId: string; deviceId: string };
 export function comparisonRecord(key: CurveKey, a: Pick<FileAnalysis, 'curve' | 'metrics'>, d: ReturnType<typeof derivedColumns>): string {
   const meta = a.curve.meta;
   return encodeComparisonRecord({
-    curveId: key.id,
-    batchId: key.batchId,
-    deviceId: key.deviceId,
+    curve_id: key.id,
+    batch_id: key.batch_id,
+    device_id: key.device_id,
     metrics: a.metrics,
     cells: meta.cells ?? null,
     area_cm2: meta.area_cm2 ?? null,
@@ -93,7 +93,7 @@ export async function storeCurves(db: Db, target: { organizationId: string; batc
     if (replaced.length) await tx.delete(curve).where(and(inArray(curve.id, replaced), eq(curve.batchId, target.batchId)));
     await tx.insert(curve).values(
       items.map(({ id, fileName, analysis: a, fileSha256 }) => {
-        const deviceId = a.curve.meta.deviceId ?? fileName;
+        const deviceId = a.curve.meta.device_id ?? fileName;
         const derived = derivedColumns(a);
         return {
           id,
@@ -102,8 +102,8 @@ export async function storeCurves(db: Db, target: { organizationId: string; batc
           deviceId,
           fileName,
           meta: a.curve.meta,
-          voltage_V: a.curve.voltage_V,
-          current_A: a.curve.current_A,
+          voltage_v: a.curve.voltage_v,
+          current_a: a.curve.current_a,
           notes: a.curve.notes,
           metrics: a.metrics,
           flags: a.flags,
@@ -112,7 +112,7 @@ export async function storeCurves(db: Db, target: { organizationId: string; batc
           createdAt: nextStamp(),
           file_sha256: fileSha256 ?? null,
           ...derived,
-          record: comparisonRecord({ id, batchId: target.batchId, deviceId }, a, derived),
+          record: comparisonRecord({ id, batch_id: target.batchId, device_id: deviceId }, a, derived),
         };
       }),
     );
@@ -149,7 +149,7 @@ export function fitSummary(f: FitResult): FitSummary {
 }
 
 /** The API shape of a curve (CLI vocabulary: metrics.isc_a, fits[].rs_ohm, …). */
-export function curveJson(c: CurveRow | Omit<CurveRow, 'voltage_V' | 'current_A' | 'notes'>, fits: FitRow[], detail: boolean) {
+export function curveJson(c: CurveRow | Omit<CurveRow, 'voltage_v' | 'current_a' | 'notes'>, fits: FitRow[], detail: boolean) {
   const current = fits.filter((f) => f.current).sort((a, b) => a.model.localeCompare(b.model)).reverse();
   return {
     id: c.id,
@@ -164,7 +164,7 @@ export function curveJson(c: CurveRow | Omit<CurveRow, 'voltage_V' | 'current_A'
     created_at: c.createdAt,
     ...(detail
       ? {
-          points: { voltage_V: (c as CurveRow).voltage_V, current_A: (c as CurveRow).current_A },
+          points: { voltage_v: (c as CurveRow).voltage_v, current_a: (c as CurveRow).current_a },
           notes: (c as CurveRow).notes,
           history: fits
             .slice()
@@ -186,7 +186,7 @@ export function curveJson(c: CurveRow | Omit<CurveRow, 'voltage_V' | 'current_A'
 
 /** Curve columns for lists: everything but the measured points. */
 export const curveListColumns = (() => {
-  const { voltage_V: _v, current_A: _i, notes: _n, ...rest } = getTableColumns(curve);
+  const { voltage_v: _v, current_a: _i, notes: _n, ...rest } = getTableColumns(curve);
   return rest;
 })();
 
@@ -235,7 +235,7 @@ export async function refitCurve(db: Db, analyser: Analyser, who: { organization
   assertWritable(b);
   const meta: CurveMeta = { ...row.meta };
   const changed: string[] = [];
-  for (const k of ['tempC', 'irradiance_Wm2', 'cells', 'area_cm2'] as const) {
+  for (const k of ['temp_c', 'irradiance_w_m2', 'cells', 'area_cm2'] as const) {
     const v = body[k];
     if (v != null && v !== meta[k]) {
       meta[k] = v;
@@ -243,7 +243,7 @@ export async function refitCurve(db: Db, analyser: Analyser, who: { organization
     }
   }
   const models = body.model === 'both' ? (['single', 'double'] as const) : ([body.model] as const);
-  const outcome = await analyser.analyse({ curve: { voltage_V: row.voltage_V, current_A: row.current_A, meta, notes: row.notes }, idealities: body.idealities, models: [...models] });
+  const outcome = await analyser.analyse({ curve: { voltage_v: row.voltage_v, current_a: row.current_a, meta, notes: row.notes }, idealities: body.idealities, models: [...models] });
   if (!outcome.ok) {
     if (outcome.kind === 'input') throw new HttpError(422, outcome.code, outcome.message);
     throw new Error(`refit failed: ${outcome.message}`);
@@ -260,7 +260,7 @@ export async function refitCurve(db: Db, analyser: Analyser, who: { organization
     // Re-read every current fit so the derived columns use the single-diode fit even when only the double was redone.
     const current = await tx.select().from(fit).where(and(eq(fit.curveId, row.id), eq(fit.current, true)));
     const cols = derivedColumns({ ...analysis, fits: current.map((x) => x.result) });
-    const record = comparisonRecord({ id: row.id, batchId: row.batchId, deviceId: row.deviceId }, analysis, cols);
+    const record = comparisonRecord({ id: row.id, batch_id: row.batchId, device_id: row.deviceId }, analysis, cols);
     await tx.update(curve).set({ meta, metrics: analysis.metrics, flags: analysis.flags, stc: analysis.stc ?? row.stc, ...cols, record }).where(eq(curve.id, row.id));
     // The batch changed: answers cached against its revision must be computed again.
     await touchBatch(tx, row.batchId);

@@ -23,9 +23,9 @@ async function currentFits(db: Db, curveId: string): Promise<CurrentFits> {
   return { single: fits.find((f) => f.model === 'single-diode'), double: fits.find((f) => f.model === 'double-diode') };
 }
 
-/** Silicon at tempK with the reference value and the n_i series. */
-export function material(tempK: number) {
-  return finiteOnly(materialReport(tempK));
+/** Silicon at temp_k with the reference value and the n_i series. */
+export function material(temp_k: number) {
+  return finiteOnly(materialReport(temp_k));
 }
 
 /** The band diagram with Fermi–Dirac and Boltzmann statistics side by side. */

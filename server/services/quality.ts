@@ -17,9 +17,9 @@ export type DeviceRow = ComparisonDevice;
  * lib/quality/comparison-record.ts, joined in its order.
  */
 const RECORD_FROM_COLUMNS: Record<ComparisonRecordField, SQL> = {
-  curveId: sql`${curve.id}`,
-  batchId: sql`${curve.batchId}`,
-  deviceId: sql`${curve.deviceId}`,
+  curve_id: sql`${curve.id}`,
+  batch_id: sql`${curve.batchId}`,
+  device_id: sql`${curve.deviceId}`,
   metrics: sql`${curve.metrics}`,
   cells: sql`(${curve.meta}->>'cells')::int`,
   area_cm2: sql`(${curve.meta}->>'area_cm2')::float8`,

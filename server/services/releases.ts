@@ -21,10 +21,10 @@ export type ReleaseRow = typeof batchRelease.$inferSelect;
 export const sha256 = (data: string | Uint8Array) => createHash('sha256').update(data).digest('hex');
 
 /**
- * SHA-256 of a curve's measured points as stored: the UTF-8 JSON of `[voltage_V, current_A]`
+ * SHA-256 of a curve's measured points as stored: the UTF-8 JSON of `[voltage_v, current_a]`
  * (JavaScript's shortest round-trip numbers), so the same points always give the same hash.
  */
-export const pointsSha256 = (voltage_V: number[], current_A: number[]) => sha256(JSON.stringify([voltage_V, current_A]));
+export const pointsSha256 = (voltage_v: number[], current_a: number[]) => sha256(JSON.stringify([voltage_v, current_a]));
 
 /** Whether the organisation keeps release apart from submission and upload (on unless switched off). */
 export async function separatesRelease(db: Db | Tx, organizationId: string): Promise<boolean> {
@@ -55,16 +55,16 @@ const DEVICE_FIGURES = ['isc_a', 'voc_v', 'pmp_w', 'imp_a', 'vmp_v', 'ff', 'effi
  * SHA-256 of its points (and of its uploaded file when the upload was hashed).
  */
 export async function frozenDevices(db: Db, batchId: string, evaluation: BatchEvaluation, curveIds: string[]) {
-  const rows = await db.select({ id: curve.id, v: curve.voltage_V, i: curve.current_A, file: curve.file_sha256 }).from(curve).where(eq(curve.batchId, batchId));
+  const rows = await db.select({ id: curve.id, v: curve.voltage_v, i: curve.current_a, file: curve.file_sha256 }).from(curve).where(eq(curve.batchId, batchId));
   const byId = new Map(rows.map((r) => [r.id, r]));
   return evaluation.devices.map((d, k) => {
     const c = byId.get(curveIds[k]);
     return {
-      device_id: d.deviceId,
+      device_id: d.device_id,
       curve_id: curveIds[k],
       result: d.result,
       reasons: d.reasons.map((r) => r.message),
-      power_class: d.powerClass,
+      power_class: d.power_class,
       outlier: d.outlier,
       figures: Object.fromEntries(DEVICE_FIGURES.map((key) => [key, d.values[key] ?? null])),
       points_sha256: c ? pointsSha256(c.v, c.i) : null,

@@ -19,6 +19,7 @@ import type { BatchRow } from '@/server/services/batches';
 import { deviceRecords } from '@/server/services/quality';
 import { currentRevision, frozenDevices, latestRelease, releaseCheck, releaseIdsByReview, releasesOf, sha256 } from '@/server/services/releases';
 import { loadSpec } from '@/server/services/specs';
+import type { ReviewListOut } from '@/lib/schemas/responses';
 
 /** The parameters whose outliers an evaluation marks. */
 const OUTLIER_PARAMS = ['pmp_w', 'voc_v', 'isc_a', 'ff', 'rs_ohm'] as const;
@@ -29,7 +30,7 @@ const EXPORT_PARAMS = ['isc_a', 'voc_v', 'pmp_w', 'imp_a', 'vmp_v', 'ff', 'effic
 async function evaluate(db: Db, batchId: string, organizationId: string, specId: string) {
   const { row, spec } = await loadSpec(db, organizationId, specId);
   const devices = await deviceRecords(db, [batchId]);
-  const evaluation = evaluateBatch(devices, spec, { outlierParams: [...OUTLIER_PARAMS] });
+  const evaluation = evaluateBatch(devices, spec, { outlier_params: [...OUTLIER_PARAMS] });
   return { specRow: row, evaluation, devices };
 }
 
@@ -52,11 +53,11 @@ export async function batchEvaluation(db: Db, organizationId: string, batchId: s
   const { specRow, evaluation, devices } = await evaluate(db, b.id, organizationId, await specFor(db, b.id, specId));
   return {
     batch: batchJson(b),
-    spec: { id: specRow.id, name: specRow.name, version: specRow.version, familyId: specRow.familyId },
+    spec: { id: specRow.id, name: specRow.name, version: specRow.version, family_id: specRow.family_id },
     counts: counts(evaluation),
-    powerClassCounts: evaluation.powerClassCounts,
+    power_class_counts: evaluation.power_class_counts,
     stats: evaluation.stats,
-    devices: evaluation.devices.map((d, k) => ({ ...d, curveId: devices[k].curveId })),
+    devices: evaluation.devices.map((d, k) => ({ ...d, curve_id: devices[k].curve_id })),
   };
 }
 
@@ -90,7 +91,7 @@ export async function passFailExport(db: Db, organizationId: string, batchId: st
 export async function reviewHistory(db: Db, by: Caller, batchId: string) {
   const b = await loadBatch(db, by.organization.id, batchId);
   const rows = await db
-    .select({ id: batchReview.id, action: batchReview.action, specId: batchReview.specId, counts: batchReview.counts, comment: batchReview.comment, createdAt: batchReview.createdAt, actor: user.name, actorEmail: user.email })
+    .select({ id: batchReview.id, action: batchReview.action, spec_id: batchReview.specId, counts: batchReview.counts, comment: batchReview.comment, created_at: batchReview.createdAt, actor: user.name, actor_email: user.email })
     .from(batchReview)
     .leftJoin(user, eq(user.id, batchReview.actorId))
     .where(eq(batchReview.batchId, b.id))
@@ -100,7 +101,7 @@ export async function reviewHistory(db: Db, by: Caller, batchId: string) {
     reviews: rows.map((r) => ({ ...r, release_id: releaseIds.get(r.id) ?? null })),
     releases: await releasesOf(db, b.id),
     release_check: await releaseCheck(db, by.organization.id, b.id, by.user.id),
-  };
+  } satisfies ReviewListOut;
 }
 
 /** The mail to a QA lead when a batch is submitted for review. */
@@ -157,7 +158,7 @@ export async function submitBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
   if (!devices.length) throw new HttpError(409, 'batch_empty', 'Upload curves before submitting the batch for review.');
   const unfitted = devices.filter((d) => !d.fitted);
   if (unfitted.length) {
-    throw new HttpError(409, 'unfitted_curves', `${unfitted.length} curve(s) have no converged fit (${unfitted.slice(0, 5).map((d) => d.deviceId).join(', ')}${unfitted.length > 5 ? ', …' : ''}). Refit or remove them first.`);
+    throw new HttpError(409, 'unfitted_curves', `${unfitted.length} curve(s) have no converged fit (${unfitted.slice(0, 5).map((d) => d.device_id).join(', ')}${unfitted.length > 5 ? ', …' : ''}). Refit or remove them first.`);
   }
   await db.transaction(async (tx) => {
     await touchBatch(tx, b.id, { state: 'in_review' });
@@ -192,7 +193,7 @@ export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
     const check = await releaseCheck(db, by.organization.id, b.id, by.user.id);
     if (!check.allowed) throw new HttpError(403, check.code, check.message);
   }
-  const { specRow, evaluation, devices } = await evaluate(db, b.id, by.organization.id, body.specId);
+  const { specRow, evaluation, devices } = await evaluate(db, b.id, by.organization.id, body.spec_id);
   const unfitted = devices.filter((d) => !d.fitted);
   if (releasing && unfitted.length) {
     throw new HttpError(409, 'unfitted_curves', `${unfitted.length} curve(s) have no converged fit; the batch cannot be released.`);
@@ -202,7 +203,7 @@ export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
     throw new HttpError(400, 'comment_required', `comment: ${tally.fail} of ${tally.total} devices fail; write a comment saying why the batch is released anyway.`, { field: 'comment' });
   }
   const state = releasing ? 'released' : 'on_hold';
-  const frozen = releasing ? await frozenDevices(db, b.id, evaluation, devices.map((d) => d.curveId)) : [];
+  const frozen = releasing ? await frozenDevices(db, b.id, evaluation, devices.map((d) => d.curve_id)) : [];
   const csv = releasing ? passFailFile(b, specRow, evaluation, 'released') : null;
   const reviewId = crypto.randomUUID();
   await db.transaction(async (tx) => {

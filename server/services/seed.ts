@@ -68,11 +68,11 @@ const manifestSchema = z.array(
   z.object({
     slug: z.string(),
     name: z.string(),
-    productType: z.string().nullable().optional(),
+    product_type: z.string().nullable().optional(),
     supplier: z.string().nullable().optional(),
     line: z.string().nullable().optional(),
     lot: z.string().nullable().optional(),
-    batchDate: z.string().nullable().optional(),
+    batch_date: z.string().nullable().optional(),
     cells: z.number().int().nullable().optional(),
     area_cm2: z.number().nullable().optional(),
     nameplate_w: z.number().nullable().optional(),

@@ -13,6 +13,7 @@ import type { AnalysisOutcome, Analyser } from '@/server/services/analysis-pool'
 import { loadWritableBatch } from '@/server/services/batches';
 import { storeCurves } from '@/server/services/curves';
 import type { CurveToStore } from '@/server/services/curves';
+import type { UploadAnswerOut, UploadFileResult } from '@/lib/schemas/responses';
 
 /** Curves stored per transaction during an upload (measured: ~1 ms a curve in groups of 25, ~3.5 ms one by one). */
 export const STORE_GROUP = 25;
@@ -21,16 +22,15 @@ const TEXT_EXTENSIONS = /\.(csv|tsv|txt|dat|iv)$/i;
 /** One received file: its name as sent (UTF-8) and its bytes. */
 export type UploadedFile = { name: string; bytes: Uint8Array };
 
-export type UploadResult =
-  | { file: string; accepted: true; curveId: string; deviceId: string; replaced?: number }
-  | { file: string; accepted: false; error: string; code: string; deviceId?: string; line?: number };
+/** One file's answer (lib/schemas/responses.ts uploadResultSchema). */
+export type UploadResult = UploadFileResult;
 
-export type UploadAnswer = { results: UploadResult[]; accepted: number; rejected: number };
+export type UploadAnswer = UploadAnswerOut;
 
 /**
  * Reads, fits and stores the files in the batch. A rejected file stores nothing and the others go
  * on; accepted curves are stored whole, up to STORE_GROUP to a transaction. The overrides replace
- * every file's metadata; onDuplicate: ask (a device already in the batch is refused) | replace | keep.
+ * every file's metadata; on_duplicate: ask (a device already in the batch is refused) | replace | keep.
  */
 export async function uploadCurves(
   db: Db,
@@ -47,7 +47,7 @@ export async function uploadCurves(
   const byDevice = new Map<string, string[]>();
   for (const e of existing) byDevice.set(e.deviceId, [...(byDevice.get(e.deviceId) ?? []), e.id]);
 
-  const overrides = { tempC: opts.tempC ?? undefined, irradiance_Wm2: opts.irradiance_Wm2 ?? undefined, cells: opts.cells ?? undefined, area_cm2: opts.area_cm2 ?? undefined };
+  const overrides = { temp_c: opts.temp_c ?? undefined, irradiance_w_m2: opts.irradiance_w_m2 ?? undefined, cells: opts.cells ?? undefined, area_cm2: opts.area_cm2 ?? undefined };
   const jobs = files.map(({ name, bytes }) => {
     const job: { name: string; sha256?: string; outcome?: AnalysisOutcome; done?: Promise<unknown> } = { name };
     if (!TEXT_EXTENSIONS.test(name)) return job;
@@ -96,19 +96,19 @@ export async function uploadCurves(
       continue;
     }
     const analysis = outcome.analysis;
-    const deviceId = analysis.curve.meta.deviceId ?? name;
+    const deviceId = analysis.curve.meta.device_id ?? name;
     const already = byDevice.get(deviceId) ?? [];
-    if (already.length && opts.onDuplicate === 'ask') {
-      results.push({ file: name, accepted: false, code: 'duplicate', deviceId, error: `Device ${deviceId} is already in this batch. Upload again choosing to replace it or to keep both.` });
+    if (already.length && opts.on_duplicate === 'ask') {
+      results.push({ file: name, accepted: false, code: 'duplicate', device_id: deviceId, error: `Device ${deviceId} is already in this batch. Upload again choosing to replace it or to keep both.` });
       continue;
     }
-    const replaceIds = opts.onDuplicate === 'replace' ? already : [];
+    const replaceIds = opts.on_duplicate === 'replace' ? already : [];
     // A curve replacing one still waiting in the group: store that one first, as the upload's order says.
     if (replaceIds.some((id) => group.some((g) => g.id === id))) await flush();
     const curveId = crypto.randomUUID();
     group.push({ id: curveId, fileName: name, analysis, replaceIds, fileSha256: job.sha256 });
-    byDevice.set(deviceId, opts.onDuplicate === 'replace' ? [curveId] : [...already, curveId]);
-    results.push({ file: name, accepted: true, curveId, deviceId, ...(replaceIds.length ? { replaced: replaceIds.length } : {}) });
+    byDevice.set(deviceId, opts.on_duplicate === 'replace' ? [curveId] : [...already, curveId]);
+    results.push({ file: name, accepted: true, curve_id: curveId, device_id: deviceId, ...(replaceIds.length ? { replaced: replaceIds.length } : {}) });
     if (group.length >= STORE_GROUP) await flush();
   }
   await flush();

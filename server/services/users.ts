@@ -7,6 +7,8 @@ import { and, asc, desc, eq, isNull, ne } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { mailLog, member, session, user } from '@/db/schema';
 import type { Role } from '@/lib/auth/roles';
+import type { OutboxOut, UserListOut } from '@/lib/schemas/responses';
+import type { Auth } from '@/server/auth';
 import { HttpError } from '@/server/errors';
 import { recordAudit } from '@/server/services/audit';
 import type { Tx } from '@/server/services/audit';
@@ -15,14 +17,14 @@ import type { AdminActor } from '@/server/services/membership';
 /** Everyone in the organisation, by name. */
 export async function listUsers(db: Db, organizationId: string) {
   const rows = await db
-    .select({ id: user.id, name: user.name, email: user.email, role: member.role, memberId: member.id, joinedAt: member.createdAt, deactivatedAt: member.deactivatedAt })
+    .select({ id: user.id, name: user.name, email: user.email, role: member.role, member_id: member.id, joined_at: member.createdAt, deactivatedAt: member.deactivatedAt })
     .from(member)
     .innerJoin(user, eq(member.userId, user.id))
     .where(eq(member.organizationId, organizationId))
     .orderBy(asc(user.name));
   return {
-    users: rows.map(({ deactivatedAt, ...r }) => ({ ...r, active: !deactivatedAt, deactivated_at: deactivatedAt?.toISOString() ?? null })),
-  };
+    users: rows.map(({ deactivatedAt, ...r }) => ({ ...r, role: r.role as Role, active: !deactivatedAt, deactivated_at: deactivatedAt?.toISOString() ?? null })),
+  } satisfies UserListOut;
 }
 
 /** The member `userId` of the actor's organisation, or 404. */
@@ -92,5 +94,5 @@ export async function removeMember(db: Db, by: AdminActor, userId: string) {
 /** The last 200 messages sent for the organisation, newest first. */
 export async function outbox(db: Db, organizationId: string) {
   const rows = await db.select().from(mailLog).where(eq(mailLog.organizationId, organizationId)).orderBy(desc(mailLog.createdAt)).limit(200);
-  return { messages: rows };
+  return { messages: rows.map((m) => ({ id: m.id, to: m.to, subject: m.subject, body: m.body, kind: m.kind, transport: m.transport, file: m.file, created_at: m.createdAt })) } satisfies OutboxOut;
 }

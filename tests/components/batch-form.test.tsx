@@ -39,11 +39,11 @@ describe('BatchForm', () => {
     await waitFor(() => expect(onSubmit).toHaveBeenCalledTimes(1));
     expect(onSubmit.mock.calls[0][0]).toEqual({
       name: 'Line 2, lot 2611',
-      productType: null,
+      product_type: null,
       supplier: 'Supplier B',
       line: null,
       lot: null,
-      batchDate: '2025-11-14',
+      batch_date: '2025-11-14',
       cells: 60,
       area_cm2: 16600,
       nameplate_w: 405.5,
@@ -68,9 +68,9 @@ describe('BatchForm', () => {
 
   it('editing: starts from the batch, shows the server error under the form, and is busy while saving', () => {
     const initial: Batch = {
-      id: 'b1', name: 'Supplier A trial', productType: null, supplier: 'A', line: null, lot: null, batchDate: null,
+      id: 'b1', name: 'Supplier A trial', product_type: null, supplier: 'A', line: null, lot: null, batch_date: null,
       cells: 72, area_cm2: 25_000, nameplate_w: 550, description: null, archived: false, state: 'open',
-      createdAt: '2025-11-14T08:00:00Z', updatedAt: '2025-11-14T08:00:00Z',
+      created_at: '2025-11-14T08:00:00Z', updated_at: '2025-11-14T08:00:00Z',
     };
     const onSubmit = renderForm({ initial, busy: true, error: new ApiError(409, 'name_taken', 'A batch with that name already exists.'), onCancel: jest.fn() });
     expect(screen.getByTestId('batch-name')).toHaveDisplayValue('Supplier A trial');

@@ -45,9 +45,9 @@ describe('ChartFrame', () => {
 
 describe('IvChart on victory-native 36 / react-native-svg', () => {
   // Four points of the 57 mm reference cell (reference-data CSV, rounded).
-  const measured = { voltage_V: [0.0057, 0.2, 0.4, 0.5728], current_A: [0.7605, 0.755, 0.72, 0] };
-  const model = { voltage_V: [0, 0.3, 0.58], current_A: [0.76, 0.74, -0.01] };
-  const second = { voltage_V: [0, 0.3, 0.58], current_A: [0.761, 0.741, -0.011] };
+  const measured = { voltage_v: [0.0057, 0.2, 0.4, 0.5728], current_a: [0.7605, 0.755, 0.72, 0] };
+  const model = { voltage_v: [0, 0.3, 0.58], current_a: [0.76, 0.74, -0.01] };
+  const second = { voltage_v: [0, 0.3, 0.58], current_a: [0.761, 0.741, -0.011] };
 
   it('I-V mode: axes labelled with units and pinned to the plot edges, not crossing at 0 V', () => {
     render(<IvChart measured={measured} mpp={{ v: 0.45, i: 0.69 }} mode="iv" testID="chart" />);
@@ -93,7 +93,7 @@ describe('IvChart on victory-native 36 / react-native-svg', () => {
     expect(readout).toHaveTextContent(/Point at the I-V chart/);
     expect(readout.props['aria-live']).toBe('polite');
     // Touch 4 px right of where the third point (0.4 V, 0.72 A) is drawn.
-    const domain = domainOf([measured.voltage_V.map((v, k) => ({ x: v, y: measured.current_A[k] })), model.voltage_V.map((v, k) => ({ x: v, y: model.current_A[k] }))]);
+    const domain = domainOf([measured.voltage_v.map((v, k) => ({ x: v, y: measured.current_a[k] })), model.voltage_v.map((v, k) => ({ x: v, y: model.current_a[k] }))]);
     const at = toPixel({ width: 390, height: 260, padding: chartStyle.padding, domain }, { x: 0.4, y: 0.72 });
     act(() => {
       screen.getByTestId('chart-plot').props.onResponderGrant({ nativeEvent: { locationX: at.px + 4, locationY: at.py } });
@@ -111,7 +111,7 @@ describe('IvChart on victory-native 36 / react-native-svg', () => {
 });
 
 describe('OverlayChart', () => {
-  const curve = (id: string, flagged: boolean, scale: number) => ({ id, device_id: `DEV-${id}`, flagged, voltage_V: [0, 0.3, 0.6], current_A: [scale, scale * 0.95, 0] });
+  const curve = (id: string, flagged: boolean, scale: number) => ({ id, device_id: `DEV-${id}`, flagged, voltage_v: [0, 0.3, 0.6], current_a: [scale, scale * 0.95, 0] });
 
   it('colours only the flagged curves, and the legend counts exactly those', () => {
     const curves = [curve('1', false, 9), curve('2', true, 8.5), curve('3', false, 9.1), curve('4', true, 7), curve('5', true, 8.8), curve('6', false, 9.05)];

@@ -14,7 +14,7 @@ import { qualityKeys, specKeys, useComparison, useDecision, useReopen, useSaveSp
 import { sessionKeys, useRequestPasswordReset, useSignIn } from '@/lib/api/session';
 import { useCancelInvitation, useChangeRole, useDecideRequest, useInvite, useRemoveMember, useSetJoinByDomain, useSetMemberActive, userKeys } from '@/lib/api/users';
 
-const page = { page: 1, pageSize: 50, sort: 'device_id', dir: 'asc', q: '' } as const;
+const page = { page: 1, page_size: 50, sort: 'device_id', dir: 'asc', q: '' } as const;
 
 /** What a client may hold while someone works on batch b1 (curve c1 belongs to b1, curve c9 to another batch, b3). */
 const cached = {
@@ -105,7 +105,7 @@ const cases: Case[] = [
   },
   {
     what: 'a refit of curve c1 (of b1)',
-    run: (wrapper) => mutate(() => useRefit('c1'), { model: 'single', tempC: '50' }, wrapper),
+    run: (wrapper) => mutate(() => useRefit('c1'), { model: 'single', temp_c: '50' }, wrapper),
     stale: ['c1Physics', 'batchList', 'b1', 'b1Curves', 'b1Overlay', 'b1Evaluation', 'compareB1B2', 'compareB2B1NoSpec'],
     // The refit's answer is the curve itself: written into the cache rather than fetched again.
     fresh: ['c1', 'compareB3', 'b3', 'b3Evaluation', 'c9', 'c9Physics', 'specList', 'material'],
@@ -113,13 +113,13 @@ const cases: Case[] = [
   },
   {
     what: 'releasing b1',
-    run: (wrapper) => mutate(() => useDecision('b1'), { decision: 'release', specId: 's1', comment: '' }, wrapper),
+    run: (wrapper) => mutate(() => useDecision('b1'), { decision: 'release', spec_id: 's1', comment: '' }, wrapper),
     stale: [...batchData, 'b1Reviews', 'outbox'],
     fresh: ['compareB3', 'b3', 'b3Evaluation', 'c9', 'c9Physics', 'specList', 'material'],
   },
   {
     what: 'holding b1',
-    run: (wrapper) => mutate(() => useDecision('b1'), { decision: 'hold', specId: 's1', comment: 'Rs too high' }, wrapper),
+    run: (wrapper) => mutate(() => useDecision('b1'), { decision: 'hold', spec_id: 's1', comment: 'Rs too high' }, wrapper),
     stale: [...batchData, 'b1Reviews', 'outbox'],
     fresh: ['compareB3', 'b3', 'specList'],
   },
@@ -213,7 +213,7 @@ describe('mutations invalidate what they change', () => {
     // Seeded and fresh (staleTime Infinity): nothing fetched yet.
     expect(compareCalls()).toBe(0);
     await act(async () => {
-      await result.current.decide.mutateAsync({ decision: 'release', specId: 's1', comment: '' });
+      await result.current.decide.mutateAsync({ decision: 'release', spec_id: 's1', comment: '' });
     });
     await waitFor(() => expect(compareCalls()).toBe(1));
   });

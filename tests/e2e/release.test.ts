@@ -51,7 +51,7 @@ async function checkDialog(dialog: import('playwright-core').Locator) {
 }
 
 it('submit, judge, release at phone and wide width', async () => {
-  const batchName = 'KF-M60 line 2, lot 2611';
+  const batch_name = 'KF-M60 line 2, lot 2611';
   // QA lead writes the spec the batch is judged against.
   const qa = await openBrowser(VIEWPORTS.wide);
   try {
@@ -69,7 +69,7 @@ it('submit, judge, release at phone and wide width', async () => {
   const te = await openBrowser(VIEWPORTS.phone);
   try {
     await signInThroughForm(te.page, srv.url, 'tomas.reyes@kestrel-pv.example', 'kestrel-test-demo');
-    await openBatch(te.page, batchName);
+    await openBatch(te.page, batch_name);
     await te.page.getByTestId('evaluation').waitFor();
     await te.page.getByTestId('review-comment').fill('Lot complete, two known defects.');
     await te.page.getByTestId('submit-review').click();
@@ -84,7 +84,7 @@ it('submit, judge, release at phone and wide width', async () => {
   const phone = await openBrowser(VIEWPORTS.phone);
   try {
     await signInThroughForm(phone.page, srv.url, 'quinn.mbeki@kestrel-pv.example', 'kestrel-qa-demo');
-    await openBatch(phone.page, batchName);
+    await openBatch(phone.page, batch_name);
     await phone.page.getByTestId('spec-choice-Line release').click();
     await phone.page.getByTestId('evaluation').waitFor();
     await phone.page.getByTestId('release').click();
@@ -105,7 +105,7 @@ it('submit, judge, release at phone and wide width', async () => {
   const lead = await openBrowser(VIEWPORTS.wide);
   try {
     await signInThroughForm(lead.page, srv.url, 'quinn.mbeki@kestrel-pv.example', 'kestrel-qa-demo');
-    await openBatch(lead.page, batchName);
+    await openBatch(lead.page, batch_name);
     await lead.page.getByTestId('spec-choice-Line release').click();
     await lead.page.getByTestId('evaluation').waitFor();
     // The demo lot's high-Rs module and bypass-step module are below 300 W (sample-data scenario).

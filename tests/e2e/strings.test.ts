@@ -60,7 +60,7 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
           method: 'POST',
           credentials: 'include',
           headers: { 'Content-Type': 'application/json' },
-          body: JSON.stringify({ batchId, tMin_C: -25, tCellMax_C: 70, vSys_V: 1500, mppWindow: { min_V: 500, max_V: 1300 } }),
+          body: JSON.stringify({ batch_id: batchId, t_min_c: -25, t_cell_max_c: 70, v_sys_v: 1500, mpp_window_min_v: 500, mpp_window_max_v: 1300 }),
         });
         return res.json();
       }, DEMO_BATCH);
@@ -88,7 +88,7 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await page.getByTestId('tmin').fill('-70');
       await page.getByTestId('size-submit').click();
       await page.getByTestId('form-error').waitFor();
-      // The form shows the library's message with the form's label for tMin_C.
+      // The form shows the library's message with the form's label for t_min_c.
       expect(await page.getByTestId('form-error').innerText()).toMatch(/Record low ambient is -70 °C, outside -60…\+100 °C/);
       expect(await page.getByTestId('string-result').count()).toBe(0);
       await page.getByTestId('form-error').scrollIntoViewIfNeeded();

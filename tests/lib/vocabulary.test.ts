@@ -32,11 +32,11 @@ import { singleDiodeParamsOf } from '@/lib/iv/fit-params';
 
 const DEMO = path.resolve(__dirname, '../../sample-data/batches/kf-c24-cells/KF-C24-0001.csv');
 
-/** Numeric keys of a JSON-like value, each with its parent key ("parent.key" lookups come first). */
-function numericKeys(value: unknown, parent?: string, out: { key: string; parent?: string; at: string }[] = [], at = '$'): typeof out {
+/** Numeric keys of a JSON-like value, with where they are. */
+function numericKeys(value: unknown, out: { key: string; at: string }[] = [], at = '$'): typeof out {
   if (Array.isArray(value)) {
     value.forEach((v, i) => {
-      if (v !== null && typeof v === 'object') numericKeys(v, parent, out, `${at}[${i}]`);
+      if (v !== null && typeof v === 'object') numericKeys(v, out, `${at}[${i}]`);
     });
     return out;
   }
@@ -44,20 +44,20 @@ function numericKeys(value: unknown, parent?: string, out: { key: string; parent
   for (const [key, v] of Object.entries(value)) {
     const numeric = typeof v === 'number' || (Array.isArray(v) && v.length > 0 && v.every((x) => typeof x === 'number'));
     // Standard errors are keyed like the parameters they belong to.
-    if (numeric) out.push({ key, parent, at: `${at}.${key}` });
-    else numericKeys(v, key, out, `${at}.${key}`);
+    if (numeric) out.push({ key, at: `${at}.${key}` });
+    else numericKeys(v, out, `${at}.${key}`);
   }
   return out;
 }
 
 function unknownKeys(value: unknown): string[] {
   return numericKeys(value)
-    .filter(({ key, parent }) => !isKnownKey(key, parent))
+    .filter(({ key }) => !isKnownKey(key))
     .map((k) => k.at);
 }
 
 describe('every key the engine hands out is in the table', () => {
-  const analysis = analyseFile(readFileSync(DEMO), { fileName: 'KF-C24-0001.csv', overrides: { irradiance_Wm2: 1000, area_cm2: 243 } });
+  const analysis = analyseFile(readFileSync(DEMO), { fileName: 'KF-C24-0001.csv', overrides: { irradiance_w_m2: 1000, area_cm2: 243 } });
   const single = analysis.fits.find((f) => f.model === 'single-diode');
   const double = analysis.fits.find((f) => f.model === 'double-diode');
   const params = singleDiodeParamsOf(single);
@@ -73,32 +73,32 @@ describe('every key the engine hands out is in the table', () => {
   it('physics: material, carriers, band diagram, occupation, fitted-device physics, circuits', () => {
     expect(params).not.toBeNull();
     const p = params!;
-    const injection = { type: 'p' as const, doping_cm3: 1e16, tempK: 300, excess_cm3: 1e15 };
+    const injection = { type: 'p' as const, doping_cm3: 1e16, temp_k: 300, excess_cm3: 1e15 };
     const diagram = bandDiagram(injection);
     const outputs = {
       material: materialAt(300),
       densities: carrierDensities(0.1, 300),
-      equilibrium: equilibrium({ type: 'n', doping_cm3: 1e17, tempK: 300 }),
+      equilibrium: equilibrium({ type: 'n', doping_cm3: 1e17, temp_k: 300 }),
       quasi: quasiFermiLevels(injection),
       diagram,
       occupation: occupationCurve(diagram, { points: 5 }),
-      coefficient: vocTempCoefficient(p, { cells: 1, tempC: 25 }),
-      series: predictVocVsTemperature(p, { cells: 1, fitTempC: 25, fromC: 0, toC: 50, stepC: 25 }),
-      shares: recombinationSharesAtMpp(dd, { cells: 1, tempC: 25 }),
+      coefficient: vocTempCoefficient(p, { cells: 1, temp_c: 25 }),
+      series: predictVocVsTemperature(p, { cells: 1, fit_temp_c: 25, from_c: 0, to_c: 50, step_c: 25 }),
+      shares: recombinationSharesAtMpp(dd, { cells: 1, temp_c: 25 }),
       figures: circuitFigures(singleDiodeCircuit(p), 1, 25),
       branches: circuitBranchCurrents(doubleDiodeCircuit(dd), 0.5, 1, 25),
-      translation: translateCurve(analysis.curve, { method: 'model', params: p, cells: 1, from: { irradiance_Wm2: 1000, tempC: 25 }, to: { irradiance_Wm2: 800, tempC: 45 } }),
+      translation: translateCurve(analysis.curve, { method: 'model', params: p, cells: 1, from: { irradiance_w_m2: 1000, temp_c: 25 }, to: { irradiance_w_m2: 800, temp_c: 45 } }),
     };
     expect(unknownKeys(outputs)).toEqual([]);
   });
 
   it('string sizing: the request and the answer', () => {
-    const request = stringSizeSchema.parse({ vocStc_V: '49.5', betaVoc_pct_per_K: '-0.29', tMin_C: '-15', tCellMax_C: '70', vSys_V: '1500', vmpStc_V: '41', betaVmp_pct_per_K: '-0.37', mppWindow: { min_V: '500', max_V: '1300' } });
-    const answer = sizeString({ ...request, vocStc_V: request.vocStc_V as number, betaVoc_pct_per_K: request.betaVoc_pct_per_K as number });
-    const worst = worstModule([{ deviceId: 'a', voc_v: 49.5 }, { deviceId: 'b', voc_v: 49.1 }]);
+    const request = stringSizeSchema.parse({ voc_stc_v: '49.5', beta_voc_pct_per_k: '-0.29', t_min_c: '-15', t_cell_max_c: '70', v_sys_v: '1500', vmp_stc_v: '41', beta_vmp_pct_per_k: '-0.37', mpp_window_min_v: '500', mpp_window_max_v: '1300' });
+    const answer = sizeString({ ...request, voc_stc_v: request.voc_stc_v as number, beta_voc_pct_per_k: request.beta_voc_pct_per_k as number });
+    const worst = worstModule([{ device_id: 'a', voc_v: 49.5 }, { device_id: 'b', voc_v: 49.1 }]);
     expect(unknownKeys({ request, answer, worst })).toEqual([]);
-    // MeasuredBeta's point count is called "n", the ideality factor's key: a clash the renaming resolves.
-    const { n: _count, ...beta } = betaVocFromMeasurements([{ tempC: 15, voc_v: 50 }, { tempC: 35, voc_v: 47.2 }, { tempC: 55, voc_v: 44.4 }]);
+    // The point count is `points` (not `n`, the ideality factor's key).
+    const beta = betaVocFromMeasurements([{ temp_c: 15, voc_v: 50 }, { temp_c: 35, voc_v: 47.2 }, { temp_c: 55, voc_v: 44.4 }]);
     expect(unknownKeys(beta)).toEqual([]);
   });
 
@@ -117,10 +117,8 @@ describe('the table itself', () => {
     for (const x of QUANTITIES) {
       expect(x.key).toMatch(/^[a-z][a-z0-9]*(_[a-z0-9]+)*$/);
       expect(x.label.trim()).not.toBe('');
-      for (const name of [x.key, ...x.wire]) {
-        expect(names.has(name)).toBe(false);
-        names.add(name);
-      }
+      expect(names.has(x.key)).toBe(false);
+      names.add(x.key);
     }
   });
 
@@ -150,12 +148,16 @@ describe('the table itself', () => {
     }
   });
 
-  it('wire names find their quantity, nested ones through their parent', () => {
-    expect(quantity('tempC')?.key).toBe('temp_c');
-    expect(quantity('egDos_eV')?.key).toBe('eg_dos_ev');
-    expect(quantity('n', 'boltzmannError')?.key).toBe('boltzmann_error_n');
+  it('one name per quantity: no entry carries another name (no wire aliases), old names are gone', () => {
+    // An entry's fields are exactly these; a `wire` (or any other alias list) fails here.
+    const fields = ['key', 'label', 'unit', 'storedUnit', 'scale', 'decimals', 'digits', 'group'].sort();
+    for (const x of QUANTITIES) expect({ key: x.key, fields: Object.keys(x).sort() }).toEqual({ key: x.key, fields });
+    // A sample of the names used before the renaming (tempC, egDos_eV, …): none is a key any more.
+    for (const old of ['tempC', 'irradiance_Wm2', 'voc_V', 'egDos_eV', 'gap_eV', 'impliedVoc_V', 'boltzmannError.n', 'meanPmp_w', 'vocStc_V', 'equilibrium']) {
+      expect(quantity(old)).toBeUndefined();
+    }
+    expect(quantity('temp_c')?.label).toBe('Cell temperature');
     expect(quantity('n')?.key).toBe('n');
-    expect(quantity('no_such_key')).toBeUndefined();
   });
 });
 
@@ -167,11 +169,10 @@ describe('formatValue, labelWithUnit, toShown', () => {
     ['efficiency', 0.2153, '21.53 %'],
     ['i0_a', 3.1068e-7, '3.107×10⁻⁷ A'],
     ['n', 1.47727, '1.477'],
-    ['tempC', 25, '25 °C'], // a wire name works too
     ['temp_c', 33.5, '33.5 °C'],
     ['ni_cm3', 9.65e9, '9.650×10⁹ cm⁻³'],
     ['cells', 60, '60'],
-    ['depletionShare', 0.1234, '12.3 %'],
+    ['depletion_share', 0.1234, '12.3 %'],
     ['unknown_key', 2.5, '2.5'],
   ])('formatValue(%s, %p) = %s', (key, value, out) => {
     expect(formatValue(key, value)).toBe(out);
@@ -191,7 +192,7 @@ describe('formatValue, labelWithUnit, toShown', () => {
     ['ff', 'FF (%)'],
     ['n', 'n'],
     ['stc_pmp_w', 'Pmax at STC (W)'],
-    ['irradiance_Wm2', 'Irradiance (W/m²)'],
+    ['irradiance_w_m2', 'Irradiance (W/m²)'],
     ['whatever', 'whatever'],
   ])('labelWithUnit(%s) = %s', (key, out) => {
     expect(labelWithUnit(key)).toBe(out);

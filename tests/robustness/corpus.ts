@@ -28,9 +28,9 @@ export type CorpusEntry = {
 const CELL = { iph_a: 0.760788, i0_a: 3.1068e-7, n: 1.47727, rs_ohm: 0.036547, rsh_ohm: 52.89 };
 
 /** The readable curve: 40 points from 0 V to 1.02·Voc (past open circuit), no noise. */
-const base = simulateCurve(CELL, { cells: 1, tempC: 33, points: 40 });
-const V = base.voltage_V.map((v) => Number(v.toPrecision(6)));
-const I = base.current_A.map((i) => Number(i.toPrecision(6)));
+const base = simulateCurve(CELL, { cells: 1, temp_c: 33, points: 40 });
+const V = base.voltage_v.map((v) => Number(v.toPrecision(6)));
+const I = base.current_a.map((i) => Number(i.toPrecision(6)));
 
 type Fmt = (v: number, i: number, k: number) => string;
 const rows = (fmt: Fmt) => V.map((v, k) => fmt(v, I[k], k));

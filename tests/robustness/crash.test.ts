@@ -127,8 +127,8 @@ function crashed(): Promise<Crash> {
     const deadline = Date.now() + UPLOAD_BUDGET_MS;
     let storedBeforeKill = 0;
     for (;;) {
-      const b = await api<{ curveCount: number }>(session, 'GET', `/api/batches/${batchId}`);
-      storedBeforeKill = b.curveCount;
+      const b = await api<{ curve_count: number }>(session, 'GET', `/api/batches/${batchId}`);
+      storedBeforeKill = b.curve_count;
       if (storedBeforeKill >= KILL_AFTER_CURVES) break;
       if (Date.now() > deadline) throw new Error(`only ${storedBeforeKill} curves stored after ${UPLOAD_BUDGET_MS / 1000} s`);
       await sleep(50);
@@ -176,11 +176,11 @@ describe('crash safety', () => {
         const f = byDevice.get(r.deviceId);
         expect(f).toBeDefined();
         // Points: all 200, equal to the file's (written with 5 decimals, parsed back exactly).
-        expect(r.voltage_V).toHaveLength(SYNTHETIC_POINTS);
-        expect(r.current_A).toHaveLength(SYNTHETIC_POINTS);
+        expect(r.voltage_v).toHaveLength(SYNTHETIC_POINTS);
+        expect(r.current_a).toHaveLength(SYNTHETIC_POINTS);
         const plusZero = (xs: number[]) => xs.map((x) => x + 0); // -0 and 0 are the same reading
-        expect(plusZero(r.voltage_V)).toEqual(plusZero(f!.voltage_V));
-        expect(plusZero(r.current_A)).toEqual(plusZero(f!.current_A));
+        expect(plusZero(r.voltage_v)).toEqual(plusZero(f!.voltage_v));
+        expect(plusZero(r.current_a)).toEqual(plusZero(f!.current_a));
         expect(r.meta.cells).toBe(f!.cells);
         // Key figures and the derived columns written by the same insert.
         for (const k of ['isc_a', 'voc_v', 'pmp_w', 'ff'] as const) expect(Number.isFinite(r.metrics[k])).toBe(true);
@@ -212,13 +212,13 @@ describe('crash safety', () => {
     try {
       // The session cookie from before the crash is still valid (sessions and the auth secret live in the data folder).
       const session = { ...c.session, baseUrl: server.url };
-      const b = await api<{ curveCount: number; state: string }>(session, 'GET', `/api/batches/${c.batchId}`);
-      expect(b.curveCount).toBe(c.storedAfterKill.length);
-      const page = await api<{ total: number; curves: { id: string; fits: unknown[] }[] }>(session, 'GET', `/api/batches/${c.batchId}/curves?pageSize=500`);
+      const b = await api<{ curve_count: number; state: string }>(session, 'GET', `/api/batches/${c.batchId}`);
+      expect(b.curve_count).toBe(c.storedAfterKill.length);
+      const page = await api<{ total: number; curves: { id: string; fits: unknown[] }[] }>(session, 'GET', `/api/batches/${c.batchId}/curves?page_size=500`);
       expect(page.total).toBe(c.storedAfterKill.length);
       expect(page.curves.every((x) => x.fits.length === 2)).toBe(true);
-      const one = await api<{ points: { voltage_V: number[] }; fits: unknown[] }>(session, 'GET', `/api/curves/${page.curves[0].id}`);
-      expect(one.points.voltage_V).toHaveLength(SYNTHETIC_POINTS);
+      const one = await api<{ points: { voltage_v: number[] }; fits: unknown[] }>(session, 'GET', `/api/curves/${page.curves[0].id}`);
+      expect(one.points.voltage_v).toHaveLength(SYNTHETIC_POINTS);
       expect(one.fits).toHaveLength(2);
 
       // Finish part of the interrupted upload: the database takes writes again.
@@ -227,8 +227,8 @@ describe('crash safety', () => {
       const res = await uploadFiles(session, c.batchId, rest);
       expect(res.status).toBe(201);
       expect(res.body).toMatchObject({ accepted: rest.length, rejected: 0 });
-      const after = await api<{ curveCount: number }>(session, 'GET', `/api/batches/${c.batchId}`);
-      expect(after.curveCount).toBe(c.storedAfterKill.length + rest.length);
+      const after = await api<{ curve_count: number }>(session, 'GET', `/api/batches/${c.batchId}`);
+      expect(after.curve_count).toBe(c.storedAfterKill.length + rest.length);
     } finally {
       await killServer(server);
     }
@@ -243,8 +243,8 @@ describe('crash safety', () => {
     const stored = new Set(c.storedAfterKill);
     const rest = files.filter((f) => !stored.has(f.deviceId)).slice(0, 10);
     expect((await uploadFiles(session, c.batchId, rest)).status).toBe(201);
-    const { curveCount } = await api<{ curveCount: number }>(session, 'GET', `/api/batches/${c.batchId}`);
-    expect(curveCount).toBe(c.storedAfterKill.length + rest.length);
+    const { curve_count } = await api<{ curve_count: number }>(session, 'GET', `/api/batches/${c.batchId}`);
+    expect(curve_count).toBe(c.storedAfterKill.length + rest.length);
 
     const code = await server.stop({ keepData: true });
     servers.delete(server);
@@ -254,7 +254,7 @@ describe('crash safety', () => {
     expect(clusterState(path.join(dataDir, 'db'))).toBe(DB_SHUTDOWNED);
     await withDirectDb(dataDir, async ({ db }) => {
       const [{ n }] = await db.select({ n: sql<number>`count(*)::int` }).from(curve).where(eq(curve.batchId, c.batchId));
-      expect(n).toBe(curveCount);
+      expect(n).toBe(curve_count);
     });
   });
 });

@@ -52,7 +52,7 @@ describe('each file alone in its own request', () => {
       expect(res.status).toBe(201);
       const [r] = res.body.results as UploadResult[];
       expect(r).toEqual(expect.objectContaining({ file: e.fileName, accepted: true, curveId: expect.any(String) }));
-      const [row] = await h.database.db.select({ deviceId: curve.deviceId, fileName: curve.fileName, n: curve.voltage_V }).from(curve).where(eq(curve.id, r.curveId!));
+      const [row] = await h.database.db.select({ deviceId: curve.deviceId, fileName: curve.fileName, n: curve.voltage_v }).from(curve).where(eq(curve.id, r.curveId!));
       expect(row.fileName).toBe(e.fileName);
       // The id is stored and served exactly as written: text, never evaluated or rewritten.
       if (e.expect.deviceId !== undefined) {
@@ -102,7 +102,7 @@ describe('after the whole corpus', () => {
     const accepted = corpus.filter((e) => e.expect.accept).length;
     const list = await tester.get(`/api/batches/${batchId}`);
     expect(list.status).toBe(200);
-    expect(list.body.curveCount).toBe(accepted);
+    expect(list.body.curve_count).toBe(accepted);
     const health = await agentFor(h.app).get('/api/health');
     expect(health.status).toBe(200);
     expect(health.body.ok).toBe(true);
@@ -130,7 +130,7 @@ describe('odd requests rather than odd files', () => {
 
   type Send = (a: typeof tester) => ReturnType<typeof tester.post>;
   it.each<[string, number, string, RegExp, Send]>([
-    ['no file at all', 400, 'no_files', /No files were sent/, (a) => a.post(`/api/batches/${batchId}/curves`).field('tempC', '25')],
+    ['no file at all', 400, 'no_files', /No files were sent/, (a) => a.post(`/api/batches/${batchId}/curves`).field('temp_c', '25')],
     ['the file in another form field', 400, 'wrong_field', /form field "files" \(got "file"\)/, (a) => a.post(`/api/batches/${batchId}/curves`).attach('file', Buffer.from('V,I\n'), 'x.csv')],
     ['a JSON body instead of a form', 400, 'no_files', /No files were sent/, (a) => a.post(`/api/batches/${batchId}/curves`).send({ files: ['V,I'] })],
     [
@@ -140,7 +140,7 @@ describe('odd requests rather than odd files', () => {
       /could not be read as a multipart form/,
       (a) => a.post(`/api/batches/${batchId}/curves`).set('Content-Type', 'multipart/form-data; boundary=XYZ').send('--XYZ\r\nContent-Disposition: form-data; name="files"; filename="cut.csv"\r\n\r\nV,I\n0,1\n'),
     ],
-    ['a temperature override that is not a number', 400, 'invalid_input', /tempC/, (a) => a.post(`/api/batches/${batchId}/curves`).field('tempC', 'warm').attach('files', plain(), 'override.csv')],
+    ['a temperature override that is not a number', 400, 'invalid_input', /temp_c/, (a) => a.post(`/api/batches/${batchId}/curves`).field('temp_c', 'warm').attach('files', plain(), 'override.csv')],
   ])('%s → %i %s', async (_name, status, code, message, send) => {
     const res = await send(tester);
     expect(res.status).toBe(status);

@@ -21,6 +21,25 @@ import { can, ROLE_PERMISSIONS, ROLES } from '@/lib/auth/roles';
 import type { Permission, Role } from '@/lib/auth/roles';
 import { simulateCurve } from '@/lib/iv';
 import { storeCurve } from '@/server/services/curves';
+import { nonSnakeKeys } from '@/tests/support/json-keys';
+import type { ZodType } from 'zod';
+import {
+  batchListSchema,
+  batchSchema,
+  comparisonWireSchema,
+  curveDetailSchema,
+  curvePageSchema,
+  evaluationSchema,
+  meSchema,
+  outboxSchema,
+  overlaySchema,
+  refitAnswerSchema,
+  reviewListSchema,
+  specJsonSchema,
+  specListSchema,
+  uploadAnswerSchema,
+  userListSchema,
+} from '@/lib/schemas/responses';
 import { agentFor, signIn, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
 
@@ -113,14 +132,14 @@ async function releasedBatch(): Promise<{ batchId: string; releaseId: string }> 
 
 /** The newest version of our matrix spec, which a new version must name as its base. */
 async function newestSpecVersion(): Promise<number> {
-  const rows = await h.database.db.select({ v: spec.version }).from(spec).where(eq(spec.familyId, ids.specFamily));
+  const rows = await h.database.db.select({ v: spec.version }).from(spec).where(eq(spec.family_id, ids.specFamily));
   return Math.max(...rows.map((r) => r.v));
 }
 
 /** The benchmark cell simulated from its published optimum (tests/fixtures/reference-data/README.md), as a CSV file. */
 const cellCsv = (() => {
-  const c = simulateCurve({ iph_a: 0.760788, i0_a: 3.1068e-7, n: 1.47727, rs_ohm: 0.036547, rsh_ohm: 52.89 }, { cells: 1, tempC: 33, points: 30 });
-  return Buffer.from(['# cell temperature: 33', 'V,I', ...c.voltage_V.map((v, k) => `${v},${c.current_A[k]}`)].join('\n'));
+  const c = simulateCurve({ iph_a: 0.760788, i0_a: 3.1068e-7, n: 1.47727, rs_ohm: 0.036547, rsh_ohm: 52.89 }, { cells: 1, temp_c: 33, points: 30 });
+  return Buffer.from(['# cell temperature: 33', 'V,I', ...c.voltage_v.map((v, k) => `${v},${c.current_a[k]}`)].join('\n'));
 })();
 
 const ROUTES: RouteCase[] = [
@@ -171,27 +190,27 @@ const ROUTES: RouteCase[] = [
     need: 'release:decide',
     ok: 200,
     foreign: 'not_found',
-    build: async () => ({ url: `/api/batches/${(await freshBatch('in_review')).batchId}/decision`, body: { decision: 'hold', specId: ids.spec, comment: 'matrix check' } }),
+    build: async () => ({ url: `/api/batches/${(await freshBatch('in_review')).batchId}/decision`, body: { decision: 'hold', spec_id: ids.spec, comment: 'matrix check' } }),
   },
   { method: 'GET', path: '/api/batches/:id/releases/:releaseId', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.released}/releases/${ids.release}` }) },
   { method: 'GET', path: '/api/batches/:id/releases/:releaseId/pass-fail.csv', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.released}/releases/${ids.release}/pass-fail.csv` }) },
   { method: 'POST', path: '/api/batches/:id/reopen', need: 'release:decide', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${(await releasedBatch()).batchId}/reopen`, body: { reason: 'matrix check' } }) },
   { method: 'GET', path: '/api/specs', need: 'spec:read', ok: 200, foreign: 'own', build: async () => ({ url: '/api/specs' }) },
   { method: 'GET', path: '/api/specs/:id', need: 'spec:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/specs/${ids.spec}` }) },
-  // A new version of our spec (familyId): the other organisation's QA lead must get 404, not a version of it.
+  // A new version of our spec (family_id): the other organisation's QA lead must get 404, not a version of it.
   {
     method: 'POST',
     path: '/api/specs',
     need: 'spec:write',
     ok: 201,
     foreign: 'not_found',
-    build: async () => ({ url: '/api/specs', body: { name: 'Matrix spec', limits: { pmp_w: { min: 0 } }, familyId: ids.specFamily, base_version: await newestSpecVersion() } }),
+    build: async () => ({ url: '/api/specs', body: { name: 'Matrix spec', limits: { pmp_w: { min: 0 } }, family_id: ids.specFamily, base_version: await newestSpecVersion() } }),
   },
   { method: 'GET', path: '/api/compare', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/compare?batches=${ids.batch}&param=pmp_w` }) },
   { method: 'GET', path: '/api/curves/:id', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/curves/${ids.curve}` }) },
   { method: 'POST', path: '/api/curves/:id/refit', need: 'batch:write', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/curves/${(await freshBatch('open')).curveId}/refit`, body: { model: 'single' } }) },
-  { method: 'GET', path: '/api/physics/material', need: 'physics:use', ok: 200, foreign: 'own', build: async () => ({ url: '/api/physics/material?tempK=300' }) },
-  { method: 'POST', path: '/api/physics/band-diagram', need: 'physics:use', ok: 200, foreign: 'own', build: async () => ({ url: '/api/physics/band-diagram', body: { type: 'p', doping_cm3: 1e16, excess_cm3: 1e14, tempK: 300 } }) },
+  { method: 'GET', path: '/api/physics/material', need: 'physics:use', ok: 200, foreign: 'own', build: async () => ({ url: '/api/physics/material?temp_k=300' }) },
+  { method: 'POST', path: '/api/physics/band-diagram', need: 'physics:use', ok: 200, foreign: 'own', build: async () => ({ url: '/api/physics/band-diagram', body: { type: 'p', doping_cm3: 1e16, excess_cm3: 1e14, temp_k: 300 } }) },
   { method: 'GET', path: '/api/physics/curves/:id', need: 'physics:use', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/physics/curves/${ids.curve}` }) },
   {
     method: 'POST',
@@ -199,9 +218,9 @@ const ROUTES: RouteCase[] = [
     need: 'physics:use',
     ok: 200,
     foreign: 'not_found',
-    build: async () => ({ url: `/api/physics/curves/${ids.curve}/translate`, body: { method: 'model', to: { irradiance_Wm2: 1000, tempC: 25 } } }),
+    build: async () => ({ url: `/api/physics/curves/${ids.curve}/translate`, body: { method: 'model', to: { irradiance_w_m2: 1000, temp_c: 25 } } }),
   },
-  { method: 'POST', path: '/api/strings/size', need: 'physics:use', ok: 200, foreign: 'not_found', build: async () => ({ url: '/api/strings/size', body: { batchId: ids.batch, tMin_C: -10, vSys_V: 1000 } }) },
+  { method: 'POST', path: '/api/strings/size', need: 'physics:use', ok: 200, foreign: 'not_found', build: async () => ({ url: '/api/strings/size', body: { batch_id: ids.batch, t_min_c: -10, v_sys_v: 1000 } }) },
 ];
 
 /** The status a cell must answer, from the route's entry and the role table. */
@@ -272,12 +291,12 @@ beforeAll(async () => {
   const batches = await h.database.db.select().from(batch).where(eq(batch.organizationId, org.id));
   // The demo module batch of line 3 (sample-data/batches/manifest.json): fitted 60-cell modules.
   ids.batch = batches.find((b) => b.lot === 'M2612')!.id;
-  const list = await agents.designer.get(`/api/batches/${ids.batch}/curves?pageSize=1`);
+  const list = await agents.designer.get(`/api/batches/${ids.batch}/curves?page_size=1`);
   ids.curve = list.body.curves[0].id;
   const spec = await agents.qa_lead.post('/api/specs').send({ name: 'Matrix base spec', limits: { pmp_w: { min: 0 } } });
   expect(spec.status).toBe(201);
   ids.spec = spec.body.id;
-  ids.specFamily = spec.body.familyId;
+  ids.specFamily = spec.body.family_id;
   analysis = analyseFile(cellCsv, { fileName: 'matrix.csv' });
   ours = [ORG, org.id, ids.spareUser, ids.spec, ids.specFamily, ids.curve, ...batches.map((b) => b.id)];
   const released = await releasedBatch();
@@ -321,5 +340,64 @@ describe('every route × every kind of caller', () => {
     if (who === 'other_org') for (const s of ours) expect(res.text).not.toContain(s);
     // Their own address and the organisation's name (its domain) may appear; none of our records' ids.
     if (who === 'unverified' || who === 'awaiting') for (const s of ours.filter((x) => x !== ORG)) expect(res.text).not.toContain(s);
+  });
+});
+
+/** The caller who may use the route: the QA lead, else the admin. */
+function allowedAgent(route: RouteCase): Agent {
+  if (route.need === 'public' || route.need === 'session' || can('qa_lead', route.need)) return agents.qa_lead;
+  return agents.admin;
+}
+
+describe('one vocabulary: every key of every JSON answer is snake_case', () => {
+  const json = ROUTES.filter((r) => !r.path.endsWith('.csv'));
+  it.each(json.map((r) => [`${r.method} ${r.path}`, r] as const))('%s', async (_name, route) => {
+    const res = await send(allowedAgent(route), route.method, await route.build());
+    expect(res.status).toBe(route.ok);
+    expect(res.type).toBe('application/json');
+    expect(nonSnakeKeys(res.body)).toEqual([]);
+  });
+
+  it('the walk finds a camelCase key, also deep in arrays, and skips only data maps', () => {
+    // The test can fail: a made-up answer with one wrong key at each depth.
+    // (Made-up names that no renaming touches, so the check stays a check.)
+    const answer = { batches: [{ id: 'x', curvesTotal: 2, power_class_counts: { P400: 1 } }], meta: { cellTemp_C: 25 } };
+    expect(nonSnakeKeys(answer)).toEqual(['$.batches[0].curvesTotal', '$.meta.cellTemp_C']);
+  });
+});
+
+/** The response schema of each route (lib/schemas/responses.ts); the client's types are inferred from them. */
+const RESPONSE_SCHEMAS: Record<string, ZodType> = {
+  'GET /api/me': meSchema,
+  'GET /api/users': userListSchema,
+  'GET /api/outbox': outboxSchema,
+  'GET /api/batches': batchListSchema,
+  'POST /api/batches': batchSchema,
+  'GET /api/batches/:id': batchSchema,
+  'PATCH /api/batches/:id': batchSchema,
+  'POST /api/batches/:id/curves': uploadAnswerSchema,
+  'GET /api/batches/:id/curves': curvePageSchema,
+  'GET /api/batches/:id/overlay': overlaySchema,
+  'GET /api/batches/:id/evaluation': evaluationSchema,
+  'GET /api/batches/:id/reviews': reviewListSchema,
+  'GET /api/specs': specListSchema,
+  'GET /api/specs/:id': specJsonSchema,
+  'POST /api/specs': specJsonSchema,
+  'GET /api/compare': comparisonWireSchema,
+  'GET /api/curves/:id': curveDetailSchema,
+  'POST /api/curves/:id/refit': refitAnswerSchema,
+};
+
+describe('the answers match the response schemas the client is typed with (strict objects)', () => {
+  it.each(Object.entries(RESPONSE_SCHEMAS))('%s', async (name, schema) => {
+    const route = ROUTES.find((r) => `${r.method} ${r.path}` === name)!;
+    const res = await send(allowedAgent(route), route.method, await route.build());
+    expect(res.status).toBe(route.ok);
+    const parsed = schema.safeParse(res.body);
+    expect(parsed.success ? [] : parsed.error.issues.slice(0, 5)).toEqual([]);
+  });
+
+  it('a strict schema refuses a key it does not name (the test can fail)', () => {
+    expect(batchListSchema.safeParse({ batches: [{ id: 'x', createdAt: 'then' }] }).success).toBe(false);
   });
 });

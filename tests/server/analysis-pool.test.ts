@@ -16,8 +16,8 @@ import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
 const REF = REFERENCE_DATA_DIR;
 const bytes = (p: string) => new Uint8Array(readFileSync(p));
-const cell: AnalysisRequest = { bytes: bytes(path.join(REF, 'cell-57mm-33C.csv')), fileName: 'cell.csv', overrides: { tempC: 33, cells: 1 } };
-const moduleReq: AnalysisRequest = { bytes: bytes(path.join(REF, 'module-36cell-45C.csv')), fileName: 'module.csv', overrides: { tempC: 45, cells: 36 } };
+const cell: AnalysisRequest = { bytes: bytes(path.join(REF, 'cell-57mm-33C.csv')), fileName: 'cell.csv', overrides: { temp_c: 33, cells: 1 } };
+const moduleReq: AnalysisRequest = { bytes: bytes(path.join(REF, 'module-36cell-45C.csv')), fileName: 'module.csv', overrides: { temp_c: 45, cells: 36 } };
 const garbage: AnalysisRequest = { bytes: new TextEncoder().encode('V,I\nabc,def\n'), fileName: 'garbage.csv' };
 
 describe('workerAnalyser()', () => {

@@ -10,7 +10,7 @@ import { workerAnalyser } from '@/server/services/analysis-pool';
 import { demoCurveFiles } from '@/server/services/seed';
 
 const REF = REFERENCE_DATA_DIR;
-const cell = { bytes: new Uint8Array(readFileSync(path.join(REF, 'cell-57mm-33C.csv'))), fileName: 'cell.csv', overrides: { tempC: 33, cells: 1 } };
+const cell = { bytes: new Uint8Array(readFileSync(path.join(REF, 'cell-57mm-33C.csv'))), fileName: 'cell.csv', overrides: { temp_c: 33, cells: 1 } };
 
 /** The nice value of a thread of this process (Linux: /proc/self/task/<tid>/stat, field 19), null once it has ended. */
 function niceOf(tid: string): number | null {

@@ -84,12 +84,12 @@ describe('batches', () => {
 });
 
 describe('upload', () => {
-  let results: { file: string; accepted: boolean; curveId?: string; error?: string; code?: string }[];
+  let results: { file: string; accepted: boolean; curve_id?: string; error?: string; code?: string }[];
 
   beforeAll(async () => {
     const res = await tester
       .post(`/api/batches/${batchId}/curves`)
-      .field('tempC', '33')
+      .field('temp_c', '33')
       .attach('files', Buffer.from(cellCsv), 'RTC-57-cell.csv')
       .attach('files', Buffer.from(moduleWithMeta), 'module-file.csv')
       .attach('files', Buffer.from(cellSemicolonMilli), 'cell-semicolon.txt')
@@ -113,7 +113,7 @@ describe('upload', () => {
     expect(results[3].error).toMatch(/current/i);
     expect(results[4].error).toMatch(/empty/i);
     expect(results[5].error).toMatch(/not an I-V text file/);
-    for (const r of results.slice(0, 3)) expect(r.curveId).toEqual(expect.any(String));
+    for (const r of results.slice(0, 3)) expect(r.curve_id).toEqual(expect.any(String));
   });
 
   it('stores rejected files not at all', async () => {
@@ -121,11 +121,11 @@ describe('upload', () => {
   });
 
   it('fits the benchmark cell to the published single-diode optimum (RMSE 7.7301e-4 A ±0.1 %)', async () => {
-    const res = await tester.get(`/api/curves/${results[0].curveId}`);
+    const res = await tester.get(`/api/curves/${results[0].curve_id}`);
     expect(res.status).toBe(200);
     const c = res.body;
     expect(c.device_id).toBe('RTC-57-cell'); // file name without its extension
-    expect(c.meta.tempC).toBe(33); // the form field overrides the (absent) file metadata
+    expect(c.meta.temp_c).toBe(33); // the form field overrides the (absent) file metadata
     const single = c.fits.find((f: { model: string }) => f.model === 'single-diode');
     // Published optimum, true-current objective (reference-data README): RMSE 7.7301e-4 A,
     // n 1.47727, Rs 0.036547 Ω, Rsh 52.890 Ω, I0 3.1068e-7 A.
@@ -135,7 +135,7 @@ describe('upload', () => {
     expect(single.rs_ohm).toBeCloseTo(0.036547, 4);
     expect(single.rsh_ohm / 52.89).toBeCloseTo(1, 2);
     expect(single.i0_a / 3.1068e-7).toBeCloseTo(1, 1);
-    expect(single.residuals_a).toHaveLength(c.points.voltage_V.length);
+    expect(single.residuals_a).toHaveLength(c.points.voltage_v.length);
     expect(single.stderr.n).toBeGreaterThan(0);
     // Key figures derived from the fit in the README: Isc 0.76026 A, Voc 0.57278 V, Pmp 0.31070 W.
     expect(c.metrics.isc_a).toBeCloseTo(0.76026, 2);
@@ -148,23 +148,23 @@ describe('upload', () => {
   });
 
   it('reads the module’s metadata lines; a form field overrides the file’s temperature', async () => {
-    const c = (await tester.get(`/api/curves/${results[1].curveId}`)).body;
+    const c = (await tester.get(`/api/curves/${results[1].curve_id}`)).body;
     expect(c.device_id).toBe('RTC-36M');
-    expect(c.meta).toEqual(expect.objectContaining({ cells: 36, irradiance_Wm2: 1000 }));
-    // The form's tempC (33) overrides the file's 45 °C: overrides win, as documented.
-    expect(c.meta.tempC).toBe(33);
+    expect(c.meta).toEqual(expect.objectContaining({ cells: 36, irradiance_w_m2: 1000 }));
+    // The form's temp_c (33) overrides the file's 45 °C: overrides win, as documented.
+    expect(c.meta.temp_c).toBe(33);
   });
 
   it('reads the semicolon/decimal-comma mV/mA file to the same curve as the plain one', async () => {
-    const a = (await tester.get(`/api/curves/${results[0].curveId}`)).body;
-    const b = (await tester.get(`/api/curves/${results[2].curveId}`)).body;
-    expect(b.points.voltage_V).toHaveLength(a.points.voltage_V.length);
-    b.points.voltage_V.forEach((v: number, k: number) => expect(v).toBeCloseTo(a.points.voltage_V[k], 4));
+    const a = (await tester.get(`/api/curves/${results[0].curve_id}`)).body;
+    const b = (await tester.get(`/api/curves/${results[2].curve_id}`)).body;
+    expect(b.points.voltage_v).toHaveLength(a.points.voltage_v.length);
+    b.points.voltage_v.forEach((v: number, k: number) => expect(v).toBeCloseTo(a.points.voltage_v[k], 4));
     expect(b.metrics.pmp_w).toBeCloseTo(a.metrics.pmp_w, 6);
   });
 
   it('lists the batch’s curves in the engine’s vocabulary, sorted, searched and paged', async () => {
-    const res = await tester.get(`/api/batches/${batchId}/curves?sort=pmp_w&dir=desc&pageSize=2`);
+    const res = await tester.get(`/api/batches/${batchId}/curves?sort=pmp_w&dir=desc&page_size=2`);
     expect(res.status).toBe(200);
     expect(res.body.total).toBe(3);
     expect(res.body.curves).toHaveLength(2);
@@ -173,32 +173,32 @@ describe('upload', () => {
     expect(Object.keys(first.metrics)).toEqual(expect.arrayContaining(['isc_a', 'voc_v', 'pmp_w', 'ff']));
     expect(first.fits[0]).toEqual(expect.objectContaining({ model: expect.any(String), rs_ohm: expect.any(Number) }));
     expect(first.fits[0].residuals_a).toBeUndefined(); // lists leave the residuals out
-    const page2 = await tester.get(`/api/batches/${batchId}/curves?sort=pmp_w&dir=desc&pageSize=2&page=2`);
+    const page2 = await tester.get(`/api/batches/${batchId}/curves?sort=pmp_w&dir=desc&page_size=2&page=2`);
     expect(page2.body.curves).toHaveLength(1);
     const search = await tester.get(`/api/batches/${batchId}/curves?q=semicolon`);
     expect(search.body.curves.map((c: { device_id: string }) => c.device_id)).toEqual(['cell-semicolon']);
     const list = await tester.get('/api/batches');
     const mine = list.body.batches.find((b: { id: string }) => b.id === batchId);
-    expect(mine.curveCount).toBe(3);
-    expect(mine.meanPmp_w).toBeCloseTo(res.body.curves.concat(page2.body.curves).reduce((s: number, c: { metrics: { pmp_w: number } }) => s + c.metrics.pmp_w, 0) / 3, 6);
+    expect(mine.curve_count).toBe(3);
+    expect(mine.mean_pmp_w).toBeCloseTo(res.body.curves.concat(page2.body.curves).reduce((s: number, c: { metrics: { pmp_w: number } }) => s + c.metrics.pmp_w, 0) / 3, 6);
     const summary = await tester.get(`/api/batches/${batchId}`);
-    expect(summary.body.curveCount).toBe(3);
+    expect(summary.body.curve_count).toBe(3);
     expect(summary.body.summary.pmp_w.n).toBe(3);
   });
 
   it('asks before adding a device that is already in the batch, then replaces or keeps both', async () => {
-    const ask = await tester.post(`/api/batches/${batchId}/curves`).field('tempC', '33').attach('files', Buffer.from(cellCsv), 'RTC-57-cell.csv');
+    const ask = await tester.post(`/api/batches/${batchId}/curves`).field('temp_c', '33').attach('files', Buffer.from(cellCsv), 'RTC-57-cell.csv');
     expect(ask.status).toBe(422);
     expect(ask.body.results[0]).toEqual(expect.objectContaining({ accepted: false, code: 'duplicate' }));
     expect((await counts()).curves).toBe(3);
 
-    const replace = await tester.post(`/api/batches/${batchId}/curves`).field('tempC', '33').field('onDuplicate', 'replace').attach('files', Buffer.from(cellCsv), 'RTC-57-cell.csv');
+    const replace = await tester.post(`/api/batches/${batchId}/curves`).field('temp_c', '33').field('on_duplicate', 'replace').attach('files', Buffer.from(cellCsv), 'RTC-57-cell.csv');
     expect(replace.status).toBe(201);
     expect(replace.body.results[0]).toEqual(expect.objectContaining({ accepted: true, replaced: 1 }));
     expect((await counts()).curves).toBe(3);
-    expect((await tester.get(`/api/curves/${results[0].curveId}`)).status).toBe(404);
+    expect((await tester.get(`/api/curves/${results[0].curve_id}`)).status).toBe(404);
 
-    const keep = await tester.post(`/api/batches/${batchId}/curves`).field('tempC', '33').field('onDuplicate', 'keep').attach('files', Buffer.from(cellCsv), 'RTC-57-cell.csv');
+    const keep = await tester.post(`/api/batches/${batchId}/curves`).field('temp_c', '33').field('on_duplicate', 'keep').attach('files', Buffer.from(cellCsv), 'RTC-57-cell.csv');
     expect(keep.status).toBe(201);
     expect((await counts()).curves).toBe(4);
   });
@@ -220,7 +220,7 @@ describe('upload', () => {
   });
 
   it('an upload with no files is a 400 with a sentence', async () => {
-    const res = await tester.post(`/api/batches/${batchId}/curves`).field('tempC', '25');
+    const res = await tester.post(`/api/batches/${batchId}/curves`).field('temp_c', '25');
     expect(res.status).toBe(400);
     expect(res.body.code).toBe('no_files');
   });
@@ -231,13 +231,13 @@ describe('refit', () => {
     const list = await tester.get(`/api/batches/${batchId}/curves?q=RTC-36M`);
     const id = list.body.curves[0].id;
     const before = (await tester.get(`/api/curves/${id}`)).body;
-    expect(before.meta.tempC).toBe(33);
-    const res = await tester.post(`/api/curves/${id}/refit`).send({ tempC: 45 });
+    expect(before.meta.temp_c).toBe(33);
+    const res = await tester.post(`/api/curves/${id}/refit`).send({ temp_c: 45 });
     expect(res.status).toBe(200);
-    expect(res.body.meta.tempC).toBe(45);
+    expect(res.body.meta.temp_c).toBe(45);
     expect(res.body.history).toHaveLength(4);
     expect(res.body.history.filter((x: { current: boolean }) => x.current)).toHaveLength(2);
-    expect(res.body.history[0].reason).toMatch(/tempC 33 → 45/);
+    expect(res.body.history[0].reason).toMatch(/temp_c 33 → 45/);
     const single = res.body.fits.find((f: { model: string }) => f.model === 'single-diode');
     // Published true-current optimum for the 36-cell module at 45 °C (reference-data README).
     expect(single.rmse_a / 2.053e-3).toBeCloseTo(1, 3);
@@ -250,7 +250,7 @@ describe('refit', () => {
   it('refuses to change a released batch', async () => {
     await h.database.db.update(batch).set({ state: 'released' }).where(eq(batch.id, batchId));
     const list = await tester.get(`/api/batches/${batchId}/curves`);
-    const res = await tester.post(`/api/curves/${list.body.curves[0].id}/refit`).send({ tempC: 25 });
+    const res = await tester.post(`/api/curves/${list.body.curves[0].id}/refit`).send({ temp_c: 25 });
     expect(res.status).toBe(409);
     const up = await tester.post(`/api/batches/${batchId}/curves`).attach('files', Buffer.from(cellCsv), 'late.csv');
     expect(up.status).toBe(409);

@@ -90,7 +90,7 @@ describe('through the app', () => {
     await signUp(h.app, { email: 'admin@stampede-pv.example' }); // the first of a domain administers it
     const tester = await signUp(h.app, { email: 'tester@stampede-pv.example' });
     batchId = (await tester.post('/api/batches').send({ name: 'Stampede', cells: 1 })).body.id;
-    let up = tester.post(`/api/batches/${batchId}/curves`).field('tempC', '33');
+    let up = tester.post(`/api/batches/${batchId}/curves`).field('temp_c', '33');
     for (const k of [1, 2, 3]) up = up.attach('files', Buffer.from(`# device: S-${k}\n${cellCsv}`), `s${k}.csv`);
     expect((await up).body.accepted).toBe(3);
     const signIn = await request(h.app).post('/api/auth/sign-in/email').set('Origin', 'http://localhost:8080').send({ email: 'tester@stampede-pv.example', password: 'correct-horse-9' });

@@ -28,12 +28,12 @@ beforeAll(async () => {
   const items = demoCurveFiles()
     .slice(0, 30)
     .map((f) => ({ id: crypto.randomUUID(), fileName: path.basename(f), analysis: analyseFile(readFileSync(f), { fileName: path.basename(f), defaults: { cells: 60, area_cm2: 16_610 } }) }));
-  const read = analyseFile(readFileSync(path.join(REF, 'cell-57mm-33C.csv')), { fileName: 'ref-cell.csv', overrides: { tempC: 33, cells: 1, area_cm2: 25.5 } });
-  const cell = { ...read, curve: { ...read.curve, meta: { ...read.curve.meta, deviceId: 'REF-CELL' } } };
+  const read = analyseFile(readFileSync(path.join(REF, 'cell-57mm-33C.csv')), { fileName: 'ref-cell.csv', overrides: { temp_c: 33, cells: 1, area_cm2: 25.5 } });
+  const cell = { ...read, curve: { ...read.curve, meta: { ...read.curve.meta, device_id: 'REF-CELL' } } };
   items.push({ id: crypto.randomUUID(), fileName: 'ref-cell.csv', analysis: cell });
   // The same curve as if its fits had failed (what a curve no diode describes is stored as).
-  items.push({ id: crypto.randomUUID(), fileName: 'unfitted.csv', analysis: { ...cell, curve: { ...cell.curve, meta: { ...cell.curve.meta, deviceId: 'UNFITTED' } }, fits: cell.fits.map((f) => ({ ...f, converged: false })) } });
-  for (const it of items) analyses.set(it.analysis.curve.meta.deviceId ?? it.fileName, it.analysis);
+  items.push({ id: crypto.randomUUID(), fileName: 'unfitted.csv', analysis: { ...cell, curve: { ...cell.curve, meta: { ...cell.curve.meta, device_id: 'UNFITTED' } }, fits: cell.fits.map((f) => ({ ...f, converged: false })) } });
+  for (const it of items) analyses.set(it.analysis.curve.meta.device_id ?? it.fileName, it.analysis);
   await storeCurves(d.db, { organizationId: 'org', batchId: 'b1', userId: null }, items);
 });
 afterAll(() => d.close());
@@ -49,7 +49,7 @@ it('gives the same records from the stored record as from the columns (the backf
 it('carries the engine’s figures, the single-diode fit only when it converged, and J0 per cell area', async () => {
   const rows = await deviceRecords(d.db, ['b1']);
   for (const r of rows) {
-    const a = analyses.get(r.deviceId)!;
+    const a = analyses.get(r.device_id)!;
     expect(r.values.pmp_w).toBe(a.metrics.pmp_w);
     expect(r.values.voc_v).toBe(a.metrics.voc_v);
     const single = a.fits.find((f) => f.model === 'single-diode' && f.converged);
@@ -57,11 +57,11 @@ it('carries the engine’s figures, the single-diode fit only when it converged,
     expect(r.values.rs_ohm).toBe(single ? single.rs_ohm : null);
     expect(r.flags).toEqual(a.flags.map((f) => f.code));
   }
-  const ref = rows.find((r) => r.deviceId === 'REF-CELL')!;
+  const ref = rows.find((r) => r.device_id === 'REF-CELL')!;
   const refFit = analyses.get('REF-CELL')!.fits.find((f) => f.model === 'single-diode')!;
   // J0 = I0 / (cell area): one cell of 25.5 cm².
   expect(ref.values.j0_a_cm2).toBeCloseTo((refFit.i0_a as number) / 25.5, 20);
-  const unfitted = rows.find((r) => r.deviceId === 'UNFITTED')!;
+  const unfitted = rows.find((r) => r.device_id === 'UNFITTED')!;
   expect(unfitted.fitted).toBe(false);
   expect(unfitted.values.i0_a).toBeNull();
   expect(unfitted.values.j0_a_cm2).toBeNull();

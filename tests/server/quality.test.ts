@@ -53,13 +53,13 @@ afterAll(async () => {
 const moduleSpec = {
   name: 'KF-M60 release spec',
   limits: { pmp_w: { min: 300 }, ff: { min: 0.7, max: 0.85 }, rs_ohm: { max: 0.6 }, voc_v: { min: 39, max: 43 } },
-  powerClasses: { step_w: 5 },
-  failFlags: ['step'],
+  power_classes: { step_w: 5 },
+  fail_flags: ['step'],
 };
 
 describe('specs', () => {
   let specId: string;
-  let familyId: string;
+  let family_id: string;
 
   it('a QA lead saves a spec as version 1', async () => {
     const res = await qa.post('/api/specs').send(moduleSpec);
@@ -67,7 +67,7 @@ describe('specs', () => {
     expect(res.body).toEqual(expect.objectContaining({ id: expect.any(String), version: 1, name: moduleSpec.name }));
     expect(res.body.limits.pmp_w).toEqual({ min: 300 });
     specId = res.body.id;
-    familyId = res.body.familyId;
+    family_id = res.body.family_id;
   });
 
   it.each([
@@ -87,7 +87,7 @@ describe('specs', () => {
   });
 
   it('a second save makes version 2 with who changed what; version 1 stays as it was', async () => {
-    const res = await qa.post('/api/specs').send({ ...moduleSpec, familyId, base_version: 1, limits: { ...moduleSpec.limits, rs_ohm: { max: 0.5 } } });
+    const res = await qa.post('/api/specs').send({ ...moduleSpec, family_id, base_version: 1, limits: { ...moduleSpec.limits, rs_ohm: { max: 0.5 } } });
     expect(res.status).toBe(201);
     expect(res.body.version).toBe(2);
     expect(res.body.changes).toEqual(['rs_ohm: −∞ … 0.6 → −∞ … 0.5']);
@@ -98,7 +98,7 @@ describe('specs', () => {
       [2, 'Quentin QA'],
     ]);
     const list = await designer.get('/api/specs');
-    expect(list.body.specs.find((s: { familyId: string }) => s.familyId === familyId).version).toBe(2);
+    expect(list.body.specs.find((s: { family_id: string }) => s.family_id === family_id).version).toBe(2);
   });
 
   it('another organisation cannot read the spec', async () => {
@@ -116,8 +116,8 @@ function judge(c: { metrics: Record<string, number>; fits: { model: string; rs_o
   if (c.metrics.voc_v < 39 || c.metrics.voc_v > 43) reasons.push('voc_v');
   if (c.flags.some((f) => f.code === 'step')) reasons.push('step');
   // Positive-only 5 W classes (common practice): class P when P ≤ Pmax < P + 5.
-  const powerClass = `P${Math.floor(c.metrics.pmp_w / 5) * 5}`;
-  return { result: reasons.length ? 'fail' : 'pass', reasons, powerClass };
+  const power_class = `P${Math.floor(c.metrics.pmp_w / 5) * 5}`;
+  return { result: reasons.length ? 'fail' : 'pass', reasons, power_class };
 }
 
 describe('pass/fail export', () => {
@@ -133,7 +133,7 @@ describe('pass/fail export', () => {
     const rows = parsed.data.filter((r) => !r.device_id.startsWith("'#") && !r.device_id.startsWith('#'));
     expect(parsed.meta.fields).toEqual(expect.arrayContaining(['device_id', 'result', 'reasons', 'power_class', 'outlier', 'pmp_w', 'spec_version', 'release_state']));
 
-    const curves = (await designer.get(`/api/batches/${lineTwo}/curves?pageSize=500`)).body.curves;
+    const curves = (await designer.get(`/api/batches/${lineTwo}/curves?page_size=500`)).body.curves;
     expect(rows).toHaveLength(curves.length);
     for (const c of curves) {
       const row = rows.find((r) => r.device_id === c.device_id)!;
@@ -141,7 +141,7 @@ describe('pass/fail export', () => {
       expect([c.device_id, row.result]).toEqual([c.device_id, expected.result]);
       for (const key of expected.reasons) expect(row.reasons).toContain(key === 'step' ? 'flag "step"' : key);
       if (expected.result === 'pass') expect(row.reasons).toBe('');
-      expect(row.power_class).toBe(expected.powerClass);
+      expect(row.power_class).toBe(expected.power_class);
       expect(Number(row.pmp_w)).toBeCloseTo(c.metrics.pmp_w, 6);
       expect(row.spec_version).toBe(`${moduleSpec.name} v1`);
       expect(row.release_state).toBe('open');
@@ -188,8 +188,8 @@ describe('review and release', () => {
 
   it('holding needs a reason; only a QA lead decides', async () => {
     const spec = (await qa.get('/api/specs')).body.specs.find((s: { name: string }) => s.name === moduleSpec.name);
-    expect((await tester.post(`/api/batches/${lineThree}/decision`).send({ decision: 'release', specId: spec.id })).status).toBe(403);
-    const hold = await qa.post(`/api/batches/${lineThree}/decision`).send({ decision: 'hold', specId: spec.id });
+    expect((await tester.post(`/api/batches/${lineThree}/decision`).send({ decision: 'release', spec_id: spec.id })).status).toBe(403);
+    const hold = await qa.post(`/api/batches/${lineThree}/decision`).send({ decision: 'hold', spec_id: spec.id });
     expect(hold.status).toBe(400);
     expect(hold.body.message).toMatch(/why/);
     expect((await qa.get(`/api/batches/${lineThree}`)).body.state).toBe('in_review');
@@ -199,7 +199,7 @@ describe('review and release', () => {
     const spec = (await qa.get('/api/specs')).body.specs.find((s: { name: string }) => s.name === moduleSpec.name);
     const evaluation = (await qa.get(`/api/batches/${lineThree}/evaluation?spec=${spec.id}`)).body;
     const before = h.mails().length;
-    const res = await qa.post(`/api/batches/${lineThree}/decision`).send({ decision: 'release', specId: spec.id, comment: 'All within limits.' });
+    const res = await qa.post(`/api/batches/${lineThree}/decision`).send({ decision: 'release', spec_id: spec.id, comment: 'All within limits.' });
     expect(res.status).toBe(200);
     expect(res.body.batch.state).toBe('released');
     expect(res.body.counts).toEqual(evaluation.counts);
@@ -209,12 +209,12 @@ describe('review and release', () => {
     expect(mail[0]).toMatch(/released/);
     const reviews = (await designer.get(`/api/batches/${lineThree}/reviews`)).body.reviews;
     expect(reviews.map((r: { action: string }) => r.action)).toEqual(['released', 'submitted']);
-    expect(reviews[0]).toEqual(expect.objectContaining({ specId: spec.id, actor: 'Quentin QA', counts: evaluation.counts, comment: 'All within limits.' }));
+    expect(reviews[0]).toEqual(expect.objectContaining({ spec_id: spec.id, actor: 'Quentin QA', counts: evaluation.counts, comment: 'All within limits.' }));
 
     const up = await tester.post(`/api/batches/${lineThree}/curves`).attach('files', Buffer.from('V,I\n0,1\n'), 'late.csv');
     expect(up.status).toBe(409);
     expect((await tester.patch(`/api/batches/${lineThree}`).send({ name: 'renamed' })).status).toBe(409);
-    expect((await qa.post(`/api/batches/${lineThree}/decision`).send({ decision: 'hold', specId: spec.id, comment: 'x' })).status).toBe(409);
+    expect((await qa.post(`/api/batches/${lineThree}/decision`).send({ decision: 'hold', spec_id: spec.id, comment: 'x' })).status).toBe(409);
     // The export now carries the release state and, without ?spec, the spec of the decision.
     const csv = await designer.get(`/api/batches/${lineThree}/pass-fail.csv`);
     expect(csv.status).toBe(200);
@@ -250,15 +250,15 @@ describe('comparison', () => {
     expect(res.body.rows).toBeUndefined();
     const rows = rowsOfColumns(res.body.tables, res.body.outliers, res.body.batches);
     expect(rows).toHaveLength(n2 + n3);
-    expect(rows.filter((r) => r.batchId === lineTwo)).toHaveLength(n2);
-    expect(rows[0]).toEqual(expect.objectContaining({ deviceId: expect.any(String), pmp_w: expect.any(Number), rs_ohm: expect.any(Number), result: expect.stringMatching(/pass|fail/) }));
+    expect(rows.filter((r) => r.batch_id === lineTwo)).toHaveLength(n2);
+    expect(rows[0]).toEqual(expect.objectContaining({ device_id: expect.any(String), pmp_w: expect.any(Number), rs_ohm: expect.any(Number), result: expect.stringMatching(/pass|fail/) }));
     const s2 = res.body.stats[lineTwo].rs_ohm;
     expect(s2.n).toBe(n2);
     expect(s2.cpk).toEqual(expect.any(Number)); // against the spec's rs_ohm max
     const d = res.body.differences[0];
     // Independent check of the difference and the Welch–Satterthwaite degrees of freedom
     // (Welch 1947) from the rows themselves.
-    const pick = (id: string) => rows.filter((r) => r.batchId === id).map((r) => r.rs_ohm as number);
+    const pick = (id: string) => rows.filter((r) => r.batch_id === id).map((r) => r.rs_ohm as number);
     const a = pick(lineTwo);
     const b = pick(lineThree);
     const mean = (x: number[]) => x.reduce((s, v) => s + v, 0) / x.length;
@@ -278,10 +278,10 @@ describe('comparison', () => {
     for (const param of ['pmp_w', 'rs_ohm', 'ff']) {
       const res = await designer.get(`/api/compare?batches=${lineTwo},${lineThree}&spec=${spec.id}&param=${param}`);
       expect(res.status).toBe(200);
-      const rows = rowsOfColumns(res.body.tables, res.body.outliers, res.body.batches).filter((r) => r.batchId === lineTwo);
-      const expected = new Map(evaluation.devices.map((d: { deviceId: string; outlierParams: string[] }) => [d.deviceId, d.outlierParams.includes(param)]));
+      const rows = rowsOfColumns(res.body.tables, res.body.outliers, res.body.batches).filter((r) => r.batch_id === lineTwo);
+      const expected = new Map(evaluation.devices.map((d: { device_id: string; outlier_params: string[] }) => [d.device_id, d.outlier_params.includes(param)]));
       expect(rows).toHaveLength(expected.size);
-      for (const r of rows) expect(r.outlier).toBe(expected.get(r.deviceId));
+      for (const r of rows) expect(r.outlier).toBe(expected.get(r.device_id));
       expect(res.body.counts[lineTwo].outliers).toBe([...expected.values()].filter(Boolean).length);
       expect(res.body.counts[lineTwo].pass).toBe(evaluation.counts.pass);
     }
@@ -289,14 +289,14 @@ describe('comparison', () => {
 
   it('answers again after a refit changed a batch (no stale comparison)', async () => {
     const first = await designer.get(`/api/compare?batches=${lineTwo}&param=n`);
-    const row = rowsOfColumns(first.body.tables, first.body.outliers, first.body.batches).find((r) => r.deviceId === 'M2611-005')!;
-    const tempC = (await tester.get(`/api/curves/${row.curveId}`)).body.meta.tempC;
-    const refit = await tester.post(`/api/curves/${row.curveId}/refit`).send({ tempC: tempC + 20, model: 'single' });
+    const row = rowsOfColumns(first.body.tables, first.body.outliers, first.body.batches).find((r) => r.device_id === 'M2611-005')!;
+    const temp_c = (await tester.get(`/api/curves/${row.curve_id}`)).body.meta.temp_c;
+    const refit = await tester.post(`/api/curves/${row.curve_id}/refit`).send({ temp_c: temp_c + 20, model: 'single' });
     expect(refit.status).toBe(200);
     const again = await designer.get(`/api/compare?batches=${lineTwo}&param=n`);
-    const after = rowsOfColumns(again.body.tables, again.body.outliers, again.body.batches).find((r) => r.deviceId === 'M2611-005')!;
+    const after = rowsOfColumns(again.body.tables, again.body.outliers, again.body.batches).find((r) => r.device_id === 'M2611-005')!;
     // n·T is what the fit determines, so n falls by the ratio of absolute temperatures.
-    expect((after.n as number) / (row.n as number)).toBeCloseTo((tempC + 273.15) / (tempC + 20 + 273.15), 2);
+    expect((after.n as number) / (row.n as number)).toBeCloseTo((temp_c + 273.15) / (temp_c + 20 + 273.15), 2);
   });
 
   it('404 when a batch belongs to another organisation; 400 for an unknown parameter', async () => {

@@ -50,8 +50,8 @@ const gatedAnalyser: Analyser = {
 
 /** A cell curve simulated from the benchmark cell's published optimum (tests/fixtures/reference-data/README.md), `rs_ohm` changed for a failing device. */
 function cellFile(device: string, scale: number, rs_ohm = 0.036547): Buffer {
-  const c = simulateCurve({ iph_a: 0.760788 * scale, i0_a: 3.1068e-7, n: 1.47727, rs_ohm, rsh_ohm: 52.89 }, { cells: 1, tempC: 33, points: 30 });
-  return Buffer.from([`# device: ${device}`, '# cell temperature: 33', 'V,I', ...c.voltage_V.map((v, k) => `${v},${c.current_A[k]}`)].join('\n'));
+  const c = simulateCurve({ iph_a: 0.760788 * scale, i0_a: 3.1068e-7, n: 1.47727, rs_ohm, rsh_ohm: 52.89 }, { cells: 1, temp_c: 33, points: 30 });
+  return Buffer.from([`# device: ${device}`, '# cell temperature: 33', 'V,I', ...c.voltage_v.map((v, k) => `${v},${c.current_a[k]}`)].join('\n'));
 }
 
 let h: Harness;
@@ -83,7 +83,7 @@ async function submit(batchId: string) {
   expect((await tester.post(`/api/batches/${batchId}/submit`).send({})).status).toBe(200);
 }
 
-const curveCount = async (batchId: string) => (await h.database.db.select({ id: curve.id }).from(curve).where(eq(curve.batchId, batchId))).length;
+const curve_count = async (batchId: string) => (await h.database.db.select({ id: curve.id }).from(curve).where(eq(curve.batchId, batchId))).length;
 
 /** The session cookie of a member, for requests written by hand. */
 async function cookieOf(email: string): Promise<string> {
@@ -118,7 +118,7 @@ describe('a released batch is final', () => {
   it('an upload whose body was still arriving when the batch was released is refused (409) and stores nothing; the CSV stays byte-identical', async () => {
     const b = await makeBatch('race');
     await submit(b.id);
-    const before = await curveCount(b.id);
+    const before = await curve_count(b.id);
 
     // A multipart body written by hand, the file's second half held back.
     const boundary = 'ql-slow-boundary';
@@ -158,16 +158,16 @@ describe('a released batch is final', () => {
     const res = await response;
     expect(res.status).toBe(409);
     expect(res.body.code).toBe('batch_released');
-    expect(await curveCount(b.id)).toBe(before);
+    expect(await curve_count(b.id)).toBe(before);
 
     // Replace a reviewed passing device, refit it, upload another: all refused, nothing changes.
-    const replace = await tester.post(`/api/batches/${b.id}/curves`).field('onDuplicate', 'replace').attach('files', cellFile('race-1', 0.5), 'c1.csv');
+    const replace = await tester.post(`/api/batches/${b.id}/curves`).field('on_duplicate', 'replace').attach('files', cellFile('race-1', 0.5), 'c1.csv');
     expect([replace.status, replace.body.code]).toEqual([409, 'batch_released']);
-    const refit = await tester.post(`/api/curves/${b.curveIds[0]}/refit`).send({ model: 'single', tempC: 60 });
+    const refit = await tester.post(`/api/curves/${b.curveIds[0]}/refit`).send({ model: 'single', temp_c: 60 });
     expect([refit.status, refit.body.code]).toEqual([409, 'batch_released']);
     const another = await tester.post(`/api/batches/${b.id}/curves`).attach('files', cellFile('race-9', 1), 'c9.csv');
     expect([another.status, another.body.code]).toEqual([409, 'batch_released']);
-    expect(await curveCount(b.id)).toBe(before);
+    expect(await curve_count(b.id)).toBe(before);
     const csvAfter = await designer.get(`/api/batches/${b.id}/pass-fail.csv`);
     expect(Buffer.from(csvAfter.text).equals(Buffer.from(csvBefore.text))).toBe(true);
   });
@@ -175,7 +175,7 @@ describe('a released batch is final', () => {
   it('an upload still being fitted when the batch is released stores nothing (the check sits in the writing transaction)', async () => {
     const b = await makeBatch('fitting');
     await submit(b.id);
-    const before = await curveCount(b.id);
+    const before = await curve_count(b.id);
     const g = closeGate();
     const upload = tester.post(`/api/batches/${b.id}/curves`).attach('files', cellFile('fitting-late', 1.02), 'late.csv').then((r) => r);
     await g.reached; // received, checked writable, now waiting in the analyser
@@ -187,7 +187,7 @@ describe('a released batch is final', () => {
     expect([res.status, res.body.code]).toEqual([409, 'batch_released']);
     // Said by the upload's own locked check, not only by the database's guard behind it.
     expect(res.body.message).toMatch(/released.*Nothing was stored/);
-    expect(await curveCount(b.id)).toBe(before);
+    expect(await curve_count(b.id)).toBe(before);
   });
 
   it('the database refuses a direct insert, change or delete of a curve or fit of a released batch, and that refusal answers 409 batch_released', async () => {
@@ -202,7 +202,7 @@ describe('a released batch is final', () => {
     await expect(db.update(curve).set({ pmp_w: 1 }).where(eq(curve.id, row.id))).rejects.toBeTruthy();
     await expect(db.delete(curve).where(eq(curve.id, row.id))).rejects.toBeTruthy();
     await expect(db.update(fit).set({ current: false }).where(eq(fit.curveId, row.id))).rejects.toBeTruthy();
-    expect(await curveCount(b.id)).toBe(3);
+    expect(await curve_count(b.id)).toBe(3);
     expect((await db.select().from(curve).where(eq(curve.id, row.id)))[0].pmp_w).toBe(row.pmp_w);
 
     // The database's own error, as any route would meet it, goes out as 409 batch_released.
@@ -227,7 +227,7 @@ describe('a released batch is final', () => {
     for (const d of detail.devices) {
       const c = (await designer.get(`/api/curves/${d.curve_id}`)).body;
       // Hashes recomputed here from what the API serves: the points as JSON [V, I], and the uploaded file's bytes.
-      expect(d.points_sha256).toBe(sha256(JSON.stringify([c.points.voltage_V, c.points.current_A])));
+      expect(d.points_sha256).toBe(sha256(JSON.stringify([c.points.voltage_v, c.points.current_a])));
       const k = Number(d.device_id.split('-').pop());
       expect(d.file_sha256).toBe(sha256(cellFile(`record-${k}`, k === 1 ? 1 : k === 2 ? 1.01 : 0.99, k === 3 ? 0.3 : undefined)));
       expect(d.figures.pmp_w).toBeCloseTo(c.metrics.pmp_w, 12);
@@ -302,7 +302,7 @@ describe('reopening a released batch', () => {
     expect(old.text).toBe(csvReleased);
 
     // Changed, submitted and released again: revision 2, the first release unchanged beside it.
-    expect((await tester.post(`/api/curves/${b.curveIds[1]}/refit`).send({ model: 'single', tempC: 30 })).status).toBe(200);
+    expect((await tester.post(`/api/curves/${b.curveIds[1]}/refit`).send({ model: 'single', temp_c: 30 })).status).toBe(200);
     await submit(b.id);
     expect((await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', specId: loose })).status).toBe(200);
     const releases = (await designer.get(`/api/batches/${b.id}/reviews`)).body.releases;
@@ -314,7 +314,7 @@ describe('reopening a released batch', () => {
 describe('concurrent spec edits', () => {
   it('two saves on one base version: one makes the next version, the other gets 409 spec_conflict with the newer changes', async () => {
     const v1 = (await qa.post('/api/specs').send({ name: 'Shared', limits: { pmp_w: { min: 0.2 } } })).body;
-    const edit = (limits: Record<string, { min?: number; max?: number }>) => ({ name: 'Shared', limits, familyId: v1.familyId, base_version: 1 });
+    const edit = (limits: Record<string, { min?: number; max?: number }>) => ({ name: 'Shared', limits, family_id: v1.family_id, base_version: 1 });
     const answers = await Promise.all([qa.post('/api/specs').send(edit({ pmp_w: { min: 0.25 } })), qa2.post('/api/specs').send(edit({ pmp_w: { min: 0.2 }, ff: { min: 0.7 } }))]);
     expect(answers.map((a) => a.status).sort()).toEqual([201, 409]);
     const saved = answers.find((a) => a.status === 201)!.body;
@@ -324,7 +324,7 @@ describe('concurrent spec edits', () => {
     // Re-applied on the newer version, the save goes through.
     const again = await qa2.post('/api/specs').send({ ...edit({ pmp_w: { min: 0.25 }, ff: { min: 0.7 } }), base_version: 2 });
     expect([again.status, again.body.version]).toEqual([201, 3]);
-    const missing = await qa.post('/api/specs').send({ name: 'Shared', limits: {}, familyId: v1.familyId });
+    const missing = await qa.post('/api/specs').send({ name: 'Shared', limits: {}, family_id: v1.family_id });
     expect(missing.status).toBe(400);
     expect(missing.body.message).toMatch(/base_version/);
   });

@@ -27,8 +27,8 @@ import { openTestDatabase } from '@/tests/support/test-database';
 
 /** The benchmark cell simulated from its published optimum (tests/fixtures/reference-data/README.md). */
 const cellRows = (() => {
-  const c = simulateCurve({ iph_a: 0.760788, i0_a: 3.1068e-7, n: 1.47727, rs_ohm: 0.036547, rsh_ohm: 52.89 }, { cells: 1, tempC: 33, points: 30 });
-  return ['V,I', ...c.voltage_V.map((v, k) => `${v},${c.current_A[k]}`)].join('\n');
+  const c = simulateCurve({ iph_a: 0.760788, i0_a: 3.1068e-7, n: 1.47727, rs_ohm: 0.036547, rsh_ohm: 52.89 }, { cells: 1, temp_c: 33, points: 30 });
+  return ['V,I', ...c.voltage_v.map((v, k) => `${v},${c.current_a[k]}`)].join('\n');
 })();
 const cellFile = (header = '') => Buffer.from(header + cellRows);
 
@@ -233,7 +233,7 @@ describe('uploads never write to the file system', () => {
     expect(createRequire(require.resolve('multer'))('fs')).toBe(fs);
     expect(jest.isMockFunction(fs.createWriteStream)).toBe(true);
     const promiseSpies = (['writeFile', 'open', 'mkdir', 'appendFile', 'rename', 'copyFile'] as const).map((w) => jest.spyOn(fs.promises, w));
-    let req = tester.post(`/api/batches/${batchId}/curves`).field('onDuplicate', 'keep');
+    let req = tester.post(`/api/batches/${batchId}/curves`).field('on_duplicate', 'keep');
     for (const n of names) req = req.attach('files', cellFile(), n);
     const res = await req;
     const calls = [...spies, ...promiseSpies].flatMap((s) => s.mock.calls.map((c) => String(c[0])));
@@ -241,10 +241,10 @@ describe('uploads never write to the file system', () => {
 
     expect(res.status).toBe(201);
     expect(calls).toEqual([]);
-    const results = res.body.results as { file: string; accepted: boolean; curveId: string; deviceId: string }[];
+    const results = res.body.results as { file: string; accepted: boolean; curve_id: string; device_id: string }[];
     expect(results.map((r) => r.accepted)).toEqual(names.map(() => true));
     for (const [k, r] of results.entries()) {
-      const [row] = await h.database.db.select({ fileName: curve.fileName, deviceId: curve.deviceId }).from(curve).where(eq(curve.id, r.curveId));
+      const [row] = await h.database.db.select({ fileName: curve.fileName, deviceId: curve.deviceId }).from(curve).where(eq(curve.id, r.curve_id));
       // The multipart reader keeps only the last path segment; the id is that name without its extension.
       expect(row.fileName).toBe(`${tag}-${'abcde'[k]}.csv`);
       expect(row.deviceId).toBe(`${tag}-${'abcde'[k]}`);
@@ -273,8 +273,8 @@ describe('the pass/fail CSV is formula-safe in every text column', () => {
 
     // Labels and a name chosen to be formulas; the Pmax limit fails every device so reasons are written.
     const specs = [
-      { name: '=HYPERLINK("http://evil.example","spec")', limits: { pmp_w: { min: 1000 }, ff: { max: 0.5 } }, powerClasses: { bins: [{ label: '=cmd|calc', nominal_w: 0.3, min_w: 0, max_w: 0.3105 }, { label: '@SUM(A1)', nominal_w: 0.32, min_w: 0.3105, max_w: 10 }] } },
-      { name: '+plus spec', limits: { pmp_w: { min: 0 } }, powerClasses: { step_w: 0.01, label_prefix: '-' } },
+      { name: '=HYPERLINK("http://evil.example","spec")', limits: { pmp_w: { min: 1000 }, ff: { max: 0.5 } }, power_classes: { bins: [{ label: '=cmd|calc', nominal_w: 0.3, min_w: 0, max_w: 0.3105 }, { label: '@SUM(A1)', nominal_w: 0.32, min_w: 0.3105, max_w: 10 }] } },
+      { name: '+plus spec', limits: { pmp_w: { min: 0 } }, power_classes: { step_w: 0.01, label_prefix: '-' } },
     ];
     const qa = await signIn(h.app, 'qa@csv-pv.example', 'correct-horse-9');
     for (const body of specs) {

@@ -15,7 +15,7 @@ export default function OutboxScreen() {
             {d.messages.map((m) => (
               <Card key={m.id} title={m.subject}>
                 <Txt variant="caption">
-                  To {m.to} · {new Date(m.createdAt).toLocaleString()} · {m.transport === 'file' ? 'written to the local outbox' : 'sent by SMTP'}
+                  To {m.to} · {new Date(m.created_at).toLocaleString()} · {m.transport === 'file' ? 'written to the local outbox' : 'sent by SMTP'}
                 </Txt>
                 <Txt variant="body" numberOfLines={8}>{m.body}</Txt>
               </Card>

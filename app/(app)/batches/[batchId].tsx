@@ -31,7 +31,7 @@ function Summary({ b }: { b: Batch }) {
   };
   return (
     <View style={styles.figures} testID="batch-summary">
-      <Figure label="Curves" value={String(b.curveCount ?? 0)} note={Object.entries(b.flagCounts ?? {}).filter(([k]) => k !== 'temperature-assumed').map(([k, n]) => `${n} ${k}`).join(', ') || 'no warnings'} />
+      <Figure label="Curves" value={String(b.curve_count ?? 0)} note={Object.entries(b.flag_counts ?? {}).filter(([k]) => k !== 'temperature-assumed').map(([k, n]) => `${n} ${k}`).join(', ') || 'no warnings'} />
       {item('pmp_w', 'Pmax')}
       {item('voc_v', 'Voc')}
       {item('isc_a', 'Isc')}
@@ -50,7 +50,7 @@ export default function BatchScreen() {
   const overlay = useOverlay(id);
   const [editing, setEditing] = useState(false);
   const [search, setSearch] = useState('');
-  const [params, setParams] = useState<CurveListParams>({ page: 1, pageSize: PAGE_SIZE, sort: 'device_id', dir: 'asc', q: '' });
+  const [params, setParams] = useState<CurveListParams>({ page: 1, page_size: PAGE_SIZE, sort: 'device_id', dir: 'asc', q: '' });
   const curves = useBatchCurves(id, params);
   const { width } = useWindowDimensions();
   const wide = width >= theme.wideFrom;
@@ -68,7 +68,7 @@ export default function BatchScreen() {
         return (
           <Screen
             title={b.name}
-            subtitle={[b.productType, b.supplier && `supplier ${b.supplier}`, b.line && `line ${b.line}`, b.lot && `lot ${b.lot}`, b.batchDate, b.cells && `${b.cells} cells in series`, b.nameplate_w && `nameplate ${b.nameplate_w} W`].filter(Boolean).join(' · ')}
+            subtitle={[b.product_type, b.supplier && `supplier ${b.supplier}`, b.line && `line ${b.line}`, b.lot && `lot ${b.lot}`, b.batch_date, b.cells && `${b.cells} cells in series`, b.nameplate_w && `nameplate ${b.nameplate_w} W`].filter(Boolean).join(' · ')}
             testID="batch-screen"
             actions={
               <View style={{ flexDirection: 'row', gap: 8, alignItems: 'center' }}>
@@ -99,7 +99,7 @@ export default function BatchScreen() {
                 <QueryState query={overlay} isEmpty={(d) => d.curves.length === 0} empty="No curves yet.">
                   {(d) => (
                     <>
-                      <OverlayChart curves={d.curves} batchName={b.name} testID="overlay-chart" />
+                      <OverlayChart curves={d.curves} batch_name={b.name} testID="overlay-chart" />
                       <Txt variant="caption">
                         {d.sampled < d.total ? `${d.sampled} of ${d.total} curves, evenly sampled by device id.` : `${d.total} curves.`}
                       </Txt>
@@ -124,7 +124,7 @@ export default function BatchScreen() {
               </View>
               <QueryState query={curves} isEmpty={(d) => d.curves.length === 0} empty={params.q ? 'No device id matches.' : 'No curves yet.'}>
                 {(d) => {
-                  const pages = Math.max(1, Math.ceil(d.total / d.pageSize));
+                  const pages = Math.max(1, Math.ceil(d.total / d.page_size));
                   return (
                     <View style={{ gap: 10 }}>
                       <CurveTable rows={d.curves} sort={params.sort} dir={params.dir} onSort={(sort, dir) => setParams((p) => ({ ...p, sort, dir, page: 1 }))} />

@@ -54,11 +54,11 @@ export default function BatchesScreen() {
                         <StateBadge state={b.archived ? 'archived' : b.state} />
                       </View>
                       <Txt variant="caption" numberOfLines={1}>
-                        {[b.productType, b.supplier, b.line && `line ${b.line}`, b.batchDate].filter(Boolean).join(' · ') || 'No description'}
+                        {[b.product_type, b.supplier, b.line && `line ${b.line}`, b.batch_date].filter(Boolean).join(' · ') || 'No description'}
                       </Txt>
                       <View style={{ flexDirection: 'row', gap: 16 }}>
-                        <Txt variant="figure">{b.curveCount ?? 0} curves</Txt>
-                        <Txt variant="figure">mean Pmax {fmtParam('pmp_w', b.meanPmp_w ?? null)}</Txt>
+                        <Txt variant="figure">{b.curve_count ?? 0} curves</Txt>
+                        <Txt variant="figure">mean Pmax {fmtParam('pmp_w', b.mean_pmp_w ?? null)}</Txt>
                       </View>
                     </Pressable>
                   </Link>

@@ -24,7 +24,7 @@ import { isParamKey } from '@/lib/quality/params';
 import type { ParamKey } from '@/lib/quality/params';
 import { isAboveElv } from '@/lib/strings/cautions';
 
-const ALL_COLUMNS: CompareColumnId[] = ['deviceId', 'batchName', 'result', 'powerClass', 'outlier', ...GRID_PARAMS, 'flags', 'reasons'];
+const ALL_COLUMNS: CompareColumnId[] = ['device_id', 'batch_name', 'result', 'power_class', 'outlier', ...GRID_PARAMS, 'flags', 'reasons'];
 
 function cellText(id: CompareColumnId, r: CompareRow): string {
   const v = r[id];
@@ -41,7 +41,7 @@ function columnDefs(ids: CompareColumnId[]): ColumnDef<CompareRow>[] {
     header: columnHeader(id),
     accessorFn: (r: CompareRow) => (r[id] as unknown) ?? null,
     cell: (ctx) => cellText(id, ctx.row.original),
-    size: id === 'deviceId' ? 130 : id === 'batchName' ? 170 : id === 'flags' || id === 'reasons' ? 220 : id === 'result' || id === 'outlier' ? 80 : id === 'i0_a' || id === 'j0_a_cm2' || id === 'rmse_a' ? 124 : 96,
+    size: id === 'device_id' ? 130 : id === 'batch_name' ? 170 : id === 'flags' || id === 'reasons' ? 220 : id === 'result' || id === 'outlier' ? 80 : id === 'i0_a' || id === 'j0_a_cm2' || id === 'rmse_a' ? 124 : 96,
     sortUndefined: 'last',
   }));
 }
@@ -104,7 +104,7 @@ export default function CompareScreen() {
           {(d) => (
             <View style={styles.chips}>
               {d.batches.filter((b) => !b.archived).map((b) => (
-                <Chip key={b.id} on={selected.includes(b.id)} label={`${b.name} (${b.curveCount ?? 0})`} onPress={() => setSelected(toggle(selected, b.id))} testID={`pick-${b.name}`} />
+                <Chip key={b.id} on={selected.includes(b.id)} label={`${b.name} (${b.curve_count ?? 0})`} onPress={() => setSelected(toggle(selected, b.id))} testID={`pick-${b.name}`} />
               ))}
             </View>
           )}
@@ -139,7 +139,7 @@ export default function CompareScreen() {
               sorting={sorting}
               setSorting={setSorting}
               filters={{ onlyBatches, setOnlyBatches, result, setResult, flag, setFlag, range, setRange }}
-              onOpen={(r) => router.push(`/curves/${r.curveId}`)}
+              onOpen={(r) => router.push(`/curves/${r.curve_id}`)}
             />
           )}
         </QueryState>
@@ -182,7 +182,7 @@ function CompareBody(props: {
     const hi = f.range.max.trim() ? Number(f.range.max.replace(',', '.')) : null;
     const scale = param === 'ff' || param === 'efficiency' ? 0.01 : 1; // the range is typed as shown (%)
     return c.rows.filter((r) => {
-      if (f.onlyBatches.length && !f.onlyBatches.includes(r.batchId)) return false;
+      if (f.onlyBatches.length && !f.onlyBatches.includes(r.batch_id)) return false;
       if (f.result !== 'all' && r.result !== f.result) return false;
       if (f.flag && !r.flags.includes(f.flag)) return false;
       const v = r[param] as number | null;
@@ -249,7 +249,7 @@ function CompareBody(props: {
           </View>
           {props.choosing ? (
             <View style={styles.chooser} testID="column-chooser">
-              {ALL_COLUMNS.filter((id) => id !== 'deviceId').map((id) => {
+              {ALL_COLUMNS.filter((id) => id !== 'device_id').map((id) => {
                 const on = columns.includes(id);
                 return (
                   <View key={id} style={styles.chooseRow}>
@@ -301,7 +301,7 @@ function CompareBody(props: {
           </View>
           <View style={wide ? { flex: 1.2 } : undefined}>
             <DistributionChart
-              groups={c.batches.map((b) => ({ name: b.name, values: c.rows.filter((r) => r.batchId === b.id).map((r) => r[param] as number).filter((v) => typeof v === 'number' && Number.isFinite(v)).map((v) => (param === 'ff' || param === 'efficiency' ? v * 100 : v)) }))}
+              groups={c.batches.map((b) => ({ name: b.name, values: c.rows.filter((r) => r.batch_id === b.id).map((r) => r[param] as number).filter((v) => typeof v === 'number' && Number.isFinite(v)).map((v) => (param === 'ff' || param === 'efficiency' ? v * 100 : v)) }))}
               label={columnHeader(param)}
               testID="distribution-chart"
             />
@@ -311,7 +311,7 @@ function CompareBody(props: {
           <Txt variant="label">Is the difference real? (Welch’s t-test, 95 % confidence)</Txt>
           {c.differences.length === 0 ? <Txt variant="caption">Pick a second batch to compare means.</Txt> : null}
           {c.differences.map((d) => (
-            <Txt key={d.batchB} variant="body">{d.error ? `Cannot compare: ${d.error}` : d.sentence}</Txt>
+            <Txt key={d.batch_b} variant="body">{d.error ? `Cannot compare: ${d.error}` : d.sentence}</Txt>
           ))}
         </View>
       </Card>

@@ -26,16 +26,16 @@ import { isAboveElv } from '@/lib/strings/cautions';
 function modelSeries(c: CurveDetail, f: FitJson | undefined): Series | null {
   if (!f || !f.converged) return null;
   const cells = Number(f.conditions.cells ?? c.meta.cells ?? 1);
-  const tempC = Number(f.conditions.tempC ?? c.meta.tempC ?? 25);
-  const v0 = Math.min(0, c.points.voltage_V[0]);
-  const v1 = Math.max(...c.points.voltage_V);
+  const temp_c = Number(f.conditions.temp_c ?? c.meta.temp_c ?? 25);
+  const v0 = Math.min(0, c.points.voltage_v[0]);
+  const v1 = Math.max(...c.points.voltage_v);
   const grid = Array.from({ length: 121 }, (_, k) => v0 + ((v1 - v0) * k) / 120);
   try {
     if (f.model === 'single-diode') {
-      return { voltage_V: grid, current_A: singleDiodeCurrents({ iph_a: f.iph_a!, i0_a: f.i0_a!, n: f.n!, rs_ohm: f.rs_ohm!, rsh_ohm: f.rsh_ohm! }, grid, cells, tempC) };
+      return { voltage_v: grid, current_a: singleDiodeCurrents({ iph_a: f.iph_a!, i0_a: f.i0_a!, n: f.n!, rs_ohm: f.rs_ohm!, rsh_ohm: f.rsh_ohm! }, grid, cells, temp_c) };
     }
     const p = { iph_a: f.iph_a!, i01_a: f.i01_a!, n1: f.n1!, i02_a: f.i02_a!, n2: f.n2!, rs_ohm: f.rs_ohm!, rsh_ohm: f.rsh_ohm! };
-    return { voltage_V: grid, current_A: grid.map((v) => doubleDiodeCurrent(p, v, cells, tempC)) };
+    return { voltage_v: grid, current_a: grid.map((v) => doubleDiodeCurrent(p, v, cells, temp_c)) };
   } catch {
     return null;
   }
@@ -102,13 +102,13 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
   const comparison = compareFits(single, double);
   const mpp = { v: c.metrics.vmp_v, i: c.metrics.imp_a };
   const m = c.metrics;
-  const residualSets = [single, double].filter((f): f is FitJson => !!f && f.converged && f.residuals_a.length === c.points.voltage_V.length);
+  const residualSets = [single, double].filter((f): f is FitJson => !!f && f.converged && f.residuals_a.length === c.points.voltage_v.length);
   const conditions = [
-    c.meta.tempC != null ? `${c.meta.tempC} °C` : '25 °C assumed',
-    c.meta.irradiance_Wm2 != null ? `${c.meta.irradiance_Wm2} W/m²` : 'irradiance not given',
+    c.meta.temp_c != null ? `${c.meta.temp_c} °C` : '25 °C assumed',
+    c.meta.irradiance_w_m2 != null ? `${c.meta.irradiance_w_m2} W/m²` : 'irradiance not given',
     `${c.meta.cells ?? 1} cell${(c.meta.cells ?? 1) === 1 ? '' : 's'} in series`,
     c.meta.area_cm2 != null ? `${c.meta.area_cm2} cm²` : null,
-    c.meta.measuredAt ? `measured ${c.meta.measuredAt}` : null,
+    c.meta.measured_at ? `measured ${c.meta.measured_at}` : null,
   ].filter(Boolean);
   const flags = c.flags.filter((f) => f.code !== 'high-voltage');
   const router = useRouter();
@@ -167,7 +167,7 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
           <Txt variant="body">The two fits cannot be compared: one of them did not converge.</Txt>
         )}
         {residualSets.length ? (
-          <ResidualChart voltage_V={c.points.voltage_V} residuals={residualSets.map((f) => f.residuals_a)} labels={residualSets.map((f) => (f.model === 'single-diode' ? 'single diode' : 'double diode'))} download={c.device_id} testID="residual-chart" />
+          <ResidualChart voltage_v={c.points.voltage_v} residuals={residualSets.map((f) => f.residuals_a)} labels={residualSets.map((f) => (f.model === 'single-diode' ? 'single diode' : 'double diode'))} download={c.device_id} testID="residual-chart" />
         ) : null}
       </Card>
 
@@ -182,7 +182,7 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
                 <Figure label="FF" value={fmtParam('ff', c.stc.ff)} />
               </View>
               <Txt variant="caption">
-                From the fitted single diode at {c.stc.from.tempC} °C and {c.stc.from.irradiance_Wm2} W/m², moved to 1000 W/m² and 25 °C by the De Soto, Klein & Beckman (2006) scaling. {c.stc.notes.join(' ')}
+                From the fitted single diode at {c.stc.from.temp_c} °C and {c.stc.from.irradiance_w_m2} W/m², moved to 1000 W/m² and 25 °C by the De Soto, Klein & Beckman (2006) scaling. {c.stc.notes.join(' ')}
               </Txt>
             </>
           ) : (

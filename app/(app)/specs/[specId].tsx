@@ -48,16 +48,16 @@ export default function SpecScreen() {
                   </View>
                 ))}
                 <Txt variant="body">
-                  Power classes: {s.powerClasses?.step_w ? `${s.powerClasses.step_w} W steps on ${s.powerClasses.basis === 'pmp_w' ? 'measured Pmax' : 'Pmax at STC'}, positive-only tolerance` : s.powerClasses?.bins ? `${s.powerClasses.bins.length} explicit classes` : 'none'}
+                  Power classes: {s.power_classes?.step_w ? `${s.power_classes.step_w} W steps on ${s.power_classes.basis === 'pmp_w' ? 'measured Pmax' : 'Pmax at STC'}, positive-only tolerance` : s.power_classes?.bins ? `${s.power_classes.bins.length} explicit classes` : 'none'}
                 </Txt>
-                <Txt variant="body">Failing flags: {(s.failFlags ?? []).join(', ') || 'none'}</Txt>
+                <Txt variant="body">Failing flags: {(s.fail_flags ?? []).join(', ') || 'none'}</Txt>
                 {s.notes ? <Txt variant="caption">{s.notes}</Txt> : null}
               </Card>
               <Card title="Versions" style={wide ? { flex: 1 } : undefined} testID="spec-versions">
                 {(s.versions ?? []).slice().reverse().map((v) => (
                   <View key={v.id} style={{ gap: 2 }}>
                     <Txt variant="label" style={{ color: v.id === s.id ? theme.color.electron : theme.color.inkSoft }} onPress={() => router.push(`/specs/${v.id}`)}>
-                      Version {v.version} · {v.by ?? 'unknown'} · {new Date(v.createdAt).toLocaleString()}
+                      Version {v.version} · {v.by ?? 'unknown'} · {new Date(v.created_at).toLocaleString()}
                     </Txt>
                     <Txt variant="caption">{v.changes.join('; ')}</Txt>
                   </View>

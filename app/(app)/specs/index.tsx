@@ -44,7 +44,7 @@ export default function SpecsScreen() {
                     </Txt>
                   ))}
                   <Txt variant="caption">
-                    {s.powerClasses?.step_w ? `${s.powerClasses.step_w} W classes · ` : ''}fails on: {(s.failFlags ?? []).join(', ') || 'no flag'}
+                    {s.power_classes?.step_w ? `${s.power_classes.step_w} W classes · ` : ''}fails on: {(s.fail_flags ?? []).join(', ') || 'no flag'}
                   </Txt>
                 </Pressable>
               </Link>

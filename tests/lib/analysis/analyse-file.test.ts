@@ -19,7 +19,7 @@ describe('analyseFile() on the 57 mm reference cell at 33 °C, 1000 W/m² (refer
   // One run shared by the checks below (a full single + double fit).
   let r: FileAnalysis;
   beforeAll(() => {
-    r = analyseFile(bytesOf(CELL_CSV), { fileName: 'cell-57mm-33C.csv', overrides: { tempC: 33, irradiance_Wm2: 1000, cells: 1 } });
+    r = analyseFile(bytesOf(CELL_CSV), { fileName: 'cell-57mm-33C.csv', overrides: { temp_c: 33, irradiance_w_m2: 1000, cells: 1 } });
   });
 
   it('single-diode RMSE 7.7301e-4 A within 0.1 % (true-current optimum, README)', () => {
@@ -35,14 +35,14 @@ describe('analyseFile() on the 57 mm reference cell at 33 °C, 1000 W/m² (refer
     expect(Math.abs(r.metrics.voc_v / 0.57278 - 1)).toBeLessThan(2e-3);
     expect(Math.abs(r.metrics.pmp_w / 0.3107 - 1)).toBeLessThan(2e-3);
     expect(r.flags).toEqual([]);
-    expect(r.conditions).toEqual({ tempC: 33, cells: 1, irradiance_Wm2: 1000, idealities: 'fixed' });
+    expect(r.conditions).toEqual({ temp_c: 33, cells: 1, irradiance_w_m2: 1000, idealities: 'fixed' });
   });
 
   it('STC figures are present, translated from 1000 W/m², 33 °C, and finite', () => {
     expect(r.stc).not.toBeNull();
     const stc = r.stc!;
     expect(stc.method).toBe('model');
-    expect(stc.from).toEqual({ irradiance_Wm2: 1000, tempC: 33 });
+    expect(stc.from).toEqual({ irradiance_w_m2: 1000, temp_c: 33 });
     for (const k of ['isc_a', 'voc_v', 'pmp_w', 'imp_a', 'vmp_v', 'ff'] as const) expect(Number.isFinite(stc[k])).toBe(true);
     expect(stc.efficiency).toBeNull(); // no area given
     expect(stc.notes.some((n) => n.includes('No irradiance'))).toBe(false); // irradiance was given
@@ -83,20 +83,20 @@ describe('analyseFile() metadata precedence: overrides > file metadata > batch d
 
   it('the file beats the batch defaults', () => {
     const r = analyseFile(withMeta(FILE_META), { fileName: 'meta.csv', defaults: { cells: 36, area_cm2: 100 } });
-    expect(r.conditions).toMatchObject({ tempC: 40, cells: 2, irradiance_Wm2: 800 });
+    expect(r.conditions).toMatchObject({ temp_c: 40, cells: 2, irradiance_w_m2: 800 });
     expect(r.curve.meta.area_cm2).toBe(20);
     // Efficiency uses the file's area and irradiance: Pmp/(800 W/m² · 20e-4 m²) = Pmp/1.6 W.
     expect(r.metrics.efficiency).toBeCloseTo(r.metrics.pmp_w / 1.6, 12);
-    expect(r.stc?.from).toEqual({ irradiance_Wm2: 800, tempC: 40 });
+    expect(r.stc?.from).toEqual({ irradiance_w_m2: 800, temp_c: 40 });
   });
 
   it('the overrides beat the file', () => {
     const r = analyseFile(withMeta(FILE_META), {
       fileName: 'meta.csv',
-      overrides: { tempC: 33, irradiance_Wm2: 1000, cells: 1, area_cm2: 25 },
+      overrides: { temp_c: 33, irradiance_w_m2: 1000, cells: 1, area_cm2: 25 },
       defaults: { cells: 36, area_cm2: 100 },
     });
-    expect(r.conditions).toMatchObject({ tempC: 33, cells: 1, irradiance_Wm2: 1000 });
+    expect(r.conditions).toMatchObject({ temp_c: 33, cells: 1, irradiance_w_m2: 1000 });
     expect(r.curve.meta.area_cm2).toBe(25);
     // Pmp/(1000 W/m² · 25e-4 m²) = Pmp/2.5 W.
     expect(r.metrics.efficiency).toBeCloseTo(r.metrics.pmp_w / 2.5, 12);
@@ -106,9 +106,9 @@ describe('analyseFile() metadata precedence: overrides > file metadata > batch d
 
   it('an override left blank (null/undefined) does not wipe the file’s value', () => {
     // uploadOverridesSchema turns a blank form field into null, so nulls do reach analyseFile.
-    const blank: Record<string, number | null | undefined> = { tempC: undefined, cells: null, area_cm2: 30 };
+    const blank: Record<string, number | null | undefined> = { temp_c: undefined, cells: null, area_cm2: 30 };
     const r = analyseFile(withMeta(FILE_META), { fileName: 'meta.csv', overrides: blank as FileOverrides });
-    expect(r.conditions).toMatchObject({ tempC: 40, cells: 2 });
+    expect(r.conditions).toMatchObject({ temp_c: 40, cells: 2 });
     expect(r.curve.meta.area_cm2).toBe(30);
   });
 
@@ -116,7 +116,7 @@ describe('analyseFile() metadata precedence: overrides > file metadata > batch d
     const r = analyseFile(withMeta(['temperature: 33 °C', 'area: 20 cm2']), { fileName: 'partial.csv', defaults: { cells: 1, area_cm2: 100 } });
     expect(r.conditions.cells).toBe(1); // default
     expect(r.curve.meta.area_cm2).toBe(20); // file
-    expect(r.conditions.tempC).toBe(33);
+    expect(r.conditions.temp_c).toBe(33);
   });
 
   it('overrides beat the defaults when the file is silent', () => {
@@ -127,8 +127,8 @@ describe('analyseFile() metadata precedence: overrides > file metadata > batch d
 
   it('with nothing given: 25 °C and 1 cell are assumed and said (flag and STC note), device id from the file name', () => {
     const r = analyseFile(bytesOf(CELL_CSV), { fileName: 'CELL-0007.csv' });
-    expect(r.conditions).toEqual({ tempC: 25, cells: 1, irradiance_Wm2: null, idealities: 'fixed' });
-    expect(r.curve.meta.deviceId).toBe('CELL-0007');
+    expect(r.conditions).toEqual({ temp_c: 25, cells: 1, irradiance_w_m2: null, idealities: 'fixed' });
+    expect(r.curve.meta.device_id).toBe('CELL-0007');
     expect(r.flags.map((f) => f.code)).toContain('temperature-assumed');
     expect(r.stc?.notes).toContain('No irradiance given: the measurement was taken as 1000 W/m².');
     expect(r.metrics.efficiency).toBeNull();

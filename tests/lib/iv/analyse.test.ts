@@ -11,7 +11,7 @@ const readRef = (file: string) => parseIvText(readFileSync(path.join(REF_DIR, fi
 
 describe('analyseCurve()', () => {
   it('returns key figures, flags and both fits in one call', () => {
-    const r = analyseCurve(readRef('cell-57mm-33C.csv'), { tempC: 33, cells: 1 });
+    const r = analyseCurve(readRef('cell-57mm-33C.csv'), { temp_c: 33, cells: 1 });
     expect(r.fits.map((f) => f.model)).toEqual(['single-diode', 'double-diode']);
     expect(r.fits.every((f) => f.converged)).toBe(true);
     // Single-diode optimum 7.7301e-4 A (reference-data README) within 0.1 %.
@@ -30,7 +30,7 @@ describe('analyseCurve()', () => {
 
   it('temperature and cells from the file metadata count as given', () => {
     const curve = readRef('module-36cell-45C.csv');
-    curve.meta = { ...curve.meta, tempC: 45, cells: 36 };
+    curve.meta = { ...curve.meta, temp_c: 45, cells: 36 };
     const r = analyseCurve(curve, { models: ['single'] });
     expect(r.flags.map((f) => f.code)).toEqual(['isc-extrapolated']);
     expect(Math.abs((r.fits[0].rmse_a as number) / 2.053e-3 - 1)).toBeLessThan(1e-3); // README optimum
@@ -47,7 +47,7 @@ describe('analyseCurve()', () => {
       pts.push([2 * singleDiodeVoltage(full, i, 20, 25) + Math.max(singleDiodeVoltage(shaded, i, 20, 25), -0.5), i]);
     }
     pts.sort((a, b) => a[0] - b[0]);
-    const curve: IvCurve = { voltage_V: pts.map((p) => p[0]), current_A: pts.map((p) => p[1]), meta: { cells: 60, tempC: 25 }, notes: [] };
+    const curve: IvCurve = { voltage_v: pts.map((p) => p[0]), current_a: pts.map((p) => p[1]), meta: { cells: 60, temp_c: 25 }, notes: [] };
     const r = analyseCurve(curve, { models: ['single'] });
     const codes = r.flags.map((f) => f.code);
     expect(codes).toContain('step');

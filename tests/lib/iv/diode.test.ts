@@ -1,4 +1,4 @@
-import { KB_EV_PER_K, thermalVoltage_V, ZERO_C_IN_K } from '@/lib/physics/constants';
+import { KB_EV_PER_K, thermal_voltage_v, ZERO_C_IN_K } from '@/lib/physics/constants';
 import {
   doubleDiodeCurrent,
   doubleDiodeVoltage,
@@ -18,8 +18,8 @@ const MODULE72: SingleDiodeParams = { iph_a: 10.2, i0_a: 5e-11, n: 1.05, rs_ohm:
 const TINY_RS: SingleDiodeParams = { iph_a: 9, i0_a: 1e-12, n: 1, rs_ohm: 1e-9, rsh_ohm: 1e4 };
 
 /** Independent solution written in this test: bisection on the implicit single-diode equation. */
-function implicitCurrentByBisection(p: SingleDiodeParams, v: number, cells: number, tempC: number): number {
-  const a = p.n * cells * thermalVoltage_V(tempC);
+function implicitCurrentByBisection(p: SingleDiodeParams, v: number, cells: number, temp_c: number): number {
+  const a = p.n * cells * thermal_voltage_v(temp_c);
   const f = (i: number) => {
     const vd = v + i * p.rs_ohm;
     return p.iph_a - p.i0_a * Math.expm1(vd / a) - vd / p.rsh_ohm - i;
@@ -39,10 +39,10 @@ describe('singleDiodeCurrent() — explicit Lambert W form', () => {
     ['cell', CELL, 1, 33, [-0.2, 0, 0.3, 0.45, 0.5733, 0.65]],
     ['72-cell module', MODULE72, 72, 25, [-5, 0, 30, 40, 48, 60, 90]],
     ['tiny Rs', TINY_RS, 1, 25, [0, 0.5, 0.7, 0.8]],
-  ] as const)('%s: agrees with bisection on the implicit equation', (_name, p, cells, tempC, voltages) => {
+  ] as const)('%s: agrees with bisection on the implicit equation', (_name, p, cells, temp_c, voltages) => {
     for (const v of voltages) {
-      const i = singleDiodeCurrent(p, v, cells, tempC);
-      const ref = implicitCurrentByBisection(p, v, cells, tempC);
+      const i = singleDiodeCurrent(p, v, cells, temp_c);
+      const ref = implicitCurrentByBisection(p, v, cells, temp_c);
       expect(Number.isFinite(i)).toBe(true);
       expect(Math.abs(i - ref)).toBeLessThanOrEqual(1e-9 * Math.max(1, Math.abs(ref)));
     }
@@ -59,7 +59,7 @@ describe('singleDiodeCurrent() — explicit Lambert W form', () => {
 
   it('handles Rs = 0 exactly (explicit equation)', () => {
     const p = { ...CELL, rs_ohm: 0 };
-    const a = p.n * thermalVoltage_V(33);
+    const a = p.n * thermal_voltage_v(33);
     const v = 0.5;
     const direct = p.iph_a - p.i0_a * Math.expm1(v / a) - v / p.rsh_ohm;
     expect(singleDiodeCurrent(p, v, 1, 33)).toBeCloseTo(direct, 14);
@@ -77,8 +77,8 @@ describe('singleDiodeCurrent() — explicit Lambert W form', () => {
     [CELL, 0, 25],
     [CELL, 1.5, 25],
     [CELL, 1, -300],
-  ])('rejects bad parameters or conditions with IvInputError (%#)', (p, cells, tempC) => {
-    expect(() => singleDiodeCurrent(p, 0.3, cells, tempC)).toThrow(IvInputError);
+  ])('rejects bad parameters or conditions with IvInputError (%#)', (p, cells, temp_c) => {
+    expect(() => singleDiodeCurrent(p, 0.3, cells, temp_c)).toThrow(IvInputError);
   });
 });
 
@@ -86,10 +86,10 @@ describe('singleDiodeVoltage() — inverse of the current', () => {
   it.each([
     ['cell', CELL, 1, 33, [0, 0.1, 0.5, 0.75, -0.2]],
     ['72-cell module', MODULE72, 72, 25, [0, 1, 5, 9.5, 10.1]],
-  ] as const)('%s: V(I(V)) round trip', (_name, p, cells, tempC, currents) => {
+  ] as const)('%s: V(I(V)) round trip', (_name, p, cells, temp_c, currents) => {
     for (const i of currents) {
-      const v = singleDiodeVoltage(p, i, cells, tempC);
-      expect(singleDiodeCurrent(p, v, cells, tempC)).toBeCloseTo(i, 9);
+      const v = singleDiodeVoltage(p, i, cells, temp_c);
+      expect(singleDiodeCurrent(p, v, cells, temp_c)).toBeCloseTo(i, 9);
     }
   });
 
@@ -97,7 +97,7 @@ describe('singleDiodeVoltage() — inverse of the current', () => {
     const p = { ...CELL, rsh_ohm: 1e12 };
     const voc = singleDiodeVoltage(p, 0, 1, 33);
     // Without shunt Voc = a·ln(Iph/I0 + 1) exactly (Rs carries no current at open circuit).
-    const a = p.n * thermalVoltage_V(33);
+    const a = p.n * thermal_voltage_v(33);
     expect(voc).toBeCloseTo(a * Math.log(p.iph_a / p.i0_a + 1), 9);
   });
 });
@@ -106,8 +106,8 @@ describe('doubleDiodeCurrent() — bracketed Newton', () => {
   const DD: DoubleDiodeParams = { iph_a: 0.7608, i01_a: 7.03e-8, n1: 1.364, i02_a: 1e-6, n2: 1.796, rs_ohm: 0.0378, rsh_ohm: 56.3 };
 
   /** Independent: bisection on the implicit double-diode equation, written in this test. */
-  function ddBisection(p: DoubleDiodeParams, v: number, cells: number, tempC: number): number {
-    const vt = cells * thermalVoltage_V(tempC);
+  function ddBisection(p: DoubleDiodeParams, v: number, cells: number, temp_c: number): number {
+    const vt = cells * thermal_voltage_v(temp_c);
     const f = (i: number) => {
       const vd = v + i * p.rs_ohm;
       return p.iph_a - p.i01_a * Math.expm1(vd / (p.n1 * vt)) - p.i02_a * Math.expm1(vd / (p.n2 * vt)) - vd / p.rsh_ohm - i;
@@ -146,20 +146,20 @@ describe('doubleDiodeCurrent() — bracketed Newton', () => {
 
 describe('simulateCurve()', () => {
   it('spans 0 V to just past Voc by default, sorted, generator convention', () => {
-    const c = simulateCurve(CELL, { cells: 1, tempC: 33, points: 50 });
-    expect(c.voltage_V).toHaveLength(50);
-    expect(c.voltage_V[0]).toBe(0);
-    expect(c.current_A[0]).toBeGreaterThan(0.75);
-    expect(c.current_A[49]).toBeLessThan(0);
-    expect(c.meta).toEqual({ cells: 1, tempC: 33 });
+    const c = simulateCurve(CELL, { cells: 1, temp_c: 33, points: 50 });
+    expect(c.voltage_v).toHaveLength(50);
+    expect(c.voltage_v[0]).toBe(0);
+    expect(c.current_a[0]).toBeGreaterThan(0.75);
+    expect(c.current_a[49]).toBeLessThan(0);
+    expect(c.meta).toEqual({ cells: 1, temp_c: 33 });
   });
 
   it('adds reproducible Gaussian noise of the requested size', () => {
-    const clean = simulateCurve(CELL, { cells: 1, tempC: 33, points: 2000 });
-    const a = simulateCurve(CELL, { cells: 1, tempC: 33, points: 2000, noise_a: 0.002, seed: 5 });
-    const b = simulateCurve(CELL, { cells: 1, tempC: 33, points: 2000, noise_a: 0.002, seed: 5 });
-    expect(a.current_A).toEqual(b.current_A);
-    const d = a.current_A.map((x, k) => x - clean.current_A[k]);
+    const clean = simulateCurve(CELL, { cells: 1, temp_c: 33, points: 2000 });
+    const a = simulateCurve(CELL, { cells: 1, temp_c: 33, points: 2000, noise_a: 0.002, seed: 5 });
+    const b = simulateCurve(CELL, { cells: 1, temp_c: 33, points: 2000, noise_a: 0.002, seed: 5 });
+    expect(a.current_a).toEqual(b.current_a);
+    const d = a.current_a.map((x, k) => x - clean.current_a[k]);
     const sd = Math.sqrt(d.reduce((s, x) => s + x * x, 0) / d.length);
     // Sample sd of 2000 normal deviates lies within ±5 % of σ with ~97 % probability; seed fixed.
     expect(sd).toBeGreaterThan(0.0019);
@@ -167,8 +167,8 @@ describe('simulateCurve()', () => {
   });
 
   it('accepts double-diode parameters', () => {
-    const c = simulateCurve({ iph_a: 1, i01_a: 1e-10, n1: 1, i02_a: 1e-7, n2: 2, rs_ohm: 0.02, rsh_ohm: 100 }, { cells: 1, tempC: 25, points: 20 });
-    expect(c.current_A[19]).toBeLessThan(0);
+    const c = simulateCurve({ iph_a: 1, i01_a: 1e-10, n1: 1, i02_a: 1e-7, n2: 2, rs_ohm: 0.02, rsh_ohm: 100 }, { cells: 1, temp_c: 25, points: 20 });
+    expect(c.current_a[19]).toBeLessThan(0);
   });
 });
 

@@ -16,7 +16,7 @@ describe('fitSingleDiodeMl() — cell of Easwarakhanthan et al. (1986), true cur
   it('the ml-levenberg-marquardt path reaches the same cell optimum (comparison solver)', () => {
     const curve = parseIvText(readFileSync(path.join(REF_DIR, FILE), 'utf8'), { fileName: FILE });
     for (const jacobian of ['central', 'analytic'] as const) {
-      const fit = fitSingleDiodeMl(curve, { tempC: 33, cells: 1, jacobian, maxIterations: 30 });
+      const fit = fitSingleDiodeMl(curve, { temp_c: 33, cells: 1, jacobian, maxIterations: 30 });
       expect(fit.converged).toBe(true);
       expect(rel(fit.rmse_a, 7.7301e-4)).toBeLessThan(1e-3); // tests/fixtures/reference-data/README.md optimum
     }

@@ -17,9 +17,9 @@ const FILE = 'cell-57mm-33C.csv';
 const curve = parseIvText(readFileSync(path.join(REF_DIR, FILE), 'utf8'), { fileName: FILE });
 
 describe('reading parameters from a fit', () => {
-  const single = fitSingleDiode(curve, { tempC: 33, cells: 1 });
-  const double = fitDoubleDiode(curve, { tempC: 33, cells: 1, single });
-  const failed = fitSingleDiode(curve, { tempC: 33, cells: 1, maxEvaluations: 3 });
+  const single = fitSingleDiode(curve, { temp_c: 33, cells: 1 });
+  const double = fitDoubleDiode(curve, { temp_c: 33, cells: 1, single });
+  const failed = fitSingleDiode(curve, { temp_c: 33, cells: 1, maxEvaluations: 3 });
 
   it('tells the models apart', () => {
     const fits: FitResult[] = [single, double];

@@ -11,8 +11,8 @@ import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
 const REF_DIR = REFERENCE_DATA_DIR;
 const readRef = (file: string) => parseIvText(readFileSync(path.join(REF_DIR, file), 'utf8'), { fileName: file });
-const CELL = { file: 'cell-57mm-33C.csv', tempC: 33, cells: 1 };
-const MODULE = { file: 'module-36cell-45C.csv', tempC: 45, cells: 36 };
+const CELL = { file: 'cell-57mm-33C.csv', temp_c: 33, cells: 1 };
+const MODULE = { file: 'module-36cell-45C.csv', temp_c: 45, cells: 36 };
 const rel = (a: number | null | undefined, b: number) => Math.abs((a as number) / b - 1);
 
 describe('fitSingleDiode() — published benchmark of Easwarakhanthan et al. (1986), true current', () => {
@@ -23,7 +23,7 @@ describe('fitSingleDiode() — published benchmark of Easwarakhanthan et al. (19
     ['cell', CELL, { rmse: 7.7301e-4, iph: 0.760788, i0: 3.1068e-7, n: 1.47727, rs: 0.036547, rsh: 52.89 }],
     ['module', MODULE, { rmse: 2.053e-3, iph: 1.031434, i0: 2.6381e-6, n: 1.32217, rs: 1.235634, rsh: 821.64 }],
   ])('%s reaches the optimum from the automatic start', (_name, dev, want) => {
-    const fit = fitSingleDiode(readRef(dev.file), { tempC: dev.tempC, cells: dev.cells });
+    const fit = fitSingleDiode(readRef(dev.file), { temp_c: dev.temp_c, cells: dev.cells });
     expect(fit.converged).toBe(true);
     expect(fit.objective).toBe('true-current');
     expect(rel(fit.rmse_a, want.rmse)).toBeLessThan(1e-3); // issue 3: within 0.1 %
@@ -37,8 +37,8 @@ describe('fitSingleDiode() — published benchmark of Easwarakhanthan et al. (19
   });
 
   it('implicit objective: cell 9.8602e-4 A (Issa et al. 2024, Neural Comput. Appl. 36:8757, Table 3), module 2.4251e-3 A (widely published optimum; README)', () => {
-    const cell = fitSingleDiode(readRef(CELL.file), { tempC: 33, cells: 1, objective: 'implicit' });
-    const mod = fitSingleDiode(readRef(MODULE.file), { tempC: 45, cells: 36, objective: 'implicit' });
+    const cell = fitSingleDiode(readRef(CELL.file), { temp_c: 33, cells: 1, objective: 'implicit' });
+    const mod = fitSingleDiode(readRef(MODULE.file), { temp_c: 45, cells: 36, objective: 'implicit' });
     expect(rel(cell.rmse_a, 9.8602e-4)).toBeLessThan(1e-3);
     expect(rel(mod.rmse_a, 2.4251e-3)).toBeLessThan(1e-3);
     // README parameters for the cell's implicit optimum: n 1.48119, Rs 0.036377 Ω, Rsh 53.719 Ω.
@@ -52,7 +52,7 @@ describe('fitSingleDiode() — published benchmark of Easwarakhanthan et al. (19
 
 describe('fitDoubleDiode() — cell of Easwarakhanthan et al. (1986)', () => {
   it('free idealities n1, n2 ∈ [1, 2], I01, I02 ≤ 1 µA reach RMSE 7.4194e-4 A (README, computed there for these bounds)', () => {
-    const fit = fitDoubleDiode(readRef(CELL.file), { tempC: 33, cells: 1, idealities: 'free' });
+    const fit = fitDoubleDiode(readRef(CELL.file), { temp_c: 33, cells: 1, idealities: 'free' });
     expect(fit.converged).toBe(true);
     expect(rel(fit.rmse_a, 7.4194e-4)).toBeLessThan(1e-3);
     for (const key of ['n1', 'n2'] as const) {
@@ -64,7 +64,7 @@ describe('fitDoubleDiode() — cell of Easwarakhanthan et al. (1986)', () => {
   });
 
   it('fixed n1 = 1, n2 = 2 fit worse, RMSE ≈ 1.356e-3 A (README), and the result says so', () => {
-    const fit = fitDoubleDiode(readRef(CELL.file), { tempC: 33, cells: 1 });
+    const fit = fitDoubleDiode(readRef(CELL.file), { temp_c: 33, cells: 1 });
     expect(fit.converged).toBe(true);
     expect(fit.n1).toBe(1);
     expect(fit.n2).toBe(2);
@@ -82,8 +82,8 @@ describe('fits of synthetic curves with noise recover the parameters', () => {
     ['cell, high n', { iph_a: 0.76, i0_a: 3e-7, n: 1.5, rs_ohm: 0.036, rsh_ohm: 50 }, 1, 33],
     ['60-cell module', { iph_a: 9.2, i0_a: 1e-10, n: 1.05, rs_ohm: 0.3, rsh_ohm: 600 }, 60, 40],
     ['72-cell module', { iph_a: 10.2, i0_a: 5e-11, n: 1.02, rs_ohm: 0.35, rsh_ohm: 800 }, 72, 25],
-  ] as const)('%s', (_name, p, cells, tempC) => {
-    const curve = simulateCurve(p, { cells, tempC, points: 200, vMin: -0.02 * cells, noise_a: 0.001 * p.iph_a, seed: 11 });
+  ] as const)('%s', (_name, p, cells, temp_c) => {
+    const curve = simulateCurve(p, { cells, temp_c, points: 200, vMin: -0.02 * cells, noise_a: 0.001 * p.iph_a, seed: 11 });
     const fit = fitSingleDiode(curve);
     expect(fit.converged).toBe(true);
     expect(rel(fit.n, p.n)).toBeLessThan(0.02);
@@ -107,7 +107,7 @@ describe('fits of synthetic curves with noise recover the parameters', () => {
 
   it('the curve metadata supplies temperature and cells when the caller does not', () => {
     const p: SingleDiodeParams = { iph_a: 9.2, i0_a: 1e-10, n: 1.05, rs_ohm: 0.3, rsh_ohm: 600 };
-    const curve = simulateCurve(p, { cells: 60, tempC: 40, points: 150 });
+    const curve = simulateCurve(p, { cells: 60, temp_c: 40, points: 150 });
     expect(rel(fitSingleDiode(curve).n, 1.05)).toBeLessThan(1e-6);
     // Same curve read as one cell at 40 °C: the fit can only be n·cells = 63 → beyond the
     // 0.5…3 bound, so n sits at its limit and says so.
@@ -118,8 +118,8 @@ describe('fits of synthetic curves with noise recover the parameters', () => {
   it('double diode with fixed idealities recovers I01 and I02 of a double-diode curve', () => {
     // Parameters written for this test (diffusion n1 = 1, recombination n2 = 2).
     const p: DoubleDiodeParams = { iph_a: 9.5, i01_a: 5e-12, n1: 1, i02_a: 3e-8, n2: 2, rs_ohm: 0.005, rsh_ohm: 80 };
-    const curve = simulateCurve(p, { cells: 1, tempC: 25, points: 200, vMin: -0.02, noise_a: 0.0005, seed: 2 });
-    const fit = fitDoubleDiode(curve, { tempC: 25, cells: 1 });
+    const curve = simulateCurve(p, { cells: 1, temp_c: 25, points: 200, vMin: -0.02, noise_a: 0.0005, seed: 2 });
+    const fit = fitDoubleDiode(curve, { temp_c: 25, cells: 1 });
     expect(fit.converged).toBe(true);
     expect((fit.i01_a as number) / p.i01_a).toBeGreaterThan(1 / 1.3);
     expect((fit.i01_a as number) / p.i01_a).toBeLessThan(1.3);
@@ -133,9 +133,9 @@ describe('the analytic Jacobian agrees with finite differences (independent nume
   it.each(['true-current', 'implicit'] as const)('%s objective', (objective) => {
     const curve = readRef(CELL.file);
     const { metrics } = keyFigures(curve);
-    const problem = singleDiodeProblem(curve.voltage_V, curve.current_A, 1, 33, objective, singleDiodeBounds(metrics));
+    const problem = singleDiodeProblem(curve.voltage_v, curve.current_a, 1, 33, objective, singleDiodeBounds(metrics));
     const x = Float64Array.from([0.7605, Math.log(4e-7), 1.5, 0.035, Math.log(60)]);
-    const m = curve.voltage_V.length;
+    const m = curve.voltage_v.length;
     const r = new Float64Array(m);
     const jac = new Float64Array(m * 5);
     problem.evaluate(x, r, jac);
@@ -168,14 +168,14 @@ describe('a fit that does not converge gives no numbers', () => {
   };
 
   it('single diode cut off after 3 evaluations', () => {
-    const fit = fitSingleDiode(readRef(CELL.file), { tempC: 33, cells: 1, maxEvaluations: 3 });
+    const fit = fitSingleDiode(readRef(CELL.file), { temp_c: 33, cells: 1, maxEvaluations: 3 });
     expectHonestFailure(fit);
     expect(fit.i0_a).toBeNull();
     expect(fit.n).toBeNull();
   });
 
   it('double diode cut off after a few evaluations', () => {
-    const fit = fitDoubleDiode(readRef(CELL.file), { tempC: 33, cells: 1, idealities: 'free', maxEvaluations: 5 });
+    const fit = fitDoubleDiode(readRef(CELL.file), { temp_c: 33, cells: 1, idealities: 'free', maxEvaluations: 5 });
     // The budget check runs between starts, so the first start may still finish; only a
     // converged optimum is reported, otherwise everything is null.
     if (!fit.converged) expectHonestFailure(fit);
@@ -184,10 +184,10 @@ describe('a fit that does not converge gives no numbers', () => {
 });
 
 describe('bad options', () => {
-  const curve = simulateCurve({ iph_a: 1, i0_a: 1e-9, n: 1.2, rs_ohm: 0.01, rsh_ohm: 100 }, { cells: 1, tempC: 25, points: 30 });
+  const curve = simulateCurve({ iph_a: 1, i0_a: 1e-9, n: 1.2, rs_ohm: 0.01, rsh_ohm: 100 }, { cells: 1, temp_c: 25, points: 30 });
   it.each([
     [() => fitSingleDiode(curve, { cells: 0 })],
-    [() => fitSingleDiode(curve, { tempC: Number.NaN })],
+    [() => fitSingleDiode(curve, { temp_c: Number.NaN })],
     [() => fitSingleDiode(curve, { objective: 'least-effort' as 'implicit' })],
     [() => fitDoubleDiode(curve, { idealities: 'loose' as 'free' })],
     [() => fitDoubleDiode(curve, { i0Max_a: -1 })],

@@ -14,8 +14,8 @@ const readRef = (file: string) => parseIvText(readFileSync(path.join(REF_DIR, fi
 const CELL: SingleDiodeParams = { iph_a: 0.760788, i0_a: 3.1068e-7, n: 1.47727, rs_ohm: 0.036547, rsh_ohm: 52.89 };
 
 /** Exact key figures of a model, by an independent method written here: bisection and a fine scan. */
-function exactFigures(p: SingleDiodeParams, cells: number, tempC: number) {
-  const current = (v: number) => singleDiodeCurrent(p, v, cells, tempC);
+function exactFigures(p: SingleDiodeParams, cells: number, temp_c: number) {
+  const current = (v: number) => singleDiodeCurrent(p, v, cells, temp_c);
   let lo = 0;
   let hi = 10 * cells;
   for (let k = 0; k < 200; k++) {
@@ -69,13 +69,13 @@ describe('keyFigures() — reference curves (Easwarakhanthan et al. 1986)', () =
 
 describe('keyFigures() — synthetic curves against the exact model figures', () => {
   it.each([
-    // [name, params, cells, tempC, points, rel. tolerance Isc/Voc, rel. tolerance Pmp]
+    // [name, params, cells, temp_c, points, rel. tolerance Isc/Voc, rel. tolerance Pmp]
     ['cell, 200 points', CELL, 1, 33, 200, 2e-5, 2e-4],
     ['cell, 26 points', CELL, 1, 33, 26, 1e-3, 1e-3],
     ['72-cell module, 200 points', { iph_a: 10.2, i0_a: 5e-11, n: 1.05, rs_ohm: 0.35, rsh_ohm: 800 }, 72, 25, 200, 2e-5, 2e-4],
-  ] as const)('%s', (_name, p, cells, tempC, points, tol, tolP) => {
-    const exact = exactFigures(p, cells, tempC);
-    const curve = simulateCurve(p, { cells, tempC, points, vMin: -0.05 * exact.voc, vMax: 1.05 * exact.voc });
+  ] as const)('%s', (_name, p, cells, temp_c, points, tol, tolP) => {
+    const exact = exactFigures(p, cells, temp_c);
+    const curve = simulateCurve(p, { cells, temp_c, points, vMin: -0.05 * exact.voc, vMax: 1.05 * exact.voc });
     const { metrics } = keyFigures(curve);
     expect(Math.abs(metrics.isc_a / exact.isc - 1)).toBeLessThan(tol);
     expect(Math.abs(metrics.voc_v / exact.voc - 1)).toBeLessThan(tol);
@@ -86,7 +86,7 @@ describe('keyFigures() — synthetic curves against the exact model figures', ()
   it('slopes: Rsh0 ≈ Rsh + Rs and Rs0 ≈ Rs + a/(Isc + I0) for a dense clean curve', () => {
     const p = CELL;
     const exact = exactFigures(p, 1, 33);
-    const curve = simulateCurve(p, { cells: 1, tempC: 33, points: 400, vMin: -0.05 * exact.voc, vMax: 1.05 * exact.voc });
+    const curve = simulateCurve(p, { cells: 1, temp_c: 33, points: 400, vMin: -0.05 * exact.voc, vMax: 1.05 * exact.voc });
     const { metrics } = keyFigures(curve);
     // Small-signal resistances of the model (circuit algebra): at V = 0 the diode is nearly off,
     // so dV/dI ≈ −(Rs + Rsh·rd/(Rsh + rd)) with rd ≫ Rsh; at Voc rd = a/(I0·e^{Voc/a}) = a/(Iph − Voc/Rsh + I0).
@@ -100,8 +100,8 @@ describe('keyFigures() — synthetic curves against the exact model figures', ()
   });
 
   it('efficiency = Pmp/(G·A) when both are known', () => {
-    const curve = simulateCurve(CELL, { cells: 1, tempC: 33, points: 100 });
-    curve.meta = { ...curve.meta, irradiance_Wm2: 1000, area_cm2: 25.5 };
+    const curve = simulateCurve(CELL, { cells: 1, temp_c: 33, points: 100 });
+    curve.meta = { ...curve.meta, irradiance_w_m2: 1000, area_cm2: 25.5 };
     const { metrics } = keyFigures(curve);
     // 25.5 cm² = 2.55e-3 m²; efficiency = Pmp / (1000 W/m² · 2.55e-3 m²) (definition, DOMAIN.md)
     expect(metrics.efficiency).toBeCloseTo(metrics.pmp_w / 2.55, 12);
@@ -123,7 +123,7 @@ function shadedModule(): IvCurve {
     points.push([v, i]);
   }
   points.sort((a, b) => a[0] - b[0]);
-  return { voltage_V: points.map((p) => p[0]), current_A: points.map((p) => p[1]), meta: { cells: 60, tempC: 25 }, notes: [] };
+  return { voltage_v: points.map((p) => p[0]), current_a: points.map((p) => p[1]), meta: { cells: 60, temp_c: 25 }, notes: [] };
 }
 
 describe('keyFigures() — flags', () => {
@@ -131,7 +131,7 @@ describe('keyFigures() — flags', () => {
   const voc = singleDiodeVoltage(CELL, 0, 1, 33);
 
   it('a clean dense curve raises no flag', () => {
-    expect(codes(simulateCurve(CELL, { cells: 1, tempC: 33, points: 200, vMin: -0.02, noise_a: 0.0001, seed: 3 }))).toEqual([]);
+    expect(codes(simulateCurve(CELL, { cells: 1, temp_c: 33, points: 200, vMin: -0.02, noise_a: 0.0001, seed: 3 }))).toEqual([]);
   });
 
   it('a bypass-diode step is flagged as a failure and located', () => {
@@ -142,42 +142,42 @@ describe('keyFigures() — flags', () => {
   });
 
   it('noise of 2 % of Isc is flagged, 0.05 % is not', () => {
-    expect(codes(simulateCurve(CELL, { cells: 1, tempC: 33, points: 200, vMin: -0.02, noise_a: 0.015, seed: 4 }))).toContain('noisy');
-    expect(codes(simulateCurve(CELL, { cells: 1, tempC: 33, points: 200, vMin: -0.02, noise_a: 0.0004, seed: 4 }))).not.toContain('noisy');
+    expect(codes(simulateCurve(CELL, { cells: 1, temp_c: 33, points: 200, vMin: -0.02, noise_a: 0.015, seed: 4 }))).toContain('noisy');
+    expect(codes(simulateCurve(CELL, { cells: 1, temp_c: 33, points: 200, vMin: -0.02, noise_a: 0.0004, seed: 4 }))).not.toContain('noisy');
   });
 
   it('a strong shunt (Rsh = 5·Voc/Isc) is flagged', () => {
     const p = { ...CELL, rsh_ohm: (5 * voc) / CELL.iph_a };
-    expect(codes(simulateCurve(p, { cells: 1, tempC: 33, points: 200, vMin: -0.02 }))).toContain('low-shunt');
+    expect(codes(simulateCurve(p, { cells: 1, temp_c: 33, points: 200, vMin: -0.02 }))).toContain('low-shunt');
   });
 
   it('a high series resistance (Rs = 0.3·Voc/Isc) is flagged', () => {
     const p = { ...CELL, rs_ohm: (0.3 * voc) / CELL.iph_a };
-    expect(codes(simulateCurve(p, { cells: 1, tempC: 33, points: 200, vMin: -0.02 }))).toContain('high-series-resistance');
+    expect(codes(simulateCurve(p, { cells: 1, temp_c: 33, points: 200, vMin: -0.02 }))).toContain('high-series-resistance');
   });
 
   it('a sweep stopping just short of Voc is extrapolated with a warning', () => {
     const exact = exactFigures(CELL, 1, 33);
     // End where 2 % of Isc still flows (inside the 5 % extrapolation limit).
     const vEnd = singleDiodeVoltage(CELL, 0.02 * CELL.iph_a, 1, 33);
-    const r = keyFigures(simulateCurve(CELL, { cells: 1, tempC: 33, points: 120, vMin: -0.02, vMax: vEnd }));
+    const r = keyFigures(simulateCurve(CELL, { cells: 1, temp_c: 33, points: 120, vMin: -0.02, vMax: vEnd }));
     expect(r.flags.map((f) => f.code)).toContain('voc-extrapolated');
     expect(Math.abs(r.metrics.voc_v / exact.voc - 1)).toBeLessThan(0.005);
   });
 
   it('Voc above 60 V carries the touch-voltage caution', () => {
     const p: SingleDiodeParams = { iph_a: 10, i0_a: 1e-10, n: 1.05, rs_ohm: 0.5, rsh_ohm: 1000 };
-    const r = keyFigures(simulateCurve(p, { cells: 144, tempC: 25, points: 200, vMin: -1 }));
+    const r = keyFigures(simulateCurve(p, { cells: 144, temp_c: 25, points: 200, vMin: -1 }));
     expect(r.flags.find((f) => f.code === 'high-voltage')?.message).toMatch(/60 V/);
   });
 });
 
 describe('keyFigures() — bad curves', () => {
   it.each([
-    ['arrays of different length', { voltage_V: [0, 1], current_A: [1], meta: {}, notes: [] }, 'bad-curve'],
-    ['too few points', { voltage_V: [0, 0.1, 0.2], current_A: [1, 0.5, -0.1], meta: {}, notes: [] }, 'too-few-points'],
-    ['NaN inside', { voltage_V: [...Array(12).keys()], current_A: [1, 1, 1, NaN, 1, 1, 1, 1, 1, 0.5, 0, -1], meta: {}, notes: [] }, 'non-finite'],
-    ['never reaches zero current', simulateCurve(CELL, { cells: 1, tempC: 33, points: 30, vMax: 0.45 }), 'no-voc'],
+    ['arrays of different length', { voltage_v: [0, 1], current_a: [1], meta: {}, notes: [] }, 'bad-curve'],
+    ['too few points', { voltage_v: [0, 0.1, 0.2], current_a: [1, 0.5, -0.1], meta: {}, notes: [] }, 'too-few-points'],
+    ['NaN inside', { voltage_v: [...Array(12).keys()], current_a: [1, 1, 1, NaN, 1, 1, 1, 1, 1, 0.5, 0, -1], meta: {}, notes: [] }, 'non-finite'],
+    ['never reaches zero current', simulateCurve(CELL, { cells: 1, temp_c: 33, points: 30, vMax: 0.45 }), 'no-voc'],
   ] as const)('%s → IvInputError %s', (_name, curve, code) => {
     let err: unknown;
     try {

@@ -33,20 +33,20 @@ describe('parseIvText() — formats and headers', () => {
     ['semicolon with decimal comma', `U;I\n${rows((v, i) => `${String(v).replace('.', ',')};${String(i).replace('.', ',')}`)}`, 1, 1],
     ['whitespace separated', `voltage current\n${rows((v, i) => `${v}   ${i}`)}`, 1, 1],
     ['units in brackets, mV and mA', `Voltage (mV),Current (mA)\n${rows((v, i) => `${v * 1000},${i * 1000}`)}`, 1, 1],
-    ['units with underscore', `voltage_V,current_mA\n${rows((v, i) => `${v},${i * 1000}`)}`, 1, 1],
+    ['units with underscore', `voltage_v,current_mA\n${rows((v, i) => `${v},${i * 1000}`)}`, 1, 1],
     ['units in square brackets', `"V [mV]","I [A]"\n${rows((v, i) => `${v * 1000},${i}`)}`, 1, 1],
     ['extra columns ignored, order swapped', `Time,Current,Temp,Voltage,P\n${rows((v, i) => `1,${i},25,${v},${v * i}`)}`, 1, 1],
     ['quoted numbers', `"V","I"\n${rows((v, i) => `"${v}","${i}"`)}`, 1, 1],
   ])('%s', (_name, text) => {
     const c = parseIvText(text);
-    expect(c.voltage_V).toHaveLength(V.length);
-    c.voltage_V.forEach((v, k) => expect(v).toBeCloseTo(V[k], 12));
-    c.current_A.forEach((i, k) => expect(i).toBeCloseTo(I[k], 12));
+    expect(c.voltage_v).toHaveLength(V.length);
+    c.voltage_v.forEach((v, k) => expect(v).toBeCloseTo(V[k], 12));
+    c.current_a.forEach((i, k) => expect(i).toBeCloseTo(I[k], 12));
   });
 
   it('accepts CRLF line ends, a byte-order mark and blank or comment lines among the data', () => {
     const text = `\uFEFFV,I\r\n${rows((v, i) => `${v},${i}`).replace(/\n/g, '\r\n')}\r\n\r\n# trailing comment\r\n`;
-    expect(parseIvText(text).voltage_V).toHaveLength(V.length);
+    expect(parseIvText(text).voltage_v).toHaveLength(V.length);
   });
 
   it('sorts a descending sweep and notes it', () => {
@@ -54,22 +54,22 @@ describe('parseIvText() — formats and headers', () => {
       .reverse()
       .join('\n')}`;
     const c = parseIvText(text);
-    expect(c.voltage_V).toEqual(V);
+    expect(c.voltage_v).toEqual(V);
     expect(c.notes.join(' ')).toMatch(/sorted/);
   });
 
   it('turns the load sign convention around', () => {
     const c = parseIvText(`V,I\n${rows((v, i) => `${v},${-i}`)}`);
-    c.current_A.forEach((i, k) => expect(i).toBeCloseTo(I[k], 12));
+    c.current_a.forEach((i, k) => expect(i).toBeCloseTo(I[k], 12));
     expect(c.notes.join(' ')).toMatch(/load convention/);
   });
 
   it('averages repeated voltages', () => {
     const text = `V,I\n${rows((v, i) => `${v},${i}`)}\n0.3,0.750\n0.3,0.752`;
     const c = parseIvText(text);
-    expect(c.voltage_V).toHaveLength(V.length);
+    expect(c.voltage_v).toHaveLength(V.length);
     // (0.748 + 0.750 + 0.752) / 3 = 0.750 (arithmetic)
-    expect(c.current_A[V.indexOf(0.3)]).toBeCloseTo(0.75, 12);
+    expect(c.current_a[V.indexOf(0.3)]).toBeCloseTo(0.75, 12);
     expect(c.notes.join(' ')).toMatch(/2 repeated voltages averaged/);
   });
 });
@@ -89,25 +89,25 @@ describe('parseIvText() — metadata and overrides', () => {
       body,
     ].join('\n');
     const c = parseIvText(text);
-    expect(c.meta).toEqual({ deviceId: 'QL-2024-0042', tempC: 33, irradiance_Wm2: 1000, cells: 36, area_cm2: 1200, measuredAt: '2024-05-01T10:00:00.000Z' });
+    expect(c.meta).toEqual({ device_id: 'QL-2024-0042', temp_c: 33, irradiance_w_m2: 1000, cells: 36, area_cm2: 1200, measured_at: '2024-05-01T10:00:00.000Z' });
     expect(c.notes.join(' ')).toMatch(/operator/);
   });
 
   it.each([
-    ['# temperature: 306.15 K', 'tempC', 33],
-    ['# Temp (°C) = 45', 'tempC', 45],
+    ['# temperature: 306.15 K', 'temp_c', 33],
+    ['# Temp (°C) = 45', 'temp_c', 45],
     ['# area (cm2): 243.3', 'area_cm2', 243.3],
     ['# area: 15600 mm2', 'area_cm2', 156],
-    ['# G: 0,8 kW/m2', 'irradiance_Wm2', 800],
+    ['# G: 0,8 kW/m2', 'irradiance_w_m2', 800],
     ['# Ns: 60', 'cells', 60],
   ])('%s', (line, key, value) => {
     const c = parseIvText(`${line}\n${body}`);
     expect((c.meta as Record<string, unknown>)[key]).toBeCloseTo(value as number, 9);
   });
 
-  it('falls back to the file name for deviceId, and lets the caller override metadata', () => {
-    const c = parseIvText(`# temperature: 30\n${body}`, { fileName: '/data/flash/M-0001.csv', overrides: { tempC: 45, cells: 36, deviceId: undefined } });
-    expect(c.meta).toEqual({ deviceId: 'M-0001', tempC: 45, cells: 36 });
+  it('falls back to the file name for device_id, and lets the caller override metadata', () => {
+    const c = parseIvText(`# temperature: 30\n${body}`, { fileName: '/data/flash/M-0001.csv', overrides: { temp_c: 45, cells: 36, device_id: undefined } });
+    expect(c.meta).toEqual({ device_id: 'M-0001', temp_c: 45, cells: 36 });
   });
 
   it.each([
@@ -159,7 +159,7 @@ describe('parseIvText() — precise errors', () => {
 
   it('a sweep starting just above 0 V is accepted (Isc extrapolated later)', () => {
     const text = `V,I\n${V.map((v, k) => `${v + 0.01},${I[k]}`).join('\n')}`;
-    expect(parseIvText(text).voltage_V[0]).toBeCloseTo(0.01, 12);
+    expect(parseIvText(text).voltage_v[0]).toBeCloseTo(0.01, 12);
   });
 
   it('a curve with no positive current is not an illuminated curve', () => {
@@ -178,7 +178,7 @@ describe('parseIvBytes()', () => {
   const text = `V,I\n${rows((v, i) => `${v},${i}`)}`;
 
   it('reads UTF-8 bytes', () => {
-    expect(parseIvBytes(new TextEncoder().encode(text)).voltage_V).toHaveLength(V.length);
+    expect(parseIvBytes(new TextEncoder().encode(text)).voltage_v).toHaveLength(V.length);
   });
 
   it('reads UTF-16LE with a byte-order mark (spreadsheet "Unicode text")', () => {
@@ -186,7 +186,7 @@ describe('parseIvBytes()', () => {
     u16[0] = 0xff;
     u16[1] = 0xfe;
     for (let k = 0; k < text.length; k++) u16[2 + 2 * k] = text.charCodeAt(k);
-    expect(parseIvBytes(u16).current_A[0]).toBeCloseTo(0.76, 12);
+    expect(parseIvBytes(u16).current_a[0]).toBeCloseTo(0.76, 12);
   });
 
   it.each([

@@ -17,12 +17,12 @@ import { fitSingleDiode } from '@/lib/iv/fit-single';
 import { keyFigures } from '@/lib/iv/key-figures';
 import { parseIvBytes, parseIvText } from '@/lib/iv/parse';
 import type { IvCurve, SingleDiodeParams } from '@/lib/iv/types';
-import { thermalVoltage_V } from '@/lib/physics/constants';
+import { thermal_voltage_v } from '@/lib/physics/constants';
 
 // Fits take tens of milliseconds each on the shared machine.
 jest.setTimeout(120_000);
 
-type Device = { params: SingleDiodeParams; cells: number; tempC: number; points: number };
+type Device = { params: SingleDiodeParams; cells: number; temp_c: number; points: number };
 
 /** A plausible single-diode device, built from the figures an engineer would recognise. */
 const deviceArb: fc.Arbitrary<Device> = fc
@@ -35,16 +35,16 @@ const deviceArb: fc.Arbitrary<Device> = fc
     rsShare: fc.oneof(fc.constant(0), fc.double({ min: 1e-6, max: 0.03, noNaN: true })),
     rshMultiple: fc.double({ min: 30, max: 3000, noNaN: true }),
     cells: fc.constantFrom(1, 36, 60, 72),
-    tempC: fc.double({ min: 10, max: 70, noNaN: true }),
+    temp_c: fc.double({ min: 10, max: 70, noNaN: true }),
     points: fc.integer({ min: 15, max: 150 }),
   })
-  .map(({ isc, vocPerCell, n, rsShare, rshMultiple, cells, tempC, points }) => {
+  .map(({ isc, vocPerCell, n, rsShare, rshMultiple, cells, temp_c, points }) => {
     const voc = vocPerCell * cells;
     const rRef = voc / isc;
-    const a = n * cells * thermalVoltage_V(tempC);
+    const a = n * cells * thermal_voltage_v(temp_c);
     // I0 from the open-circuit condition with Rs, Rsh ignored (they move Voc by < 1 % here).
     const i0 = isc / Math.expm1(voc / a);
-    return { params: { iph_a: isc, i0_a: i0, n, rs_ohm: rsShare * rRef, rsh_ohm: rshMultiple * rRef }, cells, tempC, points };
+    return { params: { iph_a: isc, i0_a: i0, n, rs_ohm: rsShare * rRef, rsh_ohm: rshMultiple * rRef }, cells, temp_c, points };
   });
 
 /** How a file writes the curve: separator, units, order, sign convention, line ends, BOM, metadata. */
@@ -69,18 +69,18 @@ function writeCurve(c: IvCurve, d: Device, s: Style): string {
     return s.sep === ';' ? t.replace('.', ',') : t;
   };
   const header = [q(s.milliVolt ? 'Voltage (mV)' : 'Voltage (V)'), q(s.milliAmp ? 'Current (mA)' : 'Current (A)')].join(s.sep === ' ' ? '  ' : s.sep);
-  const order = c.voltage_V.map((_, k) => k);
+  const order = c.voltage_v.map((_, k) => k);
   if (s.descending) order.reverse();
   const rows = order.map((k) => {
-    const v = c.voltage_V[k] * (s.milliVolt ? 1000 : 1);
-    const i = c.current_A[k] * (s.milliAmp ? 1000 : 1) * (s.loadConvention ? -1 : 1);
+    const v = c.voltage_v[k] * (s.milliVolt ? 1000 : 1);
+    const i = c.current_a[k] * (s.milliAmp ? 1000 : 1) * (s.loadConvention ? -1 : 1);
     return [q(num(v)), q(num(i))].join(s.sep === ' ' ? '   ' : s.sep);
   });
-  const meta = s.metadata ? [`# device: PROP-${d.points}`, `# cell temperature: ${d.tempC.toFixed(3)} °C`, `# cells in series: ${d.cells}`] : [];
+  const meta = s.metadata ? [`# device: PROP-${d.points}`, `# cell temperature: ${d.temp_c.toFixed(3)} °C`, `# cells in series: ${d.cells}`] : [];
   return (s.bom ? '\uFEFF' : '') + [...meta, header, ...rows].join(s.eol) + s.eol;
 }
 
-const simulate = (d: Device) => simulateCurve(d.params, { cells: d.cells, tempC: d.tempC, points: d.points });
+const simulate = (d: Device) => simulateCurve(d.params, { cells: d.cells, temp_c: d.temp_c, points: d.points });
 
 /** True when `e` is the engine's own error with a code and a message. */
 const isEngineError = (e: unknown) => e instanceof IvInputError && typeof e.code === 'string' && e.code.length > 0 && e.message.length > 0;
@@ -99,15 +99,15 @@ describe('random valid curves', () => {
       fc.property(deviceArb, styleArb, (d, s) => {
         const c = simulate(d);
         const parsed = parseIvBytes(new TextEncoder().encode(writeCurve(c, d, s)), { fileName: 'prop.csv' });
-        expect(parsed.voltage_V).toHaveLength(d.points);
+        expect(parsed.voltage_v).toHaveLength(d.points);
         for (let k = 0; k < d.points; k++) {
           // 12 significant digits written, then ×1e-3 for mV/mA: relative error ≤ 1e-11 (computed by hand).
-          expect(Math.abs(parsed.voltage_V[k] - c.voltage_V[k])).toBeLessThanOrEqual(1e-11 * Math.abs(c.voltage_V[k]) + 1e-15);
-          expect(Math.abs(parsed.current_A[k] - c.current_A[k])).toBeLessThanOrEqual(1e-11 * Math.abs(c.current_A[k]) + 1e-15);
+          expect(Math.abs(parsed.voltage_v[k] - c.voltage_v[k])).toBeLessThanOrEqual(1e-11 * Math.abs(c.voltage_v[k]) + 1e-15);
+          expect(Math.abs(parsed.current_a[k] - c.current_a[k])).toBeLessThanOrEqual(1e-11 * Math.abs(c.current_a[k]) + 1e-15);
         }
         if (s.metadata) {
           expect(parsed.meta.cells).toBe(d.cells);
-          expect(parsed.meta.tempC).toBeCloseTo(d.tempC, 3);
+          expect(parsed.meta.temp_c).toBeCloseTo(d.temp_c, 3);
         }
       }),
       { numRuns: 200 },
@@ -118,7 +118,7 @@ describe('random valid curves', () => {
     fc.assert(
       fc.property(deviceArb, (d) => {
         const c = simulate(d);
-        const f = fitSingleDiode(c, { cells: d.cells, tempC: d.tempC });
+        const f = fitSingleDiode(c, { cells: d.cells, temp_c: d.temp_c });
         expect(f.converged).toBe(true);
         expect(allFinite({ ...f, stderr: undefined })).toBe(true);
         // Noise-free data: the optimum is the generating device, RMSE ≈ 0. Tolerances chosen
@@ -161,10 +161,10 @@ describe('random garbage', () => {
       return;
     }
     // When garbage does read as a curve, it is a proper one: ≥ 10 finite points, strictly rising voltage.
-    expect(c.voltage_V.length).toBeGreaterThanOrEqual(10);
-    expect(c.current_A).toHaveLength(c.voltage_V.length);
-    expect(allFinite(c.voltage_V) && allFinite(c.current_A)).toBe(true);
-    for (let k = 1; k < c.voltage_V.length; k++) expect(c.voltage_V[k]).toBeGreaterThan(c.voltage_V[k - 1]);
+    expect(c.voltage_v.length).toBeGreaterThanOrEqual(10);
+    expect(c.current_a).toHaveLength(c.voltage_v.length);
+    expect(allFinite(c.voltage_v) && allFinite(c.current_a)).toBe(true);
+    for (let k = 1; k < c.voltage_v.length; k++) expect(c.voltage_v[k]).toBeGreaterThan(c.voltage_v[k - 1]);
   };
 
   it('bytes: the reader returns a curve or throws IvInputError, nothing else', () => {
@@ -211,14 +211,14 @@ describe('random garbage', () => {
   it('arbitrary numbers into the fitters: a result with converged true and finite numbers, converged false and nulls, or IvInputError', () => {
     const anyNumber = fc.oneof(fc.double(), fc.double({ min: -2, max: 2, noNaN: true }), fc.constantFrom(0, -0, Number.NaN, Infinity, -Infinity, 1e308, 5e-324));
     const curveArb = fc.record({
-      voltage_V: fc.array(anyNumber, { maxLength: 40 }),
-      current_A: fc.array(anyNumber, { maxLength: 40 }),
+      voltage_v: fc.array(anyNumber, { maxLength: 40 }),
+      current_a: fc.array(anyNumber, { maxLength: 40 }),
       cells: fc.oneof(fc.constantFrom(1, 36, 0, -1, 1.5, Number.NaN), fc.integer()),
-      tempC: fc.oneof(fc.constantFrom(25, -273.15, -300, 1e6, Number.NaN), fc.double()),
+      temp_c: fc.oneof(fc.constantFrom(25, -273.15, -300, 1e6, Number.NaN), fc.double()),
     });
     fc.assert(
       fc.property(curveArb, fc.constantFrom('single', 'double', 'both'), (x, which) => {
-        const c: IvCurve = { voltage_V: x.voltage_V, current_A: x.current_A, meta: { cells: x.cells, tempC: x.tempC }, notes: [] };
+        const c: IvCurve = { voltage_v: x.voltage_v, current_a: x.current_a, meta: { cells: x.cells, temp_c: x.temp_c }, notes: [] };
         try {
           const fits = which === 'single' ? [fitSingleDiode(c)] : which === 'double' ? [fitDoubleDiode(c)] : analyseCurve(c).fits;
           for (const f of fits) {
@@ -251,10 +251,10 @@ describe('random garbage', () => {
       fc.property(shapeArb, ({ device, noise, step, seed }) => {
         const clean = simulate(device);
         const iph = device.params.iph_a;
-        const c = simulateCurve(device.params, { cells: device.cells, tempC: device.tempC, points: device.points, noise_a: noise * iph, seed });
+        const c = simulateCurve(device.params, { cells: device.cells, temp_c: device.temp_c, points: device.points, noise_a: noise * iph, seed });
         // A bypass-diode-like step: a share of the current lost above 40 % of the sweep.
-        const half = Math.floor(0.4 * c.voltage_V.length);
-        c.current_A = c.current_A.map((i, k) => (k >= half ? i - step * iph * (clean.current_A[k] > 0 ? 1 : 0) : i));
+        const half = Math.floor(0.4 * c.voltage_v.length);
+        c.current_a = c.current_a.map((i, k) => (k >= half ? i - step * iph * (clean.current_a[k] > 0 ? 1 : 0) : i));
         try {
           const { metrics, fits } = analyseCurve(c);
           expect(allFinite(metrics)).toBe(true);

@@ -14,8 +14,8 @@ import { referenceFermiIntegral } from './fd-reference';
 const rel = (a: number, b: number) => Math.abs(a / b - 1);
 
 describe('Fermi–Dirac occupation f(E)', () => {
-  const tempK = 300;
-  const kT = KB_EV_PER_K * tempK;
+  const temp_k = 300;
+  const kT = KB_EV_PER_K * temp_k;
 
   // Analytic values of 1/(1 + e^x): x = 0 → 1/2; x = ln 3 → 1/4; x = −ln 3 → 3/4.
   it.each([
@@ -23,21 +23,21 @@ describe('Fermi–Dirac occupation f(E)', () => {
     [Math.log(3), 0.25],
     [-Math.log(3), 0.75],
   ])('f(E_F + %f·kT) = %f (analytic)', (x, expected) => {
-    expect(fermiOccupation(0.1 + x * kT, 0.1, tempK)).toBeCloseTo(expected, 14);
+    expect(fermiOccupation(0.1 + x * kT, 0.1, temp_k)).toBeCloseTo(expected, 14);
   });
 
   it('is symmetric, f(E_F + x) + f(E_F − x) = 1, and finite far from E_F (analytic property)', () => {
     for (const x of [0.01, 0.3, 5, 40, 1e4]) {
-      const up = fermiOccupation(x, 0, tempK);
-      const down = fermiOccupation(-x, 0, tempK);
+      const up = fermiOccupation(x, 0, temp_k);
+      const down = fermiOccupation(-x, 0, temp_k);
       expect(up + down).toBeCloseTo(1, 14);
       expect(Number.isFinite(up) && up >= 0 && up <= 1).toBe(true);
     }
   });
 
-  it('rejects a temperature ≤ 0 K naming tempK', () => {
+  it('rejects a temperature ≤ 0 K naming temp_k', () => {
     expect(() => fermiOccupation(0, 0, 0)).toThrow(PhysicsError);
-    expect(() => fermiOccupation(0, 0, -3)).toThrow(/tempK/);
+    expect(() => fermiOccupation(0, 0, -3)).toThrow(/temp_k/);
   });
 });
 

@@ -10,7 +10,7 @@ const rel = (a: number, b: number) => Math.abs(a / b - 1);
  * recollection checks out: at 300 K it gives 9.66e9 cm⁻³, their quoted ≈ 9.7e9 and within
  * 0.1 % of Altermatt et al. (2003).
  */
-const misiakosTsamakis = (tempK: number) => 5.29e19 * (tempK / 300) ** 2.54 * Math.exp(-6726 / tempK);
+const misiakosTsamakis = (temp_k: number) => 5.29e19 * (temp_k / 300) ** 2.54 * Math.exp(-6726 / temp_k);
 
 describe('silicon intrinsic carrier density n_i(T)', () => {
   it('n_i(300 K) = 9.65e9 cm⁻³ within 2 % (Altermatt et al. 2003, J. Appl. Phys. 93:1598)', () => {
@@ -26,13 +26,13 @@ describe('silicon intrinsic carrier density n_i(T)', () => {
   // 200 K, still inside their measured range (measured 2.3 % at 200 K).
   it.each([250, 260, 270, 280, 290, 300, 310, 320, 330, 340])(
     'n_i(%f K) follows Misiakos & Tsamakis (1993) within 1 %',
-    (tempK) => {
-      expect(rel(intrinsicDensity_cm3(tempK), misiakosTsamakis(tempK))).toBeLessThan(0.01);
+    (temp_k) => {
+      expect(rel(intrinsicDensity_cm3(temp_k), misiakosTsamakis(temp_k))).toBeLessThan(0.01);
     },
   );
 
-  it.each([200, 220, 240])('n_i(%f K) follows Misiakos & Tsamakis (1993) within 3 %', (tempK) => {
-    expect(rel(intrinsicDensity_cm3(tempK), misiakosTsamakis(tempK))).toBeLessThan(0.03);
+  it.each([200, 220, 240])('n_i(%f K) follows Misiakos & Tsamakis (1993) within 3 %', (temp_k) => {
+    expect(rel(intrinsicDensity_cm3(temp_k), misiakosTsamakis(temp_k))).toBeLessThan(0.03);
   });
 
   it('is plausible from 200 to 400 K: rises monotonically, and at 400 K stays within 5 % of the Misiakos–Tsamakis fit extrapolated past its 340 K limit (plausibility only)', () => {
@@ -50,21 +50,21 @@ describe('silicon band gap Eg(T) (Pässler 2002 model)', () => {
   // Varshni form with Thurmond (1975, J. Electrochem. Soc. 122:1133) parameters:
   // Eg = 1.17 − 4.73e-4·T²/(T + 636) eV (memory; the same form as in DOMAIN.md).
   const thurmond = (t: number) => 1.17 - (4.73e-4 * t * t) / (t + 636);
-  it.each([200, 250, 300, 350, 400])('Eg(%f K) is within 2 meV of Varshni/Thurmond (1975)', (tempK) => {
-    expect(Math.abs(materialAt(tempK).eg_eV - thurmond(tempK))).toBeLessThan(0.002);
+  it.each([200, 250, 300, 350, 400])('Eg(%f K) is within 2 meV of Varshni/Thurmond (1975)', (temp_k) => {
+    expect(Math.abs(materialAt(temp_k).eg_ev - thurmond(temp_k))).toBeLessThan(0.002);
   });
 
   // Green (1990), J. Appl. Phys. 67:2944, after Bludau et al. (1974): Eg(300 K) = 1.1242 eV (memory).
   it('Eg(300 K) = 1.1242 eV within 1 meV (Green 1990, memory)', () => {
-    expect(Math.abs(materialAt(300).eg_eV - 1.1242)).toBeLessThan(0.001);
+    expect(Math.abs(materialAt(300).eg_ev - 1.1242)).toBeLessThan(0.001);
   });
 
   it('the statistics gap k_BT·ln(Nc·Nv/n_i²) sits a few meV above the band gap (band-gap-narrowing correction in n_i)', () => {
     for (const t of [200, 300, 400]) {
       const s = materialAt(t);
-      expect(s.egDos_eV - s.eg_eV).toBeGreaterThan(0);
-      expect(s.egDos_eV - s.eg_eV).toBeLessThan(0.01);
-      expect(s.kT_eV).toBeCloseTo(KB_EV_PER_K * t, 15);
+      expect(s.eg_dos_ev - s.eg_ev).toBeGreaterThan(0);
+      expect(s.eg_dos_ev - s.eg_ev).toBeLessThan(0.01);
+      expect(s.kt_ev).toBeCloseTo(KB_EV_PER_K * t, 15);
     }
   });
 });
@@ -86,9 +86,9 @@ describe('effective densities of states (Green 1990)', () => {
 });
 
 describe('bad temperatures', () => {
-  it.each([[0], [-5], [Number.NaN], [1e6], [100], [501]])('tempK = %f is rejected naming tempK', (tempK) => {
-    expect(() => materialAt(tempK)).toThrow(PhysicsError);
-    expect(() => materialAt(tempK)).toThrow(/tempK/);
+  it.each([[0], [-5], [Number.NaN], [1e6], [100], [501]])('temp_k = %f is rejected naming temp_k', (temp_k) => {
+    expect(() => materialAt(temp_k)).toThrow(PhysicsError);
+    expect(() => materialAt(temp_k)).toThrow(/temp_k/);
   });
 });
 
@@ -98,15 +98,15 @@ describe('another material from a parameter set', () => {
   const gaas = materialFromParameters({
     id: 'gaas',
     name: 'gallium arsenide',
-    eg0_eV: 1.519,
-    alpha_eV_per_K: 5.405e-4,
-    beta_K: 204,
+    eg0_ev: 1.519,
+    alpha_ev_per_k: 5.405e-4,
+    beta_k: 204,
     nc300_cm3: 4.7e17,
     ncExponent: 1.5,
     nv300_cm3: 9.0e18,
     nvExponent: 1.5,
-    tempRangeK: { min: 200, max: 500 },
-    maxDoping_cm3: 1e20,
+    temp_range_k: { min: 200, max: 500 },
+    max_doping_cm3: 1e20,
     source: 'test parameter set (memory)',
   });
 
@@ -117,7 +117,7 @@ describe('another material from a parameter set', () => {
 
   it('is self-consistent: the statistics gap equals its band gap', () => {
     const s = materialAt(300, gaas);
-    expect(s.egDos_eV).toBeCloseTo(s.eg_eV, 12);
+    expect(s.eg_dos_ev).toBeCloseTo(s.eg_ev, 12);
     expect(SILICON.id).not.toBe(gaas.id);
   });
 
@@ -130,15 +130,15 @@ function gaasParams() {
   return {
     id: 'x',
     name: 'x',
-    eg0_eV: 1.5,
-    alpha_eV_per_K: 5e-4,
-    beta_K: 200,
+    eg0_ev: 1.5,
+    alpha_ev_per_k: 5e-4,
+    beta_k: 200,
     nc300_cm3: 1e18,
     ncExponent: 1.5,
     nv300_cm3: 1e19,
     nvExponent: 1.5,
-    tempRangeK: { min: 200, max: 500 },
-    maxDoping_cm3: 1e20,
+    temp_range_k: { min: 200, max: 500 },
+    max_doping_cm3: 1e20,
     source: 'x',
   };
 }

@@ -17,9 +17,9 @@ const rel = (a: number, b: number) => Math.abs(a / b - 1);
 // Reference data README: 36-cell module at 45 °C, 1000 W/m², true-current single-diode fit.
 const MODULE: SingleDiodeParams = { iph_a: 1.031434, i0_a: 2.6381e-6, n: 1.32217, rs_ohm: 1.235634, rsh_ohm: 821.64 };
 
-const from = { irradiance_Wm2: 800, tempC: 45 };
-const to = { irradiance_Wm2: 1000, tempC: 25 };
-const threePoints = { voltage_V: [0, 10, 17], current_A: [0.82, 0.8, 0] };
+const from = { irradiance_w_m2: 800, temp_c: 45 };
+const to = { irradiance_w_m2: 1000, temp_c: 25 };
+const threePoints = { voltage_v: [0, 10, 17], current_a: [0.82, 0.8, 0] };
 
 describe('IEC 60891 procedure 1 (absolute coefficients)', () => {
   // Worked example by hand. ΔT = 25 − 45 = −20 K; G2/G1 − 1 = 1000/800 − 1 = 0.25.
@@ -33,26 +33,26 @@ describe('IEC 60891 procedure 1 (absolute coefficients)', () => {
     const r = translateIec60891Proc1(threePoints, {
       from,
       to,
-      alpha_A_per_K: 0.0005,
-      beta_V_per_K: -0.08,
+      alpha_a_per_k: 0.0005,
+      beta_v_per_k: -0.08,
       rs_ohm: 0.5,
-      kappa_ohm_per_K: 0.002,
+      kappa_ohm_per_k: 0.002,
       isc1_a: 0.82,
     });
     const expectedI = [1.015, 0.995, 0.195];
     const expectedV = [1.5431, 11.5423, 18.5103];
-    r.current_A.forEach((i, k) => expect(i).toBeCloseTo(expectedI[k], 12));
-    r.voltage_V.forEach((v, k) => expect(v).toBeCloseTo(expectedV[k], 12));
+    r.current_a.forEach((i, k) => expect(i).toBeCloseTo(expectedI[k], 12));
+    r.voltage_v.forEach((v, k) => expect(v).toBeCloseTo(expectedV[k], 12));
   });
 
-  it.each(['alpha_A_per_K', 'beta_V_per_K', 'rs_ohm', 'kappa_ohm_per_K'])('a missing %s is an error naming it', (name) => {
+  it.each(['alpha_a_per_k', 'beta_v_per_k', 'rs_ohm', 'kappa_ohm_per_k'])('a missing %s is an error naming it', (name) => {
     const options: Record<string, unknown> = {
       from,
       to,
-      alpha_A_per_K: 0.0005,
-      beta_V_per_K: -0.08,
+      alpha_a_per_k: 0.0005,
+      beta_v_per_k: -0.08,
       rs_ohm: 0.5,
-      kappa_ohm_per_K: 0.002,
+      kappa_ohm_per_k: 0.002,
       isc1_a: 0.82,
     };
     delete options[name];
@@ -68,13 +68,13 @@ describe('IEC 60891 procedure 1 (absolute coefficients)', () => {
   });
 
   it.each([
-    [{ ...from, irradiance_Wm2: 0 }, 'from.irradiance_Wm2'],
-    [{ ...from, irradiance_Wm2: 5000 }, 'from.irradiance_Wm2'],
-    [{ ...from, tempC: -300 }, 'from.tempC'],
-    [{ ...from, tempC: Number.NaN }, 'from.tempC'],
+    [{ ...from, irradiance_w_m2: 0 }, 'from.irradiance_w_m2'],
+    [{ ...from, irradiance_w_m2: 5000 }, 'from.irradiance_w_m2'],
+    [{ ...from, temp_c: -300 }, 'from.temp_c'],
+    [{ ...from, temp_c: Number.NaN }, 'from.temp_c'],
   ])('bad conditions %j are rejected naming %s', (bad, name) => {
     expect(() =>
-      translateIec60891Proc1(threePoints, { from: bad, to, alpha_A_per_K: 0, beta_V_per_K: 0, rs_ohm: 0, kappa_ohm_per_K: 0, isc1_a: 1 }),
+      translateIec60891Proc1(threePoints, { from: bad, to, alpha_a_per_k: 0, beta_v_per_k: 0, rs_ohm: 0, kappa_ohm_per_k: 0, isc1_a: 1 }),
     ).toThrow(name);
   });
 });
@@ -91,29 +91,29 @@ describe('IEC 60891 procedure 2 (relative coefficients, irradiance correction)',
     const r = translateIec60891Proc2(threePoints, {
       from,
       to,
-      alpha_rel_per_K: 0.0005,
-      beta_rel_per_K: -0.0035,
+      alpha_rel_per_k: 0.0005,
+      beta_rel_per_k: -0.0035,
       rs_ohm: 0.5,
-      kappa_ohm_per_K: 0.002,
+      kappa_ohm_per_k: 0.002,
       a_irradiance: 0.06,
-      voc1_V: 17,
+      voc1_v: 17,
     });
-    expect(r.current_A[1]).toBeCloseTo(0.99, 12);
-    expect(r.voltage_V[1]).toBeCloseTo(11.3622064, 6);
-    expect(r.current_A[2]).toBe(0);
-    expect(r.voltage_V[2]).toBeCloseTo(18.4176064, 6);
+    expect(r.current_a[1]).toBeCloseTo(0.99, 12);
+    expect(r.voltage_v[1]).toBeCloseTo(11.3622064, 6);
+    expect(r.current_a[2]).toBe(0);
+    expect(r.voltage_v[2]).toBeCloseTo(18.4176064, 6);
   });
 
-  it.each(['alpha_rel_per_K', 'beta_rel_per_K', 'rs_ohm', 'kappa_ohm_per_K', 'a_irradiance'])('a missing %s is an error naming it', (name) => {
+  it.each(['alpha_rel_per_k', 'beta_rel_per_k', 'rs_ohm', 'kappa_ohm_per_k', 'a_irradiance'])('a missing %s is an error naming it', (name) => {
     const options: Record<string, unknown> = {
       from,
       to,
-      alpha_rel_per_K: 0.0005,
-      beta_rel_per_K: -0.0035,
+      alpha_rel_per_k: 0.0005,
+      beta_rel_per_k: -0.0035,
       rs_ohm: 0.5,
-      kappa_ohm_per_K: 0.002,
+      kappa_ohm_per_k: 0.002,
       a_irradiance: 0.06,
-      voc1_V: 17,
+      voc1_v: 17,
     };
     delete options[name];
     expect(() => translateIec60891Proc2(threePoints, options as unknown as Parameters<typeof translateIec60891Proc2>[1])).toThrow(
@@ -126,9 +126,9 @@ describe('model-based translation (De Soto, Klein & Beckman 2006)', () => {
   it('scales the parameters as the paper prescribes: Iph ∝ G·(1 + α·ΔT), Rsh ∝ 1/G, Rs and n unchanged', () => {
     const t = translateModel(MODULE, {
       cells: 36,
-      from: { irradiance_Wm2: 1000, tempC: 45 },
-      to: { irradiance_Wm2: 500, tempC: 25 },
-      alpha_isc_A_per_K: 0.0005,
+      from: { irradiance_w_m2: 1000, temp_c: 45 },
+      to: { irradiance_w_m2: 500, temp_c: 25 },
+      alpha_isc_a_per_k: 0.0005,
     });
     // Iph = 0.5·(1.031434 + 0.0005·(−20)) = 0.5·1.021434 = 0.510717 A.
     expect(t.params.iph_a).toBeCloseTo(0.510717, 12);
@@ -139,59 +139,59 @@ describe('model-based translation (De Soto, Klein & Beckman 2006)', () => {
   });
 
   it('without α it assumes +0.05 %/K of Iph and says so', () => {
-    const t = translateModel(MODULE, { cells: 36, from: { irradiance_Wm2: 1000, tempC: 45 }, to: { irradiance_Wm2: 1000, tempC: 25 } });
-    expect(t.notes.join(' ')).toMatch(/alpha_isc_A_per_K not given/);
+    const t = translateModel(MODULE, { cells: 36, from: { irradiance_w_m2: 1000, temp_c: 45 }, to: { irradiance_w_m2: 1000, temp_c: 25 } });
+    expect(t.notes.join(' ')).toMatch(/alpha_isc_a_per_k not given/);
   });
 });
 
 describe('translated curves with key figures', () => {
-  const simulated = simulateCurve(MODULE, { cells: 36, tempC: 45, points: 101 });
-  const measuredAt = { irradiance_Wm2: 1000, tempC: 45 };
+  const simulated = simulateCurve(MODULE, { cells: 36, temp_c: 45, points: 101 });
+  const measured_at = { irradiance_w_m2: 1000, temp_c: 45 };
 
   // Independent methods: procedure 1 acting on the module's curve versus the De Soto scaling of
   // its parameters, with matching coefficients (α = 0.05 %/K of Iph, β from the same I0 law,
   // Rs the fitted one, κ = 0). They agree only approximately — procedure 1 keeps the curve's
   // shape, the model rescales Rsh with G — hence the tolerances (measured 0.35 % and 1.0 %).
   it.each([
-    [{ irradiance_Wm2: 800, tempC: 45 }, 0.01],
-    [{ irradiance_Wm2: 1000, tempC: 25 }, 0.02],
+    [{ irradiance_w_m2: 800, temp_c: 45 }, 0.01],
+    [{ irradiance_w_m2: 1000, temp_c: 25 }, 0.02],
   ])('procedure 1 and the model agree on Pmp at %j within %f', (target, tol) => {
-    const beta = vocTempCoefficient(MODULE, { cells: 36, tempC: 45, law: 'desoto' }).beta_V_per_K;
+    const beta = vocTempCoefficient(MODULE, { cells: 36, temp_c: 45, law: 'desoto' }).beta_v_per_k;
     const p1 = translateCurve(simulated, {
       method: 'iec60891-1',
-      from: measuredAt,
+      from: measured_at,
       to: target,
-      alpha_A_per_K: 0.0005 * MODULE.iph_a,
-      beta_V_per_K: beta,
+      alpha_a_per_k: 0.0005 * MODULE.iph_a,
+      beta_v_per_k: beta,
       rs_ohm: MODULE.rs_ohm,
-      kappa_ohm_per_K: 0,
+      kappa_ohm_per_k: 0,
     });
-    const model = translateCurve(null, { method: 'model', params: MODULE, cells: 36, from: measuredAt, to: target, i0Law: 'desoto' });
+    const model = translateCurve(null, { method: 'model', params: MODULE, cells: 36, from: measured_at, to: target, i0_law: 'desoto' });
     expect(p1.figures).not.toBeNull();
-    expect(rel(p1.figures!.pmp_w, model.modelFigures!.pmp_w)).toBeLessThan(tol);
+    expect(rel(p1.figures!.pmp_w, model.model_figures!.pmp_w)).toBeLessThan(tol);
     // The model curve's sampled key figures agree with its exact figures.
-    expect(rel(model.figures!.pmp_w, model.modelFigures!.pmp_w)).toBeLessThan(1e-3);
+    expect(rel(model.figures!.pmp_w, model.model_figures!.pmp_w)).toBeLessThan(1e-3);
   });
 
   it('translates the measured reference module (CSV) to STC, extending the Isc end to 0 V and saying so', () => {
     const text = readReference(REFERENCE_MODULE);
-    const curve = parseIvText(text, { overrides: { cells: 36, tempC: 45, irradiance_Wm2: 1000 } });
+    const curve = parseIvText(text, { overrides: { cells: 36, temp_c: 45, irradiance_w_m2: 1000 } });
     const r = translateCurve(curve, {
       method: 'iec60891-1',
-      from: measuredAt,
-      to: { irradiance_Wm2: 1000, tempC: 25 },
-      alpha_A_per_K: 0.0005,
-      beta_V_per_K: -0.08,
+      from: measured_at,
+      to: { irradiance_w_m2: 1000, temp_c: 25 },
+      alpha_a_per_k: 0.0005,
+      beta_v_per_k: -0.08,
       rs_ohm: 1.2,
-      kappa_ohm_per_K: 0,
+      kappa_ohm_per_k: 0,
     });
     expect(r.figures).not.toBeNull();
-    expect(r.curve.voltage_V[0]).toBe(0);
+    expect(r.curve.voltage_v[0]).toBe(0);
     expect(r.notes.join(' ')).toMatch(/extended linearly to 0 V/);
     // Voc rises by about −β·ΔT = 1.6 V from the measured 16.78 V (README fit: Voc at 45 °C).
     expect(r.figures!.voc_v).toBeGreaterThan(16.78 + 1.4);
-    expect(r.curve.meta.tempC).toBe(25);
-    for (const x of [...r.curve.voltage_V, ...r.curve.current_A]) expect(Number.isFinite(x)).toBe(true);
+    expect(r.curve.meta.temp_c).toBe(25);
+    for (const x of [...r.curve.voltage_v, ...r.curve.current_a]) expect(Number.isFinite(x)).toBe(true);
   });
 
   it('rejects an unknown method and a missing curve, naming them', () => {

@@ -13,13 +13,13 @@ const batches = [
 ];
 
 const row = (k: number, over: Partial<CompareRowInput> = {}): CompareRowInput => ({
-  curveId: `c-${k}`,
-  deviceId: `M-${k}`,
+  curve_id: `c-${k}`,
+  device_id: `M-${k}`,
   values: { pmp_w: 250 + k, rs_ohm: 0.3 + k / 100, n: k === 2 ? null : 1.1 },
   flags: k === 1 ? ['step'] : [],
   result: k === 1 ? 'fail' : 'pass',
   reasons: k === 1 ? ['Pmax below 250 W'] : [],
-  powerClass: '250 W',
+  power_class: '250 W',
   ...over,
 });
 
@@ -36,7 +36,7 @@ describe('columnsOfRows / rowsOfColumns', () => {
     expect(rows).toHaveLength(5);
     rows.forEach((got, k) => {
       const { r, b, o } = expected[k];
-      expect(got).toEqual({ curveId: r.curveId, batchId: batches[b].id, batchName: batches[b].name, deviceId: r.deviceId, flags: r.flags, result: r.result, reasons: r.reasons, powerClass: r.powerClass, outlier: o, ...r.values });
+      expect(got).toEqual({ curve_id: r.curve_id, batch_id: batches[b].id, batch_name: batches[b].name, device_id: r.device_id, flags: r.flags, result: r.result, reasons: r.reasons, power_class: r.power_class, outlier: o, ...r.values });
     });
   });
 
@@ -63,13 +63,13 @@ describe('columnsOfRows / rowsOfColumns', () => {
   it('round-trips random rows through JSON unchanged (property)', () => {
     const num = fc.oneof(fc.double({ noNaN: true, noDefaultInfinity: true }), fc.constant(null));
     const arbRow = fc.record({
-      curveId: fc.uuid(),
-      deviceId: fc.string(),
+      curve_id: fc.uuid(),
+      device_id: fc.string(),
       values: fc.record({ pmp_w: num, ff: num, i0_a: num }),
       flags: fc.array(fc.constantFrom('step', 'noisy', 'fit-failed')),
       result: fc.constantFrom('pass' as const, 'fail' as const, null),
       reasons: fc.array(fc.string()),
-      powerClass: fc.option(fc.string(), { nil: null }),
+      power_class: fc.option(fc.string(), { nil: null }),
     });
     fc.assert(
       fc.property(fc.array(arbRow, { maxLength: 20 }), fc.array(arbRow, { maxLength: 20 }), (a, b) => {
@@ -79,8 +79,8 @@ describe('columnsOfRows / rowsOfColumns', () => {
         expect(back).toHaveLength(all.length);
         back.forEach((r, k) => {
           for (const [key, v] of Object.entries(all[k].values)) expect(r[key]).toBe(Object.is(v, -0) ? 0 : v);
-          expect(r.deviceId).toBe(all[k].deviceId);
-          expect(r.batchId).toBe(batches[k < a.length ? 0 : 1].id);
+          expect(r.device_id).toBe(all[k].device_id);
+          expect(r.batch_id).toBe(batches[k < a.length ? 0 : 1].id);
           expect(r.outlier).toBe(k < a.length ? null : true);
         });
       }),

@@ -6,9 +6,9 @@ import { COMPARISON_RECORD_FIELDS, comparisonRecordFields, deviceRecordOf, encod
 import type { ComparisonRecordFields } from '@/lib/quality/comparison-record';
 
 const fitted: ComparisonRecordFields = {
-  curveId: 'c1',
-  batchId: 'b1',
-  deviceId: 'M-01',
+  curve_id: 'c1',
+  batch_id: 'b1',
+  device_id: 'M-01',
   metrics: { isc_a: 9.5, voc_v: 41.2, pmp_w: 300.5 },
   cells: 60,
   area_cm2: 16_500,
@@ -35,7 +35,7 @@ it('writes the fields in the listed order and reads them back by name', () => {
 
 it('turns a record into a device with J0 per cell area, and keeps the fit out when it did not converge', () => {
   const d = deviceRecordOf(JSON.parse(encodeComparisonRecord(fitted)));
-  expect(d).toMatchObject({ curveId: 'c1', batchId: 'b1', deviceId: 'M-01', flags: ['step', 'noisy'], fitted: true });
+  expect(d).toMatchObject({ curve_id: 'c1', batch_id: 'b1', device_id: 'M-01', flags: ['step', 'noisy'], fitted: true });
   // By hand: cell area 16,500 / 60 = 275 cm²; J0 = 2.75e-9 / 275 = 1e-11 A/cm².
   expect(d.values.j0_a_cm2).toBeCloseTo(1e-11, 20);
   expect(d.values.pmp_w).toBe(300.5);

@@ -36,11 +36,11 @@ describe('csvSafeCell() — OWASP CSV-injection rule for strings', () => {
 });
 
 describe('passFailRows()', () => {
-  const spec = parseSpec({ name: 's', limits: { pmp_w: { min: 395 }, isc_a: { min: -1 } }, powerClasses: { step_w: 5 } });
+  const spec = parseSpec({ name: 's', limits: { pmp_w: { min: 395 }, isc_a: { min: -1 } }, power_classes: { step_w: 5 } });
   const batch = evaluateBatch(
     [
-      { deviceId: '=cmd()', values: { pmp_w: 401, isc_a: -0.25, voc_v: 49.1 }, flags: [] },
-      { deviceId: 'M2', values: { pmp_w: 390, isc_a: 10.1 }, flags: [] },
+      { device_id: '=cmd()', values: { pmp_w: 401, isc_a: -0.25, voc_v: 49.1 }, flags: [] },
+      { device_id: 'M2', values: { pmp_w: 390, isc_a: 10.1 }, flags: [] },
     ],
     spec,
   );

@@ -50,7 +50,7 @@ describe('describe()', () => {
   ] as const)('Cpk with limits %p', (limits, expected, side) => {
     const r = describeValues(EIGHT, limits);
     expect(r.cpk).toBeCloseTo(expected, 12);
-    expect(r.cpkSide).toBe(side);
+    expect(r.cpk_side).toBe(side);
   });
 
   it('mean outside the limits gives a negative Cpk, not a clipped one', () => {
@@ -70,7 +70,7 @@ describe('describe()', () => {
     expect(one.cpk).toBeNull();
     expect(one.median).toBe(3.2);
     expect(describeValues([1, 1, 1], { min: 0 }).cpk).toBeNull();
-    expect(cpkOf(5, 0, { max: 6 })).toEqual({ cpk: null, cpkSide: null });
+    expect(cpkOf(5, 0, { max: 6 })).toEqual({ cpk: null, cpk_side: null });
   });
 
   it.each([

@@ -5,16 +5,16 @@ import { parseSpec } from '@/lib/quality/spec';
 const spec = parseSpec({
   name: 'mono 400',
   limits: { pmp_w: { min: 395 }, rs_ohm: { max: 0.5 }, ff: { min: 0.74, max: 0.85 } },
-  powerClasses: { step_w: 5 },
-  failFlags: ['step_in_curve', 'shunt_suspected'],
+  power_classes: { step_w: 5 },
+  fail_flags: ['step_in_curve', 'shunt_suspected'],
 });
 
-const device = (deviceId: string, values: DeviceRecord['values'], flags: string[] = []): DeviceRecord => ({ deviceId, values, flags });
+const device = (device_id: string, values: DeviceRecord['values'], flags: string[] = []): DeviceRecord => ({ device_id, values, flags });
 
 describe('evaluateDevice()', () => {
   it('passes a device inside every limit and classes it', () => {
     const r = evaluateDevice(device('M1', { pmp_w: 402.3, rs_ohm: 0.31, ff: 0.79 }), spec);
-    expect(r).toEqual({ deviceId: 'M1', result: 'pass', reasons: [], powerClass: 'P400' });
+    expect(r).toEqual({ device_id: 'M1', result: 'pass', reasons: [], power_class: 'P400' });
   });
 
   it('lists every reason, with value, limit and bound', () => {
@@ -28,7 +28,7 @@ describe('evaluateDevice()', () => {
     ]);
     expect(r.reasons[0].message).toBe('pmp_w 390 W is below the minimum 395 W');
     expect(r.reasons[2].message).toBe('rs_ohm 0.62 Ω is above the maximum 0.5 Ω');
-    expect(r.powerClass).toBe('P390');
+    expect(r.power_class).toBe('P390');
   });
 
   it('treats bounds as inclusive', () => {
@@ -39,7 +39,7 @@ describe('evaluateDevice()', () => {
     const r = evaluateDevice(device('M4', { pmp_w: 401, ff: null }), spec);
     expect(r.reasons.map((x) => x.message)).toEqual(['ff not measured', 'rs_ohm not measured']);
     const noPower = evaluateDevice(device('M5', { rs_ohm: 0.3, ff: 0.8 }), spec);
-    expect(noPower.powerClass).toBeNull();
+    expect(noPower.power_class).toBeNull();
     expect(noPower.reasons.map((x) => x.message)).toEqual(['pmp_w not measured', 'pmp_w not measured: no power class']);
   });
 
@@ -52,12 +52,12 @@ describe('evaluateDevice()', () => {
   });
 
   it('rejects a record without an id', () => {
-    expect(() => evaluateDevice({ deviceId: '', values: {}, flags: [] }, spec)).toThrow(/deviceId must be a non-empty string/);
+    expect(() => evaluateDevice({ device_id: '', values: {}, flags: [] }, spec)).toThrow(/device_id must be a non-empty string/);
   });
 });
 
 describe('power classes', () => {
-  const steps = parseSpec({ name: 's', powerClasses: { step_w: 5 } }).powerClasses!;
+  const steps = parseSpec({ name: 's', power_classes: { step_w: 5 } }).power_classes!;
   // Positive-only tolerance (common practice): class P when P ≤ Pmax < P + 5 W.
   it.each([
     [399.99, 'P395'],
@@ -69,7 +69,7 @@ describe('power classes', () => {
     expect(powerClassOf(p, steps).label).toBe(label);
   });
 
-  const symmetric = parseSpec({ name: 's', powerClasses: { step_w: 5, tolerance: { minus_w: 2.5, plus_w: 2.5 }, label_prefix: 'M' } }).powerClasses!;
+  const symmetric = parseSpec({ name: 's', power_classes: { step_w: 5, tolerance: { minus_w: 2.5, plus_w: 2.5 }, label_prefix: 'M' } }).power_classes!;
   // P − 2.5 ≤ Pmax < P + 2.5
   it.each([
     [397.5, 'M400'],
@@ -80,7 +80,7 @@ describe('power classes', () => {
     expect(powerClassOf(p, symmetric).label).toBe(label);
   });
 
-  const range = parseSpec({ name: 's', powerClasses: { step_w: 2.5, lowest_w: 395, highest_w: 410 } }).powerClasses!;
+  const range = parseSpec({ name: 's', power_classes: { step_w: 2.5, lowest_w: 395, highest_w: 410 } }).power_classes!;
   it.each([
     [396.2, 'P395', null],
     [392.4, null, /below the lowest power class P395/],
@@ -95,7 +95,7 @@ describe('power classes', () => {
 
   const bins = parseSpec({
     name: 'b',
-    powerClasses: {
+    power_classes: {
       basis: 'stc_pmp_w',
       bins: [
         { label: 'Gold', nominal_w: 410, min_w: 410, max_w: 420 },
@@ -110,7 +110,7 @@ describe('power classes', () => {
     [420, null],
   ])('explicit bins on stc_pmp_w: %p W → %p', (p, label) => {
     const r = evaluateDevice(device('B', { stc_pmp_w: p, pmp_w: 1 }), bins);
-    expect(r.powerClass).toBe(label);
+    expect(r.power_class).toBe(label);
     expect(r.result).toBe(label ? 'pass' : 'fail');
     if (!label) expect(r.reasons[0].message).toMatch(/stc_pmp_w .* W falls in no power class \(classes cover 400–420 W\)/);
   });
@@ -122,20 +122,20 @@ describe('evaluateBatch()', () => {
   const pmp = [400, 401, 402, 401, 400, 402, 401, 399, 403, 360];
   const devices = pmp.map((p, i) => device(`M${i + 1}`, { pmp_w: p, rs_ohm: 0.3 + i * 0.01, ff: 0.8 }, i === 4 ? ['shunt_suspected'] : []));
   devices.push(device('M11', { rs_ohm: 0.35, ff: 0.8 }));
-  const r = evaluateBatch(devices, spec, { outlierParams: ['pmp_w', 'rs_ohm'] });
+  const r = evaluateBatch(devices, spec, { outlier_params: ['pmp_w', 'rs_ohm'] });
 
   it('counts pass, fail and outliers', () => {
     // fails: M5 (flag), M10 (360 W < 395), M11 (pmp_w not measured)
     expect(r.counts).toEqual({ total: 11, pass: 8, fail: 3, outliers: 1 });
-    expect(r.devices.filter((d) => d.result === 'fail').map((d) => d.deviceId)).toEqual(['M5', 'M10', 'M11']);
+    expect(r.devices.filter((d) => d.result === 'fail').map((d) => d.device_id)).toEqual(['M5', 'M10', 'M11']);
   });
 
   it('marks the low module as a pmp_w outlier with the hand-computed score', () => {
     const low = r.devices[9];
     expect(low.outlier).toBe(true);
-    expect(low.outlierParams).toEqual(['pmp_w']);
-    expect(low.robustZ.pmp_w).toBeCloseTo(0.6745 * -41, 10);
-    expect(r.devices[10].robustZ.pmp_w).toBeNull();
+    expect(low.outlier_params).toEqual(['pmp_w']);
+    expect(low.robust_z.pmp_w).toBeCloseTo(0.6745 * -41, 10);
+    expect(r.devices[10].robust_z.pmp_w).toBeNull();
   });
 
   it('describes each parameter with Cpk against the spec limits', () => {
@@ -144,12 +144,12 @@ describe('evaluateBatch()', () => {
     // mean = (400+401+402+401+400+402+401+399+403+360)/10 = 3969/10
     expect(s.mean).toBeCloseTo(396.9, 10);
     // one-sided (min 395): (μ − 395)/(3·sd)
-    expect(s.cpkSide).toBe('lower');
+    expect(s.cpk_side).toBe('lower');
     expect(s.cpk).toBeCloseTo((396.9 - 395) / (3 * s.sd!), 12);
     expect(r.stats.ff!.cpk).toBeNull(); // all 0.8: zero spread
     expect(Object.keys(r.stats)).toEqual(['pmp_w', 'ff', 'rs_ohm']);
     // 400–403 W → P400 (8 modules), 399 W → P395, 360 W → P360
-    expect(r.powerClassCounts).toEqual({ P400: 8, P395: 1, P360: 1 });
+    expect(r.power_class_counts).toEqual({ P400: 8, P395: 1, P360: 1 });
   });
 
   it('keeps the values for the export and returns plain JSON', () => {
@@ -158,7 +158,7 @@ describe('evaluateBatch()', () => {
   });
 
   it('rejects an unknown outlier parameter', () => {
-    expect(() => evaluateBatch(devices, spec, { outlierParams: ['pmax' as never] })).toThrow(/unknown parameter "pmax"/);
+    expect(() => evaluateBatch(devices, spec, { outlier_params: ['pmax' as never] })).toThrow(/unknown parameter "pmax"/);
   });
 
   it('handles an empty batch', () => {

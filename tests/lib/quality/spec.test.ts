@@ -12,8 +12,8 @@ describe('specInputSchema', () => {
     const spec = parseSpec({
       name: '  Line 3 mono 400 W  ',
       limits: { pmp_w: { min: 395 }, rs_ohm: { max: 0.5 }, ff: { min: 0.74, max: 0.85 } },
-      powerClasses: { step_w: 5, tolerance: { minus_w: 0, plus_w: 5 } },
-      failFlags: ['step_in_curve'],
+      power_classes: { step_w: 5, tolerance: { minus_w: 0, plus_w: 5 } },
+      fail_flags: ['step_in_curve'],
       notes: 'customer X',
     });
     expect(spec.name).toBe('Line 3 mono 400 W');
@@ -23,7 +23,7 @@ describe('specInputSchema', () => {
   it('defaults limits to none and accepts explicit bins', () => {
     const spec = parseSpec({
       name: 'bins',
-      powerClasses: { bins: [{ label: 'A', nominal_w: 400, min_w: 400, max_w: 405 }, { label: 'B', nominal_w: 405, min_w: 405, max_w: 410 }] },
+      power_classes: { bins: [{ label: 'A', nominal_w: 400, min_w: 400, max_w: 405 }, { label: 'B', nominal_w: 405, min_w: 405, max_w: 410 }] },
     });
     expect(spec.limits).toEqual({});
   });
@@ -38,20 +38,20 @@ describe('specInputSchema', () => {
     [{ name: '', limits: {} }, /^name: name is required$/],
     [{ limits: {} }, /^name: name is required$/],
     [{ name: 'x', limit: {} }, /^unknown spec field "limit"/],
-    [{ name: 'x', powerClasses: {} }, /^powerClasses\.step_w: give step_w/],
-    [{ name: 'x', powerClasses: { step_w: 5, tolerance: { minus_w: 0, plus_w: 3 } } }, /must equal step_w \(5 W\)/],
-    [{ name: 'x', powerClasses: { step_w: 5, lowest_w: 402 } }, /lowest_w \(402 W\) must be a multiple of step_w/],
-    [{ name: 'x', powerClasses: { step_w: 5, lowest_w: 410, highest_w: 400 } }, /lowest_w \(410 W\) is above highest_w/],
+    [{ name: 'x', power_classes: {} }, /^power_classes\.step_w: give step_w/],
+    [{ name: 'x', power_classes: { step_w: 5, tolerance: { minus_w: 0, plus_w: 3 } } }, /must equal step_w \(5 W\)/],
+    [{ name: 'x', power_classes: { step_w: 5, lowest_w: 402 } }, /lowest_w \(402 W\) must be a multiple of step_w/],
+    [{ name: 'x', power_classes: { step_w: 5, lowest_w: 410, highest_w: 400 } }, /lowest_w \(410 W\) is above highest_w/],
     [
-      { name: 'x', powerClasses: { step_w: 5, bins: [{ label: 'A', nominal_w: 400, min_w: 400, max_w: 405 }] } },
+      { name: 'x', power_classes: { step_w: 5, bins: [{ label: 'A', nominal_w: 400, min_w: 400, max_w: 405 }] } },
       /give either bins or step_w-based classes, not both/,
     ],
     [
-      { name: 'x', powerClasses: { bins: [{ label: 'A', nominal_w: 400, min_w: 400, max_w: 406 }, { label: 'B', nominal_w: 405, min_w: 405, max_w: 410 }] } },
+      { name: 'x', power_classes: { bins: [{ label: 'A', nominal_w: 400, min_w: 400, max_w: 406 }, { label: 'B', nominal_w: 405, min_w: 405, max_w: 410 }] } },
       /bins "A" and "B" overlap/,
     ],
-    [{ name: 'x', powerClasses: { bins: [{ label: 'A', nominal_w: 400, min_w: 405, max_w: 400 }] } }, /min_w \(405\) must be below max_w \(400\)/],
-    [{ name: 'x', failFlags: [''] }, /^failFlags\.0: a flag code cannot be empty$/],
+    [{ name: 'x', power_classes: { bins: [{ label: 'A', nominal_w: 400, min_w: 405, max_w: 400 }] } }, /min_w \(405\) must be below max_w \(400\)/],
+    [{ name: 'x', fail_flags: [''] }, /^fail_flags\.0: a flag code cannot be empty$/],
   ])('rejects %j with a clear message', (input, message) => {
     expect(issues(input).some((m) => message.test(m))).toBe(true);
   });

@@ -59,8 +59,8 @@ describe('welchFromSummary() against published worked examples', () => {
   it.each([
     ['t', -2.5922, 5e-4],
     ['p', 0.032, 5e-4],
-    ['ciLow', -7.559, 2e-3],
-    ['ciHigh', -0.441, 2e-3],
+    ['ci_low', -7.559, 2e-3],
+    ['ci_high', -0.441, 2e-3],
   ] as const)('NAG g07caf %s ≈ %p', (field, expected, tol) => {
     expect(Math.abs(nag[field] - expected)).toBeLessThanOrEqual(tol);
   });
@@ -78,18 +78,18 @@ describe('welchDifference() on raw data, checked by hand and by numeric integrat
   // By hand: mean A = 2.24/5 = 0.448; Σ(x − 0.448)² = 0.028² + 0.002² + 0.022² + 0.008² + 0.012² = 0.00148
   //          → s²A = 0.00148/4 = 0.00037
   //          mean B = 3.29/6; Σx² − (Σx)²/6 = 1.8109 − 10.8241/6 = 0.0068833… → s²B = 0.0068833…/5
-  const meanA = 2.24 / 5;
-  const meanB = 3.29 / 6;
+  const mean_a = 2.24 / 5;
+  const mean_b = 3.29 / 6;
   const vA = 0.00148 / 4;
   const vB = (1.8109 - 10.8241 / 6) / 5;
   const se2 = vA / 5 + vB / 6;
   const dof = (se2 * se2) / ((vA / 5) ** 2 / 4 + (vB / 6) ** 2 / 5); // Welch–Satterthwaite ≈ 7.74
-  const t = (meanB - meanA) / Math.sqrt(se2);
+  const t = (mean_b - mean_a) / Math.sqrt(se2);
   const r = welchDifference(a, b, 0.95, { param: 'rs_ohm', unit: 'Ω' });
 
   it.each([
-    ['difference', meanB - meanA, 1e-12],
-    ['standardError', Math.sqrt(se2), 1e-12],
+    ['difference', mean_b - mean_a, 1e-12],
+    ['standard_error', Math.sqrt(se2), 1e-12],
     ['dof', dof, 1e-9],
     ['t', t, 1e-9],
   ] as const)('%s matches the hand formula', (field, expected, tol) => {
@@ -100,20 +100,20 @@ describe('welchDifference() on raw data, checked by hand and by numeric integrat
     const pIndependent = 2 * tUpperTail(t, dof);
     expect(Math.abs(r.p - pIndependent)).toBeLessThan(1e-8);
     const tCrit = tQuantileUpper(0.025, dof);
-    expect(Math.abs(r.tCritical - tCrit)).toBeLessThan(1e-6);
-    expect(Math.abs(r.ciLow - (meanB - meanA - tCrit * Math.sqrt(se2)))).toBeLessThan(1e-7);
-    expect(Math.abs(r.ciHigh - (meanB - meanA + tCrit * Math.sqrt(se2)))).toBeLessThan(1e-7);
+    expect(Math.abs(r.t_critical - tCrit)).toBeLessThan(1e-6);
+    expect(Math.abs(r.ci_low - (mean_b - mean_a - tCrit * Math.sqrt(se2)))).toBeLessThan(1e-7);
+    expect(Math.abs(r.ci_high - (mean_b - mean_a + tCrit * Math.sqrt(se2)))).toBeLessThan(1e-7);
     expect(r.significant).toBe(true);
   });
 
   it.each([0.9, 0.99])('the %p interval uses its own quantile', (conf) => {
     const s = welchDifference(a, b, conf);
-    expect(Math.abs(s.tCritical - tQuantileUpper((1 - conf) / 2, dof))).toBeLessThan(1e-6);
+    expect(Math.abs(s.t_critical - tQuantileUpper((1 - conf) / 2, dof))).toBeLessThan(1e-6);
   });
 
   it('writes the sentence with numbers rounded to the interval', () => {
     // half width ≈ 0.041 → two significant digits → 3 decimals
-    expect(r.sentence).toContain(`Batch B's rs_ohm is higher than Batch A's by 0.100 Ω (95 % CI ${r.ciLow.toFixed(3)}–${r.ciHigh.toFixed(3)} Ω`);
+    expect(r.sentence).toContain(`Batch B's rs_ohm is higher than Batch A's by 0.100 Ω (95 % CI ${r.ci_low.toFixed(3)}–${r.ci_high.toFixed(3)} Ω`);
   });
 
   it('says "no clear difference" when the interval includes zero', () => {

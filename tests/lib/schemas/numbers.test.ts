@@ -113,8 +113,8 @@ describe('the field builders', () => {
 
   it('reqNumber refuses a missing value with its own message or the default', () => {
     expect(issue(reqNumber('System voltage limit (V)', {}, 'Enter the system voltage limit.'), '')).toBe('Enter the system voltage limit.');
-    expect(issue(reqNumber('tempK', { unit: 'K' }), undefined)).toBe('tempK is required (K).');
-    expect(reqNumber('tempK', { unit: 'K' }).parse('300')).toBe(300);
+    expect(issue(reqNumber('temp_k', { unit: 'K' }), undefined)).toBe('temp_k is required (K).');
+    expect(reqNumber('temp_k', { unit: 'K' }).parse('300')).toBe(300);
   });
 
   it.each([
@@ -137,21 +137,21 @@ describe('every schema reads numbers the same way', () => {
   ])('%j', (text, expected) => {
     // Each schema's own bounds apply afterwards: the area must be positive.
     if (expected > 0) expect(uploadOverridesSchema.parse({ area_cm2: text }).area_cm2).toBe(expected);
-    else expect(uploadOverridesSchema.parse({ tempC: text }).tempC).toBe(expected);
-    expect(stringSizeSchema.parse({ tMin_C: text, vSys_V: '1500' }).tMin_C).toBe(expected);
-    expect(bandDiagramSchema.parse({ type: 'p', doping_cm3: '1e16', tempK: '300', excess_cm3: text }).excess_cm3).toBe(expected);
+    else expect(uploadOverridesSchema.parse({ temp_c: text }).temp_c).toBe(expected);
+    expect(stringSizeSchema.parse({ t_min_c: text, v_sys_v: '1500' }).t_min_c).toBe(expected);
+    expect(bandDiagramSchema.parse({ type: 'p', doping_cm3: '1e16', temp_k: '300', excess_cm3: text }).excess_cm3).toBe(expected);
   });
 
   it('a number that is not one is refused by each', () => {
     expect(batchCreateSchema.safeParse({ name: 'b', area_cm2: '0x10' }).success).toBe(false);
-    expect(stringSizeSchema.safeParse({ tMin_C: '0x10', vSys_V: '1500' }).success).toBe(false);
-    expect(bandDiagramSchema.safeParse({ type: 'p', doping_cm3: '0x10', tempK: '300' }).success).toBe(false);
+    expect(stringSizeSchema.safeParse({ t_min_c: '0x10', v_sys_v: '1500' }).success).toBe(false);
+    expect(bandDiagramSchema.safeParse({ type: 'p', doping_cm3: '0x10', temp_k: '300' }).success).toBe(false);
     expect(curveListQuerySchema.safeParse({ page: '0x10' }).success).toBe(false);
   });
 
   it('defaults stay: page 1, 50 a page, 300 K', () => {
-    expect(curveListQuerySchema.parse({})).toMatchObject({ page: 1, pageSize: 50 });
-    expect(materialQuerySchema.parse({}).tempK).toBe(300);
-    expect(curveListQuerySchema.safeParse({ pageSize: '501' }).success).toBe(false);
+    expect(curveListQuerySchema.parse({})).toMatchObject({ page: 1, page_size: 50 });
+    expect(materialQuerySchema.parse({}).temp_k).toBe(300);
+    expect(curveListQuerySchema.safeParse({ page_size: '501' }).success).toBe(false);
   });
 });
