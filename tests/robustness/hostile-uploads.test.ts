@@ -14,7 +14,7 @@ import type { Harness } from '@/tests/server/harness';
 /** A message longer than this is not a sentence someone reads (the parser quotes at most 60 characters of a cell). */
 const MAX_MESSAGE_CHARS = 400;
 
-type UploadResult = { file: string; accepted: boolean; curveId?: string; deviceId?: string; code?: string; error?: string };
+type UploadResult = { file: string; accepted: boolean; curve_id?: string; device_id?: string; code?: string; error?: string };
 
 const corpus = buildCorpus();
 let h: Harness;
@@ -47,17 +47,17 @@ it(`the corpus has at least 60 files, accepted and rejected ones, with unique na
 describe('each file alone in its own request', () => {
   it.each(corpus.map((e) => [e.name, e] as [string, CorpusEntry]))('%s', async (_name, e) => {
     const res = await tester.post(`/api/batches/${batchId}/curves`).attach('files', e.bytes, e.fileName);
-    outcome.set(e.fileName, { status: res.status, curveId: res.body?.results?.[0]?.curveId });
+    outcome.set(e.fileName, { status: res.status, curveId: res.body?.results?.[0]?.curve_id });
     if (e.expect.accept) {
       expect(res.status).toBe(201);
       const [r] = res.body.results as UploadResult[];
-      expect(r).toEqual(expect.objectContaining({ file: e.fileName, accepted: true, curveId: expect.any(String) }));
-      const [row] = await h.database.db.select({ deviceId: curve.deviceId, fileName: curve.fileName, n: curve.voltage_v }).from(curve).where(eq(curve.id, r.curveId!));
+      expect(r).toEqual(expect.objectContaining({ file: e.fileName, accepted: true, curve_id: expect.any(String) }));
+      const [row] = await h.database.db.select({ deviceId: curve.deviceId, fileName: curve.fileName, n: curve.voltage_v }).from(curve).where(eq(curve.id, r.curve_id!));
       expect(row.fileName).toBe(e.fileName);
       // The id is stored and served exactly as written: text, never evaluated or rewritten.
       if (e.expect.deviceId !== undefined) {
         expect(row.deviceId).toBe(e.expect.deviceId);
-        const served = await tester.get(`/api/curves/${r.curveId}`);
+        const served = await tester.get(`/api/curves/${r.curve_id}`);
         expect(served.status).toBe(200);
         expect(served.body.device_id).toBe(e.expect.deviceId);
       }
@@ -72,7 +72,7 @@ describe('each file alone in its own request', () => {
       expect(res.body).toEqual(expect.objectContaining({ accepted: 0, rejected: 1 }));
       const [r] = res.body.results as UploadResult[];
       expect(r).toEqual(expect.objectContaining({ file: e.fileName, accepted: false, code: expect.any(String), error: expect.any(String) }));
-      expect(r.curveId).toBeUndefined();
+      expect(r.curve_id).toBeUndefined();
       message = r.error!;
     } else {
       expect(res.body).toEqual({ code: expect.any(String), message: expect.any(String) });

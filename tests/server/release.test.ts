@@ -76,7 +76,7 @@ async function makeBatch(name: string, who: Agent = tester) {
     .attach('files', cellFile(`${name}-2`, 1.01), 'c2.csv')
     .attach('files', cellFile(`${name}-3`, 0.99, 0.3), 'c3.csv');
   expect(up.status).toBe(201);
-  return { id: b.id as string, curveIds: up.body.results.map((r: { curveId: string }) => r.curveId) as string[] };
+  return { id: b.id as string, curveIds: up.body.results.map((r: { curve_id: string }) => r.curve_id) as string[] };
 }
 
 async function submit(batchId: string) {
