@@ -13,6 +13,7 @@ import type { Db } from '@/db/client';
 import * as schema from '@/db/schema';
 import { ROLE_PERMISSIONS, ROLES, STATEMENTS } from '@/lib/auth/roles';
 import type { Role } from '@/lib/auth/roles';
+import { checkUserFields } from '@/server/auth-fields';
 import type { Mailer } from '@/server/mail';
 
 /** better-auth's own organisation statements, granted to our admin role only. */
@@ -140,11 +141,14 @@ function buildAuth(cfg: AuthConfig) {
     },
     databaseHooks: {
       user: {
+        // Name and image rules for every way a user is written (server/auth-fields.ts).
         create: {
+          before: async (u) => ({ data: checkUserFields(u) }),
           after: async (u) => {
             await placeNewUser(cfg.db, u);
           },
         },
+        update: { before: async (u) => ({ data: checkUserFields(u) }) },
       },
     },
     plugins: [

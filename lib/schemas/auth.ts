@@ -1,6 +1,12 @@
 /** Form and request schemas for accounts, shared by the screens and the server. */
 import { z } from 'zod';
 import { ROLES } from '@/lib/auth/roles';
+import { safeText } from '@/lib/schemas/text';
+
+/** Longest display name (sign-up, account changes; better-auth's hooks apply the same rule). */
+export const MAX_NAME_CHARS = 120;
+/** The display-name rule, shared by the sign-up form and the server's better-auth hooks. */
+export const displayNameSchema = safeText('Name', { min: 1, max: MAX_NAME_CHARS, missing: 'Enter your name.' });
 
 export const signInSchema = z.object({
   email: z.email('Enter an e-mail address.'),
@@ -9,7 +15,7 @@ export const signInSchema = z.object({
 export type SignInInput = z.infer<typeof signInSchema>;
 
 export const signUpSchema = z.object({
-  name: z.string().trim().min(1, 'Enter your name.').max(120),
+  name: displayNameSchema,
   email: z.email('Enter an e-mail address.'),
   password: z.string().min(8, 'Use at least 8 characters.').max(128),
 });
