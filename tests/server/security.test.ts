@@ -308,10 +308,12 @@ describe('body limits', () => {
 
 describe('stored strings, dates and numbers', () => {
   let admin: Awaited<ReturnType<typeof signUp>>;
+  let tester: Awaited<ReturnType<typeof signUp>>;
   let batchId: string;
   beforeAll(async () => {
     admin = await signUp(h.app, { email: 'admin@strings-pv.example' });
-    batchId = (await admin.post('/api/batches').send({ name: 'Strings', cells: 1 })).body.id;
+    tester = await signUp(h.app, { email: 'tester@strings-pv.example' });
+    batchId = (await tester.post('/api/batches').send({ name: 'Strings', cells: 1 })).body.id;
   });
 
   it.each([
@@ -337,45 +339,46 @@ describe('stored strings, dates and numbers', () => {
     ['a hexadecimal cell count', { name: 'ok', cells: '0x3c' }, /cells: Cells in series must be a whole number/],
     ['Infinity as an area', { name: 'ok', area_cm2: 'Infinity' }, /area_cm2: Area \(cm²\) must be a number/],
   ])('%s → 400 naming the field', async (_what, body, message) => {
-    const res = await admin.post('/api/batches').send(body);
+    const res = await tester.post('/api/batches').send(body);
     expect(res.status).toBe(400);
     expect(res.body.code).toBe('invalid_input');
     expect(res.body.message).toMatch(message);
   });
 
   it('multi-line descriptions and comments keep their line breaks; 29 February of a leap year is a date', async () => {
-    const res = await admin.patch(`/api/batches/${batchId}`).send({ description: 'line one\nline two\r\n\tindented', batchDate: '2028-02-29' });
+    const res = await tester.patch(`/api/batches/${batchId}`).send({ description: 'line one\nline two\r\n\tindented', batchDate: '2028-02-29' });
     expect(res.status).toBe(200);
     expect(res.body.description).toBe('line one\nline two\r\n\tindented');
   });
 
   it('a spec name with a control character → 400 naming it', async () => {
-    const [a] = await h.database.db.select().from(user).where(eq(user.email, 'admin@strings-pv.example'));
-    await h.database.db.update(member).set({ role: 'qa_lead' }).where(eq(member.userId, a.id));
-    const res = await admin.post('/api/specs').send({ name: 'Spec\u0000', limits: { pmp_w: { min: 0 } } });
+    const [t] = await h.database.db.select().from(user).where(eq(user.email, 'tester@strings-pv.example'));
+    await h.database.db.update(member).set({ role: 'qa_lead' }).where(eq(member.userId, t.id));
+    const res = await tester.post('/api/specs').send({ name: 'Spec\u0000', limits: { pmp_w: { min: 0 } } });
     expect(res.status).toBe(400);
     expect(res.body.message).toMatch(/name contains a control character/);
   });
 });
 
 describe('cross-site requests', () => {
-  let admin: Awaited<ReturnType<typeof signUp>>;
+  let tester: Awaited<ReturnType<typeof signUp>>;
   let cookie: string;
   beforeAll(async () => {
-    const res = await agentFor(h.app).post('/api/auth/sign-up/email').send({ email: 'admin@origin-pv.example', password: 'correct-horse-9', name: 'Origin' });
+    await signUp(h.app, { email: 'admin@origin-pv.example' });
+    const res = await agentFor(h.app).post('/api/auth/sign-up/email').send({ email: 'tester@origin-pv.example', password: 'correct-horse-9', name: 'Origin' });
     cookie = sessionPair(res)!;
-    admin = await signIn(h.app, 'admin@origin-pv.example', 'correct-horse-9');
+    tester = await signIn(h.app, 'tester@origin-pv.example', 'correct-horse-9');
   });
 
-  it.each<[string, Record<string, string>, number]>([
-    ['a foreign Origin', { Origin: 'https://evil.example' }, 403],
-    ['Origin "null" (a sandboxed page)', { Origin: 'null' }, 403],
-    ['the app’s host on another port', { Origin: 'http://localhost:8081' }, 403],
-    ['no Origin and a foreign Referer', { Referer: 'https://evil.example/page' }, 403],
-    ['no Origin and the app’s own Referer', { Referer: `${BASE_URL}/batches` }, 201],
-    ['the app’s own Origin', { Origin: BASE_URL }, 201],
-    ['neither header (the command line, scripts)', {}, 201],
-  ])('a POST with %s and a valid session cookie → %i', async (_what, headers, status) => {
+  it.each<[string, number, Record<string, string>]>([
+    ['a foreign Origin', 403, { Origin: 'https://evil.example' }],
+    ['Origin "null" (a sandboxed page)', 403, { Origin: 'null' }],
+    ['the app’s host on another port', 403, { Origin: 'http://localhost:8081' }],
+    ['no Origin and a foreign Referer', 403, { Referer: 'https://evil.example/page' }],
+    ['no Origin and the app’s own Referer', 201, { Referer: `${BASE_URL}/batches` }],
+    ['the app’s own Origin', 201, { Origin: BASE_URL }],
+    ['neither header (the command line, scripts)', 201, {}],
+  ])('a POST with %s and a valid session cookie → %i', async (_what, status, headers) => {
     const res = await request(h.app).post('/api/batches').set('Cookie', cookie).set(headers).send({ name: 'Cross-site' });
     expect(res.status).toBe(status);
     if (status === 403) expect(res.body).toEqual({ code: 'cross_origin', message: expect.stringMatching(/refused/) });
@@ -392,10 +395,10 @@ describe('cross-site requests', () => {
   });
 
   it('DELETE and PATCH are checked, GET is not', async () => {
-    const b = (await admin.post('/api/batches').send({ name: 'Patch me' })).body;
+    const b = (await tester.post('/api/batches').send({ name: 'Patch me' })).body;
     expect((await request(h.app).patch(`/api/batches/${b.id}`).set('Cookie', cookie).set('Origin', 'https://evil.example').send({ name: 'pwned' })).status).toBe(403);
     expect((await request(h.app).get(`/api/batches/${b.id}`).set('Cookie', cookie).set('Origin', 'https://evil.example')).status).toBe(200);
-    expect((await admin.get(`/api/batches/${b.id}`)).body.name).toBe('Patch me');
+    expect((await tester.get(`/api/batches/${b.id}`)).body.name).toBe('Patch me');
   });
 });
 
