@@ -6,10 +6,12 @@
 import path from 'node:path';
 import { dataDir } from '@/db/client';
 import { StartError } from '@/server/data-lock';
-import { networkWarning, serverHost, startRuntime } from '@/server/runtime';
+import { checkCanStart, networkWarning, serverHost, startRuntime } from '@/server/runtime';
 
 async function main() {
   const port = Number(process.env.PORT || 8080);
+  // A used folder or port stops here, before a new data folder is migrated and seeded.
+  await checkCanStart(dataDir(), port, serverHost());
   const rt = await startRuntime({
     dataDir: dataDir(),
     port,

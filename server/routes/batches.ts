@@ -1,6 +1,7 @@
 import { Router } from 'express';
 import type { Request, RequestHandler } from 'express';
 import type { Db } from '@/db/client';
+import { readNumber } from '@/lib/schemas/numbers';
 import { batchCreateSchema, batchUpdateSchema, curveListQuerySchema, uploadOverridesSchema } from '@/lib/schemas/curves';
 import { callerOf, requirePermission } from '@/server/permissions';
 import { inlineAnalyser } from '@/server/services/analysis-pool';
@@ -82,7 +83,8 @@ export function batchesRouter(db: Db, receiveFiles: RequestHandler, analyser: An
 
   /** GET /api/batches/:id/overlay?max=N — a sample of the batch's curves (at most 60, default 30), thinned for one chart. */
   r.get('/:id/overlay', requirePermission('batch:read'), async (req, res) => {
-    const most = Math.min(60, Math.max(1, Number(req.query.max) || 30));
+    // Decimal notation only (the one number reader): ?max=0x10 is not 16.
+    const most = Math.min(60, Math.max(1, Math.round(readNumber(req.query.max) || 30)));
     sendAnswer(res, await reads.overlay(org(req), String(req.params.id), most));
   });
 

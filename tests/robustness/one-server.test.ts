@@ -40,7 +40,7 @@ function runToExit(env: Record<string, string>): Promise<{ code: number | null; 
 
 let first: ServerProcess;
 beforeAll(async () => {
-  first = await startServerProcess();
+  first = await startServerProcess({ timeoutMs: 240_000 });
 });
 afterAll(async () => {
   await first?.stop();
