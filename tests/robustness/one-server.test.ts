@@ -78,13 +78,15 @@ it('a second server on the same port (another data folder) exits with status 1 a
 });
 
 it('during a large upload (600 curves and 16 files of 9 MB, ~150 MB) /api/health answers in under 1 s; the upload folder is empty afterwards', async () => {
-  const session = await signIn(first.url, ENGINEER.email, ENGINEER.password);
-  const batchId = await createBatch(session, { name: 'Large upload', cells: 60 });
+  // The form is built first: a kept-alive connection left idle longer than the server's 5 s
+  // keep-alive timeout while the files are generated would be closed under the upload's first write.
   const form = new FormData();
   for (const f of syntheticFiles(600, { prefix: 'BIG', seed: 13_005 })) form.append('files', new Blob([f.text], { type: 'text/csv' }), f.name);
   // 9 MB that the reader turns down at its first line (no header): large to receive, quick to refuse.
   const filler = 'x'.repeat(9 * 1024 * 1024);
   for (let k = 0; k < 16; k++) form.append('files', new Blob([filler], { type: 'text/csv' }), `filler-${k}.csv`);
+  const session = await signIn(first.url, ENGINEER.email, ENGINEER.password);
+  const batchId = await createBatch(session, { name: 'Large upload', cells: 60 });
 
   const upload = fetch(`${first.url}/api/batches/${batchId}/curves`, { method: 'POST', headers: { cookie: session.cookie, origin: first.url }, body: form });
   let done = false;
@@ -98,7 +100,11 @@ it('during a large upload (600 curves and 16 files of 9 MB, ~150 MB) /api/health
     expect(res.status).toBe(200);
     await new Promise((r) => setTimeout(r, 100));
   }
-  const { status, body } = await answered;
+  const { status, body } = await answered.catch((err: Error) => {
+    throw new Error(`the upload failed (${err.message}: ${(err.cause as Error | undefined)?.message}); server output:\n${first.log().slice(-2000)}`);
+  });
+  // What was measured, for the report.
+  console.log(`health during the upload: ${latencies.length} requests, max ${Math.round(Math.max(...latencies))} ms`);
   expect(status).toBe(201);
   expect(body).toEqual(expect.objectContaining({ accepted: 600, rejected: 16 }));
   expect(latencies.length).toBeGreaterThan(3);
