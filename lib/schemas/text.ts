@@ -5,6 +5,7 @@
  * only in multi-line text (descriptions, comments).
  */
 import { z } from 'zod';
+import '@/lib/schemas/zod-setup';
 
 // C0 controls, DEL and C1 controls; the multi-line form leaves out tab, LF and CR.
 // eslint-disable-next-line no-control-regex

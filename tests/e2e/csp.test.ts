@@ -43,7 +43,7 @@ it('signing in, every section, a batch with its charts, the comparison and an up
     await signInThroughForm(b.page, srv.url, ENGINEER.email, ENGINEER.password);
     expect(await b.page.evaluate(() => document.fonts.check('16px PlexSans'))).toBe(true);
 
-    const batches = (await b.page.evaluate(() => fetch('/api/batches').then((r) => r.json()))) as { id: string }[];
+    const { batches } = (await b.page.evaluate(() => fetch('/api/batches').then((r) => r.json()))) as { batches: { id: string }[] };
     expect(batches.length).toBeGreaterThan(0);
     for (const url of ['/batches', `/batches/${batches[0].id}`, `/compare?batches=${batches.map((x) => x.id).join(',')}`, '/physics', '/strings', '/specs', '/account']) {
       await b.page.goto(`${srv.url}${url}`, { waitUntil: 'networkidle' });
