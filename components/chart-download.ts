@@ -7,7 +7,7 @@ import type { LegendItem } from '@/lib/charts/svg-file';
  * real SVG elements there) serialised to a file, or drawn onto a canvas at twice its size for a
  * PNG. Returns false when there is nothing to save (not on the web, chart not drawn yet).
  */
-export type ChartFile = { fileName: string; title?: string; legend?: readonly LegendItem[] };
+export type ChartFile = { file_name: string; title?: string; legend?: readonly LegendItem[] };
 
 function chartSvgText(host: unknown, file: ChartFile): { text: string; width: number; height: number } | null {
   if (typeof document === 'undefined' || typeof XMLSerializer === 'undefined') return null;
@@ -37,7 +37,7 @@ function downloadBlob(fileName: string, blob: Blob): void {
 export function downloadChartSvg(host: unknown, file: ChartFile): boolean {
   const svg = chartSvgText(host, file);
   if (!svg) return false;
-  downloadBlob(file.fileName, new Blob([svg.text], { type: 'image/svg+xml;charset=utf-8' }));
+  downloadBlob(file.file_name, new Blob([svg.text], { type: 'image/svg+xml;charset=utf-8' }));
   return true;
 }
 
@@ -55,7 +55,7 @@ export function downloadChartPng(host: unknown, file: ChartFile, scale = 2): boo
       ctx.scale(scale, scale);
       ctx.drawImage(img, 0, 0, svg.width, svg.height);
       canvas.toBlob((blob) => {
-        if (blob) downloadBlob(file.fileName, blob);
+        if (blob) downloadBlob(file.file_name, blob);
       }, 'image/png');
     }
     URL.revokeObjectURL(url);

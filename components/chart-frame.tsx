@@ -51,7 +51,7 @@ export function ChartFrame({
   const saving = download && Platform.OS === 'web' ? download : null;
   const save = (ext: 'svg' | 'png') => {
     if (!saving) return;
-    const file = { fileName: chartFileName(saving.name, saving.kind, ext), title: saving.title, legend };
+    const file = { file_name: chartFileName(saving.name, saving.kind, ext), title: saving.title, legend };
     if (ext === 'svg') downloadChartSvg(plot.current, file);
     else downloadChartPng(plot.current, file);
   };

@@ -1,18 +1,22 @@
 /**
  * `npm start`: builds the web app if needed, opens (migrates, seeds) the database in ./data and
- * serves everything on PORT (default 8080); prints the URL and the demo accounts.
+ * serves everything on HOST:PORT (default 127.0.0.1:8080); prints the URL and the demo accounts.
  */
 import path from 'node:path';
 import { dataDir } from '@/db/client';
 import { readDemoAccounts } from '@/server/services/seed';
 import { ROLE_LABELS } from '@/lib/auth/roles';
-import { startRuntime } from '@/server/runtime';
+import { StartError } from '@/server/data-lock';
+import { checkCanStart, networkWarning, serverHost, startRuntime } from '@/server/runtime';
 import { buildWeb } from './build-web';
 
 async function main() {
-  buildWeb();
   const port = Number(process.env.PORT || 8080);
-  const rt = await startRuntime({ dataDir: dataDir(), port, webDir: path.resolve(__dirname, '..', 'dist') });
+  // A second `npm start` stops here, before rebuilding the web app the first one serves.
+  await checkCanStart(dataDir(), port, serverHost());
+  buildWeb();
+  const rt = await startRuntime({ dataDir: dataDir(), port, host: serverHost(), webDir: path.resolve(__dirname, '..', 'dist') });
+  const warning = networkWarning();
   const lines = [
     '',
     `  Quasilevel is running at ${rt.url}`,
@@ -21,6 +25,7 @@ async function main() {
     '  Demo accounts — for trying the product only; change or remove them before real use:',
     ...readDemoAccounts().map((a) => `    ${ROLE_LABELS[a.role].padEnd(15)} ${a.email.padEnd(36)} ${a.password}`),
     '',
+    ...(warning ? [`  ${warning}`, ''] : []),
     '  Press Ctrl+C to stop.',
     '',
   ];
@@ -34,6 +39,7 @@ async function main() {
 }
 
 main().catch((err) => {
-  console.error('[quasilevel] could not start:', err);
+  // A StartError says what to do; anything else gets its stack for the bug report.
+  console.error('[quasilevel] could not start:', err instanceof StartError ? err.message : err);
   process.exit(1);
 });

@@ -1,9 +1,11 @@
 /**
- * Builds the Express app (no listen): better-auth's handler first (it reads its own body),
- * then JSON, then the guarded /api routers, the JSON 404 and the one error handler, and last the
- * exported web build with an SPA fallback. Tests import this with an in-memory database.
+ * Builds the Express app (no listen): the security headers, the same-origin rule for
+ * state-changing /api requests, better-auth's handler behind a byte limit (it reads its own
+ * body), then JSON, then the guarded /api routers, the JSON 404 and the one error handler, and
+ * last the exported web build with an SPA fallback. Tests import this with an in-memory database.
  */
 import { existsSync } from 'node:fs';
+import os from 'node:os';
 import path from 'node:path';
 import zlib from 'node:zlib';
 import { toNodeHandler } from 'better-auth/node';
@@ -13,6 +15,7 @@ import type { Express } from 'express';
 import type { Db } from '@/db/client';
 import type { Auth } from '@/server/auth';
 import { apiNotFound, errorHandler } from '@/server/errors';
+import { authBodyLimit, JSON_BODY_LIMIT, originOf, sameOrigin, securityHeaders } from '@/server/guards';
 import type { Mailer } from '@/server/mail';
 import { CallerCache, guardOrganizationEndpoints, invalidatesCallers, requireAccount, requireSession } from '@/server/permissions';
 import type { Account } from '@/server/permissions';
@@ -31,6 +34,8 @@ import { stringsRouter } from '@/server/routes/strings';
 import { outboxRouter } from '@/server/routes/outbox';
 import { usersRouter } from '@/server/routes/users';
 import type { Analyser } from '@/server/services/analysis-pool';
+import { receiveUploads } from '@/server/upload-receiver';
+import type { UploadLimits } from '@/server/upload-receiver';
 
 export type AppDeps = {
   db: Db;
@@ -42,7 +47,24 @@ export type AppDeps = {
   analyser?: Analyser;
   /** How long a resolved caller is reused, ms (the server: 5000; default 0, every request asks the database). */
   sessionCacheMs?: number;
+  /** Folder for uploads on their way in (the server: `<data>/tmp/uploads`; default a folder per process in the system's temp folder). */
+  uploadDir?: string;
+  /** Caps of one upload (default UPLOAD_LIMITS); tests lower them. */
+  uploadLimits?: UploadLimits;
+  /**
+   * Origins whose pages may send state-changing /api requests (default: better-auth's trusted
+   * origins and its base URL — the runtime derives both from PUBLIC_URL).
+   */
+  trustedOrigins?: string[];
 };
+
+/** better-auth's base URL and trusted origins, as given to createAuth. */
+function authOrigins(auth: Auth): { base: string; trusted: string[] } {
+  const o = auth.options as { baseURL?: unknown; trustedOrigins?: unknown };
+  const base = typeof o.baseURL === 'string' ? o.baseURL : '';
+  const trusted = Array.isArray(o.trustedOrigins) ? o.trustedOrigins.filter((x): x is string => typeof x === 'string') : [];
+  return { base, trusted: [base, ...trusted].filter((x) => originOf(x)) };
+}
 
 export function createApp(deps: AppDeps): Express {
   const { db, auth } = deps;
@@ -51,6 +73,10 @@ export function createApp(deps: AppDeps): Express {
   app.set('trust proxy', false);
   // No ETag on API answers: nothing asks conditionally, and hashing a 4 MB comparison costs ~10 ms a request.
   app.set('etag', false);
+
+  const origins = authOrigins(auth);
+  app.use(securityHeaders(origins.base));
+  app.use('/api', sameOrigin(deps.trustedOrigins ?? origins.trusted));
 
   // The sign-in rate limit keys on this header; only the socket's address may set it.
   app.use((req, _res, next) => {
@@ -67,9 +93,9 @@ export function createApp(deps: AppDeps): Express {
   const callers = new CallerCache<Account>(deps.sessionCacheMs ?? 0);
   const authHandler = toNodeHandler(auth);
   app.use('/api/auth/organization', guardOrganizationEndpoints(auth, db, callers));
-  app.all('/api/auth/{*splat}', invalidatesCallers(callers), (req, res) => authHandler(req, res));
+  app.all('/api/auth/{*splat}', authBodyLimit(), invalidatesCallers(callers), (req, res) => authHandler(req, res));
 
-  app.use('/api', express.json({ limit: '1mb' }));
+  app.use('/api', express.json({ limit: JSON_BODY_LIMIT }));
   app.use('/api/health', healthRouter());
 
   const session = requireSession(auth, db, callers);
@@ -82,7 +108,7 @@ export function createApp(deps: AppDeps): Express {
   app.use('/api/membership-requests', invalidatesCallers(callers), session, membershipRequestsRouter(db, deps.mailer, baseUrl));
   app.use('/api/organization', session, organizationRouter(db));
   app.use('/api/outbox', session, outboxRouter(db));
-  app.use('/api/batches', session, batchesRouter(db, deps.analyser), reviewsRouter(db, deps.mailer));
+  app.use('/api/batches', session, batchesRouter(db, receiveUploads(deps.uploadDir ?? path.join(os.tmpdir(), `quasilevel-uploads-${process.pid}`), deps.uploadLimits), deps.analyser), reviewsRouter(db, deps.mailer));
   app.use('/api/specs', session, specsRouter(db));
   app.use('/api/compare', session, compareRouter(db));
   app.use('/api/curves', session, curvesRouter(db, deps.analyser));

@@ -18,6 +18,7 @@ import * as schema from '@/db/schema';
 import { loadPasswordChecker, passwordProblem, PASSWORD_MAX_LENGTH, PASSWORD_MIN_LENGTH } from '@/lib/auth/password';
 import { ROLE_PERMISSIONS, ROLES, STATEMENTS } from '@/lib/auth/roles';
 import type { Role } from '@/lib/auth/roles';
+import { checkUserFields } from '@/server/auth-fields';
 import type { Mailer } from '@/server/mail';
 import { existingAccountMail, verifyEmailMail } from '@/server/services/account-mails';
 import { placeVerifiedUser } from '@/server/services/membership';
@@ -182,6 +183,15 @@ function buildAuth(cfg: AuthConfig) {
       // value is dropped), so the sign-in limit cannot be dodged with a forged header.
       ipAddress: { ipAddressHeaders: ['x-quasilevel-client-ip'] },
       defaultCookieAttributes: { httpOnly: true, sameSite: 'lax' },
+    },
+    databaseHooks: {
+      user: {
+        // Name and image rules for every way a user is written (server/auth-fields.ts).
+        create: {
+          before: async (u) => ({ data: checkUserFields(u) }),
+        },
+        update: { before: async (u) => ({ data: checkUserFields(u) }) },
+      },
     },
     plugins: [
       organizationPlugin({

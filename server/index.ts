@@ -1,19 +1,26 @@
 /**
- * The Quasilevel server process: serves /api and the exported web app on PORT (default 8080),
- * data in QUASILEVEL_DATA_DIR (default ./data). Closes the database on SIGTERM/SIGINT.
+ * The Quasilevel server process: serves /api and the exported web app on HOST:PORT (default
+ * 127.0.0.1:8080), data in QUASILEVEL_DATA_DIR (default ./data). Closes the database on
+ * SIGTERM/SIGINT. Exits with status 1 and a message when the port or the data folder is in use.
  */
 import path from 'node:path';
 import { dataDir } from '@/db/client';
-import { startRuntime } from '@/server/runtime';
+import { StartError } from '@/server/data-lock';
+import { checkCanStart, networkWarning, serverHost, startRuntime } from '@/server/runtime';
 
 async function main() {
   const port = Number(process.env.PORT || 8080);
+  // A used folder or port stops here, before a new data folder is migrated and seeded.
+  await checkCanStart(dataDir(), port, serverHost());
   const rt = await startRuntime({
     dataDir: dataDir(),
     port,
+    host: serverHost(),
     webDir: path.resolve(__dirname, '..', 'dist'),
     seed: process.env.QUASILEVEL_SEED !== '0',
   });
+  const warning = networkWarning();
+  if (warning) console.warn(`[quasilevel] ${warning}`);
   console.log(`[quasilevel] listening on ${rt.url} (data: ${dataDir()})${rt.seeded ? ' — demo data seeded' : ''}`);
   const shutdown = async (signal: string) => {
     console.log(`[quasilevel] ${signal}: closing the database and stopping`);
@@ -25,6 +32,7 @@ async function main() {
 }
 
 main().catch((err) => {
-  console.error('[quasilevel] could not start:', err);
+  // A StartError says what to do; anything else gets its stack for the bug report.
+  console.error('[quasilevel] could not start:', err instanceof StartError ? err.message : err);
   process.exit(1);
 });

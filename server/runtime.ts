@@ -1,13 +1,17 @@
 /**
- * Starts a complete Quasilevel server: database (migrated), mailer, auth, demo seed, HTTP.
- * Used by server/index.ts, by `npm start` and by the browser and crash tests.
+ * Starts a complete Quasilevel server: the data folder's lock, database (migrated), mailer,
+ * auth, demo seed, HTTP on HOST:PORT. Used by server/index.ts, by `npm start` and by the
+ * browser and crash tests. Start-up failures a person can fix are StartErrors with a message.
  */
 import { randomBytes } from 'node:crypto';
-import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { createServer } from 'node:http';
 import type { Server } from 'node:http';
 import path from 'node:path';
 import { openDatabase } from '@/db/client';
 import type { Database } from '@/db/client';
+import { checkDataDirFree, lockDataDir, StartError } from '@/server/data-lock';
+import { originOf } from '@/server/guards';
 import { demoCurveFiles, seedDemo } from '@/server/services/seed';
 import { createApp } from '@/server/app';
 import { createAuth } from '@/server/auth';
@@ -17,6 +21,7 @@ import { serverAnalyser } from '@/server/services/analysis-pool';
 export type RuntimeOptions = {
   dataDir: string;
   port: number;
+  /** Address to listen on (default 127.0.0.1: this machine only; 0.0.0.0 for a network, behind a TLS proxy). */
   host?: string;
   webDir?: string;
   seed?: boolean;
@@ -35,31 +40,94 @@ function authSecret(dataDir: string): string {
 /** How long the server reuses a resolved session and role (see CallerCache). */
 const SESSION_CACHE_MS = 5000;
 
+/**
+ * Origins whose pages may change data: PUBLIC_URL's, the server's own loopback addresses on its
+ * port and, only when NODE_ENV is development, the Metro dev server (`npm run dev:web`, port 8081).
+ */
+export function trustedOrigins(publicUrl: string, port: number, env: NodeJS.ProcessEnv = process.env): string[] {
+  const dev = env.NODE_ENV === 'development' ? ['http://localhost:8081', 'http://127.0.0.1:8081'] : [];
+  const all = [publicUrl, `http://localhost:${port}`, `http://127.0.0.1:${port}`, ...dev].map(originOf).filter((o): o is string => !!o);
+  return [...new Set(all)];
+}
+
+/** HOST, default 127.0.0.1 (this machine only). */
+export function serverHost(env: NodeJS.ProcessEnv = process.env): string {
+  return env.HOST || '127.0.0.1';
+}
+
+/** A caution when the server is reachable from a network without the settings that needs. */
+export function networkWarning(env: NodeJS.ProcessEnv = process.env): string | null {
+  const host = serverHost(env);
+  if (host === '127.0.0.1' || host === 'localhost' || host === '::1') return null;
+  const missing = [!env.PUBLIC_URL && 'PUBLIC_URL (the address people open; pages from any other address cannot change data)', !env.BETTER_AUTH_SECRET && 'BETTER_AUTH_SECRET'].filter(Boolean);
+  const tls = env.PUBLIC_URL?.startsWith('https:') ? '' : ' Serve it behind a TLS proxy with an https PUBLIC_URL.';
+  return missing.length || tls ? `HOST=${host} serves a network.${missing.length ? ` Set ${missing.join(' and ')}.` : ''}${tls}` : null;
+}
+
+/** Listens, turning a used port into a StartError with what to do about it. */
+function listen(app: ReturnType<typeof createApp> | null, port: number, host: string): Promise<Server> {
+  return new Promise<Server>((resolve, reject) => {
+    const s = app ? app.listen(port, host) : createServer().listen(port, host);
+    s.once('listening', () => resolve(s));
+    s.once('error', (err: NodeJS.ErrnoException) => {
+      if (err.code === 'EADDRINUSE') reject(new StartError(`Port ${port} on ${host} is already in use (another Quasilevel server or another program). Stop it, or set PORT to a free port.`));
+      else if (err.code === 'EACCES') reject(new StartError(`Port ${port} on ${host} may not be used by this user; choose a port above 1023 with PORT.`));
+      else if (err.code === 'EADDRNOTAVAIL') reject(new StartError(`HOST ${host} is not an address of this machine; use 127.0.0.1, 0.0.0.0 or one of its addresses.`));
+      else reject(err);
+    });
+  });
+}
+
+/**
+ * Checks, before slow work such as building the web app, that the data folder and the port are
+ * free; throws the StartError startRuntime would.
+ */
+export async function checkCanStart(dataDir: string, port: number, host: string): Promise<void> {
+  checkDataDirFree(dataDir);
+  const probe = await listen(null, port, host);
+  await new Promise((r) => probe.close(r));
+}
+
 export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Server; database: Database; url: string; seeded: boolean; stop: () => Promise<void> }> {
   mkdirSync(opts.dataDir, { recursive: true });
-  const database = await openDatabase(path.join(opts.dataDir, 'db'));
-  const url = process.env.PUBLIC_URL || `http://localhost:${opts.port}`;
-  const mailer = createMailer({ db: database.db, outboxDir: path.join(opts.dataDir, 'outbox'), smtpUrl: process.env.SMTP_URL });
-  const auth = createAuth({
-    db: database.db,
-    mailer,
-    baseURL: url,
-    secret: authSecret(opts.dataDir),
-    trustedOrigins: [url, `http://127.0.0.1:${opts.port}`, 'http://localhost:8081'],
-    signInPerMinute: Number(process.env.QUASILEVEL_SIGNIN_PER_MINUTE ?? 10),
-  });
-  const analyser = serverAnalyser(demoCurveFiles());
-  const seeded = opts.seed === false ? false : await seedDemo(database.db, auth);
-  const app = createApp({ db: database.db, auth, mailer, webDir: opts.webDir, analyser, sessionCacheMs: SESSION_CACHE_MS });
-  const server = await new Promise<Server>((resolve) => {
-    const s = app.listen(opts.port, opts.host ?? '0.0.0.0', () => resolve(s));
-  });
-  let stopping: Promise<void> | null = null;
-  const stop = () =>
-    (stopping ??= (async () => {
-      await new Promise<void>((resolve) => server.close(() => resolve()));
-      await analyser.close();
-      await database.close();
-    })());
-  return { server, database, url, seeded, stop };
+  const host = opts.host ?? '127.0.0.1';
+  // Before anything opens the database: two servers on one PGlite folder would corrupt it.
+  const lock = lockDataDir(opts.dataDir, { port: opts.port });
+  const undo: (() => Promise<void> | void)[] = [lock.release];
+  try {
+    // Uploads on their way in; anything left there is from a server that was killed.
+    const uploadDir = path.join(opts.dataDir, 'tmp', 'uploads');
+    rmSync(uploadDir, { recursive: true, force: true });
+    mkdirSync(uploadDir, { recursive: true });
+    const database = await openDatabase(path.join(opts.dataDir, 'db'));
+    undo.unshift(() => database.close());
+    const url = process.env.PUBLIC_URL || `http://localhost:${opts.port}`;
+    const origins = trustedOrigins(url, opts.port);
+    const mailer = createMailer({ db: database.db, outboxDir: path.join(opts.dataDir, 'outbox'), smtpUrl: process.env.SMTP_URL });
+    const auth = createAuth({
+      db: database.db,
+      mailer,
+      baseURL: url,
+      secret: authSecret(opts.dataDir),
+      trustedOrigins: origins,
+      signInPerMinute: Number(process.env.QUASILEVEL_SIGNIN_PER_MINUTE ?? 10),
+    });
+    const analyser = serverAnalyser(demoCurveFiles());
+    undo.unshift(() => analyser.close());
+    const seeded = opts.seed === false ? false : await seedDemo(database.db, auth);
+    const app = createApp({ db: database.db, auth, mailer, webDir: opts.webDir, analyser, sessionCacheMs: SESSION_CACHE_MS, uploadDir, trustedOrigins: origins });
+    const server = await listen(app, opts.port, host);
+    let stopping: Promise<void> | null = null;
+    const stop = () =>
+      (stopping ??= (async () => {
+        await new Promise<void>((resolve) => server.close(() => resolve()));
+        await analyser.close();
+        await database.close();
+        lock.release();
+      })());
+    return { server, database, url, seeded, stop };
+  } catch (err) {
+    for (const step of undo) await Promise.resolve(step()).catch(() => undefined);
+    throw err;
+  }
 }

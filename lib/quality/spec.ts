@@ -5,8 +5,13 @@
 import { z } from 'zod';
 import { QualityError } from '@/lib/quality/errors';
 import { PARAM_KEYS, type ParamKey } from '@/lib/quality/params';
+import { textProblem } from '@/lib/schemas/text';
 
 const finite = (what: string) => z.number({ error: `${what} must be a finite number` });
+
+/** Refuses control characters (NUL above all) in stored text; lengths are checked by each field's max. */
+const noControl = (what: string, multiline = false) =>
+  [(v: string) => !textProblem(v, { max: Number.POSITIVE_INFINITY, multiline }), `${what} contains a control character`] as const;
 
 const unknownKeys = (what: string, known: readonly string[]) => ({
   error: (iss: { code?: string; keys?: string[] }) =>
@@ -36,7 +41,7 @@ export const limitsSchema = z.strictObject(limitsShape, unknownKeys('parameter',
 
 const binSchema = z.strictObject(
   {
-    label: z.string().trim().min(1, 'a power class needs a label').max(40),
+    label: z.string().trim().min(1, 'a power class needs a label').max(40).refine(...noControl('label')),
     nominal_w: finite('nominal_w').positive('nominal_w must be above 0 W'),
     min_w: finite('min_w'),
     max_w: finite('max_w'),
@@ -70,7 +75,7 @@ export const powerClassesSchema = z
         .optional(),
       lowest_w: finite('lowest_w').positive('lowest_w must be above 0 W').optional(),
       highest_w: finite('highest_w').positive('highest_w must be above 0 W').optional(),
-      label_prefix: z.string().max(8, 'label_prefix is at most 8 characters').optional(),
+      label_prefix: z.string().max(8, 'label_prefix is at most 8 characters').refine(...noControl('label_prefix')).optional(),
       bins: z.array(binSchema).min(1, 'bins needs at least one class').optional(),
     },
     unknownKeys('power-class field', POWER_FIELDS),
@@ -139,14 +144,14 @@ const SPEC_FIELDS = ['name', 'limits', 'power_classes', 'fail_flags', 'notes'] a
 /** Input of an acceptance specification (form and API body alike). */
 export const specInputSchema = z.strictObject(
   {
-    name: z.string({ error: 'name is required' }).trim().min(1, 'name is required').max(120, 'name is at most 120 characters'),
+    name: z.string({ error: 'name is required' }).trim().min(1, 'name is required').max(120, 'name is at most 120 characters').refine(...noControl('name')),
     limits: limitsSchema.default({}),
     power_classes: powerClassesSchema.optional(),
     fail_flags: z
-      .array(z.string().trim().min(1, 'a flag code cannot be empty').max(64))
+      .array(z.string().trim().min(1, 'a flag code cannot be empty').max(64).refine(...noControl('a flag code')))
       .max(100)
       .optional(),
-    notes: z.string().max(4000, 'notes are at most 4000 characters').optional(),
+    notes: z.string().max(4000, 'notes are at most 4000 characters').refine(...noControl('notes', true)).optional(),
   },
   unknownKeys('spec field', SPEC_FIELDS),
 );

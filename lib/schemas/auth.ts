@@ -2,6 +2,12 @@
 import { z } from 'zod';
 import { loadPasswordChecker, passwordProblem, PASSWORD_MAX_LENGTH, PASSWORD_MIN_LENGTH } from '@/lib/auth/password';
 import { ROLES } from '@/lib/auth/roles';
+import { safeText } from '@/lib/schemas/text';
+
+/** Longest display name (sign-up, account changes; better-auth's hooks apply the same rule). */
+export const MAX_NAME_CHARS = 120;
+/** The display-name rule, shared by the sign-up form and the server's better-auth hooks. */
+export const displayNameSchema = safeText('Name', { min: 1, max: MAX_NAME_CHARS, missing: 'Enter your name.' });
 
 export const signInSchema = z.object({
   email: z.email('Enter an e-mail address.'),
@@ -27,7 +33,7 @@ async function checkNewPassword(password: string, userInputs: string[], ctx: z.R
 
 export const signUpSchema = z
   .object({
-    name: z.string().trim().min(1, 'Enter your name.').max(120),
+    name: displayNameSchema,
     email: z.email('Enter an e-mail address.'),
     password: newPassword,
   })

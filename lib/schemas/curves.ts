@@ -1,6 +1,7 @@
 /** Request schemas for batches, uploads and refits, shared by the screens and the server. */
 import { z } from 'zod';
 import { optNumber, optNumberOrNull } from '@/lib/schemas/numbers';
+import { optDate, optSafeText, safeText } from '@/lib/schemas/text';
 
 /** Figures of a curve translated to standard test conditions (from the fitted model). */
 export type StcFigures = {
@@ -16,40 +17,25 @@ export type StcFigures = {
   notes: string[];
 };
 
-const optText = (max: number) =>
-  z
-    .string()
-    .trim()
-    .max(max)
-    .optional()
-    .nullable()
-    .transform((v) => (v ? v : null));
-
 export const batchFieldsSchema = z.object({
-  product_type: optText(120),
-  supplier: optText(120),
-  line: optText(60),
-  lot: optText(60),
-  batch_date: z
-    .string()
-    .trim()
-    .optional()
-    .nullable()
-    .refine((v) => !v || /^\d{4}-\d{2}-\d{2}$/.test(v), 'Date must be written yyyy-mm-dd.')
-    .transform((v) => (v ? v : null)),
+  product_type: optSafeText('Product type', { max: 120 }),
+  supplier: optSafeText('Supplier', { max: 120 }),
+  line: optSafeText('Line', { max: 60 }),
+  lot: optSafeText('Lot', { max: 60 }),
+  batch_date: optDate('Date'),
   cells: optNumberOrNull('Cells in series', { min: 1, max: 1000, integer: true }),
   area_cm2: optNumberOrNull('Area (cm²)', { min: 0.01, max: 100000 }),
   nameplate_w: optNumberOrNull('Nameplate power (W)', { min: 0.001, max: 5000 }),
-  description: optText(2000),
+  description: optSafeText('Description', { max: 2000, multiline: true }),
 });
 
 export const batchCreateSchema = batchFieldsSchema.extend({
-  name: z.string().trim().min(1, 'Give the batch a name.').max(120, 'Keep the name under 120 characters.'),
+  name: safeText('Name', { min: 1, max: 120, missing: 'Give the batch a name.' }),
 });
 export type BatchCreateInput = z.input<typeof batchCreateSchema>;
 
 export const batchUpdateSchema = batchFieldsSchema.partial().extend({
-  name: z.string().trim().min(1, 'Give the batch a name.').max(120).optional(),
+  name: safeText('Name', { min: 1, max: 120, missing: 'Give the batch a name.' }).optional(),
   archived: z.boolean().optional(),
 });
 

@@ -16,6 +16,7 @@
  * "Cells in series must be a whole number from 1 to 1000."
  */
 import { z } from 'zod';
+import '@/lib/schemas/zod-setup';
 
 /** What `readNumber` makes of an input: a number, NaN when the text is not one, undefined when not given. */
 export type ReadNumber = number | undefined;

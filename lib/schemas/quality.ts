@@ -1,6 +1,10 @@
 /** Request schemas for specs, reviews and comparisons, shared by the screens and the server. */
 import { z } from 'zod';
 import { specInputSchema } from '@/lib/quality/spec';
+import { safeText } from '@/lib/schemas/text';
+
+const id = (message: string) => z.string().min(1, message).max(100, 'An id is at most 100 characters.');
+const comment = safeText('Comment', { max: 2000, multiline: true });
 
 /**
  * A new spec, or (with family_id) a new version of an existing one; `base_version` is the version
@@ -8,18 +12,18 @@ import { specInputSchema } from '@/lib/quality/spec';
  */
 export const specSaveSchema = specInputSchema
   .extend({
-    family_id: z.string().min(1).optional(),
+    family_id: id('Choose the spec to make a new version of.').optional(),
     base_version: z.number({ message: 'Say which version this edit started from.' }).int().min(1).optional(),
   })
   .refine((s) => !s.family_id || s.base_version != null, { message: 'Say which version this edit started from.', path: ['base_version'] });
 
-export const submitSchema = z.object({ comment: z.string().trim().max(2000).optional() });
+export const submitSchema = z.object({ comment: comment.optional() });
 
 export const decisionSchema = z
   .object({
     decision: z.enum(['release', 'hold'], { message: 'decision must be "release" or "hold".' }),
-    spec_id: z.string().min(1, 'Choose the spec version the batch was judged against.'),
-    comment: z.string().trim().max(2000).optional().default(''),
+    spec_id: id('Choose the spec version the batch was judged against.'),
+    comment: comment.optional().default(''),
   })
   .refine((d) => d.decision !== 'hold' || d.comment.length > 0, { message: 'Say why the batch is held.', path: ['comment'] });
 

@@ -1,10 +1,8 @@
 import { Router } from 'express';
-import type { NextFunction, Request, Response } from 'express';
-import multer from 'multer';
+import type { Request, RequestHandler } from 'express';
 import type { Db } from '@/db/client';
-import { MAX_FILE_BYTES } from '@/lib/iv';
+import { readNumber } from '@/lib/schemas/numbers';
 import { batchCreateSchema, batchUpdateSchema, curveListQuerySchema, uploadOverridesSchema } from '@/lib/schemas/curves';
-import { HttpError } from '@/server/errors';
 import { callerOf, requirePermission } from '@/server/permissions';
 import { inlineAnalyser } from '@/server/services/analysis-pool';
 import type { Analyser } from '@/server/services/analysis-pool';
@@ -12,30 +10,14 @@ import { sendAnswer } from '@/server/services/answer-cache';
 import { batchReads } from '@/server/services/batch-reads';
 import { createBatch, loadWritableBatch, updateBatch } from '@/server/services/batches';
 import { uploadCurves } from '@/server/services/uploads';
+import { receivedFiles, removeReceived } from '@/server/upload-receiver';
 import { validate } from '@/server/validate';
 
-export const MAX_FILES_PER_REQUEST = 2000;
-
-const upload = multer({
-  storage: multer.memoryStorage(),
-  limits: { fileSize: MAX_FILE_BYTES, files: MAX_FILES_PER_REQUEST, fields: 20, fieldSize: 1024 },
-});
-
-/** multer with its errors turned into Quasilevel's `{ code, message }`. */
-function receiveFiles(req: Request, res: Response, next: NextFunction) {
-  upload.array('files', MAX_FILES_PER_REQUEST)(req, res, (err: unknown) => {
-    if (!err) return next();
-    const e = err as { code?: string; field?: string };
-    if (e.code === 'LIMIT_FILE_SIZE') return next(new HttpError(413, 'file_too_large', `A file is larger than the ${MAX_FILE_BYTES / 1024 / 1024} MB limit; nothing was stored.`));
-    if (e.code === 'LIMIT_FILE_COUNT') return next(new HttpError(413, 'too_many_files', `At most ${MAX_FILES_PER_REQUEST} files per upload; nothing was stored. Split the upload.`));
-    if (e.code === 'LIMIT_UNEXPECTED_FILE') return next(new HttpError(400, 'wrong_field', `Send the files in the form field "files" (got "${e.field}").`));
-    if (e.code?.startsWith('LIMIT_')) return next(new HttpError(400, 'bad_upload', 'The upload form has too many or too large fields.'));
-    return next(new HttpError(400, 'bad_upload', 'The upload could not be read as a multipart form.'));
-  });
-}
-
-/** /api/batches — batches, uploads, the batch table and overlay. */
-export function batchesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Router {
+/**
+ * /api/batches — batches, uploads, the batch table and overlay. `receiveFiles` streams an
+ * upload's files to disk within the caps (server/upload-receiver.ts `receiveUploads`).
+ */
+export function batchesRouter(db: Db, receiveFiles: RequestHandler, analyser: Analyser = inlineAnalyser()): Router {
   const r = Router();
   const reads = batchReads(db);
   const org = (req: Request) => callerOf(req).organization.id;
@@ -78,14 +60,19 @@ export function batchesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Ro
     },
     async (req, res) => {
       const c = callerOf(req);
-      const opts = uploadOverridesSchema.parse(req.body ?? {});
-      const files = ((req.files as Express.Multer.File[] | undefined) ?? []).map((f) => ({
-        // multer gives the name as latin-1; browsers send UTF-8.
-        name: Buffer.from(f.originalname, 'latin1').toString('utf8'),
-        bytes: new Uint8Array(f.buffer.buffer, f.buffer.byteOffset, f.buffer.byteLength),
-      }));
-      const answer = await uploadCurves(db, analyser, { organizationId: c.organization.id, userId: c.user.id }, String(req.params.id), files, opts);
-      res.status(answer.accepted ? 201 : 422).json(answer);
+      // A client that goes away stops the files not yet started (uploadCurves checks the signal).
+      const gone = new AbortController();
+      res.on('close', () => {
+        if (!res.writableFinished) gone.abort();
+      });
+      try {
+        const opts = uploadOverridesSchema.parse(req.body ?? {});
+        const who = { organizationId: c.organization.id, userId: c.user.id };
+        const answer = await uploadCurves(db, analyser, who, String(req.params.id), receivedFiles(req), opts, gone.signal);
+        if (!gone.signal.aborted) res.status(answer.accepted ? 201 : 422).json(answer);
+      } finally {
+        await removeReceived(req);
+      }
     },
   );
 
@@ -96,7 +83,8 @@ export function batchesRouter(db: Db, analyser: Analyser = inlineAnalyser()): Ro
 
   /** GET /api/batches/:id/overlay?max=N — a sample of the batch's curves (at most 60, default 30), thinned for one chart. */
   r.get('/:id/overlay', requirePermission('batch:read'), async (req, res) => {
-    const most = Math.min(60, Math.max(1, Number(req.query.max) || 30));
+    // Decimal notation only (the one number reader): ?max=0x10 is not 16.
+    const most = Math.min(60, Math.max(1, Math.round(readNumber(req.query.max) || 30)));
     sendAnswer(res, await reads.overlay(org(req), String(req.params.id), most));
   });
 

@@ -8,6 +8,7 @@ import { eq } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { curve } from '@/db/schema';
 import type { uploadOverridesSchema } from '@/lib/schemas/curves';
+import { textProblem } from '@/lib/schemas/text';
 import { HttpError } from '@/server/errors';
 import type { AnalysisOutcome, Analyser } from '@/server/services/analysis-pool';
 import { loadWritableBatch } from '@/server/services/batches';
@@ -19,8 +20,19 @@ import type { UploadAnswerOut, UploadFileResult } from '@/lib/schemas/responses'
 export const STORE_GROUP = 25;
 const TEXT_EXTENSIONS = /\.(csv|tsv|txt|dat|iv)$/i;
 
-/** One received file: its name as sent (UTF-8) and its bytes. */
-export type UploadedFile = { name: string; bytes: Uint8Array };
+/** Bytes and files being read and analysed ahead of the store step: bounds an upload's memory. */
+const AHEAD_BYTES = 32 * 1024 * 1024;
+const AHEAD_FILES = 64;
+/** Longest device id stored (from the file's metadata or its name). */
+export const MAX_DEVICE_ID_CHARS = 120;
+
+/**
+ * One received file: its name as sent (UTF-8), its size and a reader for its bytes (the file
+ * waits on disk until its turn), or the receiver's rejection of it (a bad name, an unreadable part).
+ */
+export type UploadedFile =
+  | { name: string; size: number; read: () => Promise<Uint8Array> }
+  | { name: string; rejected: { code: string; error: string } };
 
 /** One file's answer (lib/schemas/responses.ts uploadResultSchema). */
 export type UploadResult = UploadFileResult;
@@ -31,6 +43,8 @@ export type UploadAnswer = UploadAnswerOut;
  * Reads, fits and stores the files in the batch. A rejected file stores nothing and the others go
  * on; accepted curves are stored whole, up to STORE_GROUP to a transaction. The overrides replace
  * every file's metadata; on_duplicate: ask (a device already in the batch is refused) | replace | keep.
+ * Files are read and analysed a window ahead of the store step (AHEAD_FILES, AHEAD_BYTES); once
+ * `signal` aborts (the client went away) no further file is started and nothing more is stored.
  */
 export async function uploadCurves(
   db: Db,
@@ -39,6 +53,7 @@ export async function uploadCurves(
   batchId: string,
   files: UploadedFile[],
   opts: ReturnType<typeof uploadOverridesSchema.parse>,
+  signal?: AbortSignal,
 ): Promise<UploadAnswer> {
   const b = await loadWritableBatch(db, who.organizationId, batchId);
   if (!files.length) throw new HttpError(400, 'no_files', 'No files were sent. Attach one or more I-V files in the form field "files".');
@@ -48,14 +63,28 @@ export async function uploadCurves(
   for (const e of existing) byDevice.set(e.deviceId, [...(byDevice.get(e.deviceId) ?? []), e.id]);
 
   const overrides = { temp_c: opts.temp_c ?? undefined, irradiance_w_m2: opts.irradiance_w_m2 ?? undefined, cells: opts.cells ?? undefined, area_cm2: opts.area_cm2 ?? undefined };
-  const jobs = files.map(({ name, bytes }) => {
-    const job: { name: string; sha256?: string; outcome?: AnalysisOutcome; done?: Promise<unknown> } = { name };
-    if (!TEXT_EXTENSIONS.test(name)) return job;
-    // Hashed before the bytes go to an analysis thread; a release record keeps the hash of what was received.
-    job.sha256 = createHash('sha256').update(bytes).digest('hex');
-    job.done = analyser.analyse({ bytes, fileName: name, overrides, defaults: { cells: b.cells, area_cm2: b.area_cm2 } }).then((o) => (job.outcome = o));
-    return job;
-  });
+  type Job = { file: UploadedFile; sha256?: string; outcome?: AnalysisOutcome; done?: Promise<unknown>; size: number };
+  const jobs: Job[] = files.map((file) => ({ file, size: 'size' in file ? file.size : 0 }));
+  let started = 0;
+  let aheadBytes = 0;
+  /** Starts reading and analysing files up to the window past `cursor` (always the file at `cursor`). */
+  const startUpTo = (cursor: number) => {
+    while (started < jobs.length && !signal?.aborted && (started <= cursor || (started - cursor < AHEAD_FILES && aheadBytes < AHEAD_BYTES))) {
+      const job = jobs[started++];
+      const file = job.file;
+      if (!('read' in file) || !TEXT_EXTENSIONS.test(file.name)) continue;
+      aheadBytes += job.size;
+      job.done = file
+        .read()
+        .then((bytes) => {
+          // Hashed before the bytes go to an analysis thread; a release record keeps the hash of what was received.
+          job.sha256 = createHash('sha256').update(bytes).digest('hex');
+          return analyser.analyse({ bytes, fileName: file.name, overrides, defaults: { cells: b.cells, area_cm2: b.area_cm2 } });
+        })
+        .catch((err: unknown): AnalysisOutcome => ({ ok: false, kind: 'failure', message: `the received file could not be read back (${(err as Error)?.message ?? err})` }))
+        .then((o) => (job.outcome = o));
+    }
+  };
   const target = { organizationId: who.organizationId, batchId: b.id, userId: who.userId };
   const group: CurveToStore[] = [];
   let stored = 0;
@@ -78,14 +107,22 @@ export async function uploadCurves(
   };
 
   const results: UploadResult[] = [];
-  for (const job of jobs) {
-    const name = job.name;
+  for (const [k, job] of jobs.entries()) {
+    startUpTo(k);
+    // The client went away: the work not yet started is not done, and nothing more is stored.
+    if (signal?.aborted) break;
+    const name = job.file.name;
+    if ('rejected' in job.file) {
+      results.push({ file: name, accepted: false, code: job.file.rejected.code, error: job.file.rejected.error });
+      continue;
+    }
     if (!job.done) {
       results.push({ file: name, accepted: false, code: 'wrong_type', error: `${name} is not an I-V text file: send .csv, .tsv, .txt or .dat files.` });
       continue;
     }
     // Waiting for a file still being fitted does not flush the group: a transaction per curve costs ~5 ms, per curve in a group of 25 ~2 ms.
     if (!job.outcome) await job.done;
+    aheadBytes -= job.size;
     const outcome = job.outcome!;
     if (!outcome.ok) {
       results.push(
@@ -97,6 +134,11 @@ export async function uploadCurves(
     }
     const analysis = outcome.analysis;
     const deviceId = analysis.curve.meta.device_id ?? name;
+    const idProblem = textProblem(deviceId, { max: MAX_DEVICE_ID_CHARS });
+    if (idProblem) {
+      results.push({ file: name, accepted: false, code: 'bad_device_id', error: `The device id of ${name} ${idProblem}; shorten or correct it in the file.` });
+      continue;
+    }
     const already = byDevice.get(deviceId) ?? [];
     if (already.length && opts.on_duplicate === 'ask') {
       results.push({ file: name, accepted: false, code: 'duplicate', device_id: deviceId, error: `Device ${deviceId} is already in this batch. Upload again choosing to replace it or to keep both.` });
@@ -111,7 +153,7 @@ export async function uploadCurves(
     results.push({ file: name, accepted: true, curve_id: curveId, device_id: deviceId, ...(replaceIds.length ? { replaced: replaceIds.length } : {}) });
     if (group.length >= STORE_GROUP) await flush();
   }
-  await flush();
+  if (!signal?.aborted) await flush();
   const accepted = results.filter((x) => x.accepted).length;
   return { results, accepted, rejected: results.length - accepted };
 }

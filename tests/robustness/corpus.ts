@@ -137,6 +137,8 @@ export function buildCorpus(): CorpusEntry[] {
   add('area in an unknown unit', 'area-acre.csv', '# area: 3 acres\n' + good, reject(/area must be in/));
   add('empty device id', 'no-id.csv', '# device:\n' + good, reject(/metadata "device" is empty/));
   add('NaN temperature', 'temp-nan.csv', '# temperature: NaN\n' + good, reject(/should be a number/));
+  add('an escape sequence in the device id', 'id-escape.csv', '# device: MOD-\u001b[2J-1\n' + good, reject(/device id of id-escape\.csv contains a control character/));
+  add('a device id of 121 characters', 'id-long.csv', `# device: ${'M'.repeat(121)}\n` + good, reject(/device id of id-long\.csv is longer than 120 characters/));
 
   // ---- Very long lines
   add('a 1 MB header line of unknown columns', 'wide-header.csv', 'x'.repeat(40) + `,col`.repeat(250_000) + '\n' + good, reject(/no voltage column/i));

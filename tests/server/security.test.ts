@@ -4,11 +4,15 @@
  * cookies and an expired session row (auth.test.ts), another organisation's records (access-matrix).
  * Added: what the limit does to the right password and to other endpoints and when it lifts;
  * a session's lifetime and its real expiry and revocation; the Secure cookie behind https;
- * better-auth's organisation endpoints not bypassing the role table; uploads never touching the
- * file system; and the pass/fail CSV formula-safe in every text column.
+ * better-auth's organisation endpoints not bypassing the role table; uploads written only into
+ * their folder under random names; the pass/fail CSV formula-safe in every text column. Issue
+ * "Trust": body limits (auth included), stored strings, dates and numbers, the same-origin rule
+ * and the security headers. Upload caps and bad parts: upload-receiving.test.ts.
  */
 import fs from 'node:fs';
+import http from 'node:http';
 import { createRequire } from 'node:module';
+import type { AddressInfo } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import { eq } from 'drizzle-orm';
@@ -21,7 +25,7 @@ import { simulateCurve } from '@/lib/iv';
 import { createApp } from '@/server/app';
 import { createAuth } from '@/server/auth';
 import { createMailer } from '@/server/mail';
-import { agentFor, signIn, signUp, startHarness } from '@/tests/server/harness';
+import { agentFor, BASE_URL, signIn, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
 import { openTestDatabase } from '@/tests/support/test-database';
 
@@ -47,14 +51,17 @@ async function customApp(opts: { baseURL: string; sessionSeconds?: number }) {
     sessionSeconds: opts.sessionSeconds,
     logLevel: 'error',
   });
-  const app = createApp({ db: database.db, auth, mailer });
+  const uploadDir = fs.mkdtempSync(path.join(os.tmpdir(), 'ql-sec-uploads-'));
+  const app = createApp({ db: database.db, auth, mailer, uploadDir });
   return {
     app,
     database,
+    uploadDir,
     agent: () => request.agent(app).set('Origin', opts.baseURL),
     close: async () => {
       await database.close();
       fs.rmSync(outboxDir, { recursive: true, force: true });
+      fs.rmSync(uploadDir, { recursive: true, force: true });
     },
   };
 }
@@ -211,49 +218,222 @@ describe('better-auth’s own organisation endpoints do not get round the role t
   });
 });
 
-describe('uploads never write to the file system', () => {
+describe('uploads write only into the upload folder, under names of their own', () => {
   let tester: Awaited<ReturnType<typeof signUp>>;
   let batchId: string;
+  let app: Awaited<ReturnType<typeof customApp>>;
   beforeAll(async () => {
-    await signUp(h.app, { email: 'admin@files-pv.example' });
-    tester = await signUp(h.app, { email: 'tester@files-pv.example' });
+    app = await customApp({ baseURL: BASE_URL });
+    await app.agent().post('/api/auth/sign-up/email').send({ email: 'admin@files-pv.example', password: 'correct-horse-9', name: 'Admin' });
+    tester = app.agent();
+    expect((await tester.post('/api/auth/sign-up/email').send({ email: 'tester@files-pv.example', password: 'correct-horse-9', name: 'Tester' })).status).toBe(200);
     batchId = (await tester.post('/api/batches').send({ name: 'Path names', cells: 1 })).body.id;
   });
-  afterAll(() => {
+  afterAll(async () => {
     jest.restoreAllMocks();
+    await app.close();
   });
 
-  it('files named with ../, absolute and Windows paths are read from memory, stored as text and their ids are the bare names; no file appears anywhere', async () => {
+  it('files named with ../, absolute and Windows paths are written only into the upload folder under random names, stored with their bare names, and the folder is empty afterwards', async () => {
     const tag = `ql-escape-${process.pid}-${Date.now()}`;
     const names = [`../../${tag}-a.csv`, `/tmp/${tag}-b.csv`, `..\\..\\${tag}-c.csv`, `sub/dir/${tag}-d.csv`, `${os.tmpdir()}/../${tag}-e.csv`];
-    const writers = ['writeFile', 'writeFileSync', 'createWriteStream', 'open', 'openSync', 'appendFile', 'appendFileSync', 'mkdir', 'mkdirSync', 'rename', 'renameSync', 'copyFile', 'copyFileSync'] as const;
-    const spies = writers.map((w) => jest.spyOn(fs, w));
-    // The `fs` multer loads is the very object spied on here (core modules are shared), so a
-    // disk-storage write anywhere in the upload path would be seen.
+    const spy = jest.spyOn(fs, 'createWriteStream');
+    // The `fs` multer loads is the very object spied on here (core modules are shared).
     expect(createRequire(require.resolve('multer'))('fs')).toBe(fs);
-    expect(jest.isMockFunction(fs.createWriteStream)).toBe(true);
-    const promiseSpies = (['writeFile', 'open', 'mkdir', 'appendFile', 'rename', 'copyFile'] as const).map((w) => jest.spyOn(fs.promises, w));
     let req = tester.post(`/api/batches/${batchId}/curves`).field('on_duplicate', 'keep');
     for (const n of names) req = req.attach('files', cellFile(), n);
     const res = await req;
-    const calls = [...spies, ...promiseSpies].flatMap((s) => s.mock.calls.map((c) => String(c[0])));
-    for (const s of [...spies, ...promiseSpies]) s.mockRestore();
+    const written = spy.mock.calls.map((c) => String(c[0]));
+    spy.mockRestore();
 
     expect(res.status).toBe(201);
-    expect(calls).toEqual([]);
+    expect(written).toHaveLength(names.length);
+    for (const w of written) {
+      expect(path.dirname(w)).toBe(app.uploadDir);
+      // multer's disk storage names each file with 16 random bytes in hex, nothing of the sent name.
+      expect(path.basename(w)).toMatch(/^[0-9a-f]{32}$/);
+    }
     const results = res.body.results as { file: string; accepted: boolean; curve_id: string; device_id: string }[];
     expect(results.map((r) => r.accepted)).toEqual(names.map(() => true));
     for (const [k, r] of results.entries()) {
-      const [row] = await h.database.db.select({ fileName: curve.fileName, deviceId: curve.deviceId }).from(curve).where(eq(curve.id, r.curve_id));
+      const [row] = await app.database.db.select({ fileName: curve.fileName, deviceId: curve.deviceId }).from(curve).where(eq(curve.id, r.curve_id));
       // The multipart reader keeps only the last path segment; the id is that name without its extension.
       expect(row.fileName).toBe(`${tag}-${'abcde'[k]}.csv`);
       expect(row.deviceId).toBe(`${tag}-${'abcde'[k]}`);
     }
+    expect(fs.readdirSync(app.uploadDir)).toEqual([]);
     // repository-check: outside on purpose: the upload names above climb out of the working folder, so look there too.
     const places = [process.cwd(), path.resolve(process.cwd(), '..'), path.resolve(process.cwd(), '../..'), dataDir(), os.tmpdir(), '/tmp', '/'];
     for (const dir of places) {
       const listing = fs.existsSync(dir) ? fs.readdirSync(dir) : [];
       expect(listing.filter((f) => f.includes(tag))).toEqual([]);
+    }
+  });
+});
+
+describe('body limits', () => {
+  it('a 100 MB display name on sign-up → 413 {code, message} before the body is read, and no user is stored', async () => {
+    const name = 'n'.repeat(100 * 1024 * 1024);
+    const res = await agentFor(h.app).post('/api/auth/sign-up/email').set('Content-Type', 'application/json').send(JSON.stringify({ email: 'huge@limits-pv.example', password: 'correct-horse-9', name }));
+    expect(res.status).toBe(413);
+    expect(res.body).toEqual({ code: 'too_large', message: expect.stringMatching(/larger than the 64 KB/) });
+    expect(await h.database.db.select().from(user).where(eq(user.email, 'huge@limits-pv.example'))).toEqual([]);
+  });
+
+  it('a 100 KB body sent in chunks without a Content-Length is stopped at the limit too', async () => {
+    const res = await new Promise<{ status: number; body: string }>((resolve, reject) => {
+      const server = h.app.listen(0, '127.0.0.1', () => {
+        const { port } = server.address() as AddressInfo;
+        const req = http.request({ port, host: '127.0.0.1', method: 'POST', path: '/api/auth/sign-up/email', headers: { 'Content-Type': 'application/json', 'Transfer-Encoding': 'chunked', Origin: BASE_URL } }, (r) => {
+          let body = '';
+          r.on('data', (d) => (body += d));
+          r.on('end', () => {
+            server.close();
+            resolve({ status: r.statusCode!, body });
+          });
+        });
+        req.on('error', () => undefined);
+        req.write(`{"email":"chunked@limits-pv.example","password":"correct-horse-9","name":"${'c'.repeat(100 * 1024)}`);
+        req.end('"}');
+      });
+      server.on('error', reject);
+    });
+    expect(res.status).toBe(413);
+    expect(JSON.parse(res.body).code).toBe('too_large');
+    expect(await h.database.db.select().from(user).where(eq(user.email, 'chunked@limits-pv.example'))).toEqual([]);
+  });
+
+  it('a JSON body over 1 MB on another route → 413', async () => {
+    const tester = await signUp(h.app, { email: 'admin@json-limit-pv.example' });
+    const res = await tester.post('/api/batches').send({ name: 'big', description: 'd'.repeat(1_100_000) });
+    expect(res.status).toBe(413);
+    expect(res.body.code).toBe('too_large');
+  });
+});
+
+describe('stored strings, dates and numbers', () => {
+  let admin: Awaited<ReturnType<typeof signUp>>;
+  let tester: Awaited<ReturnType<typeof signUp>>;
+  let batchId: string;
+  beforeAll(async () => {
+    admin = await signUp(h.app, { email: 'admin@strings-pv.example' });
+    tester = await signUp(h.app, { email: 'tester@strings-pv.example' });
+    batchId = (await tester.post('/api/batches').send({ name: 'Strings', cells: 1 })).body.id;
+  });
+
+  it.each([
+    ['a display name of 121 characters on sign-up', () => agentFor(h.app).post('/api/auth/sign-up/email').send({ email: 'long@names-pv.example', password: 'correct-horse-9', name: 'x'.repeat(121) }), /Name is longer than 120 characters/],
+    ['a NUL in the display name on sign-up', () => agentFor(h.app).post('/api/auth/sign-up/email').send({ email: 'nul@names-pv.example', password: 'correct-horse-9', name: 'a\u0000b' }), /Name contains a zero character/],
+    ['an escape character in the display name on update-user', () => admin.post('/api/auth/update-user').send({ name: 'Ada\u001b[2J' }), /Name contains a control character/],
+  ] as const)('%s → 400 naming the field, nothing stored', async (_what, send, message) => {
+    const res = await send();
+    expect(res.status).toBe(400);
+    expect(res.body.message).toMatch(message);
+    expect(await h.database.db.select({ id: user.id }).from(user).where(eq(user.email, 'long@names-pv.example'))).toEqual([]);
+    expect(await h.database.db.select({ id: user.id }).from(user).where(eq(user.email, 'nul@names-pv.example'))).toEqual([]);
+    const [a] = await h.database.db.select({ name: user.name }).from(user).where(eq(user.email, 'admin@strings-pv.example'));
+    expect(a.name).toBe('admin');
+  });
+
+  it.each<[string, Record<string, unknown>, RegExp]>([
+    ['a NUL in the batch name', { name: 'lot\u00007' }, /name: Name contains a zero character/],
+    ['a bell character in the supplier', { name: 'ok', supplier: 'ACME\u0007' }, /supplier: Supplier contains a control character/],
+    ['a description of 2,001 characters', { name: 'ok', description: 'd'.repeat(2001) }, /description: Description is longer than 2000 characters/],
+    ['30 February', { name: 'ok', batch_date: '2026-02-30' }, /batch_date: Date 2026-02-30 is not a date in the calendar/],
+    ['month 13', { name: 'ok', batch_date: '2026-13-01' }, /batch_date: Date 2026-13-01 is not a date in the calendar/],
+    ['a hexadecimal cell count', { name: 'ok', cells: '0x3c' }, /cells: Cells in series must be a whole number/],
+    ['Infinity as an area', { name: 'ok', area_cm2: 'Infinity' }, /area_cm2: Area \(cm²\) must be a number/],
+  ])('%s → 400 naming the field', async (_what, body, message) => {
+    const res = await tester.post('/api/batches').send(body);
+    expect(res.status).toBe(400);
+    expect(res.body.code).toBe('invalid_input');
+    expect(res.body.message).toMatch(message);
+  });
+
+  it('multi-line descriptions and comments keep their line breaks; 29 February of a leap year is a date', async () => {
+    const res = await tester.patch(`/api/batches/${batchId}`).send({ description: 'line one\nline two\r\n\tindented', batch_date: '2028-02-29' });
+    expect(res.status).toBe(200);
+    expect(res.body.description).toBe('line one\nline two\r\n\tindented');
+  });
+
+  it('a spec name with a control character → 400 naming it', async () => {
+    const [t] = await h.database.db.select().from(user).where(eq(user.email, 'tester@strings-pv.example'));
+    await h.database.db.update(member).set({ role: 'qa_lead' }).where(eq(member.userId, t.id));
+    const res = await tester.post('/api/specs').send({ name: 'Spec\u0000', limits: { pmp_w: { min: 0 } } });
+    expect(res.status).toBe(400);
+    expect(res.body.message).toMatch(/name contains a control character/);
+  });
+});
+
+describe('cross-site requests', () => {
+  let tester: Awaited<ReturnType<typeof signUp>>;
+  let cookie: string;
+  beforeAll(async () => {
+    await signUp(h.app, { email: 'admin@origin-pv.example' });
+    const res = await agentFor(h.app).post('/api/auth/sign-up/email').send({ email: 'tester@origin-pv.example', password: 'correct-horse-9', name: 'Origin' });
+    cookie = sessionPair(res)!;
+    tester = await signIn(h.app, 'tester@origin-pv.example', 'correct-horse-9');
+  });
+
+  it.each<[string, number, Record<string, string>]>([
+    ['a foreign Origin', 403, { Origin: 'https://evil.example' }],
+    ['Origin "null" (a sandboxed page)', 403, { Origin: 'null' }],
+    ['the app’s host on another port', 403, { Origin: 'http://localhost:8081' }],
+    ['no Origin and a foreign Referer', 403, { Referer: 'https://evil.example/page' }],
+    ['no Origin and the app’s own Referer', 201, { Referer: `${BASE_URL}/batches` }],
+    ['the app’s own Origin', 201, { Origin: BASE_URL }],
+    ['neither header (the command line, scripts)', 201, {}],
+  ])('a POST with %s and a valid session cookie → %i', async (_what, status, headers) => {
+    const res = await request(h.app).post('/api/batches').set('Cookie', cookie).set(headers).send({ name: 'Cross-site' });
+    expect(res.status).toBe(status);
+    if (status === 403) expect(res.body).toEqual({ code: 'cross_origin', message: expect.stringMatching(/refused/) });
+  });
+
+  it('auth routes too: a sign-out or sign-up from a foreign page is refused and changes nothing', async () => {
+    const out = await request(h.app).post('/api/auth/sign-out').set('Cookie', cookie).set('Origin', 'https://evil.example').send({});
+    expect(out.status).toBe(403);
+    expect(out.body.code).toBe('cross_origin');
+    expect((await request(h.app).get('/api/me').set('Cookie', cookie)).status).toBe(200);
+    const up = await request(h.app).post('/api/auth/sign-up/email').set('Origin', 'https://evil.example').send({ email: 'x@evil-pv.example', password: 'correct-horse-9', name: 'X' });
+    expect(up.status).toBe(403);
+    expect(await h.database.db.select().from(user).where(eq(user.email, 'x@evil-pv.example'))).toEqual([]);
+  });
+
+  it('DELETE and PATCH are checked, GET is not', async () => {
+    const b = (await tester.post('/api/batches').send({ name: 'Patch me' })).body;
+    expect((await request(h.app).patch(`/api/batches/${b.id}`).set('Cookie', cookie).set('Origin', 'https://evil.example').send({ name: 'pwned' })).status).toBe(403);
+    expect((await request(h.app).get(`/api/batches/${b.id}`).set('Cookie', cookie).set('Origin', 'https://evil.example')).status).toBe(200);
+    expect((await tester.get(`/api/batches/${b.id}`)).body.name).toBe('Patch me');
+  });
+});
+
+describe('security headers', () => {
+  it('the page and the API carry a Content-Security-Policy, nosniff, frame and referrer rules; no HSTS on http', async () => {
+    for (const url of ['/', '/api/health']) {
+      const res = await request(h.app).get(url);
+      const csp = String(res.headers['content-security-policy']);
+      expect(csp).toMatch(/default-src 'self'/);
+      expect(csp).toMatch(/script-src 'self'(;|$)/);
+      expect(csp).not.toMatch(/script-src[^;]*unsafe/);
+      expect(csp).toMatch(/object-src 'none'/);
+      expect(csp).toMatch(/frame-ancestors 'none'/);
+      expect(csp).not.toMatch(/upgrade-insecure-requests/);
+      expect(res.headers['x-content-type-options']).toBe('nosniff');
+      expect(res.headers['x-frame-options']).toBe('SAMEORIGIN');
+      expect(res.headers['referrer-policy']).toBe('same-origin');
+      expect(res.headers['strict-transport-security']).toBeUndefined();
+      expect(res.headers['x-powered-by']).toBeUndefined();
+    }
+  });
+
+  it('behind https: HSTS and upgrade-insecure-requests', async () => {
+    const app = await customApp({ baseURL: 'https://quasilevel.example' });
+    try {
+      const res = await request(app.app).get('/');
+      expect(res.headers['strict-transport-security']).toMatch(/max-age=15552000/);
+      expect(String(res.headers['content-security-policy'])).toMatch(/upgrade-insecure-requests/);
+    } finally {
+      await app.close();
     }
   });
 });
