@@ -11,10 +11,11 @@ import { run as split } from '@/cli/commands/split';
 import { run as strings } from '@/cli/commands/strings';
 import { run as translate } from '@/cli/commands/translate';
 import { nonSnakeKeys } from '@/tests/support/json-keys';
+import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
 type Run = (argv: string[]) => Promise<number>;
 
-const REF_DIR = path.resolve(__dirname, '../../../shared/reference-data');
+const REF_DIR = REFERENCE_DATA_DIR;
 const MODULE_CSV = path.join(REF_DIR, 'module-36cell-45C.csv');
 const CELL_CSV = path.join(REF_DIR, 'cell-57mm-33C.csv');
 

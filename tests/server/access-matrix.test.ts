@@ -123,7 +123,7 @@ async function freshInvitation(): Promise<string> {
 /** A batch of ours released by the QA lead through the API (so it has a release record), with its release's id. */
 async function releasedBatch(): Promise<{ batchId: string; releaseId: string }> {
   const { batchId } = await freshBatch('in_review');
-  const res = await agents.qa_lead.post(`/api/batches/${batchId}/decision`).send({ decision: 'release', specId: ids.spec, comment: 'matrix release' });
+  const res = await agents.qa_lead.post(`/api/batches/${batchId}/decision`).send({ decision: 'release', spec_id: ids.spec, comment: 'matrix release' });
   if (res.status !== 200) throw new Error(`matrix release failed: ${res.status} ${res.text}`);
   const releaseId = (await agents.qa_lead.get(`/api/batches/${batchId}/reviews`)).body.releases[0].id as string;
   ours.push(releaseId);

@@ -35,6 +35,26 @@ export type Harness = {
   mails: () => string[];
 };
 
+/**
+ * Registers an app that a test built itself (own upload folder, caps, session length …) so that
+ * `signUp` can read its outbox and answer its join requests like a harness app's.
+ */
+export function adoptApp(parts: Omit<Harness, 'mails' | 'close'>): Harness {
+  const h: Harness = {
+    ...parts,
+    mails: () =>
+      readdirSync(parts.outboxDir)
+        .sort()
+        .map((f) => readFileSync(path.join(parts.outboxDir, f), 'utf8')),
+    close: async () => {
+      await parts.database.close();
+      rmSync(parts.outboxDir, { recursive: true, force: true });
+    },
+  };
+  harnesses.set(parts.app, h);
+  return h;
+}
+
 /** The harness of each app, so that the sign-up helper can read the outbox and answer requests. */
 const harnesses = new WeakMap<Express, Harness>();
 

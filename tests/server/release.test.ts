@@ -132,7 +132,7 @@ describe('a released batch is final', () => {
           port: (server.address() as AddressInfo).port,
           method: 'POST',
           path: `/api/batches/${b.id}/curves`,
-          headers: { cookie: cookieHeader, origin: BASE_URL, 'content-type': `multipart/form-data; boundary=${boundary}` },
+          headers: { cookie: cookieHeader, origin: BASE_URL, 'content-type': `multipart/form-data; boundary=${boundary}`, 'content-length': Buffer.byteLength(head + file + tail) },
         },
         (res) => {
           answered = true;
@@ -149,7 +149,7 @@ describe('a released batch is final', () => {
     await new Promise((r) => setTimeout(r, 300));
     expect(answered).toBe(false);
 
-    const release = await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', specId: loose });
+    const release = await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', spec_id: loose });
     expect(release.status).toBe(200);
     const csvBefore = await designer.get(`/api/batches/${b.id}/pass-fail.csv`);
     expect(csvBefore.status).toBe(200);
@@ -180,7 +180,7 @@ describe('a released batch is final', () => {
     const upload = tester.post(`/api/batches/${b.id}/curves`).attach('files', cellFile('fitting-late', 1.02), 'late.csv').then((r) => r);
     await g.reached; // received, checked writable, now waiting in the analyser
     hold = null;
-    const release = await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', specId: loose });
+    const release = await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', spec_id: loose });
     expect(release.status).toBe(200);
     g.open();
     const res = await upload;
@@ -193,7 +193,7 @@ describe('a released batch is final', () => {
   it('the database refuses a direct insert, change or delete of a curve or fit of a released batch, and that refusal answers 409 batch_released', async () => {
     const b = await makeBatch('trigger');
     await submit(b.id);
-    expect((await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', specId: loose })).status).toBe(200);
+    expect((await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', spec_id: loose })).status).toBe(200);
     const db = h.database.db;
     const [row] = await db.select().from(curve).where(eq(curve.id, b.curveIds[0]));
     const copy = { ...row, id: crypto.randomUUID(), deviceId: 'smuggled' };
@@ -215,7 +215,7 @@ describe('a released batch is final', () => {
   it('the release record keeps each device with its figures, result and data hashes; the CSV is served from it', async () => {
     const b = await makeBatch('record', qa2);
     await submit(b.id);
-    const res = await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', specId: strict, comment: 'High-Rs cell goes to rework.' });
+    const res = await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', spec_id: strict, comment: 'High-Rs cell goes to rework.' });
     expect(res.status).toBe(200);
     const list = (await designer.get(`/api/batches/${b.id}/reviews`)).body;
     expect(list.releases).toHaveLength(1);
@@ -243,13 +243,13 @@ describe('release is deliberate', () => {
   it('a release with failing devices and no comment is refused with 400 naming the comment', async () => {
     const b = await makeBatch('failing');
     await submit(b.id);
-    const res = await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', specId: strict });
+    const res = await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', spec_id: strict });
     expect(res.status).toBe(400);
     expect(res.body.code).toBe('comment_required');
     expect(res.body.message).toMatch(/^comment: 1 of 3 devices fail/);
     expect((await designer.get(`/api/batches/${b.id}`)).body.state).toBe('in_review');
     // Without failures no comment is needed.
-    expect((await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', specId: loose })).status).toBe(200);
+    expect((await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', spec_id: loose })).status).toBe(200);
   });
 
   it('whoever uploaded a curve or submitted the batch cannot release it (403 same_person); another QA lead can', async () => {
@@ -257,18 +257,18 @@ describe('release is deliberate', () => {
     // qa2 adds a curve to the test engineer's batch.
     expect((await qa2.post(`/api/batches/${b.id}/curves`).attach('files', cellFile('duties-4', 1), 'c4.csv')).status).toBe(201);
     await submit(b.id);
-    const refused = await qa2.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', specId: loose });
+    const refused = await qa2.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', spec_id: loose });
     expect([refused.status, refused.body.code]).toEqual([403, 'same_person']);
     expect(refused.body.message).toMatch(/uploaded some of its curves/);
     expect((await qa2.get(`/api/batches/${b.id}/reviews`)).body.release_check).toEqual({ allowed: false, code: 'same_person', message: refused.body.message });
     expect((await qa.get(`/api/batches/${b.id}/reviews`)).body.release_check).toEqual({ allowed: true });
     // Another QA lead, who neither uploaded nor submitted, releases it.
-    expect((await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', specId: loose })).status).toBe(200);
+    expect((await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', spec_id: loose })).status).toBe(200);
 
     // A QA lead who submitted a batch does not release it either.
     const own = await makeBatch('own', qa);
     expect((await qa.post(`/api/batches/${own.id}/submit`).send({})).status).toBe(200);
-    const self = await qa.post(`/api/batches/${own.id}/decision`).send({ decision: 'release', specId: loose });
+    const self = await qa.post(`/api/batches/${own.id}/decision`).send({ decision: 'release', spec_id: loose });
     expect([self.status, self.body.code]).toEqual([403, 'same_person']);
   });
 });
@@ -277,7 +277,7 @@ describe('reopening a released batch', () => {
   it('needs a written reason; the batch goes on hold as a new revision and its release stays readable', async () => {
     const b = await makeBatch('reopen');
     await submit(b.id);
-    expect((await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', specId: loose })).status).toBe(200);
+    expect((await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', spec_id: loose })).status).toBe(200);
     const first = (await designer.get(`/api/batches/${b.id}/reviews`)).body.releases[0];
     const csvReleased = (await designer.get(first.csv_url)).text;
 
@@ -304,7 +304,7 @@ describe('reopening a released batch', () => {
     // Changed, submitted and released again: revision 2, the first release unchanged beside it.
     expect((await tester.post(`/api/curves/${b.curveIds[1]}/refit`).send({ model: 'single', temp_c: 30 })).status).toBe(200);
     await submit(b.id);
-    expect((await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', specId: loose })).status).toBe(200);
+    expect((await qa.post(`/api/batches/${b.id}/decision`).send({ decision: 'release', spec_id: loose })).status).toBe(200);
     const releases = (await designer.get(`/api/batches/${b.id}/reviews`)).body.releases;
     expect(releases.map((r: { revision: number }) => r.revision)).toEqual([2, 1]);
     expect((await designer.get(first.csv_url)).text).toBe(csvReleased);

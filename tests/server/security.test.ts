@@ -25,7 +25,7 @@ import { simulateCurve } from '@/lib/iv';
 import { createApp } from '@/server/app';
 import { createAuth } from '@/server/auth';
 import { createMailer } from '@/server/mail';
-import { agentFor, BASE_URL, signIn, signUp, startHarness } from '@/tests/server/harness';
+import { adoptApp, agentFor, BASE_URL, signIn, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
 import { openTestDatabase } from '@/tests/support/test-database';
 
@@ -53,6 +53,7 @@ async function customApp(opts: { baseURL: string; sessionSeconds?: number }) {
   });
   const uploadDir = fs.mkdtempSync(path.join(os.tmpdir(), 'ql-sec-uploads-'));
   const app = createApp({ db: database.db, auth, mailer, uploadDir });
+  adoptApp({ app, database, auth, mailer, outboxDir });
   return {
     app,
     database,
@@ -224,9 +225,9 @@ describe('uploads write only into the upload folder, under names of their own', 
   let app: Awaited<ReturnType<typeof customApp>>;
   beforeAll(async () => {
     app = await customApp({ baseURL: BASE_URL });
-    await app.agent().post('/api/auth/sign-up/email').send({ email: 'admin@files-pv.example', password: 'correct-horse-9', name: 'Admin' });
-    tester = app.agent();
-    expect((await tester.post('/api/auth/sign-up/email').send({ email: 'tester@files-pv.example', password: 'correct-horse-9', name: 'Tester' })).status).toBe(200);
+    // Verified and let in through the harness's helper (sign-up alone gives no session).
+    await signUp(app.app, { email: 'admin@files-pv.example' });
+    tester = await signUp(app.app, { email: 'tester@files-pv.example' });
     batchId = (await tester.post('/api/batches').send({ name: 'Path names', cells: 1 })).body.id;
   });
   afterAll(async () => {
@@ -370,9 +371,10 @@ describe('cross-site requests', () => {
   let cookie: string;
   beforeAll(async () => {
     await signUp(h.app, { email: 'admin@origin-pv.example' });
-    const res = await agentFor(h.app).post('/api/auth/sign-up/email').send({ email: 'tester@origin-pv.example', password: 'correct-horse-9', name: 'Origin' });
+    tester = await signUp(h.app, { email: 'tester@origin-pv.example' });
+    // A bare session cookie (no agent), so each case sets exactly the headers it names.
+    const res = await agentFor(h.app).post('/api/auth/sign-in/email').send({ email: 'tester@origin-pv.example', password: 'correct-horse-9' });
     cookie = sessionPair(res)!;
-    tester = await signIn(h.app, 'tester@origin-pv.example', 'correct-horse-9');
   });
 
   it.each<[string, number, Record<string, string>]>([

@@ -23,7 +23,7 @@ import { inlineAnalyser } from '@/server/services/analysis-pool';
 import type { Analyser } from '@/server/services/analysis-pool';
 import { UPLOAD_LIMITS } from '@/server/upload-receiver';
 import type { UploadLimits } from '@/server/upload-receiver';
-import { BASE_URL, signUp } from '@/tests/server/harness';
+import { adoptApp, BASE_URL, signUp } from '@/tests/server/harness';
 
 /** The benchmark cell simulated from its published optimum (../shared/reference-data/README.md). */
 const cellRows = (() => {
@@ -40,6 +40,7 @@ async function uploadApp(opts: { limits?: Partial<UploadLimits>; analyser?: Anal
   const mailer = createMailer({ db: database.db, outboxDir });
   const auth = createAuth({ db: database.db, mailer, baseURL: BASE_URL, secret: 'test-secret-0123456789abcdef0123456789abcdef', trustedOrigins: [BASE_URL], signInPerMinute: 0, logLevel: 'error' });
   const app = createApp({ db: database.db, auth, mailer, uploadDir, uploadLimits: { ...UPLOAD_LIMITS, ...opts.limits }, analyser: opts.analyser });
+  adoptApp({ app, database, auth, mailer, outboxDir });
   await signUp(app, { email: 'admin@upload-pv.example' });
   const tester = await signUp(app, { email: 'tester@upload-pv.example' });
   const batchId: string = (await tester.post('/api/batches').send({ name: 'Receiving', cells: 1 })).body.id;

@@ -38,8 +38,17 @@ const babel = {
   },
 };
 
-/** `import()` plus a local binding named `require`: see above. */
-const needsBabel = (text) => /\bimport\s*\(/.test(text) && /\b(?:var|let|const)\s+require\b/.test(text);
+/**
+ * Our own modules whose exports a test replaces with jest.spyOn: esbuild's CommonJS exports are
+ * getters that cannot be redefined, Babel's can (tests/server/cache-stampede.test.ts spies on
+ * deviceRecords to count the reads of concurrent comparisons; the spying file's `import * as`
+ * namespace must come from Babel too).
+ */
+const SPIED_MODULES = [/[\\/]server[\\/]services[\\/]quality\.ts$/, /[\\/]tests[\\/]server[\\/]cache-stampede\.test\.ts$/];
+
+/** `import()` plus a local binding named `require` (see above), or a module a test spies on. */
+const needsBabel = (text, file = '') =>
+  SPIED_MODULES.some((re) => re.test(file)) || (/\bimport\s*\(/.test(text) && /\b(?:var|let|const)\s+require\b/.test(text));
 
 function loaderOf(file) {
   if (/\.tsx$/.test(file)) return 'tsx';
@@ -50,11 +59,11 @@ function loaderOf(file) {
 
 module.exports = {
   getCacheKey(sourceText, sourcePath, options) {
-    if (needsBabel(sourceText)) return babel.get().getCacheKey(sourceText, sourcePath, options);
+    if (needsBabel(sourceText, sourcePath)) return babel.get().getCacheKey(sourceText, sourcePath, options);
     return crypto.createHash('sha1').update(version).update('\0').update(SELF).update('\0').update(sourcePath).update('\0').update(sourceText).digest('hex');
   },
   process(sourceText, sourcePath, options) {
-    if (needsBabel(sourceText)) return babel.get().process(sourceText, sourcePath, options);
+    if (needsBabel(sourceText, sourcePath)) return babel.get().process(sourceText, sourcePath, options);
     const usesMeta = sourceText.includes('import.meta');
     const result = transformSync(sourceText, {
       loader: loaderOf(sourcePath),
