@@ -1,6 +1,6 @@
 /**
  * One vocabulary for the command line: every key of every command's --json output is snake_case
- * (tests/support/json-keys.ts), on the reference files of ../shared/reference-data. The commands
+ * (tests/support/json-keys.ts), on the reference files of tests/fixtures/reference-data. The commands
  * run in-process (stdout captured), the way the other CLI tests run them.
  */
 import path from 'node:path';

@@ -1,5 +1,5 @@
 /**
- * The layering rules of ../shared/STYLE.md, checked on the source text: a route does not import
+ * The layering rules of docs/style.md, checked on the source text: a route does not import
  * another route (shared work lives in server/services/); lib/ stays pure (no server, database,
  * screens or node I/O), so the engines run the same in the browser, the CLI and the workers;
  * db/ does not reach up into the server. And no server or lib file grows past 400 lines.

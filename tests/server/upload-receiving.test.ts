@@ -25,7 +25,7 @@ import { UPLOAD_LIMITS } from '@/server/upload-receiver';
 import type { UploadLimits } from '@/server/upload-receiver';
 import { adoptApp, BASE_URL, signUp } from '@/tests/server/harness';
 
-/** The benchmark cell simulated from its published optimum (../shared/reference-data/README.md). */
+/** The benchmark cell simulated from its published optimum (tests/fixtures/reference-data/README.md). */
 const cellRows = (() => {
   const c = simulateCurve({ iph_a: 0.760788, i0_a: 3.1068e-7, n: 1.47727, rs_ohm: 0.036547, rsh_ohm: 52.89 }, { cells: 1, temp_c: 33, points: 30 });
   return ['V,I', ...c.voltage_v.map((v, k) => `${v},${c.current_a[k]}`)].join('\n');
