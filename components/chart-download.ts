@@ -1,6 +1,7 @@
 import { theme } from '@/components/theme';
 import { svgFileText } from '@/lib/charts/svg-file';
 import type { LegendItem } from '@/lib/charts/svg-file';
+import { downloadBlob } from '@/lib/download';
 
 /**
  * Saving a rendered chart on the web: the first <svg> under `host` (react-native-svg renders
@@ -20,18 +21,6 @@ function chartSvgText(host: unknown, file: ChartFile): { text: string; width: nu
   const text = svgFileText(new XMLSerializer().serializeToString(svg), { width, height, title: file.title, background: theme.color.surface, legend: file.legend });
   const m = /<svg[^>]*\sheight="(\d+)"/.exec(text);
   return { text, width, height: m ? Number(m[1]) : height };
-}
-
-/** Saves a blob made in the browser under the given name (an <a download> click). */
-function downloadBlob(fileName: string, blob: Blob): void {
-  const url = URL.createObjectURL(blob);
-  const a = document.createElement('a');
-  a.href = url;
-  a.download = fileName;
-  document.body.appendChild(a);
-  a.click();
-  a.remove();
-  setTimeout(() => URL.revokeObjectURL(url), 10_000);
 }
 
 export function downloadChartSvg(host: unknown, file: ChartFile): boolean {

@@ -12,9 +12,10 @@ export function downloadFromUrl(url: string): void {
   a.remove();
 }
 
-export function downloadText(fileName: string, text: string, type = 'text/csv;charset=utf-8'): void {
+/** Saves a blob made in the browser under the given name (an <a download> click). */
+export function downloadBlob(fileName: string, blob: Blob): void {
   if (typeof document === 'undefined' || typeof URL === 'undefined') return;
-  const url = URL.createObjectURL(new Blob([text], { type }));
+  const url = URL.createObjectURL(blob);
   const a = document.createElement('a');
   a.href = url;
   a.download = fileName;
@@ -22,4 +23,8 @@ export function downloadText(fileName: string, text: string, type = 'text/csv;ch
   a.click();
   a.remove();
   setTimeout(() => URL.revokeObjectURL(url), 10_000);
+}
+
+export function downloadText(fileName: string, text: string, type = 'text/csv;charset=utf-8'): void {
+  downloadBlob(fileName, new Blob([text], { type }));
 }
