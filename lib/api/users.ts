@@ -2,7 +2,7 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { apiFetch } from '@/lib/api/client';
 import { invalidateMembership } from '@/lib/api/invalidate';
-import { userKeys } from '@/lib/api/keys';
+import { batchKeys, userKeys } from '@/lib/api/keys';
 import type { AuditEntryJson } from '@/lib/auth/audit';
 import type { Role } from '@/lib/auth/roles';
 import type { InviteInput, RequestDecisionInput } from '@/lib/schemas/auth';
@@ -11,7 +11,7 @@ import type { UserList } from '@/lib/schemas/responses';
 export type { OrgUser } from '@/lib/schemas/responses';
 export type Invitation = { id: string; email: string; role: Role; expires_at: string; created_at: string; invited_by: string | null };
 export type JoinRequest = { id: string; user_id: string; name: string; email: string; created_at: string };
-export type OrganisationSettings = { id: string; name: string; domain: string; join_by_domain: boolean };
+export type OrganisationSettings = { id: string; name: string; domain: string; join_by_domain: boolean; separate_release: boolean };
 
 export { userKeys };
 
@@ -74,4 +74,13 @@ export function useDecideRequest() {
 
 export function useSetJoinByDomain() {
   return useMembershipMutation((on: boolean) => apiFetch('/api/organization', { method: 'PATCH', body: { join_by_domain: on } }));
+}
+
+/** Separation of duties at release on or off; every batch's release check changes with it. */
+export function useSetSeparateRelease() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (on: boolean) => apiFetch('/api/organization', { method: 'PATCH', body: { separate_release: on } }),
+    onSuccess: () => Promise.all([invalidateMembership(qc), qc.invalidateQueries({ queryKey: batchKeys.all })]),
+  });
 }

@@ -64,6 +64,11 @@ export function describeAudit(e: AuditEntryJson): string {
     case 'removed':
       return `${who} removed ${whom} from the organisation.`;
     case 'setting_changed':
+      if (d.separate_release !== undefined) {
+        return d.separate_release
+          ? `${who} turned separation of duties at release on: whoever uploaded or submitted a batch may not release it.`
+          : `${who} turned separation of duties at release off: the person who uploaded or submitted a batch may release it.`;
+      }
       return `${who} turned joining by e-mail domain ${d.join_by_domain ? 'on' : 'off'}.`;
   }
 }

@@ -66,5 +66,14 @@ export const requestDecisionSchema = z.discriminatedUnion(
 );
 export type RequestDecisionInput = z.infer<typeof requestDecisionSchema>;
 
-/** PATCH /api/organization — the administrators' setting for joining by e-mail domain. */
-export const organisationSettingsSchema = z.object({ join_by_domain: z.boolean({ message: 'join_by_domain must be true or false.' }) });
+/**
+ * PATCH /api/organization — the administrators' settings: joining by e-mail domain, and the
+ * separation of duties at release. Either or both; an empty body is refused.
+ */
+export const organisationSettingsSchema = z
+  .strictObject({
+    join_by_domain: z.boolean({ message: 'Joining by e-mail domain must be on (true) or off (false).' }).optional(),
+    separate_release: z.boolean({ message: 'Separate release must be on (true) or off (false).' }).optional(),
+  })
+  .refine((s) => s.join_by_domain !== undefined || s.separate_release !== undefined, { message: 'Name a setting to change: join_by_domain or separate_release.' });
+export type OrganisationSettingsInput = z.infer<typeof organisationSettingsSchema>;

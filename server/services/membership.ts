@@ -7,7 +7,7 @@
  */
 import { and, asc, desc, eq, gt, isNull } from 'drizzle-orm';
 import type { Db } from '@/db/client';
-import { invitation, member, membershipRequest, organization, user } from '@/db/schema';
+import { invitation, member, membershipRequest, organization, organizationSetting, user } from '@/db/schema';
 import { isRole, ROLE_PERMISSIONS } from '@/lib/auth/roles';
 import type { Role } from '@/lib/auth/roles';
 import { HttpError } from '@/server/errors';
@@ -149,18 +149,30 @@ export async function decideRequest(db: Db, mailer: Mailer, baseUrl: string, by:
   return { id: requestId, status: done.status, ...(answer.approve ? { role: answer.role } : {}) };
 }
 
-/** The organisation as its administrators see it, with the joining setting. */
+/** The organisation as its administrators see it, with its settings (no settings row means the defaults). */
 export async function organisationSettings(db: Db, organizationId: string) {
   const [o] = await db.select().from(organization).where(eq(organization.id, organizationId));
   if (!o) throw new HttpError(404, 'not_found', 'Your organisation was not found.');
-  return { id: o.id, name: o.name, domain: o.domain, join_by_domain: o.joinByDomain };
+  const [s] = await db.select({ separate: organizationSetting.separateRelease }).from(organizationSetting).where(eq(organizationSetting.organizationId, organizationId));
+  return { id: o.id, name: o.name, domain: o.domain, join_by_domain: o.joinByDomain, separate_release: s?.separate ?? true };
 }
 
-/** Turns joining by e-mail domain on or off (recorded). */
-export async function setJoinByDomain(db: Db, by: AdminActor, on: boolean) {
+/**
+ * Changes the organisation's settings — joining by e-mail domain, separation of duties at
+ * release — each change with its audit entry, in one transaction.
+ */
+export async function updateOrganisationSettings(db: Db, by: AdminActor, change: { join_by_domain?: boolean; separate_release?: boolean }) {
   await db.transaction(async (tx) => {
-    await tx.update(organization).set({ joinByDomain: on }).where(eq(organization.id, by.organizationId));
-    await recordAudit(tx, { organizationId: by.organizationId, actor: by, action: 'setting_changed', details: { join_by_domain: on } });
+    const orgId = by.organizationId;
+    if (change.join_by_domain !== undefined) {
+      await tx.update(organization).set({ joinByDomain: change.join_by_domain }).where(eq(organization.id, orgId));
+      await recordAudit(tx, { organizationId: orgId, actor: by, action: 'setting_changed', details: { join_by_domain: change.join_by_domain } });
+    }
+    if (change.separate_release !== undefined) {
+      const on = change.separate_release;
+      await tx.insert(organizationSetting).values({ organizationId: orgId, separateRelease: on }).onConflictDoUpdate({ target: organizationSetting.organizationId, set: { separateRelease: on } });
+      await recordAudit(tx, { organizationId: orgId, actor: by, action: 'setting_changed', details: { separate_release: on } });
+    }
   });
   return organisationSettings(db, by.organizationId);
 }

@@ -14,6 +14,7 @@ import { simulateCurve } from '@/lib/iv';
 import { errorHandler } from '@/server/errors';
 import { inlineAnalyser } from '@/server/services/analysis-pool';
 import type { Analyser } from '@/server/services/analysis-pool';
+import { describeAudit } from '@/lib/auth/audit';
 import { BASE_URL, signIn, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
 
@@ -55,7 +56,7 @@ function cellFile(device: string, scale: number, rs_ohm = 0.036547): Buffer {
 }
 
 let h: Harness;
-let tester: Agent, qa: Agent, qa2: Agent, designer: Agent;
+let admin: Agent, tester: Agent, qa: Agent, qa2: Agent, designer: Agent;
 let server: http.Server;
 let cookieHeader = '';
 let slowRequest: http.ClientRequest | null = null;
@@ -93,7 +94,7 @@ async function cookieOf(email: string): Promise<string> {
 
 beforeAll(async () => {
   h = await startHarness({ analyser: gatedAnalyser });
-  await signUp(h.app, { email: `admin@${ORG}` });
+  admin = await signUp(h.app, { email: `admin@${ORG}` });
   tester = await signUp(h.app, { email: `tester@${ORG}`, name: 'Tess Tester' });
   await signUp(h.app, { email: `qa@${ORG}`, name: 'Quentin QA' });
   await signUp(h.app, { email: `qa2@${ORG}`, name: 'Quinta QA' });
@@ -270,6 +271,33 @@ describe('release is deliberate', () => {
     expect((await qa.post(`/api/batches/${own.id}/submit`).send({})).status).toBe(200);
     const self = await qa.post(`/api/batches/${own.id}/decision`).send({ decision: 'release', spec_id: loose });
     expect([self.status, self.body.code]).toEqual([403, 'same_person']);
+  });
+
+  it('an administrator may turn separation of duties off (recorded); then the submitter releases; only an admin may change it', async () => {
+    expect((await admin.get('/api/organization')).body.separate_release).toBe(true);
+    expect((await qa.patch('/api/organization').send({ separate_release: false })).status).toBe(403);
+    const empty = await admin.patch('/api/organization').send({});
+    expect([empty.status, empty.body.code]).toEqual([400, 'invalid_input']);
+    expect(empty.body.message).toMatch(/Name a setting to change/);
+    expect((await admin.patch('/api/organization').send({ separate_release: 'no' })).status).toBe(400);
+
+    const own = await makeBatch('own-off', qa);
+    expect((await qa.post(`/api/batches/${own.id}/submit`).send({})).status).toBe(200);
+    expect((await qa.get(`/api/batches/${own.id}/reviews`)).body.release_check.allowed).toBe(false);
+
+    const off = await admin.patch('/api/organization').send({ separate_release: false });
+    expect([off.status, off.body.separate_release, off.body.join_by_domain]).toEqual([200, false, false]);
+    expect((await qa.get(`/api/batches/${own.id}/reviews`)).body.release_check).toEqual({ allowed: true });
+    expect((await qa.post(`/api/batches/${own.id}/decision`).send({ decision: 'release', spec_id: loose })).status).toBe(200);
+    const audit = (await admin.get('/api/organization/audit')).body.entries;
+    expect(audit[0]).toMatchObject({ action: 'setting_changed' });
+    expect(describeAudit(audit[0])).toMatch(/turned separation of duties at release off/);
+
+    expect((await admin.patch('/api/organization').send({ separate_release: true })).body.separate_release).toBe(true);
+    const again = await makeBatch('own-on', qa);
+    expect((await qa.post(`/api/batches/${again.id}/submit`).send({})).status).toBe(200);
+    const refused = await qa.post(`/api/batches/${again.id}/decision`).send({ decision: 'release', spec_id: loose });
+    expect([refused.status, refused.body.code]).toEqual([403, 'same_person']);
   });
 });
 

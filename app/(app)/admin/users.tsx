@@ -5,13 +5,14 @@ import { InvitePanel } from '@/components/invite-panel';
 import { JoinRequests } from '@/components/join-requests';
 import { JoinSetting } from '@/components/join-setting';
 import { MemberRow } from '@/components/member-row';
+import { ReleaseDutiesSetting } from '@/components/release-duties-setting';
 import { QueryState } from '@/components/query-state';
 import { Screen } from '@/components/screen';
 import { theme } from '@/components/theme';
 import { useMe } from '@/lib/api/session';
 import { useUsers } from '@/lib/api/users';
 
-/** Administrators: members and roles, requests to join, invitations, the joining setting and the record of changes. */
+/** Administrators: members and roles, requests to join, invitations, the joining and release settings and the record of changes. */
 export default function UsersScreen() {
   const users = useUsers();
   const me = useMe();
@@ -29,6 +30,7 @@ export default function UsersScreen() {
       <JoinRequests />
       <InvitePanel />
       <JoinSetting />
+      <ReleaseDutiesSetting />
     </>
   );
   return (
