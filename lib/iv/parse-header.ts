@@ -35,7 +35,9 @@ export const normName = (s: string) => s.toLowerCase().replace(/[^a-z]/g, '');
 export const normUnit = (s: string) => s.trim().toLowerCase().replace(/\s+/g, '');
 
 /** Irradiance units → W/m². "suns" as 1000 W/m² each (the STC irradiance, IEC 60904-3). */
-export const IRRADIANCE_UNITS: Record<string, number> = { '': 1, 'w/m2': 1, wm2: 1, 'w/m^2': 1, 'kw/m2': 1000, kwm2: 1000, 'kw/m^2': 1000, 'w/cm2': 1e4, 'mw/cm2': 10, suns: 1000, sun: 1000 };
+export const IRRADIANCE_UNITS: Record<string, number> = {
+  '': 1, 'w/m2': 1, wm2: 1, 'w/m^2': 1, 'wm-2': 1, 'w.m-2': 1, 'w·m-2': 1, 'kw/m2': 1000, kwm2: 1000, 'kw/m^2': 1000, 'kwm-2': 1000, 'w/cm2': 1e4, 'mw/cm2': 10, suns: 1000, sun: 1000,
+};
 const IRRADIANCE_COLUMNS = new Set(['irradiance', 'g', 'irr', 'irradiancewm', 'irradiancekwm', 'intensity', 'poairradiance', 'gpoa', 'gmeas', 'measuredirradiance', 'irradiancemeasured', 'suns', 'sun']);
 const TEMPERATURE_COLUMNS = new Set(['temperature', 'temp', 'tempc', 'tcell', 'celltemperature', 'celltemp', 'moduletemperature', 'moduletemp', 'tmod', 'tmodule', 'devicetemperature']);
 
@@ -49,6 +51,12 @@ export function irradianceNameUnit(cell: string): { name: string; unit: string }
   const inUnit = /^(.*?)\s+in\s+(\S+)$/i.exec(cell.trim());
   if (inUnit) return { name: inUnit[1], unit: inUnit[2] };
   return splitNameUnit(cell);
+}
+
+/** Name and unit of a temperature cell with the unit glued on: "T_cell_C", "temperature_K", "Temp degC". */
+export function temperatureNameUnit(cell: string): { name: string; unit: string } {
+  const glued = /^(.*?)[\s_]+(°?c|k|degc)$/i.exec(cell.trim());
+  return glued ? { name: glued[1], unit: glued[2] } : splitNameUnit(cell);
 }
 
 /** Which roles the cells of a row name, by the column name rules alone (units are checked by readHeader). */
@@ -80,7 +88,7 @@ function sideColumn(cell: string, idx: number, notes: string[]): { kind: 'g' | '
     }
     return { kind: 'g', col: { idx, cell, factor, offset: 0 } };
   }
-  const t = splitNameUnit(cell);
+  const t = TEMPERATURE_COLUMNS.has(normName(splitNameUnit(cell).name)) ? splitNameUnit(cell) : temperatureNameUnit(cell);
   const tKey = normName(t.name);
   const u = plainUnit(t.unit);
   // A bare "T" is a temperature only with a temperature unit: "t" alone is as often a time.

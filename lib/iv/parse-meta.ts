@@ -9,15 +9,15 @@
 import { IvInputError } from '@/lib/iv/errors';
 import { clip, NUMBER_RE, splitRow } from '@/lib/iv/parse-cells';
 import type { Separator } from '@/lib/iv/parse-cells';
-import { IRRADIANCE_UNITS, irradianceNameUnit, normName, plainUnit, splitNameUnit } from '@/lib/iv/parse-header';
+import { IRRADIANCE_UNITS, irradianceNameUnit, normName, plainUnit, splitNameUnit, temperatureNameUnit } from '@/lib/iv/parse-header';
 import type { CurveMeta, MetaEntry } from '@/lib/iv/types';
 
 type MetaKey = Exclude<keyof CurveMeta, 'extra' | 'irradiance_spread_pct'>;
 const META_KEYS: Record<string, MetaKey> = {};
-for (const k of ['deviceid', 'device', 'id', 'serial', 'serialnumber', 'serialno', 'sn', 'sample', 'sampleid', 'module', 'moduleid', 'moduleserial', 'moduleserialnumber', 'barcode', 'cell', 'cellid', 'name']) META_KEYS[k] = 'device_id';
+for (const k of ['deviceid', 'device', 'id', 'serial', 'serialnumber', 'serialno', 'sn', 'sample', 'sampleid', 'module', 'moduleid', 'moduleserial', 'moduleserialnumber', 'moduleserialno', 'modulesn', 'samplename', 'dut', 'barcode', 'cell', 'cellid', 'name']) META_KEYS[k] = 'device_id';
 for (const k of ['celltemperature', 'temperature', 'temp', 'tempc', 'celltemp', 'tcell', 't', 'devicetemperature', 'moduletemperature', 'moduletemp', 'tmod', 'tmodule']) META_KEYS[k] = 'temp_c';
 for (const k of ['irradiance', 'g', 'irradiancewm', 'irr', 'intensity', 'poairradiance', 'gpoa', 'measuredirradiance', 'suns']) META_KEYS[k] = 'irradiance_w_m2';
-for (const k of ['cells', 'cellsinseries', 'ns', 'numberofcells', 'noofcells', 'cellcount', 'seriescells', 'ncells', 'cellsseries', 'cellspermodule']) META_KEYS[k] = 'cells';
+for (const k of ['cells', 'cellsinseries', 'ns', 'numberofcells', 'noofcells', 'cellcount', 'seriescells', 'ncells', 'cellsseries', 'cellspermodule', 'numberofcellsinseries', 'cellsinserie']) META_KEYS[k] = 'cells';
 for (const k of ['area', 'areacm', 'devicearea', 'cellarea', 'modulearea', 'totalarea', 'aperturearea']) META_KEYS[k] = 'area_cm2';
 for (const k of ['measuredat', 'measured', 'timestamp', 'datetime']) META_KEYS[k] = 'measured_at';
 // A date and a time on two lines make one measurement time.
@@ -76,7 +76,8 @@ function parseMetaValue(field: MetaKey, raw: string, unitFromKey: string, lineNo
       return g;
     }
     case 'cells': {
-      if (!(Number.isInteger(parsed.value) && parsed.value >= 1 && parsed.value <= 10000) || unit !== '') bad('cells in series must be a whole number from 1 to 10000');
+      // A count has no unit: "Cells (series)" or "60 cells" say what is counted.
+      if (!(Number.isInteger(parsed.value) && parsed.value >= 1 && parsed.value <= 10000) || !['', 'cells', 'cell', 'pcs'].includes(parsed.unit)) bad('cells in series must be a whole number from 1 to 10000');
       return parsed.value;
     }
     case 'area_cm2': {
@@ -164,7 +165,9 @@ export function readMetaLine(block: MetaBlock, text: string, sep: Separator, lin
   if (!META_KEYS[normName(name)]) {
     // "irradiance_kWm2", "G_W_m2": a unit glued to the name.
     const g = irradianceNameUnit(keyText);
+    const t = temperatureNameUnit(keyText);
     if (META_KEYS[normName(g.name)] === 'irradiance_w_m2') ({ name, unit } = g);
+    else if (META_KEYS[normName(t.name)] === 'temp_c') ({ name, unit } = t);
   }
   const norm = normName(name);
   const field = META_KEYS[norm];

@@ -147,7 +147,7 @@ export function parseIvText(text: string, opts: ParseOptions = {}): IvCurve {
         headerCells = cells.length;
         g = sideValues(header.g);
         t = sideValues(header.t);
-        if (headerLike) notes.push(`line ${headerLike.line} names ${columnRoles(headerLike.cells).voltage ? 'a voltage' : 'a current'} column but not both; the table starts on line ${lineNo}`);
+        if (headerLike) notes.push(`line ${headerLike.line} names ${columnRoles(headerLike.cells).voltage ? 'a voltage' : columnRoles(headerLike.cells).current ? 'a current' : 'a current density'} column but not both; the table starts on line ${lineNo}`);
         finishMetaBlock(block);
         continue;
       }

@@ -78,6 +78,9 @@ describe('header blocks of every usual form (invented files)', () => {
     ['semicolon with decimal comma', 'Irradiance;950,0;W/m2\nArea (m2);1,6', { irradiance_w_m2: 950, area_cm2: 16000 }],
     ['key = value and key: value without #', 'Cells in series = 60\nModule ID: KX-9', { cells: 60, device_id: 'KX-9' }],
     ['trailing empty cells', 'Module ID,KX-1,,,\nCells,60,,', { device_id: 'KX-1', cells: 60 }],
+    ['units written other ways', 'Irradiance (W m-2),950\nTemperature_C,27\nCell temp (degC),27', { irradiance_w_m2: 950, temp_c: 27 }],
+    ['a count with words', 'Cells (series),60\nModule serial no.,KX-7', { cells: 60, device_id: 'KX-7' }],
+    ['a count with its unit', 'Number of cells in series,60 cells', { cells: 60 }],
   ])('%s', (_name, block, expected) => {
     const c = parseIvText(`${block}\n\n${table}`);
     for (const [k, v] of Object.entries(expected)) {
@@ -219,6 +222,19 @@ describe('an irradiance column sets the measurement irradiance (invented lamp re
     expect(err.message).toMatch(/irradiance value "-5" in column "G \(W\/m2\)" is -5 W\/m²; it must lie above 0/);
     rows[4] = `${refPoints[4][0]},${refPoints[4][1]},dark`;
     expect(caught(() => parseIvText(['V,I,G (W/m2)', ...rows].join('\n'))).line).toBe(6);
+  });
+
+  it.each([
+    ['irradiance_Wm2', 1, 0],
+    ['G_kW_m2', 1000, 0],
+    ['T_cell_C', 0, 1],
+    ['temperature_K', 0, 1],
+  ])('a unit glued to the column name: %s', (name, gScale, tScale) => {
+    // Column 3 holds 0.95 (kW/m²) or 950 (W/m²) or 300.15 K / 27 °C.
+    const value = gScale === 1000 ? 0.95 : gScale === 1 ? 950 : name.endsWith('K') ? 300.15 : 27;
+    const c = parseIvText([`V,I,${name}`, ...refPoints.map(([v, i]) => `${v},${i},${value}`)].join('\n'));
+    if (gScale) expect(c.meta.irradiance_w_m2).toBeCloseTo(950, 9);
+    if (tScale) expect(c.meta.temp_c).toBeCloseTo(27, 9);
   });
 
   it('a column with an unknown irradiance unit is not used and the note says why', () => {
