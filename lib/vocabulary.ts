@@ -57,6 +57,7 @@ export const QUANTITIES: readonly Quantity[] = [
   q('curve', 'current_a', 'Current', 'A'),
   q('curve', 'temp_c', 'Cell temperature', '°C'),
   q('curve', 'irradiance_w_m2', 'Irradiance', 'W/m²'),
+  q('curve', 'irradiance_spread_pct', 'Irradiance change during the sweep', '%', { decimals: 1 }),
   q('curve', 'cells', 'Cells in series', '', count),
   q('curve', 'area_cm2', 'Area', 'cm²'),
   q('curve', 'nameplate_w', 'Nameplate power', 'W'),

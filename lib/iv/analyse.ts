@@ -3,6 +3,7 @@ import { fitConditions } from '@/lib/iv/fit-common';
 import { fitDoubleDiode } from '@/lib/iv/fit-double';
 import { fitSingleDiode } from '@/lib/iv/fit-single';
 import { keyFigures } from '@/lib/iv/key-figures';
+import { measurementFlags } from '@/lib/iv/meta-flags';
 import type { FitObjective, FitResult, Flag, IvCurve, Metrics, SingleDiodeFit } from '@/lib/iv/types';
 
 /** Options of `analyseCurve`; temp_c and cells override the curve's metadata. */
@@ -26,6 +27,7 @@ const POOR_FIT_SHARE = 0.01;
 export function analyseCurve(curve: IvCurve, opts: AnalyseOptions = {}): { metrics: Metrics; flags: Flag[]; fits: FitResult[] } {
   const { metrics, flags } = keyFigures(curve);
   const { temp_c, cells } = fitConditions(curve, opts);
+  flags.push(...measurementFlags(curve.meta));
   if (opts.temp_c === undefined && curve.meta?.temp_c === undefined) {
     flags.push({
       code: 'temperature-assumed',

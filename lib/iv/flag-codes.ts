@@ -13,6 +13,7 @@ export const FLAG_CODES = {
   'voc-extrapolated': 'Voc extrapolated',
   'temperature-assumed': 'Temperature assumed 25 °C',
   'high-voltage': `Above ${ELV_LIMIT_V} V DC`,
+  'irradiance-unsteady': 'Irradiance changed more than 2 % during the sweep',
 } as const;
 
 export type FlagCode = keyof typeof FLAG_CODES;

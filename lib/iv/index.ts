@@ -5,6 +5,7 @@
 export { IvInputError } from '@/lib/iv/errors';
 export type {
   CurveMeta,
+  MetaEntry,
   DoubleDiodeFit,
   DoubleDiodeParams,
   FitModel,

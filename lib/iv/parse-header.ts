@@ -1,7 +1,9 @@
-/** The header row (voltage and current columns with their units) and the "# key: value" metadata lines of I-V text. */
+/**
+ * The header row of I-V text: which cells name the voltage and current columns (with their units),
+ * and the optional irradiance and temperature columns. The lines before it are read in parse-meta.ts.
+ */
 import { IvInputError } from '@/lib/iv/errors';
 import { clip, NUMBER_RE } from '@/lib/iv/parse-cells';
-import type { CurveMeta } from '@/lib/iv/types';
 
 const VOLTAGE_NAMES = new Set(['v', 'u', 'volt', 'volts', 'voltage', 'bias', 'biasvoltage', 'vbias', 'vmeas', 'measuredvoltage', 'terminalvoltage', 'voltagemeasured']);
 const CURRENT_NAMES = new Set(['i', 'current', 'curr', 'amps', 'ampere', 'amperes', 'imeas', 'measuredcurrent', 'terminalcurrent', 'currentmeasured']);
@@ -10,7 +12,7 @@ const VOLTAGE_UNITS: Record<string, number> = { '': 1, v: 1, volt: 1, volts: 1, 
 const CURRENT_UNITS: Record<string, number> = { '': 1, a: 1, amp: 1, amps: 1, ma: 1e-3, ua: 1e-6, 'µa': 1e-6, 'μa': 1e-6, na: 1e-9 };
 
 /** Splits a header cell like "Voltage (mV)", "current_a", "I / mA" or "V [V]" into name and unit. */
-function splitNameUnit(cell: string): { name: string; unit: string } {
+export function splitNameUnit(cell: string): { name: string; unit: string } {
   const text = cell.trim().replace(/^["']|["']$/g, '').trim();
   const bracket = /^(.*?)[\s_]*[([]\s*([^)\]]*?)\s*[)\]]\s*$/.exec(text);
   if (bracket) return { name: bracket[1], unit: bracket[2] };
@@ -29,86 +31,81 @@ function splitNameUnit(cell: string): { name: string; unit: string } {
   return { name: text, unit: '' };
 }
 
-const normName = (s: string) => s.toLowerCase().replace(/[^a-z]/g, '');
-const normUnit = (s: string) => s.trim().toLowerCase().replace(/\s+/g, '');
+export const normName = (s: string) => s.toLowerCase().replace(/[^a-z]/g, '');
+export const normUnit = (s: string) => s.trim().toLowerCase().replace(/\s+/g, '');
 
-type MetaKey = keyof CurveMeta;
-const META_KEYS: Record<string, MetaKey> = {};
-for (const k of ['deviceid', 'device', 'id', 'serial', 'serialnumber', 'serialno', 'sn', 'sample', 'sampleid', 'module', 'moduleid', 'cell', 'cellid', 'name']) META_KEYS[k] = 'device_id';
-for (const k of ['celltemperature', 'temperature', 'temp', 'tempc', 'celltemp', 'tcell', 't', 'devicetemperature', 'moduletemperature']) META_KEYS[k] = 'temp_c';
-for (const k of ['irradiance', 'g', 'irradiancewm', 'irr', 'intensity', 'poairradiance']) META_KEYS[k] = 'irradiance_w_m2';
-for (const k of ['cells', 'cellsinseries', 'ns', 'numberofcells', 'cellcount', 'seriescells', 'ncells', 'cellsseries']) META_KEYS[k] = 'cells';
-for (const k of ['area', 'areacm', 'devicearea', 'cellarea', 'modulearea', 'totalarea', 'aperturearea']) META_KEYS[k] = 'area_cm2';
-for (const k of ['measuredat', 'date', 'measured', 'timestamp', 'time', 'datetime', 'measurementdate', 'measurementtime']) META_KEYS[k] = 'measured_at';
+/** Irradiance units → W/m². "suns" as 1000 W/m² each (the STC irradiance, IEC 60904-3). */
+export const IRRADIANCE_UNITS: Record<string, number> = {
+  '': 1, 'w/m2': 1, wm2: 1, 'w/m^2': 1, 'wm-2': 1, 'w.m-2': 1, 'w·m-2': 1, 'kw/m2': 1000, kwm2: 1000, 'kw/m^2': 1000, 'kwm-2': 1000, 'w/cm2': 1e4, 'mw/cm2': 10, suns: 1000, sun: 1000,
+};
+const IRRADIANCE_COLUMNS = new Set(['irradiance', 'g', 'irr', 'irradiancewm', 'irradiancekwm', 'intensity', 'poairradiance', 'gpoa', 'gmeas', 'measuredirradiance', 'irradiancemeasured', 'suns', 'sun']);
+const TEMPERATURE_COLUMNS = new Set(['temperature', 'temp', 'tempc', 'tcell', 'celltemperature', 'celltemp', 'moduletemperature', 'moduletemp', 'tmod', 'tmodule', 'devicetemperature']);
 
-/** A metadata number with an optional unit: "25 °C", "0,1 m²", "1 kW/m2". */
-function metaNumber(raw: string, lineNo: number, key: string): { value: number; unit: string } {
-  const m = /^([+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?)\s*(.*)$/.exec(raw.trim());
-  if (!m) throw new IvInputError('bad-metadata', `metadata "${clip(key)}" should be a number, got "${clip(raw)}"`, lineNo);
-  return { value: Number(m[1].replace(',', '.')), unit: normUnit(m[2]).replace(/²/g, '2').replace(/^°|^deg/, '') };
+/** A unit as the metadata and column rules compare it: lower case, no spaces, "²" as "2", no degree sign. */
+export const plainUnit = (u: string) => normUnit(u).replace(/²/g, '2').replace(/^°|^deg/, '');
+
+/** Name and unit of an irradiance cell; also "irradiance_W_m2", "G_kWm2", "Irradiance in W/m²". */
+export function irradianceNameUnit(cell: string): { name: string; unit: string } {
+  const glued = /^(.*?)[\s_]+(k?w)[\s_/]*(c?m)\^?[\s_]*[2²]$/i.exec(cell.trim());
+  if (glued) return { name: glued[1], unit: `${glued[2]}/${glued[3]}2` };
+  const inUnit = /^(.*?)\s+in\s+(\S+)$/i.exec(cell.trim());
+  if (inUnit) return { name: inUnit[1], unit: inUnit[2] };
+  return splitNameUnit(cell);
 }
 
-function parseMetaValue(field: MetaKey, raw: string, unitFromKey: string, lineNo: number, key: string): CurveMeta[MetaKey] {
-  const value = raw.trim();
-  if (field === 'device_id') {
-    if (value === '') throw new IvInputError('bad-metadata', `metadata "${clip(key)}" is empty`, lineNo);
-    return value;
-  }
-  if (field === 'measured_at') {
-    const ms = Date.parse(value);
-    return Number.isFinite(ms) && /\d{4}/.test(value) ? new Date(ms).toISOString() : value;
-  }
-  const parsed = metaNumber(value, lineNo, key);
-  const unit = parsed.unit || normUnit(unitFromKey).replace(/²/g, '2').replace(/^°|^deg/, '');
-  const bad = (what: string): never => {
-    throw new IvInputError('bad-metadata', `metadata "${clip(key)}": ${what}, got "${clip(raw.trim())}"`, lineNo);
-  };
-  switch (field) {
-    case 'temp_c': {
-      let t = parsed.value;
-      if (unit === 'k') t -= 273.15;
-      else if (unit !== '' && unit !== 'c') bad('temperature must be in °C or K');
-      if (!(t > -100 && t < 250)) bad('cell temperature must lie between −100 °C and 250 °C');
-      return t;
-    }
-    case 'irradiance_w_m2': {
-      const factor: Record<string, number> = { '': 1, 'w/m2': 1, wm2: 1, 'w/m^2': 1, 'kw/m2': 1000, 'w/cm2': 1e4, 'mw/cm2': 10, suns: 1000, sun: 1000 };
-      if (!(unit in factor)) bad('irradiance must be in W/m²');
-      const g = parsed.value * factor[unit];
-      if (!(g > 0 && g <= 5000)) bad('irradiance must be above 0 and at most 5000 W/m²');
-      return g;
-    }
-    case 'cells': {
-      if (!(Number.isInteger(parsed.value) && parsed.value >= 1 && parsed.value <= 10000) || unit !== '') bad('cells in series must be a whole number from 1 to 10000');
-      return parsed.value;
-    }
-    case 'area_cm2': {
-      const factor: Record<string, number> = { '': 1, cm2: 1, 'cm^2': 1, m2: 1e4, 'm^2': 1e4, mm2: 0.01, 'mm^2': 0.01 };
-      if (!(unit in factor)) bad('area must be in cm², m² or mm²');
-      const area = parsed.value * factor[unit];
-      if (!(area > 0 && area < 1e6)) bad('area must be positive (and below 100 m²)');
-      return area;
-    }
-  }
-  return undefined;
+/** Name and unit of a temperature cell with the unit glued on: "T_cell_C", "temperature_K", "Temp degC". */
+export function temperatureNameUnit(cell: string): { name: string; unit: string } {
+  const glued = /^(.*?)[\s_]+(°?c|k|degc)$/i.exec(cell.trim());
+  return glued ? { name: glued[1], unit: glued[2] } : splitNameUnit(cell);
 }
 
-/** Reads a metadata line ("# key: value") into meta; a line without a key is a plain comment. */
-export function readMetaLine(line: string, lineNo: number, meta: CurveMeta, notes: string[]): void {
-  const body = line.replace(/^\s*(#|\/\/)\s*/, '');
-  const m = /^([^:=]+?)\s*[:=]\s*(.*)$/.exec(body);
-  if (!m) return;
-  const { name, unit } = splitNameUnit(m[1]);
-  const field = META_KEYS[normName(name)];
-  if (!field) {
-    notes.push(`metadata "${m[1].trim()}" on line ${lineNo} is not used`);
-    return;
+/** Which roles the cells of a row name, by the column name rules alone (units are checked by readHeader). */
+export function columnRoles(cells: readonly string[]): { voltage: boolean; current: boolean; density: boolean } {
+  const roles = { voltage: false, current: false, density: false };
+  for (const cell of cells) {
+    if (cell === '') continue;
+    const key = normName(splitNameUnit(cell).name);
+    if (VOLTAGE_NAMES.has(key)) roles.voltage = true;
+    else if (CURRENT_NAMES.has(key)) roles.current = true;
+    else if (DENSITY_NAMES.has(key)) roles.density = true;
   }
-  const value = parseMetaValue(field, m[2], unit, lineNo, m[1].trim());
-  (meta as Record<MetaKey, CurveMeta[MetaKey]>)[field] = value;
+  return roles;
 }
 
-/** Voltage and current column positions and unit factors, from the header row. */
+/** A column read beside voltage and current: its position, the header text and how a cell becomes W/m² or °C. */
+export type SideColumn = { idx: number; cell: string; factor: number; offset: number };
+
+/** The irradiance or temperature column a header cell names, or a note why it is not used; null for other cells. */
+function sideColumn(cell: string, idx: number, notes: string[]): { kind: 'g' | 't'; col: SideColumn } | null {
+  const g = irradianceNameUnit(cell);
+  const gKey = normName(g.name);
+  if (IRRADIANCE_COLUMNS.has(gKey)) {
+    const u = plainUnit(g.unit);
+    const factor = u === '' && (gKey === 'suns' || gKey === 'sun') ? 1000 : IRRADIANCE_UNITS[u];
+    if (factor === undefined) {
+      notes.push(`column "${clip(cell)}" not read as irradiance: unknown unit "${clip(g.unit)}" (use W/m², kW/m² or suns)`);
+      return null;
+    }
+    return { kind: 'g', col: { idx, cell, factor, offset: 0 } };
+  }
+  const t = TEMPERATURE_COLUMNS.has(normName(splitNameUnit(cell).name)) ? splitNameUnit(cell) : temperatureNameUnit(cell);
+  const tKey = normName(t.name);
+  const u = plainUnit(t.unit);
+  // A bare "T" is a temperature only with a temperature unit: "t" alone is as often a time.
+  if (TEMPERATURE_COLUMNS.has(tKey) || (tKey === 't' && (u === 'c' || u === 'k'))) {
+    if (u !== '' && u !== 'c' && u !== 'k') {
+      notes.push(`column "${clip(cell)}" not read as temperature: unknown unit "${clip(t.unit)}" (use °C or K)`);
+      return null;
+    }
+    return { kind: 't', col: { idx, cell, factor: 1, offset: u === 'k' ? -273.15 : 0 } };
+  }
+  return null;
+}
+
+/**
+ * Voltage and current column positions and unit factors from the header row, and the irradiance
+ * (`g`, to W/m²) and temperature (`t`, to °C) columns when the header names them.
+ */
 export function readHeader(cells: string[], lineNo: number, notes: string[]) {
   if (cells.every((c) => c === '' || NUMBER_RE.test(c.replace(',', '.')))) {
     throw new IvInputError('no-header', 'expected a header row naming the voltage and current columns (for example "V,I" or "Voltage (mV);Current (mA)"), found numbers', lineNo);
@@ -117,6 +114,8 @@ export function readHeader(cells: string[], lineNo: number, notes: string[]) {
   let i = -1;
   let vFactor = 1;
   let iFactor = 1;
+  let g: SideColumn | null = null;
+  let t: SideColumn | null = null;
   const ignored: string[] = [];
   let density = '';
   cells.forEach((cell, idx) => {
@@ -135,8 +134,13 @@ export function readHeader(cells: string[], lineNo: number, notes: string[]) {
       i = idx;
       iFactor = CURRENT_UNITS[u];
     } else if (cell !== '') {
-      if (DENSITY_NAMES.has(key)) density = cell;
-      ignored.push(cell);
+      const side = g && t ? null : sideColumn(cell, idx, notes);
+      if (side?.kind === 'g' && !g) g = side.col;
+      else if (side?.kind === 't' && !t) t = side.col;
+      else {
+        if (DENSITY_NAMES.has(key)) density = cell;
+        ignored.push(cell);
+      }
     }
   });
   const SHOWN_CELLS = 8;
@@ -149,5 +153,5 @@ export function readHeader(cells: string[], lineNo: number, notes: string[]) {
   if (ignored.length) notes.push(`columns not used: ${ignored.join(', ')}`);
   if (vFactor !== 1) notes.push('voltage converted from mV to V');
   if (iFactor !== 1) notes.push(`current converted to A (×${iFactor})`);
-  return { v, i, vFactor, iFactor };
+  return { v, i, vFactor, iFactor, g: g as SideColumn | null, t: t as SideColumn | null };
 }

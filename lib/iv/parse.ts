@@ -1,14 +1,19 @@
 /**
  * Reading measured I-V text: CSV, TSV, semicolon-separated (decimal comma allowed there) or
- * whitespace-separated, with optional `# key: value` metadata lines before the header and an
+ * whitespace-separated, with an optional header block before the table (`# key: value`,
+ * `key,value`, `key;value`, `key<TAB>value`, `key = value`, a title, blank lines) and an
  * optional Excel "sep=;" line. Quoted cells may hold the separator (RFC 4180).
  * Every problem becomes an IvInputError naming the line and what is wrong. Cells and numbers
- * are read in parse-cells.ts, the header and the metadata lines in parse-header.ts.
+ * are read in parse-cells.ts, the header row in parse-header.ts, the header block in
+ * parse-meta.ts, irradiance and temperature columns in parse-conditions.ts.
  */
 import { IvInputError } from '@/lib/iv/errors';
-import { clip, detectSeparator, EXCEL_SEP_RE, parseNumber, splitRow } from '@/lib/iv/parse-cells';
+import { clip, detectSeparator, EXCEL_SEP_RE, NUMBER_RE, parseNumber, splitRow } from '@/lib/iv/parse-cells';
 import type { Separator } from '@/lib/iv/parse-cells';
-import { readHeader, readMetaLine } from '@/lib/iv/parse-header';
+import { addSideValue, applySideColumns, sideValues } from '@/lib/iv/parse-conditions';
+import type { SideValues } from '@/lib/iv/parse-conditions';
+import { columnRoles, readHeader } from '@/lib/iv/parse-header';
+import { finishMetaBlock, newMetaBlock, readMetaLine } from '@/lib/iv/parse-meta';
 import type { CurveMeta, IvCurve } from '@/lib/iv/types';
 
 /** Largest accepted file, bytes (10 MiB). */
@@ -63,9 +68,33 @@ export function checkCurveReach(voltage_v: readonly number[], current_a: readonl
 
 const fmt = (x: number) => Number(x.toPrecision(4)).toString();
 
+/** A row before the table that names a voltage, current or density column but not both voltage and current. */
+type HeaderLike = { cells: string[]; line: number };
+
+/**
+ * The error when the header block runs into numbers or the file ends before a table: the first
+ * line that looked like a header says what it lacks; else the tabular line just before the numbers
+ * (when it is not a known metadata key) is taken as the intended header; else the line is named.
+ */
+function noTable(notes: string[], at: { cells: string[]; line: number } | null, headerLike: HeaderLike | null, previous: HeaderLike | null, lastLine: { text: string; line: number } | null, read: number): never {
+  if (headerLike) readHeader(headerLike.cells, headerLike.line, notes);
+  if (at) {
+    if (previous && previous.line === at.line - 1) readHeader(previous.cells, previous.line, notes);
+    readHeader(at.cells, at.line, notes);
+  }
+  if (!lastLine) throw new IvInputError('no-header', 'the file has no header row and no data; expected a header such as "V,I" followed by numbers', 1);
+  throw new IvInputError(
+    'no-header',
+    `no header row naming a voltage and a current column (for example "V,I" or "Voltage (V);Current (A)") in the ${read.toLocaleString('en-US')} line${read === 1 ? '' : 's'} read; the last one is "${clip(lastLine.text.trim())}". The lines before the table are read as metadata (key,value or key: value)`,
+    lastLine.line,
+  );
+}
+
 /**
  * Parses I-V text into a curve sorted by voltage, in volts and amperes, generator convention.
- * device_id falls back to the file name without extension; `overrides` win over file metadata.
+ * Lines before the table are the header block (parse-meta.ts); the table starts at the first
+ * row naming a voltage and a current column. device_id falls back to the file name without
+ * extension; `overrides` win over file metadata.
  */
 export function parseIvText(text: string, opts: ParseOptions = {}): IvCurve {
   if (typeof text !== 'string') throw new IvInputError('not-text', 'the I-V input must be text');
@@ -73,32 +102,64 @@ export function parseIvText(text: string, opts: ParseOptions = {}): IvCurve {
   const lines = text.replace(/^\uFEFF/, '').split(/\r\n|\n|\r/);
   const meta: CurveMeta = {};
   const notes: string[] = [];
+  const block = newMetaBlock(meta, notes);
 
   let header: ReturnType<typeof readHeader> | null = null;
   let sep: Separator = ',';
   let named: Separator | null = null;
   let headerLine = 0;
   let headerCells = 0;
+  let headerLike: HeaderLike | null = null;
+  let previous: HeaderLike | null = null;
+  let lastLine: { text: string; line: number } | null = null;
+  let read = 0;
+  let g: SideValues | null = null;
+  let t: SideValues | null = null;
   const rows: { v: number; i: number; line: number }[] = [];
   for (let idx = 0; idx < lines.length; idx++) {
     const lineNo = idx + 1;
     const line = lines[idx];
     if (line.trim() === '') continue;
     if (/^\s*(#|\/\/)/.test(line)) {
-      if (!header) readMetaLine(line, lineNo, meta, notes);
+      if (!header) {
+        const body = line.replace(/^\s*(#|\/\/)\s*/, '');
+        readMetaLine(block, body, named ?? detectSeparator(body), lineNo, false);
+        lastLine = { text: line, line: lineNo };
+        read++;
+      }
       continue;
     }
     if (!header) {
+      lastLine = { text: line, line: lineNo };
+      read++;
       const excel = EXCEL_SEP_RE.exec(line);
       if (excel && !named) {
         named = excel[1] === ' ' ? 'space' : (excel[1] as Separator);
         continue;
       }
-      sep = named ?? detectSeparator(line);
-      const headerRow = splitRow(line, sep);
-      header = readHeader(headerRow, lineNo, notes);
-      headerLine = lineNo;
-      headerCells = headerRow.length;
+      const lineSep = named ?? detectSeparator(line);
+      const cells = splitRow(line, lineSep);
+      const roles = columnRoles(cells);
+      if (roles.voltage && roles.current) {
+        sep = lineSep;
+        header = readHeader(cells, lineNo, notes);
+        headerLine = lineNo;
+        headerCells = cells.length;
+        g = sideValues(header.g);
+        t = sideValues(header.t);
+        if (headerLike) notes.push(`line ${headerLike.line} names ${columnRoles(headerLike.cells).voltage ? 'a voltage' : columnRoles(headerLike.cells).current ? 'a current' : 'a current density'} column but not both; the table starts on line ${lineNo}`);
+        finishMetaBlock(block);
+        continue;
+      }
+      const filled = cells.filter((c) => c !== '');
+      if (filled.length >= 2 && filled.every((c) => NUMBER_RE.test(c.replace(',', '.')))) noTable(notes, { cells, line: lineNo }, headerLike, previous, lastLine, read);
+      if (filled.length >= 2 && (roles.voltage || roles.current || roles.density)) {
+        headerLike ??= { cells, line: lineNo };
+        previous = null;
+        continue;
+      }
+      const known = readMetaLine(block, line, lineSep, lineNo, true);
+      previous = filled.length >= 2 && !known ? { cells, line: lineNo } : null;
       continue;
     }
     const cells = splitRow(line, sep);
@@ -120,12 +181,18 @@ export function parseIvText(text: string, opts: ParseOptions = {}): IvCurve {
     const decimalComma = sep === ';';
     const v = parseNumber(cells[header.v], decimalComma, 'voltage', lineNo) * header.vFactor;
     const i = parseNumber(cells[header.i], decimalComma, 'current', lineNo) * header.iFactor;
+    addSideValue(g, 'g', cells, decimalComma, lineNo);
+    addSideValue(t, 't', cells, decimalComma, lineNo);
     rows.push({ v, i, line: lineNo });
   }
-  if (!header) throw new IvInputError('no-header', 'the file has no header row and no data; expected a header such as "V,I" followed by numbers', lines.length > 0 ? 1 : undefined);
+  if (!header) {
+    finishMetaBlock(block);
+    noTable(notes, null, headerLike, null, lastLine, read);
+  }
   if (rows.length < MIN_POINTS) {
     throw new IvInputError('too-few-points', `only ${rows.length} data row${rows.length === 1 ? '' : 's'} after the header on line ${headerLine}; at least ${MIN_POINTS} points are needed`, rows.length ? rows[rows.length - 1].line : headerLine);
   }
+  applySideColumns(meta, g, t, { irradiance: block.lines.irradiance_w_m2, temperature: block.lines.temp_c }, notes);
   if (sep === ';' && text.includes(',')) notes.push('decimal commas read as decimal points');
   return buildCurve(rows, meta, notes, opts);
 }

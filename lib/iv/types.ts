@@ -13,7 +13,17 @@ export type CurveMeta = {
   area_cm2?: number;
   /** Measurement time as written in the file (ISO 8601 when it could be read as a date). */
   measured_at?: string;
+  /**
+   * Change of the irradiance during the sweep, (max − min)/mean × 100 %, when the file has an
+   * irradiance column (then `irradiance_w_m2` is that column's mean); lib/iv/meta-flags.ts flags it above 2 %.
+   */
+  irradiance_spread_pct?: number;
+  /** Lines of the file's header block the reader has no field for, kept as written (key and value text). */
+  extra?: MetaEntry[];
 };
+
+/** One line of a file's header block without a field of its own: "Operator,J. Doe" → { key: 'Operator', value: 'J. Doe' }. */
+export type MetaEntry = { key: string; value: string };
 
 /**
  * A measured curve: voltage ascending, generator convention (current positive while the

@@ -95,7 +95,9 @@ export function buildCorpus(): CorpusEntry[] {
   add('header row repeated inside the data (two files pasted together)', 'pasted.csv', good + good, reject(/line 42: the voltage value "V" is not a number/));
   add('header row written twice at the top', 'header-twice.csv', 'V,I\n' + good, reject(/line 2: the voltage value "V" is not a number/));
   add('formula as the only header', 'formula-header.csv', csv('=SUM(A1:A9),=1+1'), reject(/no voltage column/i));
-  add('HTML page saved as .csv', 'page.csv', '<!doctype html>\n<html><body><table><tr><td>V</td><td>I</td></tr></table></body></html>\n', reject(/no voltage column/i));
+  // Lines without a separator before any table are title lines of a header block: the error names the last one.
+  add('HTML page saved as .csv', 'page.csv', '<!doctype html>\n<html><body><table><tr><td>V</td><td>I</td></tr></table></body></html>\n', reject(/line 2: no header row naming a voltage and a current column/i));
+  add('a header block and no table', 'block-only.csv', 'Module ID,KX-1\nIrradiance,1000,W/m2\n\nOperator,J. Doe\n', reject(/line 4: no header row naming a voltage and a current column/));
   add('JSON saved as .csv', 'data.json.csv', JSON.stringify({ V: V.slice(0, 3), I: I.slice(0, 3) }) + '\n', reject(/only 0 data rows/i));
   add('only comment lines', 'comments.csv', '# device: X-1\n# temperature: 25\n// nothing else\n', reject(/no header row/i));
 
@@ -141,7 +143,9 @@ export function buildCorpus(): CorpusEntry[] {
   add('a device id of 121 characters', 'id-long.csv', `# device: ${'M'.repeat(121)}\n` + good, reject(/device id of id-long\.csv is longer than 120 characters/));
 
   // ---- Very long lines
-  add('a 1 MB header line of unknown columns', 'wide-header.csv', 'x'.repeat(40) + `,col`.repeat(250_000) + '\n' + good, reject(/no voltage column/i));
+  add('a 1 MB header line of unknown columns', 'wide-header.csv', 'x'.repeat(40) + `,col`.repeat(250_000) + '\n' + rows((v, i) => `${v},${i}`).join('\n') + '\n', reject(/line 1: no voltage column/i));
+  // Before a real table the same line is a metadata line: kept, its value cut to 200 characters.
+  add('a 1 MB metadata line before the table', 'wide-meta.csv', 'x'.repeat(40) + `,col`.repeat(250_000) + '\n' + good, accept('wide-meta'));
   add('a 1 MB data line of unnamed values', 'wide-row.csv', withRow(20, `${V[20]},${I[20]}` + ',0'.repeat(500_000)), reject(/line 22: 500,002 values under the 2 columns/));
   add('a 1 MB number in one cell', 'long-number.csv', withRow(3, `${V[3]},0.${'7'.repeat(1_000_000)}x`), reject(/line 5: the current value .* is not a number/));
 
@@ -174,6 +178,7 @@ export function buildCorpus(): CorpusEntry[] {
   add('SQL-looking device id', 'sql-id.csv', "# device: x'); DROP TABLE curve;--\n" + good, accept("x'); DROP TABLE curve;--"));
   add('HTML in the device id', 'html-id.csv', '# device: <img src=x onerror=alert(1)>\n' + good, accept('<img src=x onerror=alert(1)>'));
   add('non-ASCII device id', 'unicode-id.csv', '# device: Modul-Ä-Ω-测试-🔆\n' + good, accept('Modul-Ä-Ω-测试-🔆'));
+  add('a tester’s key,value header block, a title and a blank line before the table', 'block.csv', 'Flash report\nModule ID,KX-1\nIrradiance,1000,W/m2\nTemperature (°C),25\nCells,1\nOperator,"Doe, J."\n\n' + good, accept('KX-1'));
   add('metadata in units: K, kW/m², m², with decimal comma', 'meta-units.csv', '# temperature: 306,15 K\n# irradiance: 1 kW/m2\n# area: 0,00255 m²\n' + good, accept('meta-units'));
   return entries;
 }

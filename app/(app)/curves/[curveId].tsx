@@ -5,6 +5,7 @@ import { Button } from '@/components/button';
 import { Card } from '@/components/card';
 import { CautionBlock } from '@/components/caution-block';
 import { Figure } from '@/components/figure';
+import { FileMetadata } from '@/components/file-metadata';
 import { FlagChip } from '@/components/flag-chip';
 import { IvChart } from '@/components/iv-chart';
 import type { Series } from '@/components/iv-chart';
@@ -104,8 +105,8 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
   const m = c.metrics;
   const residualSets = [single, double].filter((f): f is FitJson => !!f && f.converged && f.residuals_a.length === c.points.voltage_v.length);
   const conditions = [
-    c.meta.temp_c != null ? `${c.meta.temp_c} °C` : '25 °C assumed',
-    c.meta.irradiance_w_m2 != null ? `${c.meta.irradiance_w_m2} W/m²` : 'irradiance not given',
+    c.meta.temp_c != null ? fmtParam('temp_c', c.meta.temp_c) : '25 °C assumed',
+    c.meta.irradiance_w_m2 != null ? fmtParam('irradiance_w_m2', c.meta.irradiance_w_m2) : 'irradiance not given',
     `${c.meta.cells ?? 1} cell${(c.meta.cells ?? 1) === 1 ? '' : 's'} in series`,
     c.meta.area_cm2 != null ? `${c.meta.area_cm2} cm²` : null,
     c.meta.measured_at ? `measured ${c.meta.measured_at}` : null,
@@ -207,6 +208,7 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
           ) : null}
         </Card>
       </View>
+      <FileMetadata meta={c.meta} />
       {c.notes.length ? <Txt variant="caption">Reading the file: {c.notes.join('; ')}.</Txt> : null}
     </Screen>
   );

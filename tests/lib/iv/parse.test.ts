@@ -89,8 +89,16 @@ describe('parseIvText() — metadata and overrides', () => {
       body,
     ].join('\n');
     const c = parseIvText(text);
-    expect(c.meta).toEqual({ device_id: 'QL-2024-0042', temp_c: 33, irradiance_w_m2: 1000, cells: 36, area_cm2: 1200, measured_at: '2024-05-01T10:00:00.000Z' });
-    expect(c.notes.join(' ')).toMatch(/operator/);
+    // A key the reader has no field for is kept on the curve as written (meta.extra).
+    expect(c.meta).toEqual({
+      device_id: 'QL-2024-0042',
+      temp_c: 33,
+      irradiance_w_m2: 1000,
+      cells: 36,
+      area_cm2: 1200,
+      measured_at: '2024-05-01T10:00:00.000Z',
+      extra: [{ key: 'operator', value: 'someone' }],
+    });
   });
 
   it.each([
