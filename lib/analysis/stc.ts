@@ -267,7 +267,8 @@ export function stcOutcome(x: StcInput): StcOutcome {
   const tried: string[] = [];
   for (const method of [measured, procedure1, model]) {
     const r = method(x, from, notes);
-    if (r.ok) return r.stc;
+    // A later method says why the earlier ones were not used (the measured window aside: the conditions say it).
+    if (r.ok) return { ...r.stc, notes: [...tried.slice(1).map((why) => `Not used: ${why}.`), ...r.stc.notes] };
     tried.push(r.why);
   }
   return { method: 'none', from, reason: `no method holds for this curve (${tried.join('; ')}).`, tried, notes };

@@ -58,17 +58,14 @@ export function plausibleCells(voc_v: number, cells: number, temp_c?: number, ir
 export type CellSuggestion = { cells: number; common: boolean; voc_per_cell_v: number };
 
 /**
- * A plausible cell count from the common designs: the one nearest to `given` when a count was
- * given (it contradicts Voc), else the most common design whose Voc per cell fits. When none of
+ * A plausible cell count: the most common design whose Voc per cell fits (a given count that
+ * contradicts Voc says nothing about the right one, so it is not used as a guide). When none of
  * them fits, the count that gives 0.625 V a cell (the middle of the silicon range).
  */
-export function suggestCells(voc_v: number, temp_c: number | undefined, irradiance_w_m2: number | undefined, given?: number): CellSuggestion {
-  const fits = COMMON_CELL_COUNTS.filter((n) => plausibleCells(voc_v, n, temp_c, irradiance_w_m2));
-  if (fits.length) {
-    // `fits` keeps the list's order, most common first: with no count given the first one wins.
-    const best = given ? fits.reduce((a, b) => (Math.abs(b - given) < Math.abs(a - given) ? b : a)) : fits[0];
-    return { cells: best, common: true, voc_per_cell_v: voc_v / best };
-  }
+export function suggestCells(voc_v: number, temp_c: number | undefined, irradiance_w_m2: number | undefined): CellSuggestion {
+  // COMMON_CELL_COUNTS is ordered most common first, and filter keeps that order.
+  const best = COMMON_CELL_COUNTS.find((n) => plausibleCells(voc_v, n, temp_c, irradiance_w_m2));
+  if (best !== undefined) return { cells: best, common: true, voc_per_cell_v: voc_v / best };
   const cells = Math.max(1, Math.round(vocPerCellAtStc(voc_v, 1, temp_c, irradiance_w_m2) / TYPICAL_VOC_PER_CELL_V));
   return { cells, common: false, voc_per_cell_v: voc_v / cells };
 }
@@ -80,8 +77,8 @@ function suggestionText(s: CellSuggestion): string {
 
 /**
  * The cell count the fits use and what to say about it. A given count is used as given; when it
- * puts Voc per cell outside the silicon range, a `cells-check` flag suggests the nearest plausible
- * count. With no count and a Voc above one cell's (1.2 V), the suggestion is used and said
+ * puts Voc per cell outside the silicon range, a `cells-check` flag suggests the most common
+ * plausible count. With no count and a Voc above one cell's (1.2 V), the suggestion is used and said
  * (`cells-unknown`).
  */
 export function cellCountCheck(
@@ -105,7 +102,7 @@ export function cellCountCheck(
     };
   }
   if (plausibleCells(voc, given, temp_c, irradiance_w_m2)) return { cells: given, flag: null };
-  const s = suggestCells(voc, temp_c, irradiance_w_m2, given);
+  const s = suggestCells(voc, temp_c, irradiance_w_m2);
   const atStc = vocPerCellAtStc(voc, given, temp_c, irradiance_w_m2);
   const moved = Math.abs(atStc - voc / given) >= 0.005 ? ` (${v2(atStc)} V at 25 °C and 1000 W/m²)` : '';
   const advice = s.cells === given ? '' : ` ${suggestionText(s)}.`;
