@@ -94,7 +94,8 @@ function measured(x: StcInput, from: StcFigures['from'], notes: string[]): Tried
   const dT = from.temp_c - STC.temp_c;
   const dG = (100 * (from.irradiance_w_m2 - STC.irradiance_w_m2)) / STC.irradiance_w_m2;
   const within = Math.abs(dT) <= STC_TOLERANCE.temp_k && Math.abs(dG) <= STC_TOLERANCE.irradiance_pct;
-  const where = `${fmt(from.temp_c)} °C and ${fmt(from.irradiance_w_m2, 0)} W/m²`;
+  const meta = x.curve.meta;
+  const where = `${fmt(from.temp_c)} °C${meta.temp_c == null ? ' (assumed)' : ''} and ${fmt(from.irradiance_w_m2, 0)} W/m²${meta.irradiance_w_m2 == null ? ' (assumed)' : ''}`;
   if (!within) {
     return { ok: false, why: `measured at ${where}, outside ±${STC_TOLERANCE.temp_k} °C and ±${STC_TOLERANCE.irradiance_pct} % of standard test conditions` };
   }
