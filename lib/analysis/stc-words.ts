@@ -46,14 +46,26 @@ const INPUT_ORDER: (keyof StcInputs)[] = [
   'irradiance_tolerance_pct',
 ];
 
+/** Labels that say more on this card than the key table's (the relative and absolute α share one there). */
+const OWN_LABELS: Partial<Record<keyof StcInputs, string>> = {
+  alpha_pct_per_k: 'α, Isc temperature coefficient (batch)',
+  beta_pct_per_k: 'β, Voc temperature coefficient (batch)',
+  gamma_pct_per_k: 'γ, Pmax temperature coefficient (batch)',
+  alpha_a_per_k: 'α used, in A/K at the STC Isc',
+  beta_v_per_k: 'β used, in V/K at the STC Voc',
+  rs_ohm: 'Rs, internal series resistance',
+  n: 'n of the fit, per cell',
+};
+const WINDOWS = new Set<keyof StcInputs>(['temp_tolerance_k', 'model_temp_window_k', 'irradiance_tolerance_pct']);
+
 /** The numeric inputs of a method as label and shown value ("α, Isc temperature coefficient", "0.05 %/K"). */
 export function stcInputRows(stc: StcOutcome | null | undefined): { key: string; label: string; value: string }[] {
   if (!stc || stc.method === 'none' || !stc.inputs) return [];
   const inputs = stc.inputs as Record<string, unknown>;
   return INPUT_ORDER.filter((k) => typeof inputs[k] === 'number').map((k) => {
     const v = inputs[k] as number;
-    const label = k === 'rs_ohm' ? 'Rs, internal series resistance' : labelOf(k);
-    const shown = k === 'temp_tolerance_k' || k === 'model_temp_window_k' ? `± ${formatValue(k, v)}` : k === 'irradiance_tolerance_pct' ? `± ${formatValue(k, v)}` : formatValue(k, v);
+    const label = OWN_LABELS[k] ?? labelOf(k);
+    const shown = WINDOWS.has(k) ? `± ${formatValue(k, v)}` : formatValue(k, v);
     return { key: k, label, value: shown };
   });
 }
