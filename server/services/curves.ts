@@ -263,9 +263,10 @@ export async function refitCurve(db: Db, analyser: Analyser, who: { organization
     const current = await tx.select().from(fit).where(and(eq(fit.curveId, row.id), eq(fit.current, true)));
     // Without a new single-diode fit the STC outcome is kept (its model method needs that fit).
     const stc = models.includes('single') || !row.stc ? analysis.stc : row.stc;
-    const cols = derivedColumns({ ...analysis, stc, fits: current.map((x) => x.result) });
+    const flags = stc === analysis.stc ? analysis.flags : [...analysis.flags.filter((f) => f.code !== 'stc-unavailable'), ...row.flags.filter((f) => f.code === 'stc-unavailable')];
+    const cols = derivedColumns({ ...analysis, flags, stc, fits: current.map((x) => x.result) });
     const record = comparisonRecord({ id: row.id, batch_id: row.batchId, device_id: row.deviceId }, { ...analysis, stc }, cols);
-    await tx.update(curve).set({ meta, metrics: analysis.metrics, flags: analysis.flags, stc, ...cols, record }).where(eq(curve.id, row.id));
+    await tx.update(curve).set({ meta, metrics: analysis.metrics, flags, stc, ...cols, record }).where(eq(curve.id, row.id));
     // The batch changed: answers cached against its revision must be computed again.
     await touchBatch(tx, row.batchId);
   });

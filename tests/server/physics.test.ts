@@ -293,7 +293,7 @@ describe('GET /api/physics/curves/:id', () => {
   it('returns the stored STC figures unchanged', async () => {
     const c = (await agents.designer.get(`/api/curves/${moduleId}`)).body;
     expect(m.stc).toEqual(c.stc);
-    expect(m.stc!.method).toBe('model');
+    expect((m.stc as unknown as { method: string }).method).toBe('model');
     expect((m.stc as { pmp_w: number }).pmp_w).toBeGreaterThan(0);
   });
 
