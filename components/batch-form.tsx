@@ -5,7 +5,8 @@ import { Button } from '@/components/button';
 import { FormError } from '@/components/form-error';
 import { TextField } from '@/components/text-field';
 import type { Batch } from '@/lib/api/batches';
-import { batchCreateSchema } from '@/lib/schemas/curves';
+import { Txt } from '@/components/txt';
+import { BATCH_STC_LABELS as L, batchCreateSchema } from '@/lib/schemas/curves';
 import type { BatchCreateInput } from '@/lib/schemas/curves';
 
 const text = (v: unknown) => (v == null ? '' : String(v));
@@ -24,6 +25,12 @@ export function BatchForm({ initial, submitLabel, busy, error, onSubmit, onCance
       cells: text(initial?.cells),
       area_cm2: text(initial?.area_cm2),
       nameplate_w: text(initial?.nameplate_w),
+      irradiance_w_m2: text(initial?.irradiance_w_m2),
+      alpha_pct_per_k: text(initial?.alpha_pct_per_k),
+      beta_pct_per_k: text(initial?.beta_pct_per_k),
+      gamma_pct_per_k: text(initial?.gamma_pct_per_k),
+      rs_ohm: text(initial?.rs_ohm),
+      kappa_ohm_per_k: text(initial?.kappa_ohm_per_k),
       description: text(initial?.description),
     },
   });
@@ -41,6 +48,19 @@ export function BatchForm({ initial, submitLabel, busy, error, onSubmit, onCance
         <View style={styles.cell}><TextField control={control} name="cells" label="Cells in series" keyboardType="numeric" hint="Used when a file does not say." /></View>
         <View style={styles.cell}><TextField control={control} name="area_cm2" label="Device area (cm²)" keyboardType="numeric" hint="For efficiency." /></View>
         <View style={styles.cell}><TextField control={control} name="nameplate_w" label="Nameplate power (W)" keyboardType="numeric" /></View>
+        <View style={styles.cell}><TextField control={control} name="irradiance_w_m2" label={L.irradiance_w_m2} keyboardType="numeric" hint="For efficiency and STC when a file does not say." testID="batch-irradiance" /></View>
+      </View>
+      <Txt variant="label">Module type's coefficients, for the STC figures</Txt>
+      <Txt variant="caption">
+        Curves measured within ±2 °C and ±2 % of 25 °C and 1000 W/m² keep their measured figures. Others are corrected by IEC 60891 procedure 1 with α and β (Rs is needed
+        off 1000 W/m²; κ is 0 when left empty), or by the fitted model when its own coefficients agree with β and γ. Without them such curves get no STC figures.
+      </Txt>
+      <View style={styles.grid}>
+        <View style={styles.cell}><TextField control={control} name="alpha_pct_per_k" label={L.alpha_pct_per_k} keyboardType="numeric" placeholder="e.g. 0.05" testID="batch-alpha" /></View>
+        <View style={styles.cell}><TextField control={control} name="beta_pct_per_k" label={L.beta_pct_per_k} keyboardType="numeric" placeholder="e.g. −0.29" testID="batch-beta" /></View>
+        <View style={styles.cell}><TextField control={control} name="gamma_pct_per_k" label={L.gamma_pct_per_k} keyboardType="numeric" placeholder="e.g. −0.37" testID="batch-gamma" /></View>
+        <View style={styles.cell}><TextField control={control} name="rs_ohm" label={L.rs_ohm} keyboardType="numeric" testID="batch-rs" /></View>
+        <View style={styles.cell}><TextField control={control} name="kappa_ohm_per_k" label={L.kappa_ohm_per_k} keyboardType="numeric" testID="batch-kappa" /></View>
       </View>
       <TextField control={control} name="description" label="Notes" multiline numberOfLines={3} style={{ minHeight: 70 }} />
       <FormError error={error} />

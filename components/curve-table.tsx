@@ -8,6 +8,7 @@ import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import type { CurveRow } from '@/lib/api/batches';
 import { fmtParam } from '@/lib/format';
+import { stcFiguresOf } from '@/lib/schemas/curves';
 import type { CurveSortKey } from '@/lib/schemas/curves';
 
 const col = createColumnHelper<CurveRow>();
@@ -28,7 +29,7 @@ const COLUMNS = [
   col.accessor((r) => single(r)?.n ?? null, { id: 'n', header: 'n', size: 64, cell: (c) => fmtParam('n', c.getValue(), 3) }),
   col.accessor((r) => single(r)?.rs_ohm ?? null, { id: 'rs_ohm', header: 'Rs (Ω)', size: 84, cell: (c) => fmtParam('rs_ohm', c.getValue(), 3).replace(' Ω', '') }),
   col.accessor((r) => single(r)?.rsh_ohm ?? null, { id: 'rsh_ohm', header: 'Rsh (Ω)', size: 90, cell: (c) => fmtParam('rsh_ohm', c.getValue(), 3).replace(' Ω', '') }),
-  col.accessor((r) => r.stc?.pmp_w ?? null, { id: 'stc_pmp_w', header: 'Pmax STC (W)', size: 104, cell: (c) => fmtParam('stc_pmp_w', c.getValue()).replace(' W', '') }),
+  col.accessor((r) => stcFiguresOf(r.stc)?.pmp_w ?? null, { id: 'stc_pmp_w', header: 'Pmax STC (W)', size: 104, cell: (c) => fmtParam('stc_pmp_w', c.getValue()).replace(' W', '') }),
   col.display({ id: 'flags', header: 'Flags', size: 210 }),
 ];
 

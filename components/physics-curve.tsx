@@ -12,6 +12,8 @@ import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import type { CurvePhysicsJson } from '@/lib/api/physics';
 import { fmtParam, sig } from '@/lib/format';
+import { stcBasisText, stcMethodName } from '@/lib/analysis/stc-words';
+import { stcFiguresOf } from '@/lib/schemas/curves';
 import { isAboveElv } from '@/lib/strings/cautions';
 
 /**
@@ -116,21 +118,24 @@ export function PhysicsCurve({ p, wide }: { p: CurvePhysicsJson; wide: boolean }
     </Card>
   );
 
+  const stcFigures = stcFiguresOf(p.stc);
   const stc = (
     <Card title="At standard test conditions" testID="physics-stc">
-      {p.stc ? (
+      {stcFigures ? (
         <>
           <View style={styles.figures}>
-            <Figure label="Isc" value={fmtParam('isc_a', p.stc.isc_a)} />
-            <Figure label="Voc" value={fmtParam('voc_v', p.stc.voc_v)} warn={isAboveElv(p.stc.voc_v)} />
-            <Figure label="Pmax" value={fmtParam('pmp_w', p.stc.pmp_w)} note={`at ${fmtParam('vmp_v', p.stc.vmp_v)}, ${fmtParam('imp_a', p.stc.imp_a)}`} />
-            <Figure label="Fill factor" value={fmtParam('ff', p.stc.ff)} />
-            {p.stc.efficiency != null ? <Figure label="Efficiency" value={fmtParam('efficiency', p.stc.efficiency)} /> : null}
+            <Figure label="Isc" value={fmtParam('isc_a', stcFigures.isc_a)} />
+            <Figure label="Voc" value={fmtParam('voc_v', stcFigures.voc_v)} warn={isAboveElv(stcFigures.voc_v)} />
+            <Figure label="Pmax" value={fmtParam('pmp_w', stcFigures.pmp_w)} note={`at ${fmtParam('vmp_v', stcFigures.vmp_v)}, ${fmtParam('imp_a', stcFigures.imp_a)}`} />
+            <Figure label="Fill factor" value={fmtParam('ff', stcFigures.ff)} />
+            {stcFigures.efficiency != null ? <Figure label="Efficiency" value={fmtParam('efficiency', stcFigures.efficiency)} /> : null}
           </View>
-          <Txt variant="caption">Stored with the curve: the fit at {p.stc.from.temp_c} °C and {p.stc.from.irradiance_w_m2} W/m² moved to 1000 W/m², 25 °C (De Soto et al. 2006). {p.stc.notes.join(' ')}</Txt>
+          <Txt variant="caption">
+            {stcMethodName(p.stc)}: {stcBasisText(p.stc)} {stcFigures.notes.join(' ')}
+          </Txt>
         </>
       ) : (
-        <Txt variant="body">No STC figures are stored for this curve.</Txt>
+        <Txt variant="body" testID="physics-stc-absent">{stcBasisText(p.stc)}</Txt>
       )}
     </Card>
   );

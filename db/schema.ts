@@ -5,7 +5,7 @@
  */
 import { boolean, doublePrecision, index, integer, jsonb, pgTable, text, timestamp, uniqueIndex } from 'drizzle-orm/pg-core';
 import type { CurveMeta, FitResult, Flag, Metrics } from '@/lib/iv/types';
-import type { StcFigures } from '@/lib/schemas/curves';
+import type { StcOutcome } from '@/lib/schemas/curves';
 
 // ---------------------------------------------------------------- better-auth core
 export const user = pgTable('user', {
@@ -214,6 +214,14 @@ export const batch = pgTable(
     /** Default device area, cm², for efficiency. */
     area_cm2: doublePrecision('area_cm2'),
     nameplate_w: doublePrecision('nameplate_w'),
+    /** Measurement irradiance, W/m², for curves whose files do not say (efficiency, STC). */
+    irradiance_w_m2: doublePrecision('irradiance_w_m2'),
+    /** The module type's temperature coefficients, %/K, and IEC 60891 procedure 1's Rs (Ω) and κ (Ω/K): lib/analysis/stc.ts. */
+    alpha_pct_per_k: doublePrecision('alpha_pct_per_k'),
+    beta_pct_per_k: doublePrecision('beta_pct_per_k'),
+    gamma_pct_per_k: doublePrecision('gamma_pct_per_k'),
+    rs_ohm: doublePrecision('rs_ohm'),
+    kappa_ohm_per_k: doublePrecision('kappa_ohm_per_k'),
     description: text('description'),
     archived: boolean('archived').notNull().default(false),
     /** open → in_review → released | on_hold (→ in_review again). */
@@ -247,7 +255,7 @@ export const curve = pgTable(
     notes: jsonb('notes').$type<string[]>().notNull(),
     metrics: jsonb('metrics').$type<Metrics>().notNull(),
     flags: jsonb('flags').$type<Flag[]>().notNull(),
-    stc: jsonb('stc').$type<StcFigures | null>(),
+    stc: jsonb('stc').$type<StcOutcome | null>(),
     isc_a: doublePrecision('isc_a').notNull(),
     voc_v: doublePrecision('voc_v').notNull(),
     pmp_w: doublePrecision('pmp_w').notNull(),

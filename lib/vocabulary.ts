@@ -172,6 +172,15 @@ export const QUANTITIES: readonly Quantity[] = [
   q('translation', 'isc1_a', 'Isc as measured', 'A'),
   q('translation', 'voc1_v', 'Voc as measured', 'V'),
   q('translation', 'points_total', 'Points', '', count),
+  // The STC figures' method and inputs (lib/analysis/stc.ts) and the batch's coefficients.
+  q('translation', 'alpha_pct_per_k', 'α, Isc temperature coefficient', '%/K', { digits: 3 }),
+  q('translation', 'gamma_pct_per_k', 'γ, Pmax temperature coefficient', '%/K', { digits: 3 }),
+  q('translation', 'temp_tolerance_k', 'Temperature window around 25 °C', 'K', { digits: 2 }),
+  q('translation', 'irradiance_tolerance_pct', 'Irradiance window around 1000 W/m²', '%', { digits: 2 }),
+  q('translation', 'model_beta_pct_per_k', 'β of the fitted model', '%/K', { digits: 3 }),
+  q('translation', 'model_gamma_pct_per_k', 'γ of the fitted model', '%/K', { digits: 3 }),
+  q('translation', 'agreement_tolerance_pct', 'Agreement asked of the model', '%', { digits: 2 }),
+  q('translation', 'model_temp_window_k', 'Model without coefficients: window around 25 °C', 'K', { digits: 2 }),
 
   // String sizing (lib/strings): the request and the answer.
   q('strings', 'voc_stc_v', 'Voc at STC', 'V'),

@@ -24,6 +24,13 @@ type BatchSpec = {
   cells: number;
   area_cm2: number;
   nameplate_w: number | null;
+  /** The module type's coefficients for the STC figures (lib/analysis/stc.ts): typical crystalline-silicon values (common practice), invented for the demo. */
+  irradiance_w_m2: number | null;
+  alpha_pct_per_k: number | null;
+  beta_pct_per_k: number | null;
+  gamma_pct_per_k: number | null;
+  rs_ohm: number | null;
+  kappa_ohm_per_k: number | null;
   description: string;
   devices: Device[];
 };
@@ -50,6 +57,12 @@ function cells(): BatchSpec {
     cells: 1,
     area_cm2: 330.2,
     nameplate_w: null,
+    irradiance_w_m2: null,
+    alpha_pct_per_k: 0.05,
+    beta_pct_per_k: -0.27,
+    gamma_pct_per_k: -0.35,
+    rs_ohm: null,
+    kappa_ohm_per_k: null,
     description: 'Incoming inspection of purchased cells before stringing. Demo data: invented devices.',
     devices,
   };
@@ -75,6 +88,12 @@ function modules(slug: string, name: string, line: string, lot: string, date: st
     cells: 60,
     area_cm2: 16610,
     nameplate_w: 330,
+    irradiance_w_m2: null,
+    alpha_pct_per_k: 0.05,
+    beta_pct_per_k: -0.29,
+    gamma_pct_per_k: -0.37,
+    rs_ohm: 0.35,
+    kappa_ohm_per_k: null,
     description: `End-of-line flash test, ${line}. Demo data: invented devices.`,
     devices,
   };

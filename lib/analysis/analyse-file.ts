@@ -1,15 +1,17 @@
 /**
  * The whole per-file pipeline the server runs on an upload (and the seed on the demo files):
- * read → key figures and flags → single- and double-diode fits → STC figures from the fitted
- * single-diode model. Pure: bytes in, plain objects out; throws IvInputError for unusable files.
+ * read → key figures and flags → single- and double-diode fits → STC figures from the first
+ * method that holds (lib/analysis/stc.ts). Pure: bytes in, plain objects out; throws
+ * IvInputError for unusable files.
  */
 import { analyseCurve, parseIvBytes, singleDiodeParamsOf } from '@/lib/iv';
 import type { CurveMeta, FitResult, Flag, IvCurve, Metrics, SingleDiodeParams } from '@/lib/iv';
-import { circuitFigures, singleDiodeCircuit, translateModel } from '@/lib/physics';
-import { STC } from '@/lib/physics/constants';
-import type { StcFigures } from '@/lib/schemas/curves';
+import { stcOutcome } from '@/lib/analysis/stc';
+import type { StcCoefficients } from '@/lib/analysis/stc';
+import type { StcOutcome } from '@/lib/schemas/curves';
 
-export type FileDefaults = { cells?: number | null; area_cm2?: number | null };
+/** What a batch says for files that do not: cells, area, irradiance, and the module type's coefficients. */
+export type FileDefaults = { cells?: number | null; area_cm2?: number | null; irradiance_w_m2?: number | null; coefficients?: StcCoefficients };
 export type FileOverrides = Partial<Pick<CurveMeta, 'temp_c' | 'irradiance_w_m2' | 'cells' | 'area_cm2'>>;
 
 export type FileAnalysis = {
@@ -17,7 +19,8 @@ export type FileAnalysis = {
   metrics: Metrics;
   flags: Flag[];
   fits: FitResult[];
-  stc: StcFigures | null;
+  /** The STC figures with their method, or `{ method: 'none', reason }`. */
+  stc: StcOutcome;
   conditions: { temp_c: number; cells: number; irradiance_w_m2: number | null; idealities: 'fixed' | 'free' };
 };
 
@@ -30,24 +33,6 @@ export function singleParams(fits: FitResult[]): SingleDiodeParams | null {
   return singleDiodeParamsOf(fits.find((x) => x.model === 'single-diode' && x.converged));
 }
 
-/**
- * STC figures from the fitted single-diode model (De Soto et al. 2006 scaling). When the file
- * gives no irradiance, 1000 W/m² is assumed and said in the notes.
- */
-export function stcFigures(params: SingleDiodeParams, cells: number, temp_c: number, irradiance_w_m2: number | null, area_cm2: number | null): StcFigures | null {
-  const notes: string[] = [];
-  const g = irradiance_w_m2 ?? STC.irradiance_w_m2;
-  if (irradiance_w_m2 == null) notes.push('No irradiance given: the measurement was taken as 1000 W/m².');
-  try {
-    const t = translateModel(params, { cells, from: { irradiance_w_m2: g, temp_c }, to: { irradiance_w_m2: STC.irradiance_w_m2, temp_c: STC.temp_c } });
-    const f = circuitFigures(singleDiodeCircuit(t.params), cells, STC.temp_c);
-    const efficiency = area_cm2 ? f.pmp_w / (STC.irradiance_w_m2 * area_cm2 * 1e-4) : null;
-    return { method: 'model', from: { irradiance_w_m2: g, temp_c }, ...f, efficiency, notes: [...notes, ...t.notes] };
-  } catch {
-    return null;
-  }
-}
-
 /** Runs the pipeline on one file. Precedence of metadata: overrides > the file > batch defaults. */
 export function analyseFile(
   bytes: Uint8Array,
@@ -55,18 +40,19 @@ export function analyseFile(
 ): FileAnalysis {
   const parsed = parseIvBytes(bytes, { fileName: opts.fileName, overrides: clean(opts.overrides ?? {}) });
   const meta: CurveMeta = { ...parsed.meta };
-  if (meta.cells == null && opts.defaults?.cells) meta.cells = opts.defaults.cells;
-  if (meta.area_cm2 == null && opts.defaults?.area_cm2) meta.area_cm2 = opts.defaults.area_cm2;
+  const d = opts.defaults ?? {};
+  if (meta.cells == null && d.cells) meta.cells = d.cells;
+  if (meta.area_cm2 == null && d.area_cm2) meta.area_cm2 = d.area_cm2;
+  if (meta.irradiance_w_m2 == null && d.irradiance_w_m2) meta.irradiance_w_m2 = d.irradiance_w_m2;
   const curve: IvCurve = { ...parsed, meta };
-  return analyseParsed(curve, opts.idealities ?? 'fixed');
+  return analyseParsed(curve, opts.idealities ?? 'fixed', undefined, d.coefficients);
 }
 
 /** The pipeline after reading: used for refits with corrected metadata too. */
-export function analyseParsed(curve: IvCurve, idealities: 'fixed' | 'free' = 'fixed', models?: ('single' | 'double')[]): FileAnalysis {
-  const { metrics, flags, fits } = analyseCurve(curve, { idealities, models });
-  const temp_c = curve.meta.temp_c ?? 25;
-  const cells = curve.meta.cells ?? 1;
-  const p = singleParams(fits);
-  const stc = p ? stcFigures(p, cells, temp_c, curve.meta.irradiance_w_m2 ?? null, curve.meta.area_cm2 ?? null) : null;
+export function analyseParsed(curve: IvCurve, idealities: 'fixed' | 'free' = 'fixed', models?: ('single' | 'double')[], coefficients?: StcCoefficients): FileAnalysis {
+  const { metrics, flags, fits, conditions } = analyseCurve(curve, { idealities, models });
+  const { temp_c, cells } = conditions;
+  const stc = stcOutcome({ curve, metrics, flags, params: singleParams(fits), cells, coefficients });
+  if (stc.method === 'none') flags.push({ code: 'stc-unavailable', severity: 'warn', message: `No STC figures: ${stc.reason}` });
   return { curve, metrics, flags, fits, stc, conditions: { temp_c, cells, irradiance_w_m2: curve.meta.irradiance_w_m2 ?? null, idealities } };
 }

@@ -4,6 +4,7 @@
  * double diode for its extra parameters. A BIC lower by more than 10 is "very strong" evidence
  * (Kass & Raftery 1995); between 2 and 10 it is "positive" to "strong".
  */
+import { isPoorFit, POOR_FIT_SHARE } from '@/lib/iv/fit-quality';
 import type { FitResult } from '@/lib/iv/types';
 
 export type FitComparison = {
@@ -13,8 +14,13 @@ export type FitComparison = {
   /** BIC(double) − BIC(single): negative favours the double diode. */
   delta_bic: number;
   rmse_ratio: number;
+  /** True when the model the BIC prefers fails the quality test (a step, a poor-fit flag, an RMSE above 1 % of Isc): then it is not called enough. */
+  preferred_fails_quality: boolean;
   sentence: string;
 };
+
+/** What the quality test of the fits needs: the curve's Isc and its flag codes. */
+export type FitQualityInput = { isc_a: number; flags?: readonly string[] };
 
 /** Free parameters of a fit: 5 for the single diode; 5 or 7 for the double (fixed or free n1, n2). */
 export function freeParameters(f: FitResult): number {
@@ -31,8 +37,15 @@ function bic(f: FitResult): number | null {
   return m * Math.log(sse / m) + freeParameters(f) * Math.log(m);
 }
 
-/** Compares a single- and a double-diode fit of the same points; null when either did not converge. */
-export function compareFits(single: FitResult | undefined, double: FitResult | undefined): FitComparison | null {
+const share = (f: FitResult, isc: number) => `${Number((((f.rmse_true_current_a ?? 0) / isc) * 100).toPrecision(2))} %`;
+
+/**
+ * Compares a single- and a double-diode fit of the same points; null when either did not converge.
+ * With `quality`, a preferred model whose fit fails the quality test (the curve has a step, the
+ * single diode is flagged as a poor fit, or a fit misses by more than 1 % of Isc, lib/iv/analyse.ts)
+ * is never called enough: the sentence says that neither model describes the curve.
+ */
+export function compareFits(single: FitResult | undefined, double: FitResult | undefined, quality?: FitQualityInput): FitComparison | null {
   if (!single || !double) return null;
   const b1 = bic(single);
   const b2 = bic(double);
@@ -52,5 +65,26 @@ export function compareFits(single: FitResult | undefined, double: FitResult | u
     preferred = 'single-diode';
     sentence = `The single diode is ${strength} preferred (BIC lower by ${delta.toFixed(1)}): the second diode does not improve the fit enough to justify it${ratio > 1 ? ', and with its fixed ideality factors it even fits worse' : ''}.`;
   }
-  return { preferred, bic_single: b1, bic_double: b2, delta_bic: delta, rmse_ratio: ratio, sentence };
+  let preferred_fails_quality = false;
+  if (quality && quality.isc_a > 0) {
+    const flags = new Set(quality.flags ?? []);
+    const step = flags.has('step');
+    const poorSingle = step || flags.has('poor-fit') || isPoorFit(single, quality.isc_a);
+    const poorDouble = step || isPoorFit(double, quality.isc_a);
+    const fails = preferred === 'single-diode' ? poorSingle : preferred === 'double-diode' ? poorDouble : poorSingle || poorDouble;
+    if (fails && poorSingle && poorDouble) {
+      preferred_fails_quality = true;
+      sentence =
+        `Neither model describes this curve: the single diode misses it by ${share(single, quality.isc_a)} of Isc and the double diode by ${share(double, quality.isc_a)} ` +
+        `(a fit within ${POOR_FIT_SHARE * 100} % is asked)${step ? ', and the curve has a step that no diode model makes' : ''}. ` +
+        `The BIC difference of ${Math.abs(delta).toFixed(1)} only ranks two fits that both fail; neither model's parameters describe the device.`;
+    } else if (fails) {
+      const [bad, good, badFit] = poorSingle ? ['single', 'double', single] : ['double', 'single', double];
+      preferred_fails_quality = true;
+      sentence =
+        `The ${bad} diode misses this curve by ${share(badFit, quality.isc_a)} of Isc, more than the ${POOR_FIT_SHARE * 100} % asked, so it is not enough whatever the BIC says; ` +
+        `only the ${good} diode stays within ${POOR_FIT_SHARE * 100} %.`;
+    }
+  }
+  return { preferred, bic_single: b1, bic_double: b2, delta_bic: delta, rmse_ratio: ratio, preferred_fails_quality, sentence };
 }

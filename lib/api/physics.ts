@@ -5,7 +5,7 @@ import { physicsKeys } from '@/lib/api/keys';
 import type { CurveMeta, DoubleDiodeParams, Metrics, SingleDiodeParams } from '@/lib/iv/types';
 import type { BandDiagram, OccupationCurve, RecombinationShares, VocTempCoefficient } from '@/lib/physics';
 import type { BandDiagramRequest, TranslateRequest, TranslationMethod } from '@/lib/schemas/physics';
-import type { StcFigures } from '@/lib/schemas/curves';
+import type { StcOutcome } from '@/lib/schemas/curves';
 
 /** GET /api/physics/material. */
 export type MaterialJson = {
@@ -40,7 +40,7 @@ export type BandDiagramJson = {
 export type CurvePhysicsJson = {
   curve: { id: string; device_id: string; batch: { id: string; name: string } | null; meta: CurveMeta; metrics: Metrics };
   conditions: { temp_c: number; cells: number; irradiance_w_m2: number | null; area_cm2: number | null; cell_area_cm2: number | null };
-  stc: StcFigures | null;
+  stc: StcOutcome | null;
   single: {
     params: SingleDiodeParams;
     j0_a_cm2: number | null;

@@ -2,8 +2,10 @@
 import { fitConditions } from '@/lib/iv/fit-common';
 import { fitDoubleDiode } from '@/lib/iv/fit-double';
 import { fitSingleDiode } from '@/lib/iv/fit-single';
+import { isPoorFit } from '@/lib/iv/fit-quality';
 import { keyFigures } from '@/lib/iv/key-figures';
 import { measurementFlags } from '@/lib/iv/meta-flags';
+import { cellCountCheck, fitPlausibilityFlags, vocPerCellFlag } from '@/lib/iv/plausibility';
 import type { FitObjective, FitResult, Flag, IvCurve, Metrics, SingleDiodeFit } from '@/lib/iv/types';
 
 /** Options of `analyseCurve`; temp_c and cells override the curve's metadata. */
@@ -17,16 +19,18 @@ export type AnalyseOptions = {
   models?: ('single' | 'double')[];
 };
 
-/** A fit RMSE above this share of Isc means the model does not describe the curve. */
-const POOR_FIT_SHARE = 0.01;
 
 /**
  * Key figures, flags and the single- and double-diode fits of one curve. Throws IvInputError
  * when the curve is unusable; a fit that fails is reported in `fits` (converged false) and flagged.
  */
-export function analyseCurve(curve: IvCurve, opts: AnalyseOptions = {}): { metrics: Metrics; flags: Flag[]; fits: FitResult[] } {
+export function analyseCurve(
+  curve: IvCurve,
+  opts: AnalyseOptions = {},
+): { metrics: Metrics; flags: Flag[]; fits: FitResult[]; conditions: { temp_c: number; cells: number } } {
   const { metrics, flags } = keyFigures(curve);
-  const { temp_c, cells } = fitConditions(curve, opts);
+  const given = fitConditions(curve, opts);
+  const temp_c = given.temp_c;
   flags.push(...measurementFlags(curve.meta));
   if (opts.temp_c === undefined && curve.meta?.temp_c === undefined) {
     flags.push({
@@ -35,13 +39,12 @@ export function analyseCurve(curve: IvCurve, opts: AnalyseOptions = {}): { metri
       message: 'No cell temperature was given, so 25 °C was assumed for the diode fits; the ideality factor depends on it.',
     });
   }
-  if (opts.cells === undefined && curve.meta?.cells === undefined && metrics.voc_v > 1.2) {
-    flags.push({
-      code: 'cells-unknown',
-      severity: 'warn',
-      message: `No cell count was given, but Voc is ${Number(metrics.voc_v.toPrecision(3))} V, more than one cell delivers: the fits assumed a single cell. Give the number of cells in series.`,
-    });
-  }
+  // A missing count is suggested from Voc and used; a given one is used and checked (lib/iv/plausibility).
+  const count = cellCountCheck(metrics, opts.cells ?? curve.meta?.cells, opts.temp_c ?? curve.meta?.temp_c, curve.meta?.irradiance_w_m2);
+  const cells = count.cells;
+  if (count.flag) flags.push(count.flag);
+  const vocFlag = vocPerCellFlag(metrics.voc_v, cells);
+  if (vocFlag) flags.push(vocFlag);
 
   const fits: FitResult[] = [];
   let single: SingleDiodeFit | undefined;
@@ -56,13 +59,14 @@ export function analyseCurve(curve: IvCurve, opts: AnalyseOptions = {}): { metri
   for (const fit of fits) {
     if (!fit.converged) {
       flags.push({ code: 'fit-failed', severity: 'warn', message: `The ${fit.model} fit did not converge, so it gives no parameters. ${fit.message ?? ''}`.trim() });
-    } else if (fit.model === 'single-diode' && fit.rmse_true_current_a !== null && fit.rmse_true_current_a > POOR_FIT_SHARE * metrics.isc_a) {
+    } else if (fit.model === 'single-diode' && isPoorFit(fit, metrics.isc_a)) {
       flags.push({
         code: 'poor-fit',
         severity: 'warn',
-        message: `The single-diode model misses this curve by ${Number(((fit.rmse_true_current_a / metrics.isc_a) * 100).toPrecision(2))} % of Isc on average: the curve has a shape one diode cannot make (steps, mismatch, noise or a wrong cell count).`,
+        message: `The single-diode model misses this curve by ${Number((((fit.rmse_true_current_a ?? 0) / metrics.isc_a) * 100).toPrecision(2))} % of Isc on average: the curve has a shape one diode cannot make (steps, mismatch, noise or a wrong cell count).`,
       });
     }
   }
-  return { metrics, flags, fits };
+  flags.push(...fitPlausibilityFlags(single?.converged ? single : undefined));
+  return { metrics, flags, fits, conditions: { temp_c, cells } };
 }

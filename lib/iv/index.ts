@@ -44,4 +44,6 @@ export { fitDoubleDiode, DEFAULT_I0_MAX_A } from '@/lib/iv/fit-double';
 export type { DoubleFitOptions } from '@/lib/iv/fit-double';
 // The ml-levenberg-marquardt comparison fit lives in bench/fit-ml.ts: only the benchmark uses it.
 export { analyseCurve } from '@/lib/iv/analyse';
+export { isPoorFit, POOR_FIT_SHARE } from '@/lib/iv/fit-quality';
+export { cellCountCheck, COMMON_CELL_COUNTS, fitPlausibilityFlags, PHYSICAL_IDEALITY, PHYSICAL_VOC_PER_CELL_V, SILICON_VOC_PER_CELL_V, suggestCells, vocPerCellFlag } from '@/lib/iv/plausibility';
 export type { AnalyseOptions } from '@/lib/iv/analyse';

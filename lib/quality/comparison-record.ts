@@ -38,6 +38,8 @@ export const COMPARISON_RECORD_FIELDS = [
   'rs_ohm',
   'rsh_ohm',
   'rmse_a',
+  /** why there is no Pmax at STC, in words (lib/analysis/stc.ts); null when there is one. Appended last, so older records (one field shorter) read it as null. */
+  'stc_absent_reason',
 ] as const;
 
 export type ComparisonRecordField = (typeof COMPARISON_RECORD_FIELDS)[number];
@@ -59,6 +61,7 @@ export type ComparisonRecordFields = {
   rs_ohm: number | null;
   rsh_ohm: number | null;
   rmse_a: number | null;
+  stc_absent_reason: string | null;
 };
 
 type ValuesOf<T extends readonly ComparisonRecordField[]> = { -readonly [K in keyof T]: ComparisonRecordFields[T[K] & ComparisonRecordField] };
@@ -103,5 +106,6 @@ export function deviceRecordOf(tuple: ComparisonRecordTuple | readonly unknown[]
   values.rmse_a = ok ? num(r.rmse_a) : null;
   values.j0_a_cm2 = ok && i0 != null && cellArea ? i0 / cellArea : null;
   values.stc_pmp_w = num(r.stc_pmp_w);
-  return { curve_id: r.curve_id, batch_id: r.batch_id, device_id: r.device_id, values, flags: r.flagCodes.split(' ').filter(Boolean), fitted: ok };
+  const absent = values.stc_pmp_w === null && typeof r.stc_absent_reason === 'string' && r.stc_absent_reason ? { stc_pmp_w: r.stc_absent_reason } : undefined;
+  return { curve_id: r.curve_id, batch_id: r.batch_id, device_id: r.device_id, values, flags: r.flagCodes.split(' ').filter(Boolean), fitted: ok, ...(absent ? { absent } : {}) };
 }

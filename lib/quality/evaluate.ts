@@ -7,6 +7,7 @@ import { QualityError } from '@/lib/quality/errors';
 import { formatValue, formatWithUnit, isParamKey, PARAM_KEYS, type ParamKey } from '@/lib/quality/params';
 import { robustZ } from '@/lib/quality/robust-z';
 import type { PowerClasses, Spec } from '@/lib/quality/spec';
+import { labelOf } from '@/lib/vocabulary';
 
 /** One measured device as the engine and database hand it over. */
 export type DeviceRecord = {
@@ -14,10 +15,12 @@ export type DeviceRecord = {
   values: Partial<Record<ParamKey, number | null>>;
   /** Flag codes raised on the device's curve or fit. */
   flags: string[];
+  /** Why a value is absent, in words, where no method could give it (Pmax at STC: lib/analysis/stc.ts). */
+  absent?: Partial<Record<ParamKey, string>>;
 };
 
 export type FailReason = {
-  kind: 'below_min' | 'above_max' | 'not_measured' | 'flag' | 'power_class';
+  kind: 'below_min' | 'above_max' | 'not_measured' | 'not_measurable' | 'flag' | 'power_class';
   /** The parameter, or 'flags' for a flag. */
   param: ParamKey | 'flags';
   /** The measured value, the flag code, or null when not measured. */
@@ -91,6 +94,9 @@ function assertDevice(device: DeviceRecord, where = 'device'): void {
   if (!device.values || typeof device.values !== 'object') {
     throw new QualityError(`device "${device.device_id}": values must be an object keyed by parameter`);
   }
+  if (device.absent !== undefined && (typeof device.absent !== 'object' || device.absent === null)) {
+    throw new QualityError(`device "${device.device_id}": absent must be an object of reasons keyed by parameter`);
+  }
   if (device.flags !== undefined && (!Array.isArray(device.flags) || device.flags.some((f) => typeof f !== 'string'))) {
     throw new QualityError(`device "${device.device_id}": flags must be an array of flag codes`);
   }
@@ -111,7 +117,9 @@ export function evaluateDevice(device: DeviceRecord, spec: Spec): DeviceEvaluati
     if (!lim) continue;
     const v = valueOf(device, key);
     if (v === null) {
-      reasons.push({ kind: 'not_measured', param: key, value: null, limit: null, bound: null, message: `${key} not measured` });
+      const why = device.absent?.[key];
+      if (why) reasons.push({ kind: 'not_measurable', param: key, value: null, limit: null, bound: null, message: `${labelOf(key)} not measurable: ${why}` });
+      else reasons.push({ kind: 'not_measured', param: key, value: null, limit: null, bound: null, message: `${key} not measured` });
       continue;
     }
     if (lim.min !== undefined && v < lim.min) {
@@ -140,13 +148,14 @@ export function evaluateDevice(device: DeviceRecord, spec: Spec): DeviceEvaluati
     const basis = spec.power_classes.basis ?? 'pmp_w';
     const p = valueOf(device, basis);
     if (p === null) {
+      const why = device.absent?.[basis];
       reasons.push({
         kind: 'power_class',
         param: basis,
         value: null,
         limit: null,
         bound: null,
-        message: `${basis} not measured: no power class`,
+        message: why ? `No power class, ${labelOf(basis)} not measurable: ${why}` : `${basis} not measured: no power class`,
       });
     } else {
       const pc = powerClassOf(p, spec.power_classes);

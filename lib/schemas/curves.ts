@@ -3,9 +3,41 @@ import { z } from 'zod';
 import { optNumber, optNumberOrNull } from '@/lib/schemas/numbers';
 import { optDate, optSafeText, safeText } from '@/lib/schemas/text';
 
-/** Figures of a curve translated to standard test conditions (from the fitted model). */
+/**
+ * How a curve's STC figures were had (lib/analysis/stc.ts): measured within the tolerance of STC,
+ * IEC 60891 procedure 1 on the measured curve, or the fitted single-diode model.
+ */
+export type StcMethod = 'measured' | 'iec60891-1' | 'model';
+
+/** What a method used: the tolerance window, the coefficients and where they came from. */
+export type StcInputs = {
+  /** The window around 25 °C and 1000 W/m² taken as "at STC". */
+  temp_tolerance_k: number;
+  irradiance_tolerance_pct: number;
+  /** Relative coefficients as given (batch), %/K. */
+  alpha_pct_per_k?: number;
+  beta_pct_per_k?: number;
+  gamma_pct_per_k?: number;
+  /** IEC 60891 procedure 1: absolute coefficients used, the internal series resistance, κ, Isc1. */
+  alpha_a_per_k?: number;
+  beta_v_per_k?: number;
+  rs_ohm?: number;
+  kappa_ohm_per_k?: number;
+  isc1_a?: number;
+  /** Model method: the model's own coefficients and the agreement asked for. */
+  model_beta_pct_per_k?: number;
+  model_gamma_pct_per_k?: number;
+  agreement_tolerance_pct?: number;
+  model_temp_window_k?: number;
+  n?: number;
+  /** Where the coefficients came from, in words ("the batch"). */
+  coefficients_from?: string;
+};
+
+/** Figures of a curve at standard test conditions (1000 W/m², 25 °C), with the method that gave them. */
 export type StcFigures = {
-  method: 'model';
+  method: StcMethod;
+  /** The measurement's conditions (an assumed value is said in `notes`). */
   from: { irradiance_w_m2: number; temp_c: number };
   isc_a: number;
   voc_v: number;
@@ -14,8 +46,45 @@ export type StcFigures = {
   vmp_v: number;
   ff: number;
   efficiency: number | null;
+  /** The method and its inputs in words (absent on curves stored before methods were told apart). */
+  basis?: string;
+  inputs?: StcInputs;
   notes: string[];
 };
+
+/** No STC figures: no method holds for this curve; `reason` says why in words, `tried` each method's refusal. */
+export type StcAbsent = {
+  method: 'none';
+  from: { irradiance_w_m2: number; temp_c: number };
+  reason: string;
+  tried: string[];
+  notes: string[];
+};
+
+/** What a curve stores in `stc`: the figures or why there are none. */
+export type StcOutcome = StcFigures | StcAbsent;
+
+/** The STC figures of a stored outcome, or null when it has none (absent, or an older null). */
+export function stcFiguresOf(stc: StcOutcome | null | undefined): StcFigures | null {
+  if (!stc || stc.method === 'none' || typeof (stc as StcFigures).pmp_w !== 'number') return null;
+  return stc;
+}
+
+/** Why a stored outcome has no STC figures, in words (lower case, to follow a colon); null when it has them. */
+export function stcAbsentReason(stc: StcOutcome | null | undefined): string | null {
+  if (!stc) return 'no STC figures were computed for this curve.';
+  return stc.method === 'none' ? stc.reason : null;
+}
+
+/** The batch form's labels of the STC fields; the field errors name them the same way. */
+export const BATCH_STC_LABELS = {
+  irradiance_w_m2: 'Irradiance when a file does not say (W/m²)',
+  alpha_pct_per_k: 'α, Isc temperature coefficient (%/K)',
+  beta_pct_per_k: 'β, Voc temperature coefficient (%/K)',
+  gamma_pct_per_k: 'γ, Pmax temperature coefficient (%/K)',
+  rs_ohm: 'Rs for IEC 60891 (Ω)',
+  kappa_ohm_per_k: 'κ, curve correction factor (Ω/K)',
+} as const;
 
 export const batchFieldsSchema = z.object({
   product_type: optSafeText('Product type', { max: 120 }),
@@ -26,6 +95,14 @@ export const batchFieldsSchema = z.object({
   cells: optNumberOrNull('Cells in series', { min: 1, max: 1000, integer: true }),
   area_cm2: optNumberOrNull('Area (cm²)', { min: 0.01, max: 100000 }),
   nameplate_w: optNumberOrNull('Nameplate power (W)', { min: 0.001, max: 5000 }),
+  // For files that do not say, and for the STC figures (lib/analysis/stc.ts): the measurement
+  // irradiance and the module type's coefficients (IEC 60891 procedure 1, the model's check).
+  irradiance_w_m2: optNumberOrNull(BATCH_STC_LABELS.irradiance_w_m2, { min: 1, max: 2000 }),
+  alpha_pct_per_k: optNumberOrNull(BATCH_STC_LABELS.alpha_pct_per_k, { min: -1, max: 1 }),
+  beta_pct_per_k: optNumberOrNull(BATCH_STC_LABELS.beta_pct_per_k, { min: -2, max: 0 }),
+  gamma_pct_per_k: optNumberOrNull(BATCH_STC_LABELS.gamma_pct_per_k, { min: -2, max: 0 }),
+  rs_ohm: optNumberOrNull(BATCH_STC_LABELS.rs_ohm, { min: 0, max: 1000 }),
+  kappa_ohm_per_k: optNumberOrNull(BATCH_STC_LABELS.kappa_ohm_per_k, { min: -1, max: 1 }),
   description: optSafeText('Description', { max: 2000, multiline: true }),
 });
 

@@ -12,7 +12,7 @@ import { ROLES } from '@/lib/auth/roles';
 import type { Permission } from '@/lib/auth/roles';
 import type { BatchColumns } from '@/lib/quality/compare-table';
 import type { CurveMeta, FitResult, Flag, Metrics } from '@/lib/iv/types';
-import type { StcFigures } from '@/lib/schemas/curves';
+import type { StcOutcome } from '@/lib/schemas/curves';
 import type { Spec } from '@/lib/quality/spec';
 
 /** An object the engine's own type describes; only "is an object" is checked at run time. */
@@ -46,6 +46,12 @@ export const batchSchema = z.strictObject({
   cells: num,
   area_cm2: num,
   nameplate_w: num,
+  irradiance_w_m2: num,
+  alpha_pct_per_k: num,
+  beta_pct_per_k: num,
+  gamma_pct_per_k: num,
+  rs_ohm: num,
+  kappa_ohm_per_k: num,
   description: z.string().nullable(),
   archived: z.boolean(),
   state: z.enum(['open', 'in_review', 'released', 'on_hold']),
@@ -69,7 +75,7 @@ export const curveRowSchema = z.strictObject({
   meta: engine<CurveMeta>(),
   metrics: engine<Metrics>(),
   flags: z.array(engine<Flag>()),
-  stc: engine<StcFigures>().nullable(),
+  stc: engine<StcOutcome>().nullable(),
   fits: z.array(fitJsonSchema),
   created_at: stamp,
 });

@@ -8,6 +8,8 @@ import { singleParams } from '@/lib/analysis/analyse-file';
 import type { FitResult, SingleDiodeParams } from '@/lib/iv';
 import { circuitFigures, paramsAtTemperature, PhysicsError, singleDiodeCircuit, vocTempCoefficient } from '@/lib/physics';
 import { STC } from '@/lib/physics/constants';
+import { stcFiguresOf } from '@/lib/schemas/curves';
+import type { StcOutcome } from '@/lib/schemas/curves';
 import { MEASURED_MIN_SPAN_K } from '@/lib/schemas/strings';
 import type { CoefficientSource, MeasuredPoint, ModuleSource } from '@/lib/schemas/strings';
 import { betaVocFromMeasurements, worstModule } from '@/lib/strings/size-string';
@@ -53,8 +55,10 @@ export function curveFacts(x: {
   meta: { temp_c?: number; irradiance_w_m2?: number; cells?: number };
   voc_v: number;
   metrics: { vmp_v: number };
-  stc: { voc_v: number; vmp_v: number } | null;
+  stc: StcOutcome | null;
 }): CurveFacts {
+  // A curve without STC figures (no method held, lib/analysis/stc.ts) gives no STC voltages.
+  const stc = stcFiguresOf(x.stc);
   return {
     id: x.id,
     device_id: x.device_id,
@@ -63,8 +67,8 @@ export function curveFacts(x: {
     cells: finite(x.meta.cells) && x.meta.cells >= 1 ? x.meta.cells : null,
     voc_v: x.voc_v,
     vmp_v: x.metrics.vmp_v,
-    stc_voc_v: x.stc && finite(x.stc.voc_v) && x.stc.voc_v > 0 ? x.stc.voc_v : null,
-    stc_vmp_v: x.stc && finite(x.stc.vmp_v) && x.stc.vmp_v > 0 ? x.stc.vmp_v : null,
+    stc_voc_v: stc && finite(stc.voc_v) && stc.voc_v > 0 ? stc.voc_v : null,
+    stc_vmp_v: stc && finite(stc.vmp_v) && stc.vmp_v > 0 ? stc.vmp_v : null,
   };
 }
 

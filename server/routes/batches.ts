@@ -8,7 +8,8 @@ import { inlineAnalyser } from '@/server/services/analysis-pool';
 import type { Analyser } from '@/server/services/analysis-pool';
 import { sendAnswer } from '@/server/services/answer-cache';
 import { batchReads } from '@/server/services/batch-reads';
-import { createBatch, loadWritableBatch, updateBatch } from '@/server/services/batches';
+import { createBatch, loadWritableBatch } from '@/server/services/batches';
+import { editBatch } from '@/server/services/stc-refresh';
 import { uploadCurves } from '@/server/services/uploads';
 import { receivedFiles, removeReceived } from '@/server/upload-receiver';
 import { validate } from '@/server/validate';
@@ -38,9 +39,9 @@ export function batchesRouter(db: Db, receiveFiles: RequestHandler, analyser: An
     sendAnswer(res, await reads.summary(org(req), String(req.params.id)));
   });
 
-  /** PATCH /api/batches/:id — rename, describe, archive or restore. */
+  /** PATCH /api/batches/:id — rename, describe, archive or restore; new coefficients recompute the STC figures. */
   r.patch('/:id', requirePermission('batch:write'), validate(batchUpdateSchema), async (req, res) => {
-    res.json(await updateBatch(db, org(req), String(req.params.id), req.body));
+    res.json(await editBatch(db, org(req), String(req.params.id), req.body));
   });
 
   /**

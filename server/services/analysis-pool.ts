@@ -11,13 +11,14 @@ import path from 'node:path';
 import { Piscina } from 'piscina';
 import { analyseFile, analyseParsed } from '@/lib/analysis/analyse-file';
 import type { FileAnalysis, FileDefaults, FileOverrides } from '@/lib/analysis/analyse-file';
+import type { StcCoefficients } from '@/lib/analysis/stc';
 import { IvInputError } from '@/lib/iv';
 import type { IvCurve } from '@/lib/iv';
 
 /** A file to read and analyse, or (with `curve`) a stored curve to fit again (a refit). */
 export type AnalysisRequest =
   | { bytes: Uint8Array; fileName: string; overrides?: FileOverrides; defaults?: FileDefaults }
-  | { curve: IvCurve; idealities: 'fixed' | 'free'; models?: ('single' | 'double')[] };
+  | { curve: IvCurve; idealities: 'fixed' | 'free'; models?: ('single' | 'double')[]; coefficients?: StcCoefficients };
 
 /** What became of one file: its analysis, the reader's objection, or an unexpected failure. */
 export type AnalysisOutcome =
@@ -36,7 +37,7 @@ export type Analyser = {
 /** Runs the pipeline on one file and turns its errors into outcomes (used in both modes). */
 export function analyseToOutcome(req: AnalysisRequest): AnalysisOutcome {
   try {
-    if ('curve' in req) return { ok: true, analysis: analyseParsed(req.curve, req.idealities, req.models) };
+    if ('curve' in req) return { ok: true, analysis: analyseParsed(req.curve, req.idealities, req.models, req.coefficients) };
     return { ok: true, analysis: analyseFile(req.bytes, { fileName: req.fileName, overrides: req.overrides, defaults: req.defaults }) };
   } catch (err) {
     if (err instanceof IvInputError) return { ok: false, kind: 'input', code: err.code, message: err.message, ...(err.line ? { line: err.line } : {}) };

@@ -5,6 +5,8 @@
 import { and, eq } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { batch } from '@/db/schema';
+import type { FileDefaults } from '@/lib/analysis/analyse-file';
+import type { StcCoefficients } from '@/lib/analysis/stc';
 import type { batchCreateSchema, batchUpdateSchema } from '@/lib/schemas/curves';
 import type { BatchOut } from '@/lib/schemas/responses';
 import { HttpError, notFound } from '@/server/errors';
@@ -45,6 +47,12 @@ export function batchJson(b: BatchRow, extra: Partial<Pick<BatchOut, 'curve_coun
     cells: b.cells,
     area_cm2: b.area_cm2,
     nameplate_w: b.nameplate_w,
+    irradiance_w_m2: b.irradiance_w_m2,
+    alpha_pct_per_k: b.alpha_pct_per_k,
+    beta_pct_per_k: b.beta_pct_per_k,
+    gamma_pct_per_k: b.gamma_pct_per_k,
+    rs_ohm: b.rs_ohm,
+    kappa_ohm_per_k: b.kappa_ohm_per_k,
     description: b.description,
     archived: b.archived,
     state: b.state as BatchOut['state'],
@@ -52,6 +60,16 @@ export function batchJson(b: BatchRow, extra: Partial<Pick<BatchOut, 'curve_coun
     updated_at: b.updatedAt,
     ...extra,
   };
+}
+
+/** What a batch says for files that do not (cells, area, irradiance) and the coefficients for their STC figures. */
+export function batchDefaults(b: BatchRow): FileDefaults {
+  return { cells: b.cells, area_cm2: b.area_cm2, irradiance_w_m2: b.irradiance_w_m2, coefficients: batchCoefficients(b) };
+}
+
+/** The module type's coefficients the batch holds (lib/analysis/stc.ts). */
+export function batchCoefficients(b: BatchRow): StcCoefficients {
+  return { alpha_pct_per_k: b.alpha_pct_per_k, beta_pct_per_k: b.beta_pct_per_k, gamma_pct_per_k: b.gamma_pct_per_k, rs_ohm: b.rs_ohm, kappa_ohm_per_k: b.kappa_ohm_per_k };
 }
 
 /** Creates a batch in the caller's organisation. */

@@ -9,12 +9,13 @@ import type { FileAnalysis } from '@/lib/analysis/analyse-file';
 import { isSingleDiodeFit } from '@/lib/iv';
 import type { CurveMeta, FitResult, FitSummary } from '@/lib/iv';
 import { encodeComparisonRecord } from '@/lib/quality/comparison-record';
+import { stcAbsentReason, stcFiguresOf } from '@/lib/schemas/curves';
 import type { refitSchema } from '@/lib/schemas/curves';
 import { HttpError, notFound } from '@/server/errors';
 import type { Analyser } from '@/server/services/analysis-pool';
 import { touchBatch } from '@/server/services/answer-cache';
 import { lockWritableBatch } from '@/server/services/batch-lock';
-import { assertWritable } from '@/server/services/batches';
+import { assertWritable, batchCoefficients } from '@/server/services/batches';
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 type CurveRow = typeof curve.$inferSelect;
@@ -28,7 +29,7 @@ export type CurveKey = { id: string; batch_id: string; device_id: string };
  * lib/quality/comparison-record.ts; single-diode figures only when fitted). deviceRecords in
  * server/services/quality.ts reads 10,000 of these as one text instead of 150,000 fields.
  */
-export function comparisonRecord(key: CurveKey, a: Pick<FileAnalysis, 'curve' | 'metrics'>, d: ReturnType<typeof derivedColumns>): string {
+export function comparisonRecord(key: CurveKey, a: Pick<FileAnalysis, 'curve' | 'metrics' | 'stc'>, d: ReturnType<typeof derivedColumns>): string {
   const meta = a.curve.meta;
   return encodeComparisonRecord({
     curve_id: key.id,
@@ -39,6 +40,7 @@ export function comparisonRecord(key: CurveKey, a: Pick<FileAnalysis, 'curve' | 
     area_cm2: meta.area_cm2 ?? null,
     flagCodes: d.flagCodes,
     stc_pmp_w: d.stc_pmp_w,
+    stc_absent_reason: stcFiguresOf(a.stc) ? null : stcAbsentReason(a.stc),
     fitted: d.fitted,
     iph_a: d.iph_a,
     i0_a: d.i0_a,
@@ -61,7 +63,7 @@ export function derivedColumns(a: FileAnalysis) {
     n: single?.n ?? null,
     rs_ohm: single?.rs_ohm ?? null,
     rsh_ohm: single?.rsh_ohm ?? null,
-    stc_pmp_w: a.stc?.pmp_w ?? null,
+    stc_pmp_w: stcFiguresOf(a.stc)?.pmp_w ?? null,
     iph_a: single?.iph_a ?? null,
     i0_a: single?.i0_a ?? null,
     rmse_a: single?.rmse_a ?? null,
@@ -243,7 +245,7 @@ export async function refitCurve(db: Db, analyser: Analyser, who: { organization
     }
   }
   const models = body.model === 'both' ? (['single', 'double'] as const) : ([body.model] as const);
-  const outcome = await analyser.analyse({ curve: { voltage_v: row.voltage_v, current_a: row.current_a, meta, notes: row.notes }, idealities: body.idealities, models: [...models] });
+  const outcome = await analyser.analyse({ curve: { voltage_v: row.voltage_v, current_a: row.current_a, meta, notes: row.notes }, idealities: body.idealities, models: [...models], coefficients: batchCoefficients(b) });
   if (!outcome.ok) {
     if (outcome.kind === 'input') throw new HttpError(422, outcome.code, outcome.message);
     throw new Error(`refit failed: ${outcome.message}`);
@@ -259,9 +261,12 @@ export async function refitCurve(db: Db, analyser: Analyser, who: { organization
     await insertFits(tx, row.id, analysis.fits, analysis.conditions, reason, who.userId);
     // Re-read every current fit so the derived columns use the single-diode fit even when only the double was redone.
     const current = await tx.select().from(fit).where(and(eq(fit.curveId, row.id), eq(fit.current, true)));
-    const cols = derivedColumns({ ...analysis, fits: current.map((x) => x.result) });
-    const record = comparisonRecord({ id: row.id, batch_id: row.batchId, device_id: row.deviceId }, analysis, cols);
-    await tx.update(curve).set({ meta, metrics: analysis.metrics, flags: analysis.flags, stc: analysis.stc ?? row.stc, ...cols, record }).where(eq(curve.id, row.id));
+    // Without a new single-diode fit the STC outcome is kept (its model method needs that fit).
+    const stc = models.includes('single') || !row.stc ? analysis.stc : row.stc;
+    const flags = stc === analysis.stc ? analysis.flags : [...analysis.flags.filter((f) => f.code !== 'stc-unavailable'), ...row.flags.filter((f) => f.code === 'stc-unavailable')];
+    const cols = derivedColumns({ ...analysis, flags, stc, fits: current.map((x) => x.result) });
+    const record = comparisonRecord({ id: row.id, batch_id: row.batchId, device_id: row.deviceId }, { ...analysis, stc }, cols);
+    await tx.update(curve).set({ meta, metrics: analysis.metrics, flags, stc, ...cols, record }).where(eq(curve.id, row.id));
     // The batch changed: answers cached against its revision must be computed again.
     await touchBatch(tx, row.batchId);
   });

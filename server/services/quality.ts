@@ -32,6 +32,7 @@ const RECORD_FROM_COLUMNS: Record<ComparisonRecordField, SQL> = {
   rs_ohm: sql`${curve.rs_ohm}`,
   rsh_ohm: sql`${curve.rsh_ohm}`,
   rmse_a: sql`${curve.rmse_a}`,
+  stc_absent_reason: sql`(case when ${curve.stc}->>'method' = 'none' then ${curve.stc}->>'reason' else null end)`,
 };
 const recordFromColumns = sql`json_build_array(${sql.join(
   COMPARISON_RECORD_FIELDS.map((k) => RECORD_FROM_COLUMNS[k]),

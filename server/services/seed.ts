@@ -11,6 +11,7 @@ import { batch, member, organization, user } from '@/db/schema';
 import { analyseFile } from '@/lib/analysis/analyse-file';
 import { ROLES } from '@/lib/auth/roles';
 import type { Auth } from '@/server/auth';
+import { batchDefaults } from '@/server/services/batches';
 import { storeCurve } from '@/server/services/curves';
 
 export const SAMPLE_DIR = path.resolve(__dirname, '..', '..', 'sample-data');
@@ -76,6 +77,12 @@ const manifestSchema = z.array(
     cells: z.number().int().nullable().optional(),
     area_cm2: z.number().nullable().optional(),
     nameplate_w: z.number().nullable().optional(),
+    irradiance_w_m2: z.number().nullable().optional(),
+    alpha_pct_per_k: z.number().nullable().optional(),
+    beta_pct_per_k: z.number().nullable().optional(),
+    gamma_pct_per_k: z.number().nullable().optional(),
+    rs_ohm: z.number().nullable().optional(),
+    kappa_ohm_per_k: z.number().nullable().optional(),
     description: z.string().nullable().optional(),
     files: z.array(z.string()),
   }),
@@ -100,9 +107,10 @@ export async function seedDemoBatches(db: Db, organizationId: string, userId: st
   for (const m of manifest) {
     const { slug, files, ...fields } = m;
     const id = crypto.randomUUID();
-    await db.insert(batch).values({ id, organizationId, createdBy: userId, ...fields });
+    const [row] = await db.insert(batch).values({ id, organizationId, createdBy: userId, ...fields }).returning();
+    const defaults = batchDefaults(row);
     for (const f of files) {
-      const analysis = analyseFile(readFileSync(path.join(root, slug, f)), { fileName: f, defaults: { cells: fields.cells, area_cm2: fields.area_cm2 } });
+      const analysis = analyseFile(readFileSync(path.join(root, slug, f)), { fileName: f, defaults });
       await storeCurve(db, { organizationId, batchId: id, fileName: f, analysis, userId });
       stored++;
     }

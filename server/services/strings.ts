@@ -76,7 +76,7 @@ export async function sizeStringFor(db: Db, organizationId: string, body: String
         422,
         'no_module_data',
         curves.length
-          ? `No curve in ${place} has a Voc at STC (its single-diode fit did not converge). Enter the module's Voc at STC (voc_stc_v) instead.`
+          ? `No curve in ${place} has a Voc at STC (no STC method held for any of them; each curve's page says why). Enter the module's Voc at STC (voc_stc_v) instead.`
           : 'This batch has no curves yet: upload its I-V files, or enter the module’s Voc at STC (voc_stc_v).',
       );
     }

@@ -11,7 +11,7 @@ import type { uploadOverridesSchema } from '@/lib/schemas/curves';
 import { textProblem } from '@/lib/schemas/text';
 import { HttpError } from '@/server/errors';
 import type { AnalysisOutcome, Analyser } from '@/server/services/analysis-pool';
-import { loadWritableBatch } from '@/server/services/batches';
+import { batchDefaults, loadWritableBatch } from '@/server/services/batches';
 import { storeCurves } from '@/server/services/curves';
 import type { CurveToStore } from '@/server/services/curves';
 import type { UploadAnswerOut, UploadFileResult } from '@/lib/schemas/responses';
@@ -79,7 +79,7 @@ export async function uploadCurves(
         .then((bytes) => {
           // Hashed before the bytes go to an analysis thread; a release record keeps the hash of what was received.
           job.sha256 = createHash('sha256').update(bytes).digest('hex');
-          return analyser.analyse({ bytes, fileName: file.name, overrides, defaults: { cells: b.cells, area_cm2: b.area_cm2 } });
+          return analyser.analyse({ bytes, fileName: file.name, overrides, defaults: batchDefaults(b) });
         })
         .catch((err: unknown): AnalysisOutcome => ({ ok: false, kind: 'failure', message: `the received file could not be read back (${(err as Error)?.message ?? err})` }))
         .then((o) => (job.outcome = o));

@@ -47,8 +47,36 @@ describe('BatchForm', () => {
       cells: 60,
       area_cm2: 16600,
       nameplate_w: 405.5,
+      irradiance_w_m2: null,
+      alpha_pct_per_k: null,
+      beta_pct_per_k: null,
+      gamma_pct_per_k: null,
+      rs_ohm: null,
+      kappa_ohm_per_k: null,
       description: null,
     });
+  });
+
+  it('the module type’s coefficients for the STC figures are read as numbers (typographic minus too)', async () => {
+    const onSubmit = renderForm();
+    fireEvent.changeText(screen.getByTestId('batch-name'), 'Coefficients');
+    fireEvent.changeText(screen.getByLabelText('α, Isc temperature coefficient (%/K)'), '0,05');
+    fireEvent.changeText(screen.getByLabelText('β, Voc temperature coefficient (%/K)'), '−0.29');
+    fireEvent.changeText(screen.getByLabelText('γ, Pmax temperature coefficient (%/K)'), '-0.37');
+    fireEvent.changeText(screen.getByLabelText('Rs for IEC 60891 (Ω)'), '0.35');
+    fireEvent.changeText(screen.getByLabelText('Irradiance when a file does not say (W/m²)'), '1000');
+    submit();
+    await waitFor(() => expect(onSubmit).toHaveBeenCalledTimes(1));
+    expect(onSubmit.mock.calls[0][0]).toMatchObject({ alpha_pct_per_k: 0.05, beta_pct_per_k: -0.29, gamma_pct_per_k: -0.37, rs_ohm: 0.35, kappa_ohm_per_k: null, irradiance_w_m2: 1000 });
+  });
+
+  it('a positive β is refused, naming the field as the form labels it', async () => {
+    const onSubmit = renderForm();
+    fireEvent.changeText(screen.getByTestId('batch-name'), 'Coefficients');
+    fireEvent.changeText(screen.getByLabelText('β, Voc temperature coefficient (%/K)'), '0.3');
+    submit();
+    expect(await screen.findByText('β, Voc temperature coefficient (%/K) must be a number from -2 to 0.')).toBeOnTheScreen();
+    expect(onSubmit).not.toHaveBeenCalled();
   });
 
   it.each([
@@ -70,12 +98,14 @@ describe('BatchForm', () => {
     const initial: Batch = {
       id: 'b1', name: 'Supplier A trial', product_type: null, supplier: 'A', line: null, lot: null, batch_date: null,
       cells: 72, area_cm2: 25_000, nameplate_w: 550, description: null, archived: false, state: 'open',
+      irradiance_w_m2: null, alpha_pct_per_k: 0.05, beta_pct_per_k: -0.29, gamma_pct_per_k: null, rs_ohm: null, kappa_ohm_per_k: null,
       created_at: '2025-11-14T08:00:00Z', updated_at: '2025-11-14T08:00:00Z',
     };
     const onSubmit = renderForm({ initial, busy: true, error: new ApiError(409, 'name_taken', 'A batch with that name already exists.'), onCancel: jest.fn() });
     expect(screen.getByTestId('batch-name')).toHaveDisplayValue('Supplier A trial');
     expect(screen.getByLabelText('Cells in series')).toHaveDisplayValue('72');
     expect(screen.getByLabelText('Device area (cm²)')).toHaveDisplayValue('25000');
+    expect(screen.getByLabelText('β, Voc temperature coefficient (%/K)')).toHaveDisplayValue('-0.29');
     expect(screen.getByTestId('form-error')).toHaveTextContent('A batch with that name already exists.');
     expect(screen.getByTestId('batch-submit')).toBeBusy();
     submit();

@@ -16,11 +16,13 @@ import { Screen } from '@/components/screen';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import { compareFits } from '@/lib/analysis/compare-fits';
+import { stcBasisText, stcInputRows, stcMethodName } from '@/lib/analysis/stc-words';
 import { useCurve } from '@/lib/api/batches';
 import type { CurveDetail, FitJson } from '@/lib/api/batches';
 import { useMe } from '@/lib/api/session';
 import { fmtParam, sig } from '@/lib/format';
 import { doubleDiodeCurrent, singleDiodeCurrents } from '@/lib/iv/diode';
+import { stcFiguresOf } from '@/lib/schemas/curves';
 import { isAboveElv } from '@/lib/strings/cautions';
 
 /** The fitted model's current on an even voltage grid across the measured range. */
@@ -40,6 +42,53 @@ function modelSeries(c: CurveDetail, f: FitJson | undefined): Series | null {
   } catch {
     return null;
   }
+}
+
+/** What the efficiency still needs, in words (the file's or the batch's area and irradiance count). */
+function efficiencyNeeds(meta: CurveDetail['meta']): string {
+  const missing = [meta.area_cm2 == null ? 'an area' : null, meta.irradiance_w_m2 == null ? 'an irradiance' : null].filter(Boolean);
+  return missing.length ? `needs ${missing.join(' and ')} (in the file or on the batch)` : 'not computed';
+}
+
+/** The STC figures with their method and inputs in words, or why there are none. */
+function StcCard({ c }: { c: CurveDetail }) {
+  const stc = stcFiguresOf(c.stc);
+  const rows = stcInputRows(c.stc);
+  if (!stc) {
+    const tried = c.stc?.method === 'none' ? c.stc.tried : [];
+    return (
+      <View style={{ gap: 6 }} testID="stc-absent">
+        <Txt variant="heading">No STC figures</Txt>
+        <Txt variant="body">{stcBasisText(c.stc)}</Txt>
+        {tried.length > 1 ? tried.map((t) => <Txt key={t} variant="caption">· {t}</Txt>) : null}
+        <Txt variant="caption">A spec limit on Pmax at STC fails as not measurable, and no power class is given on it.</Txt>
+      </View>
+    );
+  }
+  return (
+    <View style={{ gap: 8 }} testID={`stc-${stc.method}`}>
+      <View style={styles.figuresPlain}>
+        <Figure label="Isc" value={fmtParam('isc_a', stc.isc_a)} />
+        <Figure label="Voc" value={fmtParam('voc_v', stc.voc_v)} />
+        <Figure label="Pmax" value={fmtParam('pmp_w', stc.pmp_w)} />
+        <Figure label="FF" value={fmtParam('ff', stc.ff)} />
+        {stc.efficiency != null ? <Figure label="Efficiency" value={fmtParam('efficiency', stc.efficiency)} /> : null}
+      </View>
+      <Txt variant="label">Method: {stcMethodName(stc)}</Txt>
+      <Txt variant="caption">{stcBasisText(stc)}</Txt>
+      {rows.length ? (
+        <View testID="stc-inputs">
+          {rows.map((r) => (
+            <View key={r.key} style={styles.paramRow}>
+              <Txt variant="caption" style={{ flex: 1 }}>{r.label}</Txt>
+              <Txt variant="figure" style={{ fontSize: 13 }}>{r.value}</Txt>
+            </View>
+          ))}
+        </View>
+      ) : null}
+      {stc.notes.length ? <Txt variant="caption">{stc.notes.join(' ')}</Txt> : null}
+    </View>
+  );
 }
 
 const PARAMS: Record<string, [string, string][]> = {
@@ -100,7 +149,7 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
   const double = c.fits.find((f) => f.model === 'double-diode');
   const singleModel = useMemo(() => modelSeries(c, single), [c, single]);
   const doubleModel = useMemo(() => modelSeries(c, double), [c, double]);
-  const comparison = compareFits(single, double);
+  const comparison = compareFits(single, double, { isc_a: c.metrics.isc_a, flags: c.flags.map((f) => f.code) });
   const mpp = { v: c.metrics.vmp_v, i: c.metrics.imp_a };
   const m = c.metrics;
   const residualSets = [single, double].filter((f): f is FitJson => !!f && f.converged && f.residuals_a.length === c.points.voltage_v.length);
@@ -132,7 +181,7 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
         <Figure label="Voc" value={fmtParam('voc_v', m.voc_v)} warn={isAboveElv(m.voc_v)} />
         <Figure label="Pmax" value={fmtParam('pmp_w', m.pmp_w)} note={`at ${fmtParam('vmp_v', m.vmp_v)}, ${fmtParam('imp_a', m.imp_a)}`} />
         <Figure label="Fill factor" value={fmtParam('ff', m.ff)} />
-        <Figure label="Efficiency" value={fmtParam('efficiency', m.efficiency)} note={m.efficiency == null ? 'needs area and irradiance' : undefined} />
+        <Figure label="Efficiency" value={fmtParam('efficiency', m.efficiency)} note={m.efficiency == null ? efficiencyNeeds(c.meta) : undefined} />
         <Figure label="Rsh0 · Rs0 (slopes)" value={`${sig(m.rsh0_ohm, 3)} · ${sig(m.rs0_ohm, 3)} Ω`} />
       </View>
 
@@ -174,21 +223,7 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
 
       <View style={[{ gap: 16 }, wide && { flexDirection: 'row', alignItems: 'flex-start' }]}>
         <Card title="At standard test conditions" style={wide ? { flex: 1 } : undefined} testID="stc">
-          {c.stc ? (
-            <>
-              <View style={styles.figuresPlain}>
-                <Figure label="Isc" value={fmtParam('isc_a', c.stc.isc_a)} />
-                <Figure label="Voc" value={fmtParam('voc_v', c.stc.voc_v)} />
-                <Figure label="Pmax" value={fmtParam('pmp_w', c.stc.pmp_w)} />
-                <Figure label="FF" value={fmtParam('ff', c.stc.ff)} />
-              </View>
-              <Txt variant="caption">
-                From the fitted single diode at {c.stc.from.temp_c} °C and {c.stc.from.irradiance_w_m2} W/m², moved to 1000 W/m² and 25 °C by the De Soto, Klein & Beckman (2006) scaling. {c.stc.notes.join(' ')}
-              </Txt>
-            </>
-          ) : (
-            <Txt variant="body">No STC figures: the single-diode fit did not converge.</Txt>
-          )}
+          <StcCard c={c} />
         </Card>
         <Card title="Fit history" style={wide ? { flex: 1 } : undefined} testID="fit-history">
           {c.history.map((h) => (

@@ -4,6 +4,7 @@ import { analyseFile } from '@/lib/analysis/analyse-file';
 import type { FileAnalysis, FileOverrides } from '@/lib/analysis/analyse-file';
 import { compareFits } from '@/lib/analysis/compare-fits';
 import { IvInputError } from '@/lib/iv/errors';
+import { stcFiguresOf } from '@/lib/schemas/curves';
 import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
 const REF_DIR = REFERENCE_DATA_DIR;
@@ -34,30 +35,42 @@ describe('analyseFile() on the 57 mm reference cell at 33 °C, 1000 W/m² (refer
     expect(Math.abs(r.metrics.isc_a / 0.76026 - 1)).toBeLessThan(2e-3);
     expect(Math.abs(r.metrics.voc_v / 0.57278 - 1)).toBeLessThan(2e-3);
     expect(Math.abs(r.metrics.pmp_w / 0.3107 - 1)).toBeLessThan(2e-3);
-    expect(r.flags).toEqual([]);
+    // 33 °C with no coefficients: no STC method holds (lib/analysis/stc.ts), which is the one flag.
+    expect(r.flags.map((f) => f.code)).toEqual(['stc-unavailable']);
     expect(r.conditions).toEqual({ temp_c: 33, cells: 1, irradiance_w_m2: 1000, idealities: 'fixed' });
   });
 
-  it('STC figures are present, translated from 1000 W/m², 33 °C, and finite', () => {
-    expect(r.stc).not.toBeNull();
-    const stc = r.stc!;
-    expect(stc.method).toBe('model');
-    expect(stc.from).toEqual({ irradiance_w_m2: 1000, temp_c: 33 });
-    for (const k of ['isc_a', 'voc_v', 'pmp_w', 'imp_a', 'vmp_v', 'ff'] as const) expect(Number.isFinite(stc[k])).toBe(true);
-    expect(stc.efficiency).toBeNull(); // no area given
-    expect(stc.notes.some((n) => n.includes('No irradiance'))).toBe(false); // irradiance was given
+  it('without the batch’s coefficients, 8 K from STC, there are no STC figures, and the reason says why', () => {
+    expect(r.stc.method).toBe('none');
+    expect(stcFiguresOf(r.stc)).toBeNull();
+    const reason = r.stc.method === 'none' ? r.stc.reason : '';
+    expect(reason).toMatch(/measured at 33\.0 °C and 1000 W\/m², outside ±2 °C/);
+    expect(reason).toMatch(/IEC 60891 procedure 1 needs the module type's temperature coefficients α \(Isc\) and β \(Voc\)/);
+    expect(reason).toMatch(/only within ±2 K of 25 °C/);
+    expect(r.stc.from).toEqual({ irradiance_w_m2: 1000, temp_c: 33 });
   });
 
-  it('cooling from 33 °C to 25 °C raises Voc and Pmax (Voc falls with temperature, DOMAIN.md)', () => {
-    const stc = r.stc!;
+  it('with β and γ that the model agrees with, the model moves it to STC: cooling raises Voc and Pmax (Voc falls with temperature, DOMAIN.md)', () => {
+    // β −0.35 %/K and γ −0.45 %/K: typical crystalline-silicon values (common practice, docs/domain.md).
+    const withCoefficients = analyseFile(bytesOf(CELL_CSV), {
+      fileName: 'cell-57mm-33C.csv',
+      overrides: { temp_c: 33, irradiance_w_m2: 1000, cells: 1 },
+      defaults: { coefficients: { beta_pct_per_k: -0.35, gamma_pct_per_k: -0.45 } },
+    });
+    const stc = stcFiguresOf(withCoefficients.stc)!;
+    expect(stc.method).toBe('model');
     expect(stc.voc_v).toBeGreaterThan(r.metrics.voc_v);
     expect(stc.pmp_w).toBeGreaterThan(r.metrics.pmp_w);
+    for (const k of ['isc_a', 'voc_v', 'pmp_w', 'imp_a', 'vmp_v', 'ff'] as const) expect(Number.isFinite(stc[k])).toBe(true);
+    expect(stc.efficiency).toBeNull(); // no area given
     // Bound, not a value: an 8 K change moves a silicon cell's Voc by well under 40 mV
     // (|dVoc/dT| < 5 mV/K per cell, common practice); Isc moves by well under 1 %.
     expect(stc.voc_v - r.metrics.voc_v).toBeLessThan(0.04);
     expect(Math.abs(stc.isc_a / r.metrics.isc_a - 1)).toBeLessThan(0.01);
     // Internal consistency: FF = Pmax/(Isc·Voc) at STC too, to 1e-9 relative.
     expect(stc.ff).toBeCloseTo(stc.pmp_w / (stc.isc_a * stc.voc_v), 9);
+    expect(stc.inputs?.beta_pct_per_k).toBe(-0.35);
+    expect(Math.abs((stc.inputs?.model_beta_pct_per_k as number) / -0.35 - 1)).toBeLessThanOrEqual(0.25);
   });
 
   it('the fixed-ideality double diode (n1 = 1, n2 = 2) fits worse and loses to the single diode by BIC', () => {
@@ -87,7 +100,7 @@ describe('analyseFile() metadata precedence: overrides > file metadata > batch d
     expect(r.curve.meta.area_cm2).toBe(20);
     // Efficiency uses the file's area and irradiance: Pmp/(800 W/m² · 20e-4 m²) = Pmp/1.6 W.
     expect(r.metrics.efficiency).toBeCloseTo(r.metrics.pmp_w / 1.6, 12);
-    expect(r.stc?.from).toEqual({ irradiance_w_m2: 800, temp_c: 40 });
+    expect(r.stc.from).toEqual({ irradiance_w_m2: 800, temp_c: 40 });
   });
 
   it('the overrides beat the file', () => {
@@ -125,12 +138,23 @@ describe('analyseFile() metadata precedence: overrides > file metadata > batch d
     expect(r.curve.meta.area_cm2).toBe(25);
   });
 
+  it('efficiency uses the batch’s area and irradiance when the file has none', () => {
+    const r = analyseFile(withMeta(['temperature: 33 °C']), { fileName: 'no-area.csv', defaults: { cells: 1, area_cm2: 25, irradiance_w_m2: 1000 } });
+    expect(r.curve.meta).toMatchObject({ area_cm2: 25, irradiance_w_m2: 1000 });
+    // By hand: Pmp/(1000 W/m² · 25e-4 m²) = Pmp/2.5 W.
+    expect(r.metrics.efficiency).toBeCloseTo(r.metrics.pmp_w / 2.5, 12);
+    // The file's irradiance wins over the batch's: Pmp/(800 · 20e-4) = Pmp/1.6 W.
+    const f = analyseFile(withMeta(FILE_META), { fileName: 'meta.csv', defaults: { area_cm2: 100, irradiance_w_m2: 1000 } });
+    expect(f.metrics.efficiency).toBeCloseTo(f.metrics.pmp_w / 1.6, 12);
+  });
+
   it('with nothing given: 25 °C and 1 cell are assumed and said (flag and STC note), device id from the file name', () => {
     const r = analyseFile(bytesOf(CELL_CSV), { fileName: 'CELL-0007.csv' });
     expect(r.conditions).toEqual({ temp_c: 25, cells: 1, irradiance_w_m2: null, idealities: 'fixed' });
     expect(r.curve.meta.device_id).toBe('CELL-0007');
     expect(r.flags.map((f) => f.code)).toContain('temperature-assumed');
-    expect(r.stc?.notes).toContain('No irradiance given: the measurement was taken as 1000 W/m².');
+    expect(r.stc.notes).toContain('No irradiance given (file or batch): the measurement was taken as 1000 W/m².');
+    expect(r.stc.notes).toContain('No cell temperature given: the measurement was taken as 25 °C.');
     expect(r.metrics.efficiency).toBeNull();
   });
 });

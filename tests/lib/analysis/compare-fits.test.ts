@@ -141,3 +141,34 @@ describe('compareFits() — no verdict without two usable fits', () => {
     expect(compareFits(single, double)).toBeNull();
   });
 });
+
+describe('compareFits() with the quality test: a model that fails it is never "enough"', () => {
+  // Isc 0.76 A (the placeholder fits' Iph): 1 % of Isc is 7.6 mA. Residuals invented.
+  it('both fits miss by about 6 % of Isc (±45 mA), ΔBIC = 0 → "neither model describes this curve", not "enough"', () => {
+    const c = compareFits(fit('single-diode', alternating(45e-3)), fit('double-diode', alternating(45e-3), { fixed: true }), { isc_a: 0.76, flags: ['poor-fit'] });
+    expect(c?.preferred).toBe('either');
+    expect(c?.preferred_fails_quality).toBe(true);
+    expect(c?.sentence).toMatch(/^Neither model describes this curve: the single diode misses it by 5\.9 % of Isc and the double diode by 5\.9 %/);
+    expect(c?.sentence).not.toContain('enough.');
+  });
+
+  it('a step flag fails both models even with small residuals', () => {
+    const c = compareFits(fit('single-diode', alternating(1e-3)), fit('double-diode', alternating(1e-3), { fixed: true }), { isc_a: 0.76, flags: ['step'] });
+    expect(c?.sentence).toMatch(/Neither model describes this curve.*a step that no diode model makes/);
+  });
+
+  it('about equal by BIC, but only the double stays within 1 %: the single diode is "not enough", the double is named', () => {
+    // m = 10, both k = 5: single ±8 mA (1.05 % of 0.76 A), fixed double ±7.5 mA (0.99 %).
+    // ΔBIC = 10·ln((7.5/8)²) = 20·ln 0.9375 = −1.29 → "either" by BIC alone.
+    const c = compareFits(fit('single-diode', alternating(8e-3)), fit('double-diode', alternating(7.5e-3), { fixed: true }), { isc_a: 0.76 });
+    expect(c?.preferred).toBe('either');
+    expect(c?.delta_bic).toBeCloseTo(20 * Math.log(0.9375), 9);
+    expect(c?.sentence).toBe('The single diode misses this curve by 1.1 % of Isc, more than the 1 % asked, so it is not enough whatever the BIC says; only the double diode stays within 1 %.');
+  });
+
+  it('good fits keep their sentence', () => {
+    const c = compareFits(fit('single-diode', alternating(1e-3)), fit('double-diode', alternating(1e-3), { fixed: true }), { isc_a: 0.76, flags: [] });
+    expect(c?.preferred_fails_quality).toBe(false);
+    expect(c?.sentence).toContain('single diode is enough');
+  });
+});

@@ -21,6 +21,7 @@ const fitted: ComparisonRecordFields = {
   rs_ohm: 0.4,
   rsh_ohm: 350,
   rmse_a: 0.002,
+  stc_absent_reason: null,
 };
 
 it('writes the fields in the listed order and reads them back by name', () => {
@@ -30,6 +31,8 @@ it('writes the fields in the listed order and reads them back by name', () => {
   expect(stored.slice(0, 3)).toEqual(['c1', 'b1', 'M-01']);
   expect(stored[8]).toBe(true);
   expect(stored[14]).toBe(0.002);
+  // Appended after the 0004 order: why there is no Pmax at STC (null when there is one).
+  expect(stored[15]).toBeNull();
   expect(comparisonRecordFields(stored)).toEqual(fitted);
 });
 
@@ -46,4 +49,15 @@ it('turns a record into a device with J0 per cell area, and keeps the fit out wh
   expect(u.flags).toEqual([]);
   for (const k of ['iph_a', 'i0_a', 'n', 'rs_ohm', 'rsh_ohm', 'rmse_a', 'j0_a_cm2'] as const) expect(u.values[k]).toBeNull();
   expect(u.values.voc_v).toBe(41.2);
+});
+
+it('an absent Pmax at STC carries its reason into the device record; an older record (one field shorter) reads as before', () => {
+  const reason = 'the curve has a step (invented for this test)';
+  const d = deviceRecordOf(JSON.parse(encodeComparisonRecord({ ...fitted, stc_pmp_w: null, stc_absent_reason: reason })));
+  expect(d.values.stc_pmp_w).toBeNull();
+  expect(d.absent).toEqual({ stc_pmp_w: reason });
+  const older = (JSON.parse(encodeComparisonRecord(fitted)) as unknown[]).slice(0, 15);
+  const o = deviceRecordOf(older);
+  expect(o.values.stc_pmp_w).toBe(302.1);
+  expect(o.absent).toBeUndefined();
 });

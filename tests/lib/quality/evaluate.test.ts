@@ -11,6 +11,32 @@ const spec = parseSpec({
 
 const device = (device_id: string, values: DeviceRecord['values'], flags: string[] = []): DeviceRecord => ({ device_id, values, flags });
 
+describe('evaluateDevice(): a figure no method can give (Pmax at STC of a curve with a step)', () => {
+  // The reason as lib/analysis/stc.ts words it, shortened; the device values are invented.
+  const why = 'the curve has a step (a bypass diode conducting, mismatched or cracked cells)';
+  const stcSpec = parseSpec({ name: 'stc 300', limits: { stc_pmp_w: { min: 300 } }, power_classes: { step_w: 5, basis: 'stc_pmp_w' } });
+  const stepped: DeviceRecord = { device_id: 'M2611-015', values: { pmp_w: 260.1, stc_pmp_w: null }, flags: ['step'], absent: { stc_pmp_w: why } };
+
+  it('a limit on it fails as "not measurable" with the reason, and no power class is given, also with the reason', () => {
+    const r = evaluateDevice(stepped, stcSpec);
+    expect(r.result).toBe('fail');
+    expect(r.power_class).toBeNull();
+    expect(r.reasons.map((x) => [x.kind, x.param, x.value])).toEqual([
+      ['not_measurable', 'stc_pmp_w', null],
+      ['power_class', 'stc_pmp_w', null],
+    ]);
+    expect(r.reasons[0].message).toContain('not measurable');
+    expect(r.reasons[0].message).toContain(why);
+    expect(r.reasons[1].message).toContain('No power class');
+    expect(r.reasons[1].message).toContain(why);
+  });
+
+  it('without a reason it stays "not measured"', () => {
+    const r = evaluateDevice({ device_id: 'X', values: { stc_pmp_w: null }, flags: [] }, stcSpec);
+    expect(r.reasons[0].kind).toBe('not_measured');
+  });
+});
+
 describe('evaluateDevice()', () => {
   it('passes a device inside every limit and classes it', () => {
     const r = evaluateDevice(device('M1', { pmp_w: 402.3, rs_ohm: 0.31, ff: 0.79 }), spec);
