@@ -1,6 +1,7 @@
 import { useState } from 'react';
 import { Modal, ScrollView, StyleSheet, TextInput, View } from 'react-native';
 import { Button } from '@/components/button';
+import { CautionBlock } from '@/components/caution-block';
 import { Figure } from '@/components/figure';
 import { FormError } from '@/components/form-error';
 import { theme } from '@/components/theme';
@@ -68,6 +69,8 @@ export function ReleaseDialog({ evaluation, busy, error, onConfirm, onClose }: {
                 </Txt>
               ) : null}
             </View>
+            {/* What is released is read and acted on: the high-voltage caution goes with it (the CSV holds data rows only). */}
+            <CautionBlock />
             <FormError error={error} />
             <View style={styles.actions}>
               <Button label="Release batch" onPress={() => onConfirm(comment.trim())} busy={busy} disabled={!ready} testID="release-confirm" />

@@ -3,6 +3,7 @@ import { useState } from 'react';
 import { Pressable, StyleSheet, TextInput, View } from 'react-native';
 import { Button } from '@/components/button';
 import { Card } from '@/components/card';
+import { CautionBlock } from '@/components/caution-block';
 import { Figure } from '@/components/figure';
 import { FormError } from '@/components/form-error';
 import { QueryState } from '@/components/query-state';
@@ -108,6 +109,8 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
                       </View>
                     ) : null}
                     {outliers.length ? <Txt variant="caption">Outliers: {outliers.map((x) => `${x.device_id} (${x.outlier_params.join(', ')})`).join('; ')}</Txt> : null}
+                    {/* The pass/fail list is downloaded here: its high-voltage caution is shown beside it, not written into the file. */}
+                    <CautionBlock />
                     <Button label="Download pass/fail list (CSV)" kind="secondary" onPress={() => downloadFromUrl(passFailUrl(b.id, e.spec.id))} testID="download-pass-fail" />
                   </View>
                 );

@@ -33,3 +33,6 @@ export function columnHeader(id: CompareColumnId): string {
       return labelWithUnit(id);
   }
 }
+
+/** Every column the grid can show, in the chooser's order (the comparison CSV of the API writes them all). */
+export const ALL_COLUMNS: CompareColumnId[] = ['device_id', 'batch_name', 'result', 'power_class', 'outlier', ...GRID_PARAMS, 'flags', 'reasons'];

@@ -105,6 +105,10 @@ export const QUANTITIES: readonly Quantity[] = [
   q('derived', 'stc_voc_v', 'Voc at STC', 'V'),
   q('derived', 'stc_vmp_v', 'Vmp at STC', 'V'),
 
+  // FF and efficiency as the CSV exports write them: already in % (lib/quality/export-columns.ts).
+  q('metric', 'ff_pct', 'FF', '%', { decimals: 2 }),
+  q('metric', 'eff_pct', 'Efficiency', '%', { decimals: 2 }),
+
   // Material (lib/physics/materials).
   q('material', 'temp_k', 'Temperature', 'K'),
   q('material', 'eg_ev', 'Band gap Eg', 'eV'),

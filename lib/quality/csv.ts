@@ -1,9 +1,11 @@
 /**
- * The pass/fail CSV that ships with a batch, written by papaparse with its formula escaping.
+ * Quasilevel's CSV files — the pass/fail list that ships with a batch, and the rules the comparison
+ * export (lib/quality/compare-csv.ts) shares — written by papaparse with its formula escaping.
  */
 import Papa from 'papaparse';
 import type { BatchEvaluation } from '@/lib/quality/evaluate';
 import { QualityError } from '@/lib/quality/errors';
+import { exportColumnName, exportValue } from '@/lib/quality/export-columns';
 import { PARAM_KEYS, type ParamKey } from '@/lib/quality/params';
 
 export type CsvCell = string | number | boolean | null;
@@ -42,51 +44,81 @@ function plainCell(value: string | number | boolean | null | undefined): CsvCell
   throw new QualityError(`csv cell of type ${typeof value} is not supported`);
 }
 
-/** CSV text (CRLF lines) of a header and rows, formula-safe (CSV_UNPARSE_OPTIONS). */
+/**
+ * CSV text of a header and rows, formula-safe (CSV_UNPARSE_OPTIONS): CRLF between records and
+ * none after the last, so a reader sees exactly one header row and the rows given.
+ */
 export function toCsv(fields: readonly string[], data: readonly (readonly CsvCell[])[]): string {
-  return Papa.unparse({ fields: [...fields], data: data.map((r) => [...r]) }, CSV_UNPARSE_OPTIONS);
+  const text = Papa.unparse({ fields: [...fields], data: data.map((r) => [...r]) }, CSV_UNPARSE_OPTIONS);
+  // papaparse ends a header without rows with a line break, which a reader takes for an empty row.
+  return data.length ? text : text.replace(/\r\n$/, '');
 }
 
-export type PassFailMeta = {
-  /** Version of the spec the batch was judged against. */
-  specVersion: string | number;
-  /** Release state of the batch when exported, e.g. "released", "held". */
+/** What every row of an export says about where it comes from (columns batch_name … exported_at). */
+export type ExportMeta = {
+  batchName: string;
+  /** The spec judged against, or null when none was (a comparison without a spec). */
+  spec: { name: string; version: number } | null;
+  /** The batch's state when exported: "open", "in_review", "on_hold", "released". */
   releaseState: string;
+  /** When the file was made (for a release: the moment of the release). */
+  exportedAt: Date;
+};
+
+/** The columns that close every row of both exports, in order. */
+export const PROVENANCE_COLUMNS = ['spec_name', 'spec_version', 'release_state', 'exported_at'] as const;
+
+/** ISO 8601 in UTC to the second: "2026-12-02T09:41:07Z". */
+export function isoUtc(at: Date): string {
+  if (!Number.isFinite(at.getTime())) throw new QualityError('the export time is not a valid date');
+  return at.toISOString().replace(/\.\d{3}Z$/, 'Z');
+}
+
+/** The cells of PROVENANCE_COLUMNS for one batch (empty spec cells without a spec). */
+export function provenanceCells(meta: Omit<ExportMeta, 'batchName'>): CsvCell[] {
+  return [meta.spec?.name ?? '', meta.spec?.version ?? '', meta.releaseState, isoUtc(meta.exportedAt)];
+}
+
+export type PassFailMeta = ExportMeta & {
   /** Parameter columns, in this order (default: every parameter the evaluation has stats for). */
   params?: ParamKey[];
 };
 
 /**
- * Header and rows of the pass/fail export, in papaparse's { fields, data } form:
- * device_id, result, reasons ("; "-joined), power_class, outlier (yes/no), outlier_params,
- * one column per parameter (numbers, empty when not measured), spec_version, release_state.
+ * Header and rows of the pass/fail export, in papaparse's { fields, data } form — one row per
+ * device and nothing else: device_id, batch_name, result, reasons ("; "-joined), power_class,
+ * outlier (yes/no), outlier_params (their column names), one column per parameter named with its
+ * unit (`pmp_w`, `ff_pct`; numbers in that unit rounded as lib/quality/export-columns.ts states,
+ * empty when not measured), then spec_name, spec_version, release_state and exported_at.
  * Cells are plain values; `passFailCsv` (or `toCsv`) writes them formula-safe.
  */
 export function passFailRows(batch: BatchEvaluation, meta: PassFailMeta): { fields: string[]; data: CsvCell[][] } {
   const params = meta.params ?? PARAM_KEYS.filter((k) => k in batch.stats);
-  const fields = ['device_id', 'result', 'reasons', 'power_class', 'outlier', 'outlier_params', ...params, 'spec_version', 'release_state'];
+  const fields = ['device_id', 'batch_name', 'result', 'reasons', 'power_class', 'outlier', 'outlier_params', ...params.map(exportColumnName), ...PROVENANCE_COLUMNS];
+  const tail = provenanceCells(meta);
   const data = batch.devices.map((d) =>
     [
       d.device_id,
+      meta.batchName,
       d.result,
       d.reasons.map((r) => r.message).join('; '),
       d.power_class,
       d.outlier ? 'yes' : 'no',
-      d.outlier_params.join(' '),
-      ...params.map((k) => d.values[k] ?? null),
-      typeof meta.specVersion === 'number' ? meta.specVersion : String(meta.specVersion),
-      meta.releaseState,
+      d.outlier_params.map(exportColumnName).join(' '),
+      ...params.map((k) => exportValue(k, d.values[k])),
+      ...tail,
     ].map(plainCell),
   );
   return { fields, data };
 }
 
 /**
- * The pass/fail CSV as sent: the rows of `passFailRows`, then each note on a line of its own
- * (e.g. the high-voltage caution), every cell formula-safe.
+ * The pass/fail CSV as sent (RFC 4180: CRLF between records, no line after the last one, quotes
+ * doubled inside quoted cells): one header row, one row per device, every text cell formula-safe.
+ * Nothing else is in the file — the high-voltage caution goes with it on the screens, in the
+ * mails and in the release record instead.
  */
-export function passFailCsv(batch: BatchEvaluation, meta: PassFailMeta, notes: readonly string[] = []): string {
+export function passFailCsv(batch: BatchEvaluation, meta: PassFailMeta): string {
   const rows = passFailRows(batch, meta);
-  const tail = notes.map((n) => Papa.unparse([[n]], CSV_UNPARSE_OPTIONS));
-  return [toCsv(rows.fields, rows.data), ...tail].join('\r\n') + '\r\n';
+  return toCsv(rows.fields, rows.data);
 }

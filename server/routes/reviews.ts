@@ -1,22 +1,16 @@
 import { Router } from 'express';
-import type { Request, Response } from 'express';
+import type { Request } from 'express';
 import type { Db } from '@/db/client';
 import { decisionSchema, reopenSchema, submitSchema } from '@/lib/schemas/quality';
 import type { Mailer } from '@/server/mail';
 import { callerOf, requirePermission } from '@/server/permissions';
 import { releaseCsv, releaseDetail, reopenBatch } from '@/server/services/releases';
 import { batchEvaluation, decideBatch, passFailExport, reviewHistory, submitBatch } from '@/server/services/reviews';
+import { sendCsv } from '@/server/send-csv';
 import { validate } from '@/server/validate';
 
 /** The ?spec=<id> of a request, if any. */
 const specParam = (req: Request) => String(req.query.spec ?? '') || undefined;
-
-/** Sends a CSV file as an attachment. */
-function sendCsv(res: Response, csv: { fileName: string; text: string }) {
-  res.setHeader('Content-Type', 'text/csv; charset=utf-8');
-  res.setHeader('Content-Disposition', `attachment; filename="${csv.fileName}"`);
-  res.send(csv.text);
-}
 
 /** Review, release and export routes of a batch (mounted under /api/batches). */
 export function reviewsRouter(db: Db, mailer: Mailer): Router {
@@ -28,9 +22,11 @@ export function reviewsRouter(db: Db, mailer: Mailer): Router {
   });
 
   /**
-   * GET /api/batches/:id/pass-fail.csv?spec=<specId> — one row per device: device_id, result, reasons,
-   * power_class, outlier, key figures, spec_version, release_state. Cells that a spreadsheet would run
-   * as a formula are escaped. Without ?spec, the spec of the batch's last review decision is used.
+   * GET /api/batches/:id/pass-fail.csv?spec=<specId> — one header row and one row per device:
+   * device_id, batch_name, result, reasons, power_class, outlier, outlier_params, key figures (units
+   * in the column names, FF and efficiency in %), spec_name, spec_version, release_state, exported_at.
+   * Cells that a spreadsheet would run as a formula are escaped. Without ?spec, the spec of the
+   * batch's last review decision is used.
    */
   r.get('/:id/pass-fail.csv', requirePermission('batch:read'), async (req, res) => {
     sendCsv(res, await passFailExport(db, callerOf(req).organization.id, String(req.params.id), specParam(req)));

@@ -11,7 +11,10 @@ import type { Db } from '@/db/client';
 import { batch } from '@/db/schema';
 import { columnsOfRows, describe as describeValues, evaluateBatch, isParamKey, robustZOn, welchDifference } from '@/lib/quality';
 import type { CompareRowInput, Description, ParamKey, Spec } from '@/lib/quality';
+import { comparisonCsv, comparisonFileName } from '@/lib/quality/compare-csv';
+import { rowsOfColumns } from '@/lib/quality/compare-table';
 import { PARAM_KEYS, PARAM_UNITS } from '@/lib/quality/params';
+import type { ComparisonWire } from '@/lib/schemas/responses';
 import type { compareQuerySchema } from '@/lib/schemas/quality';
 import { HttpError } from '@/server/errors';
 import { AnswerCache, batchKey } from '@/server/services/answer-cache';
@@ -135,5 +138,17 @@ export function comparisons(db: Db) {
     });
   }
 
-  return { compare };
+  /**
+   * The comparison as a CSV file (lib/quality/compare-csv.ts): every curve of the chosen batches
+   * with every column of the grid, made from the cached answer. The screen downloads the view it
+   * shows (its filter, sort and columns) with the same writer.
+   */
+  async function compareCsv(organizationId: string, q: CompareQuery): Promise<{ fileName: string; text: string }> {
+    const wire = JSON.parse((await compare(organizationId, q)).toString('utf8')) as ComparisonWire;
+    const exportedAt = new Date();
+    const text = comparisonCsv({ rows: rowsOfColumns(wire.tables, wire.outliers, wire.batches), batches: wire.batches, spec: wire.spec, exportedAt });
+    return { fileName: comparisonFileName(exportedAt), text };
+  }
+
+  return { compare, compareCsv };
 }

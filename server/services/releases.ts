@@ -8,6 +8,7 @@ import { and, asc, count, desc, eq, inArray } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { batch, batchRelease, batchReview, curve, organizationSetting, user } from '@/db/schema';
 import type { BatchEvaluation } from '@/lib/quality';
+import { HV_CAUTION } from '@/lib/strings/cautions';
 import { HttpError, notFound } from '@/server/errors';
 import type { Caller } from '@/server/permissions';
 import { touchBatch } from '@/server/services/answer-cache';
@@ -118,11 +119,14 @@ async function loadRelease(db: Db, organizationId: string, batchId: string, rele
   return r;
 }
 
-/** One release with every device as frozen. */
+/**
+ * One release with every device as frozen, and the high-voltage caution that goes with its
+ * figures (the pass/fail CSV itself holds data rows only).
+ */
 export async function releaseDetail(db: Db, organizationId: string, batchId: string, releaseId: string) {
   const r = await loadRelease(db, organizationId, batchId, releaseId);
   const [by] = r.releasedBy ? await db.select({ name: user.name }).from(user).where(eq(user.id, r.releasedBy)) : [];
-  return { ...releaseSummary(r, by?.name ?? null), devices: r.devices };
+  return { ...releaseSummary(r, by?.name ?? null), devices: r.devices, caution: HV_CAUTION.short };
 }
 
 /** The pass/fail CSV a release shipped, byte for byte. */

@@ -8,7 +8,7 @@ import { batch, batchRelease, batchReview, member, user } from '@/db/schema';
 import { evaluateBatch, passFailCsv } from '@/lib/quality';
 import type { BatchEvaluation } from '@/lib/quality';
 import type { decisionSchema } from '@/lib/schemas/quality';
-import { HV_CAUTION } from '@/lib/strings/cautions';
+import { cautionText } from '@/lib/strings/cautions';
 import { HttpError } from '@/server/errors';
 import type { Mailer, OutgoingMail } from '@/server/mail';
 import type { Caller } from '@/server/permissions';
@@ -61,17 +61,21 @@ export async function batchEvaluation(db: Db, organizationId: string, batchId: s
   };
 }
 
-/** The pass/fail CSV text of an evaluation and its file name. */
-function passFailFile(b: Pick<BatchRow, 'name'>, specRow: { name: string; version: number }, evaluation: BatchEvaluation, releaseState: string) {
-  const text = passFailCsv(evaluation, { specVersion: `${specRow.name} v${specRow.version}`, releaseState, params: [...EXPORT_PARAMS] }, [`# ${HV_CAUTION.short}`]);
+/**
+ * The pass/fail CSV text of an evaluation and its file name: one row per device, with the batch,
+ * the spec and its version, the release state and the export time on each (lib/quality/csv.ts).
+ */
+function passFailFile(b: Pick<BatchRow, 'name'>, specRow: { name: string; version: number }, evaluation: BatchEvaluation, releaseState: string, exportedAt: Date) {
+  const text = passFailCsv(evaluation, { batchName: b.name, spec: { name: specRow.name, version: specRow.version }, releaseState, exportedAt, params: [...EXPORT_PARAMS] });
   const safeName = b.name.replace(/[^A-Za-z0-9._-]+/g, '_').slice(0, 60) || 'batch';
   return { fileName: `${safeName}-pass-fail-v${specRow.version}.csv`, text };
 }
 
 /**
- * The pass/fail CSV (formula-safe, lib/quality/csv.ts) with the high-voltage caution last, and
- * its file name. A released batch's CSV (without ?spec or with the release's spec) is the one
- * its release record keeps, byte for byte; otherwise it is computed now.
+ * The pass/fail CSV (formula-safe, lib/quality/csv.ts) and its file name. A released batch's CSV
+ * (without ?spec or with the release's spec) is the one its release record keeps, byte for byte —
+ * releases made before the exports changed keep the format they shipped in; otherwise it is
+ * computed now. The high-voltage caution is not in the file: the screens and mails carry it.
  */
 export async function passFailExport(db: Db, organizationId: string, batchId: string, specId?: string): Promise<{ fileName: string; text: string }> {
   const b = await loadBatch(db, organizationId, batchId);
@@ -80,7 +84,7 @@ export async function passFailExport(db: Db, organizationId: string, batchId: st
     if (release && (!specId || specId === release.specId)) return { fileName: release.csvFileName, text: release.csv };
   }
   const { specRow, evaluation } = await evaluate(db, b.id, organizationId, await specFor(db, b.id, specId));
-  return passFailFile(b, specRow, evaluation, b.state);
+  return passFailFile(b, specRow, evaluation, b.state, new Date());
 }
 
 /**
@@ -104,7 +108,7 @@ export async function reviewHistory(db: Db, by: Caller, batchId: string) {
   } satisfies ReviewListOut;
 }
 
-/** The mail to a QA lead when a batch is submitted for review. */
+/** The mail to a QA lead when a batch is submitted for review, with the high-voltage caution. */
 export function reviewRequestMail(to: { email: string; name: string }, b: Pick<BatchRow, 'name'>, by: Caller, devices: number, comment: string | undefined): OutgoingMail {
   return {
     to: to.email,
@@ -118,11 +122,13 @@ export function reviewRequestMail(to: { email: string; name: string }, b: Pick<B
       comment ? `Their note: ${comment}` : '',
       '',
       'Open the batch in Quasilevel, judge it against an acceptance spec and release it or put it on hold.',
+      '',
+      cautionText(),
     ].join('\n'),
   };
 }
 
-/** The mail to the submitter when a QA lead releases or holds the batch. */
+/** The mail to the submitter when a QA lead releases or holds the batch (where its pass/fail list is, the high-voltage caution). */
 export function decisionMail(
   to: { email: string; name: string },
   b: Pick<BatchRow, 'name'>,
@@ -144,6 +150,9 @@ export function decisionMail(
       `${by.user.name} ${done} the batch “${b.name}”.`,
       `Judged against ${spec.name} v${spec.version}: ${tally.pass} pass, ${tally.fail} fail, ${tally.outliers} outliers of ${tally.total}.`,
       comment ? `Comment: ${comment}` : '',
+      state === 'released' ? 'The pass/fail list (CSV) of this release is on the batch page under “Acceptance and release”.' : '',
+      '',
+      cautionText(),
     ].join('\n'),
   };
 }
@@ -204,7 +213,9 @@ export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
   }
   const state = releasing ? 'released' : 'on_hold';
   const frozen = releasing ? await frozenDevices(db, b.id, evaluation, devices.map((d) => d.curve_id)) : [];
-  const csv = releasing ? passFailFile(b, specRow, evaluation, 'released') : null;
+  // The release's moment: the export time in its CSV and the record's created_at are one instant.
+  const releasedAt = new Date();
+  const csv = releasing ? passFailFile(b, specRow, evaluation, 'released', releasedAt) : null;
   const reviewId = crypto.randomUUID();
   await db.transaction(async (tx) => {
     const now = await lockBatch(tx, b.id);
@@ -232,6 +243,7 @@ export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
         csvSha256: sha256(csv.text),
         comment: body.comment || null,
         releasedBy: by.user.id,
+        createdAt: releasedAt,
       });
     }
   });

@@ -207,6 +207,7 @@ const ROUTES: RouteCase[] = [
     build: async () => ({ url: '/api/specs', body: { name: 'Matrix spec', limits: { pmp_w: { min: 0 } }, family_id: ids.specFamily, base_version: await newestSpecVersion() } }),
   },
   { method: 'GET', path: '/api/compare', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/compare?batches=${ids.batch}&param=pmp_w` }) },
+  { method: 'GET', path: '/api/compare/comparison.csv', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/compare/comparison.csv?batches=${ids.batch}&param=pmp_w&spec=${ids.spec}` }) },
   { method: 'GET', path: '/api/curves/:id', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/curves/${ids.curve}` }) },
   { method: 'POST', path: '/api/curves/:id/refit', need: 'batch:write', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/curves/${(await freshBatch('open')).curveId}/refit`, body: { model: 'single' } }) },
   { method: 'GET', path: '/api/physics/material', need: 'physics:use', ok: 200, foreign: 'own', build: async () => ({ url: '/api/physics/material?temp_k=300' }) },

@@ -4,11 +4,11 @@
  * limits written in this test on the values the API serves.
  */
 import { eq } from 'drizzle-orm';
-import Papa from 'papaparse';
 import { batch, curve, fit, member, organization, user } from '@/db/schema';
 import { seedDemoBatches } from '@/server/services/seed';
 import { rowsOfColumns } from '@/lib/quality';
 import { signIn, signUp, startHarness } from '@/tests/server/harness';
+import { checkExport } from '@/tests/support/export-checks';
 import type { Harness } from '@/tests/server/harness';
 
 let h: Harness;
@@ -129,12 +129,12 @@ describe('pass/fail export', () => {
     const res = await designer.get(`/api/batches/${lineTwo}/pass-fail.csv?spec=${v1id}`);
     expect(res.status).toBe(200);
     expect(res.headers['content-type']).toMatch(/text\/csv/);
-    const parsed = Papa.parse<Record<string, string>>(res.text.trim(), { header: true, skipEmptyLines: true });
-    const rows = parsed.data.filter((r) => !r.device_id.startsWith("'#") && !r.device_id.startsWith('#'));
-    expect(parsed.meta.fields).toEqual(expect.arrayContaining(['device_id', 'result', 'reasons', 'power_class', 'outlier', 'pmp_w', 'spec_version', 'release_state']));
-
     const curves = (await designer.get(`/api/batches/${lineTwo}/curves?page_size=500`)).body.curves;
-    expect(rows).toHaveLength(curves.length);
+    // One header row and one row per device, nothing else (papaparse and the strict RFC 4180 reader agree).
+    const rows = checkExport(res.text, curves.length).records;
+    expect(Object.keys(rows[0])).toEqual(expect.arrayContaining(['device_id', 'batch_name', 'result', 'reasons', 'power_class', 'outlier', 'pmp_w', 'ff_pct', 'eff_pct', 'spec_name', 'spec_version', 'release_state', 'exported_at']));
+    const batchName = (await designer.get(`/api/batches/${lineTwo}`)).body.name;
+
     for (const c of curves) {
       const row = rows.find((r) => r.device_id === c.device_id)!;
       const expected = judge(c);
@@ -142,8 +142,11 @@ describe('pass/fail export', () => {
       for (const key of expected.reasons) expect(row.reasons).toContain(key === 'step' ? 'flag "step"' : key);
       if (expected.result === 'pass') expect(row.reasons).toBe('');
       expect(row.power_class).toBe(expected.power_class);
-      expect(Number(row.pmp_w)).toBeCloseTo(c.metrics.pmp_w, 6);
-      expect(row.spec_version).toBe(`${moduleSpec.name} v1`);
+      // Rounded as README states: Pmax to 4 decimals; FF in % (the API's fraction × 100) to 2.
+      expect(Number(row.pmp_w)).toBe(Number(c.metrics.pmp_w.toFixed(4)));
+      expect(Number(row.ff_pct)).toBe(Number((c.metrics.ff * 100).toFixed(2)));
+      expect(row.batch_name).toBe(batchName);
+      expect([row.spec_name, row.spec_version]).toEqual([moduleSpec.name, '1']);
       expect(row.release_state).toBe('open');
     }
     // The demo batch's high-Rs module and bypass-step module fail (sample-data scenario).
@@ -218,7 +221,8 @@ describe('review and release', () => {
     // The export now carries the release state and, without ?spec, the spec of the decision.
     const csv = await designer.get(`/api/batches/${lineThree}/pass-fail.csv`);
     expect(csv.status).toBe(200);
-    expect(csv.text).toMatch(/,released\r\n/);
+    const rows = checkExport(csv.text, (await designer.get(`/api/batches/${lineThree}`)).body.curve_count).records;
+    expect(rows.every((r) => r.release_state === 'released' && r.spec_name === moduleSpec.name)).toBe(true);
   });
 
   it('a batch with an unfitted curve cannot be submitted', async () => {

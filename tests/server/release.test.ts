@@ -17,6 +17,7 @@ import type { Analyser } from '@/server/services/analysis-pool';
 import { describeAudit } from '@/lib/auth/audit';
 import { BASE_URL, signIn, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
+import { checkExport } from '@/tests/support/export-checks';
 
 type Agent = Awaited<ReturnType<typeof signUp>>;
 const ORG = 'release-race.example';
@@ -236,7 +237,10 @@ describe('a released batch is final', () => {
     }
     const csv = await designer.get(`/api/batches/${b.id}/pass-fail.csv`);
     expect(sha256(csv.text)).toBe(summary.csv_sha256);
-    expect(csv.text).toMatch(/,released\r\n/);
+    // The CSV of a release: one row per device, released, its export time the release's moment.
+    const rows = checkExport(csv.text, 3).records;
+    expect(rows.every((r) => r.release_state === 'released' && r.spec_name === 'Strict' && r.spec_version === '1')).toBe(true);
+    expect(rows.every((r) => r.exported_at === new Date(summary.created_at).toISOString().replace(/\.\d{3}Z$/, 'Z'))).toBe(true);
   });
 });
 

@@ -1,6 +1,5 @@
 import type { ColumnDef, SortingState } from '@tanstack/react-table';
 import { useLocalSearchParams, useRouter } from 'expo-router';
-import Papa from 'papaparse';
 import { useMemo, useState } from 'react';
 import { Pressable, StyleSheet, TextInput, View, useWindowDimensions } from 'react-native';
 import { Button } from '@/components/button';
@@ -15,16 +14,13 @@ import { Txt } from '@/components/txt';
 import { useBatches } from '@/lib/api/batches';
 import { useComparison, useSpecs } from '@/lib/api/quality';
 import type { CompareRow, Comparison } from '@/lib/api/quality';
-import { DEFAULT_COLUMNS, GRID_PARAMS, columnHeader } from '@/lib/compare-columns';
+import { ALL_COLUMNS, DEFAULT_COLUMNS, GRID_PARAMS, columnHeader } from '@/lib/compare-columns';
 import type { CompareColumnId } from '@/lib/compare-columns';
 import { downloadText } from '@/lib/download';
 import { PARAM_LABELS, fmtParam, sig, unitOf } from '@/lib/format';
-import { csvSafeCell } from '@/lib/quality/csv';
+import { comparisonCsv, comparisonFileName } from '@/lib/quality/compare-csv';
 import { isParamKey } from '@/lib/quality/params';
 import type { ParamKey } from '@/lib/quality/params';
-import { isAboveElv } from '@/lib/strings/cautions';
-
-const ALL_COLUMNS: CompareColumnId[] = ['device_id', 'batch_name', 'result', 'power_class', 'outlier', ...GRID_PARAMS, 'flags', 'reasons'];
 
 function cellText(id: CompareColumnId, r: CompareRow): string {
   const v = r[id];
@@ -192,7 +188,6 @@ function CompareBody(props: {
     });
   }, [c.rows, f.onlyBatches, f.result, f.flag, f.range, param]);
   const defs = useMemo(() => columnDefs(columns), [columns]);
-  const maxVoc = Math.max(0, ...c.rows.map((r) => (r.voc_v as number) ?? 0));
 
   const exportView = () => {
     const order = props.sorting[0];
@@ -206,9 +201,10 @@ function CompareBody(props: {
         return (x < y ? -1 : x > y ? 1 : 0) * (order.desc ? -1 : 1);
       });
     }
-    const raw = (id: CompareColumnId, r: CompareRow) => (id === 'flags' ? r.flags.join(' ') : id === 'reasons' ? r.reasons.join('; ') : (r[id] as string | number | boolean | null) ?? null);
-    const csv = Papa.unparse({ fields: columns.map(String), data: rows.map((r) => columns.map((id) => csvSafeCell(raw(id, r)))) }, { newline: '\r\n' });
-    downloadText(`quasilevel-comparison-${new Date().toISOString().slice(0, 10)}.csv`, csv);
+    // One row per device shown, the columns shown (units in their names, FF and efficiency in %),
+    // batch, spec, release state and export time on each row (lib/quality/compare-csv.ts).
+    const exportedAt = new Date();
+    downloadText(comparisonFileName(exportedAt), comparisonCsv({ rows, columns, batches: c.batches, spec: c.spec, exportedAt }));
   };
 
   const statRows: [string, (s: NonNullable<Comparison['stats'][string][string]>) => string][] = [
@@ -225,7 +221,8 @@ function CompareBody(props: {
 
   return (
     <>
-      {isAboveElv(maxVoc) ? <CautionBlock /> : null}
+      {/* The comparison's CSV is downloaded here: the high-voltage caution goes with it on the screen, not in the file. */}
+      <CautionBlock />
       <Card title={`${filtered.length} of ${c.rows.length} curves`}>
         <View style={{ gap: 8 }}>
           <View style={styles.chips}>

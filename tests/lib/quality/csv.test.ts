@@ -1,7 +1,8 @@
 import Papa from 'papaparse';
-import { csvSafeCell, passFailCsv, passFailRows, toCsv } from '@/lib/quality/csv';
+import { csvSafeCell, isoUtc, passFailCsv, passFailRows, toCsv } from '@/lib/quality/csv';
 import { evaluateBatch } from '@/lib/quality/evaluate';
 import { parseSpec } from '@/lib/quality/spec';
+import { checkExport } from '@/tests/support/export-checks';
 
 describe('csvSafeCell() — OWASP CSV-injection rule for strings', () => {
   it.each([
@@ -35,20 +36,24 @@ describe('csvSafeCell() — OWASP CSV-injection rule for strings', () => {
   });
 });
 
-describe('passFailRows()', () => {
+describe('passFailRows() and passFailCsv()', () => {
+  // Invented devices: a formula-like id, a negative current, FF and efficiency as fractions.
   const spec = parseSpec({ name: 's', limits: { pmp_w: { min: 395 }, isc_a: { min: -1 } }, power_classes: { step_w: 5 } });
   const batch = evaluateBatch(
     [
-      { device_id: '=cmd()', values: { pmp_w: 401, isc_a: -0.25, voc_v: 49.1 }, flags: [] },
+      { device_id: '=cmd()', values: { pmp_w: 401.123456, isc_a: -0.25, voc_v: 49.1, ff: 0.713456, efficiency: 0.213449 }, flags: [] },
       { device_id: 'M2', values: { pmp_w: 390, isc_a: 10.1 }, flags: [] },
     ],
     spec,
   );
-  const rows = passFailRows(batch, { specVersion: 3, releaseState: 'held' });
+  const at = new Date(Date.UTC(2026, 11, 2, 9, 41, 7, 345));
+  const meta = { batchName: 'Lot 7, line "B"', spec: { name: 'Line spec', version: 3 }, releaseState: 'on_hold', exportedAt: at };
+  const rows = passFailRows(batch, meta);
 
-  it('has the agreed columns in order', () => {
+  it('has the agreed columns in order: units in the quantity names, provenance last', () => {
     expect(rows.fields).toEqual([
       'device_id',
+      'batch_name',
       'result',
       'reasons',
       'power_class',
@@ -57,33 +62,57 @@ describe('passFailRows()', () => {
       'isc_a',
       'voc_v',
       'pmp_w',
+      'ff_pct',
+      'eff_pct',
+      'spec_name',
       'spec_version',
       'release_state',
+      'exported_at',
     ]);
   });
 
-  it('gives plain cells: numbers numeric, missing values blank', () => {
-    expect(rows.data[0]).toEqual(['=cmd()', 'pass', '', 'P400', 'no', '', -0.25, 49.1, 401, 3, 'held']);
-    expect(rows.data[1]).toEqual(['M2', 'fail', 'pmp_w 390 W is below the minimum 395 W', 'P390', 'no', '', 10.1, '', 390, 3, 'held']);
+  it('gives plain cells: numbers rounded in their column unit (FF and efficiency in %), missing values blank, ISO 8601 UTC time', () => {
+    // Worked by hand: 401.123456 W to 4 decimals = 401.1235; FF 0.713456 → 71.3456 % → 71.35; 0.213449 → 21.3449 % → 21.34.
+    expect(rows.data[0]).toEqual(['=cmd()', 'Lot 7, line "B"', 'pass', '', 'P400', 'no', '', -0.25, 49.1, 401.1235, 71.35, 21.34, 'Line spec', 3, 'on_hold', '2026-12-02T09:41:07Z']);
+    expect(rows.data[1]).toEqual(['M2', 'Lot 7, line "B"', 'fail', expect.stringMatching(/below the minimum/), 'P390', 'no', '', 10.1, '', 390, '', '', 'Line spec', 3, 'on_hold', '2026-12-02T09:41:07Z']);
   });
 
-  it('writes the CSV with formula text escaped and the negative current still a number, notes last', () => {
-    const csv = passFailCsv(batch, { specVersion: 3, releaseState: 'held' }, ['# a note']);
-    expect(csv.endsWith('\r\n# a note\r\n')).toBe(true);
-    const back = Papa.parse<string[]>(csv.trim(), { dynamicTyping: true }).data;
-    expect(back[1][0]).toBe("'=cmd()");
-    expect(back[1][6]).toBe(-0.25);
-    expect(back[3]).toEqual(['# a note']);
+  it('writes one header row and one row per device, nothing else, readable by papaparse and by a strict RFC 4180 reader', () => {
+    const csv = passFailCsv(batch, meta);
+    const read = checkExport(csv, 2);
+    expect(read.records[0].device_id).toBe("'=cmd()"); // formula text escaped
+    expect(read.records[0].isc_a).toBe('-0.25'); // the negative current is still a number
+    expect(read.records.map((r) => r.batch_name)).toEqual(['Lot 7, line "B"', 'Lot 7, line "B"']);
+    expect(csv).not.toMatch(/High voltage|caution/i);
+    expect(csv.endsWith('\r\n')).toBe(false);
+    expect(csv.split('\r\n')).toHaveLength(3);
+  });
+
+  it('names outlier parameters by their column', () => {
+    const many = Array.from({ length: 12 }, (_, k) => ({ device_id: `D${k}`, values: { pmp_w: 400 + (k % 3) * 0.1, ff: 0.75 + (k % 2) * 0.001 }, flags: [] }));
+    many.push({ device_id: 'low-ff', values: { pmp_w: 400, ff: 0.5 }, flags: [] });
+    const e = evaluateBatch(many, parseSpec({ name: 'x', limits: {} }), { outlier_params: ['pmp_w', 'ff'] });
+    const r = passFailRows(e, meta);
+    const low = r.data[r.data.length - 1];
+    expect(low[r.fields.indexOf('outlier')]).toBe('yes');
+    expect(low[r.fields.indexOf('outlier_params')]).toBe('ff_pct');
   });
 
   it('refuses a non-finite figure instead of writing "NaN"', () => {
     const bad = { ...batch, devices: [{ ...batch.devices[0], values: { ...batch.devices[0].values, pmp_w: Number.NaN } }] };
-    expect(() => passFailRows(bad, { specVersion: 1, releaseState: 'open' })).toThrow(/not a finite number/);
+    expect(() => passFailRows(bad, meta)).toThrow(/not a finite number/);
   });
 
   it('follows an explicit parameter list', () => {
-    const r = passFailRows(batch, { specVersion: 'v1', releaseState: 'released', params: ['pmp_w'] });
-    expect(r.fields.slice(6)).toEqual(['pmp_w', 'spec_version', 'release_state']);
+    const r = passFailRows(batch, { ...meta, params: ['pmp_w', 'ff'] });
+    expect(r.fields.slice(7)).toEqual(['pmp_w', 'ff_pct', 'spec_name', 'spec_version', 'release_state', 'exported_at']);
+  });
+});
+
+describe('isoUtc()', () => {
+  it('writes ISO 8601 in UTC to the second, whatever the time zone', () => {
+    expect(isoUtc(new Date('2026-12-02T10:41:07.999+01:00'))).toBe('2026-12-02T09:41:07Z');
+    expect(() => isoUtc(new Date('not a date'))).toThrow(/not a valid date/);
   });
 });
 
