@@ -55,7 +55,7 @@ export function kindLabel(cells: readonly number[], withoutCells: number, device
   else known = `modules of ${cells[0]} to ${cells[cells.length - 1]} cells`;
   if (!withoutCells) return known;
   const none = withoutCells === devices ? 'cells in series not given' : `${withoutCells} of ${devices} devices without a cell count`;
-  return known ? `${known}; ${none}` : none;
+  return known ? `${known}, ${none}` : none;
 }
 
 /** The kind of one batch from its devices' cell counts (null: the device does not say). */
@@ -80,6 +80,8 @@ export function perCellValues(devices: readonly { cells: number | null; values: 
   return out;
 }
 
+const capital = (text: string) => text.charAt(0).toUpperCase() + text.slice(1);
+
 /** "Voc per cell": the label the per-cell figures carry. */
 export function perCellLabel(param: ParamKey): string {
   return `${labelOf(param)} per cell`;
@@ -101,29 +103,31 @@ export function compareKinds(
   const name = (id: string) => `“${names.get(id) ?? id}”`;
   const listing = kinds.map((k) => `${name(k.batch_id)}: ${k.label}`).join('; ');
   const base = { batches: [...kinds], mixed, per_cell_stats: null };
+  const silent = kinds.filter((k) => k.without_cells > 0);
+  const totalSilent = silent.reduce((s, k) => s + k.without_cells, 0);
+  const which = silent.map((k) => `${k.without_cells} device${k.without_cells === 1 ? '' : 's'} of ${name(k.batch_id)}`).join(' and ');
+  const doNotSay = `${which} ${totalSilent === 1 ? 'does' : 'do'} not say how many cells are in series`;
+  const fix = 'Give the cells in series in the files, as the batch’s default before uploading, or in a refit.';
   if (!mixed) {
-    // One kind, as far as the files say. A batch that does not say is assumed to be of that kind.
-    const silent = kinds.filter((k) => k.without_cells > 0);
-    if (known.size === 1 && silent.length && kinds.length > 1) {
-      const count = [...known][0];
-      return {
-        ...base,
-        basis: 'as_measured',
-        note: `${silent.map((k) => name(k.batch_id)).join(' and ')} ${silent.length === 1 ? 'does' : 'do'} not say how many cells ${silent.length === 1 ? 'its' : 'their'} devices have in series; compared as measured, as if they were ${kindLabel([count], 0, 1)} like the others.`,
-      };
+    if (!silent.length || kinds.length < 2) return { ...base, basis: 'as_measured', note: null };
+    if (known.size === 0) {
+      return { ...base, basis: 'as_measured', note: `None of these batches says how many cells its devices have in series; compared as measured, as if they were of one kind.` };
     }
-    return { ...base, basis: 'as_measured', note: null };
+    // The files that say agree on one kind; the others might be of another (a lot of cells
+    // against modules): a figure that adds up over the cells cannot be trusted as measured.
+    const lead = `${doNotSay}, so it cannot be told whether they are ${kindLabel([...known], 0, 1)} like the rest.`;
+    if (SERIES_KEYS.has(param)) {
+      return { ...base, basis: 'refused', note: `${capital(lead)} ${label} adds up over the cells in series: Welch’s t-test is not run on it. ${fix}` };
+    }
+    return { ...base, basis: 'as_measured', note: `${capital(lead)} ${label} does not add up over the cells in series, so it is compared as measured.` };
   }
   const lead = `These batches hold different kinds of devices (${listing}).`;
   if (SERIES_KEYS.has(param)) {
-    const silent = kinds.filter((k) => k.without_cells > 0);
     if (silent.length) {
-      const which = silent.map((k) => `${k.without_cells} device${k.without_cells === 1 ? '' : 's'} of ${name(k.batch_id)}`).join(' and ');
-      const total = silent.reduce((s, k) => s + k.without_cells, 0);
       return {
         ...base,
         basis: 'refused',
-        note: `${lead} ${label} adds up over the cells in series, so it can only be compared per cell, but ${which} ${total === 1 ? 'does' : 'do'} not say how many cells are in series: Welch’s t-test is not run on ${label}. Set the cells in series on the batch or in the files.`,
+        note: `${lead} ${label} adds up over the cells in series, so it can only be compared per cell, but ${doNotSay}: Welch’s t-test is not run on ${label}. ${fix}`,
       };
     }
     const per_cell_stats: Record<string, Description | null> = {};

@@ -26,13 +26,13 @@ describe('kinds in words', () => {
     [[36, 72], 0, 3, 'modules of 36 to 72 cells'],
     [[1, 60], 0, 4, 'cells and modules of up to 60 cells'],
     [[], 4, 4, 'cells in series not given'],
-    [[60], 1, 2, '60-cell modules; 1 of 2 devices without a cell count'],
+    [[60], 1, 2, '60-cell modules, 1 of 2 devices without a cell count'],
   ] as const)('%j, %i without of %i → %s', (c, without, n, text) => {
     expect(kindLabel(c, without, n)).toBe(text);
   });
 
   it('a batch kind counts the devices that do not say', () => {
-    expect(kind('U')).toEqual({ batch_id: 'U', cells: [60], without_cells: 1, label: '60-cell modules; 1 of 2 devices without a cell count' });
+    expect(kind('U')).toEqual({ batch_id: 'U', cells: [60], without_cells: 1, label: '60-cell modules, 1 of 2 devices without a cell count' });
   });
 });
 
@@ -72,16 +72,29 @@ describe('compareKinds', () => {
   it('different kinds and a device without a cell count: the t-test on a series figure is refused, in words', () => {
     const k = compareKinds([kind('L'), kind('U')], 'pmp_w', names, devices);
     expect(k.basis).toBe('refused');
-    expect(k.note).toMatch(/1 device of “Lot without counts” does not say how many cells are in series: Welch’s t-test is not run on Pmax\. Set the cells in series/);
+    expect(k.note).toMatch(/1 device of “Lot without counts” does not say how many cells are in series: Welch’s t-test is not run on Pmax\. Give the cells in series/);
     // The same batches on FF: no per-cell figure needed, so it is compared.
     expect(compareKinds([kind('L'), kind('U')], 'ff', names, devices).basis).toBe('as_measured');
   });
 
-  it('one kind where one batch does not say: as measured, saying what was assumed', () => {
+  it('one batch does not say while the others do: a series figure is refused (the kinds cannot be told apart), FF compared', () => {
     const silent = new Map([...devices, ['S', [dev(null, 40), dev(null, 41)]]]);
-    const k = compareKinds([kind('M'), batchKind('S', silent.get('S')!)], 'voc_v', new Map([...names, ['S', 'Old lot']]), silent);
-    expect(k.basis).toBe('as_measured');
-    expect(k.note).toMatch(/“Old lot” does not say how many cells its devices have in series; compared as measured, as if they were 60-cell modules/);
+    const withOld = new Map([...names, ['S', 'Old lot']]);
+    const k = compareKinds([kind('C'), batchKind('S', silent.get('S')!)], 'voc_v', withOld, silent);
+    expect(k.mixed).toBe(false);
+    expect(k.basis).toBe('refused');
+    expect(k.note).toBe(
+      '2 devices of “Old lot” do not say how many cells are in series, so it cannot be told whether they are single cells like the rest. Voc adds up over the cells in series: Welch’s t-test is not run on it. Give the cells in series in the files, as the batch’s default before uploading, or in a refit.',
+    );
+    const ff = compareKinds([kind('C'), batchKind('S', silent.get('S')!)], 'ff', withOld, silent);
+    expect(ff.basis).toBe('as_measured');
+    expect(ff.note).toMatch(/FF does not add up over the cells in series, so it is compared as measured/);
+  });
+
+  it('no batch says: as measured, saying so', () => {
+    const none = new Map([['X', [dev(null, 40)]], ['Y', [dev(null, 41)]]]);
+    const k = compareKinds([batchKind('X', none.get('X')!), batchKind('Y', none.get('Y')!)], 'voc_v', new Map([['X', 'X'], ['Y', 'Y']]), none);
+    expect(k).toMatchObject({ basis: 'as_measured', note: expect.stringMatching(/None of these batches says how many cells/) });
   });
 
   it('per-cell values leave out devices without a count; the label says per cell', () => {
