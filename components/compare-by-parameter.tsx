@@ -58,7 +58,7 @@ export function CompareByParameter({ c, param, setParam }: { c: Comparison; para
   const kinds = new Map((c.kinds?.batches ?? []).map((k) => [k.batch_id, k.label]));
   const fmt = (x: number | null | undefined, digits?: number) => fmtParam(param, x, digits);
   return (
-    <>
+    <View style={{ gap: 16 }} testID="compare-by-parameter">
       <Card title="One figure, every batch" testID="param-view">
         <View style={styles.chips} accessibilityRole="radiogroup" accessibilityLabel="Figure to compare">
           {GRID_PARAMS.map((k) => {
@@ -119,7 +119,7 @@ export function CompareByParameter({ c, param, setParam }: { c: Comparison; para
           <Txt variant="caption">Boxes: quartiles; whiskers: lowest and highest; dots: every device. The strips above: lowest to highest, P5–P95 shaded, median marked, on one scale.</Txt>
         </Card>
       ) : null}
-    </>
+    </View>
   );
 }
 
