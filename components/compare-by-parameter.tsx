@@ -57,6 +57,9 @@ export function CompareByParameter({ c, param, setParam }: { c: Comparison; para
   const at = (x: number) => (hi > lo ? ((x - lo) / (hi - lo)) * 100 : 50);
   const kinds = new Map((c.kinds?.batches ?? []).map((k) => [k.batch_id, k.label]));
   const fmt = (x: number | null | undefined, digits?: number) => fmtParam(param, x, digits);
+  // "0.6743 … 0.7022 V": the unit once, so a range fits a phone's half width.
+  const unit = unitOf(param);
+  const range = (a: number, b: number) => `${unit ? fmt(a, 4).replace(` ${unit}`, '') : fmt(a, 4)} … ${fmt(b, 4)}`;
   return (
     <View style={{ gap: 16 }} testID="compare-by-parameter">
       <Card title="One figure, every batch" testID="param-view">
@@ -92,8 +95,9 @@ export function CompareByParameter({ c, param, setParam }: { c: Comparison; para
               <>
                 <View style={styles.figures}>
                   <Stat label={`${label} mean`} value={fmt(s.mean)} note={s.sd != null ? `σ ${fmt(s.sd, 3)}` : 'one value'} />
-                  <Stat label="median" value={fmt(s.median)} note={`P5 ${fmt(s.p5, 4)} · P95 ${fmt(s.p95, 4)}`} />
-                  <Stat label="range" value={`${fmt(s.min, 4)} … ${fmt(s.max, 4)}`} note={`n = ${s.n}${s.cpk != null ? ` · Cpk ${sig(s.cpk, 3)}` : ''}`} />
+                  <Stat label="median" value={fmt(s.median)} note={`n = ${s.n}${s.cpk != null ? ` · Cpk ${sig(s.cpk, 3)}` : ''}`} />
+                  <Stat label="P5 … P95" value={range(s.p5, s.p95)} />
+                  <Stat label="lowest … highest" value={range(s.min, s.max)} />
                 </View>
                 <View style={styles.strip} accessibilityLabel={`${b.name}: ${label} from ${fmt(s.min)} to ${fmt(s.max)}, median ${fmt(s.median)}`}>
                   <View style={[styles.whisker, { left: `${at(s.min)}%`, width: `${Math.max(0.5, at(s.max) - at(s.min))}%` }]} />
@@ -123,12 +127,12 @@ export function CompareByParameter({ c, param, setParam }: { c: Comparison; para
   );
 }
 
-function Stat({ label, value, note }: { label: string; value: string; note: string }) {
+function Stat({ label, value, note }: { label: string; value: string; note?: string }) {
   return (
-    <View style={{ minWidth: 130, flexGrow: 1, flexBasis: 130, gap: 1 }}>
+    <View style={{ minWidth: 128, flexGrow: 1, flexBasis: 128, gap: 1 }}>
       <Txt variant="caption">{label}</Txt>
-      <Txt variant="figure" style={{ fontSize: 15 }}>{value}</Txt>
-      <Txt variant="caption" style={{ fontFamily: theme.font.mono }}>{note}</Txt>
+      <Txt variant="figure" style={{ fontSize: 14 }}>{value}</Txt>
+      {note ? <Txt variant="caption" style={{ fontFamily: theme.font.mono }}>{note}</Txt> : null}
     </View>
   );
 }
@@ -138,7 +142,7 @@ const styles = StyleSheet.create({
   chip: { paddingHorizontal: 10, paddingVertical: 5, borderRadius: 999, borderWidth: 1, borderColor: theme.color.line },
   chipOn: { backgroundColor: theme.color.ink, borderColor: theme.color.ink },
   note: { backgroundColor: theme.color.holeSoft, borderRadius: theme.radius.m, padding: 10, fontSize: 14, lineHeight: 20 },
-  figures: { flexDirection: 'row', flexWrap: 'wrap', gap: 10 },
+  figures: { flexDirection: 'row', flexWrap: 'wrap', columnGap: 10, rowGap: 8 },
   strip: { height: 18, marginHorizontal: 4, position: 'relative' },
   whisker: { position: 'absolute', top: 8, height: 2, backgroundColor: theme.color.inkSoft },
   box: { position: 'absolute', top: 2, height: 14, backgroundColor: theme.color.electronSoft, borderWidth: 1, borderColor: theme.color.electron, borderRadius: 2 },

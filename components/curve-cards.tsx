@@ -88,7 +88,7 @@ export function CurveCards({ rows, sort, dir, onSort }: { rows: CurvePageRow[]; 
 
 function Fig({ k, label, value }: { k: string; label: string; value: number | null | undefined }) {
   return (
-    <View style={{ minWidth: 70, flexGrow: 1, flexBasis: 70 }}>
+    <View style={{ minWidth: 60, flexGrow: 1, flexBasis: 60 }}>
       <Txt variant="caption">{label}</Txt>
       <Txt variant="figure" style={{ fontSize: 14 }}>
         {fmtParam(k, value)}
@@ -103,6 +103,6 @@ const styles = StyleSheet.create({
   sortOn: { backgroundColor: theme.color.ink, borderColor: theme.color.ink },
   card: { borderWidth: 1, borderColor: theme.color.line, borderRadius: theme.radius.m, padding: 12, gap: 8, backgroundColor: theme.color.surface },
   top: { flexDirection: 'row', justifyContent: 'space-between', alignItems: 'flex-start', gap: 8 },
-  figures: { flexDirection: 'row', flexWrap: 'wrap', gap: 10 },
+  figures: { flexDirection: 'row', flexWrap: 'wrap', gap: 8 },
   chips: { flexDirection: 'row', flexWrap: 'wrap', gap: 4 },
 });

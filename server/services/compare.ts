@@ -15,6 +15,7 @@ import { batchKind, compareKinds, perCellLabel, perCellValues } from '@/lib/qual
 import type { BatchKind } from '@/lib/quality/compare-kinds';
 import { PARAM_KEYS, PARAM_UNITS } from '@/lib/quality/params';
 import type { compareQuerySchema } from '@/lib/schemas/quality';
+import { labelOf } from '@/lib/vocabulary';
 import { HttpError } from '@/server/errors';
 import { AnswerCache, batchKey } from '@/server/services/answer-cache';
 import { deviceRecords } from '@/server/services/quality';
@@ -122,7 +123,7 @@ export function comparisons(db: Db) {
         const a = perCell ? perCellValues(byBatch.get(first.id) ?? [], param) : values(first.id);
         const bb = perCell ? perCellValues(byBatch.get(b.id) ?? [], param) : values(b.id);
         try {
-          return { batch_a: first.id, batch_b: b.id, param, basis: pair.basis, ...welchDifference(a, bb, 0.95, { nameA: first.name, nameB: b.name, param: perCell ? perCellLabel(param) : param, unit: PARAM_UNITS[param] }) };
+          return { batch_a: first.id, batch_b: b.id, param, basis: pair.basis, ...welchDifference(a, bb, 0.95, { nameA: first.name, nameB: b.name, param: perCell ? perCellLabel(param) : labelOf(param), unit: PARAM_UNITS[param] }) };
         } catch (err) {
           return { batch_a: first.id, batch_b: b.id, param, basis: pair.basis, error: (err as Error).message };
         }

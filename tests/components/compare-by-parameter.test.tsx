@@ -67,7 +67,7 @@ describe('CompareByParameter', () => {
     expect(mods.getByText(/60-cell modules · 3 curves/)).toBeOnTheScreen();
     // Median per cell: 40.2 / 60 = 0.67 V; range 39.6/60 = 0.66 … 40.8/60 = 0.68 V.
     expect(mods.getAllByText('0.67 V')).toHaveLength(2);
-    expect(mods.getByText('0.66 V … 0.68 V')).toBeOnTheScreen();
+    expect(mods.getByText('0.66 … 0.68 V')).toBeOnTheScreen();
     expect(screen.getByTestId(`difference-${MODS.name}`)).toHaveTextContent('Invented sentence for the test.');
   });
 

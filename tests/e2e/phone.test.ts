@@ -34,7 +34,7 @@ afterAll(async () => {
 });
 
 /** A batch name of exactly 60 characters (invented), different per width so the runs do not meet. */
-const longName = (vp: string) => `${vp === 'phone' ? 'Phone' : 'Wide'} check: incoming inspection of KF-M60 modules, line 2, lot 2611 rework`.slice(0, 60);
+const longName = (vp: string) => `${vp === 'phone' ? 'Phone' : 'Wide'} check: incoming inspection of KF-M60 modules, line 2/lot 2611-rework-A-B-C`.slice(0, 60);
 
 /**
  * Buttons, links, radios and checkboxes whose box sticks out of the viewport sideways (those in a
@@ -58,6 +58,11 @@ async function clippedControls(page: Page): Promise<string[]> {
     }
     return out;
   });
+}
+
+/** Scrolls the page's scroll view so the element's top is at the top of the screen. */
+async function scrollToTop(page: Page, testID: string) {
+  await page.getByTestId(testID).first().evaluate((el) => el.scrollIntoView({ block: 'start' }));
 }
 
 /** The demo batches' ids, read through the API with the page's session. */
@@ -110,11 +115,11 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       expect(await b.page.getByTestId('overlay-chart').locator('path[stroke="#C27C00"]').count()).toBe(warning);
       expect(failing).toBeGreaterThanOrEqual(1);
 
-      await b.page.getByTestId('batch-screen').evaluate((el) => el.scrollTo?.(0, 0));
+      await b.page.getByTestId('batch-screen').getByRole('heading').first().evaluate((el) => el.scrollIntoView({ block: 'start' }));
       expect(await clippedControls(b.page)).toEqual([]);
       expect(await layoutProblems(b.page)).toEqual([]);
       await screenshot(b.page, `phone-batch-header-${vpName}`);
-      await b.page.getByTestId(phone ? 'curve-cards' : 'curve-table').scrollIntoViewIfNeeded();
+      await scrollToTop(b.page, phone ? 'curve-cards' : 'curve-table');
       expect(await clippedControls(b.page)).toEqual([]);
       await screenshot(b.page, `phone-batch-${phone ? 'cards' : 'table'}-${vpName}`);
 
@@ -130,6 +135,7 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       }
       expect(await clippedControls(b.page)).toEqual([]);
       expect(await layoutProblems(b.page)).toEqual([]);
+      await b.page.getByTestId('curve-screen').getByRole('heading').first().evaluate((el) => el.scrollIntoView({ block: 'start' }));
       await screenshot(b.page, `phone-curve-header-${vpName}`);
 
       // Every other section's header and buttons, with the long batch among the batches.
@@ -184,7 +190,7 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       expect(await clippedControls(b.page)).toEqual([]);
       expect(await layoutProblems(b.page)).toEqual([]);
       await screenshot(b.page, `phone-compare-voc-${vpName}`);
-      await b.page.getByTestId(phone ? 'param-view' : 'stats-table').scrollIntoViewIfNeeded();
+      await scrollToTop(b.page, phone ? `compare-batch-${CELLS}` : 'stats-table');
       await screenshot(b.page, `phone-compare-view-${vpName}`);
 
       // Another figure: Isc is compared as measured, and the words say why.
@@ -192,12 +198,12 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await b.page.waitForURL((u) => u.searchParams.get('param') === 'isc_a');
       await b.page.getByText(/Isc does not depend on the cells in series/).waitFor();
       if (phone) {
-        await b.page.getByTestId(`compare-batch-${MODULES}`).scrollIntoViewIfNeeded();
+        await scrollToTop(b.page, `compare-batch-${CELLS}`);
         await screenshot(b.page, `phone-compare-isc-${vpName}`);
         // The grid stays one tap away.
         await b.page.getByTestId('show-grid').click();
         await b.page.getByTestId('compare-grid').waitFor();
-        await b.page.getByTestId('compare-grid').scrollIntoViewIfNeeded();
+        await scrollToTop(b.page, 'compare-grid');
         expect(await clippedControls(b.page)).toEqual([]);
         await screenshot(b.page, `phone-compare-grid-${vpName}`);
       }
