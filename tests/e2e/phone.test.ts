@@ -155,6 +155,19 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await b.page.getByTestId(`batch-${name}`).waitFor();
       expect(await layoutProblems(b.page)).toEqual([]);
       await screenshot(b.page, `phone-batches-${vpName}`);
+
+      // A spec with a 60-character name (invented): its page's header and "Change limits".
+      const specName = `${name.slice(0, 40)} release spec, version A`.slice(0, 60);
+      const specId = await b.page.evaluate(async (n) => {
+        const res = await fetch('/api/specs', { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ name: n, limits: { pmp_w: { min: 300 } } }) });
+        return ((await res.json()) as { id: string }).id;
+      }, specName);
+      await b.page.goto(`${srv.url}/specs/${specId}`, { waitUntil: 'load' });
+      await b.page.getByTestId('spec-screen').waitFor();
+      await b.page.getByTestId('edit-spec').waitFor();
+      expect(await clippedControls(b.page)).toEqual([]);
+      expect(await layoutProblems(b.page)).toEqual([]);
+      await screenshot(b.page, `phone-spec-header-${vpName}`);
     } finally {
       await b.close();
     }
