@@ -4,9 +4,10 @@ import type { CellContext } from '@tanstack/react-table';
 import type { SortingState } from '@tanstack/react-table';
 import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
 import { FlagChip } from '@/components/flag-chip';
+import { SeverityBadge } from '@/components/severity-badge';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
-import type { CurveRow } from '@/lib/api/batches';
+import type { CurvePageRow as CurveRow } from '@/lib/api/batches';
 import { fmtParam } from '@/lib/format';
 import { stcFiguresOf } from '@/lib/schemas/curves';
 import type { CurveSortKey } from '@/lib/schemas/curves';
@@ -22,6 +23,7 @@ const single = (r: CurveRow) => r.fits.find((f) => f.model === 'single-diode');
 /** Columns of the batch table; ids are the server's sort keys. */
 const COLUMNS = [
   col.accessor('device_id', { id: 'device_id', header: 'Device', size: 150 }),
+  col.display({ id: 'severity', header: 'Result', size: 92 }),
   col.accessor((r) => r.metrics.isc_a, { id: 'isc_a', header: 'Isc (A)', size: 86, cell: (c) => fmtParam('isc_a', c.getValue()).replace(' A', '') }),
   col.accessor((r) => r.metrics.voc_v, { id: 'voc_v', header: 'Voc (V)', size: 86, cell: (c) => fmtParam('voc_v', c.getValue()).replace(' V', '') }),
   col.accessor((r) => r.metrics.pmp_w, { id: 'pmp_w', header: 'Pmax (W)', size: 90, cell: (c) => fmtParam('pmp_w', c.getValue()).replace(' W', '') }),
@@ -34,7 +36,7 @@ const COLUMNS = [
 ];
 
 /**
- * The batch's curves: sorting happens on the server (the table library only manages headers and
+ * The batch's curves as a table, for wide screens (phones get CurveCards): sorting happens on the server (the table library only manages headers and
  * state), so 5,000 curves page as fast as 50. The device column stays put while the figures scroll.
  */
 export function CurveTable({ rows, sort, dir, onSort }: { rows: CurveRow[]; sort: CurveSortKey; dir: 'asc' | 'desc'; onSort: (key: CurveSortKey, dir: 'asc' | 'desc') => void }) {
@@ -49,7 +51,7 @@ export function CurveTable({ rows, sort, dir, onSort }: { rows: CurveRow[]; sort
   });
   const [deviceCol, ...rest] = table.getAllLeafColumns();
   const header = (id: string, label: string, width: number) => {
-    const sortable = id !== 'flags';
+    const sortable = id !== 'flags' && id !== 'severity';
     const active = sort === id;
     return (
       <Pressable
@@ -87,7 +89,11 @@ export function CurveTable({ rows, sort, dir, onSort }: { rows: CurveRow[]; sort
         {table.getRowModel().rows.map((r) => (
           <View key={r.id} style={{ flexDirection: 'row' }}>
             {r.getVisibleCells().slice(1).map((cell) =>
-              cell.column.id === 'flags' ? (
+              cell.column.id === 'severity' ? (
+                <View key={cell.id} style={[styles.cell, styles.row, { width: cell.column.getSize() }]}>
+                  <SeverityBadge severity={r.original.severity} testID={`result-${r.original.device_id}`} />
+                </View>
+              ) : cell.column.id === 'flags' ? (
                 <View key={cell.id} style={[styles.cell, styles.row, { width: cell.column.getSize(), flexDirection: 'row', gap: 4, flexWrap: 'nowrap', overflow: 'hidden' }]}>
                   {r.original.flags.filter((f) => f.severity !== 'info').slice(0, 3).map((f) => (
                     <FlagChip key={f.code} flag={f} />

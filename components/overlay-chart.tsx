@@ -14,16 +14,18 @@ import type { LegendItem } from '@/lib/charts/svg-file';
 
 const AXES = edgeAxes(chartStyle.padding);
 
-/** Flagged curves in amber on top; the rest in one neutral grey, thin and faint, behind them. */
-const TONE_STYLE: Record<OverlayTone, { stroke: string; strokeWidth: number; opacity: number }> = {
-  flagged: { stroke: theme.color.hole, strokeWidth: 1.6, opacity: 0.95 },
-  other: { stroke: theme.color.muted, strokeWidth: 1, opacity: 0.35 },
+/** Failing curves in the danger colour on top, warnings in amber; passing ones in one neutral grey, thin and faint, behind them. */
+export const TONE_STYLE: Record<OverlayTone, { stroke: string; strokeWidth: number; opacity: number }> = {
+  fail: { stroke: theme.color.danger, strokeWidth: 1.8, opacity: 0.95 },
+  warn: { stroke: theme.color.hole, strokeWidth: 1.6, opacity: 0.95 },
+  pass: { stroke: theme.color.muted, strokeWidth: 1, opacity: 0.35 },
 };
 
 /**
- * Many curves of a batch on one I-V chart. Only flagged devices are coloured; the legend counts
- * them with the same rule that colours them. The pointer reads the nearest point of any curve,
- * with its device id.
+ * Many curves of a batch on one I-V chart. Only failing and warning devices are coloured (each
+ * curve's severity comes with the overlay answer: the batch's spec, else the flags); the legend
+ * counts them with the same rule that colours them. The pointer reads the nearest point of any
+ * curve, with its device id.
  */
 export function OverlayChart({ curves, batch_name, height = 260, testID }: { curves: OverlayCurve[]; batch_name?: string; height?: number; testID?: string }) {
   const { ordered, counts } = useMemo(() => overlayTones(curves), [curves]);
@@ -35,8 +37,9 @@ export function OverlayChart({ curves, batch_name, height = 260, testID }: { cur
   const all = useMemo(() => lines.flatMap((l) => l.data.map((p) => ({ ...p, curve: l.curve }))), [lines]);
   const domain = useMemo(() => domainOf([all as Point[]]), [all]);
   const legend: LegendItem[] = [
-    { label: `${counts.flagged} flagged`, colour: TONE_STYLE.flagged.stroke, mark: 'line' },
-    { label: `${counts.other} not flagged`, colour: TONE_STYLE.other.stroke, mark: 'line' },
+    { label: `${counts.fail} failing`, colour: TONE_STYLE.fail.stroke, mark: 'line' },
+    { label: `${counts.warn} with warnings`, colour: TONE_STYLE.warn.stroke, mark: 'line' },
+    { label: `${counts.pass} passing`, colour: TONE_STYLE.pass.stroke, mark: 'line' },
   ];
   return (
     <ChartFrame height={height} testID={testID} legend={legend} download={{ name: batch_name ?? 'batch', kind: 'overlay', title: `${batch_name ?? 'Batch'}: I-V curves` }}>

@@ -35,4 +35,6 @@ export const theme = {
   space: (n: number) => n * 4,
   /** Width from which the layout uses a side navigation and several columns. */
   wideFrom: 1024,
+  /** Width from which lists of devices are tables and grids; below it they are cards (phones, narrow windows). */
+  tableFrom: 900,
 } as const;

@@ -10,7 +10,7 @@ import type { Batch, BatchList, CurveDetail, CurvePage, CurveRow, Overlay, Refit
 export { batchKeys, curveKeys };
 export type { CurveListParams };
 
-export type { Batch, CurveDetail, CurveRow, DescribeStats, OverlayCurve, UploadFileResult } from '@/lib/schemas/responses';
+export type { Batch, CurveDetail, CurvePageRow, CurveRow, DescribeStats, OverlayCurve, UploadFileResult } from '@/lib/schemas/responses';
 export type FitJson = CurveRow['fits'][number];
 
 export function useBatches() {

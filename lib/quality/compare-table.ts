@@ -15,6 +15,8 @@ export type CompareRow = Record<string, unknown> & {
   batch_id: string;
   batch_name: string;
   device_id: string;
+  /** Cells in series, null when the device does not say (per-cell figures between kinds). */
+  cells: number | null;
   flags: string[];
   result: CompareResult;
   reasons: string[];
@@ -26,6 +28,7 @@ export type CompareRow = Record<string, unknown> & {
 export type CompareRowInput = {
   curve_id: string;
   device_id: string;
+  cells: number | null;
   values: Partial<Record<string, number | null>>;
   flags: string[];
   result: CompareResult;
@@ -38,6 +41,7 @@ export type BatchColumns = {
   length: number;
   curve_id: string[];
   device_id: string[];
+  cells: (number | null)[];
   flags: string[][];
   result: CompareResult[];
   reasons: string[][];
@@ -63,6 +67,7 @@ export function columnsOfRows(rows: readonly CompareRowInput[]): BatchColumns {
     length: rows.length,
     curve_id: rows.map((r) => r.curve_id),
     device_id: rows.map((r) => r.device_id),
+    cells: rows.map((r) => r.cells),
     flags: rows.map((r) => r.flags),
     result: rows.map((r) => r.result),
     reasons: rows.map((r) => r.reasons),
@@ -91,6 +96,8 @@ export function rowsOfColumns(tables: readonly BatchColumns[], outliers: readonl
         batch_id: batch.id,
         batch_name: batch.name,
         device_id: t.device_id[j],
+        // Parts cached before the column existed have none.
+        cells: t.cells?.[j] ?? null,
         flags: t.flags[j],
         result: t.result[j],
         reasons: t.reasons[j],

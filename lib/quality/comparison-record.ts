@@ -82,7 +82,7 @@ export function comparisonRecordFields(tuple: ComparisonRecordTuple | readonly u
 }
 
 /** A device as the quality rules judge it, with the curve and batch it came from. */
-export type ComparisonDevice = DeviceRecord & { curve_id: string; batch_id: string; fitted: boolean };
+export type ComparisonDevice = DeviceRecord & { curve_id: string; batch_id: string; fitted: boolean; /** cells in series, null when the device does not say */ cells: number | null };
 
 const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null);
 
@@ -107,5 +107,5 @@ export function deviceRecordOf(tuple: ComparisonRecordTuple | readonly unknown[]
   values.j0_a_cm2 = ok && i0 != null && cellArea ? i0 / cellArea : null;
   values.stc_pmp_w = num(r.stc_pmp_w);
   const absent = values.stc_pmp_w === null && typeof r.stc_absent_reason === 'string' && r.stc_absent_reason ? { stc_pmp_w: r.stc_absent_reason } : undefined;
-  return { curve_id: r.curve_id, batch_id: r.batch_id, device_id: r.device_id, values, flags: r.flagCodes.split(' ').filter(Boolean), fitted: ok, ...(absent ? { absent } : {}) };
+  return { curve_id: r.curve_id, batch_id: r.batch_id, device_id: r.device_id, values, flags: r.flagCodes.split(' ').filter(Boolean), fitted: ok, cells: num(r.cells), ...(absent ? { absent } : {}) };
 }

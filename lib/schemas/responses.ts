@@ -13,6 +13,7 @@ import type { Permission } from '@/lib/auth/roles';
 import type { BatchColumns } from '@/lib/quality/compare-table';
 import type { CurveMeta, FitResult, Flag, Metrics } from '@/lib/iv/types';
 import type { StcOutcome } from '@/lib/schemas/curves';
+import { SEVERITIES } from '@/lib/quality/severity';
 import type { Spec } from '@/lib/quality/spec';
 
 /** An object the engine's own type describes; only "is an object" is checked at run time. */
@@ -79,7 +80,13 @@ export const curveRowSchema = z.strictObject({
   fits: z.array(fitJsonSchema),
   created_at: stamp,
 });
-export const curvePageSchema = z.strictObject({ curves: z.array(curveRowSchema), total: z.number(), page: z.number(), page_size: z.number() });
+/** pass | warn | fail: a device's worst severity (lib/quality/severity.ts). */
+const severitySchema = z.enum(SEVERITIES);
+/** The spec a batch's pages judge it against: that of its last review decision, or null. */
+const batchSpecSchema = z.strictObject({ id: z.string(), name: z.string(), version: z.number() }).nullable();
+/** A row of the batch table: the curve with its worst severity and, when the batch's spec fails it, the spec's reasons. */
+export const curvePageRowSchema = curveRowSchema.extend({ severity: severitySchema, reasons: z.array(z.string()) });
+export const curvePageSchema = z.strictObject({ curves: z.array(curvePageRowSchema), total: z.number(), page: z.number(), page_size: z.number(), spec: batchSpecSchema });
 
 export const fitHistorySchema = z.strictObject({
   fit_id: z.string(),
@@ -103,7 +110,9 @@ export const refitAnswerSchema = curveBodySchema.extend({ batch: z.strictObject(
 export const overlaySchema = z.strictObject({
   total: z.number(),
   sampled: z.number(),
-  curves: z.array(z.strictObject({ id: z.string(), device_id: z.string(), flagged: z.boolean(), voltage_v: z.array(z.number()), current_a: z.array(z.number()) })),
+  /** The spec the severities were judged against (null: the flags' severities alone). */
+  spec: batchSpecSchema,
+  curves: z.array(z.strictObject({ id: z.string(), device_id: z.string(), severity: severitySchema, voltage_v: z.array(z.number()), current_a: z.array(z.number()) })),
 });
 
 export const uploadResultSchema = z.union([
@@ -198,6 +207,8 @@ export const differenceSchema = z
     sentence: z.string().optional(),
     significant: z.boolean().optional(),
     error: z.string().optional(),
+    /** How the pair was compared: as measured, per cell (different kinds of devices), or refused. */
+    basis: z.enum(['as_measured', 'per_cell', 'refused']).optional(),
   })
   // The Welch test's other figures (n_a, mean_a, sd_a, t, …) travel along.
   .catchall(z.union([z.number(), z.string(), z.boolean()]));
@@ -210,6 +221,14 @@ export const comparisonWireSchema = z.strictObject({
   differences: z.array(differenceSchema),
   tables: z.array(engine<BatchColumns>()),
   outliers: z.array(z.array(z.boolean().nullable())),
+  /** The kinds of devices in the batches and how the chosen parameter is compared across them (lib/quality/compare-kinds.ts). */
+  kinds: z.strictObject({
+    batches: z.array(z.strictObject({ batch_id: z.string(), cells: z.array(z.number()), without_cells: z.number(), label: z.string() })),
+    mixed: z.boolean(),
+    basis: z.enum(['as_measured', 'per_cell', 'refused']),
+    note: z.string().nullable(),
+    per_cell_stats: z.record(z.string(), describeStatsSchema.nullable()).nullable(),
+  }),
 });
 
 // ---------------------------------------------------------------- people
@@ -261,6 +280,7 @@ export type Batch = z.infer<typeof batchSchema>;
 export type BatchList = z.infer<typeof batchListSchema>;
 export type CurveRow = z.infer<typeof curveRowSchema>;
 export type CurvePage = z.infer<typeof curvePageSchema>;
+export type CurvePageRow = z.infer<typeof curvePageRowSchema>;
 export type CurveDetail = z.infer<typeof curveDetailSchema>;
 export type RefitAnswer = z.infer<typeof refitAnswerSchema>;
 export type Overlay = z.infer<typeof overlaySchema>;

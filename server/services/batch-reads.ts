@@ -10,6 +10,7 @@ import { describe as describeValues } from '@/lib/quality';
 import type { curveListQuerySchema } from '@/lib/schemas/curves';
 import { AnswerCache, batchKey } from '@/server/services/answer-cache';
 import { batchJson, loadBatch } from '@/server/services/batches';
+import { batchSpec, curveVerdicts } from '@/server/services/batch-verdicts';
 import type { BatchRow } from '@/server/services/batches';
 import { curveJson, curveListColumns, fitsFor } from '@/server/services/curves';
 
@@ -109,11 +110,22 @@ export function batchReads(db: Db, answers = new AnswerCache()) {
         .limit(q.page_size)
         .offset((q.page - 1) * q.page_size);
       const fits = await fitsFor(db, rows.map((x) => x.id), true, false);
-      return { curves: rows.map((x) => curveJson(x, fits.get(x.id) ?? [], false)), total, page: q.page, page_size: q.page_size };
+      const spec = await batchSpec(db, organizationId, b.id);
+      const verdicts = await curveVerdicts(db, spec, rows);
+      return {
+        curves: rows.map((x) => ({ ...curveJson(x, fits.get(x.id) ?? [], false), ...verdicts.get(x.id)! })),
+        total,
+        page: q.page,
+        page_size: q.page_size,
+        spec: spec?.info ?? null,
+      };
     });
   }
 
-  /** A sample of at most `most` of the batch's curves (evenly by device id), each thinned to ~80 points for one chart. */
+  /**
+   * A sample of at most `most` of the batch's curves (evenly by device id), each thinned to ~80
+   * points for one chart, with its worst severity (batch-verdicts.ts) for the chart's colours.
+   */
   async function overlay(organizationId: string, id: string, most: number): Promise<Buffer> {
     const b = await loadBatch(db, organizationId, id);
     return answers.get(batchKey(b, `overlay:${most}`), async () => {
@@ -122,17 +134,20 @@ export function batchReads(db: Db, answers = new AnswerCache()) {
       const chosen = Array.from({ length: Math.min(most, ids.length) }, (_, k) => ids[Math.floor(k * step)].id);
       const rows = chosen.length
         ? await db
-            .select({ id: curve.id, deviceId: curve.deviceId, v: curve.voltage_v, i: curve.current_a, flags: curve.flagCodes })
+            .select({ id: curve.id, deviceId: curve.deviceId, v: curve.voltage_v, i: curve.current_a, flags: curve.flags })
             .from(curve)
             .where(sql`${curve.id} in ${chosen}`)
         : [];
       const thin = (arr: number[], k: number) => arr.filter((_, idx) => idx % k === 0 || idx === arr.length - 1);
+      const spec = await batchSpec(db, organizationId, b.id);
+      const verdicts = await curveVerdicts(db, spec, rows);
       return {
         total: ids.length,
         sampled: rows.length,
+        spec: spec?.info ?? null,
         curves: rows.map((x) => {
           const k = Math.max(1, Math.ceil(x.v.length / 80));
-          return { id: x.id, device_id: x.deviceId, flagged: x.flags.length > 0, voltage_v: thin(x.v, k), current_a: thin(x.i, k) };
+          return { id: x.id, device_id: x.deviceId, severity: verdicts.get(x.id)!.severity, voltage_v: thin(x.v, k), current_a: thin(x.i, k) };
         }),
       };
     });

@@ -13,9 +13,12 @@ import { columnsOfRows, describe as describeValues, evaluateBatch, isParamKey, r
 import type { CompareRowInput, Description, ParamKey, Spec } from '@/lib/quality';
 import { comparisonCsv, comparisonFileName } from '@/lib/quality/compare-csv';
 import { rowsOfColumns } from '@/lib/quality/compare-table';
+import { batchKind, compareKinds, perCellLabel, perCellValues } from '@/lib/quality/compare-kinds';
+import type { BatchKind } from '@/lib/quality/compare-kinds';
 import { PARAM_KEYS, PARAM_UNITS } from '@/lib/quality/params';
 import type { ComparisonWire } from '@/lib/schemas/responses';
 import type { compareQuerySchema } from '@/lib/schemas/quality';
+import { labelOf } from '@/lib/vocabulary';
 import { HttpError } from '@/server/errors';
 import { AnswerCache, batchKey } from '@/server/services/answer-cache';
 import { deviceRecords } from '@/server/services/quality';
@@ -39,10 +42,10 @@ function batchPart(list: DeviceRow[], spec: Spec | null): BatchPart {
   if (spec) {
     // Outliers depend on the parameter chosen: marked per request with robustZOn and kept in the part.
     const e = evaluateBatch(list, spec, { outlier_params: [] });
-    const rows: CompareRowInput[] = e.devices.map((d, k) => ({ curve_id: list[k].curve_id, device_id: d.device_id, values: d.values, flags: d.flags, result: d.result, reasons: d.reasons.map((x) => x.message), power_class: d.power_class }));
+    const rows: CompareRowInput[] = e.devices.map((d, k) => ({ curve_id: list[k].curve_id, device_id: d.device_id, cells: list[k].cells, values: d.values, flags: d.flags, result: d.result, reasons: d.reasons.map((x) => x.message), power_class: d.power_class }));
     return { json: Buffer.from(JSON.stringify(columnsOfRows(rows))), stats: e.stats, counts: { total: e.counts.total, pass: e.counts.pass, fail: e.counts.fail }, outliers: { list, byParam: new Map() } };
   }
-  const rows: CompareRowInput[] = list.map((d) => ({ curve_id: d.curve_id, device_id: d.device_id, values: d.values, flags: d.flags, result: null, reasons: [], power_class: null }));
+  const rows: CompareRowInput[] = list.map((d) => ({ curve_id: d.curve_id, device_id: d.device_id, cells: d.cells, values: d.values, flags: d.flags, result: null, reasons: [], power_class: null }));
   const columns = columnsOfRows(rows);
   const stats: Partial<Record<ParamKey, Description | null>> = {};
   for (const k of PARAM_KEYS) {
@@ -109,15 +112,23 @@ export function comparisons(db: Db) {
         return marks;
       });
 
+      // Different kinds of devices (cells against modules, other cell counts): per cell, or no
+      // t-test, with the reason (lib/quality/compare-kinds.ts). Each pair is judged on its own.
+      const names = new Map(found.map((b) => [b.id, b.name]));
+      const kindOf = new Map<string, BatchKind>(found.map((b, k) => [b.id, batchKind(b.id, lists[k])]));
+      const kinds = compareKinds([...kindOf.values()], param, names, byBatch);
       const values = (id: string) => (byBatch.get(id) ?? []).map((d) => d.values[param]).filter((x): x is number => typeof x === 'number' && Number.isFinite(x));
       const first = found[0];
-      const a = values(first.id);
       const differences = found.slice(1).map((b) => {
-        const bb = values(b.id);
+        const pair = compareKinds([kindOf.get(first.id)!, kindOf.get(b.id)!], param, names, byBatch);
+        if (pair.basis === 'refused') return { batch_a: first.id, batch_b: b.id, param, basis: pair.basis, error: pair.note ?? 'these batches cannot be compared on this figure' };
+        const perCell = pair.basis === 'per_cell';
+        const a = perCell ? perCellValues(byBatch.get(first.id) ?? [], param) : values(first.id);
+        const bb = perCell ? perCellValues(byBatch.get(b.id) ?? [], param) : values(b.id);
         try {
-          return { batch_a: first.id, batch_b: b.id, param, ...welchDifference(a, bb, 0.95, { nameA: first.name, nameB: b.name, param, unit: PARAM_UNITS[param] }) };
+          return { batch_a: first.id, batch_b: b.id, param, basis: pair.basis, ...welchDifference(a, bb, 0.95, { nameA: first.name, nameB: b.name, param: perCell ? perCellLabel(param) : labelOf(param), unit: PARAM_UNITS[param] }) };
         } catch (err) {
-          return { batch_a: first.id, batch_b: b.id, param, error: (err as Error).message };
+          return { batch_a: first.id, batch_b: b.id, param, basis: pair.basis, error: (err as Error).message };
         }
       });
 
@@ -129,6 +140,7 @@ export function comparisons(db: Db) {
         stats,
         counts,
         differences,
+        kinds,
       });
       // The batches' columns are spliced in as serialized: `…, "tables": [part, part, …]}`.
       const pieces: Buffer[] = [Buffer.from(head.slice(0, -1) + ',"tables":[')];

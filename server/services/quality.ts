@@ -42,12 +42,22 @@ const recordFromColumns = sql`json_build_array(${sql.join(
 /** Every curve of the given batches as a device record with all engine keys, ordered by device. */
 export async function deviceRecords(db: Db, batchIds: string[]): Promise<DeviceRow[]> {
   if (!batchIds.length) return [];
+  return recordsWhere(db, inArray(curve.batchId, batchIds));
+}
+
+/** The device records of these curves (any order); a batch page judges only the curves it shows. */
+export async function deviceRecordsOfCurves(db: Db, curveIds: string[]): Promise<DeviceRow[]> {
+  if (!curveIds.length) return [];
+  return recordsWhere(db, inArray(curve.id, curveIds));
+}
+
+async function recordsWhere(db: Db, where: SQL): Promise<DeviceRow[]> {
   // One table, no JSON of the fits, and one field in all: each curve keeps its comparison record
   // as JSON text. PGlite's reader costs per field: 10,000 rows × 15 columns took ~650 ms, this
   // ~100 ms with parsing (measured).
   const result = await db.execute<{ j: string | null }>(sql`
     select '[' || string_agg(coalesce(${curve.record}, ${recordFromColumns}), ',' order by ${curve.deviceId}) || ']' as j
-    from ${curve} where ${inArray(curve.batchId, batchIds)}`);
+    from ${curve} where ${where}`);
   const text = result.rows[0]?.j;
   const tuples: ComparisonRecordTuple[] = text ? JSON.parse(text) : [];
   return tuples.map(deviceRecordOf);

@@ -133,13 +133,14 @@ describe('svgFileText', () => {
 });
 
 describe('overlayTones', () => {
-  const curve = (id: string, flagged: boolean) => ({ id, flagged });
+  const curve = (id: string, severity: 'pass' | 'warn' | 'fail') => ({ id, severity });
 
-  it('counts exactly the curves it colours and draws them last (on top)', () => {
-    const curves = [curve('a', true), curve('b', false), curve('c', false), curve('d', true), curve('e', false)];
+  it('counts exactly the curves it colours and draws them last (on top), failing above warnings', () => {
+    const curves = [curve('a', 'fail'), curve('b', 'pass'), curve('c', 'warn'), curve('d', 'fail'), curve('e', 'pass'), curve('f', 'warn')];
     const { ordered, counts } = overlayTones(curves);
-    expect(counts).toEqual({ flagged: 2, other: 3 });
-    expect(ordered.filter((o) => o.tone !== 'other').length).toBe(counts.flagged);
-    expect(ordered.map((o) => o.curve.id)).toEqual(['b', 'c', 'e', 'a', 'd']);
+    expect(counts).toEqual({ fail: 2, warn: 2, pass: 2 });
+    expect(ordered.filter((o) => o.tone !== 'pass').length).toBe(counts.fail + counts.warn);
+    // Grey first, then warnings, then failing, each in the server's order.
+    expect(ordered.map((o) => o.curve.id)).toEqual(['b', 'e', 'c', 'f', 'a', 'd']);
   });
 });

@@ -2,7 +2,7 @@ import { fireEvent, render, screen } from '@testing-library/react-native';
 import { StyleSheet } from 'react-native';
 import type { ReactTestInstance } from 'react-test-renderer';
 import { CurveTable } from '@/components/curve-table';
-import type { CurveRow, FitJson } from '@/lib/api/batches';
+import type { CurvePageRow as CurveRow, FitJson } from '@/lib/api/batches';
 import type { Flag, Metrics } from '@/lib/iv/types';
 import type { CurveSortKey } from '@/lib/schemas/curves';
 
@@ -20,8 +20,8 @@ const failedFit: FitJson = {
   fit_id: 'f3', conditions: {}, reason: 'upload', created_at: '2025-11-14T08:00:00Z',
 };
 const metrics = (m: Pick<Metrics, 'isc_a' | 'voc_v' | 'pmp_w' | 'ff'>): Metrics => ({ ...m, imp_a: 0, vmp_v: 0, efficiency: null, rsh0_ohm: null, rs0_ohm: null });
-const row = (id: string, device_id: string, m: Metrics, fits: FitJson[], stcPmp_w: number | null, flags: Flag[] = []): CurveRow => ({
-  id, batch_id: 'b1', device_id, file_name: `${device_id}.csv`, meta: {}, metrics: m, flags, fits, created_at: '2025-11-14T08:00:00Z',
+const row = (id: string, device_id: string, m: Metrics, fits: FitJson[], stcPmp_w: number | null, flags: Flag[] = [], severity: CurveRow['severity'] = 'pass', reasons: string[] = []): CurveRow => ({
+  id, batch_id: 'b1', device_id, file_name: `${device_id}.csv`, meta: {}, metrics: m, flags, fits, created_at: '2025-11-14T08:00:00Z', severity, reasons,
   stc: stcPmp_w === null ? null : { method: 'model', from: { irradiance_w_m2: 1000, temp_c: 33 }, isc_a: 0, voc_v: 0, pmp_w: stcPmp_w, imp_a: 0, vmp_v: 0, ff: 0, efficiency: null, notes: [] },
 });
 
@@ -30,9 +30,9 @@ const ROWS: CurveRow[] = [
     { code: 'temperature-assumed', severity: 'info', message: '' },
     { code: 'step-in-curve', severity: 'warn', message: '' },
     { code: 'isc-extrapolated', severity: 'fail', message: '' },
-  ]),
+  ], 'fail', ['FF 71.3 % is below the minimum 75.0 %']),
   row('c2', 'MOD-0002', metrics({ isc_a: 9.812, voc_v: 49.374, pmp_w: 381.24, ff: 0.787 }), [singleFit({ n: 1.05, rs_ohm: 0.35, rsh_ohm: 1.2e6 })], null),
-  row('c3', 'MOD-0003', metrics({ isc_a: 9.8, voc_v: 49.1, pmp_w: 379.5, ff: 0.7891 }), [failedFit], null),
+  row('c3', 'MOD-0003', metrics({ isc_a: 9.8, voc_v: 49.1, pmp_w: 379.5, ff: 0.7891 }), [failedFit], null, [{ code: 'fit-failed', severity: 'warn', message: '' }], 'warn'),
 ];
 
 const renderTable = (sort: CurveSortKey = 'device_id', dir: 'asc' | 'desc' = 'asc') => {
@@ -104,6 +104,14 @@ describe('CurveTable', () => {
     fireEvent.press(screen.getByTestId(`sort-${pressed}`));
     expect(onSort).toHaveBeenCalledTimes(1);
     expect(onSort).toHaveBeenCalledWith(...expected);
+  });
+
+  it('each device shows its result in a word', () => {
+    renderTable();
+    expect(screen.getByTestId('result-CELL-57')).toHaveTextContent('Fail');
+    expect(screen.getByTestId('result-MOD-0002')).toHaveTextContent('Pass');
+    expect(screen.getByTestId('result-MOD-0003')).toHaveTextContent('Warning');
+    expect(screen.getByTestId('sort-severity')).toBeDisabled();
   });
 
   it('the Flags header is not sortable', () => {

@@ -111,18 +111,20 @@ describe('IvChart on victory-native 36 / react-native-svg', () => {
 });
 
 describe('OverlayChart', () => {
-  const curve = (id: string, flagged: boolean, scale: number) => ({ id, device_id: `DEV-${id}`, flagged, voltage_v: [0, 0.3, 0.6], current_a: [scale, scale * 0.95, 0] });
+  type Severity = 'pass' | 'warn' | 'fail';
+  const curve = (id: string, severity: Severity, scale: number) => ({ id, device_id: `DEV-${id}`, severity, voltage_v: [0, 0.3, 0.6], current_a: [scale, scale * 0.95, 0] });
 
-  it('colours only the flagged curves, and the legend counts exactly those', () => {
-    const curves = [curve('1', false, 9), curve('2', true, 8.5), curve('3', false, 9.1), curve('4', true, 7), curve('5', true, 8.8), curve('6', false, 9.05)];
+  it('colours only the failing and warning curves, and the legend counts exactly those', () => {
+    const curves = [curve('1', 'pass', 9), curve('2', 'fail', 8.5), curve('3', 'pass', 9.1), curve('4', 'warn', 7), curve('5', 'warn', 8.8), curve('6', 'pass', 9.05), curve('7', 'warn', 8)];
     render(<OverlayChart curves={curves} testID="overlay" />);
     layOut('overlay', 600);
     const strokes = screen.UNSAFE_getAllByType(VictoryLine).map((l) => l.props.style.data.stroke);
-    const coloured = strokes.filter((s) => s !== theme.color.muted);
-    expect(coloured).toHaveLength(3);
-    expect(new Set(coloured)).toEqual(new Set([theme.color.hole]));
-    // Grey ones first, so the coloured ones are drawn on top.
+    expect(strokes.filter((s) => s === theme.color.danger)).toHaveLength(1);
+    expect(strokes.filter((s) => s === theme.color.hole)).toHaveLength(3);
+    expect(strokes.filter((s) => s === theme.color.muted)).toHaveLength(3);
+    // Grey ones first, so the coloured ones are drawn on top; the failing one last of all.
     expect(strokes.slice(0, 3)).toEqual([theme.color.muted, theme.color.muted, theme.color.muted]);
-    expect(within(screen.getByTestId('overlay-legend')).getAllByText(/./).map((t) => t.props.children)).toEqual(['3 flagged', '3 not flagged']);
+    expect(strokes[strokes.length - 1]).toBe(theme.color.danger);
+    expect(within(screen.getByTestId('overlay-legend')).getAllByText(/./).map((t) => t.props.children)).toEqual(['1 failing', '3 with warnings', '3 passing']);
   });
 });

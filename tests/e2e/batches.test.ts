@@ -55,7 +55,8 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await screenshot(b.page, `upload-results-${vpName}`);
 
       await b.page.getByTestId('curve-row-RTC-cell-33C').waitFor();
-      await b.page.getByTestId('curve-table').scrollIntoViewIfNeeded();
+      // A table on a wide screen, device cards on a phone (tests/e2e/phone.test.ts checks which).
+      await b.page.getByTestId(vpName === 'phone' ? 'curve-cards' : 'curve-table').scrollIntoViewIfNeeded();
       expect(await layoutProblems(b.page)).toEqual([]);
       await screenshot(b.page, `batch-table-${vpName}`);
 

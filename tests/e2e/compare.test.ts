@@ -1,7 +1,8 @@
 /**
  * Browser: a QA lead writes a spec, then a designer compares the two demo module batches in the
- * grid with pass/fail, the statistics side by side and the distribution chart; the comparison is in
- * the address, so a reload or a link opens the same one.
+ * grid with pass/fail, the statistics side by side (on a phone: one figure at a time, a card per
+ * batch, the grid one tap away) and the distribution chart; the comparison is in the address, so
+ * a reload or a link opens the same one.
  */
 import type { Page } from 'playwright-core';
 import { layoutProblems, openBrowser, screenshot, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
@@ -47,7 +48,16 @@ async function idsOf(page: Page): Promise<{ batch: Record<string, string>; spec:
   });
 }
 
+/** On a phone the grid waits behind a button; a wide screen shows it at once. */
+async function openGrid(page: Page, phone: boolean) {
+  if (phone) await page.getByTestId('show-grid').click();
+}
+
+/** The statistics as text: the side-by-side table, or on a phone the batches' cards in order. */
+const statsText = (page: Page, phone: boolean) => page.getByTestId(phone ? 'compare-by-parameter' : 'stats-table').innerText();
+
 describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
+  const phone = vpName === 'phone';
   it('two batches in the grid, statistics and distribution', async () => {
     const b = await openBrowser(viewport);
     try {
@@ -56,6 +66,7 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await b.page.getByTestId('pick-KF-M60 line 2, lot 2611').click();
       await b.page.getByTestId('pick-KF-M60 line 3, lot 2612').click();
       await b.page.getByTestId('compare-spec-Module release').click();
+      await openGrid(b.page, phone);
       await b.page.getByTestId('grid-row-M2611-001').waitFor();
       // The demo's defective modules fail the 300 W / 70 % spec (sample-data scenario).
       expect(await b.page.getByTestId('grid-row-M2611-009').innerText()).toMatch(/fail/);
@@ -73,11 +84,11 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       const url = new URL(b.page.url());
       expect(url.searchParams.get('batches')).toBe(`${ids.batch[LOT_2611]},${ids.batch[LOT_2612]}`);
       expect(url.searchParams.get('spec')).toBe(ids.spec);
-      const stats = await b.page.getByTestId('stats-table').innerText();
+      const stats = await statsText(b.page, phone);
       expect(stats).toMatch(/median/);
       expect(stats).toMatch(/Ω/);
-      expect(await b.page.getByTestId('differences').innerText()).toMatch(/95 %|CI|confidence/i);
-      await b.page.getByTestId('stats-table').scrollIntoViewIfNeeded();
+      expect(await b.page.getByTestId(phone ? `difference-${LOT_2612}` : 'differences').innerText()).toMatch(/95 %|CI|confidence/i);
+      await b.page.getByTestId(phone ? 'compare-by-parameter' : 'stats-table').scrollIntoViewIfNeeded();
       expect(await layoutProblems(b.page)).toEqual([]);
       await screenshot(b.page, `compare-stats-${vpName}`);
     } finally {
@@ -93,6 +104,7 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       // Lot 2612 first: the first batch is the one the others are compared with.
       const link = `${srv.url}/compare?batches=${ids.batch[LOT_2612]},${ids.batch[LOT_2611]}&param=ff&spec=${ids.spec}`;
       await b.page.goto(link, { waitUntil: 'load' });
+      await openGrid(b.page, phone);
       await b.page.getByTestId('grid-row-M2612-001').waitFor();
       await b.page.getByTestId('grid-row-M2611-001').waitFor();
       expect(await chosen(b.page, `pick-${LOT_2611}`)).toBe(true);
@@ -101,7 +113,7 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       expect(await chosen(b.page, 'param-ff')).toBe(true);
       expect(await chosen(b.page, 'param-pmp_w')).toBe(false);
       // The statistics are of FF (in %), in the linked order, judged against the spec (pass/fail filter shown).
-      const stats = await b.page.getByTestId('stats-table').innerText();
+      const stats = await statsText(b.page, phone);
       expect(stats).toMatch(/FF/);
       expect(stats).toMatch(/%/);
       expect(stats.indexOf(LOT_2612)).toBeLessThan(stats.indexOf(LOT_2611));
@@ -112,6 +124,7 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await b.page.getByTestId(`pick-${LOT_2611}`).click();
       await b.page.waitForURL((u) => u.searchParams.get('batches') === ids.batch[LOT_2612]);
       await b.page.reload({ waitUntil: 'load' });
+      await openGrid(b.page, phone);
       await b.page.getByTestId('grid-row-M2612-001').waitFor();
       expect(await b.page.getByTestId('grid-row-M2611-001').count()).toBe(0);
       expect(await chosen(b.page, `pick-${LOT_2611}`)).toBe(false);

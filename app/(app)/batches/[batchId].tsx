@@ -5,6 +5,7 @@ import { BatchForm } from '@/components/batch-form';
 import { Button } from '@/components/button';
 import { Card } from '@/components/card';
 import { CautionBlock } from '@/components/caution-block';
+import { CurveCards } from '@/components/curve-cards';
 import { CurveTable } from '@/components/curve-table';
 import { Figure } from '@/components/figure';
 import { OverlayChart } from '@/components/overlay-chart';
@@ -54,6 +55,8 @@ export default function BatchScreen() {
   const curves = useBatchCurves(id, params);
   const { width } = useWindowDimensions();
   const wide = width >= theme.wideFrom;
+  // Phones and narrow windows list the devices as cards; wider screens keep the table.
+  const asTable = width >= theme.tableFrom;
   useEffect(() => {
     const t = setTimeout(() => setParams((p) => (p.q === search ? p : { ...p, q: search, page: 1 })), 250);
     return () => clearTimeout(t);
@@ -100,8 +103,9 @@ export default function BatchScreen() {
                   {(d) => (
                     <>
                       <OverlayChart curves={d.curves} batch_name={b.name} testID="overlay-chart" />
-                      <Txt variant="caption">
-                        {d.sampled < d.total ? `${d.sampled} of ${d.total} curves, evenly sampled by device id.` : `${d.total} curves.`}
+                      <Txt variant="caption" testID="overlay-caption">
+                        {d.sampled < d.total ? `${d.sampled} of ${d.total} curves drawn, evenly sampled by device id; the counts are of the curves drawn.` : `${d.total} curves.`}{' '}
+                        {d.spec ? `Coloured by the result against ${d.spec.name} v${d.spec.version} (the last review decision) and the curves' warnings.` : 'Coloured by the curves’ own flags; no spec has judged this batch yet.'}
                       </Txt>
                     </>
                   )}
@@ -127,7 +131,12 @@ export default function BatchScreen() {
                   const pages = Math.max(1, Math.ceil(d.total / d.page_size));
                   return (
                     <View style={{ gap: 10 }}>
-                      <CurveTable rows={d.curves} sort={params.sort} dir={params.dir} onSort={(sort, dir) => setParams((p) => ({ ...p, sort, dir, page: 1 }))} />
+                      {d.spec ? <Txt variant="caption">Results against {d.spec.name} v{d.spec.version}, the spec of the last review decision; warnings from the curves’ flags.</Txt> : null}
+                      {asTable ? (
+                        <CurveTable rows={d.curves} sort={params.sort} dir={params.dir} onSort={(sort, dir) => setParams((p) => ({ ...p, sort, dir, page: 1 }))} />
+                      ) : (
+                        <CurveCards rows={d.curves} sort={params.sort} dir={params.dir} onSort={(sort, dir) => setParams((p) => ({ ...p, sort, dir, page: 1 }))} />
+                      )}
                       <View style={styles.pager}>
                         <Pressable disabled={params.page <= 1} onPress={() => setParams((p) => ({ ...p, page: p.page - 1 }))} testID="page-prev">
                           <Txt variant="label" style={{ opacity: params.page <= 1 ? 0.4 : 1 }}>‹ Previous</Txt>

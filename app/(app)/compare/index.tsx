@@ -5,6 +5,7 @@ import { Pressable, StyleSheet, TextInput, View, useWindowDimensions } from 'rea
 import { Button } from '@/components/button';
 import { Card } from '@/components/card';
 import { CautionBlock } from '@/components/caution-block';
+import { CompareByParameter, shownLabel, shownStats, shownValues } from '@/components/compare-by-parameter';
 import { CompareGrid } from '@/components/compare-grid';
 import { DistributionChart } from '@/components/distribution-chart';
 import { QueryState } from '@/components/query-state';
@@ -62,6 +63,8 @@ export default function CompareScreen() {
   const router = useRouter();
   const { width, height } = useWindowDimensions();
   const wide = width >= theme.wideFrom;
+  // Phones and narrow windows: one figure at a time for every batch; wider screens: the grid.
+  const asGrid = width >= theme.tableFrom;
   // The chosen batches, parameter and spec live in the address, so a comparison can be linked and
   // reloaded; the filters, sorting and columns are a view of it and stay local.
   const search = useLocalSearchParams<CompareParams>();
@@ -124,6 +127,7 @@ export default function CompareScreen() {
             <CompareBody
               c={c}
               wide={wide}
+              asGrid={asGrid}
               gridHeight={Math.max(320, Math.min(620, height - 260))}
               param={param}
               setParam={setParam}
@@ -158,6 +162,7 @@ type Filters = {
 function CompareBody(props: {
   c: Comparison;
   wide: boolean;
+  asGrid: boolean;
   gridHeight: number;
   param: ParamKey;
   setParam: (p: ParamKey) => void;
@@ -171,7 +176,8 @@ function CompareBody(props: {
   filters: Filters;
   onOpen: (r: CompareRow) => void;
 }) {
-  const { c, wide, param, setParam, columns, setColumns, filters: f } = props;
+  const { c, wide, asGrid, param, setParam, columns, setColumns, filters: f } = props;
+  const [showCurves, setShowCurves] = useState(false);
   const flagsPresent = useMemo(() => [...new Set(c.rows.flatMap((r) => r.flags))].sort(), [c.rows]);
   const filtered = useMemo(() => {
     const lo = f.range.min.trim() ? Number(f.range.min.replace(',', '.')) : null;
@@ -223,6 +229,13 @@ function CompareBody(props: {
     <>
       {/* The comparison's CSV is downloaded here: the high-voltage caution goes with it on the screen, not in the file. */}
       <CautionBlock />
+      {asGrid ? null : <CompareByParameter c={c} param={param} setParam={setParam} />}
+      {!asGrid && !showCurves ? (
+        <Card title="Every curve">
+          <Txt variant="caption">The grid of all {c.rows.length} curves, with filters, sorting and the CSV download, scrolls sideways on a phone.</Txt>
+          <Button label={`Show all ${c.rows.length} curves`} kind="secondary" onPress={() => setShowCurves(true)} testID="show-grid" />
+        </Card>
+      ) : (
       <Card title={`${filtered.length} of ${c.rows.length} curves`}>
         <View style={{ gap: 8 }}>
           <View style={styles.chips}>
@@ -266,17 +279,20 @@ function CompareBody(props: {
           <Txt variant="caption">Tap a row to open the curve. Sort by tapping a header. FF and efficiency in %; J0 per cell area.</Txt>
         </View>
       </Card>
+      )}
 
+      {asGrid ? (
       <Card title="Statistics side by side">
         <View style={styles.chips}>
           {GRID_PARAMS.map((k) => (
             <Chip key={k} on={param === k} label={PARAM_LABELS[k]} onPress={() => setParam(k)} testID={`param-${k}`} />
           ))}
         </View>
+        {c.kinds?.note ? <Txt variant="body" style={styles.note} testID="kinds-note">{c.kinds.note}</Txt> : null}
         <View style={[{ gap: 16 }, wide && { flexDirection: 'row', alignItems: 'flex-start' }]}>
           <View style={[{ gap: 4 }, wide && { flex: 1 }]} testID="stats-table">
             <View style={styles.statRow}>
-              <Txt variant="label" style={styles.statHead}>{PARAM_LABELS[param]}</Txt>
+              <Txt variant="label" style={styles.statHead}>{shownLabel(c, param)}</Txt>
               {c.batches.map((b) => (
                 <Txt key={b.id} variant="label" style={styles.statCell} numberOfLines={2}>{b.name}</Txt>
               ))}
@@ -285,7 +301,7 @@ function CompareBody(props: {
               <View key={label} style={styles.statRow}>
                 <Txt variant="caption" style={styles.statHead}>{label}</Txt>
                 {c.batches.map((b) => {
-                  const s = c.stats[b.id]?.[param];
+                  const s = shownStats(c, b.id, param);
                   return <Txt key={b.id} variant="figure" style={[styles.statCell, { fontSize: 13 }]}>{s ? fn(s) : '—'}</Txt>;
                 })}
               </View>
@@ -298,8 +314,8 @@ function CompareBody(props: {
           </View>
           <View style={wide ? { flex: 1.2 } : undefined}>
             <DistributionChart
-              groups={c.batches.map((b) => ({ name: b.name, values: c.rows.filter((r) => r.batch_id === b.id).map((r) => r[param] as number).filter((v) => typeof v === 'number' && Number.isFinite(v)).map((v) => (param === 'ff' || param === 'efficiency' ? v * 100 : v)) }))}
-              label={columnHeader(param)}
+              groups={c.batches.map((b) => ({ name: b.name, values: shownValues(c, b.id, param) }))}
+              label={unitOf(param) ? `${shownLabel(c, param)} (${unitOf(param)})` : shownLabel(c, param)}
               testID="distribution-chart"
             />
           </View>
@@ -308,10 +324,11 @@ function CompareBody(props: {
           <Txt variant="label">Is the difference real? (Welch’s t-test, 95 % confidence)</Txt>
           {c.differences.length === 0 ? <Txt variant="caption">Pick a second batch to compare means.</Txt> : null}
           {c.differences.map((d) => (
-            <Txt key={d.batch_b} variant="body">{d.error ? `Cannot compare: ${d.error}` : d.sentence}</Txt>
+            <Txt key={d.batch_b} variant="body">{d.error ? `No t-test: ${d.error}` : d.sentence}</Txt>
           ))}
         </View>
       </Card>
+      ) : null}
     </>
   );
 }
@@ -326,4 +343,5 @@ const styles = StyleSheet.create({
   statRow: { flexDirection: 'row', borderBottomWidth: 1, borderBottomColor: theme.color.sunken, paddingVertical: 3 },
   statHead: { width: 70 },
   statCell: { flex: 1, minWidth: 80, textAlign: 'right', paddingHorizontal: 4 },
+  note: { backgroundColor: theme.color.holeSoft, borderRadius: theme.radius.m, padding: 10, fontSize: 14, lineHeight: 20 },
 });

@@ -169,8 +169,8 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
       subtitle={`${c.file_name} · ${conditions.join(' · ')}`}
       testID="curve-screen"
       actions={
-        <View style={{ flexDirection: 'row', gap: 8, flexWrap: 'wrap' }}>
-          <Button label={`‹ ${c.batch.name}`} kind="secondary" onPress={() => router.push(`/batches/${c.batch.id}`)} />
+        <View style={{ flexDirection: 'row', gap: 8, flexWrap: 'wrap', maxWidth: '100%' }}>
+          <Button label={`‹ ${c.batch.name}`} numberOfLines={1} accessibilityLabel={`Back to batch ${c.batch.name}`} kind="secondary" onPress={() => router.push(`/batches/${c.batch.id}`)} testID="to-batch" />
           <Button label="Physics of this curve" kind="secondary" onPress={() => router.push(`/physics?curve=${c.id}`)} testID="to-physics" />
         </View>
       }

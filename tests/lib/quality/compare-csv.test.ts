@@ -17,6 +17,7 @@ function row(device_id: string, batch: 'a' | 'b', k: number): CompareRow {
     batch_id: batch,
     batch_name: batch === 'a' ? 'Lot A, line 1' : '=Lot B',
     device_id,
+    cells: 60,
     flags: k % 2 ? ['step', 'low_rsh'] : [],
     result: k % 3 ? 'pass' : 'fail',
     reasons: k % 3 ? [] : ['FF 59.2 % is below the minimum 70.0 %', 'Pmax 290 W is below the minimum 300 W'],

@@ -15,6 +15,7 @@ const batches = [
 const row = (k: number, over: Partial<CompareRowInput> = {}): CompareRowInput => ({
   curve_id: `c-${k}`,
   device_id: `M-${k}`,
+  cells: k === 2 ? null : 60,
   values: { pmp_w: 250 + k, rs_ohm: 0.3 + k / 100, n: k === 2 ? null : 1.1 },
   flags: k === 1 ? ['step'] : [],
   result: k === 1 ? 'fail' : 'pass',
@@ -36,7 +37,7 @@ describe('columnsOfRows / rowsOfColumns', () => {
     expect(rows).toHaveLength(5);
     rows.forEach((got, k) => {
       const { r, b, o } = expected[k];
-      expect(got).toEqual({ curve_id: r.curve_id, batch_id: batches[b].id, batch_name: batches[b].name, device_id: r.device_id, flags: r.flags, result: r.result, reasons: r.reasons, power_class: r.power_class, outlier: o, ...r.values });
+      expect(got).toEqual({ curve_id: r.curve_id, batch_id: batches[b].id, batch_name: batches[b].name, device_id: r.device_id, cells: r.cells, flags: r.flags, result: r.result, reasons: r.reasons, power_class: r.power_class, outlier: o, ...r.values });
     });
   });
 
@@ -65,6 +66,7 @@ describe('columnsOfRows / rowsOfColumns', () => {
     const arbRow = fc.record({
       curve_id: fc.uuid(),
       device_id: fc.string(),
+      cells: fc.option(fc.integer({ min: 1, max: 144 }), { nil: null }),
       values: fc.record({ pmp_w: num, ff: num, i0_a: num }),
       flags: fc.array(fc.constantFrom('step', 'noisy', 'fit-failed')),
       result: fc.constantFrom('pass' as const, 'fail' as const, null),
@@ -80,6 +82,7 @@ describe('columnsOfRows / rowsOfColumns', () => {
         back.forEach((r, k) => {
           for (const [key, v] of Object.entries(all[k].values)) expect(r[key]).toBe(Object.is(v, -0) ? 0 : v);
           expect(r.device_id).toBe(all[k].device_id);
+          expect(r.cells).toBe(all[k].cells);
           expect(r.batch_id).toBe(batches[k < a.length ? 0 : 1].id);
           expect(r.outlier).toBe(k < a.length ? null : true);
         });
