@@ -33,8 +33,8 @@ function BigFigure({ label, value, unit, note, warn, testID }: { label: string; 
 
 function moduleText(s: ModuleSource | null, what: string): string {
   if (!s || s.kind === 'entered') return 'Typed in.';
-  if (s.kind === 'curve') return `${s.note} ${what} from the curve’s fitted single-diode model.`;
-  return `${s.note} ${what} of each curve from its fitted single-diode model.`;
+  if (s.kind === 'curve') return `${s.note} ${what} from the curve’s STC figures (measured at STC, IEC 60891 or the fitted model, whichever held for it).`;
+  return `${s.note} ${what} of each curve from its STC figures (measured at STC, IEC 60891 or the fitted model, whichever held for it); curves without STC figures are left out.`;
 }
 
 function coefficientText(s: CoefficientSource | null, lawInFull: boolean): string {

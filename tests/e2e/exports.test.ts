@@ -56,6 +56,8 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
     try {
       await signInThroughForm(b.page, srv.url, 'dana.lindqvist@kestrel-pv.example', 'kestrel-design-demo');
       await b.page.goto(`${srv.url}/compare?batches=${ids.batch[LOT_2611]},${ids.batch[LOT_2612]}&spec=${ids.spec}&param=pmp_w`, { waitUntil: 'load' });
+      // On a phone the grid of every curve (with its filters and download) opens on request.
+      if (vpName === 'phone') await b.page.getByTestId('show-grid').click();
       await b.page.getByTestId('grid-row-M2611-001').waitFor();
       expect(await b.page.getByTestId('hv-caution').count()).toBe(1);
       await b.page.getByTestId('filter-fail').click();

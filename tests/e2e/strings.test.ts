@@ -75,7 +75,8 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       // Where the inputs came from: the batch's worst module and the fitted model (the demo batch is at one temperature).
       await page.getByTestId('source-voc-batch').waitFor();
       await page.getByTestId('source-beta-model').waitFor();
-      expect(await page.getByTestId('string-sources').innerText()).toMatch(/highest-Voc module of 24.*not the batch mean/);
+      // 23 of lot 2611's 24 modules: M2611-015's bypass-diode step leaves it without STC figures.
+      expect(await page.getByTestId('string-sources').innerText()).toMatch(/highest-Voc module of 23.*not the batch mean/);
       // The caution is expanded: every bullet is on the page.
       expect(await page.getByTestId('hv-caution').innerText()).toMatch(/no off switch[\s\S]*DC arc does not go out[\s\S]*design guidance only/i);
       await page.getByTestId('string-voc-chart').waitFor();
