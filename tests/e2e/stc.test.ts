@@ -21,7 +21,8 @@ afterAll(async () => {
 async function openCurve(page: Page, batch: string, device: string): Promise<void> {
   await page.goto(`${srv.url}/batches`, { waitUntil: 'load' });
   await page.getByTestId(`batch-${batch}`).click();
-  await page.getByTestId('curve-table').scrollIntoViewIfNeeded();
+  // Below 900 px the devices are cards, from there a table; both carry curve-row-<device>.
+  await page.locator('[data-testid="curve-table"], [data-testid="curve-cards"]').first().scrollIntoViewIfNeeded();
   await page.getByTestId(`curve-row-${device}`).click();
   await page.getByTestId('curve-screen').waitFor();
   await page.getByTestId('stc').scrollIntoViewIfNeeded();
