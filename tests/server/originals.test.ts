@@ -49,10 +49,12 @@ let admin: Agent, tester: Agent, qa: Agent;
 let orgId = '';
 
 /** Reads an answer's body as bytes, whatever its type. */
-function binary(res: NodeJS.ReadableStream, done: (err: Error | null, body: Buffer) => void) {
+function binary(res: unknown, done: (err: Error | null, body: Buffer) => void) {
+  // In node, superagent hands the parser the response stream (already decompressed).
+  const stream = res as NodeJS.ReadableStream;
   const chunks: Buffer[] = [];
-  res.on('data', (c: Buffer) => chunks.push(c));
-  res.on('end', () => done(null, Buffer.concat(chunks)));
+  stream.on('data', (c: Buffer) => chunks.push(c));
+  stream.on('end', () => done(null, Buffer.concat(chunks)));
 }
 /** The file name of a Content-Disposition header (RFC 6266: filename*=UTF-8''… wins over filename=). */
 function dispositionName(header: string): string {
