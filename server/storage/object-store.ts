@@ -34,11 +34,15 @@ export type S3Settings = { url: string; bucket: string; accessKeyId: string; sec
 
 type SdkError = { name?: string; code?: string; $metadata?: { httpStatusCode?: number }; message?: string };
 
-/** A storage failure in a person's words, or the error itself when it is not about reaching storage. */
-function translate(err: unknown, what: string): Error {
+/**
+ * A storage failure in a person's words: a missing key (or bucket, when `missing` says a 404 means
+ * that) is ObjectMissingError; anything else — refused connection, timeout, server error, a bucket
+ * gone while writing, refused credentials — is StorageUnavailableError, a 503 for the request.
+ */
+function translate(err: unknown, what: string, missing = false): Error {
   const e = (err ?? {}) as SdkError;
   const status = e.$metadata?.httpStatusCode;
-  if (e.name === 'NoSuchKey' || e.name === 'NotFound' || status === 404) return new ObjectMissingError(`${what}: the object is not in storage.`);
+  if (missing && (e.name === 'NoSuchKey' || e.name === 'NotFound' || status === 404)) return new ObjectMissingError(`${what}: the object is not in storage.`);
   return new StorageUnavailableError(`Object storage is not available (${e.code ?? e.name ?? 'error'}${status ? ` ${status}` : ''}): ${what} could not be done. Try again when it is back.`);
 }
 
@@ -55,11 +59,11 @@ export function s3Store(s: S3Settings): ObjectStore {
     requestHandler: { connectionTimeout: 3000, requestTimeout: 60_000 },
   });
   const Bucket = s.bucket;
-  const call = async <T>(what: string, f: () => Promise<T>): Promise<T> => {
+  const call = async <T>(what: string, f: () => Promise<T>, missing = false): Promise<T> => {
     try {
       return await f();
     } catch (err) {
-      throw translate(err, what);
+      throw translate(err, what, missing);
     }
   };
   return {
@@ -68,7 +72,7 @@ export function s3Store(s: S3Settings): ObjectStore {
       try {
         await client.send(new HeadBucketCommand({ Bucket }));
       } catch (err) {
-        const e = translate(err, 'opening the bucket');
+        const e = translate(err, 'opening the bucket', true);
         if (!(e instanceof ObjectMissingError)) throw e;
         await call('creating the bucket', () => client.send(new CreateBucketCommand({ Bucket })));
       }
@@ -80,7 +84,7 @@ export function s3Store(s: S3Settings): ObjectStore {
       return call('reading the original file', async () => {
         const out = await client.send(new GetObjectCommand({ Bucket, Key: key }));
         return Buffer.from(await out.Body!.transformToByteArray());
-      });
+      }, true);
     },
     async remove(keys) {
       // One request a key: the batch delete needs a Content-MD5 or checksum header that not every service accepts.
