@@ -57,11 +57,11 @@ export function entryNames(names: string[], reserved: string[]): string[] {
 }
 
 export const MANIFEST_NAME = 'manifest.csv';
-export const MANIFEST_FIELDS = ['file_name', 'zip_entry', 'sha256', 'size_bytes', 'device_id', 'result', 'code', 'uploaded_at', 'deleted_at'] as const;
+export const MANIFEST_FIELDS = ['file_name', 'zip_entry', 'file_sha256', 'file_size_bytes', 'device_id', 'result', 'code', 'uploaded_at', 'deleted_at'] as const;
 
 /**
  * GET /api/batches/:id/originals.zip — every original of the batch (kept ones) and `manifest.csv`:
- * one row per received file (file name, its entry in the zip, SHA-256, size, device id, result
+ * one row per received file (file name, its entry in the zip, SHA-256, size in bytes, device id, result
  * — accepted, replaced, rejected or incomplete — the rejection's code, when it was uploaded and,
  * for deleted originals, when they were deleted). Storage is checked before the answer starts.
  */

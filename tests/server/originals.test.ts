@@ -147,12 +147,12 @@ describe('originals kept byte for byte', () => {
     expect(rows.map((r) => r.file_name)).toEqual(FILES.map((f) => f.name));
     for (const [k, f] of FILES.entries()) {
       const row = rows[k];
-      expect(row.sha256).toBe(sha256(f.bytes));
-      expect(Number(row.size_bytes)).toBe(f.bytes.length);
+      expect(row.file_sha256).toBe(sha256(f.bytes));
+      expect(Number(row.file_size_bytes)).toBe(f.bytes.length);
       expect(row.result).toBe(f.accepted ? 'accepted' : 'rejected');
       const entry = entries.find((e) => e.name === row.zip_entry)!;
       expect(Buffer.compare(entry.bytes, f.bytes)).toBe(0);
-      expect(sha256(entry.bytes)).toBe(row.sha256);
+      expect(sha256(entry.bytes)).toBe(row.file_sha256);
     }
     expect(rows[0].device_id).toBe('M2611-015');
     expect(rows[6].device_id).toBe('M2611-015');
