@@ -91,6 +91,18 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await admin.page.getByTestId('batch-originals').scrollIntoViewIfNeeded();
       expect(await layoutProblems(admin.page)).toEqual([]);
       await screenshot(admin.page, `originals-batch-admin-${vpName}`);
+
+      // The organisation's retention of originals, on the users screen.
+      await admin.page.goto(`${srv.url}/admin/users`, { waitUntil: 'load' });
+      const card = admin.page.getByTestId('retention-setting');
+      await card.waitFor();
+      const years = vpName === 'phone' ? '7' : '12';
+      await admin.page.getByTestId('retention-years').fill(years);
+      await admin.page.getByTestId('save-retention').click();
+      await card.getByText(`kept ${years} years after its release`).waitFor();
+      await card.scrollIntoViewIfNeeded();
+      expect(await layoutProblems(admin.page)).toEqual([]);
+      await screenshot(admin.page, `originals-retention-${vpName}`);
     } finally {
       await admin.close();
     }
