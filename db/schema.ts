@@ -275,6 +275,8 @@ export const curve = pgTable(
     record: text('record'),
     /** SHA-256 (hex) of the uploaded file's bytes, when the curve came from an upload; a release record keeps it. */
     file_sha256: text('file_sha256'),
+    /** Size in bytes of the uploaded file (its original is kept in object storage: original_file, server/services/originals.ts). */
+    file_size: integer('file_size'),
     createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   },
@@ -385,4 +387,45 @@ export const organizationSetting = pgTable('organization_setting', {
     .references(() => organization.id, { onDelete: 'cascade' }),
   /** Separation of duties: whoever submitted a batch or uploaded any of its curves may not release it. */
   separateRelease: boolean('separate_release').notNull().default(true),
+  /** How many years the original files of a released batch are kept before an administrator may delete them. */
+  retentionYears: integer('retention_years').notNull().default(10),
 });
+
+/**
+ * Every file an upload received and kept byte for byte in object storage (accepted or rejected),
+ * under `org/<organisation>/batch/<batch>/<sha256>` (server/storage). The row is written after the
+ * object and before any curve row, so no row points to a missing object; objects without a row
+ * (a crash between the two writes) are removed at start. `result` is null while the upload runs.
+ */
+export const originalFile = pgTable(
+  'original_file',
+  {
+    id: text('id').primaryKey(),
+    organizationId: text('organization_id')
+      .notNull()
+      .references(() => organization.id, { onDelete: 'cascade' }),
+    batchId: text('batch_id')
+      .notNull()
+      .references(() => batch.id, { onDelete: 'cascade' }),
+    fileName: text('file_name').notNull(),
+    sha256: text('sha256').notNull(),
+    size: integer('size').notNull(),
+    contentType: text('content_type').notNull(),
+    /** accepted | rejected; null while the upload runs (or when it stopped). */
+    result: text('result'),
+    /** The rejection's code (wrong_type, duplicate, …). */
+    code: text('code'),
+    /** The curve made from it (no foreign key: a replaced curve goes, its original stays). */
+    curveId: text('curve_id'),
+    deviceId: text('device_id'),
+    uploadedBy: text('uploaded_by').references(() => user.id, { onDelete: 'set null' }),
+    /** When the upload began (the same for every file of one upload). */
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+    /** The file's place in its upload (0, 1, …): with created_at, the order the files were sent in. */
+    position: integer('position').notNull().default(0),
+    /** Set when an administrator deleted the batch's originals (retention); the object is gone. */
+    deletedAt: timestamp('deleted_at', { withTimezone: true }),
+    deletedBy: text('deleted_by').references(() => user.id, { onDelete: 'set null' }),
+  },
+  (t) => [index('original_file_batch_idx').on(t.batchId, t.createdAt, t.position), index('original_file_key_idx').on(t.organizationId, t.batchId, t.sha256)],
+);

@@ -60,6 +60,8 @@ export const QUANTITIES: readonly Quantity[] = [
   q('curve', 'irradiance_spread_pct', 'Irradiance change during the sweep', '%', { decimals: 1 }),
   q('curve', 'cells', 'Cells in series', '', count),
   q('curve', 'area_cm2', 'Area', 'cm²'),
+  // The uploaded file the curve was read from (the raw-data archive).
+  q('curve', 'file_size_bytes', 'File size', 'bytes', count),
   q('curve', 'nameplate_w', 'Nameplate power', 'W'),
   q('curve', 'mean_pmp_w', 'Mean Pmax', 'W'),
 

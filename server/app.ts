@@ -32,8 +32,10 @@ import { reviewsRouter } from '@/server/routes/reviews';
 import { specsRouter } from '@/server/routes/specs';
 import { stringsRouter } from '@/server/routes/strings';
 import { outboxRouter } from '@/server/routes/outbox';
+import { batchOriginalsRouter, curveOriginalsRouter } from '@/server/routes/originals';
 import { usersRouter } from '@/server/routes/users';
 import type { Analyser } from '@/server/services/analysis-pool';
+import type { ObjectStore } from '@/server/storage';
 import { receiveUploads } from '@/server/upload-receiver';
 import type { UploadLimits } from '@/server/upload-receiver';
 
@@ -56,6 +58,8 @@ export type AppDeps = {
    * origins and its base URL — the runtime derives both from PUBLIC_URL).
    */
   trustedOrigins?: string[];
+  /** The raw-data archive (server/storage): every uploaded file is kept there. Without one, originals are not kept and their routes answer 503. */
+  store?: ObjectStore | null;
 };
 
 /** better-auth's base URL and trusted origins, as given to createAuth. */
@@ -108,10 +112,17 @@ export function createApp(deps: AppDeps): Express {
   app.use('/api/membership-requests', invalidatesCallers(callers), session, membershipRequestsRouter(db, deps.mailer, baseUrl));
   app.use('/api/organization', session, organizationRouter(db));
   app.use('/api/outbox', session, outboxRouter(db));
-  app.use('/api/batches', session, batchesRouter(db, receiveUploads(deps.uploadDir ?? path.join(os.tmpdir(), `quasilevel-uploads-${process.pid}`), deps.uploadLimits), deps.analyser), reviewsRouter(db, deps.mailer));
+  const store = deps.store ?? null;
+  app.use(
+    '/api/batches',
+    session,
+    batchesRouter(db, receiveUploads(deps.uploadDir ?? path.join(os.tmpdir(), `quasilevel-uploads-${process.pid}`), deps.uploadLimits), deps.analyser, store),
+    reviewsRouter(db, deps.mailer),
+    batchOriginalsRouter(db, store),
+  );
   app.use('/api/specs', session, specsRouter(db));
   app.use('/api/compare', session, compareRouter(db));
-  app.use('/api/curves', session, curvesRouter(db, deps.analyser));
+  app.use('/api/curves', session, curvesRouter(db, deps.analyser), curveOriginalsRouter(db, store, deps.analyser));
   app.use('/api/physics', session, physicsRouter(db));
   app.use('/api/strings', session, stringsRouter(db));
 

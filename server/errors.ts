@@ -4,6 +4,7 @@
  */
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { ZodError } from 'zod';
+import { StorageUnavailableError } from '@/server/storage/object-store';
 
 export class HttpError extends Error {
   constructor(
@@ -48,6 +49,11 @@ export const errorHandler: ErrorRequestHandler = (err, _req, res, next) => {
   if (res.headersSent) return next(err);
   if (err instanceof HttpError) {
     res.status(err.status).json({ code: err.code, message: err.message, ...(err.details ? { details: err.details } : {}), ...err.extra });
+    return;
+  }
+  // Object storage down or unreachable (server/storage): the request can be tried again later.
+  if (err instanceof StorageUnavailableError) {
+    res.status(503).json({ code: 'storage_unavailable', message: err.message });
     return;
   }
   if (isReleasedBatchError(err)) {

@@ -17,6 +17,9 @@ import { createApp } from '@/server/app';
 import { createAuth } from '@/server/auth';
 import { createMailer } from '@/server/mail';
 import { serverAnalyser } from '@/server/services/analysis-pool';
+import { cleanOrphans } from '@/server/services/originals-admin';
+import { openStorage } from '@/server/storage';
+import type { Storage } from '@/server/storage';
 
 export type RuntimeOptions = {
   dataDir: string;
@@ -88,6 +91,21 @@ export async function checkCanStart(dataDir: string, port: number, host: string)
   await new Promise((r) => probe.close(r));
 }
 
+/**
+ * The start-up cleanup of the archive: objects no row points to (a crash between the object and
+ * its row) are removed, with a count in the log. With a shared real service (S3_URL) only objects
+ * older than an hour go, so uploads of another server are spared. Storage down: a warning, and
+ * uploads answer 503 until it is back.
+ */
+async function removeOrphanOriginals(db: Database['db'], storage: Storage): Promise<void> {
+  try {
+    const r = await cleanOrphans(db, storage.store, { minAgeMs: storage.fake ? 0 : 3_600_000 });
+    console.log(`[quasilevel] original files: ${r.objects} object(s) in ${storage.store.where}, ${r.removed} orphan(s) no row points to removed`);
+  } catch (err) {
+    console.warn(`[quasilevel] original files: the orphan cleanup did not run: ${(err as Error).message}`);
+  }
+}
+
 export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Server; database: Database; url: string; seeded: boolean; stop: () => Promise<void> }> {
   mkdirSync(opts.dataDir, { recursive: true });
   const host = opts.host ?? '127.0.0.1';
@@ -112,16 +130,21 @@ export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Serv
       trustedOrigins: origins,
       signInPerMinute: Number(process.env.QUASILEVEL_SIGNIN_PER_MINUTE ?? 10),
     });
+    // The raw-data archive: S3_URL's service, else the local fake in <data>/objects (server/storage).
+    const storage = await openStorage(opts.dataDir);
+    undo.unshift(() => storage.stop());
+    await removeOrphanOriginals(database.db, storage);
     const analyser = serverAnalyser(demoCurveFiles());
     undo.unshift(() => analyser.close());
     const seeded = opts.seed === false ? false : await seedDemo(database.db, auth);
-    const app = createApp({ db: database.db, auth, mailer, webDir: opts.webDir, analyser, sessionCacheMs: SESSION_CACHE_MS, uploadDir, trustedOrigins: origins });
+    const app = createApp({ db: database.db, auth, mailer, webDir: opts.webDir, analyser, sessionCacheMs: SESSION_CACHE_MS, uploadDir, trustedOrigins: origins, store: storage.store });
     const server = await listen(app, opts.port, host);
     let stopping: Promise<void> | null = null;
     const stop = () =>
       (stopping ??= (async () => {
         await new Promise<void>((resolve) => server.close(() => resolve()));
         await analyser.close();
+        await storage.stop();
         await database.close();
         lock.release();
       })());

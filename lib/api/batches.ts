@@ -70,7 +70,7 @@ export function useRefit(id: string) {
     mutationFn: (input: RefitInput) => apiFetch<RefitAnswer>(`/api/curves/${encodeURIComponent(id)}/refit`, { body: input as Record<string, unknown> }),
     onSuccess: async (data) => {
       // The answer is the new curve (without its batch): written, not fetched again, as it can hold 100,000 points.
-      qc.setQueryData(curveKeys.detail(id), (old: CurveDetail | undefined) => (old ? { ...data, batch: old.batch } : old));
+      qc.setQueryData(curveKeys.detail(id), (old: CurveDetail | undefined) => (old ? { ...data, batch: old.batch, original: old.original } : old));
       // The physics of this curve (J0, Voc vs T) follow the new fit; the batch's figures follow its curves.
       await Promise.all([qc.invalidateQueries({ queryKey: curveKeys.physics(id) }), invalidateBatchFigures(qc, data.batch_id)]);
     },

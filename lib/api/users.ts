@@ -11,7 +11,7 @@ import type { UserList } from '@/lib/schemas/responses';
 export type { OrgUser } from '@/lib/schemas/responses';
 export type Invitation = { id: string; email: string; role: Role; expires_at: string; created_at: string; invited_by: string | null };
 export type JoinRequest = { id: string; user_id: string; name: string; email: string; created_at: string };
-export type OrganisationSettings = { id: string; name: string; domain: string; join_by_domain: boolean; separate_release: boolean };
+export type OrganisationSettings = { id: string; name: string; domain: string; join_by_domain: boolean; separate_release: boolean; retention_years: number };
 
 export { userKeys };
 

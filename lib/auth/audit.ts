@@ -15,6 +15,7 @@ export const AUDIT_ACTIONS = [
   'reactivated',
   'removed',
   'setting_changed',
+  'originals_deleted',
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 
@@ -63,7 +64,10 @@ export function describeAudit(e: AuditEntryJson): string {
       return `${who} reactivated ${whom}.`;
     case 'removed':
       return `${who} removed ${whom} from the organisation.`;
+    case 'originals_deleted':
+      return `${who} deleted the ${d.files ?? '?'} original file(s) kept of batch ${d.batch_name ?? d.batch_id ?? '?'}.`;
     case 'setting_changed':
+      if (d.retention_years !== undefined) return `${who} set the retention of original files to ${d.retention_years} years after release.`;
       if (d.separate_release !== undefined) {
         return d.separate_release
           ? `${who} turned separation of duties at release on: whoever uploaded or submitted a batch may not release it.`

@@ -74,6 +74,14 @@ export const organisationSettingsSchema = z
   .strictObject({
     join_by_domain: z.boolean({ message: 'Joining by e-mail domain must be on (true) or off (false).' }).optional(),
     separate_release: z.boolean({ message: 'Separate release must be on (true) or off (false).' }).optional(),
+    retention_years: z
+      .number({ message: 'Retention must be a whole number of years.' })
+      .int({ message: 'Retention must be a whole number of years.' })
+      .min(1, { message: 'Retention must be at least 1 year.' })
+      .max(100, { message: 'Retention must be at most 100 years.' })
+      .optional(),
   })
-  .refine((s) => s.join_by_domain !== undefined || s.separate_release !== undefined, { message: 'Name a setting to change: join_by_domain or separate_release.' });
+  .refine((s) => s.join_by_domain !== undefined || s.separate_release !== undefined || s.retention_years !== undefined, {
+    message: 'Name a setting to change: join_by_domain, separate_release or retention_years.',
+  });
 export type OrganisationSettingsInput = z.infer<typeof organisationSettingsSchema>;

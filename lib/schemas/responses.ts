@@ -104,7 +104,38 @@ const curveBodySchema = curveRowSchema.extend({
   history: z.array(fitHistorySchema),
 });
 /** GET /api/curves/:id; a refit answers the same without `batch`. */
-export const curveDetailSchema = curveBodySchema.extend({ batch: z.strictObject({ id: z.string(), name: z.string(), state: z.string() }) });
+/** What a curve's page says about the file it was read from (null: stored without one, such as the demo data). */
+export const curveOriginalSchema = z
+  .strictObject({
+    file_name: z.string(),
+    file_sha256: z.string(),
+    file_size_bytes: z.number().nullable(),
+    content_type: z.string().nullable(),
+    kept: z.boolean(),
+    deleted_at: z.string().nullable(),
+    url: z.string(),
+  })
+  .nullable();
+export const curveDetailSchema = curveBodySchema.extend({ batch: z.strictObject({ id: z.string(), name: z.string(), state: z.string() }), original: curveOriginalSchema });
+/** POST /api/batches/:id/originals/verify: every kept original read back and hashed; what differs from the upload's record. */
+export const originalsCheckSchema = z.strictObject({
+  batch_id: z.string(),
+  checked: z.number(),
+  ok: z.boolean(),
+  problems: z.array(
+    z.strictObject({
+      file_name: z.string(),
+      device_id: z.string().nullable(),
+      problem: z.enum(['mismatch', 'missing', 'curve_mismatch']),
+      expected_sha256: z.string(),
+      found_sha256: z.string().nullable(),
+    }),
+  ),
+  checked_at: stamp,
+});
+/** DELETE /api/batches/:id/originals. */
+export const originalsDeletedSchema = z.strictObject({ batch_id: z.string(), deleted: z.number(), deleted_at: stamp });
+export type OriginalsCheck = z.infer<typeof originalsCheckSchema>;
 export const refitAnswerSchema = curveBodySchema.extend({ batch: z.strictObject({ id: z.string(), name: z.string(), state: z.string() }).optional() });
 
 export const overlaySchema = z.strictObject({
@@ -116,8 +147,8 @@ export const overlaySchema = z.strictObject({
 });
 
 export const uploadResultSchema = z.union([
-  z.strictObject({ file: z.string(), accepted: z.literal(true), curve_id: z.string(), device_id: z.string(), replaced: z.number().optional() }),
-  z.strictObject({ file: z.string(), accepted: z.literal(false), error: z.string(), code: z.string(), device_id: z.string().optional(), line: z.number().optional() }),
+  z.strictObject({ file: z.string(), accepted: z.literal(true), curve_id: z.string(), device_id: z.string(), replaced: z.number().optional(), file_sha256: z.string().optional() }),
+  z.strictObject({ file: z.string(), accepted: z.literal(false), error: z.string(), code: z.string(), device_id: z.string().optional(), line: z.number().optional(), file_sha256: z.string().optional() }),
 ]);
 export const uploadAnswerSchema = z.strictObject({ results: z.array(uploadResultSchema), accepted: z.number(), rejected: z.number() });
 

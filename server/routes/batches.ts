@@ -10,7 +10,8 @@ import { sendAnswer } from '@/server/services/answer-cache';
 import { batchReads } from '@/server/services/batch-reads';
 import { createBatch, loadWritableBatch } from '@/server/services/batches';
 import { editBatch } from '@/server/services/stc-refresh';
-import { uploadCurves } from '@/server/services/uploads';
+import { uploadWithOriginals } from '@/server/services/originals-upload';
+import type { ObjectStore } from '@/server/storage';
 import { receivedFiles, removeReceived } from '@/server/upload-receiver';
 import { validate } from '@/server/validate';
 
@@ -18,7 +19,7 @@ import { validate } from '@/server/validate';
  * /api/batches — batches, uploads, the batch table and overlay. `receiveFiles` streams an
  * upload's files to disk within the caps (server/upload-receiver.ts `receiveUploads`).
  */
-export function batchesRouter(db: Db, receiveFiles: RequestHandler, analyser: Analyser = inlineAnalyser()): Router {
+export function batchesRouter(db: Db, receiveFiles: RequestHandler, analyser: Analyser = inlineAnalyser(), store: ObjectStore | null = null): Router {
   const r = Router();
   const reads = batchReads(db);
   const org = (req: Request) => callerOf(req).organization.id;
@@ -69,8 +70,9 @@ export function batchesRouter(db: Db, receiveFiles: RequestHandler, analyser: An
       try {
         const opts = uploadOverridesSchema.parse(req.body ?? {});
         const who = { organizationId: c.organization.id, userId: c.user.id };
-        const answer = await uploadCurves(db, analyser, who, String(req.params.id), receivedFiles(req), opts, gone.signal);
-        if (!gone.signal.aborted) res.status(answer.accepted ? 201 : 422).json(answer);
+        // Each file's original is kept in object storage before its curve (server/services/originals-upload.ts); storage down: 503.
+        const { status, answer } = await uploadWithOriginals(db, store, analyser, who, String(req.params.id), receivedFiles(req), opts, gone.signal);
+        if (!gone.signal.aborted) res.status(status).json(answer);
       } finally {
         await removeReceived(req);
       }

@@ -16,6 +16,7 @@ import type { Analyser } from '@/server/services/analysis-pool';
 import { touchBatch } from '@/server/services/answer-cache';
 import { lockWritableBatch } from '@/server/services/batch-lock';
 import { assertWritable, batchCoefficients } from '@/server/services/batches';
+import { originalInfo } from '@/server/services/original-info';
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 type CurveRow = typeof curve.$inferSelect;
@@ -80,7 +81,7 @@ function nextStamp(): Date {
 }
 
 /** One analysed curve to store; `id` is chosen by the caller so it can answer before the write; `fileSha256` of the uploaded bytes when known. */
-export type CurveToStore = { id: string; fileName: string; analysis: FileAnalysis; replaceIds?: string[]; fileSha256?: string };
+export type CurveToStore = { id: string; fileName: string; analysis: FileAnalysis; replaceIds?: string[]; fileSha256?: string; fileSize?: number };
 
 /**
  * Inserts analysed curves and their fits in one transaction (a multi-row insert: about three
@@ -94,7 +95,7 @@ export async function storeCurves(db: Db, target: { organizationId: string; batc
     await lockWritableBatch(tx, target.batchId);
     if (replaced.length) await tx.delete(curve).where(and(inArray(curve.id, replaced), eq(curve.batchId, target.batchId)));
     await tx.insert(curve).values(
-      items.map(({ id, fileName, analysis: a, fileSha256 }) => {
+      items.map(({ id, fileName, analysis: a, fileSha256, fileSize }) => {
         const deviceId = a.curve.meta.device_id ?? fileName;
         const derived = derivedColumns(a);
         return {
@@ -113,6 +114,7 @@ export async function storeCurves(db: Db, target: { organizationId: string; batc
           createdBy: target.userId,
           createdAt: nextStamp(),
           file_sha256: fileSha256 ?? null,
+          file_size: fileSize ?? null,
           ...derived,
           record: comparisonRecord({ id, batch_id: target.batchId, device_id: deviceId }, a, derived),
         };
@@ -221,7 +223,7 @@ export async function curveDetail(db: Db, organizationId: string, id: string) {
   const row = await loadCurve(db, organizationId, id);
   const fits = (await fitsFor(db, [row.id], false)).get(row.id) ?? [];
   const [b] = await db.select({ id: batch.id, name: batch.name, state: batch.state }).from(batch).where(eq(batch.id, row.batchId));
-  return { ...curveJson(row, fits, true), batch: b };
+  return { ...curveJson(row, fits, true), batch: b, original: await originalInfo(db, row) };
 }
 
 /**

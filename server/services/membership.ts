@@ -153,15 +153,15 @@ export async function decideRequest(db: Db, mailer: Mailer, baseUrl: string, by:
 export async function organisationSettings(db: Db, organizationId: string) {
   const [o] = await db.select().from(organization).where(eq(organization.id, organizationId));
   if (!o) throw new HttpError(404, 'not_found', 'Your organisation was not found.');
-  const [s] = await db.select({ separate: organizationSetting.separateRelease }).from(organizationSetting).where(eq(organizationSetting.organizationId, organizationId));
-  return { id: o.id, name: o.name, domain: o.domain, join_by_domain: o.joinByDomain, separate_release: s?.separate ?? true };
+  const [s] = await db.select({ separate: organizationSetting.separateRelease, years: organizationSetting.retentionYears }).from(organizationSetting).where(eq(organizationSetting.organizationId, organizationId));
+  return { id: o.id, name: o.name, domain: o.domain, join_by_domain: o.joinByDomain, separate_release: s?.separate ?? true, retention_years: s?.years ?? 10 };
 }
 
 /**
  * Changes the organisation's settings — joining by e-mail domain, separation of duties at
  * release — each change with its audit entry, in one transaction.
  */
-export async function updateOrganisationSettings(db: Db, by: AdminActor, change: { join_by_domain?: boolean; separate_release?: boolean }) {
+export async function updateOrganisationSettings(db: Db, by: AdminActor, change: { join_by_domain?: boolean; separate_release?: boolean; retention_years?: number }) {
   await db.transaction(async (tx) => {
     const orgId = by.organizationId;
     if (change.join_by_domain !== undefined) {
@@ -172,6 +172,12 @@ export async function updateOrganisationSettings(db: Db, by: AdminActor, change:
       const on = change.separate_release;
       await tx.insert(organizationSetting).values({ organizationId: orgId, separateRelease: on }).onConflictDoUpdate({ target: organizationSetting.organizationId, set: { separateRelease: on } });
       await recordAudit(tx, { organizationId: orgId, actor: by, action: 'setting_changed', details: { separate_release: on } });
+    }
+    if (change.retention_years !== undefined) {
+      // Years the originals of a released batch are kept (server/services/originals-admin.ts).
+      const years = change.retention_years;
+      await tx.insert(organizationSetting).values({ organizationId: orgId, retentionYears: years }).onConflictDoUpdate({ target: organizationSetting.organizationId, set: { retentionYears: years } });
+      await recordAudit(tx, { organizationId: orgId, actor: by, action: 'setting_changed', details: { retention_years: String(years) } });
     }
   });
   return organisationSettings(db, by.organizationId);

@@ -10,6 +10,7 @@ import { curve } from '@/db/schema';
 import type { uploadOverridesSchema } from '@/lib/schemas/curves';
 import { textProblem } from '@/lib/schemas/text';
 import { HttpError } from '@/server/errors';
+import { StorageUnavailableError } from '@/server/storage/object-store';
 import type { AnalysisOutcome, Analyser } from '@/server/services/analysis-pool';
 import { batchDefaults, loadWritableBatch } from '@/server/services/batches';
 import { storeCurves } from '@/server/services/curves';
@@ -81,7 +82,12 @@ export async function uploadCurves(
           job.sha256 = createHash('sha256').update(bytes).digest('hex');
           return analyser.analyse({ bytes, fileName: file.name, overrides, defaults: batchDefaults(b) });
         })
-        .catch((err: unknown): AnalysisOutcome => ({ ok: false, kind: 'failure', message: `the received file could not be read back (${(err as Error)?.message ?? err})` }))
+        .catch((err: unknown): AnalysisOutcome =>
+          // Object storage down while the original was kept (server/services/originals-upload.ts): nothing of the file is stored.
+          err instanceof StorageUnavailableError
+            ? { ok: false, kind: 'input', code: 'storage_unavailable', message: `${file.name} was not stored: ${err.message} Nothing of it was kept; upload it again.` }
+            : { ok: false, kind: 'failure', message: `the received file could not be read back (${(err as Error)?.message ?? err})` },
+        )
         .then((o) => (job.outcome = o));
     }
   };
@@ -148,7 +154,7 @@ export async function uploadCurves(
     // A curve replacing one still waiting in the group: store that one first, as the upload's order says.
     if (replaceIds.some((id) => group.some((g) => g.id === id))) await flush();
     const curveId = crypto.randomUUID();
-    group.push({ id: curveId, fileName: name, analysis, replaceIds, fileSha256: job.sha256 });
+    group.push({ id: curveId, fileName: name, analysis, replaceIds, fileSha256: job.sha256, fileSize: job.sha256 ? job.size : undefined });
     byDevice.set(deviceId, opts.on_duplicate === 'replace' ? [curveId] : [...already, curveId]);
     results.push({ file: name, accepted: true, curve_id: curveId, device_id: deviceId, ...(replaceIds.length ? { replaced: replaceIds.length } : {}) });
     if (group.length >= STORE_GROUP) await flush();

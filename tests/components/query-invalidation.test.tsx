@@ -8,6 +8,7 @@ import type { QueryKey } from '@tanstack/react-query';
 import { act, renderHook, waitFor } from '@testing-library/react-native';
 import type { ReactNode } from 'react';
 import { batchKeys, curveKeys, useAfterUpload, useCreateBatch, useRefit, useUpdateBatch } from '@/lib/api/batches';
+import { useDeleteOriginals, useReanalyse, useSetRetention } from '@/lib/api/originals';
 import { outboxKeys } from '@/lib/api/outbox';
 import { physicsKeys } from '@/lib/api/physics';
 import { qualityKeys, specKeys, useComparison, useDecision, useReopen, useSaveSpec, useSubmitBatch } from '@/lib/api/quality';
@@ -58,7 +59,7 @@ function stubFetch() {
   const calls: string[] = [];
   const fetchMock = jest.fn(async (url: string, init?: { method?: string }) => {
     calls.push(`${init?.method ?? 'GET'} ${url}`);
-    const body = url.includes('/refit')
+    const body = url.includes('/refit') || url.includes('/reanalyse')
       ? { id: 'c1', batch_id: 'b1', device_id: 'D1', fits: [] }
       : url.startsWith('/api/compare')
         ? { batches: [], spec: null, param: 'pmp_w', tables: [], outliers: [], stats: {}, counts: {}, differences: [] }
@@ -110,6 +111,21 @@ const cases: Case[] = [
     // The refit's answer is the curve itself: written into the cache rather than fetched again.
     fresh: ['c1', 'compareB3', 'b3', 'b3Evaluation', 'c9', 'c9Physics', 'specList', 'material'],
     also: (qc) => expect(qc.getQueryData(cached.c1)).toEqual({ id: 'c1', batch_id: 'b1', device_id: 'D1', fits: [], batch: { id: 'b1', name: 'Lot 2611', state: 'open' } }),
+  },
+  {
+    what: 'a re-analysis of curve c1 (of b1) from its original file',
+    run: (wrapper) => mutate(() => useReanalyse('c1'), undefined, wrapper),
+    stale: ['c1Physics', 'batchList', 'b1', 'b1Curves', 'b1Overlay', 'b1Evaluation', 'compareB1B2', 'compareB2B1NoSpec'],
+    // The answer is the curve itself, written into the cache.
+    fresh: ['c1', 'compareB3', 'b3', 'b3Evaluation', 'c9', 'c9Physics', 'specList', 'material'],
+    also: (qc) => expect(qc.getQueryData(cached.c1)).toEqual({ id: 'c1', batch_id: 'b1', device_id: 'D1', fits: [] }),
+  },
+  {
+    what: "deleting b1's original files",
+    run: (wrapper) => mutate(() => useDeleteOriginals('b1'), undefined, wrapper),
+    // The curve pages say whether their file is kept; the audit list records the deletion.
+    stale: [...batchData, 'audit'],
+    fresh: ['compareB3', 'b3', 'c9', 'c9Physics', 'specList', 'users'],
   },
   {
     what: 'releasing b1',
@@ -171,6 +187,7 @@ const cases: Case[] = [
       ['deactivating a member', (w) => mutate(() => useSetMemberActive(), { userId: 'u1', active: false }, w)],
       ['removing a member', (w) => mutate(() => useRemoveMember(), 'u1', w)],
       ['turning joining by domain on', (w) => mutate(() => useSetJoinByDomain(), true, w)],
+      ['setting the retention of original files', (w) => mutate(() => useSetRetention(), 5, w)],
     ] as const satisfies readonly (readonly [string, Case['run']])[]
   ).map(([what, run]): Case => ({ what, run, stale: ['users', 'invitations', 'requests', 'audit', 'me', 'outbox'], fresh: ['batchList', 'compareB1B2', 'specList'] })),
   {

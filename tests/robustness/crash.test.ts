@@ -221,6 +221,17 @@ describe('crash safety', () => {
       expect(one.points.voltage_v).toHaveLength(SYNTHETIC_POINTS);
       expect(one.fits).toHaveLength(2);
 
+      // Issue 20: each surviving curve's original was stored before the curve, so it comes back byte
+      // for byte; the start-up cleanup ran over the archive and logged its count.
+      expect(server.log()).toMatch(/original files: \d+ object\(s\) in http:\/\/127\.0\.0\.1:\d+\/[^,]+, \d+ orphan\(s\) no row points to removed/);
+      const text = new Map(files.map((f) => [f.deviceId, f.text]));
+      for (const x of page.curves.slice(0, 5)) {
+        const detail = await api<{ device_id: string }>(session, 'GET', `/api/curves/${x.id}`);
+        const res = await fetch(`${server.url}/api/curves/${x.id}/original`, { headers: { cookie: session.cookie } });
+        expect(res.status).toBe(200);
+        expect(Buffer.compare(Buffer.from(await res.arrayBuffer()), Buffer.from(text.get(detail.device_id)!))).toBe(0);
+      }
+
       // Finish part of the interrupted upload: the database takes writes again.
       const stored = new Set(c.storedAfterKill);
       const rest = files.filter((f) => !stored.has(f.deviceId)).slice(0, 20);

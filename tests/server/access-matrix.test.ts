@@ -31,6 +31,8 @@ import {
   curvePageSchema,
   evaluationSchema,
   meSchema,
+  originalsCheckSchema,
+  originalsDeletedSchema,
   outboxSchema,
   overlaySchema,
   refitAnswerSchema,
@@ -74,7 +76,7 @@ const OTHER = 'other-org.example';
 let h: Harness;
 const agents = {} as Record<Role | 'unverified' | 'awaiting', Agent>;
 const outsiders = {} as Record<'admin' | 'qa_lead', Agent>;
-const ids = { batch: '', curve: '', spec: '', specFamily: '', spareUser: '', org: '', engineer: '', released: '', release: '' };
+const ids = { batch: '', curve: '', spec: '', specFamily: '', spareUser: '', org: '', engineer: '', released: '', release: '', archived: '', archivedCurve: '' };
 /** Strings that must never appear in an answer to the other organisation. */
 let ours: string[] = [];
 let analysis: FileAnalysis;
@@ -90,6 +92,17 @@ async function freshBatch(state: 'open' | 'in_review'): Promise<{ batchId: strin
   const batchId = crypto.randomUUID();
   await h.database.db.insert(batch).values({ id: batchId, organizationId: ids.org, name: `matrix ${state}`, cells: 1, state, createdBy: ids.engineer });
   const curveId = await storeCurve(h.database.db, { organizationId: ids.org, batchId, fileName: 'matrix.csv', analysis, userId: ids.engineer });
+  ours.push(batchId, curveId);
+  return { batchId, curveId };
+}
+
+/** A batch of ours with one curve uploaded through the API by the test engineer, so its original is kept in the archive. */
+async function uploadedBatch(): Promise<{ batchId: string; curveId: string }> {
+  const batchId = crypto.randomUUID();
+  await h.database.db.insert(batch).values({ id: batchId, organizationId: ids.org, name: 'matrix archive', cells: 1, createdBy: ids.engineer });
+  const res = await agents.test_engineer.post(`/api/batches/${batchId}/curves`).attach('files', cellCsv, 'matrix-original.csv');
+  if (res.status !== 201) throw new Error(`matrix upload failed: ${res.status} ${res.text}`);
+  const curveId = res.body.results[0].curve_id as string;
   ours.push(batchId, curveId);
   return { batchId, curveId };
 }
@@ -210,6 +223,11 @@ const ROUTES: RouteCase[] = [
   { method: 'GET', path: '/api/compare/comparison.csv', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/compare/comparison.csv?batches=${ids.batch}&param=pmp_w&spec=${ids.spec}` }) },
   { method: 'GET', path: '/api/curves/:id', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/curves/${ids.curve}` }) },
   { method: 'POST', path: '/api/curves/:id/refit', need: 'batch:write', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/curves/${(await freshBatch('open')).curveId}/refit`, body: { model: 'single' } }) },
+  { method: 'GET', path: '/api/curves/:id/original', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/curves/${ids.archivedCurve}/original` }) },
+  { method: 'POST', path: '/api/curves/:id/reanalyse', need: 'batch:write', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/curves/${(await uploadedBatch()).curveId}/reanalyse`, body: {} }) },
+  { method: 'GET', path: '/api/batches/:id/originals.zip', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.archived}/originals.zip` }) },
+  { method: 'POST', path: '/api/batches/:id/originals/verify', need: 'archive:manage', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.archived}/originals/verify` }) },
+  { method: 'DELETE', path: '/api/batches/:id/originals', need: 'archive:manage', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${(await uploadedBatch()).batchId}/originals` }) },
   { method: 'GET', path: '/api/physics/material', need: 'physics:use', ok: 200, foreign: 'own', build: async () => ({ url: '/api/physics/material?temp_k=300' }) },
   { method: 'POST', path: '/api/physics/band-diagram', need: 'physics:use', ok: 200, foreign: 'own', build: async () => ({ url: '/api/physics/band-diagram', body: { type: 'p', doping_cm3: 1e16, excess_cm3: 1e14, temp_k: 300 } }) },
   { method: 'GET', path: '/api/physics/curves/:id', need: 'physics:use', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/physics/curves/${ids.curve}` }) },
@@ -300,6 +318,9 @@ beforeAll(async () => {
   ids.specFamily = spec.body.family_id;
   analysis = analyseFile(cellCsv, { fileName: 'matrix.csv' });
   ours = [ORG, org.id, ids.spareUser, ids.spec, ids.specFamily, ids.curve, ...batches.map((b) => b.id)];
+  const archived = await uploadedBatch();
+  ids.archived = archived.batchId;
+  ids.archivedCurve = archived.curveId;
   const released = await releasedBatch();
   ids.released = released.batchId;
   ids.release = released.releaseId;
@@ -351,7 +372,8 @@ function allowedAgent(route: RouteCase): Agent {
 }
 
 describe('one vocabulary: every key of every JSON answer is snake_case', () => {
-  const json = ROUTES.filter((r) => !r.path.endsWith('.csv'));
+  // Files: CSV exports, the originals as uploaded and their zip.
+  const json = ROUTES.filter((r) => !r.path.endsWith('.csv') && !r.path.endsWith('.zip') && !r.path.endsWith('/original'));
   it.each(json.map((r) => [`${r.method} ${r.path}`, r] as const))('%s', async (_name, route) => {
     const res = await send(allowedAgent(route), route.method, await route.build());
     expect(res.status).toBe(route.ok);
@@ -387,6 +409,9 @@ const RESPONSE_SCHEMAS: Record<string, ZodType> = {
   'GET /api/compare': comparisonWireSchema,
   'GET /api/curves/:id': curveDetailSchema,
   'POST /api/curves/:id/refit': refitAnswerSchema,
+  'POST /api/curves/:id/reanalyse': curveDetailSchema,
+  'POST /api/batches/:id/originals/verify': originalsCheckSchema,
+  'DELETE /api/batches/:id/originals': originalsDeletedSchema,
 };
 
 describe('the answers match the response schemas the client is typed with (strict objects)', () => {

@@ -21,11 +21,17 @@ import type { Role } from '@/lib/auth/roles';
 import type { Analyser } from '@/server/services/analysis-pool';
 import { decideRequest } from '@/server/services/membership';
 import { openTestDatabase } from '@/tests/support/test-database';
+import { openFakeStorage } from '@/server/storage';
+import type { Storage } from '@/server/storage';
 
 export const BASE_URL = 'http://localhost:8080';
 
 export type Harness = {
   app: Express;
+  /** The raw-data archive: an s3rver fake on a temporary folder, one per harness (tests stop it to see faults). */
+  storage?: Storage;
+  /** The fake's folder (a test restarts the fake there after stopping it). */
+  objectsDir?: string;
   database: Database;
   auth: Auth;
   mailer: Mailer;
@@ -60,6 +66,8 @@ const harnesses = new WeakMap<Express, Harness>();
 
 export async function startHarness(opts: { signInPerMinute?: number; analyser?: Analyser; sessionCacheMs?: number } = {}): Promise<Harness> {
   const database = await openTestDatabase();
+  const objectsDir = mkdtempSync(path.join(os.tmpdir(), 'ql-objects-'));
+  const storage = await openFakeStorage(objectsDir);
   const outboxDir = mkdtempSync(path.join(os.tmpdir(), 'ql-outbox-'));
   const mailer = createMailer({ db: database.db, outboxDir });
   const auth = createAuth({
@@ -71,9 +79,11 @@ export async function startHarness(opts: { signInPerMinute?: number; analyser?: 
     signInPerMinute: opts.signInPerMinute ?? 0,
     logLevel: 'error',
   });
-  const app = createApp({ db: database.db, auth, mailer, analyser: opts.analyser, sessionCacheMs: opts.sessionCacheMs });
+  const app = createApp({ db: database.db, auth, mailer, analyser: opts.analyser, sessionCacheMs: opts.sessionCacheMs, store: storage.store });
   const h: Harness = {
     app,
+    storage,
+    objectsDir,
     database,
     auth,
     mailer,
@@ -84,8 +94,10 @@ export async function startHarness(opts: { signInPerMinute?: number; analyser?: 
         .map((f) => readFileSync(path.join(outboxDir, f), 'utf8')),
     close: async () => {
       await opts.analyser?.close();
+      await storage.stop();
       await database.close();
       rmSync(outboxDir, { recursive: true, force: true });
+      rmSync(objectsDir, { recursive: true, force: true });
     },
   };
   harnesses.set(app, h);

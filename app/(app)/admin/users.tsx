@@ -6,6 +6,7 @@ import { JoinRequests } from '@/components/join-requests';
 import { JoinSetting } from '@/components/join-setting';
 import { MemberRow } from '@/components/member-row';
 import { ReleaseDutiesSetting } from '@/components/release-duties-setting';
+import { RetentionSetting } from '@/components/retention-setting';
 import { QueryState } from '@/components/query-state';
 import { Screen } from '@/components/screen';
 import { theme } from '@/components/theme';
@@ -31,6 +32,7 @@ export default function UsersScreen() {
       <InvitePanel />
       <JoinSetting />
       <ReleaseDutiesSetting />
+      <RetentionSetting />
     </>
   );
   return (

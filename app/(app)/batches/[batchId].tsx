@@ -10,6 +10,7 @@ import { CurveTable } from '@/components/curve-table';
 import { Figure } from '@/components/figure';
 import { OverlayChart } from '@/components/overlay-chart';
 import { QueryState } from '@/components/query-state';
+import { BatchOriginals } from '@/components/original-file';
 import { ReviewPanel } from '@/components/review-panel';
 import { Screen } from '@/components/screen';
 import { StateBadge } from '@/components/state-badge';
@@ -113,6 +114,7 @@ export default function BatchScreen() {
               </Card>
             </View>
             {me.data ? <ReviewPanel b={b} me={me.data} /> : null}
+            <BatchOriginals batchId={b.id} canManage={!!me.data?.permissions.includes('archive:manage')} />
             <Card title="Curves">
               <View style={styles.toolbar}>
                 <TextInput

@@ -10,6 +10,7 @@ import { FlagChip } from '@/components/flag-chip';
 import { IvChart } from '@/components/iv-chart';
 import type { Series } from '@/components/iv-chart';
 import { QueryState } from '@/components/query-state';
+import { CurveOriginal } from '@/components/original-file';
 import { RefitForm } from '@/components/refit-form';
 import { ResidualChart } from '@/components/residual-chart';
 import { Screen } from '@/components/screen';
@@ -243,6 +244,7 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
           ) : null}
         </Card>
       </View>
+      <CurveOriginal c={c} canWrite={canWrite} />
       <FileMetadata meta={c.meta} />
       {c.notes.length ? <Txt variant="caption">Reading the file: {c.notes.join('; ')}.</Txt> : null}
     </Screen>
