@@ -46,7 +46,7 @@ function lmFit(residuals: (p: number[]) => number[], m: number, initial: number[
     damping: 1e-3,
     gradientDifference: step,
     centralDifference: true,
-    maxIterations: 200,
+    maxIterations: 40,
     errorTolerance: 1e-12,
   });
   const p = out.parameterValues;
