@@ -56,7 +56,8 @@ function text(r: Characterisation): string {
     `Temperature coefficients at ${f(g.irradiance_wm2, 0)} W/m², ${f(g.temp_min_c, 1)}–${f(g.temp_max_c, 1)} °C (${g.curves} curves):`,
     ...(['alpha', 'beta', 'gamma'] as const).map((k) => {
       const c = g[k];
-      return `  ${k === 'alpha' ? 'α (Isc) ' : k === 'beta' ? 'β (Voc) ' : 'γ (Pmax)'}  ${f(c.pct_per_k, 4)} ± ${f(c.pct_per_k_se, 4)} %/K   ${c.per_k.toPrecision(4)} ${c.unit}/K   R² ${f(c.r2, 4)}`;
+      const abs = k === 'alpha' ? `${r.alpha_isc_a_per_k.toPrecision(4)} A/K` : k === 'beta' ? `${r.beta_voc_v_per_k.toPrecision(4)} V/K` : `${r.gamma_pmp_w_per_k.toPrecision(4)} W/K`;
+      return `  ${k === 'alpha' ? 'α (Isc) ' : k === 'beta' ? 'β (Voc) ' : 'γ (Pmax)'}  ${f(c.pct_per_k, 4)} ± ${f(c.pct_per_k_se, 4)} %/K   ${abs}   R² ${f(c.r2, 4)}`;
     }),
     '',
   ];

@@ -16,20 +16,17 @@ import type { CellFigures, CharCurve, Refusal } from '@/lib/analysis/characteris
 
 export type { CharCurve } from '@/lib/analysis/characterise/types';
 
+/**
+ * One coefficient's regression, in relative terms so every key has one unit: each point's figure
+ * as % of the line's value at 25 °C (`relative_pct`), the line 100 + pct_per_k·(T − 25).
+ */
 type CoefficientOut = {
   figure: string;
-  unit: string;
   pct_per_k: number;
   pct_per_k_se: number | null;
-  per_k: number;
-  per_k_se: number | null;
-  value_at_25c: number;
   r2: number | null;
-  points: { temp_c: number; value: number; curve: string }[];
-  slope: number;
-  intercept: number;
+  points: { temp_c: number; relative_pct: number; curve: string }[];
 };
-
 export type Characterisation = {
   device: string | null;
   curves: number;
@@ -47,7 +44,18 @@ export type Characterisation = {
     beta_voc_v_per_k: number | null;
     gamma_pmp_w_per_k: number | null;
   };
-  regression: { irradiance_wm2: number; curves: number; temp_min_c: number; temp_max_c: number; span_k: number; alpha: CoefficientOut; beta: CoefficientOut; gamma: CoefficientOut };
+  regression: {
+    irradiance_wm2: number;
+    curves: number;
+    temp_min_c: number;
+    temp_max_c: number;
+    span_k: number;
+    /** The regression lines' values at 25 °C (at the regression's irradiance). */
+    at_25c: { isc_a: number; voc_v: number; pmp_w: number };
+    alpha: CoefficientOut;
+    beta: CoefficientOut;
+    gamma: CoefficientOut;
+  };
   iec60891: {
     procedure1: { rs_ohm: number; kappa_ohm_per_k: number; alpha_a_per_k: number; beta_v_per_k: number; rs_residual_pct: number; kappa_residual_pct: number; rs_curves: string[]; kappa_curves: string[] } | Refusal;
     procedure2: {
@@ -72,16 +80,10 @@ export type Characterisation = {
 
 const out = (c: Coefficient): CoefficientOut => ({
   figure: c.figure,
-  unit: c.unit,
   pct_per_k: c.pct_per_k,
   pct_per_k_se: c.pct_per_k_se,
-  per_k: c.per_k,
-  per_k_se: c.per_k_se,
-  value_at_25c: c.value_at_25c,
   r2: c.r2,
-  points: c.points.map((p) => ({ temp_c: p.temp_c, value: p.value, curve: p.curve_id })),
-  slope: c.line.slope,
-  intercept: c.line.intercept,
+  points: c.points.map((p) => ({ temp_c: p.temp_c, relative_pct: (100 * p.value) / c.value_at_25c, curve: p.curve_id })),
 });
 
 function iecOut(r: Iec60891Result): Characterisation['iec60891'] {
@@ -156,7 +158,17 @@ export function characterise(curves: readonly CharCurve[], opts: { device?: stri
       beta_voc_v_per_k: c.beta.per_k_se,
       gamma_pmp_w_per_k: c.gamma.per_k_se,
     },
-    regression: { irradiance_wm2: c.irradiance_w_m2, curves: c.curves, temp_min_c: c.temp_min_c, temp_max_c: c.temp_max_c, span_k: c.span_k, alpha: out(c.alpha), beta: out(c.beta), gamma: out(c.gamma) },
+    regression: {
+      irradiance_wm2: c.irradiance_w_m2,
+      curves: c.curves,
+      temp_min_c: c.temp_min_c,
+      temp_max_c: c.temp_max_c,
+      span_k: c.span_k,
+      at_25c: { isc_a: c.alpha.value_at_25c, voc_v: c.beta.value_at_25c, pmp_w: c.gamma.value_at_25c },
+      alpha: out(c.alpha),
+      beta: out(c.beta),
+      gamma: out(c.gamma),
+    },
     iec60891: iecOut(iec),
     matrix,
     not_covered,
