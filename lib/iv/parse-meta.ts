@@ -71,7 +71,7 @@ function parseMetaValue(field: MetaKey, raw: string, unitFromKey: string, lineNo
     case 'irradiance_w_m2': {
       const factor = unit === '' && normName(key) === 'suns' ? 1000 : irradianceFactor(unit);
       if (factor === undefined) bad('irradiance must be in W/m²');
-      const g = parsed.value * factor;
+      const g = parsed.value * (factor as number);
       if (!(g > 0 && g <= 5000)) bad('irradiance must be above 0 and at most 5000 W/m²');
       return g;
     }
