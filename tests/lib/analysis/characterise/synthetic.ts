@@ -8,9 +8,10 @@ import type { CharCurve } from '@/lib/analysis/characterise';
 
 const K_B = 1.380649e-23;
 const Q = 1.602176634e-19;
-export const MODULE = { cells: 60, n: 1.1, rs_ohm: 0.35, rsh_ohm: 400, iph_stc_a: 9.0, alpha_rel_per_k: 0.0005, i0_stc_a: 2e-10, eg_ev: 1.12 } as const;
+export type InventedModule = { cells: number; n: number; rs_ohm: number; rsh_ohm: number; iph_stc_a: number; alpha_rel_per_k: number; i0_stc_a: number; eg_ev: number };
+export const MODULE: Readonly<InventedModule> = { cells: 60, n: 1.1, rs_ohm: 0.35, rsh_ohm: 400, iph_stc_a: 9.0, alpha_rel_per_k: 0.0005, i0_stc_a: 2e-10, eg_ev: 1.12 };
 
-export function truthCurrent(v: number, g: number, tC: number, m = MODULE): number {
+export function truthCurrent(v: number, g: number, tC: number, m: Readonly<InventedModule> = MODULE): number {
   const t = tC + 273.15;
   const tr = 298.15;
   const iph = (g / 1000) * m.iph_stc_a * (1 + m.alpha_rel_per_k * (tC - 25));
