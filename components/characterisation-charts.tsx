@@ -56,7 +56,7 @@ export function EfficiencyChart({ points, device, height = 220, testID }: { poin
     >
       {(width) => (
         <VictoryChart width={width} height={height} padding={PADDING} domain={{ x: [0, 1150], y: [Math.min(...ys) - pad, Math.max(...ys) + pad] }}>
-          <VictoryAxis crossAxis={false} offsetY={PADDING.bottom} label="Irradiance (W/m²)" style={chartStyle.axis} tickFormat={tick} tickValues={[0, 200, 400, 600, 800, 1000]} />
+          <VictoryAxis crossAxis={false} offsetY={PADDING.bottom} label="Irradiance (W/m²)" style={chartStyle.axis} tickFormat={(v: number) => String(Math.round(v))} tickValues={[0, 200, 400, 600, 800, 1000]} />
           <VictoryAxis dependentAxis crossAxis={false} offsetX={PADDING.left} label="Relative efficiency (%)" style={{ ...chartStyle.axis, axisLabel: { ...chartStyle.axis.axisLabel, padding: 44 } }} tickFormat={tick} tickCount={5} />
           <VictoryLine data={points.map((p) => ({ x: p.irradiance_wm2, y: p.relative_efficiency_pct }))} style={chartStyle.model} />
           <VictoryScatter

@@ -3,7 +3,7 @@ import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import type { Characterisation } from '@/lib/analysis/characterise';
-import { MATRIX_IRRADIANCES_W_M2, MATRIX_TEMPS_C } from '@/lib/analysis/characterise/matrix';
+import { MATRIX_EXCLUDED, MATRIX_IRRADIANCES_W_M2, MATRIX_TEMPS_C } from '@/lib/analysis/characterise/matrix';
 
 type Cell = Characterisation['matrix'][number];
 const FIGURES = [
@@ -63,6 +63,7 @@ export function PowerMatrix({ matrix, stcPmp, testID }: { matrix: Cell[]; stcPmp
               {MATRIX_TEMPS_C.map((t) => {
                 const c = at(g, t);
                 const v = c ? value(c) : NaN;
+                if (MATRIX_EXCLUDED.some(([eg, et]) => eg === g && et === t)) return <View key={t} style={[styles.cell, styles.none]} testID={`matrix-${g}-${t}`} />;
                 return (
                   <View key={t} style={[styles.cell, c && Number.isFinite(v) ? { backgroundColor: mix(hi > lo ? (v - lo) / (hi - lo) : 0.5) } : null]} testID={`matrix-${g}-${t}`}>
                     <Txt variant="body" style={styles.num}>
@@ -77,7 +78,7 @@ export function PowerMatrix({ matrix, stcPmp, testID }: { matrix: Cell[]; stcPmp
         </View>
       </ScrollView>
       <Txt variant="caption">
-        {f.label} in {f.unit}. m: measured within ±2 % and ±2 K; t: translated from the nearest curve by IEC 60891; —: outside the conditions measured (not extrapolated). Colour from the lowest (amber) to the highest (teal) value shown.
+        {f.label} in {f.unit}. m: measured within ±2 % and ±2 K; t: translated from the nearest curve by IEC 60891; —: outside the conditions measured (not extrapolated); grey: no point of the standard’s grid. Colour from the lowest (amber) to the highest (teal) value shown.
       </Txt>
     </View>
   );
@@ -92,4 +93,5 @@ const styles = StyleSheet.create({
   first: { width: 84, textAlign: 'left' },
   cell: { width: 76, height: 44, borderWidth: StyleSheet.hairlineWidth, borderColor: theme.color.line, alignItems: 'center', justifyContent: 'center' },
   num: { fontFamily: theme.font.mono, fontSize: 13 },
+  none: { backgroundColor: theme.color.sunken },
 });

@@ -14,8 +14,12 @@ import type { Characterisation } from '@/lib/api/characterisation';
 import { toUserMessage } from '@/lib/api/client';
 import { useMe } from '@/lib/api/session';
 
+/** Widths of the coefficient table's columns: the relative coefficient with its error needs the most. */
+const COLUMN_FLEX = [{ flex: 0.9 }, { flex: 1.7 }, { flex: 1.2 }, { flex: 0.7 }];
+
 const signed = (x: number, d: number) => `${x > 0 ? '+' : x < 0 ? '−' : ''}${Math.abs(x).toFixed(d)}`;
 const se = (x: number | null, d: number) => (x == null ? '' : ` ± ${x.toFixed(d)}`);
+
 
 function Chip({ label, on, onPress, testID }: { label: string; on: boolean; onPress: () => void; testID?: string }) {
   return (
@@ -55,24 +59,24 @@ function Coefficients({ c, batchId, batchName }: { c: Characterisation; batchId:
       </Txt>
       <View style={styles.table}>
         <View style={styles.tr}>
-          {['Coefficient', '%/K', 'Absolute', 'R²'].map((h) => (
-            <Txt key={h} variant="caption" style={styles.th}>
+          {['Coefficient', '%/K', 'Absolute', 'R²'].map((h, k) => (
+            <Txt key={h} variant="caption" style={[styles.td, COLUMN_FLEX[k]]}>
               {h}
             </Txt>
           ))}
         </View>
         {rows.map(([name, rel, abs, r2]) => (
           <View key={name} style={styles.tr}>
-            <Txt variant="label" style={styles.td}>
+            <Txt variant="label" style={[styles.td, COLUMN_FLEX[0]]}>
               {name}
             </Txt>
-            <Txt variant="body" style={[styles.td, styles.num]}>
+            <Txt variant="body" style={[styles.td, styles.num, COLUMN_FLEX[1]]}>
               {rel}
             </Txt>
-            <Txt variant="body" style={[styles.td, styles.num]}>
+            <Txt variant="body" style={[styles.td, styles.num, COLUMN_FLEX[2]]}>
               {abs}
             </Txt>
-            <Txt variant="body" style={[styles.td, styles.num]}>
+            <Txt variant="body" style={[styles.td, styles.num, COLUMN_FLEX[3]]}>
               {r2 == null ? '—' : r2.toFixed(4)}
             </Txt>
           </View>
@@ -215,7 +219,6 @@ const styles = StyleSheet.create({
   chipOn: { backgroundColor: theme.color.ink, borderColor: theme.color.ink },
   table: { gap: 2 },
   tr: { flexDirection: 'row', gap: 8 },
-  th: { flex: 1 },
   td: { flex: 1 },
   num: { fontFamily: theme.font.mono, fontSize: 13 },
 });
