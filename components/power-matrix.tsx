@@ -47,7 +47,7 @@ export function PowerMatrix({ matrix, stcPmp, testID }: { matrix: Cell[]; stcPmp
         <View>
           <View style={styles.row}>
             <Txt variant="caption" style={[styles.head, styles.first]}>
-              W/m² \ °C
+              W/m²
             </Txt>
             {MATRIX_TEMPS_C.map((t) => (
               <Txt key={t} variant="caption" style={styles.head}>
@@ -89,9 +89,9 @@ const styles = StyleSheet.create({
   chip: { paddingHorizontal: 10, paddingVertical: 6, borderRadius: theme.radius.m, borderWidth: 1, borderColor: theme.color.line, backgroundColor: theme.color.surface },
   chipOn: { backgroundColor: theme.color.ink, borderColor: theme.color.ink },
   row: { flexDirection: 'row' },
-  head: { width: 76, paddingVertical: 6, textAlign: 'center' },
-  first: { width: 84, textAlign: 'left' },
-  cell: { width: 76, height: 44, borderWidth: StyleSheet.hairlineWidth, borderColor: theme.color.line, alignItems: 'center', justifyContent: 'center' },
+  head: { width: 66, paddingVertical: 6, textAlign: 'center' },
+  first: { width: 58, textAlign: 'left' },
+  cell: { width: 66, height: 44, borderWidth: StyleSheet.hairlineWidth, borderColor: theme.color.line, alignItems: 'center', justifyContent: 'center' },
   num: { fontFamily: theme.font.mono, fontSize: 13 },
   none: { backgroundColor: theme.color.sunken },
 });

@@ -48,7 +48,10 @@ export function splitVocDifference(a: LotDiode, b: LotDiode, names: { a: string;
     { v: j0_v, words: `its saturation current J0 is ${i0bAtA > a.i0_a ? 'higher' : 'lower'} (×${(i0bAtA / a.i0_a).toPrecision(3)} at the same temperature: ${i0bAtA > a.i0_a ? 'more' : 'less'} recombination)` },
     { v: isc_v, words: `its Isc is ${b.isc_a > a.isc_a ? 'higher' : 'lower'} by ${Math.abs(100 * (b.isc_a / a.isc_a - 1)).toFixed(1)} % (light or current collection)` },
     { v: temperature_v, words: `it was measured ${Math.abs(b.temp_c - a.temp_c).toFixed(1)} K ${b.temp_c > a.temp_c ? 'warmer' : 'cooler'}` },
-  ].sort((x, y) => Math.abs(y.v) - Math.abs(x.v));
+  ]
+    // Lots at one temperature have no temperature part to speak of.
+    .filter((p) => !(p.words.startsWith('it was measured') && a.temp_c === b.temp_c))
+    .sort((x, y) => Math.abs(y.v) - Math.abs(x.v));
   const sentence =
     `Voc of ${names.b} differs from ${names.a} by ${mv(delta_voc_v)}: ` +
     parts.map((p) => `${mv(p.v)} because ${p.words}`).join('; ') +
