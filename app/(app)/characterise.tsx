@@ -161,10 +161,14 @@ export default function CharacteriseScreen() {
           {(a) => (
             <View style={{ gap: 16 }}>
               <Card title="Device">
+                <Txt variant="caption">The curves of one device, measured at several irradiances and temperatures. Files without a device line each got their own: then take all curves of the batch.</Txt>
                 <View style={styles.chips} accessibilityRole="radiogroup">
                   {a.devices.map((x) => (
                     <Chip key={x.device_id} label={`${x.device_id} (${x.curves})`} on={x.device_id === a.device_id} onPress={() => go({ device: x.device_id })} testID={`charz-device-${x.device_id}`} />
                   ))}
+                  {a.devices.length > 1 ? (
+                    <Chip label={`All curves of the batch (${a.devices.reduce((n, x) => n + x.curves, 0)})`} on={a.device_id === '*'} onPress={() => go({ device: '*' })} testID="charz-device-all" />
+                  ) : null}
                 </View>
               </Card>
               {!a.characterisation ? (
@@ -181,7 +185,7 @@ export default function CharacteriseScreen() {
                       <Iec60891 c={a.characterisation} />
                     </View>
                     <Card title="Figures against cell temperature" style={wide ? { flex: 1 } : undefined}>
-                      <CoefficientChart r={a.characterisation.regression} device={a.device_id ?? 'device'} testID="charz-coefficient-chart" />
+                      <CoefficientChart r={a.characterisation.regression} device={a.device_id && a.device_id !== '*' ? a.device_id : a.batch.name} testID="charz-coefficient-chart" />
                     </Card>
                   </View>
                   <View style={[{ gap: 16 }, wide && { flexDirection: 'row', alignItems: 'flex-start' }]}>
@@ -197,7 +201,7 @@ export default function CharacteriseScreen() {
                     </Card>
                     <Card title="Efficiency against irradiance at 25 °C" style={wide ? { flex: 1 } : undefined}>
                       {a.characterisation.efficiency.length > 1 ? (
-                        <EfficiencyChart points={a.characterisation.efficiency} device={a.device_id ?? 'device'} testID="charz-efficiency-chart" />
+                        <EfficiencyChart points={a.characterisation.efficiency} device={a.device_id && a.device_id !== '*' ? a.device_id : a.batch.name} testID="charz-efficiency-chart" />
                       ) : (
                         <Txt variant="caption">The matrix has too few points at 25 °C for an efficiency curve.</Txt>
                       )}

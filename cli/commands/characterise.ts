@@ -18,7 +18,7 @@ import { parseQuantity } from '@/lib/units';
 export const summary = 'characterise a device type from curves at several irradiances and temperatures (α, β, γ, IEC 60891, IEC 61853-1 matrix)';
 
 const OPTIONS = {
-  device: 'use only the files of this device id (default: the files must all name one device, or none)',
+  device: 'use only the files of this device id (default: the files must all name one device, or none — files without a device line are taken as one device)',
   area: 'device area with its unit, e.g. "1.63 m^2" or "243 cm^2" (default: from the files)',
 };
 const USAGE = usageText('characterise FILE... [--device ID] [--area AREA] [--json]', OPTIONS);
@@ -31,7 +31,9 @@ function readCurve(file: string): { curve: CharCurve; device: string | undefined
     throw new UsageError(`cannot read ${file}: ${(err as NodeJS.ErrnoException).code ?? String(err)}`, 'FILE');
   }
   try {
-    const parsed = parseIvText(text, { fileName: path.basename(file) });
+    // No file name: a file without a device line has no device id (the reader would take its name),
+    // so a set of files that name no device is one device.
+    const parsed = parseIvText(text, {});
     const { metrics } = keyFigures(parsed);
     const m = parsed.meta;
     if (m.irradiance_w_m2 == null) throw new UsageError(`${file} does not state its irradiance (a metadata line such as "Irradiance,800,W/m2")`, 'FILE');

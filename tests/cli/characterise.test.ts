@@ -63,6 +63,20 @@ it('prints one JSON object with the coefficients, IEC 60891 parameters, matrix a
   }
 });
 
+it('takes files without a device line as one device', async () => {
+  const plain = [[1000, 15], [1000, 25], [1000, 50], [1000, 75]].map(([g, t]) => {
+    const c = synthCurve(g, t);
+    const file = path.join(dir, `plain-${g}-${t}.txt`);
+    writeFileSync(file, [`Irradiance: ${g} W/m2`, `Temperature: ${t} C`, 'V,I', ...c.voltage_v.map((v, k) => `${v},${c.current_a[k]}`)].join('\n'));
+    return file;
+  });
+  const r = await capture([...plain, '--json']);
+  expect(r.code).toBe(0);
+  const doc = JSON.parse(r.out);
+  expect(doc.device).toBeNull();
+  expect(doc.beta_voc_pct_per_k).toBeLessThan(-0.2);
+});
+
 it('answers a set that cannot be characterised with {error} and exit 2', async () => {
   const r = await capture([files[0], files[4], files[5], '--json']);
   expect(r.code).toBe(2);

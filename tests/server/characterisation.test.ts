@@ -63,6 +63,10 @@ it('answers a device with too few curves with the reason, and an unknown device 
   const one = characterisationAnswerSchema.parse((await tester.get(`/api/batches/${batchId}/characterisation?device=OTHER-1`)).body);
   expect(one.characterisation).toBeNull();
   expect(one.reason).toMatch(/^No characterisation: a characterisation needs at least 3 curves/);
+  // Every curve of the batch: the other device's curve at 1000 W/m² and 25 °C joins the set.
+  const all = characterisationAnswerSchema.parse((await tester.get(`/api/batches/${batchId}/characterisation?device=*`)).body);
+  expect(all.device_id).toBe('*');
+  expect(all.characterisation?.curves).toBe(9);
   const none = characterisationAnswerSchema.parse((await tester.get(`/api/batches/${batchId}/characterisation?device=NOPE`)).body);
   expect(none.reason).toBe('The batch has no curves of device NOPE.');
 });
