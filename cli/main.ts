@@ -16,6 +16,7 @@ const commands: Record<string, () => Promise<CommandModule>> = {
   split: () => import('./commands/split'),
   translate: () => import('./commands/translate'),
   strings: () => import('./commands/strings'),
+  characterise: () => import('./commands/characterise'),
 };
 
 async function main(): Promise<number> {

@@ -11,7 +11,7 @@
 import { sig } from '@/lib/numeric/significant';
 
 /** Where a quantity comes from. */
-export type QuantityGroup = 'curve' | 'metric' | 'fit' | 'derived' | 'material' | 'carriers' | 'device' | 'translation' | 'strings';
+export type QuantityGroup = 'curve' | 'metric' | 'fit' | 'derived' | 'material' | 'carriers' | 'device' | 'translation' | 'strings' | 'characterisation';
 
 export type Quantity = {
   /** snake_case with the unit as suffix, e.g. "isc_a", "temp_c". */
@@ -219,6 +219,22 @@ export const QUANTITIES: readonly Quantity[] = [
   q('strings', 'points', 'Points on the line', '', count),
   q('strings', 'value_v', 'Value used', 'V'),
   q('strings', 'mean_v', 'Mean', 'V'),
+
+  // Characterisation of a device type (lib/analysis/characterise): coefficients, IEC 60891 parameters, IEC 61853-1 matrix.
+  q('characterisation', 'alpha_isc_pct_per_k', 'α, Isc temperature coefficient', '%/K', { digits: 3 }),
+  q('characterisation', 'gamma_pmp_pct_per_k', 'γ, Pmax temperature coefficient', '%/K', { digits: 3 }),
+  q('characterisation', 'beta_voc_v_per_k', 'β, Voc temperature coefficient', 'V/K'),
+  q('characterisation', 'gamma_pmp_w_per_k', 'γ, Pmax temperature coefficient', 'W/K'),
+  q('characterisation', 'pct_per_k', 'Temperature coefficient', '%/K', { digits: 3 }),
+  q('characterisation', 'pct_per_k_se', 'Standard error of the coefficient', '%/K', { digits: 2 }),
+  q('characterisation', 'relative_pct', 'Relative to its value at 25 °C', '%', { decimals: 2 }),
+  q('characterisation', 'irradiance_wm2', 'Irradiance', 'W/m²'),
+  q('characterisation', 'temp_min_c', 'Lowest cell temperature', '°C'),
+  q('characterisation', 'temp_max_c', 'Highest cell temperature', '°C'),
+  q('characterisation', 'rs_residual_pct', 'Rs determination: Pmax left over (RMS)', '%', { digits: 2 }),
+  q('characterisation', 'kappa_residual_pct', 'κ determination: Pmax left over (RMS)', '%', { digits: 2 }),
+  q('characterisation', 'a_residual_v', 'a determination: Voc left over (RMS)', 'V', { digits: 2 }),
+  q('characterisation', 'relative_efficiency_pct', 'Efficiency relative to 1000 W/m²', '%', { decimals: 1 }),
 ];
 
 const BY_KEY: ReadonlyMap<string, Quantity> = (() => {

@@ -3,7 +3,7 @@
  * roots (the mutations use lib/api/invalidate.ts):
  *
  *   ['batches', 'list']
- *   ['batches', 'one', id, 'detail' | 'curves' | 'overlay' | 'evaluation' | 'reviews', …]   one batch
+ *   ['batches', 'one', id, 'detail' | 'curves' | 'overlay' | 'characterisation' | 'evaluation' | 'reviews', …]   one batch
  *   ['batches', 'compare', { batches, specId, param }]   answers about several batches
  *   ['curves', id, 'detail' | 'physics']                 one curve (its physics follow its fits)
  *   ['physics', 'material' | 'band-diagram', …]          pure computations, never stale
@@ -29,6 +29,8 @@ export const batchKeys = {
   curvesOf: (id: string) => [...batchKeys.one(id), 'curves'] as const,
   curves: (id: string, p: CurveListParams) => [...batchKeys.curvesOf(id), p] as const,
   overlay: (id: string) => [...batchKeys.one(id), 'overlay'] as const,
+  /** The characterisation of one device of the batch ('' = the device with the most curves). */
+  characterisation: (id: string, device: string) => [...batchKeys.one(id), 'characterisation', device] as const,
 };
 
 export const qualityKeys = {

@@ -4,12 +4,14 @@
  */
 import { IvInputError } from '@/lib/iv/errors';
 import { clip, NUMBER_RE } from '@/lib/iv/parse-cells';
+import { toQuantity } from '@/lib/units';
 
 const VOLTAGE_NAMES = new Set(['v', 'u', 'volt', 'volts', 'voltage', 'bias', 'biasvoltage', 'vbias', 'vmeas', 'measuredvoltage', 'terminalvoltage', 'voltagemeasured']);
 const CURRENT_NAMES = new Set(['i', 'current', 'curr', 'amps', 'ampere', 'amperes', 'imeas', 'measuredcurrent', 'terminalcurrent', 'currentmeasured']);
 const DENSITY_NAMES = new Set(['j', 'jmeas', 'currentdensity', 'density']);
-const VOLTAGE_UNITS: Record<string, number> = { '': 1, v: 1, volt: 1, volts: 1, mv: 1e-3, kv: 1e3, uv: 1e-6, 'µv': 1e-6, 'μv': 1e-6 };
-const CURRENT_UNITS: Record<string, number> = { '': 1, a: 1, amp: 1, amps: 1, ma: 1e-3, ua: 1e-6, 'µa': 1e-6, 'μa': 1e-6, na: 1e-9 };
+/** Unit text → factor to V or A through mathjs units (lib/units.ts); null when it is no voltage or current unit. */
+const voltageFactor = (u: string) => toQuantity(1, u, 'voltage');
+const currentFactor = (u: string) => toQuantity(1, u, 'current');
 
 /** Splits a header cell like "Voltage (mV)", "current_a", "I / mA" or "V [V]" into name and unit. */
 export function splitNameUnit(cell: string): { name: string; unit: string } {
@@ -21,12 +23,12 @@ export function splitNameUnit(cell: string): { name: string; unit: string } {
   const inUnit = /^(.*?)\s+in\s+(\S+)$/i.exec(text);
   if (inUnit) {
     const u = inUnit[2].toLowerCase();
-    if (u in VOLTAGE_UNITS || u in CURRENT_UNITS) return { name: inUnit[1], unit: inUnit[2] };
+    if (voltageFactor(u) !== null || currentFactor(u) !== null) return { name: inUnit[1], unit: inUnit[2] };
   }
   const underscore = /^(.*?)_([A-Za-zµμ]+)$/.exec(text);
   if (underscore) {
     const u = underscore[2].toLowerCase();
-    if (u in VOLTAGE_UNITS || u in CURRENT_UNITS) return { name: underscore[1], unit: underscore[2] };
+    if (voltageFactor(u) !== null || currentFactor(u) !== null) return { name: underscore[1], unit: underscore[2] };
   }
   return { name: text, unit: '' };
 }
@@ -34,10 +36,8 @@ export function splitNameUnit(cell: string): { name: string; unit: string } {
 export const normName = (s: string) => s.toLowerCase().replace(/[^a-z]/g, '');
 export const normUnit = (s: string) => s.trim().toLowerCase().replace(/\s+/g, '');
 
-/** Irradiance units → W/m². "suns" as 1000 W/m² each (the STC irradiance, IEC 60904-3). */
-export const IRRADIANCE_UNITS: Record<string, number> = {
-  '': 1, 'w/m2': 1, wm2: 1, 'w/m^2': 1, 'wm-2': 1, 'w.m-2': 1, 'w·m-2': 1, 'kw/m2': 1000, kwm2: 1000, 'kw/m^2': 1000, 'kwm-2': 1000, 'w/cm2': 1e4, 'mw/cm2': 10, suns: 1000, sun: 1000,
-};
+/** Irradiance unit → factor to W/m² through mathjs units (lib/units.ts; "suns" as 1000 W/m² each, the STC irradiance of IEC 60904-3); undefined when unknown. */
+export const irradianceFactor = (u: string): number | undefined => toQuantity(1, u, 'irradiance') ?? undefined;
 const IRRADIANCE_COLUMNS = new Set(['irradiance', 'g', 'irr', 'irradiancewm', 'irradiancekwm', 'intensity', 'poairradiance', 'gpoa', 'gmeas', 'measuredirradiance', 'irradiancemeasured', 'suns', 'sun']);
 const TEMPERATURE_COLUMNS = new Set(['temperature', 'temp', 'tempc', 'tcell', 'celltemperature', 'celltemp', 'moduletemperature', 'moduletemp', 'tmod', 'tmodule', 'devicetemperature']);
 
@@ -81,7 +81,7 @@ function sideColumn(cell: string, idx: number, notes: string[]): { kind: 'g' | '
   const gKey = normName(g.name);
   if (IRRADIANCE_COLUMNS.has(gKey)) {
     const u = plainUnit(g.unit);
-    const factor = u === '' && (gKey === 'suns' || gKey === 'sun') ? 1000 : IRRADIANCE_UNITS[u];
+    const factor = u === '' && (gKey === 'suns' || gKey === 'sun') ? 1000 : irradianceFactor(u);
     if (factor === undefined) {
       notes.push(`column "${clip(cell)}" not read as irradiance: unknown unit "${clip(g.unit)}" (use W/m², kW/m² or suns)`);
       return null;
@@ -97,7 +97,8 @@ function sideColumn(cell: string, idx: number, notes: string[]): { kind: 'g' | '
       notes.push(`column "${clip(cell)}" not read as temperature: unknown unit "${clip(t.unit)}" (use °C or K)`);
       return null;
     }
-    return { kind: 't', col: { idx, cell, factor: 1, offset: u === 'k' ? -273.15 : 0 } };
+    const offset = toQuantity(0, u, 'temperature') ?? 0;
+    return { kind: 't', col: { idx, cell, factor: (toQuantity(1, u, 'temperature') ?? 1) - offset, offset } };
   }
   return null;
 }
@@ -123,16 +124,18 @@ export function readHeader(cells: string[], lineNo: number, notes: string[]) {
     const key = normName(name);
     const u = normUnit(unit);
     if (VOLTAGE_NAMES.has(key) && v < 0) {
-      if (!(u in VOLTAGE_UNITS)) throw new IvInputError('bad-unit', `column "${clip(cell)}": unknown voltage unit "${clip(unit)}" (use V or mV)`, lineNo);
+      const vf = voltageFactor(u);
+      if (vf === null) throw new IvInputError('bad-unit', `column "${clip(cell)}": unknown voltage unit "${clip(unit)}" (use V or mV)`, lineNo);
       v = idx;
-      vFactor = VOLTAGE_UNITS[u];
+      vFactor = vf;
     } else if (CURRENT_NAMES.has(key) && i < 0) {
-      if (!(u in CURRENT_UNITS)) {
+      const cf = currentFactor(u);
+      if (cf === null) {
         const density = u.includes('/');
         throw new IvInputError('bad-unit', `column "${clip(cell)}": unknown current unit "${clip(unit)}"${density ? ' (a current density; give the current in A or mA)' : ' (use A or mA)'}`, lineNo);
       }
       i = idx;
-      iFactor = CURRENT_UNITS[u];
+      iFactor = cf;
     } else if (cell !== '') {
       const side = g && t ? null : sideColumn(cell, idx, notes);
       if (side?.kind === 'g' && !g) g = side.col;

@@ -6,10 +6,11 @@
  * written in `meta.extra`. A known key with a value that cannot be right throws an IvInputError
  * naming the line.
  */
+import { toQuantity } from '@/lib/units';
 import { IvInputError } from '@/lib/iv/errors';
 import { clip, NUMBER_RE, splitRow } from '@/lib/iv/parse-cells';
 import type { Separator } from '@/lib/iv/parse-cells';
-import { IRRADIANCE_UNITS, irradianceNameUnit, normName, plainUnit, splitNameUnit, temperatureNameUnit } from '@/lib/iv/parse-header';
+import { irradianceFactor, irradianceNameUnit, normName, plainUnit, splitNameUnit, temperatureNameUnit } from '@/lib/iv/parse-header';
 import type { CurveMeta, MetaEntry } from '@/lib/iv/types';
 
 type MetaKey = Exclude<keyof CurveMeta, 'extra' | 'irradiance_spread_pct'>;
@@ -62,16 +63,15 @@ function parseMetaValue(field: MetaKey, raw: string, unitFromKey: string, lineNo
   };
   switch (field) {
     case 'temp_c': {
-      let t = parsed.value;
-      if (unit === 'k') t -= 273.15;
-      else if (unit !== '' && unit !== 'c') bad('temperature must be in °C or K');
+      if (unit !== '' && unit !== 'c' && unit !== 'k') bad('temperature must be in °C or K');
+      const t = toQuantity(parsed.value, unit, 'temperature') as number;
       if (!(t > -100 && t < 250)) bad('cell temperature must lie between −100 °C and 250 °C');
       return t;
     }
     case 'irradiance_w_m2': {
-      const factor = unit === '' && normName(key) === 'suns' ? 1000 : IRRADIANCE_UNITS[unit];
+      const factor = unit === '' && normName(key) === 'suns' ? 1000 : irradianceFactor(unit);
       if (factor === undefined) bad('irradiance must be in W/m²');
-      const g = parsed.value * factor;
+      const g = parsed.value * (factor as number);
       if (!(g > 0 && g <= 5000)) bad('irradiance must be above 0 and at most 5000 W/m²');
       return g;
     }
@@ -81,9 +81,9 @@ function parseMetaValue(field: MetaKey, raw: string, unitFromKey: string, lineNo
       return parsed.value;
     }
     case 'area_cm2': {
-      const factor: Record<string, number> = { '': 1, cm2: 1, 'cm^2': 1, m2: 1e4, 'm^2': 1e4, mm2: 0.01, 'mm^2': 0.01 };
-      if (!(unit in factor)) bad('area must be in cm², m² or mm²');
-      const area = parsed.value * factor[unit];
+      const inCm2 = toQuantity(parsed.value, unit, 'area');
+      if (inCm2 === null) bad('area must be in cm², m² or mm²');
+      const area = inCm2 as number;
       if (!(area > 0 && area < 1e6)) bad('area must be positive (and below 100 m²)');
       return area;
     }

@@ -116,6 +116,9 @@ export const batchUpdateSchema = batchFieldsSchema.partial().extend({
   archived: z.boolean().optional(),
 });
 
+/** GET /api/batches/:id/characterisation?device= — the device whose curves are characterised. */
+export const characterisationQuerySchema = z.object({ device: z.string().min(1).max(120).optional() });
+
 /** Form fields that may accompany an upload and override every file's metadata. */
 export const uploadOverridesSchema = z.object({
   temp_c: optNumberOrNull('Cell temperature (°C)', { min: -60, max: 150 }),

@@ -7,6 +7,35 @@
 import { z } from 'zod';
 import { optNumber, reqNumber } from '@/lib/schemas/numbers';
 import { labelOf, unitOf } from '@/lib/vocabulary';
+import { parseQuantity } from '@/lib/units';
+import type { Quantity } from '@/lib/units';
+
+/**
+ * A number that may be typed with its unit ("−120 mV/K", "0.8 kW/m²", "350 mΩ"): text with a unit
+ * is converted by mathjs (lib/units.ts) to the field's unit (`scale` takes lib/units' unit to the
+ * field's, e.g. %/K → 1/K is 0.01); a plain number is the field's unit as before.
+ */
+const withUnit = <T extends z.ZodType>(field: T, name: string, quantity: Quantity, scale = 1) =>
+  z.preprocess((v, ctx) => {
+    if (typeof v !== 'string' || !/[A-Za-z%°Ωµμ]/.test(v.replace(/^\s*[+\-−]?[\d.,]+[eE][+\-−]?\d+\s*$/, ''))) return v;
+    const r = parseQuantity(v, quantity);
+    if ('error' in r) {
+      ctx.addIssue({ code: 'custom', message: `${name}: ${r.error}` });
+      return z.NEVER;
+    }
+    return r.value * scale;
+  }, field);
+
+/** The unit family of each coefficient a person may type with a unit, and the factor to the field's unit. */
+const COEFFICIENT_QUANTITY: Record<string, [Quantity, number]> = {
+  alpha_a_per_k: ['current_per_k', 1],
+  alpha_isc_a_per_k: ['current_per_k', 1],
+  beta_v_per_k: ['voltage_per_k', 1],
+  alpha_rel_per_k: ['relative_per_k', 0.01],
+  beta_rel_per_k: ['relative_per_k', 0.01],
+  rs_ohm: ['resistance', 1],
+  kappa_ohm_per_k: ['resistance_per_k', 1],
+};
 
 /** A required number named by its API key, with its unit in the messages. */
 const requiredNumber = (name: string, unit: string) => reqNumber(name, { unit });
@@ -64,7 +93,11 @@ export const METHOD_COEFFICIENTS: Record<TranslationMethod, { required: Translat
 };
 
 const coefficientFields = Object.fromEntries(
-  (Object.keys(TRANSLATION_COEFFICIENTS) as TranslationCoefficient[]).map((k) => [k, optionalNumber(k, TRANSLATION_COEFFICIENTS[k].unit)]),
+  (Object.keys(TRANSLATION_COEFFICIENTS) as TranslationCoefficient[]).map((k) => {
+    const field = optionalNumber(k, TRANSLATION_COEFFICIENTS[k].unit);
+    const q = COEFFICIENT_QUANTITY[k];
+    return [k, q ? withUnit(field, k, q[0], q[1]) : field];
+  }),
 ) as { [K in TranslationCoefficient]: ReturnType<typeof optionalNumber> };
 
 /**
@@ -76,8 +109,8 @@ export const translateSchema = z
     method: z.enum(TRANSLATION_METHODS, { message: 'method must be model, iec60891-1 or iec60891-2.' }),
     to: z.object(
       {
-        irradiance_w_m2: requiredNumber('to.irradiance_w_m2', 'W/m²'),
-        temp_c: requiredNumber('to.temp_c', '°C'),
+        irradiance_w_m2: withUnit(requiredNumber('to.irradiance_w_m2', 'W/m²'), 'to.irradiance_w_m2', 'irradiance'),
+        temp_c: withUnit(requiredNumber('to.temp_c', '°C'), 'to.temp_c', 'temperature'),
       },
       { message: 'the target conditions (irradiance_w_m2 and temp_c) are required' },
     ),

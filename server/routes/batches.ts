@@ -2,13 +2,14 @@ import { Router } from 'express';
 import type { Request, RequestHandler } from 'express';
 import type { Db } from '@/db/client';
 import { readNumber } from '@/lib/schemas/numbers';
-import { batchCreateSchema, batchUpdateSchema, curveListQuerySchema, uploadOverridesSchema } from '@/lib/schemas/curves';
+import { batchCreateSchema, batchUpdateSchema, characterisationQuerySchema, curveListQuerySchema, uploadOverridesSchema } from '@/lib/schemas/curves';
 import { callerOf, requirePermission } from '@/server/permissions';
 import { inlineAnalyser } from '@/server/services/analysis-pool';
 import type { Analyser } from '@/server/services/analysis-pool';
 import { sendAnswer } from '@/server/services/answer-cache';
 import { batchReads } from '@/server/services/batch-reads';
 import { createBatch, loadWritableBatch } from '@/server/services/batches';
+import { batchCharacterisation } from '@/server/services/characterisation';
 import { editBatch } from '@/server/services/stc-refresh';
 import { uploadWithOriginals } from '@/server/services/originals-upload';
 import type { ObjectStore } from '@/server/storage';
@@ -89,6 +90,16 @@ export function batchesRouter(db: Db, receiveFiles: RequestHandler, analyser: An
     // Decimal notation only (the one number reader): ?max=0x10 is not 16.
     const most = Math.min(60, Math.max(1, Math.round(readNumber(req.query.max) || 30)));
     sendAnswer(res, await reads.overlay(org(req), String(req.params.id), most));
+  });
+
+  /**
+   * GET /api/batches/:id/characterisation?device=ID — the device type's characterisation from the
+   * batch's curves of one device (default: the device with the most curves): α, β, γ with standard
+   * errors, IEC 60891 parameters, the IEC 61853-1 matrix; or `reason` when the curves do not allow it.
+   */
+  r.get('/:id/characterisation', requirePermission('batch:read'), async (req, res) => {
+    const { device } = characterisationQuerySchema.parse(req.query);
+    res.json(await batchCharacterisation(db, org(req), String(req.params.id), device));
   });
 
   return r;

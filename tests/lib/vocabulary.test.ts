@@ -29,6 +29,8 @@ import { stringSizeSchema } from '@/lib/schemas/strings';
 import { betaVocFromMeasurements, sizeString, worstModule } from '@/lib/strings/size-string';
 import { formatValue, isKnownKey, labelWithUnit, QUANTITIES, quantity, toShown, unitOf } from '@/lib/vocabulary';
 import { singleDiodeParamsOf } from '@/lib/iv/fit-params';
+import { characterise } from '@/lib/analysis/characterise';
+import { synthCurve } from '@/tests/lib/analysis/characterise/synthetic';
 
 const DEMO = path.resolve(__dirname, '../../sample-data/batches/kf-c24-cells/KF-C24-0001.csv');
 
@@ -100,6 +102,13 @@ describe('every key the engine hands out is in the table', () => {
     // The point count is `points` (not `n`, the ideality factor's key).
     const beta = betaVocFromMeasurements([{ temp_c: 15, voc_v: 50 }, { temp_c: 35, voc_v: 47.2 }, { temp_c: 55, voc_v: 44.4 }]);
     expect(unknownKeys(beta)).toEqual([]);
+  });
+
+  it('characterisation: coefficients, IEC 60891 parameters, matrix, efficiency', () => {
+    const set = [...[15, 25, 50, 75].map((t) => synthCurve(1000, t)), ...[200, 400, 600].map((g) => synthCurve(g, 25))];
+    const r = characterise(set);
+    expect('error' in r).toBe(false);
+    expect(unknownKeys(r)).toEqual([]);
   });
 
   it('the parameter keys of limits and statistics are all there', () => {

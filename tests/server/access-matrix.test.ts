@@ -26,6 +26,7 @@ import type { ZodType } from 'zod';
 import {
   batchListSchema,
   batchSchema,
+  characterisationAnswerSchema,
   comparisonWireSchema,
   curveDetailSchema,
   curvePageSchema,
@@ -193,6 +194,7 @@ const ROUTES: RouteCase[] = [
   },
   { method: 'GET', path: '/api/batches/:id/curves', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/curves` }) },
   { method: 'GET', path: '/api/batches/:id/overlay', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/overlay` }) },
+  { method: 'GET', path: '/api/batches/:id/characterisation', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/characterisation` }) },
   { method: 'GET', path: '/api/batches/:id/evaluation', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/evaluation?spec=${ids.spec}` }) },
   { method: 'GET', path: '/api/batches/:id/pass-fail.csv', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/pass-fail.csv?spec=${ids.spec}` }) },
   { method: 'GET', path: '/api/batches/:id/reviews', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/reviews` }) },
@@ -401,6 +403,7 @@ const RESPONSE_SCHEMAS: Record<string, ZodType> = {
   'POST /api/batches/:id/curves': uploadAnswerSchema,
   'GET /api/batches/:id/curves': curvePageSchema,
   'GET /api/batches/:id/overlay': overlaySchema,
+  'GET /api/batches/:id/characterisation': characterisationAnswerSchema,
   'GET /api/batches/:id/evaluation': evaluationSchema,
   'GET /api/batches/:id/reviews': reviewListSchema,
   'GET /api/specs': specListSchema,

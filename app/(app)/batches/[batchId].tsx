@@ -1,4 +1,4 @@
-import { useLocalSearchParams } from 'expo-router';
+import { router, useLocalSearchParams } from 'expo-router';
 import { useEffect, useState } from 'react';
 import { Pressable, StyleSheet, TextInput, View, useWindowDimensions } from 'react-native';
 import { BatchForm } from '@/components/batch-form';
@@ -77,6 +77,7 @@ export default function BatchScreen() {
             actions={
               <View style={{ flexDirection: 'row', gap: 8, alignItems: 'center' }}>
                 <StateBadge state={b.archived ? 'archived' : b.state} />
+                <Button label="Characterise" kind="secondary" onPress={() => router.push({ pathname: '/characterise', params: { batch: b.id } })} testID="batch-characterise" />
                 {canWrite && b.state !== 'released' && !editing ? <Button label="Edit details" kind="secondary" onPress={() => setEditing(true)} /> : null}
               </View>
             }

@@ -14,6 +14,7 @@ import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import { useBatches } from '@/lib/api/batches';
 import { useComparison, useSpecs } from '@/lib/api/quality';
+import { vocSplitSentence } from '@/lib/quality/voc-split-rows';
 import type { CompareRow, Comparison } from '@/lib/api/quality';
 import { ALL_COLUMNS, DEFAULT_COLUMNS, GRID_PARAMS, columnHeader } from '@/lib/compare-columns';
 import type { CompareColumnId } from '@/lib/compare-columns';
@@ -327,6 +328,15 @@ function CompareBody(props: {
             <Txt key={d.batch_b} variant="body">{d.error ? `No t-test: ${d.error}` : d.sentence}</Txt>
           ))}
         </View>
+        {param === 'voc_v' && c.batches.length > 1 ? (
+          <View style={{ gap: 6 }} testID="voc-split">
+            <Txt variant="label">Why Voc differs (single-diode picture, medians)</Txt>
+            {c.batches.slice(1).map((b) => {
+              const r = vocSplitSentence(c.rows, c.batches[0], b);
+              return <Txt key={b.id} variant="body">{'error' in r ? `No split for ${b.name}: ${r.error}.` : r.sentence}</Txt>;
+            })}
+          </View>
+        ) : null}
       </Card>
       ) : null}
     </>
