@@ -20,6 +20,7 @@ export const STATEMENTS = {
   physics: ['use'],
   users: ['manage'],
   outbox: ['read'],
+  station: ['manage'],
 } as const;
 
 export type Resource = keyof typeof STATEMENTS;
@@ -29,7 +30,7 @@ export const ROLE_PERMISSIONS: Record<Role, readonly Permission[]> = {
   test_engineer: ['batch:read', 'batch:write', 'batch:submit', 'spec:read', 'physics:use'],
   designer: ['batch:read', 'spec:read', 'physics:use'],
   qa_lead: ['batch:read', 'batch:write', 'batch:submit', 'spec:read', 'spec:write', 'release:decide', 'physics:use'],
-  admin: ['batch:read', 'spec:read', 'physics:use', 'users:manage', 'outbox:read'],
+  admin: ['batch:read', 'spec:read', 'physics:use', 'users:manage', 'outbox:read', 'station:manage'],
 };
 
 export function isRole(value: unknown): value is Role {
