@@ -16,6 +16,7 @@ const commands: Record<string, () => Promise<CommandModule>> = {
   split: () => import('./commands/split'),
   translate: () => import('./commands/translate'),
   strings: () => import('./commands/strings'),
+  watch: () => import('./commands/watch'),
 };
 
 async function main(): Promise<number> {
