@@ -108,6 +108,11 @@ export function useComparison(ids: string[], specId: string, param: string) {
 }
 
 /** The pass/fail CSV's address (downloaded by the browser with the session cookie). */
+/** The release report (PDF) of a batch against a spec version; a released batch's comes from its release record. */
+export function reportUrl(batchId: string, specId: string): string {
+  return `/api/batches/${encodeURIComponent(batchId)}/report.pdf?spec=${encodeURIComponent(specId)}`;
+}
+
 export function passFailUrl(batchId: string, specId: string): string {
   return `/api/batches/${encodeURIComponent(batchId)}/pass-fail.csv?spec=${encodeURIComponent(specId)}`;
 }
