@@ -157,6 +157,14 @@ describe('watching a folder while the line runs', () => {
     copyCell(dir, 14);
     copyCell(dir, 15);
     await until('the watcher to notice the outage', () => w.out().includes('waiting'), 30_000, w.out);
+    // Meanwhile a --once run over another folder cannot send anything: it says so and exits 2.
+    const offline = tempDir();
+    copyCell(offline, 20);
+    copyCell(offline, 21);
+    const onceArgs = [offline, '--server', server.url, '--key', key, '--lot', 'ONCE-DOWN', '--once', '--settle-ms', '100', '--retries', '2'];
+    const down = runCli(['watch', ...onceArgs]);
+    expect(down.status).toBe(2);
+    expect(down.stdout).toMatch(/watch: 2 files: 0 accepted, 0 rejected by the server, 0 answered before, 2 not sent/);
     // The watcher is restarted meanwhile too (nothing answered yet for the waiting files).
     w.child.kill('SIGTERM');
     expect(await w.exited).toBe(2);
@@ -171,6 +179,11 @@ describe('watching a folder while the line runs', () => {
     await until('a file after the outage accepted', () => count(w.out(), 'accepted') === 3, 60_000, w.out);
     w.child.kill('SIGTERM');
     expect(await w.exited).toBe(0);
+
+    // The --once run again, the server back: everything sent, exit 0.
+    const up = runCli(['watch', ...onceArgs]);
+    expect(up.status).toBe(0);
+    expect((await curvesOfLot('ONCE-DOWN')).total).toBe(2);
 
     const lot = await curvesOfLot('LIVE-1');
     expect(lot.total).toBe(7);
