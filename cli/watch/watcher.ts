@@ -62,6 +62,8 @@ export class Watcher {
   private readonly journal: Journal;
   private batchId: string | undefined;
   private stopped = false;
+  /** Ends the pause between tries at once when the run is stopped. */
+  private wake: (() => void) | null = null;
 
   constructor(private readonly o: WatchOptions) {
     this.journal = new Journal(o.dir);
@@ -70,6 +72,21 @@ export class Watcher {
 
   stop(): void {
     this.stopped = true;
+    this.wake?.();
+  }
+
+  /** A pause before the next try, cut short by stop(). */
+  private pauseFor(attempt: number): Promise<void> {
+    return new Promise<void>((resolve) => {
+      const timer = setTimeout(done, pause(attempt));
+      function done() {
+        clearTimeout(timer);
+        resolve();
+      }
+      this.wake = done;
+    }).then(() => {
+      this.wake = null;
+    });
   }
 
   /** The batch to send to: --batch, or the one the journal holds for --lot, or a new one named after the lot. */
@@ -91,7 +108,7 @@ export class Watcher {
         return undefined;
       }
       if (attempt === 0) this.o.print(`waiting   batch ${lot}: ${r.reason}; trying again`);
-      await sleep(pause(attempt));
+      await this.pauseFor(attempt);
     }
     return undefined;
   }
@@ -142,7 +159,7 @@ export class Watcher {
         return;
       }
       if (attempt === 0) this.o.print(`waiting   ${name}: ${r.reason}; trying again`);
-      await sleep(pause(attempt));
+      await this.pauseFor(attempt);
     }
   }
 
