@@ -10,7 +10,7 @@ import { parseArgs } from 'node:util';
 import { existsSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { watch as chokidarWatch } from 'chokidar';
-import { isWatchedFile, StopRun, waitStable, Watcher } from '@/cli/watch/watcher';
+import { isWatchedFile, StopRun, Watcher } from '@/cli/watch/watcher';
 import type { WatchOptions } from '@/cli/watch/watcher';
 
 export const summary = 'send a test station\'s I-V files from a folder to the server, each once (station key)';
@@ -91,10 +91,33 @@ function options(argv: string[]): WatchOptions {
   };
 }
 
-/** --once: each file present now, once it has stopped changing. */
+/** A file's size and time, or null when it is gone. */
+function signature(file: string): string | null {
+  try {
+    const st = statSync(file);
+    return st.isFile() ? `${st.size}:${st.mtimeMs}` : null;
+  } catch {
+    return null;
+  }
+}
+
+/**
+ * --once: the files present now, each once it has stopped changing; all are watched over the same
+ * settle time (not one after another), and a file still changing is looked at again after the rest.
+ */
 async function runOnce(w: Watcher, o: WatchOptions): Promise<void> {
-  for (const file of w.listFiles()) {
-    if (await waitStable(file, o.settleMs)) await w.handle(file);
+  let pending = w.listFiles();
+  while (pending.length) {
+    const before = new Map(pending.map((p) => [p, signature(p)]));
+    await new Promise((r) => setTimeout(r, o.settleMs));
+    const changing: string[] = [];
+    for (const p of pending) {
+      const now = signature(p);
+      if (now === null) continue;
+      if (now === before.get(p)) await w.handle(p);
+      else changing.push(p);
+    }
+    pending = changing;
   }
 }
 

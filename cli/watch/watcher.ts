@@ -36,26 +36,7 @@ export function isWatchedFile(name: string): boolean {
   return name !== JOURNAL_NAME && !name.startsWith('.') && !/(\.part|\.tmp|\.crdownload|~)$/i.test(name);
 }
 
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 const pause = (attempt: number) => Math.min(10_000, 500 * 2 ** attempt);
-
-/** Waits until the file's size and modification time are unchanged for `settleMs`; false when it vanished. */
-export async function waitStable(file: string, settleMs: number): Promise<boolean> {
-  let last = '';
-  for (;;) {
-    let now: string;
-    try {
-      const st = statSync(file);
-      if (!st.isFile()) return false;
-      now = `${st.size}:${st.mtimeMs}`;
-    } catch {
-      return false;
-    }
-    if (now === last) return true;
-    last = now;
-    await sleep(settleMs);
-  }
-}
 
 export class Watcher {
   readonly counts: WatchCounts = { accepted: 0, rejected: 0, known: 0, unsent: 0 };
