@@ -17,6 +17,7 @@ const commands: Record<string, () => Promise<CommandModule>> = {
   translate: () => import('./commands/translate'),
   strings: () => import('./commands/strings'),
   characterise: () => import('./commands/characterise'),
+  watch: () => import('./commands/watch'),
 };
 
 async function main(): Promise<number> {

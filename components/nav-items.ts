@@ -13,6 +13,7 @@ export const NAV_ITEMS: NavItem[] = [
   { href: '/physics', label: 'Device physics', short: 'Physics', needs: 'physics:use', match: '/physics' },
   { href: '/strings', label: 'String sizing', short: 'Strings', needs: 'physics:use', match: '/strings' },
   { href: '/admin/users', label: 'Users & roles', short: 'Users', needs: 'users:manage', match: '/admin/users' },
+  { href: '/admin/stations', label: 'Test stations', short: 'Stations', needs: 'station:manage', match: '/admin/stations' },
   { href: '/admin/outbox', label: 'Outbox', short: 'Outbox', needs: 'outbox:read', match: '/admin/outbox' },
   { href: '/account', label: 'Account', short: 'Account', match: '/account' },
 ];

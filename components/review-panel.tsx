@@ -11,7 +11,7 @@ import { ReleaseDialog } from '@/components/release-dialog';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import type { Batch } from '@/lib/api/batches';
-import { passFailUrl, useDecision, useEvaluation, useReopen, useReviews, useSpecs, useSubmitBatch } from '@/lib/api/quality';
+import { passFailUrl, reportUrl, useDecision, useEvaluation, useReopen, useReviews, useSpecs, useSubmitBatch } from '@/lib/api/quality';
 import type { Me } from '@/lib/api/session';
 import type { Permission } from '@/lib/auth/roles';
 import { downloadFromUrl } from '@/lib/download';
@@ -111,7 +111,10 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
                     {outliers.length ? <Txt variant="caption">Outliers: {outliers.map((x) => `${x.device_id} (${x.outlier_params.join(', ')})`).join('; ')}</Txt> : null}
                     {/* The pass/fail list is downloaded here: its high-voltage caution is shown beside it, not written into the file. */}
                     <CautionBlock />
-                    <Button label="Download pass/fail list (CSV)" kind="secondary" onPress={() => downloadFromUrl(passFailUrl(b.id, e.spec.id))} testID="download-pass-fail" />
+                    <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: 8 }}>
+                      <Button label="Download pass/fail list (CSV)" kind="secondary" onPress={() => downloadFromUrl(passFailUrl(b.id, e.spec.id))} testID="download-pass-fail" />
+                      <Button label="Download report (PDF)" kind="secondary" onPress={() => downloadFromUrl(reportUrl(b.id, e.spec.id))} testID="download-report" />
+                    </View>
                   </View>
                 );
               }}

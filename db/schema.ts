@@ -117,6 +117,42 @@ export const invitation = pgTable('invitation', {
     .references(() => user.id, { onDelete: 'cascade' }),
 });
 
+// ---------------------------------------------------------------- better-auth api-key plugin (@better-auth/api-key)
+/**
+ * Station keys (server/services/stations.ts): better-auth's API key table, written from the
+ * plugin's schema (`apiKeySchema` in @better-auth/api-key). Keys reference an organisation
+ * (`referenceId`); `key` holds the SHA-256 of the key, never the key. A revoked key is `enabled`
+ * false and stays listed.
+ */
+export const apikey = pgTable(
+  'apikey',
+  {
+    id: text('id').primaryKey(),
+    configId: text('config_id').notNull().default('default'),
+    name: text('name'),
+    start: text('start'),
+    referenceId: text('reference_id').notNull(),
+    prefix: text('prefix'),
+    key: text('key').notNull(),
+    refillInterval: integer('refill_interval'),
+    refillAmount: integer('refill_amount'),
+    lastRefillAt: timestamp('last_refill_at', { withTimezone: true }),
+    enabled: boolean('enabled').default(true),
+    rateLimitEnabled: boolean('rate_limit_enabled').default(true),
+    rateLimitTimeWindow: integer('rate_limit_time_window'),
+    rateLimitMax: integer('rate_limit_max'),
+    requestCount: integer('request_count').default(0),
+    remaining: integer('remaining'),
+    lastRequest: timestamp('last_request', { withTimezone: true }),
+    expiresAt: timestamp('expires_at', { withTimezone: true }),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+    updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
+    permissions: text('permissions'),
+    metadata: text('metadata'),
+  },
+  (t) => [index('apikey_config_id_idx').on(t.configId), index('apikey_reference_id_idx').on(t.referenceId), index('apikey_key_idx').on(t.key)],
+);
+
 // ---------------------------------------------------------------- membership and trust
 /**
  * A person with a verified address at an organisation's domain asking to join it (when the

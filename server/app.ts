@@ -14,7 +14,7 @@ import express from 'express';
 import type { Express } from 'express';
 import type { Db } from '@/db/client';
 import type { Auth } from '@/server/auth';
-import { apiNotFound, errorHandler } from '@/server/errors';
+import { apiNotFound, errorHandler, HttpError } from '@/server/errors';
 import { authBodyLimit, JSON_BODY_LIMIT, originOf, sameOrigin, securityHeaders } from '@/server/guards';
 import type { Mailer } from '@/server/mail';
 import { CallerCache, guardOrganizationEndpoints, invalidatesCallers, requireAccount, requireSession } from '@/server/permissions';
@@ -30,12 +30,14 @@ import { organizationRouter } from '@/server/routes/organization';
 import { physicsRouter } from '@/server/routes/physics';
 import { reviewsRouter } from '@/server/routes/reviews';
 import { specsRouter } from '@/server/routes/specs';
+import { stationsRouter } from '@/server/routes/stations';
 import { stringsRouter } from '@/server/routes/strings';
 import { outboxRouter } from '@/server/routes/outbox';
 import { batchOriginalsRouter, curveOriginalsRouter } from '@/server/routes/originals';
 import { usersRouter } from '@/server/routes/users';
 import type { Analyser } from '@/server/services/analysis-pool';
 import type { ObjectStore } from '@/server/storage';
+import { stationKeys } from '@/server/station-keys';
 import { receiveUploads } from '@/server/upload-receiver';
 import type { UploadLimits } from '@/server/upload-receiver';
 
@@ -94,8 +96,15 @@ export function createApp(deps: AppDeps): Express {
   const assetCompression = compression();
   app.use((req, res, next) => (req.path.startsWith('/api/') ? apiCompression : assetCompression)(req, res, next));
 
+  // Station keys: only batch creation and uploads, everything else 403 (server/station-keys.ts).
+  app.use('/api', stationKeys(auth, db));
+
   const callers = new CallerCache<Account>(deps.sessionCacheMs ?? 0);
   const authHandler = toNodeHandler(auth);
+  // Keys are made and revoked through /api/stations only (named, per organisation, admins).
+  app.use('/api/auth/api-key', () => {
+    throw new HttpError(403, 'forbidden', 'Station keys are managed on the Stations screen (/api/stations).');
+  });
   app.use('/api/auth/organization', guardOrganizationEndpoints(auth, db, callers));
   app.all('/api/auth/{*splat}', authBodyLimit(), invalidatesCallers(callers), (req, res) => authHandler(req, res));
 
@@ -117,7 +126,7 @@ export function createApp(deps: AppDeps): Express {
     '/api/batches',
     session,
     batchesRouter(db, receiveUploads(deps.uploadDir ?? path.join(os.tmpdir(), `quasilevel-uploads-${process.pid}`), deps.uploadLimits), deps.analyser, store),
-    reviewsRouter(db, deps.mailer),
+    reviewsRouter(db, deps.mailer, baseUrl),
     batchOriginalsRouter(db, store),
   );
   app.use('/api/specs', session, specsRouter(db));
@@ -125,6 +134,7 @@ export function createApp(deps: AppDeps): Express {
   app.use('/api/curves', session, curvesRouter(db, deps.analyser), curveOriginalsRouter(db, store, deps.analyser));
   app.use('/api/physics', session, physicsRouter(db));
   app.use('/api/strings', session, stringsRouter(db));
+  app.use('/api/stations', session, stationsRouter(auth, db));
 
   app.use('/api', apiNotFound);
   app.use('/api', errorHandler);

@@ -8,6 +8,7 @@
  * lib/auth/password.ts on sign-up, reset and change; a reset ends every session of the account;
  * failed sign-ins slow down per account (server/services/sign-in-throttle.ts) and per client.
  */
+import { apiKey as apiKeyPlugin } from '@better-auth/api-key';
 import { betterAuth } from 'better-auth';
 import { drizzleAdapter } from 'better-auth/adapters/drizzle';
 import { APIError, createAuthMiddleware, isAPIError } from 'better-auth/api';
@@ -194,6 +195,19 @@ function buildAuth(cfg: AuthConfig) {
       },
     },
     plugins: [
+      // Station keys (server/services/stations.ts): owned by the organisation, created and
+      // revoked only through /api/stations (its own /api/auth/api-key/* endpoints are closed in
+      // server/app.ts), checked by server/station-keys.ts. No per-key rate limit: a line's tester
+      // sends a file a minute all shift; no session from a key (the guard builds the caller).
+      apiKeyPlugin({
+        references: 'organization',
+        apiKeyHeaders: 'x-api-key',
+        defaultPrefix: 'qls_',
+        maximumNameLength: 80,
+        requireName: true,
+        rateLimit: { enabled: false },
+        enableSessionForAPIKeys: false,
+      }),
       organizationPlugin({
         ac,
         roles,

@@ -16,6 +16,8 @@ export type OutgoingMail = {
   text: string;
   kind: string;
   organizationId?: string | null;
+  /** Files sent with the message (the release report): in the .eml and over SMTP; the mail log keeps the text only. */
+  attachments?: { filename: string; content: Buffer; contentType: string }[];
 };
 
 export type Mailer = {
@@ -42,7 +44,7 @@ export function createMailer(opts: { db: Db; outboxDir: string; smtpUrl?: string
     transport: useSmtp ? 'smtp' : 'file',
     outboxDir: useSmtp ? null : opts.outboxDir,
     async send(mail) {
-      const info = await transporter.sendMail({ from: FROM, to: mail.to, subject: mail.subject, text: mail.text });
+      const info = await transporter.sendMail({ from: FROM, to: mail.to, subject: mail.subject, text: mail.text, attachments: mail.attachments });
       let file: string | null = null;
       if (!useSmtp) {
         const { writeFile } = await import('node:fs/promises');

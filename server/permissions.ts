@@ -20,6 +20,8 @@ export type Caller = {
   organization: { id: string; name: string; domain: string };
   memberId: string;
   role: Role;
+  /** Set when a station key sent the request (server/station-keys.ts); `user` is then the station's own row. */
+  station?: { id: string; name: string };
 };
 
 /**
@@ -190,6 +192,8 @@ export function callerOfAccount(a: Account): Caller {
 export function requireSession(auth: Auth, db: Db, cache: CallerCache<Account> = new CallerCache<Account>(0)): RequestHandler {
   const account = requireAccount(auth, db, cache);
   return async (req: Request, res: Response, next: NextFunction) => {
+    // A station key already made the caller (server/station-keys.ts, only on the routes it may use).
+    if (req.caller?.station) return next();
     await account(req, res, () => undefined);
     req.caller = callerOfAccount(accountOf(req));
     next();

@@ -7,7 +7,7 @@
  *   ['batches', 'compare', { batches, specId, param }]   answers about several batches
  *   ['curves', id, 'detail' | 'physics']                 one curve (its physics follow its fits)
  *   ['physics', 'material' | 'band-diagram', …]          pure computations, never stale
- *   ['specs', …]  ['users', …]  ['outbox', …]  ['session', …]  ['strings', …]
+ *   ['specs', …]  ['users', …]  ['outbox', …]  ['session', …]  ['strings', …]  ['stations', …]
  *
  * Evaluations, reviews and comparisons are answers about batches, so they sit under the batches
  * root; the resource files (batches.ts, quality.ts, physics.ts, …) re-export their factories.
@@ -84,6 +84,12 @@ export const userKeys = {
 export const outboxKeys = {
   all: ['outbox'] as const,
   list: () => [...outboxKeys.all, 'list'] as const,
+};
+
+/** The admins' stations screen: the organisation's station keys. */
+export const stationKeys = {
+  all: ['stations'] as const,
+  list: () => [...stationKeys.all, 'list'] as const,
 };
 
 export const sessionKeys = {

@@ -107,6 +107,11 @@ export function useComparison(ids: string[], specId: string, param: string) {
   });
 }
 
+/** The release report (PDF) of a batch against a spec version; a released batch's comes from its release record. */
+export function reportUrl(batchId: string, specId: string): string {
+  return `/api/batches/${encodeURIComponent(batchId)}/report.pdf?spec=${encodeURIComponent(specId)}`;
+}
+
 /** The pass/fail CSV's address (downloaded by the browser with the session cookie). */
 export function passFailUrl(batchId: string, specId: string): string {
   return `/api/batches/${encodeURIComponent(batchId)}/pass-fail.csv?spec=${encodeURIComponent(specId)}`;

@@ -21,6 +21,7 @@ export const STATEMENTS = {
   users: ['manage'],
   outbox: ['read'],
   archive: ['manage'],
+  station: ['manage'],
 } as const;
 
 export type Resource = keyof typeof STATEMENTS;
@@ -30,7 +31,7 @@ export const ROLE_PERMISSIONS: Record<Role, readonly Permission[]> = {
   test_engineer: ['batch:read', 'batch:write', 'batch:submit', 'spec:read', 'physics:use'],
   designer: ['batch:read', 'spec:read', 'physics:use'],
   qa_lead: ['batch:read', 'batch:write', 'batch:submit', 'spec:read', 'spec:write', 'release:decide', 'physics:use'],
-  admin: ['batch:read', 'spec:read', 'physics:use', 'users:manage', 'outbox:read', 'archive:manage'],
+  admin: ['batch:read', 'spec:read', 'physics:use', 'users:manage', 'outbox:read', 'archive:manage', 'station:manage'],
 };
 
 export function isRole(value: unknown): value is Role {

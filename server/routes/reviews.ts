@@ -5,6 +5,7 @@ import { decisionSchema, reopenSchema, submitSchema } from '@/lib/schemas/qualit
 import type { Mailer } from '@/server/mail';
 import { callerOf, requirePermission } from '@/server/permissions';
 import { releaseCsv, releaseDetail, reopenBatch } from '@/server/services/releases';
+import { batchReportPdf } from '@/server/services/report';
 import { batchEvaluation, decideBatch, passFailExport, reviewHistory, submitBatch } from '@/server/services/reviews';
 import { sendCsv } from '@/server/send-csv';
 import { validate } from '@/server/validate';
@@ -13,7 +14,7 @@ import { validate } from '@/server/validate';
 const specParam = (req: Request) => String(req.query.spec ?? '') || undefined;
 
 /** Review, release and export routes of a batch (mounted under /api/batches). */
-export function reviewsRouter(db: Db, mailer: Mailer): Router {
+export function reviewsRouter(db: Db, mailer: Mailer, baseUrl = ''): Router {
   const r = Router();
 
   /** GET /api/batches/:id/evaluation?spec=<specId> — every device judged against that spec version (default: the last decision's). */
@@ -30,6 +31,17 @@ export function reviewsRouter(db: Db, mailer: Mailer): Router {
    */
   r.get('/:id/pass-fail.csv', requirePermission('batch:read'), async (req, res) => {
     sendCsv(res, await passFailExport(db, callerOf(req).organization.id, String(req.params.id), specParam(req)));
+  });
+
+  /**
+   * GET /api/batches/:id/report.pdf?spec=<specId> — the release report (PDF): facts, spec and limits,
+   * counts, power classes, devices with results and reasons, Pmax and FF against the limits, flags,
+   * sign-off and the high-voltage caution. A released batch's comes from its release record.
+   */
+  r.get('/:id/report.pdf', requirePermission('batch:read'), async (req, res) => {
+    const pdf = await batchReportPdf(db, callerOf(req).organization.id, String(req.params.id), specParam(req));
+    res.type('application/pdf').setHeader('Content-Disposition', `attachment; filename="${pdf.fileName}"`);
+    res.send(pdf.bytes);
   });
 
   /**
@@ -61,7 +73,7 @@ export function reviewsRouter(db: Db, mailer: Mailer): Router {
 
   /** POST /api/batches/:id/submit { comment? } — a test engineer hands a batch to the QA leads (e-mailed). */
   r.post('/:id/submit', requirePermission('batch:submit'), validate(submitSchema), async (req, res) => {
-    res.json(await submitBatch(db, mailer, callerOf(req), String(req.params.id), (req.body as ReturnType<typeof submitSchema.parse>).comment));
+    res.json(await submitBatch(db, mailer, callerOf(req), String(req.params.id), (req.body as ReturnType<typeof submitSchema.parse>).comment, baseUrl));
   });
 
   /**
@@ -71,7 +83,7 @@ export function reviewsRouter(db: Db, mailer: Mailer): Router {
    * uploaders (403 same_person) and writes the release record; the batch becomes read-only.
    */
   r.post('/:id/decision', requirePermission('release:decide'), validate(decisionSchema), async (req, res) => {
-    res.json(await decideBatch(db, mailer, callerOf(req), String(req.params.id), req.body as ReturnType<typeof decisionSchema.parse>));
+    res.json(await decideBatch(db, mailer, callerOf(req), String(req.params.id), req.body as ReturnType<typeof decisionSchema.parse>, baseUrl));
   });
 
   return r;

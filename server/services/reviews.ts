@@ -108,8 +108,11 @@ export async function reviewHistory(db: Db, by: Caller, batchId: string) {
   } satisfies ReviewListOut;
 }
 
+/** The batch's page in the app, for mails ("every mail links to its batch"). */
+export const batchLink = (baseUrl: string, batchId: string) => `${baseUrl.replace(/\/$/, '')}/batches/${batchId}`;
+
 /** The mail to a QA lead when a batch is submitted for review, with the high-voltage caution. */
-export function reviewRequestMail(to: { email: string; name: string }, b: Pick<BatchRow, 'name'>, by: Caller, devices: number, comment: string | undefined): OutgoingMail {
+export function reviewRequestMail(to: { email: string; name: string }, b: Pick<BatchRow, 'name'>, by: Caller, devices: number, comment: string | undefined, link = ''): OutgoingMail {
   return {
     to: to.email,
     kind: 'review-request',
@@ -122,6 +125,7 @@ export function reviewRequestMail(to: { email: string; name: string }, b: Pick<B
       comment ? `Their note: ${comment}` : '',
       '',
       'Open the batch in Quasilevel, judge it against an acceptance spec and release it or put it on hold.',
+      link ? `The batch: ${link}` : '',
       '',
       cautionText(),
     ].join('\n'),
@@ -137,6 +141,8 @@ export function decisionMail(
   spec: { name: string; version: number },
   tally: ReturnType<typeof counts>,
   comment: string,
+  link = '',
+  report?: { fileName: string; bytes: Buffer },
 ): OutgoingMail {
   const done = state === 'released' ? 'released' : 'put on hold';
   return {
@@ -151,14 +157,17 @@ export function decisionMail(
       `Judged against ${spec.name} v${spec.version}: ${tally.pass} pass, ${tally.fail} fail, ${tally.outliers} outliers of ${tally.total}.`,
       comment ? `Comment: ${comment}` : '',
       state === 'released' ? 'The pass/fail list (CSV) of this release is on the batch page under “Acceptance and release”.' : '',
+      report ? `The release report (PDF) is attached: ${report.fileName}.` : '',
+      link ? `The batch: ${link}` : '',
       '',
       cautionText(),
     ].join('\n'),
+    ...(report ? { attachments: [{ filename: report.fileName, content: report.bytes, contentType: 'application/pdf' }] } : {}),
   };
 }
 
 /** A test engineer hands the batch to the QA leads (e-mailed); 409 unless every curve has a converged fit. */
-export async function submitBatch(db: Db, mailer: Mailer, by: Caller, batchId: string, comment: string | undefined) {
+export async function submitBatch(db: Db, mailer: Mailer, by: Caller, batchId: string, comment: string | undefined, baseUrl = '') {
   const b = await loadBatch(db, by.organization.id, batchId);
   if (b.archived) throw new HttpError(409, 'batch_archived', 'Restore the batch from the archive before submitting it.');
   if (b.state === 'released') throw new HttpError(409, 'batch_released', 'This batch is already released.');
@@ -178,7 +187,7 @@ export async function submitBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
     .from(member)
     .innerJoin(user, eq(user.id, member.userId))
     .where(and(eq(member.organizationId, by.organization.id), eq(member.role, 'qa_lead')));
-  for (const l of leads) await mailer.send(reviewRequestMail(l, b, by, devices.length, comment));
+  for (const l of leads) await mailer.send(reviewRequestMail(l, b, by, devices.length, comment, batchLink(baseUrl, b.id)));
   const [after] = await db.select().from(batch).where(eq(batch.id, b.id));
   return { batch: batchJson(after), notified: leads.length };
 }
@@ -192,7 +201,7 @@ export async function submitBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
  * is judged outside the transaction; inside it, under the batch's row lock, the decision goes
  * through only if nothing changed the batch since (its revision stamp is the same).
  */
-export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: string, body: ReturnType<typeof decisionSchema.parse>) {
+export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: string, body: ReturnType<typeof decisionSchema.parse>, baseUrl = '') {
   const b = await loadBatch(db, by.organization.id, batchId);
   if (b.state !== 'in_review') {
     throw new HttpError(409, 'not_in_review', b.state === 'released' ? 'This batch is already released.' : 'Only a batch submitted for review can be released or held.');
@@ -254,7 +263,11 @@ export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
     .where(and(eq(batchReview.batchId, b.id), eq(batchReview.action, 'submitted')))
     .orderBy(desc(batchReview.createdAt))
     .limit(1);
-  if (submission) await mailer.send(decisionMail(submission, b, by, state, specRow, tally, body.comment));
+  if (submission) {
+    // A release's mail carries its report, drawn from the release record just written.
+    const report = releasing ? await (await import('@/server/services/report')).batchReportPdf(db, by.organization.id, b.id) : undefined;
+    await mailer.send(decisionMail(submission, b, by, state, specRow, tally, body.comment, batchLink(baseUrl, b.id), report));
+  }
   const [after] = await db.select().from(batch).where(eq(batch.id, b.id));
   return { batch: batchJson(after), counts: tally, spec: { id: specRow.id, version: specRow.version, name: specRow.name } };
 }

@@ -13,6 +13,7 @@ import { outboxKeys } from '@/lib/api/outbox';
 import { physicsKeys } from '@/lib/api/physics';
 import { qualityKeys, specKeys, useComparison, useDecision, useReopen, useSaveSpec, useSubmitBatch } from '@/lib/api/quality';
 import { sessionKeys, useRequestPasswordReset, useSignIn } from '@/lib/api/session';
+import { stationKeys, useCreateStation, useRevokeStation } from '@/lib/api/stations';
 import { useCancelInvitation, useChangeRole, useDecideRequest, useInvite, useRemoveMember, useSetJoinByDomain, useSetMemberActive, userKeys } from '@/lib/api/users';
 
 const page = { page: 1, page_size: 50, sort: 'device_id', dir: 'asc', q: '' } as const;
@@ -43,6 +44,7 @@ const cached = {
   requests: userKeys.requests(),
   audit: userKeys.audit(),
   me: sessionKeys.me(),
+  stations: stationKeys.list(),
 } satisfies Record<string, QueryKey>;
 type Name = keyof typeof cached;
 
@@ -93,6 +95,18 @@ async function mutate<V>(hook: () => { mutateAsync: (v: V) => Promise<unknown> }
 const batchData: Name[] = ['batchList', 'b1', 'b1Curves', 'b1Overlay', 'b1Evaluation', 'compareB1B2', 'compareB2B1NoSpec', 'c1', 'c1Physics'];
 
 const cases: Case[] = [
+  {
+    what: 'making a station key',
+    run: (wrapper) => mutate(() => useCreateStation(), 'Line 2 flasher', wrapper),
+    stale: ['stations'],
+    fresh: ['batchList', 'b1', 'users', 'outbox', 'me'],
+  },
+  {
+    what: 'revoking a station key',
+    run: (wrapper) => mutate(() => useRevokeStation(), 'st1', wrapper),
+    stale: ['stations'],
+    fresh: ['batchList', 'b1', 'users', 'outbox', 'me'],
+  },
   {
     what: 'an upload into b1',
     run: async (wrapper) => {

@@ -43,7 +43,9 @@ import {
   uploadAnswerSchema,
   userListSchema,
 } from '@/lib/schemas/responses';
+import { stationCreatedSchema, stationListSchema, stationSchema } from '@/lib/schemas/stations';
 import { agentFor, signIn, signUp, startHarness } from '@/tests/server/harness';
+import request from 'supertest';
 import type { Harness } from '@/tests/server/harness';
 
 type Agent = ReturnType<typeof agentFor>;
@@ -134,6 +136,14 @@ async function freshInvitation(): Promise<string> {
   return id;
 }
 
+/** A station of ours made through the API by our administrator; its id (the key stays in `stationKey`). */
+async function freshStation(): Promise<string> {
+  const res = await agents.admin.post('/api/stations').send({ name: `Matrix line ${crypto.randomUUID().slice(0, 8)}` });
+  if (res.status !== 201) throw new Error(`matrix station failed: ${res.status} ${res.text}`);
+  ours.push(res.body.id);
+  return res.body.id as string;
+}
+
 /** A batch of ours released by the QA lead through the API (so it has a release record), with its release's id. */
 async function releasedBatch(): Promise<{ batchId: string; releaseId: string }> {
   const { batchId } = await freshBatch('in_review');
@@ -180,6 +190,9 @@ const ROUTES: RouteCase[] = [
   { method: 'PATCH', path: '/api/organization', need: 'users:manage', ok: 200, foreign: 'own', build: async () => ({ url: '/api/organization', body: { join_by_domain: false } }) },
   { method: 'GET', path: '/api/organization/audit', need: 'users:manage', ok: 200, foreign: 'own', build: async () => ({ url: '/api/organization/audit' }) },
   { method: 'GET', path: '/api/outbox', need: 'outbox:read', ok: 200, foreign: 'own', build: async () => ({ url: '/api/outbox' }) },
+  { method: 'GET', path: '/api/stations', need: 'station:manage', ok: 200, foreign: 'own', build: async () => ({ url: '/api/stations' }) },
+  { method: 'POST', path: '/api/stations', need: 'station:manage', ok: 201, foreign: 'own', build: async () => ({ url: '/api/stations', body: { name: 'Matrix station' } }) },
+  { method: 'DELETE', path: '/api/stations/:id', need: 'station:manage', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/stations/${await freshStation()}` }) },
   { method: 'GET', path: '/api/batches', need: 'batch:read', ok: 200, foreign: 'own', build: async () => ({ url: '/api/batches' }) },
   { method: 'POST', path: '/api/batches', need: 'batch:write', ok: 201, foreign: 'own', build: async () => ({ url: '/api/batches', body: { name: 'Matrix batch', cells: 1 } }) },
   { method: 'GET', path: '/api/batches/:id', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}` }) },
@@ -197,6 +210,7 @@ const ROUTES: RouteCase[] = [
   { method: 'GET', path: '/api/batches/:id/characterisation', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/characterisation` }) },
   { method: 'GET', path: '/api/batches/:id/evaluation', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/evaluation?spec=${ids.spec}` }) },
   { method: 'GET', path: '/api/batches/:id/pass-fail.csv', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/pass-fail.csv?spec=${ids.spec}` }) },
+  { method: 'GET', path: '/api/batches/:id/report.pdf', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/report.pdf?spec=${ids.spec}` }) },
   { method: 'GET', path: '/api/batches/:id/reviews', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${ids.batch}/reviews` }) },
   { method: 'POST', path: '/api/batches/:id/submit', need: 'batch:submit', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/batches/${(await freshBatch('open')).batchId}/submit`, body: { comment: 'matrix' } }) },
   {
@@ -374,8 +388,8 @@ function allowedAgent(route: RouteCase): Agent {
 }
 
 describe('one vocabulary: every key of every JSON answer is snake_case', () => {
-  // Files: CSV exports, the originals as uploaded and their zip.
-  const json = ROUTES.filter((r) => !r.path.endsWith('.csv') && !r.path.endsWith('.zip') && !r.path.endsWith('/original'));
+  // Files: CSV exports, the report PDF, the originals as uploaded and their zip.
+  const json = ROUTES.filter((r) => !r.path.endsWith('.csv') && !r.path.endsWith('.pdf') && !r.path.endsWith('.zip') && !r.path.endsWith('/original'));
   it.each(json.map((r) => [`${r.method} ${r.path}`, r] as const))('%s', async (_name, route) => {
     const res = await send(allowedAgent(route), route.method, await route.build());
     expect(res.status).toBe(route.ok);
@@ -411,6 +425,9 @@ const RESPONSE_SCHEMAS: Record<string, ZodType> = {
   'POST /api/specs': specJsonSchema,
   'GET /api/compare': comparisonWireSchema,
   'GET /api/curves/:id': curveDetailSchema,
+  'GET /api/stations': stationListSchema,
+  'POST /api/stations': stationCreatedSchema,
+  'DELETE /api/stations/:id': stationSchema,
   'POST /api/curves/:id/refit': refitAnswerSchema,
   'POST /api/curves/:id/reanalyse': curveDetailSchema,
   'POST /api/batches/:id/originals/verify': originalsCheckSchema,
@@ -428,5 +445,87 @@ describe('the answers match the response schemas the client is typed with (stric
 
   it('a strict schema refuses a key it does not name (the test can fail)', () => {
     expect(batchListSchema.safeParse({ batches: [{ id: 'x', createdAt: 'then' }] }).success).toBe(false);
+  });
+});
+
+/**
+ * Station keys (x-api-key, server/station-keys.ts): a key of our organisation may create a batch
+ * and upload curves into our batches, as the station; every other route answers 403; a batch of
+ * another organisation is 404; a wrong or revoked key is 401 with words, on any route.
+ */
+describe('station keys × every route', () => {
+  const STATION_MAY = new Set(['POST /api/batches', 'POST /api/batches/:id/curves']);
+  let key = '';
+  let otherKey = '';
+  let revokedKey = '';
+  beforeAll(async () => {
+    key = (await agents.admin.post('/api/stations').send({ name: 'Matrix key line' })).body.key;
+    otherKey = (await outsiders.admin.post('/api/stations').send({ name: 'Other line' })).body.key;
+    const revoked = await agents.admin.post('/api/stations').send({ name: 'Matrix revoked line' });
+    revokedKey = revoked.body.key;
+    expect((await agents.admin.delete(`/api/stations/${revoked.body.id}`)).status).toBe(200);
+  });
+  /** A request as a command-line client sends it: no cookie, no Origin, the key in x-api-key. */
+  const asStation = (k: string, route: RouteCase, req: Req) => {
+    const agent = request(h.app);
+    const url = req.url;
+    const m = route.method === 'GET' ? agent.get(url) : route.method === 'POST' ? agent.post(url) : route.method === 'PATCH' ? agent.patch(url) : agent.delete(url);
+    m.set('x-api-key', k);
+    if (req.file) return m.attach('files', req.file.bytes, req.file.name);
+    return req.body ? m.send(req.body) : m;
+  };
+
+  it.each(ROUTES.map((r) => [`${r.method} ${r.path}`, r] as const))('%s with our key', async (name, route) => {
+    const res = await asStation(key, route, await route.build());
+    if (STATION_MAY.has(name)) {
+      expect(res.status).toBe(route.ok);
+      if (name === 'POST /api/batches') expect(batchSchema.safeParse(res.body).success).toBe(true);
+      else expect(uploadAnswerSchema.safeParse(res.body).success).toBe(true);
+    } else {
+      expect(res.status).toBe(403);
+      expect(res.body).toEqual({ code: 'station_forbidden', message: expect.stringContaining('may only create batches and upload curves') });
+    }
+  });
+
+  it.each(ROUTES.map((r) => [`${r.method} ${r.path}`, r] as const))('%s with another organisation’s key', async (name, route) => {
+    const res = await asStation(otherKey, route, await route.build());
+    if (name === 'POST /api/batches') {
+      // A batch of its own organisation: nothing of ours in the answer.
+      expect(res.status).toBe(201);
+      for (const s of ours) expect(res.text).not.toContain(s);
+    } else expect(res.status).toBe(STATION_MAY.has(name) ? 404 : 403);
+  });
+
+  it.each([
+    ['a wrong key', () => 'qls_' + 'x'.repeat(64), 'not valid'],
+    ['a revoked key', () => revokedKey, 'revoked'],
+  ])('%s → 401 with words, on every route', async (_label, k, words) => {
+    for (const route of [ROUTES.find((r) => r.path === '/api/batches/:id/curves')!, ROUTES.find((r) => r.path === '/api/users')!]) {
+      const res = await asStation(k(), route, await route.build());
+      expect(res.status).toBe(401);
+      expect(res.body).toEqual({ code: 'invalid_key', message: expect.stringContaining(words) });
+    }
+  });
+
+  it('better-auth’s own api-key endpoints are closed; the key cannot reach /api/auth either', async () => {
+    expect((await agents.admin.post('/api/auth/api-key/create').send({ name: 'sneaky' })).status).toBe(403);
+    expect((await agents.admin.get('/api/auth/api-key/list')).status).toBe(403);
+    expect((await request(h.app).get('/api/auth/get-session').set('x-api-key', key)).status).toBe(403);
+  });
+
+  it('curves a station sends are recorded as the station’s, and its last use is shown', async () => {
+    const created = await request(h.app).post('/api/batches').set('x-api-key', key).send({ name: 'Station batch', cells: 1 });
+    expect(created.status).toBe(201);
+    const up = await request(h.app).post(`/api/batches/${created.body.id}/curves`).set('x-api-key', key).attach('files', cellCsv, 'station-1.csv');
+    expect(up.status).toBe(201);
+    const [row] = await h.database.db.select({ name: user.name }).from(batch).innerJoin(user, eq(user.id, batch.createdBy)).where(eq(batch.id, created.body.id));
+    expect(row.name).toBe('Matrix key line');
+    const list = (await agents.admin.get('/api/stations')).body.stations as { name: string; last_used_at: string | null; revoked: boolean }[];
+    const line = list.find((s) => s.name === 'Matrix key line')!;
+    expect(line.revoked).toBe(false);
+    expect(Date.now() - Date.parse(line.last_used_at!)).toBeLessThan(60_000);
+    expect(list.find((s) => s.name === 'Matrix revoked line')!.revoked).toBe(true);
+    // The station is not a member: the users list does not show it.
+    expect(JSON.stringify((await agents.admin.get('/api/users')).body)).not.toContain('Matrix key line');
   });
 });

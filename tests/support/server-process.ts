@@ -33,8 +33,9 @@ export type ServerProcess = {
   stop: (opts?: { kill?: boolean; keepData?: boolean }) => Promise<number | null>;
 };
 
-export async function startServerProcess(opts: { dataDir?: string; env?: Record<string, string>; timeoutMs?: number } = {}): Promise<ServerProcess> {
-  const port = await freePort();
+/** `port`: listen there (a restart on the address clients already use); default a free one. */
+export async function startServerProcess(opts: { dataDir?: string; env?: Record<string, string>; timeoutMs?: number; port?: number } = {}): Promise<ServerProcess> {
+  const port = opts.port ?? (await freePort());
   const dataDir = opts.dataDir ?? mkdtempSync(path.join(os.tmpdir(), 'ql-data-'));
   const url = `http://127.0.0.1:${port}`;
   let output = '';
