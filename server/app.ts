@@ -29,6 +29,7 @@ import { meRouter } from '@/server/routes/me';
 import { organizationRouter } from '@/server/routes/organization';
 import { physicsRouter } from '@/server/routes/physics';
 import { reviewsRouter } from '@/server/routes/reviews';
+import { setupsRouter } from '@/server/routes/setups';
 import { specsRouter } from '@/server/routes/specs';
 import { stringsRouter } from '@/server/routes/strings';
 import { outboxRouter } from '@/server/routes/outbox';
@@ -110,6 +111,7 @@ export function createApp(deps: AppDeps): Express {
   app.use('/api/outbox', session, outboxRouter(db));
   app.use('/api/batches', session, batchesRouter(db, receiveUploads(deps.uploadDir ?? path.join(os.tmpdir(), `quasilevel-uploads-${process.pid}`), deps.uploadLimits), deps.analyser), reviewsRouter(db, deps.mailer));
   app.use('/api/specs', session, specsRouter(db));
+  app.use('/api/setups', session, setupsRouter(db));
   app.use('/api/compare', session, compareRouter(db));
   app.use('/api/curves', session, curvesRouter(db, deps.analyser));
   app.use('/api/physics', session, physicsRouter(db));
