@@ -1,7 +1,7 @@
 /** Measurement setups and their uncertainty budgets (GET/POST/PATCH /api/setups). */
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { apiFetch } from '@/lib/api/client';
-import { batchKeys, setupKeys } from '@/lib/api/keys';
+import { batchKeys, curveKeys, setupKeys } from '@/lib/api/keys';
 import type { SetupInput } from '@/lib/quality/uncertainty';
 import type { Setup, SetupList } from '@/lib/schemas/responses';
 
@@ -23,7 +23,7 @@ export function useSaveSetup() {
     // A budget gives every figure of the batches measured with it its uncertainty, so every
     // answer about batches (evaluations, comparisons, pages) may change with it.
     onSuccess: async () => {
-      await Promise.all([qc.invalidateQueries({ queryKey: setupKeys.all }), qc.invalidateQueries({ queryKey: batchKeys.all })]);
+      await Promise.all([qc.invalidateQueries({ queryKey: setupKeys.all }), qc.invalidateQueries({ queryKey: batchKeys.all }), qc.invalidateQueries({ queryKey: curveKeys.all })]);
     },
   });
 }

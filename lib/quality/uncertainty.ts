@@ -26,6 +26,7 @@
 import { z } from 'zod';
 import type { ParamKey } from '@/lib/quality/params';
 import { textProblem } from '@/lib/schemas/text';
+import { formatValue as formatVocabulary, unitOf } from '@/lib/vocabulary';
 
 /** What a component acts on: a figure directly (in %), or an input quantity (irradiance %, temperature K). */
 export const ACTS_ON = ['pmp', 'isc', 'voc', 'irradiance', 'temperature'] as const;
@@ -180,4 +181,12 @@ export function uncertaintyByKey(u: Partial<Record<ParamKey, number>> | undefine
     if (typeof v === 'number' && Number.isFinite(v)) out[p.key] = v;
   }
   return out;
+}
+
+/** A stored value with its expanded uncertainty for the screens: "287.0 ± 8.8 W"; without one as the key table writes it. */
+export function formatWithUncertainty(key: string, value: number | null | undefined, u: number | null | undefined): string {
+  if (value == null || !Number.isFinite(value)) return '—';
+  if (!(typeof u === 'number' && u > 0)) return formatVocabulary(key, value);
+  const unit = unitOf(key);
+  return `${valuePlusMinus(value, u)}${unit ? ` ${unit}` : ''}`;
 }

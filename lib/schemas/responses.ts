@@ -106,7 +106,13 @@ const curveBodySchema = curveRowSchema.extend({
   history: z.array(fitHistorySchema),
 });
 /** GET /api/curves/:id; a refit answers the same without `batch`. */
-export const curveDetailSchema = curveBodySchema.extend({ batch: z.strictObject({ id: z.string(), name: z.string(), state: z.string() }) });
+export const curveDetailSchema = curveBodySchema.extend({
+  batch: z.strictObject({ id: z.string(), name: z.string(), state: z.string() }),
+  /** Expanded uncertainties (k = 2) of the figures by key (u_pmp_w, u_isc_a, u_voc_v, u_stc_pmp_w); empty without a setup. */
+  uncertainty: z.record(z.string(), z.number()),
+  /** The batch's measurement setup and its budget under the batch's coefficients, or null. */
+  setup: z.lazy(() => setupRefSchema).nullable(),
+});
 export const refitAnswerSchema = curveBodySchema.extend({ batch: z.strictObject({ id: z.string(), name: z.string(), state: z.string() }).optional() });
 
 export const overlaySchema = z.strictObject({
