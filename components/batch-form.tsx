@@ -33,7 +33,8 @@ export function BatchForm({ initial, submitLabel, busy, error, onSubmit, onCance
       gamma_pct_per_k: text(initial?.gamma_pct_per_k),
       rs_ohm: text(initial?.rs_ohm),
       kappa_ohm_per_k: text(initial?.kappa_ohm_per_k),
-      setup_id: initial?.setup_id ?? null,
+      // Left out unless chosen, so a form shown before the setups arrive never clears the batch's setup.
+      setup_id: initial?.setup_id ?? undefined,
       description: text(initial?.description),
     },
   });
