@@ -21,6 +21,7 @@ import { currentRevision, frozenDevices, latestRelease, releaseCheck, releaseIds
 import { batchSetupRef, judgedDevices } from '@/server/services/setups';
 import { loadSpec } from '@/server/services/specs';
 import { uncertaintyByKey } from '@/lib/quality/uncertainty';
+import { DECISION_RULE_WORDS, type DecisionRule } from '@/lib/quality/decision-rules';
 import type { ReviewListOut } from '@/lib/schemas/responses';
 
 /** The parameters whose outliers an evaluation marks. */
@@ -143,6 +144,7 @@ export function decisionMail(
   spec: { name: string; version: number },
   tally: ReturnType<typeof counts>,
   comment: string,
+  rule: DecisionRule = 'simple',
 ): OutgoingMail {
   const done = state === 'released' ? 'released' : 'put on hold';
   return {
@@ -155,6 +157,7 @@ export function decisionMail(
       '',
       `${by.user.name} ${done} the batch “${b.name}”.`,
       `Judged against ${spec.name} v${spec.version}: ${tally.pass} pass, ${tally.fail} fail, ${tally.outliers} outliers of ${tally.total}.`,
+      `Decision rule: ${DECISION_RULE_WORDS[rule]}.`,
       comment ? `Comment: ${comment}` : '',
       state === 'released' ? 'The pass/fail list (CSV) of this release is on the batch page under “Acceptance and release”.' : '',
       '',
@@ -260,7 +263,7 @@ export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
     .where(and(eq(batchReview.batchId, b.id), eq(batchReview.action, 'submitted')))
     .orderBy(desc(batchReview.createdAt))
     .limit(1);
-  if (submission) await mailer.send(decisionMail(submission, b, by, state, specRow, tally, body.comment));
+  if (submission) await mailer.send(decisionMail(submission, b, by, state, specRow, tally, body.comment, evaluation.decision_rule));
   const [after] = await db.select().from(batch).where(eq(batch.id, b.id));
   return { batch: batchJson(after), counts: tally, spec: { id: specRow.id, version: specRow.version, name: specRow.name } };
 }
