@@ -2,6 +2,8 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useForm } from 'react-hook-form';
 import { StyleSheet, View } from 'react-native';
 import { Button } from '@/components/button';
+import { SetupPicker } from '@/components/setup-picker';
+import type { SetupChoice } from '@/components/setup-picker';
 import { FormError } from '@/components/form-error';
 import { TextField } from '@/components/text-field';
 import type { Batch } from '@/lib/api/batches';
@@ -12,7 +14,7 @@ import type { BatchCreateInput } from '@/lib/schemas/curves';
 const text = (v: unknown) => (v == null ? '' : String(v));
 
 /** Create or edit a batch's description; the same zod schema checks it on the server. */
-export function BatchForm({ initial, submitLabel, busy, error, onSubmit, onCancel }: { initial?: Batch; submitLabel: string; busy: boolean; error: unknown; onSubmit: (v: BatchCreateInput) => void; onCancel?: () => void }) {
+export function BatchForm({ initial, submitLabel, busy, error, onSubmit, onCancel, setups }: { initial?: Batch; submitLabel: string; busy: boolean; error: unknown; onSubmit: (v: BatchCreateInput) => void; onCancel?: () => void; /** The organisation's measurement setups; the choice shows when given. */ setups?: readonly SetupChoice[] }) {
   const { control, handleSubmit } = useForm<BatchCreateInput>({
     resolver: zodResolver(batchCreateSchema),
     defaultValues: {
@@ -31,6 +33,8 @@ export function BatchForm({ initial, submitLabel, busy, error, onSubmit, onCance
       gamma_pct_per_k: text(initial?.gamma_pct_per_k),
       rs_ohm: text(initial?.rs_ohm),
       kappa_ohm_per_k: text(initial?.kappa_ohm_per_k),
+      // Left out unless chosen, so a form shown before the setups arrive never clears the batch's setup.
+      setup_id: initial?.setup_id ?? undefined,
       description: text(initial?.description),
     },
   });
@@ -62,6 +66,7 @@ export function BatchForm({ initial, submitLabel, busy, error, onSubmit, onCance
         <View style={styles.cell}><TextField control={control} name="rs_ohm" label={L.rs_ohm} keyboardType="numeric" testID="batch-rs" /></View>
         <View style={styles.cell}><TextField control={control} name="kappa_ohm_per_k" label={L.kappa_ohm_per_k} keyboardType="numeric" testID="batch-kappa" /></View>
       </View>
+      {setups ? <SetupPicker control={control} setups={setups} /> : null}
       <TextField control={control} name="description" label="Notes" multiline numberOfLines={3} style={{ minHeight: 70 }} />
       <FormError error={error} />
       <View style={{ flexDirection: 'row', gap: 8, flexWrap: 'wrap' }}>

@@ -8,7 +8,10 @@ import type { DescribeStats } from '@/lib/api/batches';
 import type { Comparison } from '@/lib/api/quality';
 import { GRID_PARAMS } from '@/lib/compare-columns';
 import { fmtParam, sig } from '@/lib/format';
+import { uncertaintyKey } from '@/lib/quality/uncertainty';
+import type { CompareRow } from '@/lib/quality/compare-table';
 import { perCellLabel } from '@/lib/quality/compare-kinds';
+import { isParamKey } from '@/lib/quality/params';
 import type { ParamKey } from '@/lib/quality/params';
 import { labelOf, toShown, unitOf } from '@/lib/vocabulary';
 
@@ -83,6 +86,7 @@ export function CompareByParameter({ c, param, setParam }: { c: Comparison; para
         const s = stats[k];
         const counts = c.counts[b.id];
         const difference = c.differences.find((d) => d.batch_b === b.id);
+        const uRel = relativeUncertainty(c.rows, b.id, param);
         return (
           <Card key={b.id} testID={`compare-batch-${b.name}`}>
             <View style={{ gap: 2 }}>
@@ -108,6 +112,11 @@ export function CompareByParameter({ c, param, setParam }: { c: Comparison; para
             ) : (
               <Txt variant="caption">No {label} in this batch.</Txt>
             )}
+            {uRel != null ? (
+              <Txt variant="caption" testID={`uncertainty-${b.name}`}>
+                Each {label} carries ±{uRel.toFixed(2)} % (expanded uncertainty, k = 2) from the batch's measurement setup.
+              </Txt>
+            ) : null}
             {k === 0 && c.batches.length > 1 ? <Txt variant="caption">The other batches are compared with this one.</Txt> : null}
             {difference ? (
               <Txt variant="body" testID={`difference-${b.name}`}>
@@ -148,3 +157,11 @@ const styles = StyleSheet.create({
   box: { position: 'absolute', top: 2, height: 14, backgroundColor: theme.color.electronSoft, borderWidth: 1, borderColor: theme.color.electron, borderRadius: 2 },
   median: { position: 'absolute', top: 0, width: 2, height: 18, marginLeft: -1, backgroundColor: theme.color.ink },
 });
+
+/** The relative expanded uncertainty (%) a batch's figure carries, from its first device that has one; null without. */
+function relativeUncertainty(rows: readonly CompareRow[], batchId: string, param: string): number | null {
+  const key = isParamKey(param) ? uncertaintyKey(param) : null;
+  if (!key) return null;
+  const r = rows.find((x) => x.batch_id === batchId && typeof x[key] === 'number' && typeof x[param] === 'number' && x[param] !== 0);
+  return r ? ((r[key] as number) / Math.abs(r[param] as number)) * 100 : null;
+}

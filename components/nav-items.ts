@@ -10,6 +10,7 @@ export const NAV_ITEMS: NavItem[] = [
   { href: '/batches', label: 'Batches', short: 'Batches', needs: 'batch:read', match: '/batches' },
   { href: '/compare', label: 'Compare batches', short: 'Compare', needs: 'batch:read', match: '/compare' },
   { href: '/specs', label: 'Acceptance specs', short: 'Specs', needs: 'spec:read', match: '/specs' },
+  { href: '/setups', label: 'Measurement setups', short: 'Setups', needs: 'spec:read', match: '/setups' },
   { href: '/physics', label: 'Device physics', short: 'Physics', needs: 'physics:use', match: '/physics' },
   { href: '/strings', label: 'String sizing', short: 'Strings', needs: 'physics:use', match: '/strings' },
   { href: '/admin/users', label: 'Users & roles', short: 'Users', needs: 'users:manage', match: '/admin/users' },

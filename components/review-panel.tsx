@@ -4,6 +4,7 @@ import { Pressable, StyleSheet, TextInput, View } from 'react-native';
 import { Button } from '@/components/button';
 import { Card } from '@/components/card';
 import { CautionBlock } from '@/components/caution-block';
+import { DecisionRuleNote } from '@/components/decision-rule-note';
 import { Figure } from '@/components/figure';
 import { FormError } from '@/components/form-error';
 import { QueryState } from '@/components/query-state';
@@ -76,7 +77,9 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
                       <Figure label="Pass" value={String(e.counts.pass)} note={`of ${e.counts.total}`} testID="count-pass" />
                       <Figure label="Fail" value={String(e.counts.fail)} warn={e.counts.fail > 0} testID="count-fail" />
                       <Figure label="Outliers (|z| > 3.5)" value={String(e.counts.outliers)} note="robust z on MAD, marked not failed" />
+                      <Figure label="Inside the guard band" value={String(e.inside_guard_band)} note="a value within its uncertainty of a limit" testID="count-guard-band" />
                     </View>
+                    <DecisionRuleNote evaluation={e} />
                     <View style={{ gap: 4 }} testID="power-classes">
                       <Txt variant="label">Power classes</Txt>
                       <View style={styles.chips}>

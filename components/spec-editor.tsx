@@ -2,6 +2,7 @@ import { useState } from 'react';
 import { Pressable, StyleSheet, TextInput, View } from 'react-native';
 import { Button } from '@/components/button';
 import { FormError } from '@/components/form-error';
+import { ruleFields, ruleFormOf, SpecRuleFields } from '@/components/spec-rule-fields';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import { specConflictOf, useSaveSpec } from '@/lib/api/quality';
@@ -39,6 +40,8 @@ export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson;
   const [step, setStep] = useState(start.step);
   const [basis, setBasis] = useState<'pmp_w' | 'stc_pmp_w'>(start.basis);
   const [flags, setFlags] = useState<string[]>(start.flags);
+  // Decision rule and nameplate-relative limits (kept as typed when a newer version is reloaded).
+  const [rule, setRule] = useState(() => ruleFormOf(initial));
   const [issues, setIssues] = useState<string[]>([]);
   const conflict = specConflictOf(save.error);
 
@@ -70,6 +73,7 @@ export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson;
       limits: lim,
       ...(stepW !== undefined ? { power_classes: { step_w: stepW, basis } } : {}),
       fail_flags: flags,
+      ...ruleFields(rule),
       ...(notes.trim() ? { notes: notes.trim() } : {}),
       ...(base ? { family_id: base.family_id, base_version: base.version } : {}),
     };
@@ -102,6 +106,7 @@ export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson;
           ))}
         </View>
       </View>
+      <SpecRuleFields value={rule} onChange={setRule} />
       <View style={{ gap: 6 }}>
         <Txt variant="label">Power classes (nameplate steps, positive-only tolerance: class P when P ≤ power &lt; P + step)</Txt>
         <View style={{ flexDirection: 'row', gap: 10, flexWrap: 'wrap', alignItems: 'center' }}>

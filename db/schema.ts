@@ -230,6 +230,28 @@ export const mailLog = pgTable(
   (t) => [index('mail_log_org_idx').on(t.organizationId, t.createdAt)],
 );
 
+/**
+ * A measurement setup (tester, reference device, sensors) with its uncertainty budget: the
+ * components (lib/quality/uncertainty.ts componentSchema) as JSON. One per organisation may be
+ * the default, used by batches that name none.
+ */
+export const measurementSetup = pgTable(
+  'measurement_setup',
+  {
+    id: text('id').primaryKey(),
+    organizationId: text('organization_id')
+      .notNull()
+      .references(() => organization.id, { onDelete: 'cascade' }),
+    name: text('name').notNull(),
+    components: jsonb('components').$type<Record<string, unknown>[]>().notNull(),
+    is_default: boolean('is_default').notNull().default(false),
+    createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+    updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index('measurement_setup_org_idx').on(t.organizationId)],
+);
+
 /** A batch of devices (cells or modules) measured together: one lot, one line, one day. */
 export const batch = pgTable(
   'batch',
@@ -258,6 +280,8 @@ export const batch = pgTable(
     gamma_pct_per_k: doublePrecision('gamma_pct_per_k'),
     rs_ohm: doublePrecision('rs_ohm'),
     kappa_ohm_per_k: doublePrecision('kappa_ohm_per_k'),
+    /** The measurement setup whose uncertainty budget the batch's figures carry; null: the organisation's default setup. */
+    setup_id: text('setup_id').references(() => measurementSetup.id, { onDelete: 'set null' }),
     description: text('description'),
     archived: boolean('archived').notNull().default(false),
     /** open → in_review → released | on_hold (→ in_review again). */

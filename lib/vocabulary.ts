@@ -11,7 +11,7 @@
 import { sig } from '@/lib/numeric/significant';
 
 /** Where a quantity comes from. */
-export type QuantityGroup = 'curve' | 'metric' | 'fit' | 'derived' | 'material' | 'carriers' | 'device' | 'translation' | 'strings' | 'characterisation';
+export type QuantityGroup = 'curve' | 'metric' | 'fit' | 'derived' | 'material' | 'carriers' | 'device' | 'translation' | 'strings' | 'characterisation' | 'uncertainty';
 
 export type Quantity = {
   /** snake_case with the unit as suffix, e.g. "isc_a", "temp_c". */
@@ -187,6 +187,26 @@ export const QUANTITIES: readonly Quantity[] = [
   q('translation', 'model_gamma_pct_per_k', 'γ of the fitted model', '%/K', { digits: 3 }),
   q('translation', 'agreement_tolerance_pct', 'Agreement asked of the model', '%', { digits: 2 }),
   q('translation', 'model_temp_window_k', 'Model without coefficients: window around 25 °C', 'K', { digits: 2 }),
+
+  // Measurement uncertainty (lib/quality/uncertainty.ts), decision rules and nameplate-relative limits (lib/quality/decision-rules.ts).
+  q('uncertainty', 'u_pmp_w', 'Pmax uncertainty (k = 2)', 'W'),
+  q('uncertainty', 'u_isc_a', 'Isc uncertainty (k = 2)', 'A'),
+  q('uncertainty', 'u_voc_v', 'Voc uncertainty (k = 2)', 'V'),
+  q('uncertainty', 'u_stc_pmp_w', 'Pmax at STC uncertainty (k = 2)', 'W'),
+  q('uncertainty', 'u_pmp_pct_k2', 'Pmax uncertainty (k = 2)', '%', { decimals: 2 }),
+  q('uncertainty', 'u_isc_pct_k2', 'Isc uncertainty (k = 2)', '%', { decimals: 2 }),
+  q('uncertainty', 'u_voc_pct_k2', 'Voc uncertainty (k = 2)', '%', { decimals: 2 }),
+  q('uncertainty', 'value', 'Value (in the unit given beside it)', '', { digits: 3 }),
+  q('uncertainty', 'k', 'Coverage factor k', '', { digits: 3 }),
+  q('uncertainty', 'inside_guard_band', 'Devices within their uncertainty of a limit', '', count),
+  q('uncertainty', 'below_w', 'Below the nameplate by', 'W'),
+  q('uncertainty', 'above_w', 'Above the nameplate by', 'W'),
+  q('uncertainty', 'below_pct', 'Below the nameplate by', '%', { decimals: 2 }),
+  q('uncertainty', 'above_pct', 'Above the nameplate by', '%', { decimals: 2 }),
+  q('uncertainty', 'from_w', 'From nameplate +', 'W'),
+  q('uncertainty', 'to_w', 'To nameplate +', 'W'),
+  q('uncertainty', 'from_pct', 'From nameplate +', '%', { decimals: 2 }),
+  q('uncertainty', 'to_pct', 'To nameplate +', '%', { decimals: 2 }),
 
   // String sizing (lib/strings): the request and the answer.
   q('strings', 'voc_stc_v', 'Voc at STC', 'V'),

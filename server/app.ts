@@ -29,6 +29,7 @@ import { meRouter } from '@/server/routes/me';
 import { organizationRouter } from '@/server/routes/organization';
 import { physicsRouter } from '@/server/routes/physics';
 import { reviewsRouter } from '@/server/routes/reviews';
+import { setupsRouter } from '@/server/routes/setups';
 import { specsRouter } from '@/server/routes/specs';
 import { stationsRouter } from '@/server/routes/stations';
 import { stringsRouter } from '@/server/routes/strings';
@@ -130,6 +131,7 @@ export function createApp(deps: AppDeps): Express {
     batchOriginalsRouter(db, store),
   );
   app.use('/api/specs', session, specsRouter(db));
+  app.use('/api/setups', session, setupsRouter(db));
   app.use('/api/compare', session, compareRouter(db));
   app.use('/api/curves', session, curvesRouter(db, deps.analyser), curveOriginalsRouter(db, store, deps.analyser));
   app.use('/api/physics', session, physicsRouter(db));

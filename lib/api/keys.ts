@@ -7,7 +7,7 @@
  *   ['batches', 'compare', { batches, specId, param }]   answers about several batches
  *   ['curves', id, 'detail' | 'physics']                 one curve (its physics follow its fits)
  *   ['physics', 'material' | 'band-diagram', …]          pure computations, never stale
- *   ['specs', …]  ['users', …]  ['outbox', …]  ['session', …]  ['strings', …]  ['stations', …]
+ *   ['specs', …]  ['setups', …]  ['users', …]  ['outbox', …]  ['session', …]  ['strings', …]  ['stations', …]
  *
  * Evaluations, reviews and comparisons are answers about batches, so they sit under the batches
  * root; the resource files (batches.ts, quality.ts, physics.ts, …) re-export their factories.
@@ -69,6 +69,11 @@ export const specKeys = {
   all: ['specs'] as const,
   list: () => [...specKeys.all, 'list'] as const,
   detail: (id: string) => [...specKeys.all, 'detail', id] as const,
+};
+
+export const setupKeys = {
+  all: ['setups'] as const,
+  list: () => [...setupKeys.all, 'list'] as const,
 };
 
 /** Everything the admins' users screen holds: members, invitations, requests to join, the setting, the record. */

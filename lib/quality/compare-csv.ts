@@ -10,7 +10,8 @@ import type { CompareRow } from '@/lib/quality/compare-table';
 import { isoUtc, PROVENANCE_COLUMNS, toCsv } from '@/lib/quality/csv';
 import type { CsvCell } from '@/lib/quality/csv';
 import { exportColumnName, exportValue } from '@/lib/quality/export-columns';
-import { isParamKey } from '@/lib/quality/params';
+import { isParamKey, type ParamKey } from '@/lib/quality/params';
+import { uncertaintyKey } from '@/lib/quality/uncertainty';
 
 export type ComparisonCsvInput = {
   /** The rows in the order to write them. */
@@ -19,8 +20,8 @@ export type ComparisonCsvInput = {
   columns?: readonly CompareColumnId[];
   /** The compared batches, for each row's release state. */
   batches: readonly { id: string; name: string; state: string }[];
-  /** The spec the rows were judged against, or null. */
-  spec: { name: string; version: number } | null;
+  /** The spec the rows were judged against, or null; its decision rule ("simple" when not said). */
+  spec: { name: string; version: number; decision_rule?: string } | null;
   exportedAt: Date;
 };
 
@@ -53,8 +54,15 @@ export function comparisonRows(input: ComparisonCsvInput): { fields: string[]; d
   const ids: CompareColumnId[] = ['device_id', 'batch_name', ...new Set(chosen)];
   const state = new Map(input.batches.map((b) => [b.id, b.state]));
   const at = isoUtc(input.exportedAt);
-  const fields = [...ids.map(comparisonColumnName), ...PROVENANCE_COLUMNS];
-  const data = input.rows.map((r) => [...ids.map((id) => cell(id, r)), input.spec?.name ?? '', input.spec?.version ?? '', state.get(r.batch_id) ?? '', at]);
+  // A figure with an uncertainty is followed by its expanded uncertainty (k = 2), same unit and rounding.
+  const cols = ids.flatMap((id) => (isParamKey(id) && uncertaintyKey(id) ? [{ id, u: false }, { id, u: true }] : [{ id, u: false }]));
+  const fields = [...cols.map((c) => (c.u ? uncertaintyKey(c.id as ParamKey)! : comparisonColumnName(c.id))), 'decision_rule', ...PROVENANCE_COLUMNS];
+  const rule = input.spec ? (input.spec.decision_rule ?? 'simple') : '';
+  const uCell = (id: ParamKey, r: CompareRow): CsvCell => {
+    const u = r[uncertaintyKey(id)!];
+    return typeof r[id] === 'number' && typeof u === 'number' ? exportValue(id, u) : null;
+  };
+  const data = input.rows.map((r) => [...cols.map((c) => (c.u ? uCell(c.id as ParamKey, r) : cell(c.id, r))), rule, input.spec?.name ?? '', input.spec?.version ?? '', state.get(r.batch_id) ?? '', at]);
   return { fields, data };
 }
 

@@ -6,6 +6,7 @@ import Papa from 'papaparse';
 import type { BatchEvaluation } from '@/lib/quality/evaluate';
 import { QualityError } from '@/lib/quality/errors';
 import { exportColumnName, exportValue } from '@/lib/quality/export-columns';
+import { uncertaintyKey } from '@/lib/quality/uncertainty';
 import { PARAM_KEYS, type ParamKey } from '@/lib/quality/params';
 
 export type CsvCell = string | number | boolean | null;
@@ -87,14 +88,18 @@ export type PassFailMeta = ExportMeta & {
 /**
  * Header and rows of the pass/fail export, in papaparse's { fields, data } form — one row per
  * device and nothing else: device_id, batch_name, result, reasons ("; "-joined), power_class,
- * outlier (yes/no), outlier_params (their column names), one column per parameter named with its
- * unit (`pmp_w`, `ff_pct`; numbers in that unit rounded as lib/quality/export-columns.ts states,
- * empty when not measured), then spec_name, spec_version, release_state and exported_at.
+ * outlier (yes/no), outlier_params (their column names), in_guard_band (yes/no: a value within
+ * its expanded uncertainty of a limit), one column per parameter named with its unit (`pmp_w`,
+ * `ff_pct`; numbers in that unit rounded as lib/quality/export-columns.ts states, empty when not
+ * measured), each figure with an uncertainty followed by it (`u_pmp_w`, k = 2, same unit and
+ * rounding), the spec's decision_rule, then spec_name, spec_version, release_state and exported_at.
  * Cells are plain values; `passFailCsv` (or `toCsv`) writes them formula-safe.
  */
 export function passFailRows(batch: BatchEvaluation, meta: PassFailMeta): { fields: string[]; data: CsvCell[][] } {
   const params = meta.params ?? PARAM_KEYS.filter((k) => k in batch.stats);
-  const fields = ['device_id', 'batch_name', 'result', 'reasons', 'power_class', 'outlier', 'outlier_params', ...params.map(exportColumnName), ...PROVENANCE_COLUMNS];
+  // Each figure that carries an uncertainty is followed by its expanded uncertainty (k = 2) in the same unit and rounding.
+  const cols = params.flatMap((k) => (uncertaintyKey(k) ? [{ k, u: false }, { k, u: true }] : [{ k, u: false }]));
+  const fields = ['device_id', 'batch_name', 'result', 'reasons', 'power_class', 'outlier', 'outlier_params', 'in_guard_band', ...cols.map((c) => (c.u ? uncertaintyKey(c.k)! : exportColumnName(c.k))), 'decision_rule', ...PROVENANCE_COLUMNS];
   const tail = provenanceCells(meta);
   const data = batch.devices.map((d) =>
     [
@@ -105,7 +110,9 @@ export function passFailRows(batch: BatchEvaluation, meta: PassFailMeta): { fiel
       d.power_class,
       d.outlier ? 'yes' : 'no',
       d.outlier_params.map(exportColumnName).join(' '),
-      ...params.map((k) => exportValue(k, d.values[k])),
+      d.in_guard_band ? 'yes' : 'no',
+      ...cols.map((c) => exportValue(c.k, c.u ? (d.values[c.k] == null ? null : d.uncertainty?.[c.k]) : d.values[c.k])),
+      batch.decision_rule,
       ...tail,
     ].map(plainCell),
   );

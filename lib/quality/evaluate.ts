@@ -2,9 +2,10 @@
  * Pass/fail of devices and batches against an acceptance spec: every reason a device fails,
  * its power class, robust outlier marks and the batch's statistics with Cpk.
  */
+import { insideGuardBand, limitReasons, limitsFor, resolvePowerClasses, ruleOf, type DecisionRule } from '@/lib/quality/decision-rules';
 import { describe, type Description } from '@/lib/quality/describe';
 import { QualityError } from '@/lib/quality/errors';
-import { formatValue, formatWithUnit, isParamKey, PARAM_KEYS, type ParamKey } from '@/lib/quality/params';
+import { formatValue, isParamKey, PARAM_KEYS, type ParamKey } from '@/lib/quality/params';
 import { robustZ } from '@/lib/quality/robust-z';
 import type { PowerClasses, Spec } from '@/lib/quality/spec';
 import { labelOf } from '@/lib/vocabulary';
@@ -17,10 +18,14 @@ export type DeviceRecord = {
   flags: string[];
   /** Why a value is absent, in words, where no method could give it (Pmax at STC: lib/analysis/stc.ts). */
   absent?: Partial<Record<ParamKey, string>>;
+  /** Expanded uncertainty (k = 2) of figures, in their units (lib/quality/uncertainty.ts). */
+  uncertainty?: Partial<Record<ParamKey, number>>;
+  /** The nameplate power the spec's nameplate-relative limits and classes use (the device's, else the batch's). */
+  nameplate_w?: number | null;
 };
 
 export type FailReason = {
-  kind: 'below_min' | 'above_max' | 'not_measured' | 'not_measurable' | 'flag' | 'power_class';
+  kind: 'below_min' | 'above_max' | 'inside_guard_band' | 'no_nameplate' | 'not_measured' | 'not_measurable' | 'flag' | 'power_class';
   /** The parameter, or 'flags' for a flag. */
   param: ParamKey | 'flags';
   /** The measured value, the flag code, or null when not measured. */
@@ -37,6 +42,8 @@ export type DeviceEvaluation = {
   /** Every failed rule, in spec order (limits in parameter order, then power class, then flags). */
   reasons: FailReason[];
   power_class: string | null;
+  /** A judged value lies within its expanded uncertainty of a limit (lib/quality/decision-rules.ts). */
+  in_guard_band: boolean;
 };
 
 /** Reads a device value: null when absent; throws on NaN/±Infinity (never valid JSON, so a bug upstream). */
@@ -111,7 +118,13 @@ function assertDevice(device: DeviceRecord, where = 'device'): void {
 export function evaluateDevice(device: DeviceRecord, spec: Spec): DeviceEvaluation {
   assertDevice(device);
   const reasons: FailReason[] = [];
-  const limits = spec.limits ?? {};
+  const rule = ruleOf(spec);
+  const resolved = limitsFor(spec, device.nameplate_w);
+  const limits = resolved.limits;
+  let in_guard_band = false;
+  for (const key of resolved.missingNameplate) {
+    reasons.push({ kind: 'no_nameplate', param: key, value: null, limit: null, bound: null, message: `${labelOf(key)} has a limit relative to the nameplate, but neither the device nor the batch states a nameplate power` });
+  }
   for (const key of PARAM_KEYS) {
     const lim = limits[key];
     if (!lim) continue;
@@ -122,26 +135,10 @@ export function evaluateDevice(device: DeviceRecord, spec: Spec): DeviceEvaluati
       else reasons.push({ kind: 'not_measured', param: key, value: null, limit: null, bound: null, message: `${key} not measured` });
       continue;
     }
-    if (lim.min !== undefined && v < lim.min) {
-      reasons.push({
-        kind: 'below_min',
-        param: key,
-        value: v,
-        limit: 'min',
-        bound: lim.min,
-        message: `${key} ${formatWithUnit(v, key)} is below the minimum ${formatWithUnit(lim.min, key)}`,
-      });
-    }
-    if (lim.max !== undefined && v > lim.max) {
-      reasons.push({
-        kind: 'above_max',
-        param: key,
-        value: v,
-        limit: 'max',
-        bound: lim.max,
-        message: `${key} ${formatWithUnit(v, key)} is above the maximum ${formatWithUnit(lim.max, key)}`,
-      });
-    }
+    // The limit checks and their words under the spec's decision rule: lib/quality/decision-rules.ts.
+    const u = device.uncertainty?.[key];
+    reasons.push(...limitReasons(key, v, u, lim, rule, resolved.notes[key]));
+    if (insideGuardBand(v, u, lim)) in_guard_band = true;
   }
   let power_class: string | null = null;
   if (spec.power_classes) {
@@ -158,7 +155,8 @@ export function evaluateDevice(device: DeviceRecord, spec: Spec): DeviceEvaluati
         message: why ? `No power class, ${labelOf(basis)} not measurable: ${why}` : `${basis} not measured: no power class`,
       });
     } else {
-      const pc = powerClassOf(p, spec.power_classes);
+      const classes = resolvePowerClasses(spec.power_classes, device.nameplate_w);
+      const pc = classes ? powerClassOf(p, classes) : { label: null, problem: 'no power class: the classes are around the nameplate, and neither the device nor the batch states a nameplate power' };
       power_class = pc.label;
       if (pc.problem) {
         reasons.push({ kind: 'power_class', param: basis, value: p, limit: null, bound: null, message: pc.problem });
@@ -171,12 +169,14 @@ export function evaluateDevice(device: DeviceRecord, spec: Spec): DeviceEvaluati
       reasons.push({ kind: 'flag', param: 'flags', value: flag, limit: null, bound: null, message: `flag "${flag}" is raised and fails this spec` });
     }
   }
-  return { device_id: device.device_id, result: reasons.length ? 'fail' : 'pass', reasons, power_class };
+  return { device_id: device.device_id, result: reasons.length ? 'fail' : 'pass', reasons, power_class, in_guard_band };
 }
 
 export type BatchDeviceEvaluation = DeviceEvaluation & {
   values: Partial<Record<ParamKey, number | null>>;
   flags: string[];
+  /** Expanded uncertainty (k = 2) of the figures that carry one, in their units. */
+  uncertainty: Partial<Record<ParamKey, number>>;
   /** Modified z-score per outlier-checked parameter (null when the device lacks the value). */
   robust_z: Partial<Record<ParamKey, number | null>>;
   /** Parameters on which the device is an outlier (|z| > 3.5). */
@@ -188,6 +188,9 @@ export type BatchEvaluation = {
   specName: string;
   devices: BatchDeviceEvaluation[];
   counts: { total: number; pass: number; fail: number; outliers: number };
+  /** The spec's decision rule and the devices with a value within its uncertainty of a limit. */
+  decision_rule: DecisionRule;
+  inside_guard_band: number;
   /** Devices per power class label; devices without a class are not counted here. */
   power_class_counts: Record<string, number>;
   /** Parameters checked for outliers. */
@@ -241,7 +244,7 @@ export function evaluateBatch(devices: readonly DeviceRecord[], spec: Spec, opti
   const evaluated: BatchDeviceEvaluation[] = devices.map((d) => {
     const e = evaluateDevice(d, spec);
     // Written out rather than spread: this runs for every device of a 10,000-curve comparison.
-    return { device_id: e.device_id, result: e.result, reasons: e.reasons, power_class: e.power_class, values: Object.assign({}, d.values), flags: d.flags ? d.flags.slice() : [], robust_z: {}, outlier_params: [], outlier: false };
+    return { device_id: e.device_id, result: e.result, reasons: e.reasons, power_class: e.power_class, in_guard_band: e.in_guard_band, values: Object.assign({}, d.values), flags: d.flags ? d.flags.slice() : [], uncertainty: Object.assign({}, d.uncertainty), robust_z: {}, outlier_params: [], outlier: false };
   });
 
   for (const key of outlier_params) {
@@ -276,6 +279,8 @@ export function evaluateBatch(devices: readonly DeviceRecord[], spec: Spec, opti
     specName: spec.name,
     devices: evaluated,
     counts: { total: evaluated.length, pass, fail: evaluated.length - pass, outliers: evaluated.filter((e) => e.outlier).length },
+    decision_rule: ruleOf(spec),
+    inside_guard_band: evaluated.filter((e) => e.in_guard_band).length,
     power_class_counts,
     outlier_params,
     stats,

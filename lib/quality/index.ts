@@ -8,3 +8,5 @@ export * from '@/lib/quality/spec';
 export * from '@/lib/quality/evaluate';
 export * from '@/lib/quality/csv';
 export * from '@/lib/quality/compare-table';
+export * from '@/lib/quality/uncertainty';
+export * from '@/lib/quality/decision-rules';

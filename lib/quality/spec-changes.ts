@@ -19,5 +19,7 @@ export function describeChanges(before: Spec | null, after: Spec): string[] {
   const fb = [...(after.fail_flags ?? [])].sort().join(', ');
   if (fa !== fb) out.push(`failing flags: ${fa || 'none'} → ${fb || 'none'}`);
   if ((before.notes ?? '') !== (after.notes ?? '')) out.push('notes changed');
+  if ((before.decision_rule ?? 'simple') !== (after.decision_rule ?? 'simple')) out.push(`decision rule: ${before.decision_rule ?? 'simple'} → ${after.decision_rule ?? 'simple'}`);
+  if (JSON.stringify(before.nameplate_limits ?? null) !== JSON.stringify(after.nameplate_limits ?? null)) out.push('limits relative to the nameplate changed');
   return out.length ? out : ['saved without changes'];
 }

@@ -49,7 +49,52 @@ const binSchema = z.strictObject(
   unknownKeys('bin field', ['label', 'nominal_w', 'min_w', 'max_w']),
 );
 
-const POWER_FIELDS = ['basis', 'step_w', 'tolerance', 'lowest_w', 'highest_w', 'label_prefix', 'bins'] as const;
+const POWER_FIELDS = ['basis', 'step_w', 'tolerance', 'lowest_w', 'highest_w', 'label_prefix', 'bins', 'nameplate_bins'] as const;
+
+const NAMEPLATE_BIN_FIELDS = ['label', 'from_w', 'to_w', 'from_pct', 'to_pct'] as const;
+
+/** A power class around the nameplate: from ≤ Pmax − nameplate < to, in W or in % of the nameplate (lib/quality/decision-rules.ts). */
+const nameplateBinSchema = z
+  .strictObject(
+    {
+      label: z.string().trim().min(1, 'a power class needs a label').max(40).refine(...noControl('label')),
+      from_w: finite('from_w').optional(),
+      to_w: finite('to_w').optional(),
+      from_pct: finite('from_pct').min(-100, 'from_pct must be ≥ −100 %').optional(),
+      to_pct: finite('to_pct').min(-100, 'to_pct must be ≥ −100 %').optional(),
+    },
+    unknownKeys('nameplate bin field', NAMEPLATE_BIN_FIELDS),
+  )
+  .superRefine((b, ctx) => {
+    const from = b.from_w ?? b.from_pct;
+    const to = b.to_w ?? b.to_pct;
+    if ((b.from_w !== undefined) === (b.from_pct !== undefined)) ctx.addIssue({ code: 'custom', path: ['from_w'], message: `bin "${b.label}": give from_w or from_pct (one of them)` });
+    if ((b.to_w !== undefined) === (b.to_pct !== undefined)) ctx.addIssue({ code: 'custom', path: ['to_w'], message: `bin "${b.label}": give to_w or to_pct (one of them)` });
+    if ((b.from_w !== undefined) !== (b.to_w !== undefined) && from !== undefined && to !== undefined) {
+      ctx.addIssue({ code: 'custom', path: ['to_w'], message: `bin "${b.label}": give both ends in W or both in %` });
+    } else if (from !== undefined && to !== undefined && from >= to) {
+      ctx.addIssue({ code: 'custom', path: ['to_w'], message: `bin "${b.label}": its lower end (${from}) must be below its upper end (${to})` });
+    }
+  });
+
+const NAMEPLATE_LIMIT_FIELDS = ['below_w', 'above_w', 'below_pct', 'above_pct'] as const;
+
+/** A limit relative to the nameplate: at least nameplate − below, at most nameplate + above, each in W or %. */
+export const nameplateLimitSchema = z
+  .strictObject(
+    {
+      below_w: finite('below_w').optional(),
+      above_w: finite('above_w').optional(),
+      below_pct: finite('below_pct').max(100, 'below_pct must be at most 100 %').optional(),
+      above_pct: finite('above_pct').optional(),
+    },
+    unknownKeys('nameplate limit field', NAMEPLATE_LIMIT_FIELDS),
+  )
+  .superRefine((l, ctx) => {
+    if (l.below_w !== undefined && l.below_pct !== undefined) ctx.addIssue({ code: 'custom', path: ['below_w'], message: 'give below_w or below_pct, not both' });
+    if (l.above_w !== undefined && l.above_pct !== undefined) ctx.addIssue({ code: 'custom', path: ['above_w'], message: 'give above_w or above_pct, not both' });
+    if (NAMEPLATE_LIMIT_FIELDS.every((k) => l[k] === undefined)) ctx.addIssue({ code: 'custom', path: [], message: 'give below_w, below_pct, above_w or above_pct' });
+  });
 
 /**
  * Power classes, one of two forms:
@@ -77,6 +122,7 @@ export const powerClassesSchema = z
       highest_w: finite('highest_w').positive('highest_w must be above 0 W').optional(),
       label_prefix: z.string().max(8, 'label_prefix is at most 8 characters').refine(...noControl('label_prefix')).optional(),
       bins: z.array(binSchema).min(1, 'bins needs at least one class').optional(),
+      nameplate_bins: z.array(nameplateBinSchema).min(1, 'nameplate_bins needs at least one class').optional(),
     },
     unknownKeys('power-class field', POWER_FIELDS),
   )
@@ -84,6 +130,18 @@ export const powerClassesSchema = z
     const stepFields = (['step_w', 'tolerance', 'lowest_w', 'highest_w', 'label_prefix'] as const).filter(
       (k) => pc[k] !== undefined,
     );
+    if (pc.nameplate_bins) {
+      const other = [...stepFields, ...(pc.bins ? ['bins'] : [])];
+      if (other.length) {
+        ctx.addIssue({ code: 'custom', path: [other[0]], message: `give either nameplate_bins or other power classes, not both (${other.join(', ')} with nameplate_bins)` });
+      }
+      const labels = new Set<string>();
+      pc.nameplate_bins.forEach((b, i) => {
+        if (labels.has(b.label)) ctx.addIssue({ code: 'custom', path: ['nameplate_bins', i, 'label'], message: `bin label "${b.label}" is used twice` });
+        labels.add(b.label);
+      });
+      return;
+    }
     if (pc.bins) {
       if (stepFields.length) {
         ctx.addIssue({
@@ -139,7 +197,7 @@ export const powerClassesSchema = z
     }
   });
 
-const SPEC_FIELDS = ['name', 'limits', 'power_classes', 'fail_flags', 'notes'] as const;
+const SPEC_FIELDS = ['name', 'limits', 'power_classes', 'fail_flags', 'notes', 'decision_rule', 'nameplate_limits'] as const;
 
 /** Input of an acceptance specification (form and API body alike). */
 export const specInputSchema = z.strictObject(
@@ -152,6 +210,12 @@ export const specInputSchema = z.strictObject(
       .max(100)
       .optional(),
     notes: z.string().max(4000, 'notes are at most 4000 characters').refine(...noControl('notes', true)).optional(),
+    /** ILAC-G8 decision rule (lib/quality/decision-rules.ts); "simple" when absent. */
+    decision_rule: z.enum(['simple', 'guard_band'], { error: 'decision_rule must be "simple" or "guard_band"' }).optional(),
+    /** Limits of Pmax and STC Pmax relative to the nameplate (the device's, else the batch's). */
+    nameplate_limits: z
+      .strictObject({ pmp_w: nameplateLimitSchema.optional(), stc_pmp_w: nameplateLimitSchema.optional() }, unknownKeys('nameplate limit parameter', ['pmp_w', 'stc_pmp_w']))
+      .optional(),
   },
   unknownKeys('spec field', SPEC_FIELDS),
 );

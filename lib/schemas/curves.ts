@@ -103,6 +103,8 @@ export const batchFieldsSchema = z.object({
   gamma_pct_per_k: optNumberOrNull(BATCH_STC_LABELS.gamma_pct_per_k, { min: -2, max: 0 }),
   rs_ohm: optNumberOrNull(BATCH_STC_LABELS.rs_ohm, { min: 0, max: 1000 }),
   kappa_ohm_per_k: optNumberOrNull(BATCH_STC_LABELS.kappa_ohm_per_k, { min: -1, max: 1 }),
+  /** The measurement setup whose uncertainty budget the figures carry (null: the organisation's default). */
+  setup_id: z.string().trim().min(1, 'setup_id: choose a measurement setup').max(64).nullable().optional(),
   description: optSafeText('Description', { max: 2000, multiline: true }),
 });
 

@@ -54,6 +54,8 @@ export const batchSchema = z.strictObject({
   gamma_pct_per_k: num,
   rs_ohm: num,
   kappa_ohm_per_k: num,
+  /** The measurement setup named by the batch; null: the organisation's default setup. */
+  setup_id: z.string().nullable(),
   description: z.string().nullable(),
   archived: z.boolean(),
   state: z.enum(['open', 'in_review', 'released', 'on_hold']),
@@ -117,7 +119,14 @@ export const curveOriginalSchema = z
     url: z.string(),
   })
   .nullable();
-export const curveDetailSchema = curveBodySchema.extend({ batch: z.strictObject({ id: z.string(), name: z.string(), state: z.string() }), original: curveOriginalSchema });
+export const curveDetailSchema = curveBodySchema.extend({
+  batch: z.strictObject({ id: z.string(), name: z.string(), state: z.string() }),
+  original: curveOriginalSchema,
+  /** Expanded uncertainties (k = 2) of the figures by key (u_pmp_w, u_isc_a, u_voc_v, u_stc_pmp_w); empty without a setup. */
+  uncertainty: z.record(z.string(), z.number()),
+  /** The batch's measurement setup and its budget under the batch's coefficients, or null. */
+  setup: z.lazy(() => setupRefSchema).nullable(),
+});
 /** POST /api/batches/:id/originals/verify: every kept original read back and hashed; what differs from the upload's record. */
 export const originalsCheckSchema = z.strictObject({
   batch_id: z.string(),
@@ -153,6 +162,32 @@ export const uploadResultSchema = z.union([
 ]);
 export const uploadAnswerSchema = z.strictObject({ results: z.array(uploadResultSchema), accepted: z.number(), rejected: z.number() });
 
+// ---------------------------------------------------------------- measurement setups
+export const setupComponentSchema = z.strictObject({
+  name: z.string(),
+  acts_on: z.enum(['pmp', 'isc', 'voc', 'irradiance', 'temperature']),
+  value: z.number(),
+  unit: z.enum(['%', 'K']),
+  distribution: z.enum(['normal', 'rectangular']),
+  k: z.number().optional(),
+});
+export const setupSchema = z.strictObject({
+  id: z.string(),
+  name: z.string(),
+  is_default: z.boolean(),
+  components: z.array(setupComponentSchema),
+  /** Expanded (k = 2) relative uncertainties, %, with typical crystalline-silicon temperature coefficients. */
+  u_pmp_pct_k2: z.number(),
+  u_isc_pct_k2: z.number(),
+  u_voc_pct_k2: z.number(),
+  created_at: stamp,
+  updated_at: stamp,
+});
+export const setupListSchema = z.strictObject({ setups: z.array(setupSchema) });
+/** A batch's setup as its evaluation names it, with the budget under the batch's own coefficients. */
+export const setupRefSchema = z.strictObject({ id: z.string(), name: z.string(), u_pmp_pct_k2: z.number(), u_isc_pct_k2: z.number(), u_voc_pct_k2: z.number() });
+export type SetupOut = z.input<typeof setupSchema>;
+
 // ---------------------------------------------------------------- specs, evaluations, reviews, comparisons
 const specVersionSchema = z.strictObject({ id: z.string(), version: z.number(), changes: z.array(z.string()), created_at: stamp, by: z.string().nullable() });
 export const specJsonSchema = z.strictObject({
@@ -167,6 +202,8 @@ export const specJsonSchema = z.strictObject({
   power_classes: engine<NonNullable<Spec['power_classes']>>().optional(),
   fail_flags: z.array(z.string()).optional(),
   notes: z.string().optional(),
+  decision_rule: z.enum(['simple', 'guard_band']).optional(),
+  nameplate_limits: engine<NonNullable<Spec['nameplate_limits']>>().optional(),
   versions: z.array(specVersionSchema).optional(),
 });
 export const specListSchema = z.strictObject({ specs: z.array(specJsonSchema) });
@@ -183,6 +220,10 @@ export const deviceEvalSchema = z.strictObject({
   robust_z: z.record(z.string(), num),
   values: z.record(z.string(), num),
   flags: z.array(z.string()),
+  /** A value within its expanded uncertainty of a limit (lib/quality/decision-rules.ts). */
+  in_guard_band: z.boolean(),
+  /** Expanded uncertainties (k = 2) by key: u_pmp_w, u_isc_a, u_voc_v, u_stc_pmp_w. */
+  uncertainty: z.record(z.string(), z.number()),
 });
 export const evaluationSchema = z.strictObject({
   batch: batchSchema,
@@ -191,6 +232,11 @@ export const evaluationSchema = z.strictObject({
   power_class_counts: z.record(z.string(), z.number()),
   stats: z.record(z.string(), describeStatsSchema.nullable()),
   devices: z.array(deviceEvalSchema),
+  /** The spec's decision rule and how many devices lie within their uncertainty of a limit. */
+  decision_rule: z.enum(['simple', 'guard_band']),
+  inside_guard_band: z.number(),
+  /** The setup whose budget the figures carry (null: none) and its expanded relative uncertainties. */
+  setup: setupRefSchema.nullable(),
 });
 
 export const reviewSchema = z.strictObject({
@@ -246,7 +292,7 @@ export const differenceSchema = z
   .catchall(z.union([z.number(), z.string(), z.boolean()]));
 export const comparisonWireSchema = z.strictObject({
   batches: z.array(z.strictObject({ id: z.string(), name: z.string(), state: z.string(), count: z.number() })),
-  spec: z.strictObject({ id: z.string(), name: z.string(), version: z.number() }).nullable(),
+  spec: z.strictObject({ id: z.string(), name: z.string(), version: z.number(), decision_rule: z.enum(['simple', 'guard_band']).optional() }).nullable(),
   param: z.string(),
   stats: z.record(z.string(), z.record(z.string(), describeStatsSchema.nullable())),
   counts: z.record(z.string(), countsSchema.nullable()),
@@ -355,3 +401,7 @@ export const characterisationAnswerSchema = z.strictObject({
   reason: z.string().nullable(),
 });
 export type CharacterisationAnswer = z.infer<typeof characterisationAnswerSchema>;
+
+export type Setup = z.infer<typeof setupSchema>;
+export type SetupList = z.infer<typeof setupListSchema>;
+export type SetupComponent = z.infer<typeof setupComponentSchema>;

@@ -111,7 +111,7 @@ export function batchReads(db: Db, answers = new AnswerCache()) {
         .offset((q.page - 1) * q.page_size);
       const fits = await fitsFor(db, rows.map((x) => x.id), true, false);
       const spec = await batchSpec(db, organizationId, b.id);
-      const verdicts = await curveVerdicts(db, spec, rows);
+      const verdicts = await curveVerdicts(db, spec, rows, b);
       return {
         curves: rows.map((x) => ({ ...curveJson(x, fits.get(x.id) ?? [], false), ...verdicts.get(x.id)! })),
         total,
@@ -140,7 +140,7 @@ export function batchReads(db: Db, answers = new AnswerCache()) {
         : [];
       const thin = (arr: number[], k: number) => arr.filter((_, idx) => idx % k === 0 || idx === arr.length - 1);
       const spec = await batchSpec(db, organizationId, b.id);
-      const verdicts = await curveVerdicts(db, spec, rows);
+      const verdicts = await curveVerdicts(db, spec, rows, b);
       return {
         total: ids.length,
         sampled: rows.length,

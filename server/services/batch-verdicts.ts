@@ -16,6 +16,8 @@ import type { Severity } from '@/lib/quality/severity';
 import type { Spec } from '@/lib/quality/spec';
 import { deviceRecordsOfCurves } from '@/server/services/quality';
 import { loadSpec } from '@/server/services/specs';
+import type { BatchRow } from '@/server/services/batches';
+import { judgedDevices } from '@/server/services/setups';
 
 export type BatchSpec = { spec: Spec; info: { id: string; name: string; version: number } };
 export type Verdict = { severity: Severity; reasons: string[] };
@@ -34,10 +36,12 @@ export async function batchSpec(db: Db, organizationId: string, batchId: string)
 }
 
 /** Each curve's verdict, by curve id: the spec's (when given) and the flags' severities combined. */
-export async function curveVerdicts(db: Db, spec: BatchSpec | null, curves: readonly { id: string; flags: readonly { severity: string }[] }[]): Promise<Map<string, Verdict>> {
+export async function curveVerdicts(db: Db, spec: BatchSpec | null, curves: readonly { id: string; flags: readonly { severity: string }[] }[], b?: BatchRow): Promise<Map<string, Verdict>> {
   const judged = new Map<string, DeviceEvaluation>();
   if (spec && curves.length) {
-    for (const d of await deviceRecordsOfCurves(db, curves.map((c) => c.id))) judged.set(d.curve_id, evaluateDevice(d, spec.spec));
+    const records = await deviceRecordsOfCurves(db, curves.map((c) => c.id));
+    // With the batch's setup uncertainty and nameplate, so the pages say what the review says.
+    for (const d of b ? await judgedDevices(db, b, records) : records) judged.set(d.curve_id, evaluateDevice(d, spec.spec));
   }
   return new Map(
     curves.map((c) => {

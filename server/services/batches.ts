@@ -11,6 +11,7 @@ import type { batchCreateSchema, batchUpdateSchema } from '@/lib/schemas/curves'
 import type { BatchOut } from '@/lib/schemas/responses';
 import { HttpError, notFound } from '@/server/errors';
 import { touchBatch } from '@/server/services/answer-cache';
+import { assertSetupOf } from '@/server/services/setups';
 
 export type BatchRow = typeof batch.$inferSelect;
 
@@ -53,6 +54,7 @@ export function batchJson(b: BatchRow, extra: Partial<Pick<BatchOut, 'curve_coun
     gamma_pct_per_k: b.gamma_pct_per_k,
     rs_ohm: b.rs_ohm,
     kappa_ohm_per_k: b.kappa_ohm_per_k,
+    setup_id: b.setup_id,
     description: b.description,
     archived: b.archived,
     state: b.state as BatchOut['state'],
@@ -74,6 +76,7 @@ export function batchCoefficients(b: BatchRow): StcCoefficients {
 
 /** Creates a batch in the caller's organisation. */
 export async function createBatch(db: Db, who: { organizationId: string; userId: string }, input: ReturnType<typeof batchCreateSchema.parse>) {
+  await assertSetupOf(db, who.organizationId, input.setup_id);
   const [b] = await db.insert(batch).values({ id: crypto.randomUUID(), organizationId: who.organizationId, createdBy: who.userId, ...input }).returning();
   return batchJson(b);
 }
@@ -82,6 +85,7 @@ export async function createBatch(db: Db, who: { organizationId: string; userId:
 export async function updateBatch(db: Db, organizationId: string, id: string, input: ReturnType<typeof batchUpdateSchema.parse>) {
   const b = await loadBatch(db, organizationId, id);
   if (b.state === 'released') throw new HttpError(409, 'batch_released', 'This batch is released and read-only.');
+  await assertSetupOf(db, organizationId, input.setup_id);
   const changes = Object.fromEntries(Object.entries(input).filter(([, v]) => v !== undefined));
   const [u] = await touchBatch(db, b.id, changes);
   return batchJson(u);

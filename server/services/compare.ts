@@ -24,6 +24,10 @@ import { AnswerCache, batchKey } from '@/server/services/answer-cache';
 import { deviceRecords } from '@/server/services/quality';
 import type { DeviceRow } from '@/server/services/quality';
 import { loadSpec } from '@/server/services/specs';
+import { judgedDevices } from '@/server/services/setups';
+import type { BatchRow } from '@/server/services/batches';
+import { ruleOf } from '@/lib/quality/decision-rules';
+import { uncertaintyByKey } from '@/lib/quality/uncertainty';
 
 type CompareQuery = ReturnType<typeof compareQuerySchema.parse>;
 
@@ -42,10 +46,10 @@ function batchPart(list: DeviceRow[], spec: Spec | null): BatchPart {
   if (spec) {
     // Outliers depend on the parameter chosen: marked per request with robustZOn and kept in the part.
     const e = evaluateBatch(list, spec, { outlier_params: [] });
-    const rows: CompareRowInput[] = e.devices.map((d, k) => ({ curve_id: list[k].curve_id, device_id: d.device_id, cells: list[k].cells, values: d.values, flags: d.flags, result: d.result, reasons: d.reasons.map((x) => x.message), power_class: d.power_class }));
+    const rows: CompareRowInput[] = e.devices.map((d, k) => ({ curve_id: list[k].curve_id, device_id: d.device_id, cells: list[k].cells, values: { ...d.values, ...uncertaintyByKey(d.uncertainty) }, flags: d.flags, result: d.result, reasons: d.reasons.map((x) => x.message), power_class: d.power_class }));
     return { json: Buffer.from(JSON.stringify(columnsOfRows(rows))), stats: e.stats, counts: { total: e.counts.total, pass: e.counts.pass, fail: e.counts.fail }, outliers: { list, byParam: new Map() } };
   }
-  const rows: CompareRowInput[] = list.map((d) => ({ curve_id: d.curve_id, device_id: d.device_id, cells: d.cells, values: d.values, flags: d.flags, result: null, reasons: [], power_class: null }));
+  const rows: CompareRowInput[] = list.map((d) => ({ curve_id: d.curve_id, device_id: d.device_id, cells: d.cells, values: { ...d.values, ...uncertaintyByKey(d.uncertainty) }, flags: d.flags, result: null, reasons: [], power_class: null }));
   const columns = columnsOfRows(rows);
   const stats: Partial<Record<ParamKey, Description | null>> = {};
   for (const k of PARAM_KEYS) {
@@ -59,9 +63,10 @@ function batchPart(list: DeviceRow[], spec: Spec | null): BatchPart {
 /** The comparison with its caches (one set per app). */
 export function comparisons(db: Db) {
   // Device records per batch revision; concurrent misses of one batch read it once.
-  const records = new LRUCache<string, DeviceRow[], string>({
+  // Each with its figures' expanded uncertainty from the batch's setup and the batch's nameplate (server/services/setups.ts).
+  const records = new LRUCache<string, DeviceRow[], BatchRow>({
     max: 40,
-    fetchMethod: (_key, _stale, { context: batchId }) => deviceRecords(db, [batchId]),
+    fetchMethod: async (_key, _stale, { context: b }) => judgedDevices(db, b, await deviceRecords(db, [b.id])),
   });
   // Each batch's part per (batch revision, spec version); computed synchronously, so memo suffices.
   const parts = new LRUCache<string, BatchPart, { list: DeviceRow[]; spec: Spec | null }>({
@@ -84,13 +89,13 @@ export function comparisons(db: Db) {
     if (q.spec) {
       const s = await loadSpec(db, organizationId, q.spec);
       spec = s.spec;
-      specInfo = { id: s.row.id, name: s.row.name, version: s.row.version };
+      specInfo = { id: s.row.id, name: s.row.name, version: s.row.version, decision_rule: ruleOf(s.spec) };
     }
 
     // One answer per state of the chosen batches (their revisions), spec version and parameter.
     const key = `${found.map((b) => batchKey(b, '')).join(',')}|${specInfo?.id ?? ''}|${param}`;
     return answers.get(key, async () => {
-      const lists = await Promise.all(found.map(async (b) => (await records.fetch(batchKey(b, ''), { context: b.id })) ?? []));
+      const lists = await Promise.all(found.map(async (b) => (await records.fetch(batchKey(b, ''), { context: b })) ?? []));
       const byBatch = new Map(found.map((b, k) => [b.id, lists[k]]));
       const chosen = found.map((b, k) => parts.memo(batchKey(b, specInfo?.id ?? ''), { context: { list: lists[k], spec } }));
 

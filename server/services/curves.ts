@@ -2,6 +2,8 @@
  * Storing, reading and refitting curves. Every curve is written with its fits in one
  * transaction, so a reader (or a restart after a crash) sees either the whole curve or nothing of it.
  */
+import { deviceUncertainty, uncertaintyByKey } from '@/lib/quality/uncertainty';
+import { batchSetupRef } from '@/server/services/setups';
 import { and, eq, getTableColumns, inArray, sql } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { batch, curve, fit } from '@/db/schema';
@@ -222,8 +224,11 @@ export async function loadCurve(db: Db, organizationId: string, id: string): Pro
 export async function curveDetail(db: Db, organizationId: string, id: string) {
   const row = await loadCurve(db, organizationId, id);
   const fits = (await fitsFor(db, [row.id], false)).get(row.id) ?? [];
-  const [b] = await db.select({ id: batch.id, name: batch.name, state: batch.state }).from(batch).where(eq(batch.id, row.batchId));
-  return { ...curveJson(row, fits, true), batch: b, original: await originalInfo(db, row) };
+  const [b] = await db.select().from(batch).where(eq(batch.id, row.batchId));
+  // Each figure's expanded uncertainty (k = 2) from the batch's setup (server/services/setups.ts).
+  const setup = await batchSetupRef(db, b);
+  const uncertainty = uncertaintyByKey(deviceUncertainty({ pmp_w: row.pmp_w, isc_a: row.isc_a, voc_v: row.voc_v, stc_pmp_w: row.stc_pmp_w }, setup));
+  return { ...curveJson(row, fits, true), batch: { id: b.id, name: b.name, state: b.state }, original: await originalInfo(db, row), uncertainty, setup };
 }
 
 /**

@@ -3,6 +3,7 @@
  * the SHA-256 of its data, the pass/fail CSV as served), separation of duties, and reopening a
  * released batch with a written reason. The decision itself is `decideBatch` in reviews.ts.
  */
+import { uncertaintyByKey } from '@/lib/quality/uncertainty';
 import { createHash } from 'node:crypto';
 import { and, asc, count, desc, eq, inArray } from 'drizzle-orm';
 import type { Db } from '@/db/client';
@@ -68,6 +69,9 @@ export async function frozenDevices(db: Db, batchId: string, evaluation: BatchEv
       power_class: d.power_class,
       outlier: d.outlier,
       figures: Object.fromEntries(DEVICE_FIGURES.map((key) => [key, d.values[key] ?? null])),
+      // The expanded uncertainties (k = 2) the figures carried when judged, and whether a value lay within one of a limit.
+      uncertainty: uncertaintyByKey(d.uncertainty),
+      in_guard_band: d.in_guard_band,
       points_sha256: c ? pointsSha256(c.v, c.i) : null,
       file_sha256: c?.file ?? null,
     };

@@ -18,7 +18,10 @@ import { batchJson, loadBatch } from '@/server/services/batches';
 import type { BatchRow } from '@/server/services/batches';
 import { deviceRecords } from '@/server/services/quality';
 import { currentRevision, frozenDevices, latestRelease, releaseCheck, releaseIdsByReview, releasesOf, sha256 } from '@/server/services/releases';
+import { batchSetupRef, judgedDevices } from '@/server/services/setups';
 import { loadSpec } from '@/server/services/specs';
+import { uncertaintyByKey } from '@/lib/quality/uncertainty';
+import { DECISION_RULE_WORDS, type DecisionRule } from '@/lib/quality/decision-rules';
 import type { ReviewListOut } from '@/lib/schemas/responses';
 
 /** The parameters whose outliers an evaluation marks. */
@@ -27,9 +30,10 @@ const OUTLIER_PARAMS = ['pmp_w', 'voc_v', 'isc_a', 'ff', 'rs_ohm'] as const;
 const EXPORT_PARAMS = ['isc_a', 'voc_v', 'pmp_w', 'imp_a', 'vmp_v', 'ff', 'efficiency', 'stc_pmp_w', 'n', 'rs_ohm', 'rsh_ohm', 'j0_a_cm2'] as const;
 
 /** Judges a batch against a spec version: per device pass/fail with reasons, classes, outliers, stats. */
-async function evaluate(db: Db, batchId: string, organizationId: string, specId: string) {
+async function evaluate(db: Db, b: BatchRow, organizationId: string, specId: string) {
   const { row, spec } = await loadSpec(db, organizationId, specId);
-  const devices = await deviceRecords(db, [batchId]);
+  // Each figure with the batch setup's expanded uncertainty and the batch's nameplate (server/services/setups.ts).
+  const devices = await judgedDevices(db, b, await deviceRecords(db, [b.id]));
   const evaluation = evaluateBatch(devices, spec, { outlier_params: [...OUTLIER_PARAMS] });
   return { specRow: row, evaluation, devices };
 }
@@ -50,14 +54,17 @@ async function specFor(db: Db, batchId: string, asked: string | undefined): Prom
 /** Every device of the batch judged against the spec version (default: the last decision's). */
 export async function batchEvaluation(db: Db, organizationId: string, batchId: string, specId?: string) {
   const b = await loadBatch(db, organizationId, batchId);
-  const { specRow, evaluation, devices } = await evaluate(db, b.id, organizationId, await specFor(db, b.id, specId));
+  const { specRow, evaluation, devices } = await evaluate(db, b, organizationId, await specFor(db, b.id, specId));
   return {
     batch: batchJson(b),
     spec: { id: specRow.id, name: specRow.name, version: specRow.version, family_id: specRow.family_id },
     counts: counts(evaluation),
     power_class_counts: evaluation.power_class_counts,
     stats: evaluation.stats,
-    devices: evaluation.devices.map((d, k) => ({ ...d, curve_id: devices[k].curve_id })),
+    devices: evaluation.devices.map((d, k) => ({ ...d, uncertainty: uncertaintyByKey(d.uncertainty), curve_id: devices[k].curve_id })),
+    decision_rule: evaluation.decision_rule,
+    inside_guard_band: evaluation.inside_guard_band,
+    setup: await batchSetupRef(db, b),
   };
 }
 
@@ -83,7 +90,7 @@ export async function passFailExport(db: Db, organizationId: string, batchId: st
     const release = await latestRelease(db, b.id);
     if (release && (!specId || specId === release.specId)) return { fileName: release.csvFileName, text: release.csv };
   }
-  const { specRow, evaluation } = await evaluate(db, b.id, organizationId, await specFor(db, b.id, specId));
+  const { specRow, evaluation } = await evaluate(db, b, organizationId, await specFor(db, b.id, specId));
   return passFailFile(b, specRow, evaluation, b.state, new Date());
 }
 
@@ -141,6 +148,7 @@ export function decisionMail(
   spec: { name: string; version: number },
   tally: ReturnType<typeof counts>,
   comment: string,
+  rule: DecisionRule = 'simple',
   link = '',
   report?: { fileName: string; bytes: Buffer },
 ): OutgoingMail {
@@ -155,6 +163,7 @@ export function decisionMail(
       '',
       `${by.user.name} ${done} the batch “${b.name}”.`,
       `Judged against ${spec.name} v${spec.version}: ${tally.pass} pass, ${tally.fail} fail, ${tally.outliers} outliers of ${tally.total}.`,
+      `Decision rule: ${DECISION_RULE_WORDS[rule]}.`,
       comment ? `Comment: ${comment}` : '',
       state === 'released' ? 'The pass/fail list (CSV) of this release is on the batch page under “Acceptance and release”.' : '',
       report ? `The release report (PDF) is attached: ${report.fileName}.` : '',
@@ -211,7 +220,7 @@ export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
     const check = await releaseCheck(db, by.organization.id, b.id, by.user.id);
     if (!check.allowed) throw new HttpError(403, check.code, check.message);
   }
-  const { specRow, evaluation, devices } = await evaluate(db, b.id, by.organization.id, body.spec_id);
+  const { specRow, evaluation, devices } = await evaluate(db, b, by.organization.id, body.spec_id);
   const unfitted = devices.filter((d) => !d.fitted);
   if (releasing && unfitted.length) {
     throw new HttpError(409, 'unfitted_curves', `${unfitted.length} curve(s) have no converged fit; the batch cannot be released.`);
@@ -266,7 +275,7 @@ export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
   if (submission) {
     // A release's mail carries its report, drawn from the release record just written.
     const report = releasing ? await (await import('@/server/services/report')).batchReportPdf(db, by.organization.id, b.id) : undefined;
-    await mailer.send(decisionMail(submission, b, by, state, specRow, tally, body.comment, batchLink(baseUrl, b.id), report));
+    await mailer.send(decisionMail(submission, b, by, state, specRow, tally, body.comment, evaluation.decision_rule, batchLink(baseUrl, b.id), report));
   }
   const [after] = await db.select().from(batch).where(eq(batch.id, b.id));
   return { batch: batchJson(after), counts: tally, spec: { id: specRow.id, version: specRow.version, name: specRow.name } };

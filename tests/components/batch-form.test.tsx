@@ -97,7 +97,7 @@ describe('BatchForm', () => {
   it('editing: starts from the batch, shows the server error under the form, and is busy while saving', () => {
     const initial: Batch = {
       id: 'b1', name: 'Supplier A trial', product_type: null, supplier: 'A', line: null, lot: null, batch_date: null,
-      cells: 72, area_cm2: 25_000, nameplate_w: 550, description: null, archived: false, state: 'open',
+      cells: 72, area_cm2: 25_000, nameplate_w: 550, setup_id: null, description: null, archived: false, state: 'open',
       irradiance_w_m2: null, alpha_pct_per_k: 0.05, beta_pct_per_k: -0.29, gamma_pct_per_k: null, rs_ohm: null, kappa_ohm_per_k: null,
       created_at: '2025-11-14T08:00:00Z', updated_at: '2025-11-14T08:00:00Z',
     };

@@ -14,6 +14,7 @@ import { physicsKeys } from '@/lib/api/physics';
 import { qualityKeys, specKeys, useComparison, useDecision, useReopen, useSaveSpec, useSubmitBatch } from '@/lib/api/quality';
 import { sessionKeys, useRequestPasswordReset, useSignIn } from '@/lib/api/session';
 import { stationKeys, useCreateStation, useRevokeStation } from '@/lib/api/stations';
+import { setupKeys, useSaveSetup } from '@/lib/api/setups';
 import { useCancelInvitation, useChangeRole, useDecideRequest, useInvite, useRemoveMember, useSetJoinByDomain, useSetMemberActive, userKeys } from '@/lib/api/users';
 
 const page = { page: 1, page_size: 50, sort: 'device_id', dir: 'asc', q: '' } as const;
@@ -38,6 +39,7 @@ const cached = {
   material: physicsKeys.material(300),
   specList: specKeys.list(),
   spec: specKeys.detail('s1'),
+  setups: setupKeys.list(),
   outbox: outboxKeys.list(),
   users: userKeys.list(),
   invitations: userKeys.invitations(),
@@ -184,6 +186,13 @@ const cases: Case[] = [
     stale: ['specList', 'spec'],
     // A save adds a version with a new id; the answers cached under an existing spec id stay true.
     fresh: ['b1Evaluation', 'compareB1B2', 'batchList'],
+  },
+  {
+    what: 'editing a measurement setup',
+    run: (wrapper) => mutate(() => useSaveSetup(), { id: 'm1', name: 'Line 1 tester', components: [] }, wrapper),
+    // Its budget gives the figures of every batch measured with it their uncertainty: every answer about batches and curves.
+    stale: ['setups', ...batchData, 'compareB3', 'b3', 'b3Evaluation', 'c9'],
+    fresh: ['specList', 'spec', 'material', 'users'],
   },
   {
     what: 'changing a role',

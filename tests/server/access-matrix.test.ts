@@ -38,6 +38,8 @@ import {
   overlaySchema,
   refitAnswerSchema,
   reviewListSchema,
+  setupListSchema,
+  setupSchema,
   specJsonSchema,
   specListSchema,
   uploadAnswerSchema,
@@ -79,7 +81,7 @@ const OTHER = 'other-org.example';
 let h: Harness;
 const agents = {} as Record<Role | 'unverified' | 'awaiting', Agent>;
 const outsiders = {} as Record<'admin' | 'qa_lead', Agent>;
-const ids = { batch: '', curve: '', spec: '', specFamily: '', spareUser: '', org: '', engineer: '', released: '', release: '', archived: '', archivedCurve: '' };
+const ids = { batch: '', curve: '', spec: '', specFamily: '', setup: '', spareUser: '', org: '', engineer: '', released: '', release: '', archived: '', archivedCurve: '' };
 /** Strings that must never appear in an answer to the other organisation. */
 let ours: string[] = [];
 let analysis: FileAnalysis;
@@ -235,6 +237,18 @@ const ROUTES: RouteCase[] = [
     foreign: 'not_found',
     build: async () => ({ url: '/api/specs', body: { name: 'Matrix spec', limits: { pmp_w: { min: 0 } }, family_id: ids.specFamily, base_version: await newestSpecVersion() } }),
   },
+  // Measurement setups (server/routes/setups.ts): everyone reads, QA leads write; the other organisation's QA lead makes setups of their own.
+  { method: 'GET', path: '/api/setups', need: 'spec:read', ok: 200, foreign: 'own', build: async () => ({ url: '/api/setups' }) },
+  { method: 'GET', path: '/api/setups/:id', need: 'spec:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/setups/${ids.setup}` }) },
+  {
+    method: 'POST',
+    path: '/api/setups',
+    need: 'spec:write',
+    ok: 201,
+    foreign: 'own',
+    build: async () => ({ url: '/api/setups', body: { name: 'Matrix setup', components: [{ name: 'Tester', acts_on: 'pmp', value: 1, unit: '%', distribution: 'normal', k: 2 }] } }),
+  },
+  { method: 'PATCH', path: '/api/setups/:id', need: 'spec:write', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/setups/${ids.setup}`, body: { name: 'Matrix line tester' } }) },
   { method: 'GET', path: '/api/compare', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/compare?batches=${ids.batch}&param=pmp_w` }) },
   { method: 'GET', path: '/api/compare/comparison.csv', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/compare/comparison.csv?batches=${ids.batch}&param=pmp_w&spec=${ids.spec}` }) },
   { method: 'GET', path: '/api/curves/:id', need: 'batch:read', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/curves/${ids.curve}` }) },
@@ -332,8 +346,11 @@ beforeAll(async () => {
   expect(spec.status).toBe(201);
   ids.spec = spec.body.id;
   ids.specFamily = spec.body.family_id;
+  const setup = await agents.qa_lead.post('/api/setups').send({ name: 'Matrix line tester', components: [{ name: 'Reference cell', acts_on: 'irradiance', value: 1.6, unit: '%', distribution: 'normal', k: 2 }] });
+  expect(setup.status).toBe(201);
+  ids.setup = setup.body.id;
   analysis = analyseFile(cellCsv, { fileName: 'matrix.csv' });
-  ours = [ORG, org.id, ids.spareUser, ids.spec, ids.specFamily, ids.curve, ...batches.map((b) => b.id)];
+  ours = [ORG, org.id, ids.spareUser, ids.spec, ids.specFamily, ids.setup, ids.curve, ...batches.map((b) => b.id)];
   const archived = await uploadedBatch();
   ids.archived = archived.batchId;
   ids.archivedCurve = archived.curveId;
@@ -424,6 +441,10 @@ const RESPONSE_SCHEMAS: Record<string, ZodType> = {
   'GET /api/specs/:id': specJsonSchema,
   'POST /api/specs': specJsonSchema,
   'GET /api/compare': comparisonWireSchema,
+  'GET /api/setups': setupListSchema,
+  'GET /api/setups/:id': setupSchema,
+  'POST /api/setups': setupSchema,
+  'PATCH /api/setups/:id': setupSchema,
   'GET /api/curves/:id': curveDetailSchema,
   'GET /api/stations': stationListSchema,
   'POST /api/stations': stationCreatedSchema,

@@ -3,6 +3,7 @@
  * The pass/fail export is checked row by row against an independent evaluation of the same
  * limits written in this test on the values the API serves.
  */
+import { labelOf } from '@/lib/vocabulary';
 import { eq } from 'drizzle-orm';
 import { batch, curve, fit, member, organization, user } from '@/db/schema';
 import { seedDemoBatches } from '@/server/services/seed';
@@ -139,7 +140,9 @@ describe('pass/fail export', () => {
       const row = rows.find((r) => r.device_id === c.device_id)!;
       const expected = judge(c);
       expect([c.device_id, row.result]).toEqual([c.device_id, expected.result]);
-      for (const key of expected.reasons) expect(row.reasons).toContain(key === 'step' ? 'flag "step"' : key);
+      // Reasons name the figure as a person reads it (the key table's label) and the decision rule.
+      for (const key of expected.reasons) expect(row.reasons).toContain(key === 'step' ? 'flag "step"' : `${labelOf(key)} `);
+      if (expected.result === 'fail' && expected.reasons.some((k) => k !== 'step')) expect(row.reasons).toContain('(simple rule)');
       if (expected.result === 'pass') expect(row.reasons).toBe('');
       expect(row.power_class).toBe(expected.power_class);
       // Rounded as README states: Pmax to 4 decimals; FF in % (the API's fraction × 100) to 2.

@@ -10,7 +10,7 @@ import { quantity } from '@/lib/vocabulary';
 import { readStrictCsv } from '@/tests/support/strict-csv';
 
 /** Columns of text (or identifiers), not quantities. */
-export const TEXT_COLUMNS = new Set(['device_id', 'batch_name', 'result', 'reasons', 'power_class', 'outlier', 'outlier_params', 'flags', 'spec_name', 'release_state', 'exported_at']);
+export const TEXT_COLUMNS = new Set(['device_id', 'batch_name', 'result', 'reasons', 'power_class', 'outlier', 'outlier_params', 'in_guard_band', 'decision_rule', 'flags', 'spec_name', 'release_state', 'exported_at']);
 /** A number that is not a quantity (the spec's version). */
 export const COUNT_COLUMNS = new Set(['spec_version']);
 /** Quantities without a unit: their columns are the only ones without a unit suffix. */

@@ -2,6 +2,7 @@ import { router, useLocalSearchParams } from 'expo-router';
 import { useEffect, useState } from 'react';
 import { Pressable, StyleSheet, TextInput, View, useWindowDimensions } from 'react-native';
 import { BatchForm } from '@/components/batch-form';
+import { useSetups } from '@/lib/api/setups';
 import { Button } from '@/components/button';
 import { Card } from '@/components/card';
 import { CautionBlock } from '@/components/caution-block';
@@ -51,6 +52,7 @@ export default function BatchScreen() {
   const update = useUpdateBatch(id);
   const overlay = useOverlay(id);
   const [editing, setEditing] = useState(false);
+  const setups = useSetups();
   const [search, setSearch] = useState('');
   const [params, setParams] = useState<CurveListParams>({ page: 1, page_size: PAGE_SIZE, sort: 'device_id', dir: 'asc', q: '' });
   const curves = useBatchCurves(id, params);
@@ -84,7 +86,7 @@ export default function BatchScreen() {
           >
             {editing ? (
               <Card title="Batch details">
-                <BatchForm initial={b} submitLabel="Save" busy={update.isPending} error={update.error} onCancel={() => setEditing(false)} onSubmit={(v) => update.mutate(v, { onSuccess: () => setEditing(false) })} />
+                <BatchForm initial={b} setups={setups.data?.setups} submitLabel="Save" busy={update.isPending} error={update.error} onCancel={() => setEditing(false)} onSubmit={(v) => update.mutate(v, { onSuccess: () => setEditing(false) })} />
                 <Button
                   label={b.archived ? 'Restore from archive' : 'Archive this batch'}
                   kind="quiet"

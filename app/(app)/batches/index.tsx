@@ -2,6 +2,7 @@ import { Link, useRouter } from 'expo-router';
 import { useState } from 'react';
 import { Pressable, StyleSheet, View } from 'react-native';
 import { BatchForm } from '@/components/batch-form';
+import { useSetups } from '@/lib/api/setups';
 import { Button } from '@/components/button';
 import { Card } from '@/components/card';
 import { QueryState } from '@/components/query-state';
@@ -19,6 +20,7 @@ export default function BatchesScreen() {
   const create = useCreateBatch();
   const router = useRouter();
   const [creating, setCreating] = useState(false);
+  const setups = useSetups();
   const [showArchived, setShowArchived] = useState(false);
   const canWrite = !!me.data?.permissions.includes('batch:write');
   return (
@@ -32,6 +34,7 @@ export default function BatchesScreen() {
         <Card title="New batch">
           <BatchForm
             submitLabel="Create batch"
+            setups={setups.data?.setups}
             busy={create.isPending}
             error={create.error}
             onCancel={() => setCreating(false)}

@@ -22,6 +22,7 @@ import { downloadText } from '@/lib/download';
 import { PARAM_LABELS, fmtParam, sig, unitOf } from '@/lib/format';
 import { comparisonCsv, comparisonFileName } from '@/lib/quality/compare-csv';
 import { isParamKey } from '@/lib/quality/params';
+import { uncertaintyKey, valuePlusMinus } from '@/lib/quality/uncertainty';
 import type { ParamKey } from '@/lib/quality/params';
 
 function cellText(id: CompareColumnId, r: CompareRow): string {
@@ -29,6 +30,9 @@ function cellText(id: CompareColumnId, r: CompareRow): string {
   if (id === 'flags') return (r.flags ?? []).join(' ');
   if (id === 'reasons') return (r.reasons ?? []).join('; ');
   if (id === 'outlier') return r.outlier == null ? '' : r.outlier ? 'yes' : '';
+  // Pmax, Isc, Voc and STC Pmax with their expanded uncertainty (k = 2) when the batch has a setup.
+  const u = isParamKey(id) && uncertaintyKey(id) ? r[uncertaintyKey(id)!] : null;
+  if (typeof v === 'number' && typeof u === 'number' && u > 0) return valuePlusMinus(v, u);
   if (typeof v === 'number') return fmtParam(id, v).replace(/ (A|V|W|Ω|%|A\/cm²)$/, '');
   return v == null ? '' : String(v);
 }
@@ -39,7 +43,7 @@ function columnDefs(ids: CompareColumnId[]): ColumnDef<CompareRow>[] {
     header: columnHeader(id),
     accessorFn: (r: CompareRow) => (r[id] as unknown) ?? null,
     cell: (ctx) => cellText(id, ctx.row.original),
-    size: id === 'device_id' ? 130 : id === 'batch_name' ? 170 : id === 'flags' || id === 'reasons' ? 220 : id === 'result' || id === 'outlier' ? 80 : id === 'i0_a' || id === 'j0_a_cm2' || id === 'rmse_a' ? 124 : 96,
+    size: id === 'device_id' ? 130 : id === 'batch_name' ? 170 : id === 'flags' || id === 'reasons' ? 220 : id === 'result' || id === 'outlier' ? 80 : id === 'i0_a' || id === 'j0_a_cm2' || id === 'rmse_a' || (isParamKey(id) && uncertaintyKey(id)) ? 124 : 96,
     sortUndefined: 'last',
   }));
 }

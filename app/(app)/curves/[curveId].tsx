@@ -22,6 +22,7 @@ import { useCurve } from '@/lib/api/batches';
 import type { CurveDetail, FitJson } from '@/lib/api/batches';
 import { useMe } from '@/lib/api/session';
 import { fmtParam, sig } from '@/lib/format';
+import { formatWithUncertainty } from '@/lib/quality/uncertainty';
 import { doubleDiodeCurrent, singleDiodeCurrents } from '@/lib/iv/diode';
 import { stcFiguresOf } from '@/lib/schemas/curves';
 import { isAboveElv } from '@/lib/strings/cautions';
@@ -71,7 +72,7 @@ function StcCard({ c }: { c: CurveDetail }) {
       <View style={styles.figuresPlain}>
         <Figure label="Isc" value={fmtParam('isc_a', stc.isc_a)} />
         <Figure label="Voc" value={fmtParam('voc_v', stc.voc_v)} />
-        <Figure label="Pmax" value={fmtParam('pmp_w', stc.pmp_w)} />
+        <Figure label="Pmax" value={formatWithUncertainty('pmp_w', stc.pmp_w, c.uncertainty.u_stc_pmp_w)} testID="stc-pmax" />
         <Figure label="FF" value={fmtParam('ff', stc.ff)} />
         {stc.efficiency != null ? <Figure label="Efficiency" value={fmtParam('efficiency', stc.efficiency)} /> : null}
       </View>
@@ -178,13 +179,18 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
     >
       {isAboveElv(m.voc_v) ? <CautionBlock /> : null}
       <View style={styles.figures} testID="key-figures">
-        <Figure label="Isc" value={fmtParam('isc_a', m.isc_a)} />
-        <Figure label="Voc" value={fmtParam('voc_v', m.voc_v)} warn={isAboveElv(m.voc_v)} />
-        <Figure label="Pmax" value={fmtParam('pmp_w', m.pmp_w)} note={`at ${fmtParam('vmp_v', m.vmp_v)}, ${fmtParam('imp_a', m.imp_a)}`} />
+        <Figure label="Isc" value={formatWithUncertainty('isc_a', m.isc_a, c.uncertainty.u_isc_a)} testID="figure-isc" />
+        <Figure label="Voc" value={formatWithUncertainty('voc_v', m.voc_v, c.uncertainty.u_voc_v)} warn={isAboveElv(m.voc_v)} testID="figure-voc" />
+        <Figure label="Pmax" value={formatWithUncertainty('pmp_w', m.pmp_w, c.uncertainty.u_pmp_w)} note={`at ${fmtParam('vmp_v', m.vmp_v)}, ${fmtParam('imp_a', m.imp_a)}`} testID="figure-pmax" />
         <Figure label="Fill factor" value={fmtParam('ff', m.ff)} />
         <Figure label="Efficiency" value={fmtParam('efficiency', m.efficiency)} note={m.efficiency == null ? efficiencyNeeds(c.meta) : undefined} />
         <Figure label="Rsh0 · Rs0 (slopes)" value={`${sig(m.rsh0_ohm, 3)} · ${sig(m.rs0_ohm, 3)} Ω`} />
       </View>
+      <Txt variant="caption" testID="uncertainty-basis">
+        {c.setup
+          ? `± is the expanded uncertainty (k = 2) of the measurement setup “${c.setup.name}”: Pmax ±${c.setup.u_pmp_pct_k2.toFixed(2)} %, Isc ±${c.setup.u_isc_pct_k2.toFixed(2)} %, Voc ±${c.setup.u_voc_pct_k2.toFixed(2)} %.`
+          : 'No measurement setup is named for this batch and the organisation has no default one, so the figures carry no uncertainty.'}
+      </Txt>
 
       {flags.length ? (
         <Card title="What the curve shows" testID="flags">

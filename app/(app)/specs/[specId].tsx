@@ -1,4 +1,5 @@
 import { useLocalSearchParams, useRouter } from 'expo-router';
+import { SpecRuleWords } from '@/components/spec-rule-words';
 import { useState } from 'react';
 import { View, useWindowDimensions } from 'react-native';
 import { Button } from '@/components/button';
@@ -51,6 +52,7 @@ export default function SpecScreen() {
                   Power classes: {s.power_classes?.step_w ? `${s.power_classes.step_w} W steps on ${s.power_classes.basis === 'pmp_w' ? 'measured Pmax' : 'Pmax at STC'}, positive-only tolerance` : s.power_classes?.bins ? `${s.power_classes.bins.length} explicit classes` : 'none'}
                 </Txt>
                 <Txt variant="body">Failing flags: {(s.fail_flags ?? []).join(', ') || 'none'}</Txt>
+                <SpecRuleWords spec={s} />
                 {s.notes ? <Txt variant="caption">{s.notes}</Txt> : null}
               </Card>
               <Card title="Versions" style={wide ? { flex: 1 } : undefined} testID="spec-versions">

@@ -74,14 +74,16 @@ describe('comparisonCsv()', () => {
 
   it('writes the view: its columns in its order, device and batch first and once, no row added or lost', () => {
     const { fields, data } = comparisonRows({ rows: rows.slice(0, 3), columns: ['device_id', 'ff', 'batch_name', 'pmp_w', 'ff'], batches, spec: null, exportedAt });
-    expect(fields).toEqual(['device_id', 'batch_name', 'ff_pct', 'pmp_w', 'spec_name', 'spec_version', 'release_state', 'exported_at']);
+    // Pmax is followed by its expanded uncertainty (none in these rows: an empty cell); the decision rule (none without a spec) before the provenance.
+    expect(fields).toEqual(['device_id', 'batch_name', 'ff_pct', 'pmp_w', 'u_pmp_w', 'decision_rule', 'spec_name', 'spec_version', 'release_state', 'exported_at']);
     expect(data).toHaveLength(3);
     expect(data[0].slice(0, 4)).toEqual(['M-1, left', 'Lot A, line 1', 71.35, 401.1235]);
   });
 
   it('an empty comparison is the header alone', () => {
     const text = comparisonCsv({ rows: [], batches, spec: null, exportedAt });
-    expect(checkExport(text, 0).header).toHaveLength(ALL_COLUMNS.length + 4);
+    // Every grid column, the uncertainties of Isc, Voc, Pmax and STC Pmax, decision_rule and the four provenance columns.
+    expect(checkExport(text, 0).header).toHaveLength(ALL_COLUMNS.length + 4 + 1 + 4);
   });
 
   it('names the columns and the file', () => {

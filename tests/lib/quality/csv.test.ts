@@ -59,11 +59,16 @@ describe('passFailRows() and passFailCsv()', () => {
       'power_class',
       'outlier',
       'outlier_params',
+      'in_guard_band',
       'isc_a',
+      'u_isc_a',
       'voc_v',
+      'u_voc_v',
       'pmp_w',
+      'u_pmp_w',
       'ff_pct',
       'eff_pct',
+      'decision_rule',
       'spec_name',
       'spec_version',
       'release_state',
@@ -73,8 +78,9 @@ describe('passFailRows() and passFailCsv()', () => {
 
   it('gives plain cells: numbers rounded in their column unit (FF and efficiency in %), missing values blank, ISO 8601 UTC time', () => {
     // Worked by hand: 401.123456 W to 4 decimals = 401.1235; FF 0.713456 → 71.3456 % → 71.35; 0.213449 → 21.3449 % → 21.34.
-    expect(rows.data[0]).toEqual(['=cmd()', 'Lot 7, line "B"', 'pass', '', 'P400', 'no', '', -0.25, 49.1, 401.1235, 71.35, 21.34, 'Line spec', 3, 'on_hold', '2026-12-02T09:41:07Z']);
-    expect(rows.data[1]).toEqual(['M2', 'Lot 7, line "B"', 'fail', expect.stringMatching(/below the minimum/), 'P390', 'no', '', 10.1, '', 390, '', '', 'Line spec', 3, 'on_hold', '2026-12-02T09:41:07Z']);
+    // These invented devices carry no uncertainty (no setup): the u_ cells are empty.
+    expect(rows.data[0]).toEqual(['=cmd()', 'Lot 7, line "B"', 'pass', '', 'P400', 'no', '', 'no', -0.25, '', 49.1, '', 401.1235, '', 71.35, 21.34, 'simple', 'Line spec', 3, 'on_hold', '2026-12-02T09:41:07Z']);
+    expect(rows.data[1]).toEqual(['M2', 'Lot 7, line "B"', 'fail', expect.stringMatching(/below the minimum/), 'P390', 'no', '', 'no', 10.1, '', '', '', 390, '', '', '', 'simple', 'Line spec', 3, 'on_hold', '2026-12-02T09:41:07Z']);
   });
 
   it('writes one header row and one row per device, nothing else, readable by papaparse and by a strict RFC 4180 reader', () => {
@@ -105,7 +111,7 @@ describe('passFailRows() and passFailCsv()', () => {
 
   it('follows an explicit parameter list', () => {
     const r = passFailRows(batch, { ...meta, params: ['pmp_w', 'ff'] });
-    expect(r.fields.slice(7)).toEqual(['pmp_w', 'ff_pct', 'spec_name', 'spec_version', 'release_state', 'exported_at']);
+    expect(r.fields.slice(8)).toEqual(['pmp_w', 'u_pmp_w', 'ff_pct', 'decision_rule', 'spec_name', 'spec_version', 'release_state', 'exported_at']);
   });
 });
 

@@ -40,7 +40,7 @@ describe('evaluateDevice(): a figure no method can give (Pmax at STC of a curve 
 describe('evaluateDevice()', () => {
   it('passes a device inside every limit and classes it', () => {
     const r = evaluateDevice(device('M1', { pmp_w: 402.3, rs_ohm: 0.31, ff: 0.79 }), spec);
-    expect(r).toEqual({ device_id: 'M1', result: 'pass', reasons: [], power_class: 'P400' });
+    expect(r).toEqual({ device_id: 'M1', result: 'pass', reasons: [], power_class: 'P400', in_guard_band: false });
   });
 
   it('lists every reason, with value, limit and bound', () => {
@@ -52,8 +52,8 @@ describe('evaluateDevice()', () => {
       ['above_max', 'rs_ohm', 0.62, 'max', 0.5],
       ['flag', 'flags', 'step_in_curve', null, null],
     ]);
-    expect(r.reasons[0].message).toBe('pmp_w 390 W is below the minimum 395 W');
-    expect(r.reasons[2].message).toBe('rs_ohm 0.62 Ω is above the maximum 0.5 Ω');
+    expect(r.reasons[0].message).toBe('Pmax 390 W is below the minimum 395 W (simple rule)');
+    expect(r.reasons[2].message).toBe('Rs 0.62 Ω is above the maximum 0.5 Ω (simple rule)');
     expect(r.power_class).toBe('P390');
   });
 

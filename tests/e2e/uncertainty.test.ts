@@ -1,0 +1,102 @@
+/**
+ * Browser: a QA lead describes a measurement setup (a normal and a rectangular component on Pmax)
+ * and writes a guard-band spec; the batch's review shows the decision rule and the devices inside
+ * the guard band; the curve page shows Pmax ± its expanded uncertainty; the batch form offers the
+ * setup. Demo data (invented), at phone and wide width, with screenshots.
+ */
+import type { Page } from 'playwright-core';
+import { layoutProblems, openBrowser, screenshot, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
+import { startServerProcess } from '@/tests/support/server-process';
+import type { ServerProcess } from '@/tests/support/server-process';
+
+let srv: ServerProcess;
+beforeAll(async () => {
+  srv = await startServerProcess({ timeoutMs: 180_000 });
+});
+afterAll(async () => {
+  await srv?.stop();
+});
+
+const BATCH = 'KF-M60 line 2, lot 2611';
+
+async function openBatch(page: Page): Promise<void> {
+  await page.goto(`${srv.url}/batches`, { waitUntil: 'load' });
+  await page.getByTestId(`batch-${BATCH}`).click();
+  await page.getByTestId('review-panel').waitFor();
+}
+
+describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
+  it('setup, guard-band spec, review counts, ± on the curve page, setup on the batch form', async () => {
+    const b = await openBrowser(viewport);
+    const page = b.page;
+    try {
+      await signInThroughForm(page, srv.url, 'quinn.mbeki@kestrel-pv.example', 'kestrel-qa-demo');
+
+      // The setup: normal 2 % (k = 2) and rectangular 1.5 % on Pmax → U = 2·√(1 + 0.75) = 2.65 % (worked by hand).
+      await page.goto(`${srv.url}/setups`, { waitUntil: 'load' });
+      await page.getByTestId('new-setup').click();
+      await page.getByTestId('setup-name').fill(`Line 2 flasher ${vpName}`);
+      await page.getByTestId('setup-row-0-name').fill('Tester calibration');
+      await page.getByTestId('setup-row-0-value').fill('2');
+      await page.getByTestId('setup-add-row').click();
+      await page.getByTestId('setup-row-1-name').fill('Non-uniformity on Pmax');
+      await page.getByTestId('setup-row-1-rectangular').click();
+      await page.getByTestId('setup-row-1-value').fill('1,5');
+      expect(await page.getByTestId('setup-preview').innerText()).toMatch(/Pmax ±2\.65 %/);
+      expect(await layoutProblems(page)).toEqual([]);
+      await screenshot(page, `setup-editor-${vpName}`);
+      await page.getByTestId('setup-save').click();
+      await page.getByTestId(`setup-Line 2 flasher ${vpName}`).waitFor();
+      await screenshot(page, `setups-${vpName}`);
+
+      // The guard-band spec, and the editor's words for a nameplate-relative limit.
+      await page.goto(`${srv.url}/specs`, { waitUntil: 'load' });
+      await page.getByTestId('new-spec').click();
+      await page.getByTestId('spec-name').fill(`Guard band ${vpName}`);
+      await page.getByTestId('limit-pmp_w-min').fill('310');
+      await page.getByTestId('rule-guard-band').click();
+      await page.getByTestId('nameplate-below').fill('0');
+      await page.getByTestId('nameplate-above').fill('5');
+      expect(await page.getByTestId('nameplate-words').innerText()).toMatch(/Pmax at least nameplate − 0 W and at most nameplate \+ 5 W/);
+      await page.getByTestId('spec-decision-rule').scrollIntoViewIfNeeded();
+      expect(await layoutProblems(page)).toEqual([]);
+      await screenshot(page, `spec-rule-${vpName}`);
+      await page.getByTestId('nameplate-below').fill('');
+      await page.getByTestId('nameplate-above').fill('');
+      await page.getByTestId('spec-save').click();
+      await page.getByTestId('spec-screen').waitFor();
+      expect(await page.getByTestId('spec-rule-words').innerText()).toMatch(/Decision rule: guard band/);
+
+      // The review: rule, setup and the devices within their uncertainty of 310 W (demo Pmax 311.7 W, 313.2 W … lie within 2.65 %).
+      await openBatch(page);
+      await page.getByTestId(`spec-choice-Guard band ${vpName}`).click();
+      await page.getByTestId('decision-rule').waitFor();
+      const rule = await page.getByTestId('decision-rule').innerText();
+      expect(rule).toMatch(/Decision rule: guard band/);
+      expect(rule).toMatch(/Pmax ±2\.65 %/);
+      expect(Number(await page.getByTestId('count-guard-band').locator('text=/^\\d+$/').first().innerText())).toBeGreaterThan(0);
+      await page.getByTestId('decision-rule').scrollIntoViewIfNeeded();
+      expect(await layoutProblems(page)).toEqual([]);
+      await screenshot(page, `review-guard-band-${vpName}`);
+
+      // The curve page: Pmax ± U.
+      await page.getByTestId('curve-table').scrollIntoViewIfNeeded().catch(() => undefined);
+      await page.locator('[data-testid^="curve-row-"]:visible').first().click();
+      await page.getByTestId('curve-screen').waitFor();
+      expect(await page.getByTestId('figure-pmax').innerText()).toMatch(/\d ± \d[\d.]* W/);
+      expect(await page.getByTestId('uncertainty-basis').innerText()).toMatch(/Line 2 flasher/);
+      expect((await layoutProblems(page)).filter((p) => !p.includes('Physics of this curve'))).toEqual([]);
+      await screenshot(page, `curve-uncertainty-${vpName}`);
+
+      // The batch form offers the setups.
+      await openBatch(page);
+      await page.getByRole('button', { name: 'Edit details' }).click();
+      await page.getByTestId('setup-picker').scrollIntoViewIfNeeded();
+      expect(await page.getByTestId('setup-picker').innerText()).toMatch(/Organisation default/);
+      expect(await layoutProblems(page)).toEqual([]);
+      await screenshot(page, `batch-setup-${vpName}`);
+    } finally {
+      await b.close();
+    }
+  });
+});
