@@ -64,7 +64,7 @@ describe('passFailRows()', () => {
 
   it('gives plain cells: numbers numeric, missing values blank', () => {
     expect(rows.data[0]).toEqual(['=cmd()', 'pass', '', 'P400', 'no', '', -0.25, 49.1, 401, 3, 'held']);
-    expect(rows.data[1]).toEqual(['M2', 'fail', 'pmp_w 390 W is below the minimum 395 W', 'P390', 'no', '', 10.1, '', 390, 3, 'held']);
+    expect(rows.data[1]).toEqual(['M2', 'fail', 'Pmax 390 W is below the minimum 395 W', 'P390', 'no', '', 10.1, '', 390, 3, 'held']);
   });
 
   it('writes the CSV with formula text escaped and the negative current still a number, notes last', () => {
