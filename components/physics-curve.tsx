@@ -6,19 +6,24 @@ import { Card } from '@/components/card';
 import { CautionBlock } from '@/components/caution-block';
 import { Figure } from '@/components/figure';
 import { PhysicsColumns } from '@/components/physics-columns';
+import { PhysicsRange } from '@/components/physics-range';
 import { PhysicsTranslateForm } from '@/components/physics-translate-form';
 import { PhysicsVocChart } from '@/components/physics-voc-chart';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import type { CurvePhysicsJson } from '@/lib/api/physics';
 import { fmtParam, sig } from '@/lib/format';
+import { VOC_RANGE_C } from '@/lib/schemas/physics';
 import { isAboveElv } from '@/lib/strings/cautions';
 
 /**
  * What one curve's fits say: J0 and the implied Voc, the Voc temperature coefficient and Voc across
  * temperature, the double diode's recombination shares, the STC figures and a translation.
  */
-export function PhysicsCurve({ p, wide }: { p: CurvePhysicsJson; wide: boolean }) {
+/** The Voc chart's temperature range as typed, with each end's error. */
+export type VocRangeInput = { from: string; to: string; onFrom: (t: string) => void; onTo: (t: string) => void; errors: { from?: string; to?: string }; valid: boolean };
+
+export function PhysicsCurve({ p, wide, range }: { p: CurvePhysicsJson; wide: boolean; range?: VocRangeInput }) {
   const router = useRouter();
   const s = p.single;
   const c = p.conditions;
@@ -101,13 +106,16 @@ export function PhysicsCurve({ p, wide }: { p: CurvePhysicsJson; wide: boolean }
     </Card>
   );
 
+  const points = s.voc_vs_temperature?.points ?? [];
+  const shownRange = points.length ? `${fmtParam('temp_c', points[0].temp_c)} to ${fmtParam('temp_c', points[points.length - 1].temp_c)}` : '';
   const chart = (
     <Card title="Voc across cell temperature">
-      {s.voc_vs_temperature ? (
+      {range ? <PhysicsRange unit="°C" from={range.from} to={range.to} onFrom={range.onFrom} onTo={range.onTo} errors={range.errors} defaults={VOC_RANGE_C} testID="voc-range" /> : null}
+      {range && !range.valid ? null : s.voc_vs_temperature ? (
         <>
           <PhysicsVocChart points={s.voc_vs_temperature.points} measured={measured} testID="voc-temperature-chart" />
           <Txt variant="caption">
-            ━ predicted from the single-diode fit ({lawName(s.voc_vs_temperature.law)}, n, Rs, Rsh held) ◆ measured {fmtParam('voc_v', measured.voc_v)} at {measured.temp_c} °C. −40 to +85 °C. The coldest morning gives the highest voltage.
+            ━ predicted from the single-diode fit ({lawName(s.voc_vs_temperature.law)}, n, Rs, Rsh held) ◆ measured {fmtParam('voc_v', measured.voc_v)} at {measured.temp_c} °C. {shownRange}. The coldest morning gives the highest voltage.
           </Txt>
         </>
       ) : (

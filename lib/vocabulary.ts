@@ -118,8 +118,8 @@ export const QUANTITIES: readonly Quantity[] = [
   q('material', 'to_k', 'To', 'K'),
 
   // Carriers and band diagrams (lib/physics/carriers); energies in eV from E_i.
-  q('carriers', 'doping_cm3', 'Doping', 'cm⁻³'),
-  q('carriers', 'excess_cm3', 'Excess carriers Δn', 'cm⁻³'),
+  q('carriers', 'doping_cm3', 'Doping density', 'cm⁻³'),
+  q('carriers', 'excess_cm3', 'Excess carrier density', 'cm⁻³'),
   q('carriers', 'generation_cm3_s', 'Generation rate', 'cm⁻³·s⁻¹'),
   q('carriers', 'lifetime_s', 'Lifetime', 's'),
   q('carriers', 'n_cm3', 'Electrons n', 'cm⁻³'),

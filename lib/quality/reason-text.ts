@@ -5,6 +5,7 @@
  * as many digits as it takes to see why it failed: "Voc 42.001 V is above the maximum 42 V".
  */
 import { FLAG_CODES } from '@/lib/iv/flag-codes';
+import type { FailReason } from '@/lib/quality/evaluate';
 import { formatAgainst, formatValue, labelOf } from '@/lib/vocabulary';
 
 /** "FF 59.2 % is below the minimum 70.0 %" / "Voc 42.001 V is above the maximum 42 V". */
@@ -54,4 +55,39 @@ export function noClassReason(basis: string, power_w: number, lo: number, hi: nu
 /** "Pmax 392.4 W is below the lowest power class P395". */
 export function belowLowestReason(basis: string, power_w: number, edge_w: number, className: string, smallest = false): string {
   return `${powerShown(basis, power_w, [edge_w])} is below the ${smallest ? 'smallest' : 'lowest'} power class ${className}`;
+}
+
+/** What a reason is about, without the device's own value: "FF below the minimum 70.0 %". */
+export function reasonTopic(r: Pick<FailReason, 'kind' | 'param' | 'value' | 'bound' | 'message'>): string {
+  switch (r.kind) {
+    case 'below_min':
+      return `${labelOf(r.param)} below the minimum ${formatValue(r.param, r.bound)}`;
+    case 'above_max':
+      return `${labelOf(r.param)} above the maximum ${formatValue(r.param, r.bound)}`;
+    case 'not_measured':
+      return `${labelOf(r.param)} not measured`;
+    case 'power_class':
+      return 'no power class';
+    case 'flag':
+      return `flag: ${flagLabel(String(r.value))}`;
+    default:
+      // A kind this list does not know yet: its own sentence.
+      return r.message;
+  }
+}
+
+/**
+ * The reasons of the failing devices counted by topic, most frequent first: "FF below the minimum
+ * 70.0 %: 2 devices". For mails and summaries; `max` topics at most.
+ */
+export function failureSummary(devices: readonly { result: string; reasons: readonly Pick<FailReason, 'kind' | 'param' | 'value' | 'bound' | 'message'>[] }[], max = 5): string[] {
+  const counts = new Map<string, number>();
+  for (const d of devices) {
+    if (d.result !== 'fail') continue;
+    for (const topic of new Set(d.reasons.map(reasonTopic))) counts.set(topic, (counts.get(topic) ?? 0) + 1);
+  }
+  const sorted = [...counts].sort((a, b) => b[1] - a[1]);
+  const lines = sorted.slice(0, max).map(([topic, n]) => `${topic}: ${n} device${n === 1 ? '' : 's'}`);
+  if (sorted.length > max) lines.push(`and ${sorted.length - max} more kind${sorted.length - max === 1 ? '' : 's'} of reason`);
+  return lines;
 }

@@ -11,7 +11,7 @@ import type { Db } from '@/db/client';
 import { batch } from '@/db/schema';
 import { columnsOfRows, describe as describeValues, evaluateBatch, isParamKey, robustZOn, welchDifference } from '@/lib/quality';
 import type { CompareRowInput, Description, ParamKey, Spec } from '@/lib/quality';
-import { PARAM_KEYS, PARAM_UNITS } from '@/lib/quality/params';
+import { PARAM_KEYS } from '@/lib/quality/params';
 import type { compareQuerySchema } from '@/lib/schemas/quality';
 import { HttpError } from '@/server/errors';
 import { AnswerCache, batchKey } from '@/server/services/answer-cache';
@@ -112,7 +112,7 @@ export function comparisons(db: Db) {
       const differences = found.slice(1).map((b) => {
         const bb = values(b.id);
         try {
-          return { batch_a: first.id, batch_b: b.id, param, ...welchDifference(a, bb, 0.95, { nameA: first.name, nameB: b.name, param, unit: PARAM_UNITS[param] }) };
+          return { batch_a: first.id, batch_b: b.id, param, ...welchDifference(a, bb, 0.95, { nameA: first.name, nameB: b.name, key: param }) };
         } catch (err) {
           return { batch_a: first.id, batch_b: b.id, param, error: (err as Error).message };
         }

@@ -10,6 +10,7 @@ import { isSingleDiodeFit } from '@/lib/iv';
 import type { CurveMeta, FitResult, FitSummary } from '@/lib/iv';
 import { encodeComparisonRecord } from '@/lib/quality/comparison-record';
 import type { refitSchema } from '@/lib/schemas/curves';
+import { formatValue, labelOf } from '@/lib/vocabulary';
 import { HttpError, notFound } from '@/server/errors';
 import type { Analyser } from '@/server/services/analysis-pool';
 import { touchBatch } from '@/server/services/answer-cache';
@@ -239,7 +240,8 @@ export async function refitCurve(db: Db, analyser: Analyser, who: { organization
     const v = body[k];
     if (v != null && v !== meta[k]) {
       meta[k] = v;
-      changed.push(`${k} ${row.meta[k] ?? '—'} → ${v}`);
+      // In the key table's words: "Cell temperature 33 °C → 45 °C".
+      changed.push(`${labelOf(k)} ${formatValue(k, row.meta[k] ?? null, 6)} → ${formatValue(k, v, 6)}`);
     }
   }
   const models = body.model === 'both' ? (['single', 'double'] as const) : ([body.model] as const);

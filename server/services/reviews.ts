@@ -5,7 +5,9 @@
 import { and, desc, eq } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { batch, batchRelease, batchReview, member, user } from '@/db/schema';
-import { evaluateBatch, passFailCsv } from '@/lib/quality';
+import { describeSentence, evaluateBatch, passFailCsv } from '@/lib/quality';
+import { failureSummary } from '@/lib/quality/reason-text';
+import { formatDateTime } from '@/lib/format';
 import type { BatchEvaluation } from '@/lib/quality';
 import type { decisionSchema } from '@/lib/schemas/quality';
 import { HV_CAUTION } from '@/lib/strings/cautions';
@@ -31,7 +33,7 @@ async function evaluate(db: Db, batchId: string, organizationId: string, specId:
   const { row, spec } = await loadSpec(db, organizationId, specId);
   const devices = await deviceRecords(db, [batchId]);
   const evaluation = evaluateBatch(devices, spec, { outlier_params: [...OUTLIER_PARAMS] });
-  return { specRow: row, evaluation, devices };
+  return { specRow: row, spec, evaluation, devices };
 }
 
 function counts(e: BatchEvaluation) {
@@ -131,6 +133,8 @@ export function decisionMail(
   spec: { name: string; version: number },
   tally: ReturnType<typeof counts>,
   comment: string,
+  /** Lines in the key table's words: the failing reasons by topic, the limited parameters' statistics. */
+  details: string[] = [],
 ): OutgoingMail {
   const done = state === 'released' ? 'released' : 'put on hold';
   return {
@@ -144,8 +148,21 @@ export function decisionMail(
       `${by.user.name} ${done} the batch “${b.name}”.`,
       `Judged against ${spec.name} v${spec.version}: ${tally.pass} pass, ${tally.fail} fail, ${tally.outliers} outliers of ${tally.total}.`,
       comment ? `Comment: ${comment}` : '',
+      ...details,
+      `Decided ${formatDateTime(new Date(), { utc: true })}.`,
     ].join('\n'),
   };
+}
+
+/** The decision mail's lines about the evaluation: failing reasons by topic, then the statistics of each limited parameter. */
+export function decisionDetails(evaluation: BatchEvaluation, spec: { limits?: Record<string, unknown> }): string[] {
+  const failing = failureSummary(evaluation.devices);
+  const limited = Object.keys(spec.limits ?? {});
+  const stats = limited.flatMap((k) => {
+    const d = evaluation.stats[k as keyof typeof evaluation.stats];
+    return d ? [describeSentence(k, d)] : [];
+  });
+  return [...(failing.length ? ['', 'Why devices fail:', ...failing.map((l) => `- ${l}`)] : []), ...(stats.length ? ['', ...stats] : [])];
 }
 
 /** A test engineer hands the batch to the QA leads (e-mailed); 409 unless every curve has a converged fit. */
@@ -193,7 +210,7 @@ export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
     const check = await releaseCheck(db, by.organization.id, b.id, by.user.id);
     if (!check.allowed) throw new HttpError(403, check.code, check.message);
   }
-  const { specRow, evaluation, devices } = await evaluate(db, b.id, by.organization.id, body.spec_id);
+  const { specRow, spec, evaluation, devices } = await evaluate(db, b.id, by.organization.id, body.spec_id);
   const unfitted = devices.filter((d) => !d.fitted);
   if (releasing && unfitted.length) {
     throw new HttpError(409, 'unfitted_curves', `${unfitted.length} curve(s) have no converged fit; the batch cannot be released.`);
@@ -242,7 +259,7 @@ export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
     .where(and(eq(batchReview.batchId, b.id), eq(batchReview.action, 'submitted')))
     .orderBy(desc(batchReview.createdAt))
     .limit(1);
-  if (submission) await mailer.send(decisionMail(submission, b, by, state, specRow, tally, body.comment));
+  if (submission) await mailer.send(decisionMail(submission, b, by, state, specRow, tally, body.comment, decisionDetails(evaluation, spec)));
   const [after] = await db.select().from(batch).where(eq(batch.id, b.id));
   return { batch: batchJson(after), counts: tally, spec: { id: specRow.id, version: specRow.version, name: specRow.name } };
 }

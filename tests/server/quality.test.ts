@@ -90,7 +90,7 @@ describe('specs', () => {
     const res = await qa.post('/api/specs').send({ ...moduleSpec, family_id, base_version: 1, limits: { ...moduleSpec.limits, rs_ohm: { max: 0.5 } } });
     expect(res.status).toBe(201);
     expect(res.body.version).toBe(2);
-    expect(res.body.changes).toEqual(['rs_ohm: −∞ … 0.6 → −∞ … 0.5']);
+    expect(res.body.changes).toEqual(['Rs: up to 0.6 Ω → up to 0.5 Ω']);
     const v1 = await designer.get(`/api/specs/${specId}`);
     expect(v1.body.limits.rs_ohm).toEqual({ max: 0.6 });
     expect(v1.body.versions.map((v: { version: number; by: string }) => [v.version, v.by])).toEqual([
