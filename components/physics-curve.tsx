@@ -30,7 +30,7 @@ export function PhysicsCurve({ p, wide, range }: { p: CurvePhysicsJson; wide: bo
   const module = c.cells > 1 || isAboveElv(p.curve.metrics.voc_v);
   const coef = s?.coefficient;
   const lawName = (law: string) => (law === 'desoto' ? 'I0 ∝ T³·exp(−Eg/kT) (De Soto et al. 2006)' : 'I0 ∝ n_i(T)^(2/n)');
-  const conditions = [`${c.temp_c} °C`, c.irradiance_w_m2 != null ? `${c.irradiance_w_m2} W/m²` : 'irradiance not given', `${c.cells} cell${c.cells === 1 ? '' : 's'} in series`, c.area_cm2 != null ? `${c.area_cm2} cm²` : 'no area'].join(' · ');
+  const conditions = [fmtParam('temp_c', c.temp_c), c.irradiance_w_m2 != null ? fmtParam('irradiance_w_m2', c.irradiance_w_m2) : 'irradiance not given', `${c.cells} cell${c.cells === 1 ? '' : 's'} in series`, c.area_cm2 != null ? fmtParam('area_cm2', c.area_cm2) : 'no area'].join(' · ');
   const measured = useMemo(() => ({ temp_c: c.temp_c, voc_v: p.curve.metrics.voc_v }), [c.temp_c, p.curve.metrics.voc_v]);
 
   const head = (
