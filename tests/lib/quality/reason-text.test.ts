@@ -5,7 +5,8 @@
  * digits) and the rule "more digits until value and limit differ in display".
  */
 import { evaluateDevice, powerClassOf } from '@/lib/quality/evaluate';
-import { flagReason, limitReason } from '@/lib/quality/reason-text';
+import { describe as describeValues, describeSentence } from '@/lib/quality/describe';
+import { failureSummary, flagReason, limitReason } from '@/lib/quality/reason-text';
 import { parseSpec } from '@/lib/quality/spec';
 import { formatAgainst, precisionApart } from '@/lib/vocabulary';
 
@@ -76,5 +77,23 @@ describe('reasons of an evaluated device carry no internal key', () => {
     expect(powerClassOf(410.2, bins).problem).toBe('Pmax 410.2 W falls in no power class (the classes cover 400–410 W)');
     // 409.99999 is inside; 410.00004 is outside but shows as 410 at 4 digits: more digits.
     expect(powerClassOf(410.00004, bins).problem).toBe('Pmax 410.00004 W falls in no power class (the classes cover 400–410 W)');
+  });
+});
+
+describe('summaries for mails', () => {
+  it('counts the failing devices per reason, most frequent first, in the key table\'s words', () => {
+    const spec = parseSpec({ name: 's', limits: { ff: { min: 0.7 }, rs_ohm: { max: 0.5 } }, fail_flags: ['low-shunt'] });
+    const devices = [
+      evaluateDevice({ device_id: 'A', values: { ff: 0.6, rs_ohm: 0.3 }, flags: [] }, spec),
+      evaluateDevice({ device_id: 'B', values: { ff: 0.65, rs_ohm: null }, flags: ['low-shunt'] }, spec),
+      evaluateDevice({ device_id: 'C', values: { ff: 0.75, rs_ohm: 0.2 }, flags: [] }, spec),
+    ];
+    expect(failureSummary(devices)).toEqual(['FF below the minimum 70.0 %: 2 devices', 'Rs not measured: 1 device', 'flag: Low shunt resistance: 1 device']);
+  });
+
+  it('describes a parameter\'s statistics in a sentence with label, unit and Cpk', () => {
+    // Invented values 0.78, 0.80, 0.82: mean 0.80, sd 0.02 (by hand); Cpk = (0.80 − 0.70)/(3·0.02) = 1.67.
+    const d = describeValues([0.78, 0.8, 0.82], { min: 0.7 });
+    expect(describeSentence('ff', d)).toBe('FF over 3 devices: mean 80.0 %, standard deviation 2.0 %, 5th to 95th percentile 78.2–81.8 %, Cpk 1.67 (against the minimum).');
   });
 });
