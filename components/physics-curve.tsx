@@ -15,6 +15,7 @@ import type { CurvePhysicsJson } from '@/lib/api/physics';
 import { fmtParam, sig } from '@/lib/format';
 import { VOC_RANGE_C } from '@/lib/schemas/physics';
 import { isAboveElv } from '@/lib/strings/cautions';
+import { keysToWords } from '@/lib/schemas/field-words';
 
 /**
  * What one curve's fits say: J0 and the implied Voc, the Voc temperature coefficient and Voc across
@@ -55,7 +56,7 @@ export function PhysicsCurve({ p, wide, range }: { p: CurvePhysicsJson; wide: bo
         <View style={styles.empty} testID="physics-curve-empty">
           <Txt variant="body">This curve has no converged single-diode fit, so J0 and its temperature behaviour cannot be derived. Fit it again from the curve page.</Txt>
           {p.notes.map((n) => (
-            <Txt key={n} variant="caption">{n}</Txt>
+            <Txt key={n} variant="caption">{keysToWords(n)}</Txt>
           ))}
         </View>
       </View>
@@ -135,7 +136,7 @@ export function PhysicsCurve({ p, wide, range }: { p: CurvePhysicsJson; wide: bo
             <Figure label="Fill factor" value={fmtParam('ff', p.stc.ff)} />
             {p.stc.efficiency != null ? <Figure label="Efficiency" value={fmtParam('efficiency', p.stc.efficiency)} /> : null}
           </View>
-          <Txt variant="caption">Stored with the curve: the fit at {p.stc.from.temp_c} °C and {p.stc.from.irradiance_w_m2} W/m² moved to 1000 W/m², 25 °C (De Soto et al. 2006). {p.stc.notes.join(' ')}</Txt>
+          <Txt variant="caption">Stored with the curve: the fit at {p.stc.from.temp_c} °C and {p.stc.from.irradiance_w_m2} W/m² moved to 1000 W/m², 25 °C (De Soto et al. 2006). {keysToWords(p.stc.notes.join(' '))}</Txt>
         </>
       ) : (
         <Txt variant="body">No STC figures are stored for this curve.</Txt>
@@ -174,7 +175,7 @@ export function PhysicsCurve({ p, wide, range }: { p: CurvePhysicsJson; wide: bo
       )}
       {p.notes.length ? (
         <Txt variant="caption" testID="physics-notes">
-          {p.notes.join(' ')}
+          {keysToWords(p.notes.join(' '))}
         </Txt>
       ) : null}
     </View>

@@ -227,7 +227,7 @@ export function PhysicsExplorer({ wide }: { wide: boolean }) {
   const noResult = (
     <Card title="Results" testID="physics-no-result">
       {inputInvalid ? (
-        <Txt variant="body">No results while a field above is not valid; its message says what to change.</Txt>
+        <Txt variant="body">No results while an input is not valid; the message at it says what to change.</Txt>
       ) : (
         <QueryState query={diagram}>{() => null}</QueryState>
       )}

@@ -17,6 +17,7 @@ import { fmtParam } from '@/lib/format';
 import { thermal_voltage_v } from '@/lib/physics/constants';
 import { METHOD_COEFFICIENTS, TRANSLATION_COEFFICIENTS, TRANSLATION_METHOD_LABELS, TRANSLATION_METHODS, translateSchema } from '@/lib/schemas/physics';
 import type { TranslateInput, TranslateRequest, TranslationCoefficient, TranslationMethod } from '@/lib/schemas/physics';
+import { keysToWords } from '@/lib/schemas/field-words';
 
 /** The relative Isc coefficient suggested when none is measured: +0.05 %/K (common practice, c-Si). */
 const ALPHA_REL_PER_K = 0.0005;
@@ -167,7 +168,7 @@ export function PhysicsTranslateForm({ physics }: { physics: CurvePhysicsJson })
           {result.figures ? <FigureRow figures={result.figures} measured={physics.curve.metrics} /> : <Txt variant="body">No key figures for the translated curve: {result.figures_error}</Txt>}
           <IvChart mode="iv" measured={result.measured.curve} model={result.curve} labels={{ model: 'translated' }} height={240} testID="translate-chart" />
           <Txt variant="caption">
-            {result.points_total > result.curve.voltage_v.length ? `Translated curve drawn with ${result.curve.voltage_v.length} of ${result.points_total} points. ` : ''}{result.figures_source === 'model' ? 'Figures from the translated model.' : 'Figures from the translated curve.'} {result.notes.join(' · ')}
+            {result.points_total > result.curve.voltage_v.length ? `Translated curve drawn with ${result.curve.voltage_v.length} of ${result.points_total} points. ` : ''}{result.figures_source === 'model' ? 'Figures from the translated model.' : 'Figures from the translated curve.'} {keysToWords(result.notes.join(' · '))}
           </Txt>
         </View>
       ) : null}

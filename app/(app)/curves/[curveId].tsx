@@ -22,6 +22,7 @@ import { fmtParam, formatDateTime, sig } from '@/lib/format';
 import { labelOf } from '@/lib/vocabulary';
 import { doubleDiodeCurrent, singleDiodeCurrents } from '@/lib/iv/diode';
 import { isAboveElv } from '@/lib/strings/cautions';
+import { keysToWords } from '@/lib/schemas/field-words';
 
 /** The fitted model's current on an even voltage grid across the measured range. */
 function modelSeries(c: CurveDetail, f: FitJson | undefined): Series | null {
@@ -183,7 +184,7 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
                 <Figure label="FF" value={fmtParam('ff', c.stc.ff)} />
               </View>
               <Txt variant="caption">
-                From the fitted single diode at {c.stc.from.temp_c} °C and {c.stc.from.irradiance_w_m2} W/m², moved to 1000 W/m² and 25 °C by the De Soto, Klein & Beckman (2006) scaling. {c.stc.notes.join(' ')}
+                From the fitted single diode at {c.stc.from.temp_c} °C and {c.stc.from.irradiance_w_m2} W/m², moved to 1000 W/m² and 25 °C by the De Soto, Klein & Beckman (2006) scaling. {keysToWords(c.stc.notes.join(' '))}
               </Txt>
             </>
           ) : (
