@@ -160,7 +160,7 @@ export function StringForm({
                           <View style={[styles.radio, on && styles.radioOn]} />
                           <View style={{ flex: 1, gap: 2 }}>
                             <Txt variant="body" style={{ fontFamily: theme.font.medium }} numberOfLines={2}>{b.name}</Txt>
-                            <Txt variant="caption">{[b.product_type, b.cells && `${b.cells} cells in series`, b.batch_date].filter(Boolean).join(' · ') || 'No description'}</Txt>
+                            <Txt variant="caption">{[b.product_type, b.cells && `${b.cells} cell${b.cells === 1 ? '' : 's'} in series`, b.batch_date].filter(Boolean).join(' · ') || 'No description'}</Txt>
                           </View>
                         </Pressable>
                       );

@@ -38,8 +38,14 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await b.page.getByTestId('new-batch').click();
       const name = `Reference devices ${vpName}`;
       await b.page.getByTestId('batch-name').fill(name);
+      // The batch date is the browser's date input: its value is ISO 8601 whatever the locale shows.
+      expect(await b.page.getByTestId('batch-date').getAttribute('type')).toBe('date');
+      await b.page.getByTestId('batch-date').fill('2025-11-14');
+      expect(await layoutProblems(b.page)).toEqual([]);
+      await screenshot(b.page, `batch-form-${vpName}`);
       await b.page.getByTestId('batch-submit').click();
       await b.page.getByTestId('upload-panel').waitFor();
+      expect(await b.page.getByTestId('batches-screen').or(b.page.locator('body')).first().innerText()).toContain('2025-11-14');
 
       const chooser = b.page.waitForEvent('filechooser');
       await b.page.getByTestId('pick-files').click();
