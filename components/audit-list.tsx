@@ -5,6 +5,7 @@ import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import { describeAudit } from '@/lib/auth/audit';
 import { useAudit } from '@/lib/api/users';
+import { formatDateTime } from '@/lib/format';
 
 /** The record of membership changes: who did what, and when (newest first). */
 export function AuditList() {
@@ -16,7 +17,7 @@ export function AuditList() {
           d.entries.map((e) => (
             <View key={e.id} style={styles.row} testID={`audit-${e.action}`}>
               <Txt variant="body">{describeAudit(e)}</Txt>
-              <Txt variant="caption">{new Date(e.created_at).toLocaleString()}</Txt>
+              <Txt variant="caption">{formatDateTime(e.created_at)}</Txt>
             </View>
           ))
         }

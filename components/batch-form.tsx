@@ -4,12 +4,14 @@ import { StyleSheet, View } from 'react-native';
 import { Button } from '@/components/button';
 import { SetupPicker } from '@/components/setup-picker';
 import type { SetupChoice } from '@/components/setup-picker';
+import { DateField } from '@/components/date-field';
 import { FormError } from '@/components/form-error';
 import { TextField } from '@/components/text-field';
 import type { Batch } from '@/lib/api/batches';
 import { Txt } from '@/components/txt';
 import { BATCH_STC_LABELS as L, batchCreateSchema } from '@/lib/schemas/curves';
 import type { BatchCreateInput } from '@/lib/schemas/curves';
+import { labelWithUnit } from '@/lib/vocabulary';
 
 const text = (v: unknown) => (v == null ? '' : String(v));
 
@@ -48,10 +50,11 @@ export function BatchForm({ initial, submitLabel, busy, error, onSubmit, onCance
         <View style={styles.cell}><TextField control={control} name="supplier" label="Cell supplier" /></View>
         <View style={styles.cell}><TextField control={control} name="line" label="Line" /></View>
         <View style={styles.cell}><TextField control={control} name="lot" label="Lot" /></View>
-        <View style={styles.cell}><TextField control={control} name="batch_date" label="Date (yyyy-mm-dd)" /></View>
-        <View style={styles.cell}><TextField control={control} name="cells" label="Cells in series" keyboardType="numeric" hint="Used when a file does not say." /></View>
-        <View style={styles.cell}><TextField control={control} name="area_cm2" label="Device area (cm²)" keyboardType="numeric" hint="For efficiency." /></View>
-        <View style={styles.cell}><TextField control={control} name="nameplate_w" label="Nameplate power (W)" keyboardType="numeric" /></View>
+        <View style={styles.cell}><DateField control={control} name="batch_date" label="Batch date" hint="When the lot was made or measured." testID="batch-date" /></View>
+        {/* Labels from the key table, the same words the schema's messages use. */}
+        <View style={styles.cell}><TextField control={control} name="cells" label={labelWithUnit('cells')} keyboardType="numeric" hint="Used when a file does not say." /></View>
+        <View style={styles.cell}><TextField control={control} name="area_cm2" label={labelWithUnit('area_cm2')} keyboardType="numeric" hint="Device area, for efficiency." /></View>
+        <View style={styles.cell}><TextField control={control} name="nameplate_w" label={labelWithUnit('nameplate_w')} keyboardType="numeric" /></View>
         <View style={styles.cell}><TextField control={control} name="irradiance_w_m2" label={L.irradiance_w_m2} keyboardType="numeric" hint="For efficiency and STC when a file does not say." testID="batch-irradiance" /></View>
       </View>
       <Txt variant="label">Module type's coefficients, for the STC figures</Txt>

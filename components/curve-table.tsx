@@ -8,7 +8,7 @@ import { SeverityBadge } from '@/components/severity-badge';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import type { CurvePageRow as CurveRow } from '@/lib/api/batches';
-import { fmtParam } from '@/lib/format';
+import { formatNumber, labelWithUnit } from '@/lib/format';
 import { stcFiguresOf } from '@/lib/schemas/curves';
 import type { CurveSortKey } from '@/lib/schemas/curves';
 
@@ -20,18 +20,18 @@ function cellText(def: unknown, ctx: CellContext<CurveRow, unknown>): string {
 }
 const single = (r: CurveRow) => r.fits.find((f) => f.model === 'single-diode');
 
-/** Columns of the batch table; ids are the server's sort keys. */
+/** Columns of the batch table; ids are the server's sort keys. Headers and digits from the key table (the unit in the header, the number alone in the cell). */
 const COLUMNS = [
   col.accessor('device_id', { id: 'device_id', header: 'Device', size: 150 }),
   col.display({ id: 'severity', header: 'Result', size: 92 }),
-  col.accessor((r) => r.metrics.isc_a, { id: 'isc_a', header: 'Isc (A)', size: 86, cell: (c) => fmtParam('isc_a', c.getValue()).replace(' A', '') }),
-  col.accessor((r) => r.metrics.voc_v, { id: 'voc_v', header: 'Voc (V)', size: 86, cell: (c) => fmtParam('voc_v', c.getValue()).replace(' V', '') }),
-  col.accessor((r) => r.metrics.pmp_w, { id: 'pmp_w', header: 'Pmax (W)', size: 90, cell: (c) => fmtParam('pmp_w', c.getValue()).replace(' W', '') }),
-  col.accessor((r) => r.metrics.ff, { id: 'ff', header: 'FF (%)', size: 70, cell: (c) => fmtParam('ff', c.getValue()).replace(' %', '') }),
-  col.accessor((r) => single(r)?.n ?? null, { id: 'n', header: 'n', size: 64, cell: (c) => fmtParam('n', c.getValue(), 3) }),
-  col.accessor((r) => single(r)?.rs_ohm ?? null, { id: 'rs_ohm', header: 'Rs (Ω)', size: 84, cell: (c) => fmtParam('rs_ohm', c.getValue(), 3).replace(' Ω', '') }),
-  col.accessor((r) => single(r)?.rsh_ohm ?? null, { id: 'rsh_ohm', header: 'Rsh (Ω)', size: 90, cell: (c) => fmtParam('rsh_ohm', c.getValue(), 3).replace(' Ω', '') }),
-  col.accessor((r) => stcFiguresOf(r.stc)?.pmp_w ?? null, { id: 'stc_pmp_w', header: 'Pmax STC (W)', size: 104, cell: (c) => fmtParam('stc_pmp_w', c.getValue()).replace(' W', '') }),
+  col.accessor((r) => r.metrics.isc_a, { id: 'isc_a', header: labelWithUnit('isc_a'), size: 86, cell: (c) => formatNumber('isc_a', c.getValue()) }),
+  col.accessor((r) => r.metrics.voc_v, { id: 'voc_v', header: labelWithUnit('voc_v'), size: 86, cell: (c) => formatNumber('voc_v', c.getValue()) }),
+  col.accessor((r) => r.metrics.pmp_w, { id: 'pmp_w', header: labelWithUnit('pmp_w'), size: 90, cell: (c) => formatNumber('pmp_w', c.getValue()) }),
+  col.accessor((r) => r.metrics.ff, { id: 'ff', header: labelWithUnit('ff'), size: 70, cell: (c) => formatNumber('ff', c.getValue()) }),
+  col.accessor((r) => single(r)?.n ?? null, { id: 'n', header: labelWithUnit('n'), size: 64, cell: (c) => formatNumber('n', c.getValue(), 3) }),
+  col.accessor((r) => single(r)?.rs_ohm ?? null, { id: 'rs_ohm', header: labelWithUnit('rs_ohm'), size: 84, cell: (c) => formatNumber('rs_ohm', c.getValue(), 3) }),
+  col.accessor((r) => single(r)?.rsh_ohm ?? null, { id: 'rsh_ohm', header: labelWithUnit('rsh_ohm'), size: 90, cell: (c) => formatNumber('rsh_ohm', c.getValue(), 3) }),
+  col.accessor((r) => stcFiguresOf(r.stc)?.pmp_w ?? null, { id: 'stc_pmp_w', header: labelWithUnit('stc_pmp_w'), size: 124, cell: (c) => formatNumber('stc_pmp_w', c.getValue()) }),
   col.display({ id: 'flags', header: 'Flags', size: 210 }),
 ];
 

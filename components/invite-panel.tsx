@@ -13,6 +13,7 @@ import { ROLE_LABELS } from '@/lib/auth/roles';
 import { useCancelInvitation, useInvitations, useInvite } from '@/lib/api/users';
 import { inviteSchema } from '@/lib/schemas/auth';
 import type { InviteInput } from '@/lib/schemas/auth';
+import { formatDateTime } from '@/lib/format';
 
 /** Invite an address with a role; the pending invitations with a way to withdraw each. */
 export function InvitePanel() {
@@ -37,7 +38,7 @@ export function InvitePanel() {
                 <View style={{ flex: 1, minWidth: 0 }}>
                   <Txt variant="body" numberOfLines={1}>{i.email}</Txt>
                   <Txt variant="caption">
-                    {ROLE_LABELS[i.role]} · until {i.expires_at.slice(0, 10)}
+                    {ROLE_LABELS[i.role]} · until {formatDateTime(i.expires_at)}
                     {i.invited_by ? ` · by ${i.invited_by}` : ''}
                   </Txt>
                 </View>

@@ -11,6 +11,7 @@ import { ROLE_LABELS } from '@/lib/auth/roles';
 import type { Role } from '@/lib/auth/roles';
 import { useDecideRequest, useJoinRequests } from '@/lib/api/users';
 import type { JoinRequest } from '@/lib/api/users';
+import { formatDateTime } from '@/lib/format';
 
 /** One request: choose a role, then approve; or refuse. */
 function RequestRow({ r }: { r: JoinRequest }) {
@@ -20,7 +21,7 @@ function RequestRow({ r }: { r: JoinRequest }) {
     <View style={styles.row} testID={`request-${r.email}`}>
       <Txt variant="body">{r.name}</Txt>
       <Txt variant="caption">
-        {r.email} · asked {new Date(r.created_at).toLocaleString()}
+        {r.email} · asked {formatDateTime(r.created_at)}
       </Txt>
       <RolePicker value={role} onChange={setRole} label={`Role for ${r.name}`} disabled={decide.isPending} testID={`request-role-${r.email}`} />
       <FormError error={decide.error} />

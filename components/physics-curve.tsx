@@ -6,6 +6,7 @@ import { Card } from '@/components/card';
 import { CautionBlock } from '@/components/caution-block';
 import { Figure } from '@/components/figure';
 import { PhysicsColumns } from '@/components/physics-columns';
+import { PhysicsRange } from '@/components/physics-range';
 import { PhysicsTranslateForm } from '@/components/physics-translate-form';
 import { PhysicsVocChart } from '@/components/physics-voc-chart';
 import { theme } from '@/components/theme';
@@ -14,20 +15,25 @@ import type { CurvePhysicsJson } from '@/lib/api/physics';
 import { fmtParam, sig } from '@/lib/format';
 import { stcBasisText, stcMethodName } from '@/lib/analysis/stc-words';
 import { stcFiguresOf } from '@/lib/schemas/curves';
+import { VOC_RANGE_C } from '@/lib/schemas/physics';
 import { isAboveElv } from '@/lib/strings/cautions';
+import { keysToWords } from '@/lib/schemas/field-words';
 
 /**
  * What one curve's fits say: J0 and the implied Voc, the Voc temperature coefficient and Voc across
  * temperature, the double diode's recombination shares, the STC figures and a translation.
  */
-export function PhysicsCurve({ p, wide }: { p: CurvePhysicsJson; wide: boolean }) {
+/** The Voc chart's temperature range as typed, with each end's error. */
+export type VocRangeInput = { from: string; to: string; onFrom: (t: string) => void; onTo: (t: string) => void; errors: { from?: string; to?: string }; valid: boolean };
+
+export function PhysicsCurve({ p, wide, range }: { p: CurvePhysicsJson; wide: boolean; range?: VocRangeInput }) {
   const router = useRouter();
   const s = p.single;
   const c = p.conditions;
   const module = c.cells > 1 || isAboveElv(p.curve.metrics.voc_v);
   const coef = s?.coefficient;
   const lawName = (law: string) => (law === 'desoto' ? 'I0 ∝ T³·exp(−Eg/kT) (De Soto et al. 2006)' : 'I0 ∝ n_i(T)^(2/n)');
-  const conditions = [`${c.temp_c} °C`, c.irradiance_w_m2 != null ? `${c.irradiance_w_m2} W/m²` : 'irradiance not given', `${c.cells} cell${c.cells === 1 ? '' : 's'} in series`, c.area_cm2 != null ? `${c.area_cm2} cm²` : 'no area'].join(' · ');
+  const conditions = [fmtParam('temp_c', c.temp_c), c.irradiance_w_m2 != null ? fmtParam('irradiance_w_m2', c.irradiance_w_m2) : 'irradiance not given', `${c.cells} cell${c.cells === 1 ? '' : 's'} in series`, c.area_cm2 != null ? fmtParam('area_cm2', c.area_cm2) : 'no area'].join(' · ');
   const measured = useMemo(() => ({ temp_c: c.temp_c, voc_v: p.curve.metrics.voc_v }), [c.temp_c, p.curve.metrics.voc_v]);
 
   const head = (
@@ -52,7 +58,7 @@ export function PhysicsCurve({ p, wide }: { p: CurvePhysicsJson; wide: boolean }
         <View style={styles.empty} testID="physics-curve-empty">
           <Txt variant="body">This curve has no converged single-diode fit, so J0 and its temperature behaviour cannot be derived. Fit it again from the curve page.</Txt>
           {p.notes.map((n) => (
-            <Txt key={n} variant="caption">{n}</Txt>
+            <Txt key={n} variant="caption">{keysToWords(n)}</Txt>
           ))}
         </View>
       </View>
@@ -103,13 +109,16 @@ export function PhysicsCurve({ p, wide }: { p: CurvePhysicsJson; wide: boolean }
     </Card>
   );
 
+  const points = s.voc_vs_temperature?.points ?? [];
+  const shownRange = points.length ? `${fmtParam('temp_c', points[0].temp_c)} to ${fmtParam('temp_c', points[points.length - 1].temp_c)}` : '';
   const chart = (
     <Card title="Voc across cell temperature">
-      {s.voc_vs_temperature ? (
+      {range ? <PhysicsRange unit="°C" from={range.from} to={range.to} onFrom={range.onFrom} onTo={range.onTo} errors={range.errors} defaults={VOC_RANGE_C} testID="voc-range" /> : null}
+      {range && !range.valid ? null : s.voc_vs_temperature ? (
         <>
           <PhysicsVocChart points={s.voc_vs_temperature.points} measured={measured} testID="voc-temperature-chart" />
           <Txt variant="caption">
-            ━ predicted from the single-diode fit ({lawName(s.voc_vs_temperature.law)}, n, Rs, Rsh held) ◆ measured {fmtParam('voc_v', measured.voc_v)} at {measured.temp_c} °C. −40 to +85 °C. The coldest morning gives the highest voltage.
+            ━ predicted from the single-diode fit ({lawName(s.voc_vs_temperature.law)}, n, Rs, Rsh held) ◆ measured {fmtParam('voc_v', measured.voc_v)} at {measured.temp_c} °C. {shownRange}. The coldest morning gives the highest voltage.
           </Txt>
         </>
       ) : (
@@ -171,7 +180,7 @@ export function PhysicsCurve({ p, wide }: { p: CurvePhysicsJson; wide: boolean }
       )}
       {p.notes.length ? (
         <Txt variant="caption" testID="physics-notes">
-          {p.notes.join(' ')}
+          {keysToWords(p.notes.join(' '))}
         </Txt>
       ) : null}
     </View>

@@ -1,4 +1,4 @@
-import { useEffect, useState } from 'react';
+import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { BandDiagram } from '@/components/band-diagram';
 import { Card } from '@/components/card';
@@ -6,17 +6,23 @@ import { PhysicsChoice } from '@/components/physics-choice';
 import { PhysicsColumns } from '@/components/physics-columns';
 import { PhysicsMaterialFigures } from '@/components/physics-material-figures';
 import { PhysicsOccupationChart } from '@/components/physics-occupation-chart';
+import { PhysicsRange } from '@/components/physics-range';
 import { PhysicsSplitting } from '@/components/physics-splitting';
 import { PhysicsStepper } from '@/components/physics-stepper';
 import { eV } from '@/components/physics-units';
 import { QueryState } from '@/components/query-state';
 import { theme } from '@/components/theme';
+import { useSettled } from '@/components/use-settled';
 import { Txt } from '@/components/txt';
+import { ApiError, toUserMessage } from '@/lib/api/client';
 import { useBandDiagram, useMaterial } from '@/lib/api/physics';
 import { sig } from '@/lib/format';
 import { ZERO_C_IN_K } from '@/lib/physics/constants';
-import { bandDiagramSchema } from '@/lib/schemas/physics';
+import { NI_RANGE_K } from '@/lib/schemas/physics';
 import type { BandDiagramRequest } from '@/lib/schemas/physics';
+import { checkExplorer, checkRange } from '@/lib/schemas/physics-form';
+import type { ExplorerField } from '@/lib/schemas/physics-form';
+import { labelOf } from '@/lib/vocabulary';
 
 /** Temperatures the steppers stay within, K (the silicon model's range; the server checks too). */
 const TEMP_LIMITS_K = { min: 150, max: 500 };
@@ -27,6 +33,14 @@ const DENSITY_LIMITS = { min: 1e8, max: 1e21 };
 function readNumber(text: string): number {
   const t = text.trim().replace(/\s+/g, '').replace(',', '.');
   return t === '' ? Number.NaN : Number(t);
+}
+
+/** The explorer field an API error names (its `details.input`), if any. */
+const FIELD_OF_INPUT: Record<string, ExplorerField> = { temp_k: 'temp', doping_cm3: 'doping', excess_cm3: 'excess' };
+function fieldOfError(error: unknown): ExplorerField | null {
+  if (!(error instanceof ApiError)) return null;
+  const input = (error.details as { input?: string } | undefined)?.input;
+  return input ? (FIELD_OF_INPUT[input] ?? null) : null;
 }
 
 /** The next value of the 1-2-5 series up or down from x (0 below the lowest step). */
@@ -49,16 +63,6 @@ function densityText(x: number): string {
   return `${m}e${e}`;
 }
 
-/** The value after it has stopped changing for `ms` (typing should not send a request per key). */
-function useSettled<T>(value: T, ms = 250): T {
-  const [settled, setSettled] = useState(value);
-  const key = JSON.stringify(value);
-  useEffect(() => {
-    const t = setTimeout(() => setSettled(value), ms);
-    return () => clearTimeout(t);
-  }, [key, ms]);
-  return settled;
-}
 
 /**
  * The explorer: temperature, doping and injection in, the splitting, the band diagram, the
@@ -71,17 +75,27 @@ export function PhysicsExplorer({ wide }: { wide: boolean }) {
   const [dopingText, setDopingText] = useState('1e16');
   const [excessText, setExcessText] = useState('1e15');
   const [scale, setScale] = useState<'log' | 'linear'>('log');
+  const [niFrom, setNiFrom] = useState('');
+  const [niTo, setNiTo] = useState('');
 
-  const tempValue = readNumber(tempText);
-  const temp_k = Number.isFinite(tempValue) ? (unit === 'K' ? tempValue : tempValue + ZERO_C_IN_K) : null;
-  const tempError = temp_k == null ? `Write the temperature as a number in ${unit === 'K' ? 'kelvin' : '°C'}.` : null;
-
-  const parsed = bandDiagramSchema.safeParse({ type, doping_cm3: dopingText, excess_cm3: excessText, temp_k: temp_k ?? Number.NaN });
-  const fieldError = (name: string) => (parsed.success ? null : (parsed.error.issues.find((i) => i.path[0] === name)?.message ?? null));
-  const settledRequest = useSettled<BandDiagramRequest | null>(parsed.success && temp_k != null ? parsed.data : null);
+  // Every field checked before anything is sent; an invalid one shows its error at the field and
+  // no result is shown for it (never the answer to an earlier input).
+  const checked = checkExplorer({ tempText, unit, type, dopingText, excessText });
+  const temp_k = checked.temp_k;
+  const niRange = checkRange(niFrom, niTo, 'K', NI_RANGE_K);
+  const settledRequest = useSettled<BandDiagramRequest | null>(checked.request);
   const settledTempK = useSettled(temp_k);
-  const material = useMaterial(settledTempK);
+  const settledNiRange = useSettled(niRange.range ? { from_k: niRange.range.from, to_k: niRange.range.to } : null);
+  const material = useMaterial(settledTempK, settledNiRange);
   const diagram = useBandDiagram(settledRequest);
+
+  // A refusal by the server goes to the field it names, once; the result cards then show nothing.
+  const diagramField = diagram.isError && !diagram.isFetching ? fieldOfError(diagram.error) : null;
+  const materialField = material.isError && !material.isFetching ? fieldOfError(material.error) : null;
+  const errorAt = (f: ExplorerField) =>
+    checked.errors[f] ?? (diagramField === f ? toUserMessage(diagram.error) : materialField === f ? toUserMessage(material.error) : null);
+  const inputInvalid = Object.keys(checked.errors).length > 0 || diagramField !== null;
+  const tempInvalid = !!checked.errors.temp || materialField === 'temp';
 
   const setUnitKeepingValue = (u: 'K' | 'C') => {
     if (u === unit) return;
@@ -125,7 +139,7 @@ export function PhysicsExplorer({ wide }: { wide: boolean }) {
             value={tempText}
             onChangeText={setTempText}
             onStep={stepTemp}
-            error={tempError}
+            error={errorAt('temp')}
             note={temp_k != null ? (unit === 'K' ? `= ${(temp_k - ZERO_C_IN_K).toFixed(2)} °C` : `= ${temp_k.toFixed(2)} K`) : undefined}
             testID="temp"
           />
@@ -141,13 +155,13 @@ export function PhysicsExplorer({ wide }: { wide: boolean }) {
             ]}
             testID="doping-type"
           />
-          <PhysicsStepper label="Doping density" unit="cm⁻³" value={dopingText} onChangeText={setDopingText} onStep={(d) => stepDensity(dopingText, setDopingText, d)} error={fieldError('doping_cm3')} note={dopingNote} testID="doping" />
+          <PhysicsStepper label={labelOf('doping_cm3')} unit="cm⁻³" value={dopingText} onChangeText={setDopingText} onStep={(d) => stepDensity(dopingText, setDopingText, d)} error={errorAt('doping')} note={dopingNote} testID="doping" />
         </View>
         <View style={styles.controlCell}>
-          <PhysicsStepper label="Excess carrier density (injection)" unit="cm⁻³" value={excessText} onChangeText={setExcessText} onStep={(d) => stepDensity(excessText, setExcessText, d)} error={fieldError('excess_cm3')} note={excessNote} testID="excess" />
+          <PhysicsStepper label={labelOf('excess_cm3')} unit="cm⁻³" value={excessText} onChangeText={setExcessText} onStep={(d) => stepDensity(excessText, setExcessText, d)} error={errorAt('excess')} note={excessNote} testID="excess" />
         </View>
       </View>
-      <Txt variant="caption">Steps: 5 K; densities through 1, 2, 5 × 10ⁿ. Type values such as 3.3e15. Dopants fully ionised, no band-gap narrowing.</Txt>
+      <Txt variant="caption">Steps: 5 K; densities through 1, 2, 5 × 10ⁿ. Type values such as 3.3e15. The excess carrier density is the injection (Δn = Δp). Dopants fully ionised, no band-gap narrowing.</Txt>
     </Card>
   );
 
@@ -200,9 +214,23 @@ export function PhysicsExplorer({ wide }: { wide: boolean }) {
     </Card>
   );
 
-  const ni = (
+  const ni = tempInvalid ? null : (
     <Card title="Intrinsic carrier density" testID="ni-card">
-      <QueryState query={material}>{(m) => <PhysicsMaterialFigures m={m} />}</QueryState>
+      <PhysicsRange unit="K" from={niFrom} to={niTo} onFrom={setNiFrom} onTo={setNiTo} errors={niRange.errors} defaults={NI_RANGE_K} testID="ni-range" />
+      <QueryState query={material}>{(m) => <PhysicsMaterialFigures m={m} showChart={niRange.range !== null} />}</QueryState>
+    </Card>
+  );
+
+  // One card instead of three while the input is not valid or the server could not answer it:
+  // the field says what is wrong (or this card, once, when no field is to blame).
+  const blocked = inputInvalid || (diagram.isError && !diagram.isFetching);
+  const noResult = (
+    <Card title="Results" testID="physics-no-result">
+      {inputInvalid ? (
+        <Txt variant="body">No results while an input is not valid; the message at it says what to change.</Txt>
+      ) : (
+        <QueryState query={diagram}>{() => null}</QueryState>
+      )}
     </Card>
   );
 
@@ -212,12 +240,12 @@ export function PhysicsExplorer({ wide }: { wide: boolean }) {
         <PhysicsColumns wide>
           <View style={{ flex: 1, gap: 16 }}>
             {controls}
-            {splitting}
+            {blocked ? null : splitting}
             {ni}
           </View>
           <View style={{ flex: 1.25, gap: 16 }}>
-            {band}
-            {occupation}
+            {blocked ? noResult : band}
+            {blocked ? null : occupation}
           </View>
         </PhysicsColumns>
       </View>
@@ -226,9 +254,9 @@ export function PhysicsExplorer({ wide }: { wide: boolean }) {
   return (
     <View style={{ gap: 16 }}>
       {controls}
-      {splitting}
-      {band}
-      {occupation}
+      {blocked ? noResult : splitting}
+      {blocked ? null : band}
+      {blocked ? null : occupation}
       {ni}
     </View>
   );

@@ -52,7 +52,7 @@ export function PhysicsStepper({
         </Pressable>
       </View>
       {error ? (
-        <Txt variant="caption" style={{ color: theme.color.danger }} accessibilityRole="alert">
+        <Txt variant="caption" style={{ color: theme.color.danger }} accessibilityRole="alert" testID={`${testID}-error`}>
           {error}
         </Txt>
       ) : note ? (

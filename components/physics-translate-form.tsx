@@ -1,5 +1,7 @@
 import { zodResolver } from '@hookform/resolvers/zod';
+import { useEffect } from 'react';
 import { Controller, useForm } from 'react-hook-form';
+import type { Path } from 'react-hook-form';
 import { StyleSheet, View } from 'react-native';
 import { Button } from '@/components/button';
 import { Figure } from '@/components/figure';
@@ -8,12 +10,14 @@ import { IvChart } from '@/components/iv-chart';
 import { PhysicsChoice } from '@/components/physics-choice';
 import { TextField } from '@/components/text-field';
 import { Txt } from '@/components/txt';
+import { ApiError, toUserMessage } from '@/lib/api/client';
 import { useTranslate } from '@/lib/api/physics';
 import type { CurvePhysicsJson, TranslatedFigures } from '@/lib/api/physics';
 import { fmtParam } from '@/lib/format';
 import { thermal_voltage_v } from '@/lib/physics/constants';
 import { METHOD_COEFFICIENTS, TRANSLATION_COEFFICIENTS, TRANSLATION_METHOD_LABELS, TRANSLATION_METHODS, translateSchema } from '@/lib/schemas/physics';
 import type { TranslateInput, TranslateRequest, TranslationCoefficient, TranslationMethod } from '@/lib/schemas/physics';
+import { keysToWords } from '@/lib/schemas/field-words';
 
 /** The relative Isc coefficient suggested when none is measured: +0.05 %/K (common practice, c-Si). */
 const ALPHA_REL_PER_K = 0.0005;
@@ -76,14 +80,30 @@ export function PhysicsTranslateForm({ physics }: { physics: CurvePhysicsJson })
     i0_law: 'desoto',
     ...Object.fromEntries(Object.entries(hints).map(([k, h]) => [k, h.value])),
   };
-  const { control, handleSubmit, watch } = useForm<TranslateInput, unknown, TranslateRequest>({
+  const { control, handleSubmit, watch, setError } = useForm<TranslateInput, unknown, TranslateRequest>({
     resolver: zodResolver(translateSchema),
     defaultValues: defaults,
     shouldUnregister: true,
+    mode: 'onTouched',
   });
   const method = (watch('method') ?? 'model') as TranslationMethod;
   const fields = [...METHOD_COEFFICIENTS[method].required, ...METHOD_COEFFICIENTS[method].optional];
-  const submit = handleSubmit((v) => translate.mutate(v));
+  const { reset: dropResult } = translate;
+  // An invalid input drops the previous translation: no answer stands beside input it does not answer.
+  const submit = handleSubmit((v) => translate.mutate(v), () => dropResult());
+  useEffect(() => {
+    const sub = watch((values) => {
+      if (!translateSchema.safeParse(values).success) dropResult();
+    });
+    return () => sub.unsubscribe();
+  }, [watch, dropResult]);
+  // A refusal naming an input on the form (details.input: "to.temp_c", "rs_ohm") is said at that field.
+  const refusedInput = translate.error instanceof ApiError ? (translate.error.details as { input?: string } | undefined)?.input : undefined;
+  const fieldNames = ['to.irradiance_w_m2', 'to.temp_c', ...fields];
+  const refusedField = refusedInput && fieldNames.includes(refusedInput) ? (refusedInput as Path<TranslateInput>) : null;
+  useEffect(() => {
+    if (refusedField) setError(refusedField, { type: 'server', message: toUserMessage(translate.error) }, { shouldFocus: true });
+  }, [refusedField, translate.error, setError]);
   const result = translate.data;
 
   return (
@@ -138,7 +158,7 @@ export function PhysicsTranslateForm({ physics }: { physics: CurvePhysicsJson })
       ) : (
         <Txt variant="caption">IEC 60891 wants coefficients measured on this kind of module. The suggestions come from this curve’s fit and common practice; replace them with measured values before relying on the result.</Txt>
       )}
-      <FormError error={translate.error} />
+      <FormError error={refusedField ? null : translate.error} />
       <Button label="Translate" onPress={submit} busy={translate.isPending} testID="translate-submit" />
       {result ? (
         <View style={{ gap: 10 }} testID="translate-result">
@@ -148,7 +168,7 @@ export function PhysicsTranslateForm({ physics }: { physics: CurvePhysicsJson })
           {result.figures ? <FigureRow figures={result.figures} measured={physics.curve.metrics} /> : <Txt variant="body">No key figures for the translated curve: {result.figures_error}</Txt>}
           <IvChart mode="iv" measured={result.measured.curve} model={result.curve} labels={{ model: 'translated' }} height={240} testID="translate-chart" />
           <Txt variant="caption">
-            {result.points_total > result.curve.voltage_v.length ? `Translated curve drawn with ${result.curve.voltage_v.length} of ${result.points_total} points. ` : ''}{result.figures_source === 'model' ? 'Figures from the translated model.' : 'Figures from the translated curve.'} {result.notes.join(' · ')}
+            {result.points_total > result.curve.voltage_v.length ? `Translated curve drawn with ${result.curve.voltage_v.length} of ${result.points_total} points. ` : ''}{result.figures_source === 'model' ? 'Figures from the translated model.' : 'Figures from the translated curve.'} {keysToWords(result.notes.join(' · '))}
           </Txt>
         </View>
       ) : null}

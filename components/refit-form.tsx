@@ -10,6 +10,7 @@ import type { CurveDetail } from '@/lib/api/batches';
 import { useRefit } from '@/lib/api/batches';
 import { refitSchema } from '@/lib/schemas/curves';
 import type { RefitInput } from '@/lib/schemas/curves';
+import { labelWithUnit } from '@/lib/vocabulary';
 
 function Choice<T extends string>({ value, options, onChange, label }: { value: T; options: { value: T; label: string }[]; onChange: (v: T) => void; label: string }) {
   return (
@@ -50,10 +51,10 @@ export function RefitForm({ c, onDone }: { c: CurveDetail; onDone?: () => void }
         <Choice label="Double-diode ideality factors" value={(field.value ?? 'fixed') as 'fixed' | 'free'} onChange={field.onChange} options={[{ value: 'fixed', label: 'Fixed n1 = 1, n2 = 2' }, { value: 'free', label: 'Free in [1, 2] (slower)' }]} />
       )} />
       <View style={styles.grid}>
-        <View style={styles.cell}><TextField control={control} name="temp_c" label="Cell temp. (°C)" keyboardType="numeric" /></View>
-        <View style={styles.cell}><TextField control={control} name="irradiance_w_m2" label="Irradiance (W/m²)" keyboardType="numeric" /></View>
-        <View style={styles.cell}><TextField control={control} name="cells" label="Cells in series" keyboardType="numeric" /></View>
-        <View style={styles.cell}><TextField control={control} name="area_cm2" label="Area (cm²)" keyboardType="numeric" /></View>
+        <View style={styles.cell}><TextField control={control} name="temp_c" label={labelWithUnit('temp_c')} keyboardType="numeric" /></View>
+        <View style={styles.cell}><TextField control={control} name="irradiance_w_m2" label={labelWithUnit('irradiance_w_m2')} keyboardType="numeric" /></View>
+        <View style={styles.cell}><TextField control={control} name="cells" label={labelWithUnit('cells')} keyboardType="numeric" /></View>
+        <View style={styles.cell}><TextField control={control} name="area_cm2" label={labelWithUnit('area_cm2')} keyboardType="numeric" /></View>
       </View>
       <FormError error={refit.error} />
       <Button label="Fit again" onPress={submit} busy={refit.isPending} testID="refit-submit" />

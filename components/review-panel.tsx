@@ -16,6 +16,8 @@ import { passFailUrl, reportUrl, useDecision, useEvaluation, useReopen, useRevie
 import type { Me } from '@/lib/api/session';
 import type { Permission } from '@/lib/auth/roles';
 import { downloadFromUrl } from '@/lib/download';
+import { formatDateTime } from '@/lib/format';
+import { labelOf } from '@/lib/vocabulary';
 
 const ACTION_WORDS: Record<string, string> = { submitted: 'submitted for review', released: 'released', held: 'put on hold', reopened: 'reopened' };
 
@@ -111,7 +113,7 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
                         {failing.length > 25 ? <Txt variant="caption">…and {failing.length - 25} more in the pass/fail list.</Txt> : null}
                       </View>
                     ) : null}
-                    {outliers.length ? <Txt variant="caption">Outliers: {outliers.map((x) => `${x.device_id} (${x.outlier_params.join(', ')})`).join('; ')}</Txt> : null}
+                    {outliers.length ? <Txt variant="caption">Outliers: {outliers.map((x) => `${x.device_id} (${x.outlier_params.map(labelOf).join(', ')})`).join('; ')}</Txt> : null}
                     {/* The pass/fail list is downloaded here: its high-voltage caution is shown beside it, not written into the file. */}
                     <CautionBlock />
                     <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: 8 }}>
@@ -191,7 +193,7 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
             <Txt variant="label">Record</Txt>
             {d.reviews.map((r) => (
               <Txt key={r.id} variant="caption">
-                {new Date(r.created_at).toLocaleString()} · {r.actor ?? 'someone'} {ACTION_WORDS[r.action] ?? r.action}
+                {formatDateTime(r.created_at)} · {r.actor ?? 'someone'} {ACTION_WORDS[r.action] ?? r.action}
                 {r.counts && r.counts.pass != null ? ` · ${r.counts.pass} pass, ${r.counts.fail} fail, ${r.counts.outliers} outliers` : ''}
                 {r.comment ? ` · “${r.comment}”` : ''}
                 {r.release_id && releaseCsv.get(r.release_id) ? (

@@ -1,5 +1,5 @@
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useState } from 'react';
+import { useEffect, useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
 import { Button } from '@/components/button';
@@ -10,7 +10,8 @@ import { TextField } from '@/components/text-field';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import { useBatches } from '@/lib/api/batches';
-import { stringSizeSchema } from '@/lib/schemas/strings';
+import { sizingFieldOf, sizingMessageForForm, stringSizeSchema } from '@/lib/schemas/strings';
+import { labelWithUnit } from '@/lib/vocabulary';
 import type { StringSizeInput, StringSizeRequest } from '@/lib/schemas/strings';
 
 type Mode = 'batch' | 'typed';
@@ -33,22 +34,33 @@ function Chips<T extends string>({ value, options, onChange, label }: { value: T
 
 const NUMERIC = { keyboardType: 'numbers-and-punctuation' as const, inputMode: 'decimal' as const };
 
+/** The module fields, which the batch mode hides unless its values are overridden. */
+const MODULE_FIELDS = ['voc_stc_v', 'beta_voc_pct_per_k', 'vmp_stc_v', 'beta_vmp_pct_per_k'] as const;
+/** Every field that shows its own error (the system limit's under its chips when no field is open). */
+const FORM_FIELDS = [...MODULE_FIELDS, 't_min_c', 't_cell_max_c', 'v_sys_v', 'mpp_window_min_v', 'mpp_window_max_v'] as const;
+
 /**
  * The inputs of string sizing: a batch (its worst module and coefficients) or typed module
  * values, then the site (record low, hottest cell), the system voltage limit and the inverter's
- * MPP window. Checked with the same zod schema as POST /api/strings/size.
+ * MPP window. Checked with the same zod schema as POST /api/strings/size, as each field is left
+ * and on sizing. Every error is shown once, at its field: the schema's, and the server's when it
+ * names a field on the form; only a message about no field on the form shows by the button. As
+ * soon as the input is not valid, `onInvalid` lets the screen drop the previous result.
  */
 export function StringForm({
   onSubmit,
+  onInvalid,
   busy,
-  error,
+  serverError,
   summary,
   wide,
 }: {
   onSubmit: (v: StringSizeRequest) => void;
+  /** The input is not valid (any field): the previous result no longer answers it. */
+  onInvalid: () => void;
   busy: boolean;
-  /** A sentence to show by the button (the failed request's message, on a phone). */
-  error: string | null;
+  /** The failed request's message as the API sent it (its keys are turned into the form's labels here), and when it was sent. */
+  serverError: { message: string; at: number } | null;
   /** One line of the result by the button, so a phone user knows it is below. */
   summary: string | null;
   wide: boolean;
@@ -61,14 +73,34 @@ export function StringForm({
   const {
     control,
     handleSubmit,
+    setError,
     setValue,
     watch,
     formState: { errors },
   } = useForm<StringSizeInput, unknown, StringSizeRequest>({
     resolver: zodResolver(stringSizeSchema),
+    // A field is checked when it is left, then as it changes: the error stands at the field.
+    mode: 'onTouched',
     defaultValues: { batch_id: '', voc_stc_v: '', beta_voc_pct_per_k: '', vmp_stc_v: '', beta_vmp_pct_per_k: '', t_min_c: '', t_cell_max_c: '', v_sys_v: '', mpp_window_min_v: '', mpp_window_max_v: '' },
   });
   const batch_id = watch('batch_id');
+  const moduleShown = mode === 'typed' || overrides;
+
+  // Any edit that makes the input invalid drops the result it no longer answers.
+  useEffect(() => {
+    const sub = watch((values) => {
+      if (!stringSizeSchema.safeParse(values).success) onInvalid();
+    });
+    return () => sub.unsubscribe();
+  }, [watch, onInvalid]);
+
+  // The server's message goes to the field it names when that field is on the form.
+  const serverField = serverError ? sizingFieldOf(serverError.message) : null;
+  const placed = serverField !== null && (FORM_FIELDS as readonly string[]).includes(serverField) && (moduleShown || !(MODULE_FIELDS as readonly string[]).includes(serverField));
+  useEffect(() => {
+    if (serverError && placed && serverField) setError(serverField, { type: 'server', message: sizingMessageForForm(serverError.message) }, { shouldFocus: true });
+  }, [serverError, placed, serverField, setError]);
+  const boxError = serverError && !placed ? sizingMessageForForm(serverError.message) : null;
 
   const submit = handleSubmit((v) => {
     if (mode === 'batch' && !v.batch_id) {
@@ -78,14 +110,14 @@ export function StringForm({
     setPickError(null);
     if (mode === 'typed') onSubmit({ ...v, batch_id: undefined });
     else onSubmit(overrides ? v : { ...v, voc_stc_v: undefined, beta_voc_pct_per_k: undefined, vmp_stc_v: undefined, beta_vmp_pct_per_k: undefined });
-  });
+  }, onInvalid);
 
   const moduleFields = (
     <View style={styles.grid}>
-      <View style={styles.cell}><TextField control={control} name="voc_stc_v" label="Voc at STC (V)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. 49.5'} hint="Use the highest module, not the mean." testID="voc-stc" /></View>
-      <View style={styles.cell}><TextField control={control} name="beta_voc_pct_per_k" label="Voc coefficient (%/K)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. −0.28'} hint="Negative for silicon." testID="beta-voc" /></View>
-      <View style={styles.cell}><TextField control={control} name="vmp_stc_v" label="Vmp at STC (V)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. 41.2'} hint="For the MPP window." testID="vmp-stc" /></View>
-      <View style={styles.cell}><TextField control={control} name="beta_vmp_pct_per_k" label="Vmp coefficient (%/K)" {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. −0.37'} hint="For the MPP window." testID="beta-vmp" /></View>
+      <View style={styles.cell}><TextField control={control} name="voc_stc_v" label={labelWithUnit('voc_stc_v')} {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. 49.5'} hint="Use the highest module, not the mean." testID="voc-stc" /></View>
+      <View style={styles.cell}><TextField control={control} name="beta_voc_pct_per_k" label={labelWithUnit('beta_voc_pct_per_k')} {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. −0.28'} hint="Negative for silicon." testID="beta-voc" /></View>
+      <View style={styles.cell}><TextField control={control} name="vmp_stc_v" label={labelWithUnit('vmp_stc_v')} {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. 41.2'} hint="For the MPP window." testID="vmp-stc" /></View>
+      <View style={styles.cell}><TextField control={control} name="beta_vmp_pct_per_k" label={labelWithUnit('beta_vmp_pct_per_k')} {...NUMERIC} placeholder={mode === 'batch' ? 'from the batch' : 'e.g. −0.37'} hint="For the MPP window." testID="beta-vmp" /></View>
     </View>
   );
 
@@ -128,7 +160,7 @@ export function StringForm({
                           <View style={[styles.radio, on && styles.radioOn]} />
                           <View style={{ flex: 1, gap: 2 }}>
                             <Txt variant="body" style={{ fontFamily: theme.font.medium }} numberOfLines={2}>{b.name}</Txt>
-                            <Txt variant="caption">{[b.product_type, b.cells && `${b.cells} cells in series`, b.batch_date].filter(Boolean).join(' · ') || 'No description'}</Txt>
+                            <Txt variant="caption">{[b.product_type, b.cells && `${b.cells} cell${b.cells === 1 ? '' : 's'} in series`, b.batch_date].filter(Boolean).join(' · ') || 'No description'}</Txt>
                           </View>
                         </Pressable>
                       );
@@ -153,10 +185,10 @@ export function StringForm({
       <Card title="Site and inverter">
         <View style={styles.grid}>
           <View style={styles.cell}>
-            <TextField control={control} name="t_min_c" label="Record low ambient (°C)" {...NUMERIC} placeholder="e.g. −15" hint="The lowest ever recorded, not an average: cells sit at ambient at first light." testID="tmin" />
+            <TextField control={control} name="t_min_c" label={labelWithUnit('t_min_c')} {...NUMERIC} placeholder="e.g. −15" hint="The lowest ever recorded, not an average: cells sit at ambient at first light." testID="tmin" />
           </View>
           <View style={styles.cell}>
-            <TextField control={control} name="t_cell_max_c" label="Hottest cell temperature (°C)" {...NUMERIC} placeholder="e.g. 70" hint="Needed for the least modules." testID="tcellmax" />
+            <TextField control={control} name="t_cell_max_c" label={labelWithUnit('t_cell_max_c')} {...NUMERIC} placeholder="e.g. 70" hint="Needed for the least modules." testID="tcellmax" />
           </View>
         </View>
         <Chips<Limit>
@@ -173,15 +205,15 @@ export function StringForm({
           ]}
         />
         {limit === 'other' ? (
-          <TextField control={control} name="v_sys_v" label="System voltage limit (V DC)" {...NUMERIC} hint="The lower of the modules’ and the inverter’s rating." testID="vsys" />
+          <TextField control={control} name="v_sys_v" label={labelWithUnit('v_sys_v')} {...NUMERIC} hint="The lower of the modules’ and the inverter’s rating." testID="vsys" />
         ) : errors.v_sys_v?.message ? (
           <Txt variant="caption" style={{ color: theme.color.danger }} accessibilityRole="alert">{errors.v_sys_v.message}</Txt>
         ) : null}
         <View style={styles.grid}>
-          <View style={styles.cell}><TextField control={control} name="mpp_window_min_v" label="MPP window from (V)" {...NUMERIC} placeholder="e.g. 500" testID="mpp-min" /></View>
-          <View style={styles.cell}><TextField control={control} name="mpp_window_max_v" label="MPP window to (V)" {...NUMERIC} placeholder="e.g. 1300" testID="mpp-max" /></View>
+          <View style={styles.cell}><TextField control={control} name="mpp_window_min_v" label={labelWithUnit('mpp_window_min_v')} {...NUMERIC} placeholder="e.g. 500" testID="mpp-min" /></View>
+          <View style={styles.cell}><TextField control={control} name="mpp_window_max_v" label={labelWithUnit('mpp_window_max_v')} {...NUMERIC} placeholder="e.g. 1300" testID="mpp-max" /></View>
         </View>
-        {error ? <SizingError message={error} /> : null}
+        {boxError ? <SizingError message={boxError} /> : null}
         <Button label="Size the string" onPress={submit} busy={busy} testID="size-submit" />
         {summary ? <Txt variant="label" style={{ color: theme.color.electron }} testID="size-summary">{summary}</Txt> : null}
       </Card>

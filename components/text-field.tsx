@@ -5,7 +5,7 @@ import type { Control, FieldValues, Path } from 'react-hook-form';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 
-/** A labelled text input bound to a react-hook-form field, with its validation message. */
+/** A labelled text input bound to a react-hook-form field, with its validation message under it (testID `<testID>-error`). */
 export function TextField<T extends FieldValues>({
   control,
   name,
@@ -30,7 +30,7 @@ export function TextField<T extends FieldValues>({
             {...input}
           />
           {error ? (
-            <Txt variant="caption" style={styles.error} accessibilityRole="alert">
+            <Txt variant="caption" style={styles.error} accessibilityRole="alert" testID={input.testID ? `${input.testID}-error` : undefined}>
               {error.message}
             </Txt>
           ) : hint ? (

@@ -11,7 +11,7 @@
 import { sig } from '@/lib/numeric/significant';
 
 /** Where a quantity comes from. */
-export type QuantityGroup = 'curve' | 'metric' | 'fit' | 'derived' | 'material' | 'carriers' | 'device' | 'translation' | 'strings' | 'characterisation' | 'uncertainty';
+export type QuantityGroup = 'curve' | 'metric' | 'fit' | 'derived' | 'material' | 'carriers' | 'device' | 'translation' | 'strings' | 'characterisation' | 'uncertainty' | 'statistic' | 'record';
 
 export type Quantity = {
   /** snake_case with the unit as suffix, e.g. "isc_a", "temp_c". */
@@ -121,10 +121,12 @@ export const QUANTITIES: readonly Quantity[] = [
   q('material', 'kt_ev', 'kT', 'eV'),
   q('material', 'max_doping_cm3', 'Largest doping', 'cm⁻³'),
   q('material', 'model_at_reference_cm3', 'n_i of the model at the reference', 'cm⁻³'),
+  q('material', 'from_k', 'From', 'K'),
+  q('material', 'to_k', 'To', 'K'),
 
   // Carriers and band diagrams (lib/physics/carriers); energies in eV from E_i.
-  q('carriers', 'doping_cm3', 'Doping', 'cm⁻³'),
-  q('carriers', 'excess_cm3', 'Excess carriers Δn', 'cm⁻³'),
+  q('carriers', 'doping_cm3', 'Doping density', 'cm⁻³'),
+  q('carriers', 'excess_cm3', 'Excess carrier density', 'cm⁻³'),
   q('carriers', 'generation_cm3_s', 'Generation rate', 'cm⁻³·s⁻¹'),
   q('carriers', 'lifetime_s', 'Lifetime', 's'),
   q('carriers', 'n_cm3', 'Electrons n', 'cm⁻³'),
@@ -255,6 +257,52 @@ export const QUANTITIES: readonly Quantity[] = [
   q('characterisation', 'kappa_residual_pct', 'κ determination: Pmax left over (RMS)', '%', { digits: 2 }),
   q('characterisation', 'a_residual_v', 'a determination: Voc left over (RMS)', 'V', { digits: 2 }),
   q('characterisation', 'relative_efficiency_pct', 'Efficiency relative to 1000 W/m²', '%', { decimals: 1 }),
+
+  // Statistics of one parameter over a batch (lib/quality describe, welch): shown in the unit of
+  // the parameter they describe, so the table gives no unit of their own. (The sample size of a
+  // description is `n` by the statistics' own convention; `n` here is the ideality factor.)
+  q('statistic', 'mean', 'Mean', ''),
+  q('statistic', 'sd', 'Standard deviation', ''),
+  q('statistic', 'min', 'Minimum', ''),
+  q('statistic', 'max', 'Maximum', ''),
+  q('statistic', 'p5', '5th percentile', ''),
+  q('statistic', 'median', 'Median', ''),
+  q('statistic', 'p95', '95th percentile', ''),
+  q('statistic', 'cpk', 'Cpk', '', { decimals: 2 }),
+  q('statistic', 'difference', 'Difference of the means', ''),
+  q('statistic', 'standard_error', 'Standard error of the difference', ''),
+  q('statistic', 'ci_low', 'Confidence interval, low end', ''),
+  q('statistic', 'ci_high', 'Confidence interval, high end', ''),
+  q('statistic', 'mean_a', 'Mean of the first batch', ''),
+  q('statistic', 'mean_b', 'Mean of the other batch', ''),
+  q('statistic', 'sd_a', 'Standard deviation of the first batch', ''),
+  q('statistic', 'sd_b', 'Standard deviation of the other batch', ''),
+  q('statistic', 'n_a', 'Devices in the first batch', '', count),
+  q('statistic', 'n_b', 'Devices in the other batch', '', count),
+  q('statistic', 't', 'Welch t', '', { digits: 3 }),
+  q('statistic', 't_critical', 'Critical t', '', { digits: 3 }),
+  q('statistic', 'dof', 'Degrees of freedom', '', { decimals: 1 }),
+  q('statistic', 'p', 'p-value', '', { digits: 2 }),
+  q('statistic', 'confidence', 'Confidence level', '%', percent(0)),
+  q('statistic', 'robust_z', 'Modified z-score', '', { digits: 3 }),
+
+  // Counts and bookkeeping numbers of the answers (batches, pages, reviews, releases, uploads).
+  q('record', 'total', 'Total', '', count),
+  q('record', 'pass', 'Passed', '', count),
+  q('record', 'fail', 'Failed', '', count),
+  q('record', 'outliers', 'Outliers', '', count),
+  q('record', 'curve_count', 'Curves', '', count),
+  q('record', 'page', 'Page', '', count),
+  q('record', 'page_size', 'Rows per page', '', count),
+  q('record', 'version', 'Version', '', count),
+  q('record', 'spec_version', 'Spec version', '', count),
+  q('record', 'base_version', 'Version edited from', '', count),
+  q('record', 'revision', 'Release revision', '', count),
+  q('record', 'accepted', 'Files accepted', '', count),
+  q('record', 'rejected', 'Files refused', '', count),
+  q('record', 'replaced', 'Curves replaced', '', count),
+  q('record', 'line', 'Line in the file', '', count),
+  q('record', 'sampled', 'Curves drawn', '', count),
 ];
 
 const BY_KEY: ReadonlyMap<string, Quantity> = (() => {
@@ -303,6 +351,23 @@ export function toShown(key: string, value: number | null | undefined): number |
   return value * (quantity(key)?.scale ?? 1);
 }
 
+/** Most digits (significant or decimals) a display ever gets: beyond it doubles show noise. */
+const MAX_PRECISION = 15;
+
+/** The table's own precision of a quantity: its fixed decimals, or its significant digits. */
+function basePrecision(x: Quantity | undefined, digits?: number): number {
+  if (x && x.decimals !== null) return x.decimals;
+  return digits ?? x?.digits ?? 4;
+}
+
+/** The shown number of a stored value at `precision` (decimals when the quantity has fixed decimals, else significant digits), no unit. */
+function shownNumber(x: Quantity | undefined, value: number, precision: number): string {
+  const shown = value * (x?.scale ?? 1);
+  return x && x.decimals !== null ? shown.toFixed(precision) : sig(shown, precision);
+}
+
+const withUnit = (x: Quantity | undefined, text: string) => (x?.unit ? `${text} ${x.unit}` : text);
+
 /**
  * A stored value for display, with its unit: "0.7603 A", "78.1 %", "3.107×10⁻⁷ A", '—' when
  * missing or not finite. `digits` overrides the table's significant digits (not fixed decimals).
@@ -311,8 +376,45 @@ export function toShown(key: string, value: number | null | undefined): number |
 export function formatValue(key: string, value: number | null | undefined, digits?: number): string {
   if (value == null || !Number.isFinite(value)) return '—';
   const x = quantity(key);
-  if (!x) return sig(value, digits ?? 4);
-  const shown = value * x.scale;
-  const text = x.decimals !== null ? shown.toFixed(x.decimals) : sig(shown, digits ?? x.digits);
-  return x.unit ? `${text} ${x.unit}` : text;
+  return withUnit(x, shownNumber(x, value, basePrecision(x, digits)));
+}
+
+/**
+ * The shown number alone ("0.7603", "78.1"), for a table cell whose header carries the unit
+ * (labelWithUnit); '—' when missing or not finite.
+ */
+export function formatNumber(key: string, value: number | null | undefined, digits?: number): string {
+  if (value == null || !Number.isFinite(value)) return '—';
+  const x = quantity(key);
+  return shownNumber(x, value, basePrecision(x, digits));
+}
+
+/**
+ * The precision (decimals or significant digits, as the table uses for the key) at which `value`
+ * shows differently from every one of `others` it does not equal: the table's own precision, or
+ * more until they differ (a Voc of 42.0011 V beside a maximum of 42 V shows as 42.001, never as
+ * "42"). Capped at 15 digits.
+ */
+export function precisionApart(key: string, value: number, others: readonly number[], digits?: number): number {
+  const x = quantity(key);
+  let p = basePrecision(x, digits);
+  const differing = others.filter((o) => Number.isFinite(o) && o !== value);
+  while (p < MAX_PRECISION && differing.some((o) => shownNumber(x, o, p) === shownNumber(x, value, p))) p++;
+  return p;
+}
+
+/**
+ * A value and the limits it is compared with, each with its unit, at one precision that tells
+ * the value apart from each limit (precisionApart): { value: "59.2 %", limits: ["70.0 %"] }.
+ */
+export function formatAgainst(key: string, value: number, limits: readonly number[]): { value: string; limits: string[] } {
+  const x = quantity(key);
+  const p = precisionApart(key, value, limits);
+  return { value: withUnit(x, shownNumber(x, value, p)), limits: limits.map((l) => withUnit(x, shownNumber(x, l, p))) };
+}
+
+/** The number alone at a precision that tells it apart from `others` (a table cell beside a limit). */
+export function formatNumberAgainst(key: string, value: number | null | undefined, others: readonly number[]): string {
+  if (value == null || !Number.isFinite(value)) return '—';
+  return shownNumber(quantity(key), value, precisionApart(key, value, others));
 }

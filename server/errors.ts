@@ -5,6 +5,7 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { ZodError } from 'zod';
 import { StorageUnavailableError } from '@/server/storage/object-store';
+import { issueText } from '@/lib/schemas/field-words';
 
 export class HttpError extends Error {
   constructor(
@@ -37,10 +38,11 @@ export const apiNotFound: RequestHandler = (req) => {
   throw new HttpError(404, 'no_such_route', `There is no API route ${req.method} ${req.path}.`);
 };
 
+/** The first five issues, each naming its field as the forms label it (the keys stay in `details`). */
 function describeZod(err: ZodError): string {
   return err.issues
     .slice(0, 5)
-    .map((i) => (i.path.length ? `${i.path.join('.')}: ${i.message}` : i.message))
+    .map((i) => issueText(i))
     .join('; ');
 }
 

@@ -1,3 +1,5 @@
+import { keysToWords } from '@/lib/schemas/field-words';
+
 /**
  * The one fetch wrapper. Every API answer that is not 2xx becomes an ApiError carrying the
  * server's `{ code, message }`; toUserMessage turns anything thrown into a sentence.
@@ -62,6 +64,8 @@ export function toUserMessage(error: unknown): string {
     // The per-account slow-down says when to try again; the per-client limit does not.
     if (error.code === 'ACCOUNT_SLOWED_DOWN') return error.message;
     if (error.code === 'TOO_MANY_REQUESTS' || error.status === 429) return 'Too many attempts. Wait a minute and try again.';
+    // The engines name their inputs by key for scripts (temp_k, doping_cm3); a person reads the label.
+    if (error.code === 'invalid_input') return keysToWords(error.message);
     return error.message;
   }
   if (error instanceof Error && error.message) return error.message;

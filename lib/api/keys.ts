@@ -59,10 +59,10 @@ export const curveKeys = {
 
 export const physicsKeys = {
   all: ['physics'] as const,
-  material: (temp_k: number) => [...physicsKeys.all, 'material', temp_k] as const,
+  material: (temp_k: number, range: { from_k: number; to_k: number } | null = null) => [...physicsKeys.all, 'material', temp_k, range] as const,
   bandDiagram: (input: BandDiagramRequest | null) => [...physicsKeys.all, 'band-diagram', input ?? 'none'] as const,
   /** Under the curve's root: a refit of the curve makes it stale. */
-  curve: (id: string) => curveKeys.physics(id),
+  curve: (id: string, range: { from_c: number; to_c: number } | null = null) => (range ? ([...curveKeys.physics(id), range] as const) : curveKeys.physics(id)),
 };
 
 export const specKeys = {

@@ -72,11 +72,14 @@ export type TranslationJson = {
 
 export { physicsKeys };
 
-/** Silicon's n_i, Eg, Nc, Nv at temp_k and n_i over 200–400 K; the previous answer stays while the next loads. */
-export function useMaterial(temp_k: number | null) {
+/** The query string of a range ("&from_k=200&to_k=400"), '' without one. */
+const rangeQuery = (range: Record<string, number> | null) => (range ? Object.entries(range).map(([k, v]) => `&${k}=${encodeURIComponent(String(v))}`).join('') : '');
+
+/** Silicon's n_i, Eg, Nc, Nv at temp_k and n_i over `range` (200–400 K without one); the previous answer stays while the next loads. */
+export function useMaterial(temp_k: number | null, range: { from_k: number; to_k: number } | null = null) {
   return useQuery({
-    queryKey: physicsKeys.material(temp_k ?? 0),
-    queryFn: () => apiFetch<MaterialJson>(`/api/physics/material?temp_k=${encodeURIComponent(String(temp_k))}`),
+    queryKey: physicsKeys.material(temp_k ?? 0, range),
+    queryFn: () => apiFetch<MaterialJson>(`/api/physics/material?temp_k=${encodeURIComponent(String(temp_k))}${rangeQuery(range)}`),
     enabled: temp_k != null,
     placeholderData: keepPreviousData,
     staleTime: Infinity,
@@ -94,12 +97,14 @@ export function useBandDiagram(input: BandDiagramRequest | null) {
   });
 }
 
-/** The physics of a curve's current fits. */
-export function useCurvePhysics(id: string | null) {
+/** The physics of a curve's current fits, with Voc predicted over `range` (−40…+85 °C without one); the previous answer stays while another range loads. */
+export function useCurvePhysics(id: string | null, range: { from_c: number; to_c: number } | null = null) {
   return useQuery({
-    queryKey: physicsKeys.curve(id ?? ''),
-    queryFn: () => apiFetch<CurvePhysicsJson>(`/api/physics/curves/${encodeURIComponent(String(id))}`),
+    queryKey: physicsKeys.curve(id ?? '', range),
+    queryFn: () => apiFetch<CurvePhysicsJson>(`/api/physics/curves/${encodeURIComponent(String(id))}${range ? `?${rangeQuery(range).slice(1)}` : ''}`),
     enabled: !!id,
+    // Another range of the same curve keeps the page while it loads; another curve does not.
+    placeholderData: (previous, previousQuery) => (previousQuery?.queryKey[1] === id ? previous : undefined),
   });
 }
 

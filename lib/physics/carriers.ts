@@ -15,7 +15,7 @@ import {
   fermiOccupation,
   inverseFermiHalfExtended,
 } from '@/lib/physics/fermi-dirac';
-import { PhysicsError, requireFinite, requireNonNegative, requirePositive } from '@/lib/physics/errors';
+import { num, PhysicsError, requireFinite, requireNonNegative, requirePositive } from '@/lib/physics/errors';
 import { materialAt, SILICON } from '@/lib/physics/materials';
 import type { MaterialModel, MaterialState } from '@/lib/physics/materials';
 
@@ -96,7 +96,7 @@ function checkDoping(input: DopingInput, material: MaterialModel): void {
   if (input.doping_cm3 > material.max_doping_cm3) {
     throw new PhysicsError(
       'doping_cm3',
-      `doping_cm3 = ${input.doping_cm3} exceeds the solubility limit of dopants in ${material.name} (${material.max_doping_cm3.toExponential(1)} cm⁻³)`,
+      `doping_cm3 = ${num(input.doping_cm3)} cm⁻³ exceeds the solubility limit of dopants in ${material.name} (${material.max_doping_cm3.toExponential(1)} cm⁻³)`,
     );
   }
 }

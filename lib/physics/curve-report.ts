@@ -13,6 +13,7 @@ import {
   impliedVocFromJ0,
   j0FromI0,
   materialAt,
+  num,
   occupationCurve,
   PhysicsError,
   predictVocVsTemperature,
@@ -31,10 +32,26 @@ import type { BandDiagramRequest, TranslateRequest } from '@/lib/schemas/physics
  */
 export const NI_REFERENCE = { temp_k: 300, ni_cm3: 9.65e9, source: 'Altermatt et al. 2003, J. Appl. Phys. 93:1598' } as const;
 
-/** Temperatures of the n_i chart, K. */
-const NI_SERIES_K = { from: 200, to: 400, step: 5 };
-/** Temperatures of the Voc prediction, °C (a module's datasheet range). */
-const VOC_SERIES_C = { from: -40, to: 85, step: 5 };
+/** About this many points on a chart's temperature axis. */
+const SERIES_POINTS = 40;
+
+/** A step of 1, 2 or 5 × 10ⁿ that cuts `span` into about SERIES_POINTS pieces. */
+function niceStep(span: number): number {
+  const raw = span / SERIES_POINTS;
+  const e = 10 ** Math.floor(Math.log10(raw));
+  return [1, 2, 5, 10].map((m) => m * e).find((s) => s >= raw) ?? 10 * e;
+}
+
+/** Throws a PhysicsError at `input` unless the chart range [from, to] (in `unit`, °C offset `offset_k`) lies in the model's temperatures. */
+function checkRange(input: { from: string; to: string }, from: number, to: number, unit: 'K' | '°C') {
+  const offset = unit === 'K' ? 0 : ZERO_C_IN_K;
+  const lo = SILICON.temp_range_k.min - offset;
+  const hi = SILICON.temp_range_k.max - offset;
+  if (!(to > from)) throw new PhysicsError(input.to, `${input.to} must be above ${input.from} (got ${num(to)} ${unit} ≤ ${num(from)} ${unit})`);
+  for (const [name, v] of [[input.from, from], [input.to, to]] as const) {
+    if (v < lo || v > hi) throw new PhysicsError(name, `${name} = ${num(v)} ${unit} is outside the ${SILICON.name} model's range ${num(lo)}…${num(hi)} ${unit}`);
+  }
+}
 /** Most points a translated curve is sent with. */
 const MAX_CURVE_POINTS = 200;
 
@@ -82,13 +99,23 @@ function attempt<T>(what: string, notes: string[], fn: () => T): T | null {
   }
 }
 
-/** n_i, Eg, Nc, Nv of silicon at temp_k (keys as `ni --json`), the Altermatt et al. (2003) reference, and n_i over 200–400 K. */
-export function materialReport(temp_k: number) {
+/**
+ * n_i, Eg, Nc, Nv of silicon at temp_k (keys as `ni --json`), the Altermatt et al. (2003)
+ * reference, and n_i from `range.from_k` to `range.to_k` (200–400 K unless given) for the chart.
+ */
+export function materialReport(temp_k: number, range: { from_k: number; to_k: number } = { from_k: 200, to_k: 400 }) {
   const s = materialAt(temp_k);
+  checkRange({ from: 'from_k', to: 'to_k' }, range.from_k, range.to_k, 'K');
+  const step = niceStep(range.to_k - range.from_k);
   const series: { temp_k: number[]; ni_cm3: number[] } = { temp_k: [], ni_cm3: [] };
-  for (let t = NI_SERIES_K.from; t <= NI_SERIES_K.to; t += NI_SERIES_K.step) {
+  for (let k = 0; range.from_k + k * step <= range.to_k + 1e-9; k++) {
+    const t = Number((range.from_k + k * step).toPrecision(12));
     series.temp_k.push(t);
     series.ni_cm3.push(materialAt(t).ni_cm3);
+  }
+  if (series.temp_k[series.temp_k.length - 1] < range.to_k) {
+    series.temp_k.push(range.to_k);
+    series.ni_cm3.push(materialAt(range.to_k).ni_cm3);
   }
   return {
     temp_k,
@@ -174,7 +201,8 @@ export function curveConditions(c: Pick<StoredCurve, 'meta'>, fit: { conditions:
  * temperature coefficient (two I0 laws), the implied Voc from Jsc and J0, the double-diode
  * recombination shares at MPP, and the stored STC figures. What cannot be computed is a note.
  */
-export function curvePhysicsReport(c: StoredCurve, fits: CurrentFits, batch: { id: string; name: string } | null) {
+export function curvePhysicsReport(c: StoredCurve, fits: CurrentFits, batch: { id: string; name: string } | null, range: { from_c: number; to_c: number } = { from_c: -40, to_c: 85 }) {
+  checkRange({ from: 'from_c', to: 'to_c' }, range.from_c, range.to_c, '°C');
   const cond = curveConditions(c, fits.single ?? fits.double);
   const notes: string[] = [];
   const cell_area_cm2 = cond.area_cm2 != null ? attempt('The cell area', notes, () => cellAreaOf(cond.area_cm2 as number, cond.cells)) : null;
@@ -198,7 +226,7 @@ export function curvePhysicsReport(c: StoredCurve, fits: CurrentFits, batch: { i
         const coefficient = attempt('The Voc temperature coefficient', notes, () => vocTempCoefficient(sp, opts));
         const coefficient_de_soto = attempt('The Voc temperature coefficient (De Soto law)', notes, () => vocTempCoefficient(sp, { ...opts, law: 'desoto' }));
         const series = attempt('Voc across temperature', notes, () =>
-          predictVocVsTemperature(sp, { cells: cond.cells, fit_temp_c: cond.temp_c, from_c: VOC_SERIES_C.from, to_c: VOC_SERIES_C.to, step_c: VOC_SERIES_C.step }),
+          predictVocVsTemperature(sp, { cells: cond.cells, fit_temp_c: cond.temp_c, from_c: range.from_c, to_c: range.to_c, step_c: niceStep(range.to_c - range.from_c) }),
         );
         return {
           params: sp,

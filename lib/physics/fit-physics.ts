@@ -17,7 +17,7 @@
  * crystalline-silicon figure (common practice). n, Rs and Rsh are held at their fitted values.
  */
 import { KB_EV_PER_K, ZERO_C_IN_K, thermal_voltage_v } from '@/lib/physics/constants';
-import { PhysicsError, requireFinite, requirePositive } from '@/lib/physics/errors';
+import { num, PhysicsError, requireFinite, requirePositive } from '@/lib/physics/errors';
 import { circuitBranchCurrents, circuitFigures, circuitVoc, doubleDiodeCircuit, singleDiodeCircuit } from '@/lib/physics/diode';
 import { checkTempK, materialAt, SILICON } from '@/lib/physics/materials';
 import type { MaterialModel } from '@/lib/physics/materials';
@@ -143,7 +143,7 @@ export function predictVocVsTemperature(
   const from_c = requireFinite('from_c', options.from_c ?? -20);
   const to_c = requireFinite('to_c', options.to_c ?? 80);
   const step_c = requirePositive('step_c', options.step_c ?? 5);
-  if (!(to_c >= from_c)) throw new PhysicsError('to_c', `to_c must not be below from_c (got ${to_c} < ${from_c})`);
+  if (!(to_c >= from_c)) throw new PhysicsError('to_c', `to_c must not be below from_c (got ${num(to_c)} °C < ${num(from_c)} °C)`);
   if ((to_c - from_c) / step_c > 1000) throw new PhysicsError('step_c', 'step_c is too small: more than 1000 points requested');
   const material = options.material ?? SILICON;
   tempKOf('from_c', from_c, material);

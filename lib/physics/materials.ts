@@ -19,7 +19,7 @@
  * band gap reported to users is Pässler's.
  */
 import { KB_EV_PER_K } from '@/lib/physics/constants';
-import { PhysicsError, requireFinite, requirePositive } from '@/lib/physics/errors';
+import { num, PhysicsError, requireFinite, requirePositive } from '@/lib/physics/errors';
 
 /** A material the carrier-statistics functions can work with. Temperatures in K, densities in cm⁻³. */
 export type MaterialModel = {
@@ -129,12 +129,12 @@ export function materialFromParameters(p: MaterialParameters): MaterialModel {
 /** Throws a PhysicsError naming `input` unless temp_k is a temperature the material model covers. */
 export function checkTempK(temp_k: number, material: MaterialModel = SILICON, input = 'temp_k'): number {
   requireFinite(input, temp_k);
-  if (temp_k <= 0) throw new PhysicsError(input, `${input} must be above 0 K (got ${temp_k} K)`);
+  if (temp_k <= 0) throw new PhysicsError(input, `${input} must be above 0 K (got ${num(temp_k)} K)`);
   const { min, max } = material.temp_range_k;
   if (temp_k < min || temp_k > max) {
     throw new PhysicsError(
       input,
-      `${input} = ${temp_k} K is outside the ${material.name} model's range ${min}–${max} K`,
+      `${input} = ${num(temp_k)} K is outside the ${material.name} model's range ${min}–${max} K`,
     );
   }
   return temp_k;

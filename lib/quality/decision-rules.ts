@@ -19,7 +19,7 @@ import type { FailReason } from '@/lib/quality/evaluate';
 import { formatValue, type ParamKey } from '@/lib/quality/params';
 import type { LimitSpec, PowerClasses, Spec } from '@/lib/quality/spec';
 import { valuePlusMinus } from '@/lib/quality/uncertainty';
-import { labelOf, unitOf } from '@/lib/vocabulary';
+import { formatAgainst, labelOf, unitOf } from '@/lib/vocabulary';
 
 export type DecisionRule = 'simple' | 'guard_band';
 export const DECISION_RULES: readonly DecisionRule[] = ['simple', 'guard_band'];
@@ -58,9 +58,15 @@ export function limitReasons(key: ParamKey, v: number, u: number | null | undefi
   const out: FailReason[] = [];
   const band = rule === 'guard_band' && u && u > 0 ? u : 0;
   const ruleNote = rule === 'guard_band' ? 'guard-band rule' : 'simple rule';
-  const said = valueWords(key, v, u);
+  // Without an uncertainty, value and limit get as many digits as it takes to tell them apart
+  // ("Voc 42.001 V is above the maximum 42 V", lib/vocabulary.ts formatAgainst).
+  const edges = [lim.min, lim.max].filter((x): x is number => x !== undefined);
+  const apart = formatAgainst(key, v, edges);
+  const plain = !(u && u > 0);
+  const said = plain ? `${labelOf(key)} ${apart.value}` : valueWords(key, v, u);
+  const boundText = (b: number) => (plain ? apart.limits[edges.indexOf(b)] : boundWords(key, b));
   if (lim.min !== undefined) {
-    const bound = `${boundWords(key, lim.min)}${nameplateNote}`;
+    const bound = `${boundText(lim.min)}${nameplateNote}`;
     if (v < lim.min) {
       out.push({ kind: 'below_min', param: key, value: v, limit: 'min', bound: lim.min, message: `${said} is below the minimum ${bound} (${ruleNote})` });
     } else if (v - band < lim.min) {
@@ -68,7 +74,7 @@ export function limitReasons(key: ParamKey, v: number, u: number | null | undefi
     }
   }
   if (lim.max !== undefined) {
-    const bound = `${boundWords(key, lim.max)}${nameplateNote}`;
+    const bound = `${boundText(lim.max)}${nameplateNote}`;
     if (v > lim.max) {
       out.push({ kind: 'above_max', param: key, value: v, limit: 'max', bound: lim.max, message: `${said} is above the maximum ${bound} (${ruleNote})` });
     } else if (v + band > lim.max) {

@@ -3,6 +3,7 @@
  * against acceptance limits.
  */
 import { QualityError } from '@/lib/quality/errors';
+import { formatNumber, formatValue, labelOf } from '@/lib/vocabulary';
 
 /** Acceptance limits of one parameter; either side may be absent. */
 export type Limits = { min?: number; max?: number };
@@ -122,4 +123,18 @@ export function describe(values: readonly number[], limits?: Limits): Descriptio
     max: sorted[sorted.length - 1],
     ...cpkOf(mu, sd, limits),
   };
+}
+
+/**
+ * One parameter's statistics in a sentence, in the screens' labels, units and digits (lib/vocabulary.ts):
+ * "Pmax at STC over 24 devices: mean 401.2 W, standard deviation 1.31 W, 5th to 95th percentile
+ * 399.0–403.1 W, Cpk 1.45 (both limits)."
+ */
+export function describeSentence(key: string, d: Description): string {
+  const v = (x: number, digits?: number) => formatValue(key, x, digits);
+  const parts = [`mean ${v(d.mean)}`];
+  if (d.sd !== null) parts.push(`standard deviation ${v(d.sd, 3)}`);
+  parts.push(d.n >= 2 ? `5th to 95th percentile ${formatNumber(key, d.p5)}–${v(d.p95)}` : `the one value ${v(d.min)}`);
+  if (d.cpk !== null) parts.push(`Cpk ${d.cpk.toFixed(2)} (${d.cpk_side === 'both' ? 'both limits' : d.cpk_side === 'upper' ? 'against the maximum' : 'against the minimum'})`);
+  return `${labelOf(key)} over ${d.n} device${d.n === 1 ? '' : 's'}: ${parts.join(', ')}.`;
 }

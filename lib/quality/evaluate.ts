@@ -6,6 +6,7 @@ import { insideGuardBand, limitReasons, limitsFor, resolvePowerClasses, ruleOf, 
 import { describe, type Description } from '@/lib/quality/describe';
 import { QualityError } from '@/lib/quality/errors';
 import { formatValue, isParamKey, PARAM_KEYS, type ParamKey } from '@/lib/quality/params';
+import { belowLowestReason, flagReason, nameplateText, noClassReason, noPowerReason, notMeasuredReason } from '@/lib/quality/reason-text';
 import { robustZ } from '@/lib/quality/robust-z';
 import type { PowerClasses, Spec } from '@/lib/quality/spec';
 import { labelOf } from '@/lib/vocabulary';
@@ -56,11 +57,6 @@ function valueOf(device: DeviceRecord, key: ParamKey): number | null {
   return v;
 }
 
-/** Nameplate text of a step class: 402.5 → "402.5", 400 → "400". */
-function nameplateText(w: number): string {
-  return String(Number(w.toFixed(6)));
-}
-
 /**
  * Power class of a module whose classed power is `power_w`, or the reason it has none.
  * Steps: class P with P − minus ≤ Pmax < P + plus (default 0/+step, common practice); above
@@ -69,13 +65,12 @@ function nameplateText(w: number): string {
  */
 export function powerClassOf(power_w: number, pc: PowerClasses): { label: string | null; problem: string | null } {
   const basis = pc.basis ?? 'pmp_w';
-  const shown = `${basis} ${formatValue(power_w)} W`;
   if (pc.bins) {
     const bin = pc.bins.find((b) => b.min_w <= power_w && power_w < b.max_w);
     if (bin) return { label: bin.label, problem: null };
     const lo = Math.min(...pc.bins.map((b) => b.min_w));
     const hi = Math.max(...pc.bins.map((b) => b.max_w));
-    return { label: null, problem: `${shown} falls in no power class (classes cover ${formatValue(lo)}–${formatValue(hi)} W)` };
+    return { label: null, problem: noClassReason(basis, power_w, lo, hi) };
   }
   const step = pc.step_w;
   if (step === undefined || !(step > 0)) throw new QualityError('power_classes needs step_w (W) or explicit bins');
@@ -84,9 +79,9 @@ export function powerClassOf(power_w: number, pc: PowerClasses): { label: string
   // The small offset keeps a value sitting exactly on a boundary (405 W with 5 W steps) in the
   // upper class despite binary rounding of (power + minus)/step.
   let nameplate = Math.floor((power_w + minus) / step + 1e-9) * step;
-  if (!(nameplate > 0)) return { label: null, problem: `${shown} is below the smallest power class (${prefix}${nameplateText(step)})` };
+  if (!(nameplate > 0)) return { label: null, problem: belowLowestReason(basis, power_w, step - minus, `${prefix}${nameplateText(step)}`, true) };
   if (pc.lowest_w !== undefined && nameplate < pc.lowest_w - 1e-9) {
-    return { label: null, problem: `${shown} is below the lowest power class ${prefix}${nameplateText(pc.lowest_w)}` };
+    return { label: null, problem: belowLowestReason(basis, power_w, pc.lowest_w - minus, `${prefix}${nameplateText(pc.lowest_w)}`) };
   }
   if (pc.highest_w !== undefined && nameplate > pc.highest_w) nameplate = pc.highest_w;
   return { label: `${prefix}${nameplateText(nameplate)}`, problem: null };
@@ -132,7 +127,7 @@ export function evaluateDevice(device: DeviceRecord, spec: Spec): DeviceEvaluati
     if (v === null) {
       const why = device.absent?.[key];
       if (why) reasons.push({ kind: 'not_measurable', param: key, value: null, limit: null, bound: null, message: `${labelOf(key)} not measurable: ${why}` });
-      else reasons.push({ kind: 'not_measured', param: key, value: null, limit: null, bound: null, message: `${key} not measured` });
+      else reasons.push({ kind: 'not_measured', param: key, value: null, limit: null, bound: null, message: notMeasuredReason(key) });
       continue;
     }
     // The limit checks and their words under the spec's decision rule: lib/quality/decision-rules.ts.
@@ -152,7 +147,7 @@ export function evaluateDevice(device: DeviceRecord, spec: Spec): DeviceEvaluati
         value: null,
         limit: null,
         bound: null,
-        message: why ? `No power class, ${labelOf(basis)} not measurable: ${why}` : `${basis} not measured: no power class`,
+        message: why ? `No power class, ${labelOf(basis)} not measurable: ${why}` : noPowerReason(basis),
       });
     } else {
       const classes = resolvePowerClasses(spec.power_classes, device.nameplate_w);
@@ -166,7 +161,7 @@ export function evaluateDevice(device: DeviceRecord, spec: Spec): DeviceEvaluati
   const fail_flags = new Set(spec.fail_flags ?? []);
   for (const flag of new Set(device.flags ?? [])) {
     if (fail_flags.has(flag)) {
-      reasons.push({ kind: 'flag', param: 'flags', value: flag, limit: null, bound: null, message: `flag "${flag}" is raised and fails this spec` });
+      reasons.push({ kind: 'flag', param: 'flags', value: flag, limit: null, bound: null, message: flagReason(flag) });
     }
   }
   return { device_id: device.device_id, result: reasons.length ? 'fail' : 'pass', reasons, power_class, in_guard_band };

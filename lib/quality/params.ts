@@ -3,7 +3,7 @@
  * I-V engine's result keys, so a limit, a statistic and a measured value always share one name.
  * Labels and units are the key table's (lib/vocabulary.ts).
  */
-import { storedUnitOf } from '@/lib/vocabulary';
+import { formatValue as formatShown, storedUnitOf } from '@/lib/vocabulary';
 
 /** Measured key figures of one curve (no model). */
 export const METRIC_KEYS = [
@@ -53,8 +53,7 @@ export function formatValue(x: number): string {
   return String(Number(x.toPrecision(6)));
 }
 
-/** "0.512 Ω", "0.81" (no unit), for messages. */
+/** "0.512 Ω", "81.0 %" for messages: the value as the screens show it (lib/vocabulary.ts). */
 export function formatWithUnit(x: number, key: ParamKey): string {
-  const unit = PARAM_UNITS[key];
-  return unit ? `${formatValue(x)} ${unit}` : formatValue(x);
+  return formatShown(key, x);
 }

@@ -6,6 +6,7 @@ import { z } from 'zod';
 import { QualityError } from '@/lib/quality/errors';
 import { PARAM_KEYS, type ParamKey } from '@/lib/quality/params';
 import { textProblem } from '@/lib/schemas/text';
+import { formatAgainst, labelWithUnit } from '@/lib/vocabulary';
 
 const finite = (what: string) => z.number({ error: `${what} must be a finite number` });
 
@@ -20,18 +21,28 @@ const unknownKeys = (what: string, known: readonly string[]) => ({
       : undefined,
 });
 
-/** min and/or max of one parameter, both inclusive (a value equal to a bound passes). */
-export const limitSchema = z
-  .strictObject({ min: finite('min').optional(), max: finite('max').optional() }, unknownKeys('limit field', ['min', 'max']))
-  .superRefine((l, ctx) => {
-    if (l.min === undefined && l.max === undefined) {
-      ctx.addIssue({ code: 'custom', message: 'give min, max or both', path: [] });
-    } else if (l.min !== undefined && l.max !== undefined && l.min > l.max) {
-      ctx.addIssue({ code: 'custom', message: `min (${l.min}) is greater than max (${l.max})`, path: [] });
-    }
-  });
+/**
+ * min and/or max of one parameter, both inclusive (a value equal to a bound passes). Messages
+ * show the bounds as the screens do (FF in %), from the key table.
+ */
+export function limitSchemaOf(key: ParamKey) {
+  const bound = z.number({ error: 'must be a number' });
+  return z
+    .strictObject({ min: bound.optional(), max: bound.optional() }, unknownKeys('limit field', ['min', 'max']))
+    .superRefine((l, ctx) => {
+      if (l.min === undefined && l.max === undefined) {
+        ctx.addIssue({ code: 'custom', message: 'give a minimum, a maximum or both', path: [] });
+      } else if (l.min !== undefined && l.max !== undefined && l.min > l.max) {
+        const shown = formatAgainst(key, l.min, [l.max]);
+        ctx.addIssue({ code: 'custom', message: `the minimum ${shown.value} is above the maximum ${shown.limits[0]}`, path: [] });
+      }
+    });
+}
 
-const limitsShape = Object.fromEntries(PARAM_KEYS.map((k) => [k, limitSchema.optional()])) as Record<
+/** The limit schema of any one parameter (its type; messages of the parameter's own are limitSchemaOf's). */
+export const limitSchema = limitSchemaOf('pmp_w');
+
+const limitsShape = Object.fromEntries(PARAM_KEYS.map((k) => [k, limitSchemaOf(k).optional()])) as Record<
   ParamKey,
   z.ZodOptional<typeof limitSchema>
 >;
@@ -108,7 +119,7 @@ export const powerClassesSchema = z
   .strictObject(
     {
       basis: z.enum(['pmp_w', 'stc_pmp_w'], { error: 'basis must be "pmp_w" or "stc_pmp_w"' }).optional(),
-      step_w: finite('step_w').positive('step_w must be above 0 W').optional(),
+      step_w: z.number({ error: 'must be a number' }).positive('must be above 0 W').optional(),
       tolerance: z
         .strictObject(
           {
@@ -118,8 +129,8 @@ export const powerClassesSchema = z
           unknownKeys('tolerance field', ['minus_w', 'plus_w']),
         )
         .optional(),
-      lowest_w: finite('lowest_w').positive('lowest_w must be above 0 W').optional(),
-      highest_w: finite('highest_w').positive('highest_w must be above 0 W').optional(),
+      lowest_w: z.number({ error: 'must be a number' }).positive('must be above 0 W').optional(),
+      highest_w: z.number({ error: 'must be a number' }).positive('must be above 0 W').optional(),
       label_prefix: z.string().max(8, 'label_prefix is at most 8 characters').refine(...noControl('label_prefix')).optional(),
       bins: z.array(binSchema).min(1, 'bins needs at least one class').optional(),
       nameplate_bins: z.array(nameplateBinSchema).min(1, 'nameplate_bins needs at least one class').optional(),
@@ -202,7 +213,7 @@ const SPEC_FIELDS = ['name', 'limits', 'power_classes', 'fail_flags', 'notes', '
 /** Input of an acceptance specification (form and API body alike). */
 export const specInputSchema = z.strictObject(
   {
-    name: z.string({ error: 'name is required' }).trim().min(1, 'name is required').max(120, 'name is at most 120 characters').refine(...noControl('name')),
+    name: z.string({ error: 'Give the spec a name.' }).trim().min(1, 'Give the spec a name.').max(120, 'must be at most 120 characters').refine(...noControl('name')),
     limits: limitsSchema.default({}),
     power_classes: powerClassesSchema.optional(),
     fail_flags: z
@@ -225,9 +236,51 @@ export type Spec = z.output<typeof specInputSchema>;
 export type PowerClasses = z.output<typeof powerClassesSchema>;
 export type LimitSpec = z.output<typeof limitSchema>;
 
-/** "limits.rs_ohm: min (2) is greater than max (1)" — one line per zod issue. */
+/** Labels of the spec's fields outside the limits, as the spec editor names them. */
+const SPEC_FIELD_LABELS: Record<string, string> = {
+  name: 'Name',
+  notes: 'Notes',
+  fail_flags: 'Flags that fail a device',
+  power_classes: 'Power classes',
+  step_w: 'Power class step (W)',
+  basis: 'Power class basis',
+  tolerance: 'Power class tolerance',
+  lowest_w: 'Lowest power class (W)',
+  highest_w: 'Highest power class (W)',
+  label_prefix: 'Power class prefix',
+  bins: 'Power class bins',
+  family_id: 'Spec',
+  base_version: 'Version edited from',
+};
+
+/**
+ * Where an issue is, in the spec editor's words: ["limits", "stc_pmp_w", "min"] → "Pmax at STC
+ * (W) minimum", ["power_classes", "step_w"] → "Power class step (W)"; '' for the spec as a whole.
+ */
+export function specFieldLabel(path: readonly PropertyKey[]): string {
+  const p = path.map(String);
+  if (p[0] === 'limits' && p[1]) {
+    const side = p[2] === 'min' ? ' minimum' : p[2] === 'max' ? ' maximum' : '';
+    return `${(PARAM_KEYS as readonly string[]).includes(p[1]) ? labelWithUnit(p[1]) : p[1]}${side}`;
+  }
+  if (p[0] === 'limits') return 'Limits';
+  if (p[0] === 'fail_flags' && p[1] !== undefined) return `Failing flag ${Number(p[1]) + 1}`;
+  if (p[0] === 'power_classes' && p[1] === 'bins' && p[2] !== undefined) return `Power class bin ${Number(p[2]) + 1}`;
+  const last = p[p.length - 1];
+  return last === undefined ? '' : (SPEC_FIELD_LABELS[last] ?? last);
+}
+
+/**
+ * "Rs (Ω): the minimum 2 Ω is above the maximum 1 Ω", "Pmax at STC (W) minimum must be a number"
+ * — one line per zod issue, each naming its field as the spec editor labels it.
+ */
 export function specIssueMessages(error: z.ZodError): string[] {
-  return error.issues.map((iss) => (iss.path.length ? `${iss.path.map(String).join('.')}: ${iss.message}` : iss.message));
+  return error.issues.map((iss) => {
+    const label = specFieldLabel(iss.path);
+    // A whole sentence ("Give the spec a name.") names its field itself.
+    if (!label || /^[A-Z]/.test(iss.message)) return iss.message;
+    return /^must /.test(iss.message) ? `${label} ${iss.message}` : `${label}: ${iss.message}`;
+  });
 }
 
 /** Validates a spec; throws QualityError listing every problem. */

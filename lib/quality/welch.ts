@@ -5,6 +5,7 @@
 import { jStat } from 'jstat';
 import { assertFiniteArray, mean, sampleVariance } from '@/lib/quality/describe';
 import { QualityError } from '@/lib/quality/errors';
+import { labelOf, quantity, unitOf } from '@/lib/vocabulary';
 
 /** Mean, sample standard deviation and size of one sample. */
 export type SampleSummary = { n: number; mean: number; sd: number };
@@ -15,9 +16,14 @@ export type WelchWording = {
   nameA?: string;
   /** Name of the second sample, e.g. "Batch B" (default). */
   nameB?: string;
-  /** Parameter, e.g. "rs_ohm" (default "mean value"). */
+  /**
+   * The compared quantity's key (lib/vocabulary.ts), e.g. "ff": the sentence takes its label,
+   * its unit and its scale from the key table ("FF … by 1.2 %", with FF stored as a fraction).
+   */
+  key?: string;
+  /** The parameter's words, e.g. "mileage" (default: the key's label, else "mean value"). */
   param?: string;
-  /** Unit appended to numbers, e.g. "Ω" (default none). */
+  /** Unit appended to numbers, e.g. "mpg" (default: the key's unit as shown, else none). */
   unit?: string;
 };
 
@@ -78,7 +84,9 @@ export function welchFromSummary(
   const vb = (b.sd * b.sd) / b.n;
   const se2 = va + vb;
   if (!(se2 > 0)) {
-    throw new QualityError('both samples have zero spread: the difference has no standard error and no test is possible');
+    const what = wording.param ?? (wording.key ? labelOf(wording.key) : null);
+    const names = wording.nameA && wording.nameB ? `${wording.nameA} and ${wording.nameB}` : 'both samples';
+    throw new QualityError(`${names} have no spread${what ? ` in ${what}` : ''} (every value equal): the difference has no standard error and no test is possible`);
   }
   const standard_error = Math.sqrt(se2);
   const dof = (se2 * se2) / ((va * va) / (a.n - 1) + (vb * vb) / (b.n - 1));
@@ -127,8 +135,12 @@ export function welchDifference(
 ): WelchResult {
   assertFiniteArray(a, 'sample A');
   assertFiniteArray(b, 'sample B');
-  if (a.length < 2) throw new QualityError(`sample A needs at least 2 values for a standard deviation (got ${a.length})`);
-  if (b.length < 2) throw new QualityError(`sample B needs at least 2 values for a standard deviation (got ${b.length})`);
+  // Named as the sentence would name them: "Lot 7 has 1 value of Pmax; …".
+  const what = wording.param ?? (wording.key ? labelOf(wording.key) : null);
+  const few = (name: string | undefined, fallback: string, n: number) =>
+    name ? `${name} has ${n} value${n === 1 ? '' : 's'}${what ? ` of ${what}` : ''}; a standard deviation needs at least 2` : `${fallback} needs at least 2 values for a standard deviation (got ${n})`;
+  if (a.length < 2) throw new QualityError(few(wording.nameA, 'sample A', a.length));
+  if (b.length < 2) throw new QualityError(few(wording.nameB, 'sample B', b.length));
   const summarise = (xs: readonly number[]): SampleSummary => ({
     n: xs.length,
     mean: mean(xs),
@@ -166,9 +178,13 @@ function formatP(p: number): string {
 function welchSentence(r: Omit<WelchResult, 'sentence'>, w: WelchWording): string {
   const nameA = w.nameA ?? 'Batch A';
   const nameB = w.nameB ?? 'Batch B';
-  const param = w.param ?? 'mean value';
-  const unit = w.unit ? ` ${w.unit}` : '';
-  const fmt = makeFormatter(r.t_critical * r.standard_error, r.difference);
+  const param = w.param ?? (w.key ? labelOf(w.key) : 'mean value');
+  const unitText = w.unit ?? (w.key ? unitOf(w.key) : '');
+  const unit = unitText ? ` ${unitText}` : '';
+  // Stored → shown (FF and efficiency are fractions in the engine, % in words).
+  const scale = w.key ? (quantity(w.key)?.scale ?? 1) : 1;
+  const shownFmt = makeFormatter(scale * r.t_critical * r.standard_error, scale * r.difference);
+  const fmt = (x: number) => shownFmt(scale * x);
   const pct = `${Number((r.confidence * 100).toPrecision(4))} %`;
   const stats = `Welch t = ${minusSign(String(Number(r.t.toPrecision(3))))} on ${r.dof.toFixed(1)} degrees of freedom, ${formatP(r.p)}`;
   const subject = `${possessive(nameB)} ${param}`;

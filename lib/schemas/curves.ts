@@ -2,6 +2,7 @@
 import { z } from 'zod';
 import { optNumber, optNumberOrNull } from '@/lib/schemas/numbers';
 import { optDate, optSafeText, safeText } from '@/lib/schemas/text';
+import { labelWithUnit } from '@/lib/vocabulary';
 
 /**
  * How a curve's STC figures were had (lib/analysis/stc.ts): measured within the tolerance of STC,
@@ -91,10 +92,11 @@ export const batchFieldsSchema = z.object({
   supplier: optSafeText('Supplier', { max: 120 }),
   line: optSafeText('Line', { max: 60 }),
   lot: optSafeText('Lot', { max: 60 }),
-  batch_date: optDate('Date'),
-  cells: optNumberOrNull('Cells in series', { min: 1, max: 1000, integer: true }),
-  area_cm2: optNumberOrNull('Area (cm²)', { min: 0.01, max: 100000 }),
-  nameplate_w: optNumberOrNull('Nameplate power (W)', { min: 0.001, max: 5000 }),
+  batch_date: optDate('Batch date'),
+  // Named as the batch form labels them (the key table's label and unit).
+  cells: optNumberOrNull(labelWithUnit('cells'), { min: 1, max: 1000, integer: true }),
+  area_cm2: optNumberOrNull(labelWithUnit('area_cm2'), { min: 0.01, max: 100000 }),
+  nameplate_w: optNumberOrNull(labelWithUnit('nameplate_w'), { min: 0.001, max: 5000 }),
   // For files that do not say, and for the STC figures (lib/analysis/stc.ts): the measurement
   // irradiance and the module type's coefficients (IEC 60891 procedure 1, the model's check).
   irradiance_w_m2: optNumberOrNull(BATCH_STC_LABELS.irradiance_w_m2, { min: 1, max: 2000 }),
@@ -123,10 +125,10 @@ export const characterisationQuerySchema = z.object({ device: z.string().min(1).
 
 /** Form fields that may accompany an upload and override every file's metadata. */
 export const uploadOverridesSchema = z.object({
-  temp_c: optNumberOrNull('Cell temperature (°C)', { min: -60, max: 150 }),
-  irradiance_w_m2: optNumberOrNull('Irradiance (W/m²)', { min: 1, max: 2000 }),
-  cells: optNumberOrNull('Cells in series', { min: 1, max: 1000, integer: true }),
-  area_cm2: optNumberOrNull('Area (cm²)', { min: 0.01, max: 100000 }),
+  temp_c: optNumberOrNull(labelWithUnit('temp_c'), { min: -60, max: 150 }),
+  irradiance_w_m2: optNumberOrNull(labelWithUnit('irradiance_w_m2'), { min: 1, max: 2000 }),
+  cells: optNumberOrNull(labelWithUnit('cells'), { min: 1, max: 1000, integer: true }),
+  area_cm2: optNumberOrNull(labelWithUnit('area_cm2'), { min: 0.01, max: 100000 }),
   on_duplicate: z.enum(['ask', 'replace', 'keep']).optional().default('ask'),
 });
 
@@ -134,10 +136,10 @@ export const refitSchema = z.object({
   model: z.enum(['single', 'double', 'both']).optional().default('both'),
   idealities: z.enum(['fixed', 'free']).optional().default('fixed'),
   objective: z.enum(['true-current', 'implicit']).optional().default('true-current'),
-  temp_c: optNumberOrNull('Cell temperature (°C)', { min: -60, max: 150 }),
-  irradiance_w_m2: optNumberOrNull('Irradiance (W/m²)', { min: 1, max: 2000 }),
-  cells: optNumberOrNull('Cells in series', { min: 1, max: 1000, integer: true }),
-  area_cm2: optNumberOrNull('Area (cm²)', { min: 0.01, max: 100000 }),
+  temp_c: optNumberOrNull(labelWithUnit('temp_c'), { min: -60, max: 150 }),
+  irradiance_w_m2: optNumberOrNull(labelWithUnit('irradiance_w_m2'), { min: 1, max: 2000 }),
+  cells: optNumberOrNull(labelWithUnit('cells'), { min: 1, max: 1000, integer: true }),
+  area_cm2: optNumberOrNull(labelWithUnit('area_cm2'), { min: 0.01, max: 100000 }),
 });
 export type RefitInput = z.input<typeof refitSchema>;
 

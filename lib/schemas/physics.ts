@@ -6,7 +6,7 @@
  */
 import { z } from 'zod';
 import { optNumber, reqNumber } from '@/lib/schemas/numbers';
-import { labelOf, unitOf } from '@/lib/vocabulary';
+import { labelOf, labelWithUnit, unitOf } from '@/lib/vocabulary';
 import { parseQuantity } from '@/lib/units';
 import type { Quantity } from '@/lib/units';
 
@@ -37,16 +37,52 @@ const COEFFICIENT_QUANTITY: Record<string, [Quantity, number]> = {
   kappa_ohm_per_k: ['resistance_per_k', 1],
 };
 
-/** A required number named by its API key, with its unit in the messages. */
-const requiredNumber = (name: string, unit: string) => reqNumber(name, { unit });
+/** A required number; its messages name it as the forms label it, from the key table: "Doping (cm⁻³) must be a number." */
+const requiredNumber = (key: string, label = labelWithUnit(key)) => reqNumber(label);
 
-/** An optional number (undefined when left empty). */
-const optionalNumber = (name: string, unit: string) => optNumber(name, { unit });
+/** An optional number (undefined when left empty), named like requiredNumber. */
+const optionalNumber = (key: string, label = labelWithUnit(key)) => optNumber(label);
 
-/** GET /api/physics/material?temp_k= (300 K when omitted). */
-export const materialQuerySchema = z.object({
-  temp_k: optionalNumber('temp_k', 'K').transform((v) => v ?? 300),
-});
+/**
+ * A "from … to …" range of a chart: each end a number, `from` below `to` (an error at the "To"
+ * field otherwise), defaults when left empty. Where the ends may lie is the physics library's
+ * check (the model's temperature range).
+ */
+function rangeFields<F extends string, T extends string>(from: F, to: T, unit: string, defaults: { from: number; to: number }) {
+  const fromLabel = `From (${unit})`;
+  const toLabel = `To (${unit})`;
+  return {
+    shape: { [from]: optNumber(fromLabel), [to]: optNumber(toLabel) } as Record<F | T, ReturnType<typeof optNumber>>,
+    check: (v: Record<F | T, number | undefined>, ctx: z.RefinementCtx) => {
+      const a = v[from] ?? defaults.from;
+      const b = v[to] ?? defaults.to;
+      if (!(b > a)) ctx.addIssue({ code: 'custom', path: [to], message: `${toLabel} must be above From (${a} ${unit}).` });
+    },
+    fill: (v: Record<F | T, number | undefined>) => ({ [from]: v[from] ?? defaults.from, [to]: v[to] ?? defaults.to }) as Record<F | T, number>,
+  };
+}
+
+/** The temperatures of the n_i chart, K (the default 200–400 K). */
+export const NI_RANGE_K = { from: 200, to: 400 };
+const niRange = rangeFields('from_k', 'to_k', 'K', NI_RANGE_K);
+
+/** GET /api/physics/material?temp_k=&from_k=&to_k= (300 K, and n_i over 200–400 K, when omitted). */
+export const materialQuerySchema = z
+  .object({ temp_k: optionalNumber('temp_k'), ...niRange.shape })
+  .superRefine((v, ctx) => niRange.check(v, ctx))
+  .transform((v) => ({ temp_k: v.temp_k ?? 300, ...niRange.fill(v) }));
+export type MaterialQuery = z.output<typeof materialQuerySchema>;
+
+/** Cell temperatures of the Voc-against-temperature chart, °C (the default −40…+85 °C). */
+export const VOC_RANGE_C = { from: -40, to: 85 };
+const vocRange = rangeFields('from_c', 'to_c', '°C', VOC_RANGE_C);
+
+/** GET /api/physics/curves/:id?from_c=&to_c=: the range of the Voc chart. */
+export const curvePhysicsQuerySchema = z
+  .object(vocRange.shape)
+  .superRefine((v, ctx) => vocRange.check(v, ctx))
+  .transform((v) => vocRange.fill(v));
+export type CurvePhysicsQuery = z.output<typeof curvePhysicsQuerySchema>;
 
 export const DOPING_TYPES = ['p', 'n'] as const;
 
@@ -56,11 +92,11 @@ export const DOPING_TYPES = ['p', 'n'] as const;
  */
 export const bandDiagramSchema = z.object({
   type: z.enum(DOPING_TYPES, { message: 'type must be "p" or "n".' }),
-  doping_cm3: requiredNumber('doping_cm3', 'cm⁻³'),
-  excess_cm3: optionalNumber('excess_cm3', 'cm⁻³'),
-  generation_cm3_s: optionalNumber('generation_cm3_s', 'cm⁻³·s⁻¹'),
-  lifetime_s: optionalNumber('lifetime_s', 's'),
-  temp_k: requiredNumber('temp_k', 'K'),
+  doping_cm3: requiredNumber('doping_cm3'),
+  excess_cm3: optionalNumber('excess_cm3'),
+  generation_cm3_s: optionalNumber('generation_cm3_s'),
+  lifetime_s: optionalNumber('lifetime_s'),
+  temp_k: requiredNumber('temp_k'),
 });
 export type BandDiagramInput = z.input<typeof bandDiagramSchema>;
 export type BandDiagramRequest = z.output<typeof bandDiagramSchema>;
@@ -85,6 +121,9 @@ export const TRANSLATION_COEFFICIENTS = Object.fromEntries(
 ) as Record<(typeof COEFFICIENT_KEYS)[number], { label: string; unit: string }>;
 export type TranslationCoefficient = keyof typeof TRANSLATION_COEFFICIENTS;
 
+/** A coefficient's form label: "κ, curve correction factor (Ω/K)". */
+export const coefficientLabel = (k: TranslationCoefficient) => `${TRANSLATION_COEFFICIENTS[k].label} (${TRANSLATION_COEFFICIENTS[k].unit})`;
+
 /** Coefficients each method uses; `required` ones must be given. */
 export const METHOD_COEFFICIENTS: Record<TranslationMethod, { required: TranslationCoefficient[]; optional: TranslationCoefficient[] }> = {
   'iec60891-1': { required: ['alpha_a_per_k', 'beta_v_per_k', 'rs_ohm', 'kappa_ohm_per_k'], optional: [] },
@@ -94,7 +133,7 @@ export const METHOD_COEFFICIENTS: Record<TranslationMethod, { required: Translat
 
 const coefficientFields = Object.fromEntries(
   (Object.keys(TRANSLATION_COEFFICIENTS) as TranslationCoefficient[]).map((k) => {
-    const field = optionalNumber(k, TRANSLATION_COEFFICIENTS[k].unit);
+    const field = optionalNumber(k, coefficientLabel(k));
     const q = COEFFICIENT_QUANTITY[k];
     return [k, q ? withUnit(field, k, q[0], q[1]) : field];
   }),
@@ -109,10 +148,10 @@ export const translateSchema = z
     method: z.enum(TRANSLATION_METHODS, { message: 'method must be model, iec60891-1 or iec60891-2.' }),
     to: z.object(
       {
-        irradiance_w_m2: withUnit(requiredNumber('to.irradiance_w_m2', 'W/m²'), 'to.irradiance_w_m2', 'irradiance'),
-        temp_c: withUnit(requiredNumber('to.temp_c', '°C'), 'to.temp_c', 'temperature'),
+        irradiance_w_m2: withUnit(requiredNumber('irradiance_w_m2', 'Target irradiance (W/m²)'), 'Target irradiance', 'irradiance'),
+        temp_c: withUnit(requiredNumber('temp_c', 'Target cell temperature (°C)'), 'Target cell temperature', 'temperature'),
       },
-      { message: 'the target conditions (irradiance_w_m2 and temp_c) are required' },
+      { message: 'Give the target irradiance (W/m²) and cell temperature (°C).' },
     ),
     i0_law: z.enum(['desoto', 'ni-power']).optional(),
     ...coefficientFields,
@@ -121,7 +160,7 @@ export const translateSchema = z
     for (const k of METHOD_COEFFICIENTS[v.method].required) {
       if (v[k] === undefined) {
         const c = TRANSLATION_COEFFICIENTS[k];
-        ctx.addIssue({ code: 'custom', path: [k], message: `${TRANSLATION_METHOD_LABELS[v.method]} needs ${k} (${c.label}, ${c.unit}), which is missing` });
+        ctx.addIssue({ code: 'custom', path: [k], message: `${TRANSLATION_METHOD_LABELS[v.method]} needs ${c.label} (${c.unit}), which is missing.` });
       }
     }
   });

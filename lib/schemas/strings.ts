@@ -6,7 +6,7 @@
  */
 import { z } from 'zod';
 import { optNumber, reqNumber } from '@/lib/schemas/numbers';
-import { labelOf } from '@/lib/vocabulary';
+import { formatValue, labelOf, labelWithUnit } from '@/lib/vocabulary';
 import type { StringSizingResult } from '@/lib/strings/size-string';
 
 /**
@@ -28,15 +28,16 @@ export const stringSizeSchema = z
   .object({
     batch_id: optId,
     curve_id: optId,
-    voc_stc_v: optNumber('Voc at STC (V)'),
-    beta_voc_pct_per_k: optNumber('Voc coefficient (%/K)'),
-    t_min_c: reqNumber('Record low temperature (°C)', {}, 'Enter the site’s record low ambient temperature in °C.'),
-    t_cell_max_c: optNumber('Hottest cell temperature (°C)'),
-    v_sys_v: reqNumber('System voltage limit (V)', {}, 'Enter the system voltage limit in V DC (1000, 1500 or another rating).'),
-    mpp_window_min_v: optNumber('MPP window minimum (V)'),
-    mpp_window_max_v: optNumber('MPP window maximum (V)'),
-    vmp_stc_v: optNumber('Vmp at STC (V)'),
-    beta_vmp_pct_per_k: optNumber('Vmp coefficient (%/K)'),
+    // Named as the form labels them (the key table's label and unit).
+    voc_stc_v: optNumber(labelWithUnit('voc_stc_v')),
+    beta_voc_pct_per_k: optNumber(labelWithUnit('beta_voc_pct_per_k')),
+    t_min_c: reqNumber(labelWithUnit('t_min_c'), {}, 'Enter the site’s record low ambient temperature in °C.'),
+    t_cell_max_c: optNumber(labelWithUnit('t_cell_max_c')),
+    v_sys_v: reqNumber(labelWithUnit('v_sys_v'), {}, 'Enter the system voltage limit in V DC (1000, 1500 or another rating).'),
+    mpp_window_min_v: optNumber(labelWithUnit('mpp_window_min_v')),
+    mpp_window_max_v: optNumber(labelWithUnit('mpp_window_max_v')),
+    vmp_stc_v: optNumber(labelWithUnit('vmp_stc_v')),
+    beta_vmp_pct_per_k: optNumber(labelWithUnit('beta_vmp_pct_per_k')),
   })
   .transform((v, ctx) => {
     if (v.batch_id && v.curve_id) {
@@ -45,6 +46,15 @@ export const stringSizeSchema = z
     }
     if ((v.mpp_window_min_v === undefined) !== (v.mpp_window_max_v === undefined)) {
       ctx.addIssue({ code: 'custom', path: [v.mpp_window_min_v === undefined ? 'mpp_window_min_v' : 'mpp_window_max_v'], message: 'Give both ends of the MPP window, or neither.' });
+      return z.NEVER;
+    }
+    // "From … to …" the right way round, said at the "to" field.
+    if (v.mpp_window_min_v !== undefined && v.mpp_window_max_v !== undefined && !(v.mpp_window_max_v > v.mpp_window_min_v)) {
+      ctx.addIssue({ code: 'custom', path: ['mpp_window_max_v'], message: `${labelWithUnit('mpp_window_max_v')} must be above ${labelOf('mpp_window_min_v')} (${formatValue('mpp_window_min_v', v.mpp_window_min_v, 6)}).` });
+      return z.NEVER;
+    }
+    if (v.t_cell_max_c !== undefined && v.t_cell_max_c < v.t_min_c) {
+      ctx.addIssue({ code: 'custom', path: ['t_cell_max_c'], message: `${labelWithUnit('t_cell_max_c')} must not be below the ${labelOf('t_min_c').toLowerCase()} (${formatValue('t_min_c', v.t_min_c, 6)}).` });
       return z.NEVER;
     }
     return v;
@@ -58,6 +68,16 @@ export const STRING_FIELD_LABELS: Record<string, string> = {
   batch_id: 'Batch',
   curve_id: 'Curve',
 };
+
+/**
+ * The form field a sizing message is about: the first request key it names ("t_cell_max_c (70 °C)
+ * is below t_min_c …" → t_cell_max_c), or null when it names none.
+ */
+export function sizingFieldOf(message: string): keyof StringSizeInput | null {
+  const names = Object.keys(STRING_FIELD_LABELS).sort((a, b) => b.length - a.length);
+  const m = new RegExp(`\\b(${names.join('|')})\\b`).exec(message);
+  return m ? (m[1] as keyof StringSizeInput) : null;
+}
 
 /**
  * A sizing message for people reading the form: the API's field names (t_min_c, …) become the

@@ -3,7 +3,7 @@ import type { ErrorRequestHandler } from 'express';
 import type { Db } from '@/db/client';
 import { IvInputError } from '@/lib/iv';
 import { PhysicsError } from '@/lib/physics';
-import { bandDiagramSchema, materialQuerySchema, translateSchema } from '@/lib/schemas/physics';
+import { bandDiagramSchema, curvePhysicsQuerySchema, materialQuerySchema, translateSchema } from '@/lib/schemas/physics';
 import type { BandDiagramRequest, TranslateRequest } from '@/lib/schemas/physics';
 import { HttpError } from '@/server/errors';
 import { callerOf, requirePermission } from '@/server/permissions';
@@ -22,11 +22,12 @@ export function physicsRouter(db: Db): Router {
   const r = Router();
 
   /**
-   * GET /api/physics/material?temp_k= — n_i, Eg, Nc, Nv of silicon at temp_k (300 K when omitted;
-   * keys as `ni --json`), the Altermatt et al. (2003) reference, and n_i over 200–400 K for a chart.
+   * GET /api/physics/material?temp_k=&from_k=&to_k= — n_i, Eg, Nc, Nv of silicon at temp_k (300 K
+   * when omitted; keys as `ni --json`), the Altermatt et al. (2003) reference, and n_i from from_k
+   * to to_k (200–400 K when omitted) for a chart; to_k must be above from_k.
    */
   r.get('/material', requirePermission('physics:use'), (req, res) => {
-    res.json(material(materialQuerySchema.parse(req.query).temp_k));
+    res.json(material(materialQuerySchema.parse(req.query)));
   });
 
   /**
@@ -39,12 +40,13 @@ export function physicsRouter(db: Db): Router {
   });
 
   /**
-   * GET /api/physics/curves/:id — the physics of a curve's current fits: J0 per cell area, Voc
-   * predicted over −40…+85 °C, the Voc temperature coefficient (two I0 laws), the implied Voc from
-   * Jsc and J0, the double-diode recombination shares at MPP, and the stored STC figures.
+   * GET /api/physics/curves/:id?from_c=&to_c= — the physics of a curve's current fits: J0 per cell
+   * area, Voc predicted from from_c to to_c (−40…+85 °C when omitted; to_c above from_c), the Voc
+   * temperature coefficient (two I0 laws), the implied Voc from Jsc and J0, the double-diode
+   * recombination shares at MPP, and the stored STC figures.
    */
   r.get('/curves/:id', requirePermission('physics:use'), async (req, res) => {
-    res.json(await curvePhysics(db, callerOf(req).organization.id, String(req.params.id)));
+    res.json(await curvePhysics(db, callerOf(req).organization.id, String(req.params.id), curvePhysicsQuerySchema.parse(req.query)));
   });
 
   /**

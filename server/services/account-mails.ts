@@ -4,6 +4,7 @@
  * what `Mailer.send` needs except the address.
  */
 import { ROLE_LABELS } from '@/lib/auth/roles';
+import { formatDateTime } from '@/lib/format';
 import type { Role } from '@/lib/auth/roles';
 
 type MailText = { kind: string; subject: string; text: string };
@@ -85,7 +86,7 @@ export function invitationMail(orgName: string, inviter: string, role: Role, bas
       '',
       `${baseUrl}/sign-up`,
       '',
-      `The invitation is valid until ${expiresAt.toISOString().slice(0, 10)}. If you already have an account with this address, sign in.`,
+      `The invitation is valid until ${formatDateTime(expiresAt, { utc: true })}. If you already have an account with this address, sign in.`,
     ].join('\n'),
   };
 }

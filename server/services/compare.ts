@@ -15,7 +15,7 @@ import { comparisonCsv, comparisonFileName } from '@/lib/quality/compare-csv';
 import { rowsOfColumns } from '@/lib/quality/compare-table';
 import { batchKind, compareKinds, perCellLabel, perCellValues } from '@/lib/quality/compare-kinds';
 import type { BatchKind } from '@/lib/quality/compare-kinds';
-import { PARAM_KEYS, PARAM_UNITS } from '@/lib/quality/params';
+import { PARAM_KEYS } from '@/lib/quality/params';
 import type { ComparisonWire } from '@/lib/schemas/responses';
 import type { compareQuerySchema } from '@/lib/schemas/quality';
 import { labelOf } from '@/lib/vocabulary';
@@ -131,7 +131,7 @@ export function comparisons(db: Db) {
         const a = perCell ? perCellValues(byBatch.get(first.id) ?? [], param) : values(first.id);
         const bb = perCell ? perCellValues(byBatch.get(b.id) ?? [], param) : values(b.id);
         try {
-          return { batch_a: first.id, batch_b: b.id, param, basis: pair.basis, ...welchDifference(a, bb, 0.95, { nameA: first.name, nameB: b.name, param: perCell ? perCellLabel(param) : labelOf(param), unit: PARAM_UNITS[param] }) };
+          return { batch_a: first.id, batch_b: b.id, param, basis: pair.basis, ...welchDifference(a, bb, 0.95, { nameA: first.name, nameB: b.name, key: param, ...(perCell ? { param: perCellLabel(param) } : {}) }) };
         } catch (err) {
           return { batch_a: first.id, batch_b: b.id, param, basis: pair.basis, error: (err as Error).message };
         }

@@ -13,6 +13,7 @@ import type { CurveMeta, FitResult, FitSummary } from '@/lib/iv';
 import { encodeComparisonRecord } from '@/lib/quality/comparison-record';
 import { stcAbsentReason, stcFiguresOf } from '@/lib/schemas/curves';
 import type { refitSchema } from '@/lib/schemas/curves';
+import { formatValue, labelOf } from '@/lib/vocabulary';
 import { HttpError, notFound } from '@/server/errors';
 import type { Analyser } from '@/server/services/analysis-pool';
 import { touchBatch } from '@/server/services/answer-cache';
@@ -248,7 +249,8 @@ export async function refitCurve(db: Db, analyser: Analyser, who: { organization
     const v = body[k];
     if (v != null && v !== meta[k]) {
       meta[k] = v;
-      changed.push(`${k} ${row.meta[k] ?? '—'} → ${v}`);
+      // In the key table's words: "Cell temperature 33 °C → 45 °C".
+      changed.push(`${labelOf(k)} ${formatValue(k, row.meta[k] ?? null, 6)} → ${formatValue(k, v, 6)}`);
     }
   }
   const models = body.model === 'both' ? (['single', 'double'] as const) : ([body.model] as const);

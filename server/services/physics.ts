@@ -7,7 +7,7 @@ import type { Db } from '@/db/client';
 import { batch } from '@/db/schema';
 import { bandDiagramReport, curvePhysicsReport, firstNonFinite, materialReport, translationReport } from '@/lib/physics/curve-report';
 import type { CurrentFits } from '@/lib/physics/curve-report';
-import type { BandDiagramRequest, TranslateRequest } from '@/lib/schemas/physics';
+import type { BandDiagramRequest, CurvePhysicsQuery, MaterialQuery, TranslateRequest } from '@/lib/schemas/physics';
 import { HttpError } from '@/server/errors';
 import { fitsFor, loadCurve } from '@/server/services/curves';
 
@@ -23,9 +23,9 @@ async function currentFits(db: Db, curveId: string): Promise<CurrentFits> {
   return { single: fits.find((f) => f.model === 'single-diode'), double: fits.find((f) => f.model === 'double-diode') };
 }
 
-/** Silicon at temp_k with the reference value and the n_i series. */
-export function material(temp_k: number) {
-  return finiteOnly(materialReport(temp_k));
+/** Silicon at temp_k with the reference value and the n_i series over the query's range. */
+export function material(q: MaterialQuery) {
+  return finiteOnly(materialReport(q.temp_k, { from_k: q.from_k, to_k: q.to_k }));
 }
 
 /** The band diagram with Fermi–Dirac and Boltzmann statistics side by side. */
@@ -34,11 +34,11 @@ export function bandDiagramOf(input: BandDiagramRequest) {
 }
 
 /** The physics of the organisation's curve's current fits. */
-export async function curvePhysics(db: Db, organizationId: string, curveId: string) {
+export async function curvePhysics(db: Db, organizationId: string, curveId: string, range?: CurvePhysicsQuery) {
   const row = await loadCurve(db, organizationId, curveId);
   const fits = await currentFits(db, row.id);
   const [b] = await db.select({ id: batch.id, name: batch.name }).from(batch).where(eq(batch.id, row.batchId));
-  return finiteOnly(curvePhysicsReport(row, fits, b ?? null));
+  return finiteOnly(curvePhysicsReport(row, fits, b ?? null, range));
 }
 
 /** The organisation's curve translated to other conditions; 422 when the model method has no fit to use. */

@@ -5,7 +5,9 @@
 import { and, desc, eq } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { batch, batchRelease, batchReview, member, user } from '@/db/schema';
-import { evaluateBatch, passFailCsv } from '@/lib/quality';
+import { describeSentence, evaluateBatch, passFailCsv } from '@/lib/quality';
+import { failureSummary } from '@/lib/quality/reason-text';
+import { formatDateTime } from '@/lib/format';
 import type { BatchEvaluation } from '@/lib/quality';
 import type { decisionSchema } from '@/lib/schemas/quality';
 import { cautionText } from '@/lib/strings/cautions';
@@ -35,7 +37,7 @@ async function evaluate(db: Db, b: BatchRow, organizationId: string, specId: str
   // Each figure with the batch setup's expanded uncertainty and the batch's nameplate (server/services/setups.ts).
   const devices = await judgedDevices(db, b, await deviceRecords(db, [b.id]));
   const evaluation = evaluateBatch(devices, spec, { outlier_params: [...OUTLIER_PARAMS] });
-  return { specRow: row, evaluation, devices };
+  return { specRow: row, spec, evaluation, devices };
 }
 
 function counts(e: BatchEvaluation) {
@@ -151,6 +153,8 @@ export function decisionMail(
   rule: DecisionRule = 'simple',
   link = '',
   report?: { fileName: string; bytes: Buffer },
+  /** Lines in the key table's words: the failing reasons by topic, the limited parameters' statistics. */
+  details: string[] = [],
 ): OutgoingMail {
   const done = state === 'released' ? 'released' : 'put on hold';
   return {
@@ -168,11 +172,24 @@ export function decisionMail(
       state === 'released' ? 'The pass/fail list (CSV) of this release is on the batch page under “Acceptance and release”.' : '',
       report ? `The release report (PDF) is attached: ${report.fileName}.` : '',
       link ? `The batch: ${link}` : '',
+      ...details,
+      `Decided ${formatDateTime(new Date(), { utc: true })}.`,
       '',
       cautionText(),
     ].join('\n'),
     ...(report ? { attachments: [{ filename: report.fileName, content: report.bytes, contentType: 'application/pdf' }] } : {}),
   };
+}
+
+/** The decision mail's lines about the evaluation: failing reasons by topic, then the statistics of each limited parameter. */
+export function decisionDetails(evaluation: BatchEvaluation, spec: { limits?: Record<string, unknown> }): string[] {
+  const failing = failureSummary(evaluation.devices);
+  const limited = Object.keys(spec.limits ?? {});
+  const stats = limited.flatMap((k) => {
+    const d = evaluation.stats[k as keyof typeof evaluation.stats];
+    return d ? [describeSentence(k, d)] : [];
+  });
+  return [...(failing.length ? ['', 'Why devices fail:', ...failing.map((l) => `- ${l}`)] : []), ...(stats.length ? ['', ...stats] : [])];
 }
 
 /** A test engineer hands the batch to the QA leads (e-mailed); 409 unless every curve has a converged fit. */
@@ -220,7 +237,7 @@ export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
     const check = await releaseCheck(db, by.organization.id, b.id, by.user.id);
     if (!check.allowed) throw new HttpError(403, check.code, check.message);
   }
-  const { specRow, evaluation, devices } = await evaluate(db, b, by.organization.id, body.spec_id);
+  const { specRow, spec, evaluation, devices } = await evaluate(db, b, by.organization.id, body.spec_id);
   const unfitted = devices.filter((d) => !d.fitted);
   if (releasing && unfitted.length) {
     throw new HttpError(409, 'unfitted_curves', `${unfitted.length} curve(s) have no converged fit; the batch cannot be released.`);
@@ -275,7 +292,7 @@ export async function decideBatch(db: Db, mailer: Mailer, by: Caller, batchId: s
   if (submission) {
     // A release's mail carries its report, drawn from the release record just written.
     const report = releasing ? await (await import('@/server/services/report')).batchReportPdf(db, by.organization.id, b.id) : undefined;
-    await mailer.send(decisionMail(submission, b, by, state, specRow, tally, body.comment, evaluation.decision_rule, batchLink(baseUrl, b.id), report));
+    await mailer.send(decisionMail(submission, b, by, state, specRow, tally, body.comment, evaluation.decision_rule, batchLink(baseUrl, b.id), report, decisionDetails(evaluation, spec)));
   }
   const [after] = await db.select().from(batch).where(eq(batch.id, b.id));
   return { batch: batchJson(after), counts: tally, spec: { id: specRow.id, version: specRow.version, name: specRow.name } };

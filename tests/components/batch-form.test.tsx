@@ -31,9 +31,9 @@ describe('BatchForm', () => {
     const onSubmit = renderForm();
     fireEvent.changeText(screen.getByTestId('batch-name'), '  Line 2, lot 2611  ');
     fireEvent.changeText(screen.getByLabelText('Cells in series'), '60');
-    fireEvent.changeText(screen.getByLabelText('Device area (cm²)'), '16600');
+    fireEvent.changeText(screen.getByLabelText('Area (cm²)'), '16600');
     fireEvent.changeText(screen.getByLabelText('Nameplate power (W)'), '405,5'); // decimal comma accepted
-    fireEvent.changeText(screen.getByLabelText('Date (yyyy-mm-dd)'), '2025-11-14');
+    fireEvent.changeText(screen.getByLabelText('Batch date'), '2025-11-14');
     fireEvent.changeText(screen.getByLabelText('Cell supplier'), 'Supplier B');
     submit();
     await waitFor(() => expect(onSubmit).toHaveBeenCalledTimes(1));
@@ -83,8 +83,9 @@ describe('BatchForm', () => {
     // Messages from batchFieldsSchema (lib/schemas/curves.ts).
     ['Cells in series', '60.5', 'Cells in series must be a whole number from 1 to 1000.'],
     ['Cells in series', 'sixty', 'Cells in series must be a whole number from 1 to 1000.'],
-    ['Device area (cm²)', '-3', 'Area (cm²) must be a number from 0.01 to 100000.'],
-    ['Date (yyyy-mm-dd)', '14/11/2025', 'Date must be written yyyy-mm-dd.'],
+    ['Area (cm²)', '-3', 'Area (cm²) must be a number from 0.01 to 100000.'],
+    ['Batch date', '14/11/2025', 'Batch date must be written yyyy-mm-dd.'],
+    ['Batch date', '2026-02-30', 'Batch date 2026-02-30 is not a date in the calendar.'],
   ])('%s = "%s" is refused with a sentence', async (label, value, message) => {
     const onSubmit = renderForm();
     fireEvent.changeText(screen.getByTestId('batch-name'), 'Trial');
@@ -92,6 +93,19 @@ describe('BatchForm', () => {
     submit();
     expect(await screen.findByText(message)).toBeOnTheScreen();
     expect(onSubmit).not.toHaveBeenCalled();
+  });
+
+  it('every field\'s error names the field as the form labels it (the key table\'s label and unit)', async () => {
+    renderForm();
+    fireEvent.changeText(screen.getByTestId('batch-name'), 'Trial');
+    const bad: [string, string][] = [['Cells in series', 'x'], ['Area (cm²)', 'x'], ['Nameplate power (W)', 'x'], ['Batch date', 'x']];
+    for (const [label, value] of bad) fireEvent.changeText(screen.getByLabelText(label), value);
+    submit();
+    const alerts = await screen.findAllByRole('alert');
+    expect(alerts).toHaveLength(bad.length);
+    const texts = alerts.map((a) => String(a.props.children));
+    for (const [label] of bad) expect(texts.filter((t) => t.startsWith(`${label} must be`))).toHaveLength(1);
+    for (const t of texts) expect(t).not.toMatch(/cells|area_cm2|nameplate_w|batch_date/);
   });
 
   it('editing: starts from the batch, shows the server error under the form, and is busy while saving', () => {
@@ -104,7 +118,7 @@ describe('BatchForm', () => {
     const onSubmit = renderForm({ initial, busy: true, error: new ApiError(409, 'name_taken', 'A batch with that name already exists.'), onCancel: jest.fn() });
     expect(screen.getByTestId('batch-name')).toHaveDisplayValue('Supplier A trial');
     expect(screen.getByLabelText('Cells in series')).toHaveDisplayValue('72');
-    expect(screen.getByLabelText('Device area (cm²)')).toHaveDisplayValue('25000');
+    expect(screen.getByLabelText('Area (cm²)')).toHaveDisplayValue('25000');
     expect(screen.getByLabelText('β, Voc temperature coefficient (%/K)')).toHaveDisplayValue('-0.29');
     expect(screen.getByTestId('form-error')).toHaveTextContent('A batch with that name already exists.');
     expect(screen.getByTestId('batch-submit')).toBeBusy();

@@ -54,7 +54,7 @@ function figureRow(index: number): string[] {
 describe('CurveTable', () => {
   it('headers carry the units', () => {
     renderTable();
-    const headers = ['Device', 'Isc (A)', 'Voc (V)', 'Pmax (W)', 'FF (%)', 'n', 'Rs (Ω)', 'Rsh (Ω)', 'Pmax STC (W)', 'Flags'];
+    const headers = ['Device', 'Isc (A)', 'Voc (V)', 'Pmax (W)', 'FF (%)', 'n', 'Rs (Ω)', 'Rsh (Ω)', 'Pmax at STC (W)', 'Flags'];
     for (const h of headers) expect(screen.getByText(new RegExp(`^${h.replace(/[()]/g, '\\$&')}( [▲▼])?$`))).toBeOnTheScreen();
   });
 

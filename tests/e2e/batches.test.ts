@@ -38,8 +38,17 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await b.page.getByTestId('new-batch').click();
       const name = `Reference devices ${vpName}`;
       await b.page.getByTestId('batch-name').fill(name);
+      // The batch date shows as ISO 8601 whatever the browser's locale; the calendar (the browser's
+      // date picker, whose value is ISO too) writes the chosen day into the field.
+      await b.page.locator('[data-testid="batch-form"] input[type="date"]').fill('2025-11-20');
+      expect(await b.page.getByTestId('batch-date').inputValue()).toBe('2025-11-20');
+      await b.page.getByTestId('batch-date-pick').waitFor();
+      await b.page.getByTestId('batch-date').fill('2025-11-14');
+      expect(await layoutProblems(b.page)).toEqual([]);
+      await screenshot(b.page, `batch-form-${vpName}`);
       await b.page.getByTestId('batch-submit').click();
       await b.page.getByTestId('upload-panel').waitFor();
+      expect(await b.page.locator('body').innerText()).toContain('2025-11-14');
 
       const chooser = b.page.waitForEvent('filechooser');
       await b.page.getByTestId('pick-files').click();

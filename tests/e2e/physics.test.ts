@@ -94,6 +94,36 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await scrollTo(b.page, 'ni-card');
       expect(await layoutProblems(b.page)).toEqual([]);
       await screenshot(b.page, `physics-ni-${vpName}`);
+
+      // The n_i chart's range "from" above "to": said once at "To (K)", and no chart is drawn for it.
+      await b.page.getByTestId('ni-range-from').fill('350');
+      await b.page.getByTestId('ni-range-to').fill('250');
+      await b.page.getByTestId('ni-range-to-error').waitFor();
+      expect(await b.page.getByTestId('ni-range-to-error').innerText()).toBe('To (K) must be above From (350 K).');
+      expect(await b.page.locator('[data-testid="ni-chart"]').count()).toBe(0);
+      await scrollTo(b.page, 'ni-card');
+      expect(await layoutProblems(b.page)).toEqual([]);
+      await screenshot(b.page, `physics-ni-range-error-${vpName}`);
+      await b.page.getByTestId('ni-range-to').fill('450');
+      await b.page.locator('[data-testid="ni-chart"] svg').first().waitFor({ timeout: 20_000 });
+
+      // An invalid temperature: −300 °C is refused at the field in the form's words with rounded
+      // numbers; the results are gone (one neutral card, not the error four times).
+      await b.page.getByTestId('temp-unit-C').click();
+      await b.page.getByTestId('temp-input').fill('-300');
+      await b.page.getByTestId('temp-error').waitFor();
+      expect(await b.page.getByTestId('temp-error').innerText()).toBe("Temperature (°C) must be from −123.15 to 226.85, the crystalline silicon model's range (−300 is outside).");
+      await b.page.getByTestId('physics-no-result').waitFor();
+      for (const card of ['splitting-card', 'band-card', 'occupation-card', 'ni-card']) expect(await b.page.getByTestId(card).count()).toBe(0);
+      expect(await b.page.getByText('must be from −123.15').count()).toBe(1);
+      expect(await b.page.getByText(/temp_k|tempK|\d{8,}/).count()).toBe(0);
+      await scrollTo(b.page, 'physics-controls');
+      expect(await layoutProblems(b.page)).toEqual([]);
+      await screenshot(b.page, `physics-invalid-${vpName}`);
+      // Back to a valid temperature: the results come back for it.
+      await b.page.getByTestId('temp-input').fill('26.85');
+      await b.page.getByTestId('splitting-fd').waitFor({ timeout: 20_000 });
+      expect(await b.page.getByTestId('temp-error').count()).toBe(0);
     } finally {
       await b.close();
     }
@@ -126,6 +156,21 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await scrollTo(b.page, 'voc-temperature-chart');
       expect(await layoutProblems(b.page)).toEqual([]);
       await screenshot(b.page, `physics-voc-${vpName}`);
+
+      // The chart's range: "from" above "to" is said at "To (°C)" and the chart is not drawn for it;
+      // a valid range redraws it over that range.
+      await b.page.getByTestId('voc-range-from').fill('60');
+      await b.page.getByTestId('voc-range-to').fill('10');
+      await b.page.getByTestId('voc-range-to-error').waitFor();
+      expect(await b.page.getByTestId('voc-range-to-error').innerText()).toBe('To (°C) must be above From (60 °C).');
+      expect(await b.page.locator('[data-testid="voc-temperature-chart"]').count()).toBe(0);
+      await scrollTo(b.page, 'voc-range');
+      expect(await layoutProblems(b.page)).toEqual([]);
+      await screenshot(b.page, `physics-voc-range-error-${vpName}`);
+      await b.page.getByTestId('voc-range-from').fill('0');
+      await b.page.getByTestId('voc-range-to').fill('50');
+      await b.page.locator('[data-testid="voc-temperature-chart"] svg').first().waitFor({ timeout: 20_000 });
+      await b.page.getByText('0 °C to 50 °C').waitFor({ timeout: 20_000 });
 
       // Translate the module to 50 °C by its fitted model: less power than at STC.
       await b.page.getByTestId('translate-temp').fill('50');

@@ -110,7 +110,7 @@ it('submit, judge, release at phone and wide width', async () => {
     await lead.page.getByTestId('evaluation').waitFor();
     // The demo lot's high-Rs module and bypass-step module are below 300 W (sample-data scenario).
     expect(await lead.page.getByTestId('count-fail').innerText()).toMatch(/2/);
-    expect(await lead.page.getByTestId('evaluation').innerText()).toMatch(/M2611-009[\s\S]*pmp_w .* is below the minimum 300 W/);
+    expect(await lead.page.getByTestId('evaluation').innerText()).toMatch(/M2611-009[\s\S]*Pmax .* is below the minimum 300 W/);
     await lead.page.getByTestId('review-panel').scrollIntoViewIfNeeded();
     await screenshot(lead.page, 'review-judged-wide');
     await lead.page.getByTestId('release').click();

@@ -1,8 +1,8 @@
 /**
  * Browser: a designer sizes a string from the demo batch "KF-M60 line 2, lot 2611" at phone and
  * wide widths, sees the figures the API computed (string Voc highlighted above 60 V DC), where
- * each input came from and the expanded high-voltage caution; bad input shows the library's
- * message and no figures. Screenshots strings-*.png go to artifacts/screenshots.
+ * each input came from and the expanded high-voltage caution; bad input shows one message at
+ * its field (the form's own check, or the library's in the form's words) and no figures. Screenshots strings-*.png go to artifacts/screenshots.
  */
 import { readDemoAccounts } from '@/server/services/seed';
 import { layoutProblems, openBrowser, screenshot, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
@@ -85,14 +85,38 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await page.getByTestId('string-chart-card').scrollIntoViewIfNeeded();
       await screenshot(page, `strings-chart-${vpName}`);
 
-      // Bad input: a record low of −70 °C is refused with the library's message, and no figures stay on screen.
+      // An invalid edit drops the result at once: no figure stays beside input it does not answer.
+      await page.getByTestId('tmin').fill('cold');
+      await page.getByTestId('tmin').blur();
+      await page.getByTestId('tmin-error').waitFor();
+      expect(await page.getByTestId('tmin-error').innerText()).toBe('Record low ambient (°C) must be a number.');
+      expect(await page.getByTestId('string-result').count()).toBe(0);
+
+      // "From" above "to": said once, at the MPP window's "to" field, before anything is sent.
+      await page.getByTestId('tmin').fill('-25');
+      await page.getByTestId('mpp-min').fill('1300');
+      await page.getByTestId('mpp-max').fill('500');
+      await page.getByTestId('size-submit').click();
+      await page.getByTestId('mpp-max-error').waitFor();
+      expect(await page.getByTestId('mpp-max-error').innerText()).toBe('MPP window to (V) must be above MPP window from (1300 V).');
+      expect(await page.getByText('must be above MPP window from').count()).toBe(1);
+      expect(await page.getByTestId('string-result').count()).toBe(0);
+      await page.getByTestId('mpp-max').scrollIntoViewIfNeeded();
+      expect(await layoutProblems(page)).toEqual([]);
+      await screenshot(page, `strings-range-error-${vpName}`);
+      await page.getByTestId('mpp-min').fill('500');
+      await page.getByTestId('mpp-max').fill('1300');
+
+      // Bad input the library refuses: a record low of −70 °C is said at its field, in its label's
+      // words, once (not again by the button), and no figures are on screen.
       await page.getByTestId('tmin').fill('-70');
       await page.getByTestId('size-submit').click();
-      await page.getByTestId('form-error').waitFor();
-      // The form shows the library's message with the form's label for t_min_c.
-      expect(await page.getByTestId('form-error').innerText()).toMatch(/Record low ambient is -70 °C, outside -60…\+100 °C/);
+      await page.getByTestId('tmin-error').waitFor();
+      expect(await page.getByTestId('tmin-error').innerText()).toMatch(/^Record low ambient is -70 °C, outside -60…\+100 °C/);
+      expect(await page.getByText('is -70 °C, outside').count()).toBe(1);
+      expect(await page.getByTestId('form-error').count()).toBe(0);
       expect(await page.getByTestId('string-result').count()).toBe(0);
-      await page.getByTestId('form-error').scrollIntoViewIfNeeded();
+      await page.getByTestId('tmin').scrollIntoViewIfNeeded();
       expect(await layoutProblems(page)).toEqual([]);
       await screenshot(page, `strings-error-${vpName}`);
     } finally {

@@ -1,4 +1,4 @@
-import { fmtParam, PARAM_LABELS, sig, unitOf } from '@/lib/format';
+import { fmtParam, formatDate, formatDateTime, PARAM_LABELS, sig, unitOf } from '@/lib/format';
 import { PARAM_KEYS } from '@/lib/quality/params';
 
 // Expected strings worked out by hand from the rules in lib/format.ts: `digits` significant
@@ -103,5 +103,39 @@ describe('labels and units', () => {
     expect(unitOf('n')).toBe('');
     expect(unitOf('j0_a_cm2')).toBe('A/cm²');
     expect(unitOf('not_a_key')).toBe('');
+  });
+});
+
+describe('formatDate(): one date form, ISO 8601', () => {
+  // Expected strings written by hand from ISO 8601 (yyyy-mm-dd, 24-hour hh:mm).
+  it('a moment in UTC, with and without its time', () => {
+    expect(formatDate('2026-12-02T14:03:27.512Z', { utc: true })).toBe('2026-12-02');
+    expect(formatDate('2026-12-02T14:03:27.512Z', { utc: true, time: true })).toBe('2026-12-02 14:03 UTC');
+    expect(formatDateTime(new Date(Date.UTC(2026, 0, 5, 9, 7)), { utc: true })).toBe('2026-01-05 09:07 UTC');
+  });
+
+  it('a moment in local time keeps the local calendar day and hour', () => {
+    const d = new Date(2026, 11, 2, 14, 3);
+    expect(formatDateTime(d)).toBe('2026-12-02 14:03');
+    expect(formatDate(d.getTime())).toBe('2026-12-02');
+  });
+
+  it('a calendar date stays the day it names, whatever the time zone', () => {
+    expect(formatDate('2025-11-14')).toBe('2025-11-14');
+    expect(formatDateTime('2025-11-14')).toBe('2025-11-14');
+  });
+
+  it('never a locale form (12/2/2026) nor a raw timestamp', () => {
+    for (const v of ['2026-12-02T14:03:27.512Z', 1796220207512, new Date(2026, 11, 2)]) {
+      const shown = formatDateTime(v);
+      expect(shown).toMatch(/^\d{4}-\d{2}-\d{2} \d{2}:\d{2}$/);
+      expect(shown).not.toMatch(/\//);
+    }
+  });
+
+  it('nothing is —, text that is no date is shown as it is', () => {
+    expect(formatDate(null)).toBe('—');
+    expect(formatDate('')).toBe('—');
+    expect(formatDate('last Tuesday')).toBe('last Tuesday');
   });
 });

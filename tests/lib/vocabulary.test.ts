@@ -31,6 +31,12 @@ import { formatValue, isKnownKey, labelWithUnit, QUANTITIES, quantity, toShown, 
 import { singleDiodeParamsOf } from '@/lib/iv/fit-params';
 import { characterise } from '@/lib/analysis/characterise';
 import { synthCurve } from '@/tests/lib/analysis/characterise/synthetic';
+import { GRID_PARAMS } from '@/lib/compare-columns';
+import { evaluateBatch } from '@/lib/quality/evaluate';
+import { passFailRows } from '@/lib/quality/csv';
+import { parseSpec } from '@/lib/quality/spec';
+import * as responses from '@/lib/schemas/responses';
+import { formatNumber, formatNumberAgainst, labelOf } from '@/lib/vocabulary';
 
 const DEMO = path.resolve(__dirname, '../../sample-data/batches/kf-c24-cells/KF-C24-0001.csv');
 
@@ -120,6 +126,86 @@ describe('every key the engine hands out is in the table', () => {
   });
 });
 
+/** zod 4's definition of a schema, for walking the response schemas. */
+type Def = { type: string; shape?: Record<string, unknown>; element?: unknown; innerType?: unknown; options?: unknown[]; in?: unknown; out?: unknown; valueType?: unknown };
+const defOf = (schema: unknown): Def => (schema as { _zod: { def: Def } })._zod.def;
+
+/** True when the schema (through optional, nullable, default and pipes) is a number. */
+function isNumberSchema(schema: unknown): boolean {
+  const d = defOf(schema);
+  if (d.type === 'number') return true;
+  if (d.type === 'optional' || d.type === 'nullable' || d.type === 'default' || d.type === 'readonly') return isNumberSchema(d.innerType);
+  if (d.type === 'pipe') return isNumberSchema(d.in);
+  return false;
+}
+
+/** Every object key of a response schema whose value is a number, with where it is. */
+function numericSchemaKeys(schema: unknown, at: string, out: { key: string; at: string }[] = [], seen = new Set<unknown>()): typeof out {
+  if (seen.has(schema)) return out;
+  seen.add(schema);
+  const d = defOf(schema);
+  if (d.type === 'object') {
+    for (const [key, v] of Object.entries(d.shape ?? {})) {
+      if (isNumberSchema(v)) out.push({ key, at: `${at}.${key}` });
+      else numericSchemaKeys(v, `${at}.${key}`, out, seen);
+    }
+  } else if (d.type === 'array') numericSchemaKeys(d.element, `${at}[]`, out, seen);
+  else if (d.type === 'optional' || d.type === 'nullable' || d.type === 'default' || d.type === 'readonly') numericSchemaKeys(d.innerType, at, out, seen);
+  else if (d.type === 'union') (d.options ?? []).forEach((o) => numericSchemaKeys(o, at, out, seen));
+  else if (d.type === 'pipe') numericSchemaKeys(d.in, at, out, seen);
+  // A record's keys are data (batch ids, parameter keys), not field names: its values are walked.
+  else if (d.type === 'record') numericSchemaKeys(d.valueType, `${at}{}`, out, seen);
+  return out;
+}
+
+describe('every key that leaves the process in reasons, CSV headers and answers is in the table', () => {
+  // Invented devices and spec (this test's own scenario).
+  const spec = parseSpec({
+    name: 'release',
+    limits: { ff: { min: 0.7 }, voc_v: { max: 42 }, stc_pmp_w: { min: 395 }, rs_ohm: { max: 0.5 }, j0_a_cm2: { max: 1e-12 }, efficiency: { min: 0.2 } },
+    power_classes: { step_w: 5, basis: 'stc_pmp_w' },
+    fail_flags: ['step'],
+  });
+  const evaluation = evaluateBatch(
+    [
+      { device_id: 'A', values: { ff: 0.59, voc_v: 42.0011, stc_pmp_w: 390, rs_ohm: null, j0_a_cm2: 2e-12, efficiency: 0.19, pmp_w: 380 }, flags: ['step'] },
+      { device_id: 'B', values: { ff: 0.78, voc_v: 41.2, stc_pmp_w: 401, rs_ohm: 0.3, j0_a_cm2: 5e-13, efficiency: 0.21, pmp_w: 399 }, flags: [] },
+    ],
+    spec,
+  );
+
+  it('every parameter a reason names has a label and a unit entry, and the reason shows the label', () => {
+    const reasons = evaluation.devices.flatMap((d) => d.reasons);
+    expect(reasons.length).toBeGreaterThan(5);
+    for (const r of reasons) {
+      if (r.param === 'flags') continue;
+      expect({ key: r.param, known: isKnownKey(r.param) }).toEqual({ key: r.param, known: true });
+      expect(r.message.startsWith(labelOf(r.param))).toBe(true);
+    }
+  });
+
+  it('every numeric column of the pass/fail CSV and of the comparison export is a key of the table', () => {
+    const rows = passFailRows(evaluation, { batchName: 'Lot V', spec: { name: 'release', version: 1 }, releaseState: 'open', exportedAt: new Date('2026-12-02T00:00:00Z') });
+    rows.fields.forEach((field, k) => {
+      if (rows.data.some((row) => typeof row[k] === 'number')) expect({ field, known: isKnownKey(field) }).toEqual({ field, known: true });
+    });
+    for (const k of GRID_PARAMS) expect({ k, known: isKnownKey(k) }).toEqual({ k, known: true });
+  });
+
+  it('every numeric field of the API answer schemas (lib/schemas/responses.ts) is a key of the table', () => {
+    const found = Object.entries(responses)
+      .filter(([, v]) => v && typeof v === 'object' && '_zod' in (v as object))
+      .flatMap(([name, schema]) => numericSchemaKeys(schema, name));
+    expect(found.length).toBeGreaterThan(20);
+    expect(found.filter(({ key }) => !isKnownKey(key)).map((f) => f.at)).toEqual([]);
+  });
+
+  it('the walk of the schemas fails for a numeric field the table does not know (the test can fail)', () => {
+    const made = responses.batchSchema.extend({ new_figure_x: responses.batchSchema.shape.cells });
+    expect(numericSchemaKeys(made, 'made').filter(({ key }) => !isKnownKey(key)).map((f) => f.at)).toEqual(['made.new_figure_x']);
+  });
+});
+
 describe('the table itself', () => {
   it('every key is snake_case and every entry has a label; each name is defined once', () => {
     const names = new Set<string>();
@@ -152,6 +238,9 @@ describe('the table itself', () => {
       [/_s$/, (u) => u === 's'],
     ];
     for (const x of QUANTITIES) {
+      // The Welch figures of the two batches end in _a and _b (batch A, batch B), not in a unit:
+      // a statistic takes the unit of the parameter it describes.
+      if (x.group === 'statistic') continue;
       const rule = suffix.find(([re]) => re.test(x.key));
       if (rule) expect({ key: x.key, agrees: rule[1](x.unit) || rule[1](x.storedUnit) }).toEqual({ key: x.key, agrees: true });
     }
@@ -205,6 +294,21 @@ describe('formatValue, labelWithUnit, toShown', () => {
     ['whatever', 'whatever'],
   ])('labelWithUnit(%s) = %s', (key, out) => {
     expect(labelWithUnit(key)).toBe(out);
+  });
+
+  it('formatNumber is formatValue without the unit (for a cell under a header that has it)', () => {
+    expect(formatNumber('ff', 0.71349)).toBe('71.3');
+    expect(formatNumber('voc_v', 49.374)).toBe('49.37');
+    expect(formatNumber('i0_a', 3.1068e-7)).toBe('3.107×10⁻⁷');
+    expect(formatNumber('voc_v', null)).toBe('—');
+  });
+
+  it('a value beside a limit gets the digits it needs to differ from it (a table cell of a failing device)', () => {
+    // 42.0011 V at 4 significant digits reads "42", the same as its limit 42 V; 5 digits tell them apart.
+    expect(formatNumber('voc_v', 42.0011)).toBe('42');
+    expect(formatNumberAgainst('voc_v', 42.0011, [42])).toBe('42.001');
+    expect(formatNumberAgainst('voc_v', 45.123, [42])).toBe('45.12');
+    expect(formatNumberAgainst('ff', 0.69996, [0.7])).toBe('69.996');
   });
 
   it('toShown converts stored fractions to the shown %', () => {

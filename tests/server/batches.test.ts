@@ -237,7 +237,7 @@ describe('refit', () => {
     expect(res.body.meta.temp_c).toBe(45);
     expect(res.body.history).toHaveLength(4);
     expect(res.body.history.filter((x: { current: boolean }) => x.current)).toHaveLength(2);
-    expect(res.body.history[0].reason).toMatch(/temp_c 33 → 45/);
+    expect(res.body.history[0].reason).toMatch(/Cell temperature 33 °C → 45 °C/);
     const single = res.body.fits.find((f: { model: string }) => f.model === 'single-diode');
     // Published true-current optimum for the 36-cell module at 45 °C (reference-data README).
     expect(single.rmse_a / 2.053e-3).toBeCloseTo(1, 3);

@@ -13,6 +13,7 @@ import { circuitCurve, singleDiodeCircuit } from '@/lib/physics';
 import { signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
 import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
+import { coefficientLabel } from '@/lib/schemas/physics';
 
 const REF = REFERENCE_DATA_DIR;
 const moduleCsv = readFileSync(path.join(REF, 'module-36cell-45C.csv'), 'utf8');
@@ -139,7 +140,7 @@ describe('GET /api/physics/material', () => {
   });
 
   it.each([
-    ['abc', /temp_k must be a number/],
+    ['abc', /^Temperature \(K\) must be a number\.$/],
     ['900', /temp_k = 900 K is outside/],
     ['-5', /temp_k/],
   ])('temp_k=%s → 400 naming temp_k', async (t, msg) => {
@@ -147,6 +148,20 @@ describe('GET /api/physics/material', () => {
     expect(res.status).toBe(400);
     expect(res.body.code).toBe('invalid_input');
     expect(res.body.message).toMatch(msg);
+  });
+
+  it('the n_i range: its own from_k and to_k, and "from" above "to" is refused at to_k in words', async () => {
+    const ok = await agents.designer.get('/api/physics/material?temp_k=300&from_k=250&to_k=350');
+    expect(ok.status).toBe(200);
+    expect(ok.body.series.temp_k[0]).toBe(250);
+    expect(ok.body.series.temp_k[ok.body.series.temp_k.length - 1]).toBe(350);
+    const upside = await agents.designer.get('/api/physics/material?temp_k=300&from_k=350&to_k=250');
+    expect(upside.status).toBe(400);
+    expect(upside.body.message).toBe('To (K) must be above From (350 K).');
+    expect(upside.body.details[0].path).toEqual(['to_k']);
+    const outside = await agents.designer.get('/api/physics/material?temp_k=300&from_k=100&to_k=250');
+    expect(outside.status).toBe(400);
+    expect(outside.body.details).toEqual({ input: 'from_k' });
   });
 });
 
@@ -214,10 +229,11 @@ describe('POST /api/physics/band-diagram', () => {
     [{ type: 'x', doping_cm3: 1e16, excess_cm3: 0, temp_k: 300 }, /type/],
     [{ type: 'p', doping_cm3: -1, excess_cm3: 0, temp_k: 300 }, /doping_cm3/],
     [{ type: 'p', doping_cm3: 1e22, excess_cm3: 0, temp_k: 300 }, /doping_cm3/],
-    [{ type: 'p', doping_cm3: 'lots', excess_cm3: 0, temp_k: 300 }, /doping_cm3/],
+    // A malformed number is said in the form's words; which input it is stays in details.
+    [{ type: 'p', doping_cm3: 'lots', excess_cm3: 0, temp_k: 300 }, /^Doping density \(cm⁻³\) must be a number\.$/],
     [{ type: 'p', doping_cm3: 1e16, excess_cm3: 1e15, generation_cm3_s: 1e20, lifetime_s: 1e-5, temp_k: 300 }, /excess_cm3/],
     [{ type: 'p', doping_cm3: 1e16, generation_cm3_s: 1e20, temp_k: 300 }, /lifetime_s/],
-    [{ type: 'p', doping_cm3: 1e16, excess_cm3: 0 }, /temp_k/],
+    [{ type: 'p', doping_cm3: 1e16, excess_cm3: 0 }, /^Temperature \(K\) is required\.$/],
     [{ type: 'p', doping_cm3: 1e16, excess_cm3: 0, temp_k: 40 }, /temp_k/],
     [{ type: 'p', doping_cm3: 1e16, excess_cm3: -3, temp_k: 300 }, /excess_cm3/],
   ])('%j → 400 naming the input', async (body, name) => {
@@ -280,6 +296,22 @@ describe('GET /api/physics/curves/:id', () => {
     expect(rel(at45.voc_v, m.single.coefficient.voc_v)).toBeLessThan(1e-9);
     // The fit reproduces the measured Voc within 1 % (its RMSE is 2 mA on a 1 A curve).
     expect(rel(at45.voc_v, m.curve.metrics.voc_v)).toBeLessThan(0.01);
+  });
+
+  it('the Voc chart takes its own range (from_c, to_c); "from" above "to" or an end outside the model is refused, naming it', async () => {
+    const res = await agents.designer.get(`/api/physics/curves/${moduleId}?from_c=0&to_c=50`);
+    expect(res.status).toBe(200);
+    const pts = (res.body as Physics).single.voc_vs_temperature.points;
+    expect(pts[0].temp_c).toBe(0);
+    expect(pts[pts.length - 1].temp_c).toBe(50);
+    const upside = await agents.designer.get(`/api/physics/curves/${moduleId}?from_c=60&to_c=10`);
+    expect(upside.status).toBe(400);
+    expect(upside.body.message).toBe('To (°C) must be above From (60 °C).');
+    // 500 K is the model's top, 226.85 °C (0 °C = 273.15 K).
+    const outside = await agents.designer.get(`/api/physics/curves/${moduleId}?from_c=0&to_c=300`);
+    expect(outside.status).toBe(400);
+    expect(outside.body.details).toEqual({ input: 'to_c' });
+    expect(outside.body.message).toMatch(/to_c = 300 °C is outside .* −123\.15…226\.85 °C/);
   });
 
   it('implied Voc = n·Ns·Vt·ln(Isc/I0 + 1), computed by hand here, close to the measured Voc', () => {
@@ -361,20 +393,23 @@ describe('POST /api/physics/curves/:id/translate', () => {
     const res = await translate(moduleId, { method: 'iec60891-1', to: { irradiance_w_m2: 1000, temp_c: 25 } });
     expect(res.status).toBe(400);
     expect(res.body.code).toBe('invalid_input');
-    for (const k of ['alpha_a_per_k', 'beta_v_per_k', 'rs_ohm', 'kappa_ohm_per_k']) expect(res.body.message).toContain(k);
+    // Each named by its label and unit in the message, by its key in details.
+    const paths = (body: { details: { path: string[] }[] }) => body.details.map((d) => d.path.join('.'));
+    expect(paths(res.body)).toEqual(['alpha_a_per_k', 'beta_v_per_k', 'rs_ohm', 'kappa_ohm_per_k']);
+    for (const k of ['alpha_a_per_k', 'beta_v_per_k', 'rs_ohm', 'kappa_ohm_per_k'] as const) expect(res.body.message).toContain(coefficientLabel(k));
     const two = await translate(moduleId, { method: 'iec60891-2', to: { irradiance_w_m2: 1000, temp_c: 25 }, alpha_rel_per_k: 0.0005, beta_rel_per_k: -0.004, rs_ohm: 1 });
     expect(two.status).toBe(400);
-    expect(two.body.message).toContain('kappa_ohm_per_k');
-    expect(two.body.message).toContain('a_irradiance');
-    expect(two.body.message).not.toContain('rs_ohm');
+    expect(paths(two.body)).toEqual(['kappa_ohm_per_k', 'a_irradiance']);
+    expect(two.body.message).toContain(coefficientLabel('kappa_ohm_per_k'));
+    expect(two.body.message).toContain(coefficientLabel('a_irradiance'));
   });
 
   it.each([
     [{ method: 'sideways', to: { irradiance_w_m2: 1000, temp_c: 25 } }, /method/],
-    [{ method: 'model' }, /to/],
+    [{ method: 'model' }, /^Give the target irradiance \(W\/m²\) and cell temperature \(°C\)\.$/],
     [{ method: 'model', to: { irradiance_w_m2: 1000, temp_c: 500 } }, /to\.temp_c/],
     [{ method: 'model', to: { irradiance_w_m2: -5, temp_c: 25 } }, /to\.irradiance_w_m2/],
-    [{ method: 'model', to: { irradiance_w_m2: 1000, temp_c: 'warm' } }, /to\.temp_c/],
+    [{ method: 'model', to: { irradiance_w_m2: 1000, temp_c: 'warm' } }, /^Target cell temperature \(°C\) must be a number\.$/],
   ])('%j → 400 naming the input', async (body, name) => {
     const res = await translate(moduleId, body);
     expect(res.status).toBe(400);

@@ -72,7 +72,7 @@ describe('specs', () => {
   });
 
   it.each([
-    ['min above max', { name: 'bad', limits: { ff: { min: 0.9, max: 0.8 } } }, /min \(0\.9\) is greater than max \(0\.8\)/],
+    ['min above max', { name: 'bad', limits: { ff: { min: 0.9, max: 0.8 } } }, /^FF \(%\): the minimum 90\.0 % is above the maximum 80\.0 %$/],
     ['an unknown parameter', { name: 'bad', limits: { wattage: { min: 1 } } }, /unknown parameter "wattage"/],
   ])('refuses %s with 400 and saves nothing', async (_l, body, message) => {
     const before = (await qa.get('/api/specs')).body.specs.length;
@@ -91,7 +91,7 @@ describe('specs', () => {
     const res = await qa.post('/api/specs').send({ ...moduleSpec, family_id, base_version: 1, limits: { ...moduleSpec.limits, rs_ohm: { max: 0.5 } } });
     expect(res.status).toBe(201);
     expect(res.body.version).toBe(2);
-    expect(res.body.changes).toEqual(['rs_ohm: −∞ … 0.6 → −∞ … 0.5']);
+    expect(res.body.changes).toEqual(['Rs: up to 0.6 Ω → up to 0.5 Ω']);
     const v1 = await designer.get(`/api/specs/${specId}`);
     expect(v1.body.limits.rs_ohm).toEqual({ max: 0.6 });
     expect(v1.body.versions.map((v: { version: number; by: string }) => [v.version, v.by])).toEqual([
@@ -140,8 +140,9 @@ describe('pass/fail export', () => {
       const row = rows.find((r) => r.device_id === c.device_id)!;
       const expected = judge(c);
       expect([c.device_id, row.result]).toEqual([c.device_id, expected.result]);
-      // Reasons name the figure as a person reads it (the key table's label) and the decision rule.
-      for (const key of expected.reasons) expect(row.reasons).toContain(key === 'step' ? 'flag "step"' : `${labelOf(key)} `);
+      // Reasons name the quantity by its label (lib/vocabulary.ts), a flag by its words, and the decision rule.
+      const words: Record<string, string> = { pmp_w: 'Pmax ', ff: 'FF ', rs_ohm: 'Rs ', voc_v: 'Voc ', step: 'Flag raised: Step or second knee' };
+      for (const key of expected.reasons) expect(row.reasons).toContain(words[key]);
       if (expected.result === 'fail' && expected.reasons.some((k) => k !== 'step')) expect(row.reasons).toContain('(simple rule)');
       if (expected.result === 'pass') expect(row.reasons).toBe('');
       expect(row.power_class).toBe(expected.power_class);
@@ -154,7 +155,7 @@ describe('pass/fail export', () => {
     }
     // The demo batch's high-Rs module and bypass-step module fail (sample-data scenario).
     expect(rows.find((r) => r.device_id === 'M2611-009')!.result).toBe('fail');
-    expect(rows.find((r) => r.device_id === 'M2611-015')!.reasons).toContain('flag "step"');
+    expect(rows.find((r) => r.device_id === 'M2611-015')!.reasons).toContain('Flag raised: Step or second knee');
   });
 
   it('escapes a device id that a spreadsheet would run as a formula', async () => {
@@ -213,6 +214,12 @@ describe('review and release', () => {
     expect(mail).toHaveLength(1);
     expect(mail[0]).toMatch(/To: tester@lambda-modules\.example/);
     expect(mail[0]).toMatch(/released/);
+    // The mail speaks the screens' words: statistics of each limited parameter with label and
+    // unit, an ISO 8601 moment, never a key.
+    expect(mail[0]).toMatch(/^Pmax over \d+ devices?: mean [\d.]+ W/m);
+    expect(mail[0]).toMatch(/Decided \d{4}-\d{2}-\d{2} \d{2}:\d{2} UTC\./);
+    if (evaluation.counts.fail > 0) expect(mail[0]).toMatch(/Why devices fail:/);
+    expect(mail[0]).not.toMatch(/\b(pmp_w|ff|rs_ohm|voc_v)\b/);
     const reviews = (await designer.get(`/api/batches/${lineThree}/reviews`)).body.reviews;
     expect(reviews.map((r: { action: string }) => r.action)).toEqual(['released', 'submitted']);
     expect(reviews[0]).toEqual(expect.objectContaining({ spec_id: spec.id, actor: 'Quentin QA', counts: evaluation.counts, comment: 'All within limits.' }));

@@ -316,7 +316,8 @@ describe('reopening a released batch', () => {
     for (const body of [{}, { reason: '   ' }]) {
       const res = await qa.post(`/api/batches/${b.id}/reopen`).send(body);
       expect(res.status).toBe(400);
-      expect(res.body.message).toMatch(/^reason: /);
+      expect(res.body.message).toBe('Write why the released batch is reopened.');
+      expect(res.body.details[0].path).toEqual(['reason']);
     }
     expect((await tester.post(`/api/batches/${b.id}/reopen`).send({ reason: 'x' })).status).toBe(403);
     expect((await designer.get(`/api/batches/${b.id}`)).body.state).toBe('released');
@@ -358,6 +359,7 @@ describe('concurrent spec edits', () => {
     expect([again.status, again.body.version]).toEqual([201, 3]);
     const missing = await qa.post('/api/specs').send({ name: 'Shared', limits: {}, family_id: v1.family_id });
     expect(missing.status).toBe(400);
-    expect(missing.body.message).toMatch(/base_version/);
+    expect(missing.body.message).toBe('Say which version this edit started from.');
+    expect(missing.body.details[0].path).toEqual(['base_version']);
   });
 });

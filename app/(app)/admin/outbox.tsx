@@ -4,6 +4,7 @@ import { QueryState } from '@/components/query-state';
 import { Screen } from '@/components/screen';
 import { Txt } from '@/components/txt';
 import { useOutbox } from '@/lib/api/outbox';
+import { formatDateTime } from '@/lib/format';
 
 export default function OutboxScreen() {
   const outbox = useOutbox();
@@ -15,7 +16,7 @@ export default function OutboxScreen() {
             {d.messages.map((m) => (
               <Card key={m.id} title={m.subject}>
                 <Txt variant="caption">
-                  To {m.to} · {new Date(m.created_at).toLocaleString()} · {m.transport === 'file' ? 'written to the local outbox' : 'sent by SMTP'}
+                  To {m.to} · {formatDateTime(m.created_at)} · {m.transport === 'file' ? 'written to the local outbox' : 'sent by SMTP'}
                 </Txt>
                 <Txt variant="body" numberOfLines={8}>{m.body}</Txt>
               </Card>

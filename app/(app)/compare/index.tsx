@@ -19,13 +19,16 @@ import type { CompareRow, Comparison } from '@/lib/api/quality';
 import { ALL_COLUMNS, DEFAULT_COLUMNS, GRID_PARAMS, columnHeader } from '@/lib/compare-columns';
 import type { CompareColumnId } from '@/lib/compare-columns';
 import { downloadText } from '@/lib/download';
-import { PARAM_LABELS, fmtParam, sig, unitOf } from '@/lib/format';
+import { PARAM_LABELS, fmtParam, formatNumberAgainst, sig, unitOf } from '@/lib/format';
 import { comparisonCsv, comparisonFileName } from '@/lib/quality/compare-csv';
 import { isParamKey } from '@/lib/quality/params';
 import { uncertaintyKey, valuePlusMinus } from '@/lib/quality/uncertainty';
 import type { ParamKey } from '@/lib/quality/params';
 
-function cellText(id: CompareColumnId, r: CompareRow): string {
+/** The spec's limits of each parameter, as the bounds a cell is told apart from. */
+type LimitBounds = Partial<Record<string, number[]>>;
+
+function cellText(id: CompareColumnId, r: CompareRow, bounds: LimitBounds): string {
   const v = r[id];
   if (id === 'flags') return (r.flags ?? []).join(' ');
   if (id === 'reasons') return (r.reasons ?? []).join('; ');
@@ -33,16 +36,18 @@ function cellText(id: CompareColumnId, r: CompareRow): string {
   // Pmax, Isc, Voc and STC Pmax with their expanded uncertainty (k = 2) when the batch has a setup.
   const u = isParamKey(id) && uncertaintyKey(id) ? r[uncertaintyKey(id)!] : null;
   if (typeof v === 'number' && typeof u === 'number' && u > 0) return valuePlusMinus(v, u);
-  if (typeof v === 'number') return fmtParam(id, v).replace(/ (A|V|W|Ω|%|A\/cm²)$/, '');
+  // The number alone (the header has the unit), with the digits that tell it from a limit of the
+  // spec: a Voc of 42.0011 V failing a 42 V maximum reads 42.001, not 42.
+  if (typeof v === 'number') return formatNumberAgainst(id, v, bounds[id] ?? []);
   return v == null ? '' : String(v);
 }
 
-function columnDefs(ids: CompareColumnId[]): ColumnDef<CompareRow>[] {
+function columnDefs(ids: CompareColumnId[], bounds: LimitBounds): ColumnDef<CompareRow>[] {
   return ids.map((id) => ({
     id,
     header: columnHeader(id),
     accessorFn: (r: CompareRow) => (r[id] as unknown) ?? null,
-    cell: (ctx) => cellText(id, ctx.row.original),
+    cell: (ctx) => cellText(id, ctx.row.original, bounds),
     size: id === 'device_id' ? 130 : id === 'batch_name' ? 170 : id === 'flags' || id === 'reasons' ? 220 : id === 'result' || id === 'outlier' ? 80 : id === 'i0_a' || id === 'j0_a_cm2' || id === 'rmse_a' || (isParamKey(id) && uncertaintyKey(id)) ? 124 : 96,
     sortUndefined: 'last',
   }));
@@ -145,6 +150,7 @@ export default function CompareScreen() {
               setSorting={setSorting}
               filters={{ onlyBatches, setOnlyBatches, result, setResult, flag, setFlag, range, setRange }}
               onOpen={(r) => router.push(`/curves/${r.curve_id}`)}
+              limits={(specs.data?.specs ?? []).find((s) => s.id === specId)?.limits}
             />
           )}
         </QueryState>
@@ -180,6 +186,8 @@ function CompareBody(props: {
   setSorting: (s: SortingState) => void;
   filters: Filters;
   onOpen: (r: CompareRow) => void;
+  /** The chosen spec's limits: a cell near one gets the digits to tell it apart. */
+  limits?: Partial<Record<string, { min?: number; max?: number }>>;
 }) {
   const { c, wide, asGrid, param, setParam, columns, setColumns, filters: f } = props;
   const [showCurves, setShowCurves] = useState(false);
@@ -198,7 +206,12 @@ function CompareBody(props: {
       return true;
     });
   }, [c.rows, f.onlyBatches, f.result, f.flag, f.range, param]);
-  const defs = useMemo(() => columnDefs(columns), [columns]);
+  const limits = props.limits;
+  const bounds = useMemo<LimitBounds>(
+    () => Object.fromEntries(Object.entries(limits ?? {}).map(([k, l]) => [k, [l?.min, l?.max].filter((x): x is number => typeof x === 'number')])),
+    [limits],
+  );
+  const defs = useMemo(() => columnDefs(columns, bounds), [columns, bounds]);
 
   const exportView = () => {
     const order = props.sorting[0];

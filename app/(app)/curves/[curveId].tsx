@@ -21,11 +21,13 @@ import { stcBasisText, stcInputRows, stcMethodName } from '@/lib/analysis/stc-wo
 import { useCurve } from '@/lib/api/batches';
 import type { CurveDetail, FitJson } from '@/lib/api/batches';
 import { useMe } from '@/lib/api/session';
-import { fmtParam, sig } from '@/lib/format';
 import { formatWithUncertainty } from '@/lib/quality/uncertainty';
+import { fmtParam, formatDateTime, sig } from '@/lib/format';
+import { labelOf } from '@/lib/vocabulary';
 import { doubleDiodeCurrent, singleDiodeCurrents } from '@/lib/iv/diode';
 import { stcFiguresOf } from '@/lib/schemas/curves';
 import { isAboveElv } from '@/lib/strings/cautions';
+import { keysToWords } from '@/lib/schemas/field-words';
 
 /** The fitted model's current on an even voltage grid across the measured range. */
 function modelSeries(c: CurveDetail, f: FitJson | undefined): Series | null {
@@ -123,7 +125,7 @@ function FitColumn({ f, wide }: { f: FitJson; wide: boolean }) {
             <Txt variant="figure" style={{ flex: 1 }}>{fmtParam('rmse_a', f.rmse_a, 4)}</Txt>
             <Txt variant="caption">max {fmtParam('rmse_a', f.max_residual_a, 3)}</Txt>
           </View>
-          <Txt variant="caption">{f.evaluations} evaluations · {f.elapsed_ms.toFixed(1)} ms · {f.reason}{f.at_bounds?.length ? ` · at bound: ${f.at_bounds.join(', ')}` : ''}</Txt>
+          <Txt variant="caption">{f.evaluations} evaluations · {f.elapsed_ms.toFixed(1)} ms · {f.reason}{f.at_bounds?.length ? ` · at bound: ${f.at_bounds.map(labelOf).join(', ')}` : ''}</Txt>
         </>
       )}
     </View>
@@ -159,8 +161,8 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
     c.meta.temp_c != null ? fmtParam('temp_c', c.meta.temp_c) : '25 °C assumed',
     c.meta.irradiance_w_m2 != null ? fmtParam('irradiance_w_m2', c.meta.irradiance_w_m2) : 'irradiance not given',
     `${c.meta.cells ?? 1} cell${(c.meta.cells ?? 1) === 1 ? '' : 's'} in series`,
-    c.meta.area_cm2 != null ? `${c.meta.area_cm2} cm²` : null,
-    c.meta.measured_at ? `measured ${c.meta.measured_at}` : null,
+    c.meta.area_cm2 != null ? fmtParam('area_cm2', c.meta.area_cm2) : null,
+    c.meta.measured_at ? `measured ${formatDateTime(c.meta.measured_at)}` : null,
   ].filter(Boolean);
   const flags = c.flags.filter((f) => f.code !== 'high-voltage');
   const router = useRouter();
@@ -237,7 +239,7 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
             <View key={h.fit_id} style={{ flexDirection: 'row', gap: 8, flexWrap: 'wrap' }}>
               <Txt variant="figure" style={{ fontSize: 12, color: h.current ? theme.color.electron : theme.color.muted }}>{h.current ? 'current' : 'earlier'}</Txt>
               <Txt variant="caption" style={{ flex: 1, minWidth: 200 }}>
-                {h.model} · RMSE {fmtParam('rmse_a', h.rmse_a, 3)} · {h.reason} · {new Date(h.created_at).toLocaleString()}
+                {h.model} · RMSE {fmtParam('rmse_a', h.rmse_a, 3)} · {h.reason} · {formatDateTime(h.created_at)}
               </Txt>
             </View>
           ))}

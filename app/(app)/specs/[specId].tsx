@@ -11,7 +11,7 @@ import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import { useSpec } from '@/lib/api/quality';
 import { useMe } from '@/lib/api/session';
-import { PARAM_LABELS, fmtParam } from '@/lib/format';
+import { fmtParam, formatDateTime, PARAM_LABELS } from '@/lib/format';
 import type { ParamKey } from '@/lib/quality/params';
 
 export default function SpecScreen() {
@@ -59,7 +59,7 @@ export default function SpecScreen() {
                 {(s.versions ?? []).slice().reverse().map((v) => (
                   <View key={v.id} style={{ gap: 2 }}>
                     <Txt variant="label" style={{ color: v.id === s.id ? theme.color.electron : theme.color.inkSoft }} onPress={() => router.push(`/specs/${v.id}`)}>
-                      Version {v.version} · {v.by ?? 'unknown'} · {new Date(v.created_at).toLocaleString()}
+                      Version {v.version} · {v.by ?? 'unknown'} · {formatDateTime(v.created_at)}
                     </Txt>
                     <Txt variant="caption">{v.changes.join('; ')}</Txt>
                   </View>

@@ -52,8 +52,11 @@ describe('evaluateDevice()', () => {
       ['above_max', 'rs_ohm', 0.62, 'max', 0.5],
       ['flag', 'flags', 'step_in_curve', null, null],
     ]);
+    // Labels, units and digits from the key table (lib/vocabulary.ts): FF as % with 1 decimal; each limit reason names the decision rule.
     expect(r.reasons[0].message).toBe('Pmax 390 W is below the minimum 395 W (simple rule)');
+    expect(r.reasons[1].message).toBe('FF 90.0 % is above the maximum 85.0 % (simple rule)');
     expect(r.reasons[2].message).toBe('Rs 0.62 Ω is above the maximum 0.5 Ω (simple rule)');
+    expect(r.reasons[3].message).toBe('Flag raised: step_in_curve; this spec fails it');
     expect(r.power_class).toBe('P390');
   });
 
@@ -63,10 +66,10 @@ describe('evaluateDevice()', () => {
 
   it('fails a limited parameter that was not measured, and a module without power', () => {
     const r = evaluateDevice(device('M4', { pmp_w: 401, ff: null }), spec);
-    expect(r.reasons.map((x) => x.message)).toEqual(['ff not measured', 'rs_ohm not measured']);
+    expect(r.reasons.map((x) => x.message)).toEqual(['FF was not measured', 'Rs was not measured']);
     const noPower = evaluateDevice(device('M5', { rs_ohm: 0.3, ff: 0.8 }), spec);
     expect(noPower.power_class).toBeNull();
-    expect(noPower.reasons.map((x) => x.message)).toEqual(['pmp_w not measured', 'pmp_w not measured: no power class']);
+    expect(noPower.reasons.map((x) => x.message)).toEqual(['Pmax was not measured', 'Pmax was not measured, so no power class']);
   });
 
   it.each([
@@ -138,7 +141,7 @@ describe('power classes', () => {
     const r = evaluateDevice(device('B', { stc_pmp_w: p, pmp_w: 1 }), bins);
     expect(r.power_class).toBe(label);
     expect(r.result).toBe(label ? 'pass' : 'fail');
-    if (!label) expect(r.reasons[0].message).toMatch(/stc_pmp_w .* W falls in no power class \(classes cover 400–420 W\)/);
+    if (!label) expect(r.reasons[0].message).toMatch(/^Pmax at STC .* W falls in no power class \(the classes cover 400–420 W\)$/);
   });
 });
 

@@ -29,16 +29,18 @@ describe('specInputSchema', () => {
   });
 
   it.each([
-    [{ name: 'x', limits: { rs_mohm: { max: 1 } } }, /^limits: unknown parameter "rs_mohm"; known: isc_a, voc_v/],
-    [{ name: 'x', limits: { rs_ohm: { min: 2, max: 1 } } }, /^limits\.rs_ohm: min \(2\) is greater than max \(1\)$/],
-    [{ name: 'x', limits: { rs_ohm: {} } }, /^limits\.rs_ohm: give min, max or both$/],
-    [{ name: 'x', limits: { rs_ohm: { maximum: 1 } } }, /^limits\.rs_ohm: unknown limit field "maximum"/],
-    [{ name: 'x', limits: { rs_ohm: { max: '0.5' } } }, /^limits\.rs_ohm\.max: max must be a finite number$/],
-    [{ name: 'x', limits: { rs_ohm: { max: Infinity } } }, /max must be a finite number/],
-    [{ name: '', limits: {} }, /^name: name is required$/],
-    [{ limits: {} }, /^name: name is required$/],
+    [{ name: 'x', limits: { rs_mohm: { max: 1 } } }, /^Limits: unknown parameter "rs_mohm"; known: isc_a, voc_v/],
+    // Fields named as the spec editor labels them (key table), bounds shown as on screen.
+    [{ name: 'x', limits: { rs_ohm: { min: 2, max: 1 } } }, /^Rs \(Ω\): the minimum 2 Ω is above the maximum 1 Ω$/],
+    [{ name: 'x', limits: { ff: { min: 0.8, max: 0.7 } } }, /^FF \(%\): the minimum 80\.0 % is above the maximum 70\.0 %$/],
+    [{ name: 'x', limits: { rs_ohm: {} } }, /^Rs \(Ω\): give a minimum, a maximum or both$/],
+    [{ name: 'x', limits: { rs_ohm: { maximum: 1 } } }, /^Rs \(Ω\): unknown limit field "maximum"/],
+    [{ name: 'x', limits: { rs_ohm: { max: '0.5' } } }, /^Rs \(Ω\) maximum must be a number$/],
+    [{ name: 'x', limits: { stc_pmp_w: { min: Infinity } } }, /^Pmax at STC \(W\) minimum must be a number$/],
+    [{ name: '', limits: {} }, /^Give the spec a name\.$/],
+    [{ limits: {} }, /^Give the spec a name\.$/],
     [{ name: 'x', limit: {} }, /^unknown spec field "limit"/],
-    [{ name: 'x', power_classes: {} }, /^power_classes\.step_w: give step_w/],
+    [{ name: 'x', power_classes: {} }, /^Power class step \(W\): give step_w/],
     [{ name: 'x', power_classes: { step_w: 5, tolerance: { minus_w: 0, plus_w: 3 } } }, /must equal step_w \(5 W\)/],
     [{ name: 'x', power_classes: { step_w: 5, lowest_w: 402 } }, /lowest_w \(402 W\) must be a multiple of step_w/],
     [{ name: 'x', power_classes: { step_w: 5, lowest_w: 410, highest_w: 400 } }, /lowest_w \(410 W\) is above highest_w/],
@@ -51,7 +53,7 @@ describe('specInputSchema', () => {
       /bins "A" and "B" overlap/,
     ],
     [{ name: 'x', power_classes: { bins: [{ label: 'A', nominal_w: 400, min_w: 405, max_w: 400 }] } }, /min_w \(405\) must be below max_w \(400\)/],
-    [{ name: 'x', fail_flags: [''] }, /^fail_flags\.0: a flag code cannot be empty$/],
+    [{ name: 'x', fail_flags: [''] }, /^Failing flag 1: a flag code cannot be empty$/],
   ])('rejects %j with a clear message', (input, message) => {
     expect(issues(input).some((m) => message.test(m))).toBe(true);
   });
@@ -63,6 +65,6 @@ describe('specInputSchema', () => {
 
   it('parseSpec throws QualityError carrying the messages', () => {
     expect(() => parseSpec({ name: 'x', limits: { foo: { min: 1 } } })).toThrow(QualityError);
-    expect(() => parseSpec({ name: 'x', limits: { foo: { min: 1 } } })).toThrow(/invalid spec: limits: unknown parameter "foo"/);
+    expect(() => parseSpec({ name: 'x', limits: { foo: { min: 1 } } })).toThrow(/invalid spec: Limits: unknown parameter "foo"/);
   });
 });

@@ -85,7 +85,7 @@ describe('welchDifference() on raw data, checked by hand and by numeric integrat
   const se2 = vA / 5 + vB / 6;
   const dof = (se2 * se2) / ((vA / 5) ** 2 / 4 + (vB / 6) ** 2 / 5); // Welch–Satterthwaite ≈ 7.74
   const t = (mean_b - mean_a) / Math.sqrt(se2);
-  const r = welchDifference(a, b, 0.95, { param: 'rs_ohm', unit: 'Ω' });
+  const r = welchDifference(a, b, 0.95, { key: 'rs_ohm' });
 
   it.each([
     ['difference', mean_b - mean_a, 1e-12],
@@ -113,7 +113,21 @@ describe('welchDifference() on raw data, checked by hand and by numeric integrat
 
   it('writes the sentence with numbers rounded to the interval', () => {
     // half width ≈ 0.041 → two significant digits → 3 decimals
-    expect(r.sentence).toContain(`Batch B's rs_ohm is higher than Batch A's by 0.100 Ω (95 % CI ${r.ci_low.toFixed(3)}–${r.ci_high.toFixed(3)} Ω`);
+    // Label and unit from the key table (lib/vocabulary.ts), not the key "rs_ohm".
+    expect(r.sentence).toContain(`Batch B's Rs is higher than Batch A's by 0.100 Ω (95 % CI ${r.ci_low.toFixed(3)}–${r.ci_high.toFixed(3)} Ω`);
+  });
+
+  it('a fraction shown in % is worded in % (FF): label, unit and scale from the key table', () => {
+    // Invented FF fractions; difference of the means by hand: 0.7900 − 0.7700 = 0.0200 → 2.0 %.
+    const ff = welchDifference([0.769, 0.771, 0.770, 0.768, 0.772], [0.789, 0.791, 0.790, 0.788, 0.792], 0.95, { nameA: 'Lot 1', nameB: 'Lot 2', key: 'ff' });
+    expect(ff.difference).toBeCloseTo(0.02, 12);
+    expect(ff.sentence).toMatch(/^Lot 2's FF is higher than Lot 1's by 2\.00 % \(95 % CI 1\.[0-9]{2}–2\.[0-9]{2} %;/);
+    expect(ff.sentence).not.toMatch(/\bff\b|0\.02/);
+  });
+
+  it('names the batches and the quantity when a test is not possible', () => {
+    expect(() => welchDifference([400], [401, 402], 0.95, { nameA: 'Lot 1', nameB: 'Lot 2', key: 'pmp_w' })).toThrow('Lot 1 has 1 value of Pmax; a standard deviation needs at least 2');
+    expect(() => welchDifference([1, 1], [2, 2], 0.95, { nameA: 'Lot 1', nameB: 'Lot 2', key: 'ff' })).toThrow(/^Lot 1 and Lot 2 have no spread in FF/);
   });
 
   it('says "no clear difference" when the interval includes zero', () => {
@@ -126,7 +140,7 @@ describe('welchDifference() on raw data, checked by hand and by numeric integrat
     [[1], [1, 2], /sample A needs at least 2 values/],
     [[1, 2], [3], /sample B needs at least 2 values/],
     [[1, Number.NaN], [1, 2], /sample A\[1\] is NaN/],
-    [[1, 1], [2, 2], /zero spread/],
+    [[1, 1], [2, 2], /both samples have no spread/],
   ])('rejects %p vs %p', (x, y, message) => {
     expect(() => welchDifference(x, y)).toThrow(QualityError);
     expect(() => welchDifference(x, y)).toThrow(message);
