@@ -261,22 +261,16 @@ export const QUANTITIES: readonly Quantity[] = [
   // Statistics of one parameter over a batch (lib/quality describe, welch): shown in the unit of
   // the parameter they describe, so the table gives no unit of their own. (The sample size of a
   // description is `n` by the statistics' own convention; `n` here is the ideality factor.)
-  q('statistic', 'mean', 'Mean', ''),
-  q('statistic', 'sd', 'Standard deviation', ''),
-  q('statistic', 'min', 'Minimum', ''),
-  q('statistic', 'max', 'Maximum', ''),
-  q('statistic', 'p5', '5th percentile', ''),
-  q('statistic', 'median', 'Median', ''),
-  q('statistic', 'p95', '95th percentile', ''),
+  ...(
+    [
+      ['mean', 'Mean'], ['sd', 'Standard deviation'], ['min', 'Minimum'],
+      ['max', 'Maximum'], ['p5', '5th percentile'], ['median', 'Median'],
+      ['p95', '95th percentile'], ['difference', 'Difference of the means'], ['standard_error', 'Standard error of the difference'],
+      ['ci_low', 'Confidence interval, low end'], ['ci_high', 'Confidence interval, high end'], ['mean_a', 'Mean of the first batch'],
+      ['mean_b', 'Mean of the other batch'], ['sd_a', 'Standard deviation of the first batch'], ['sd_b', 'Standard deviation of the other batch'],
+    ] as const
+  ).map(([k, label]) => q('statistic', k, label, '')),
   q('statistic', 'cpk', 'Cpk', '', { decimals: 2 }),
-  q('statistic', 'difference', 'Difference of the means', ''),
-  q('statistic', 'standard_error', 'Standard error of the difference', ''),
-  q('statistic', 'ci_low', 'Confidence interval, low end', ''),
-  q('statistic', 'ci_high', 'Confidence interval, high end', ''),
-  q('statistic', 'mean_a', 'Mean of the first batch', ''),
-  q('statistic', 'mean_b', 'Mean of the other batch', ''),
-  q('statistic', 'sd_a', 'Standard deviation of the first batch', ''),
-  q('statistic', 'sd_b', 'Standard deviation of the other batch', ''),
   q('statistic', 'n_a', 'Devices in the first batch', '', count),
   q('statistic', 'n_b', 'Devices in the other batch', '', count),
   q('statistic', 't', 'Welch t', '', { digits: 3 }),
@@ -285,24 +279,18 @@ export const QUANTITIES: readonly Quantity[] = [
   q('statistic', 'p', 'p-value', '', { digits: 2 }),
   q('statistic', 'confidence', 'Confidence level', '%', percent(0)),
   q('statistic', 'robust_z', 'Modified z-score', '', { digits: 3 }),
-
-  // Counts and bookkeeping numbers of the answers (batches, pages, reviews, releases, uploads).
-  q('record', 'total', 'Total', '', count),
-  q('record', 'pass', 'Passed', '', count),
-  q('record', 'fail', 'Failed', '', count),
-  q('record', 'outliers', 'Outliers', '', count),
-  q('record', 'curve_count', 'Curves', '', count),
-  q('record', 'page', 'Page', '', count),
-  q('record', 'page_size', 'Rows per page', '', count),
-  q('record', 'version', 'Version', '', count),
-  q('record', 'spec_version', 'Spec version', '', count),
-  q('record', 'base_version', 'Version edited from', '', count),
-  q('record', 'revision', 'Release revision', '', count),
-  q('record', 'accepted', 'Files accepted', '', count),
-  q('record', 'rejected', 'Files refused', '', count),
-  q('record', 'replaced', 'Curves replaced', '', count),
-  q('record', 'line', 'Line in the file', '', count),
-  q('record', 'sampled', 'Curves drawn', '', count),
+  // Counts and bookkeeping numbers of the answers (batches, pages, reviews, releases, uploads, archive checks).
+  ...(
+    [
+      ['total', 'Total'], ['pass', 'Passed'], ['fail', 'Failed'],
+      ['outliers', 'Outliers'], ['curve_count', 'Curves'], ['page', 'Page'],
+      ['page_size', 'Rows per page'], ['version', 'Version'], ['spec_version', 'Spec version'],
+      ['base_version', 'Version edited from'], ['revision', 'Release revision'], ['accepted', 'Files accepted'],
+      ['rejected', 'Files refused'], ['replaced', 'Curves replaced'], ['line', 'Line in the file'],
+      ['sampled', 'Curves drawn'], ['checked', 'Originals checked'], ['deleted', 'Originals deleted'],
+      ['without_cells', 'Devices without a cell count'],
+    ] as const
+  ).map(([k, label]) => q('record', k, label, '', count)),
 ];
 
 const BY_KEY: ReadonlyMap<string, Quantity> = (() => {
@@ -368,21 +356,14 @@ function shownNumber(x: Quantity | undefined, value: number, precision: number):
 
 const withUnit = (x: Quantity | undefined, text: string) => (x?.unit ? `${text} ${x.unit}` : text);
 
-/**
- * A stored value for display, with its unit: "0.7603 A", "78.1 %", "3.107×10⁻⁷ A", '—' when
- * missing or not finite. `digits` overrides the table's significant digits (not fixed decimals).
- * An unknown key shows the number alone.
- */
+/** A stored value with its unit ("0.7603 A", "78.1 %", '—' when missing); `digits` overrides significant digits; an unknown key shows the number alone. */
 export function formatValue(key: string, value: number | null | undefined, digits?: number): string {
   if (value == null || !Number.isFinite(value)) return '—';
   const x = quantity(key);
   return withUnit(x, shownNumber(x, value, basePrecision(x, digits)));
 }
 
-/**
- * The shown number alone ("0.7603", "78.1"), for a table cell whose header carries the unit
- * (labelWithUnit); '—' when missing or not finite.
- */
+/** The shown number alone ("0.7603", "78.1") for a cell whose header has the unit (labelWithUnit); '—' when missing. */
 export function formatNumber(key: string, value: number | null | undefined, digits?: number): string {
   if (value == null || !Number.isFinite(value)) return '—';
   const x = quantity(key);
@@ -390,10 +371,8 @@ export function formatNumber(key: string, value: number | null | undefined, digi
 }
 
 /**
- * The precision (decimals or significant digits, as the table uses for the key) at which `value`
- * shows differently from every one of `others` it does not equal: the table's own precision, or
- * more until they differ (a Voc of 42.0011 V beside a maximum of 42 V shows as 42.001, never as
- * "42"). Capped at 15 digits.
+ * The precision (the key's decimals or significant digits) at which `value` shows apart from each of `others` it does not
+ * equal: the table's own, or more until they differ (42.0011 V beside a 42 V maximum shows 42.001). Capped at 15.
  */
 export function precisionApart(key: string, value: number, others: readonly number[], digits?: number): number {
   const x = quantity(key);
@@ -403,10 +382,7 @@ export function precisionApart(key: string, value: number, others: readonly numb
   return p;
 }
 
-/**
- * A value and the limits it is compared with, each with its unit, at one precision that tells
- * the value apart from each limit (precisionApart): { value: "59.2 %", limits: ["70.0 %"] }.
- */
+/** A value and its limits with units at one precision that tells them apart: { value: "59.2 %", limits: ["70.0 %"] }. */
 export function formatAgainst(key: string, value: number, limits: readonly number[]): { value: string; limits: string[] } {
   const x = quantity(key);
   const p = precisionApart(key, value, limits);

@@ -2,7 +2,7 @@
 import { useQuery } from '@tanstack/react-query';
 import { apiFetch } from '@/lib/api/client';
 import { batchKeys } from '@/lib/api/keys';
-import type { CharacterisationAnswer } from '@/lib/schemas/responses';
+import type { CharacterisationAnswer } from '@/lib/schemas/characterisation-answer';
 
 export type { CharacterisationAnswer };
 export type { Characterisation } from '@/lib/analysis/characterise';

@@ -17,7 +17,8 @@ import type { Quantity } from '@/lib/units';
  */
 const withUnit = <T extends z.ZodType>(field: T, name: string, quantity: Quantity, scale = 1) =>
   z.preprocess((v, ctx) => {
-    if (typeof v !== 'string' || !/[A-Za-z%°Ωµμ]/.test(v.replace(/^\s*[+\-−]?[\d.,]+[eE][+\-−]?\d+\s*$/, ''))) return v;
+    // Only a number followed by a unit is read by mathjs; anything else is left to the number schema's own message.
+    if (typeof v !== 'string' || !/^\s*[+\-−]?[\d.,]/.test(v) || !/[A-Za-z%°Ωµμ]/.test(v.replace(/^\s*[+\-−]?[\d.,]+[eE][+\-−]?\d+\s*$/, ''))) return v;
     const r = parseQuantity(v, quantity);
     if ('error' in r) {
       ctx.addIssue({ code: 'custom', message: `${name}: ${r.error}` });

@@ -13,7 +13,6 @@ import type { Permission } from '@/lib/auth/roles';
 import type { BatchColumns } from '@/lib/quality/compare-table';
 import type { CurveMeta, FitResult, Flag, Metrics } from '@/lib/iv/types';
 import type { StcOutcome } from '@/lib/schemas/curves';
-import type { Characterisation } from '@/lib/analysis/characterise';
 import { SEVERITIES } from '@/lib/quality/severity';
 import type { Spec } from '@/lib/quality/spec';
 
@@ -390,17 +389,6 @@ export type UserList = z.infer<typeof userListSchema>;
 export type OutboxMessage = z.infer<typeof outboxMessageSchema>;
 export type Outbox = z.infer<typeof outboxSchema>;
 
-// ---------------------------------------------------------------- characterisation
-/** GET /api/batches/:id/characterisation: the engine's answer (lib/analysis/characterise) for one device of the batch, or why there is none. */
-export const characterisationAnswerSchema = z.strictObject({
-  batch: z.strictObject({ id: z.string(), name: z.string() }),
-  device_id: z.string().nullable(),
-  devices: z.array(z.strictObject({ device_id: z.string(), curves: z.number() })),
-  sources: z.array(z.strictObject({ curve_id: z.string(), file_name: z.string(), irradiance_w_m2: num, temp_c: num })),
-  characterisation: engine<Characterisation>().nullable(),
-  reason: z.string().nullable(),
-});
-export type CharacterisationAnswer = z.infer<typeof characterisationAnswerSchema>;
 
 export type Setup = z.infer<typeof setupSchema>;
 export type SetupList = z.infer<typeof setupListSchema>;

@@ -10,7 +10,7 @@ import type { Db } from '@/db/client';
 import { curve } from '@/db/schema';
 import { characterise } from '@/lib/analysis/characterise';
 import type { CharCurve } from '@/lib/analysis/characterise';
-import type { CharacterisationAnswer } from '@/lib/schemas/responses';
+import type { CharacterisationAnswer } from '@/lib/schemas/characterisation-answer';
 import { loadBatch } from '@/server/services/batches';
 
 /** The `device` that asks for every curve of the batch (a characterisation run whose files name no device, so each got its own). */

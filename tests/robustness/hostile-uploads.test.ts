@@ -140,7 +140,7 @@ describe('odd requests rather than odd files', () => {
       /could not be read as a multipart form/,
       (a) => a.post(`/api/batches/${batchId}/curves`).set('Content-Type', 'multipart/form-data; boundary=XYZ').send('--XYZ\r\nContent-Disposition: form-data; name="files"; filename="cut.csv"\r\n\r\nV,I\n0,1\n'),
     ],
-    ['a temperature override that is not a number', 400, 'invalid_input', /temp_c/, (a) => a.post(`/api/batches/${batchId}/curves`).field('temp_c', 'warm').attach('files', plain(), 'override.csv')],
+    ['a temperature override that is not a number', 400, 'invalid_input', /Cell temperature \(°C\) must be a number/, (a) => a.post(`/api/batches/${batchId}/curves`).field('temp_c', 'warm').attach('files', plain(), 'override.csv')],
   ])('%s → %i %s', async (_name, status, code, message, send) => {
     const res = await send(tester);
     expect(res.status).toBe(status);

@@ -11,6 +11,7 @@
  * another organisation → 404 (never 403, so ids leak nothing); requests that name no record
  * answer the other organisation about its own data only.
  */
+import { characterisationAnswerSchema } from '@/lib/schemas/characterisation-answer';
 import { eq } from 'drizzle-orm';
 import type { Express } from 'express';
 import { batch, invitation, member, membershipRequest, organization, spec, user } from '@/db/schema';
@@ -26,7 +27,6 @@ import type { ZodType } from 'zod';
 import {
   batchListSchema,
   batchSchema,
-  characterisationAnswerSchema,
   comparisonWireSchema,
   curveDetailSchema,
   curvePageSchema,

@@ -4,7 +4,7 @@
  * coefficients and matrix, a device with too few curves answered with a reason, and the explicit
  * save of the coefficients on the batch (the batch edit, which works the STC figures out again).
  */
-import { characterisationAnswerSchema } from '@/lib/schemas/responses';
+import { characterisationAnswerSchema } from '@/lib/schemas/characterisation-answer';
 import { signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
 import { MODULE, synthCurve, truthPmax } from '@/tests/lib/analysis/characterise/synthetic';

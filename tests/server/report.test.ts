@@ -87,7 +87,7 @@ describe('the release report', () => {
     expect(t).toMatch(/Fail 1/);
     // The device table: every device, its result, the failing one with its reason.
     for (const d of ['Open lot-1', 'Open lot-2']) expect(t).toMatch(new RegExp(`${d} pass`));
-    expect(t).toMatch(/Open lot-3 FAIL .*FF 46\.\d % is below the minimum 60\.0 %; Rs 0\.3\d* Ω is above the maximum 0\.1\d* Ω/);
+    expect(t).toMatch(/Open lot-3 FAIL .*FF 46\.\d % is below the minimum 60\.0 % \(simple rule\); Rs 0\.3\d* Ω is above the maximum 0\.1\d* Ω/);
     expect(t).toContain(fold(HV_CAUTION.title));
     for (const b of HV_CAUTION.bullets) expect(t).toContain(fold(b));
   }, 60_000);

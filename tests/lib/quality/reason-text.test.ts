@@ -61,11 +61,11 @@ describe('reasons of an evaluated device carry no internal key', () => {
     const r = evaluateDevice({ device_id: 'M1', values: { ff: 0.592, voc_v: 42.0011, stc_pmp_w: 394.99, rs_ohm: null, j0_a_cm2: 2e-12 }, flags: ['step'] }, spec);
     const messages = r.reasons.map((x) => x.message);
     expect(messages).toEqual([
-      'Voc 42.001 V is above the maximum 42 V',
-      'FF 59.2 % is below the minimum 70.0 %',
+      'Voc 42.001 V is above the maximum 42 V (simple rule)',
+      'FF 59.2 % is below the minimum 70.0 % (simple rule)',
       'Rs was not measured',
-      'J0 2.000×10⁻¹² A/cm² is above the maximum 1.000×10⁻¹² A/cm²',
-      'Pmax at STC 394.99 W is below the minimum 395 W',
+      'J0 2.000×10⁻¹² A/cm² is above the maximum 1.000×10⁻¹² A/cm² (simple rule)',
+      'Pmax at STC 394.99 W is below the minimum 395 W (simple rule)',
       'Pmax at STC 394.99 W is below the lowest power class P395',
       'Flag raised: Step or second knee (bypass diode, mismatch, cracked cells); this spec fails it',
     ]);
