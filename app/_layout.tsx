@@ -3,11 +3,14 @@ import { useFonts } from 'expo-font';
 import { Stack } from 'expo-router';
 import { ActivityIndicator, View } from 'react-native';
 import { AccountWaiting } from '@/components/account-waiting';
+import { installFocusRing } from '@/components/focus-ring';
 import { theme } from '@/components/theme';
 import { queryClient } from '@/lib/api/query-client';
 import { useAccount } from '@/lib/api/session';
 
 export { ErrorBoundary } from 'expo-router';
+
+installFocusRing();
 
 /**
  * Chooses the signed-in or signed-out route group from the session; a signed-in person who is not
