@@ -27,7 +27,8 @@ export const theme = {
     regular: 'PlexSans',
     medium: 'PlexSans-Medium',
     semibold: 'PlexSans-SemiBold',
-    bold: 'PlexSans-Bold',
+    /** No 700 face is shipped (nothing used it): bold text is set in the semibold face. */
+    bold: 'PlexSans-SemiBold',
     mono: 'PlexMono',
     monoBold: 'PlexMono-SemiBold',
   },
