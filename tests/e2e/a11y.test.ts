@@ -11,7 +11,7 @@ import path from 'node:path';
 import type { Page } from 'playwright-core';
 import { axeFindings, describeFinding } from '@/tests/support/axe';
 import type { AxeFinding } from '@/tests/support/axe';
-import { openBrowser, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
+import { openBrowser, screenshot, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
 import { REPO_ROOT, startServerProcess } from '@/tests/support/server-process';
 import type { ServerProcess } from '@/tests/support/server-process';
 
@@ -111,6 +111,19 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await settle(b.page, 'curve-screen');
       await b.page.locator('[data-testid="curve-screen"] svg').first().waitFor();
       found.push(...(await check(b.page, `curve ${vpName}`)));
+      // Each chart is one named image; its numbers open as a table under it.
+      const plot = b.page.locator('[data-testid="curve-screen"] [role="img"][aria-label]').first();
+      expect(await plot.getAttribute('aria-label')).toMatch(/I-V curve, \d+ measured points/);
+      const toggle = b.page.locator('[data-testid$="-table-toggle"]').first();
+      await toggle.focus();
+      await b.page.keyboard.press('Enter');
+      const table = b.page.locator('[role="table"]').first();
+      await table.waitFor();
+      expect(await table.locator('[role="columnheader"]').allInnerTexts()).toEqual(['Voltage (V)', 'Current (A)', 'Power (W)']);
+      expect(await table.locator('[role="row"]').count()).toBeGreaterThan(20);
+      await table.scrollIntoViewIfNeeded();
+      await screenshot(b.page, `a11y-chart-table-${vpName}`);
+      found.push(...(await check(b.page, `curve with a chart's table ${vpName}`)));
       await b.page.getByTestId('to-physics').click();
       await settle(b.page, 'physics-curve');
       found.push(...(await check(b.page, `physics from a curve ${vpName}`)));
