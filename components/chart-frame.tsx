@@ -1,4 +1,4 @@
-import { useRef, useState } from 'react';
+import { useEffect, useRef, useState } from 'react';
 import type { ReactNode } from 'react';
 import { Platform, Pressable, View } from 'react-native';
 import type { LayoutChangeEvent } from 'react-native';
@@ -60,7 +60,7 @@ function SaveLink({ label, onPress, testID }: { label: string; onPress: () => vo
  * Measures the width it is given and renders `children(width)`; charts size themselves to it.
  * Around the chart: an optional title, the legend in the series' colours, a caption and, on the
  * web, links that save the drawn chart as SVG or PNG (with the legend drawn into the file).
- * The drawing is one image named `name` (else the title or the download's title) for screen
+ * The drawing is one figure named `name` (else the title or the download's title) for screen
  * readers; with `table`, a "Show as table" switch lays its numbers out as a table.
  */
 export function ChartFrame({
@@ -88,6 +88,16 @@ export function ChartFrame({
 }) {
   const [width, setWidth] = useState(0);
   const [showTable, setShowTable] = useState(false);
+  // The drawing's own parts (axes, ticks, an svg the library marks as an image without a name)
+  // are not read one by one: the frame is a figure named by `label`, and its numbers are in the
+  // table. On the web the svg elements are hidden from assistive technology after each render
+  // (a new svg comes only with a new width or new data, both renders of this frame); the
+  // pointer's readout beside them stays readable.
+  useEffect(() => {
+    const node = plot.current as unknown as { querySelectorAll?: (q: string) => ArrayLike<{ setAttribute: (k: string, v: string) => void }> } | null;
+    if (Platform.OS !== 'web' || !node?.querySelectorAll) return;
+    for (const svg of Array.from(node.querySelectorAll('svg'))) svg.setAttribute('aria-hidden', 'true');
+  });
   const label = name ?? title ?? download?.title ?? 'Chart';
   const plot = useRef<View>(null);
   const onLayout = (e: LayoutChangeEvent) => {
@@ -120,9 +130,8 @@ export function ChartFrame({
           ) : null}
         </View>
       ) : null}
-      <View ref={plot} onLayout={onLayout} style={{ width: '100%', minHeight: height }} testID={testID ? `${testID}-frame` : undefined} role="img" aria-label={label}>
-        {/* The drawing's own parts (axes, ticks) are not read one by one: the frame names the chart. */}
-        <View aria-hidden>{width > 0 ? children(width) : null}</View>
+      <View ref={plot} onLayout={onLayout} style={{ width: '100%', minHeight: height }} testID={testID ? `${testID}-frame` : undefined} role="figure" aria-label={label}>
+        {width > 0 ? children(width) : null}
       </View>
       {table && showTable ? <ChartTableView table={table} name={label} testID={testID ? `${testID}-table` : undefined} /> : null}
       {legend ? <ChartLegend items={legend} testID={testID ? `${testID}-legend` : undefined} /> : null}

@@ -111,8 +111,9 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       await settle(b.page, 'curve-screen');
       await b.page.locator('[data-testid="curve-screen"] svg').first().waitFor();
       found.push(...(await check(b.page, `curve ${vpName}`)));
-      // Each chart is one named image; its numbers open as a table under it.
-      const plot = b.page.locator('[data-testid="curve-screen"] [role="img"][aria-label]').first();
+      // Each chart is one named figure (its svg hidden from screen readers); its numbers open as a table under it.
+      const plot = b.page.locator('[data-testid="curve-screen"] [role="figure"][aria-label]').first();
+      expect(await plot.locator('svg:not([aria-hidden="true"])').count()).toBe(0);
       expect(await plot.getAttribute('aria-label')).toMatch(/I-V curve, \d+ measured points/);
       const toggle = b.page.locator('[data-testid$="-table-toggle"]').first();
       await toggle.focus();
