@@ -115,10 +115,12 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       const plot = b.page.locator('[data-testid="curve-screen"] [role="figure"][aria-label]').first();
       expect(await plot.locator('svg:not([aria-hidden="true"])').count()).toBe(0);
       expect(await plot.getAttribute('aria-label')).toMatch(/I-V curve, \d+ measured points/);
-      const toggle = b.page.locator('[data-testid$="-table-toggle"]').first();
+      const toggle = b.page.locator('[data-testid="curve-screen"] [data-testid$="-table-toggle"]').first();
+      const chartId = (await toggle.getAttribute('data-testid'))!.replace(/-table-toggle$/, '');
       await toggle.focus();
       await b.page.keyboard.press('Enter');
-      const table = b.page.locator('[role="table"]').first();
+      await b.page.waitForFunction((id) => document.querySelector(`[data-testid="${id}-table-toggle"]`)?.getAttribute('aria-expanded') === 'true', chartId);
+      const table = b.page.locator(`[data-testid="${chartId}-table"] [role="table"]`);
       await table.waitFor();
       expect(await table.locator('[role="columnheader"]').allInnerTexts()).toEqual(['Voltage (V)', 'Current (A)', 'Power (W)']);
       expect(await table.locator('[role="row"]').count()).toBeGreaterThan(20);
