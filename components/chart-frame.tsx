@@ -22,7 +22,8 @@ const TABLE_ROWS_SHOWN = 400;
 function ChartTableView({ table, name, testID }: { table: ChartTable; name: string; testID?: string }) {
   const rows = table.rows.slice(0, TABLE_ROWS_SHOWN);
   return (
-    <View style={tableStyles.box} testID={testID}>
+    // Focusable, so the keyboard can scroll a long table (a scrolling region must be reachable).
+    <View style={tableStyles.box} testID={testID} focusable role="region" aria-label={`${name}: numbers`}>
       <View role="table" aria-label={`${name}: numbers`}>
         <View role="row" style={tableStyles.row}>
           {table.columns.map((c) => (
