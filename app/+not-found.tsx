@@ -6,7 +6,7 @@ import { Txt } from '@/components/txt';
 
 export default function NotFound() {
   return (
-    <View style={{ flex: 1, alignItems: 'center', justifyContent: 'center', padding: 24, gap: 14, backgroundColor: theme.color.paper }} testID="not-found">
+    <View style={{ flex: 1, alignItems: 'center', justifyContent: 'center', padding: 24, gap: 14, backgroundColor: theme.color.paper }} testID="not-found" role="main">
       <LogoMark size={40} />
       <Txt variant="title">No such page</Txt>
       <Txt variant="body" style={{ textAlign: 'center', maxWidth: 360 }}>

@@ -3,11 +3,14 @@ import { useFonts } from 'expo-font';
 import { Stack } from 'expo-router';
 import { ActivityIndicator, View } from 'react-native';
 import { AccountWaiting } from '@/components/account-waiting';
+import { installFocusRing } from '@/components/focus-ring';
 import { theme } from '@/components/theme';
 import { queryClient } from '@/lib/api/query-client';
 import { useAccount } from '@/lib/api/session';
 
 export { ErrorBoundary } from 'expo-router';
+
+installFocusRing();
 
 /**
  * Chooses the signed-in or signed-out route group from the session; a signed-in person who is not
@@ -38,14 +41,16 @@ function Routes() {
 }
 
 export default function RootLayout() {
+  // The first screen waits only for the three sans weights it sets text in (the server preloads
+  // them, server/web-assets.ts); the mono faces for figures load with the signed-in frame
+  // (app/(app)/_layout.tsx), so the sign-in page does not fetch them. No bold face: nothing is
+  // set heavier than semibold (theme.font.bold is the semibold face).
   const [fontsLoaded, fontError] = useFonts({
     PlexSans: require('@/assets/fonts/IBMPlexSans_400Regular.ttf'),
     'PlexSans-Medium': require('@/assets/fonts/IBMPlexSans_500Medium.ttf'),
     'PlexSans-SemiBold': require('@/assets/fonts/IBMPlexSans_600SemiBold.ttf'),
-    'PlexSans-Bold': require('@/assets/fonts/IBMPlexSans_700Bold.ttf'),
-    PlexMono: require('@/assets/fonts/IBMPlexMono_400Regular.ttf'),
-    'PlexMono-SemiBold': require('@/assets/fonts/IBMPlexMono_600SemiBold.ttf'),
   });
+
   if (!fontsLoaded && !fontError) return null;
   return (
     <QueryClientProvider client={queryClient}>

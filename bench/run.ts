@@ -3,13 +3,15 @@
  * turn, prints its block and a summary against the targets of issues 3 and 8, and writes all
  * figures with the date and machine to artifacts/bench.json.
  * Sections: iv-fit (the engine's fits), server (upload-to-stored, comparison grid API),
- * bundle (first-load JavaScript of the web export), cli (the command line against MINPACK).
+ * bundle (first-load JavaScript of the web export), cli (the command line against MINPACK),
+ * first-screen (a cold visit to the sign-in page in Chromium: paint, usable form, transfer).
  */
 import { mkdirSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { benchBundle } from '@/bench/bundle';
 import { benchCliVsMinpack } from '@/bench/cli-vs-minpack';
+import { benchFirstScreen, TARGETS as FIRST_SCREEN_TARGETS } from '@/bench/first-screen';
 import { benchIvFit } from '@/bench/iv-fit';
 import { benchServer } from '@/bench/server-bench';
 import { REPO_ROOT } from '@/tests/support/server-process';
@@ -21,6 +23,7 @@ const sections: Section[] = [
   { name: 'server', run: benchServer },
   { name: 'bundle', run: () => benchBundle() },
   { name: 'cli', run: benchCliVsMinpack },
+  { name: 'first-screen', run: benchFirstScreen },
 ];
 
 /** The machine, for the record: cores, CPU model, memory, Node, and how busy it was. */
@@ -52,6 +55,13 @@ function summary(results: Record<string, Record<string, unknown>>): Line[] {
   if (s?.compare) lines.push([`comparison grid API, ${s.compare.curves_total} curves`, `${s.compare.api_new_view_no_spec.median_ms} ms (1 batch new: ${s.compare.api_one_batch_changed.median_ms}, cold: ${s.compare.api_cold_all_batches_changed.median_ms})`, '< 300 ms', s.compare.ok]);
   const b = results.bundle as { first_load_raw_bytes?: number; first_load_gzip_bytes?: number; ok?: boolean } | undefined;
   if (b?.first_load_gzip_bytes) lines.push(['web first-load JS (raw / gzip)', `${(b.first_load_raw_bytes! / 1e6).toFixed(2)} / ${(b.first_load_gzip_bytes / 1e6).toFixed(2)} MB`, 'gzip < 1 MB', !!b.ok]);
+  const f = results['first-screen'] as { fcp_median_ms?: number; usable_median_ms?: number; transfer_cold_bytes?: number } | undefined;
+  if (f?.fcp_median_ms !== undefined) {
+    // Before issue 19's changes (same machine, load average ~23, median of 3): see README's first-screen table.
+    lines.push(['sign-in, cold: first contentful paint', `${f.fcp_median_ms} ms`, `< ${FIRST_SCREEN_TARGETS.fcp_ms} ms (before: 1848)`, f.fcp_median_ms < FIRST_SCREEN_TARGETS.fcp_ms]);
+    lines.push(['sign-in, cold: form usable', `${f.usable_median_ms} ms`, `< ${FIRST_SCREEN_TARGETS.usable_ms} ms (before: 2067)`, f.usable_median_ms! < FIRST_SCREEN_TARGETS.usable_ms]);
+    lines.push(['sign-in, cold: transfer', `${Math.round(f.transfer_cold_bytes! / 1000)} kB`, `< ${FIRST_SCREEN_TARGETS.transfer_bytes / 1000} kB (before: 1287)`, f.transfer_cold_bytes! < FIRST_SCREEN_TARGETS.transfer_bytes]);
+  }
   return lines;
 }
 

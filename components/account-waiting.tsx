@@ -37,10 +37,10 @@ export function AccountWaiting({ account }: { account: Account }) {
   const { title, text } = explain(account);
   return (
     <ScrollView style={{ flex: 1, backgroundColor: theme.color.paper }} contentContainerStyle={styles.page}>
-      <View style={{ marginBottom: 20 }}>
+      <View style={{ marginBottom: 20 }} role="banner">
         <LogoMark withName size={30} />
       </View>
-      <View style={styles.card} testID="account-waiting">
+      <View style={styles.card} testID="account-waiting" role="main">
         <Txt variant="title" testID="account-waiting-title">{title}</Txt>
         <Txt variant="body">{text}</Txt>
         {account.account_state === 'email_unverified' ? (

@@ -17,7 +17,8 @@ function isActive(pathname: string, match: string) {
 
 /**
  * The signed-in frame: a side navigation on wide screens, a top bar with a scrolling section
- * strip on phones. Only sections the role may use are listed.
+ * strip on phones. Only sections the role may use are listed. Landmarks: the frame is the banner
+ * (header) holding the navigation; the screen is the main region.
  */
 export function AppShell({ me, children }: { me: Me; children: ReactNode }) {
   const { width } = useWindowDimensions();
@@ -28,16 +29,16 @@ export function AppShell({ me, children }: { me: Me; children: ReactNode }) {
   if (wide) {
     return (
       <View style={styles.row}>
-        <View style={styles.side} testID="nav-side">
+        <View style={styles.side} testID="nav-side" role="banner">
           <View style={{ padding: 18 }}>
             <LogoMark withName onDark />
           </View>
-          <View style={{ gap: 2, paddingHorizontal: 10 }}>
+          <View style={{ gap: 2, paddingHorizontal: 10 }} role="navigation" aria-label="Sections">
             {items.map((i) => {
               const active = isActive(pathname, i.match);
               return (
                 <Link key={i.match} href={i.href} asChild>
-                  <Pressable style={StyleSheet.flatten([styles.sideItem, active && styles.sideItemActive])} testID={`nav-${i.short.toLowerCase()}`}>
+                  <Pressable style={StyleSheet.flatten([styles.sideItem, active && styles.sideItemActive])} testID={`nav-${i.short.toLowerCase()}`} aria-current={active ? 'page' : undefined}>
                     <View style={[styles.tick, active && styles.tickActive]} />
                     <Txt variant="label" style={{ color: active ? theme.color.navActive : theme.color.navText, fontSize: 14 }}>
                       {i.label}
@@ -56,36 +57,38 @@ export function AppShell({ me, children }: { me: Me; children: ReactNode }) {
             </Txt>
           </View>
         </View>
-        <View style={styles.main}>{children}</View>
+        <View style={styles.main} role="main">{children}</View>
       </View>
     );
   }
 
   return (
     <View style={styles.col}>
-      <View style={styles.top}>
-        <LogoMark withName onDark size={24} />
-        <Txt variant="caption" style={{ color: theme.color.navText }} numberOfLines={1} testID="role-badge">
-          {ROLE_LABELS[me.role]}
-        </Txt>
+      <View role="banner">
+        <View style={styles.top}>
+          <LogoMark withName onDark size={24} />
+          <Txt variant="caption" style={{ color: theme.color.navText }} numberOfLines={1} testID="role-badge">
+            {ROLE_LABELS[me.role]}
+          </Txt>
+        </View>
+        <View style={styles.stripWrap} role="navigation" aria-label="Sections">
+          <ScrollView horizontal showsHorizontalScrollIndicator={false} contentContainerStyle={styles.strip} testID="nav-strip">
+            {items.map((i) => {
+              const active = isActive(pathname, i.match);
+              return (
+                <Link key={i.match} href={i.href} asChild>
+                  <Pressable style={StyleSheet.flatten([styles.chip, active && styles.chipActive])} testID={`nav-${i.short.toLowerCase()}`} aria-current={active ? 'page' : undefined}>
+                    <Txt variant="label" style={{ color: active ? '#fff' : theme.color.inkSoft }}>
+                      {i.short}
+                    </Txt>
+                  </Pressable>
+                </Link>
+              );
+            })}
+          </ScrollView>
+        </View>
       </View>
-      <View style={styles.stripWrap}>
-        <ScrollView horizontal showsHorizontalScrollIndicator={false} contentContainerStyle={styles.strip} testID="nav-strip">
-          {items.map((i) => {
-            const active = isActive(pathname, i.match);
-            return (
-              <Link key={i.match} href={i.href} asChild>
-                <Pressable style={StyleSheet.flatten([styles.chip, active && styles.chipActive])} testID={`nav-${i.short.toLowerCase()}`}>
-                  <Txt variant="label" style={{ color: active ? '#fff' : theme.color.inkSoft }}>
-                    {i.short}
-                  </Txt>
-                </Pressable>
-              </Link>
-            );
-          })}
-        </ScrollView>
-      </View>
-      <View style={styles.main}>{children}</View>
+      <View style={styles.main} role="main">{children}</View>
     </View>
   );
 }

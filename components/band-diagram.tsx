@@ -46,7 +46,7 @@ export function BandDiagram({ levels, splitting_ev, height = 300, testID }: { le
   const eBottom = at.Ev - 0.16 * gap;
   const summary = levels.map((l) => `${LOOK[l.key].name} ${signed(l.energy_ev)} eV`).join(', ');
   return (
-    <ChartFrame height={height} testID={testID}>
+    <ChartFrame height={height} testID={testID} name="Band diagram: band edges and the quasi-Fermi levels of electrons and holes">
       {(width) => {
         const top = 6;
         const bottom = height - 6;

@@ -103,7 +103,7 @@ export function CompareByParameter({ c, param, setParam }: { c: Comparison; para
                   <Stat label="P5 … P95" value={range(s.p5, s.p95)} />
                   <Stat label="lowest … highest" value={range(s.min, s.max)} />
                 </View>
-                <View style={styles.strip} accessibilityLabel={`${b.name}: ${label} from ${fmt(s.min)} to ${fmt(s.max)}, median ${fmt(s.median)}`}>
+                <View style={styles.strip} role="img" accessibilityLabel={`${b.name}: ${label} from ${fmt(s.min)} to ${fmt(s.max)}, median ${fmt(s.median)}`}>
                   <View style={[styles.whisker, { left: `${at(s.min)}%`, width: `${Math.max(0.5, at(s.max) - at(s.min))}%` }]} />
                   <View style={[styles.box, { left: `${at(s.p5)}%`, width: `${Math.max(1, at(s.p95) - at(s.p5))}%` }]} />
                   <View style={[styles.median, { left: `${at(s.median)}%` }]} />

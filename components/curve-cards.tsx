@@ -52,7 +52,7 @@ export function CurveCards({ rows, sort, dir, onSort }: { rows: CurvePageRow[]; 
         const flags = r.flags.filter((f) => f.severity !== 'info');
         return (
           <Link key={r.id} href={`/curves/${r.id}`} asChild>
-            <Pressable style={StyleSheet.flatten(styles.card)} testID={`curve-row-${r.device_id}`} accessibilityLabel={`${r.device_id}: ${r.severity === 'pass' ? 'pass' : r.severity === 'warn' ? 'warning' : 'fail'}`}>
+            <Pressable style={StyleSheet.flatten(styles.card)} testID={`curve-row-${r.device_id}`}>
               <View style={styles.top}>
                 <Txt variant="figure" style={[{ color: theme.color.electron, flexShrink: 1 }, breakAnywhere]}>
                   {r.device_id}

@@ -3,11 +3,19 @@ import { ChartFrame } from '@/components/chart-frame';
 import { chartStyle, tick } from '@/components/chart-style';
 import { theme } from '@/components/theme';
 import { edgeAxes } from '@/lib/charts/plot-frame';
+import { sig4 } from '@/lib/charts/readout';
 
 const PADDING = { ...chartStyle.padding, bottom: 56 };
 const AXES = edgeAxes(PADDING);
 
 /** The parameter's label as a file-name part: "Rs (Ω)" → "rs". */
+/** The middle value (mean of the two middle ones for an even count). */
+const median = (v: number[]): number => {
+  const s = [...v].sort((a, b) => a - b);
+  const m = Math.floor(s.length / 2);
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+};
+
 const fileKind = (label: string) => label.replace(/\(.*\)/, '').trim().toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '') || 'parameter';
 
 /**
@@ -18,7 +26,13 @@ export function DistributionChart({ groups, label, height = 260, testID }: { gro
   const data = groups.filter((g) => g.values.length > 0).map((g, k) => ({ x: k + 1, y: g.values, name: g.name }));
   const dots = data.flatMap((g) => g.y.map((v, j) => ({ x: g.x + (((j * 7919) % 100) / 100 - 0.5) * 0.3, y: v })));
   return (
-    <ChartFrame height={height} testID={testID} download={{ name: 'comparison', kind: fileKind(label), title: label }}>
+    <ChartFrame
+      height={height}
+      testID={testID}
+      download={{ name: 'comparison', kind: fileKind(label), title: label }}
+      name={`${label} by batch: box plots with every device`}
+      table={{ columns: ['Batch', 'Devices', `Minimum ${label}`, 'Median', 'Maximum'], rows: data.map((g) => [g.name, String(g.y.length), sig4(Math.min(...g.y)), sig4(median(g.y)), sig4(Math.max(...g.y))]) }}
+    >
       {(width) => (
         <VictoryChart width={width} height={height} padding={PADDING} domainPadding={{ x: 30 }}>
           <VictoryAxis

@@ -4,7 +4,7 @@ import type { ChartDownload } from '@/components/chart-frame';
 import { ChartPointer } from '@/components/chart-pointer';
 import { chartStyle, tick } from '@/components/chart-style';
 import { domainOf, edgeAxes } from '@/lib/charts/plot-frame';
-import { ivReadout } from '@/lib/charts/readout';
+import { ivReadout, sig4 } from '@/lib/charts/readout';
 import type { LegendItem } from '@/lib/charts/svg-file';
 
 export type Series = { voltage_v: number[]; current_a: number[] };
@@ -56,9 +56,13 @@ export function IvChart({
     ...(mpp ? [{ label: name.mpp, colour: chartStyle.mpp.data.fill, mark: 'diamond' as const }] : []),
   ];
   const kind = mode === 'iv' ? 'I-V' : 'P-V';
+  const table = {
+    columns: ['Voltage (V)', 'Current (A)', 'Power (W)'],
+    rows: measured.voltage_v.map((v, k) => [sig4(v), sig4(measured.current_a[k]), sig4(v * measured.current_a[k])]),
+  };
   const save: ChartDownload | undefined = download ? { name: download, kind: mode, title: `${download}: ${kind} curve` } : undefined;
   return (
-    <ChartFrame height={height} testID={testID} legend={legend} download={save}>
+    <ChartFrame height={height} testID={testID} legend={legend} download={save} name={`${download ?? 'Measured'}: ${kind} curve, ${measured.voltage_v.length} measured points`} table={table}>
       {(width) => (
         <ChartPointer
           frame={{ width, height, padding: chartStyle.padding, domain }}

@@ -9,7 +9,7 @@ import { overlayTones } from '@/lib/charts/overlay-tones';
 import type { OverlayTone } from '@/lib/charts/overlay-tones';
 import { domainOf, edgeAxes } from '@/lib/charts/plot-frame';
 import type { Point } from '@/lib/charts/plot-frame';
-import { ivReadout } from '@/lib/charts/readout';
+import { ivReadout, sig4 } from '@/lib/charts/readout';
 import type { LegendItem } from '@/lib/charts/svg-file';
 
 const AXES = edgeAxes(chartStyle.padding);
@@ -42,7 +42,14 @@ export function OverlayChart({ curves, batch_name, height = 260, testID }: { cur
     { label: `${counts.pass} passing`, colour: TONE_STYLE.pass.stroke, mark: 'line' },
   ];
   return (
-    <ChartFrame height={height} testID={testID} legend={legend} download={{ name: batch_name ?? 'batch', kind: 'overlay', title: `${batch_name ?? 'Batch'}: I-V curves` }}>
+    <ChartFrame
+      height={height}
+      testID={testID}
+      legend={legend}
+      download={{ name: batch_name ?? 'batch', kind: 'overlay', title: `${batch_name ?? 'Batch'}: I-V curves` }}
+      name={`${batch_name ?? 'Batch'}: ${curves.length} I-V curves, ${counts.fail} failing, ${counts.warn} with warnings`}
+      table={{ columns: ['Device', 'Voltage (V)', 'Current (A)'], rows: all.map((p) => [p.curve.device_id, sig4(p.x), sig4(p.y)]) }}
+    >
       {(width) => (
         <ChartPointer
           frame={{ width, height, padding: chartStyle.padding, domain }}

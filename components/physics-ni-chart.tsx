@@ -3,6 +3,7 @@ import { ChartFrame } from '@/components/chart-frame';
 import { chartStyle, tick } from '@/components/chart-style';
 import { LOG_CHART, powerOfTenTick } from '@/components/physics-ticks';
 import { theme } from '@/components/theme';
+import { sig4 } from '@/lib/charts/readout';
 
 /**
  * Intrinsic carrier density of silicon against temperature (log scale), with the temperature
@@ -28,7 +29,7 @@ export function PhysicsNiChart({
   for (let e = eMin; e <= eMax; e += eMax - eMin > 6 ? 2 : 1) ticks.push(10 ** e);
   const inRange = (t: number) => t >= series.temp_k[0] && t <= series.temp_k[series.temp_k.length - 1];
   return (
-    <ChartFrame height={height} testID={testID} download={{ name: 'intrinsic-density', kind: 'temperature', title: 'Intrinsic carrier density against temperature' }}>
+    <ChartFrame height={height} testID={testID} download={{ name: 'intrinsic-density', kind: 'temperature', title: 'Intrinsic carrier density against temperature' }} table={{ columns: ['Temperature (K)', 'n_i (cm⁻³)'], rows: data.map((p) => [sig4(p.x), sig4(p.y)]) }}>
       {(width) => (
         <VictoryChart width={width} height={height} padding={LOG_CHART.padding} scale={{ y: 'log' }} domain={{ y: [10 ** eMin, 10 ** eMax] }}>
           <VictoryAxis crossAxis={false} offsetY={LOG_CHART.padding.bottom} label="Temperature (K)" style={chartStyle.axis} tickFormat={tick} tickCount={5} />

@@ -4,6 +4,7 @@ import { chartStyle, tick } from '@/components/chart-style';
 import { LOG_CHART, powerOfTenTick } from '@/components/physics-ticks';
 import { theme } from '@/components/theme';
 import type { OccupationCurve } from '@/lib/physics';
+import { sig4 } from '@/lib/charts/readout';
 
 /** Occupations below this are drawn on the floor of the log chart. */
 const FLOOR = 1e-22;
@@ -20,7 +21,12 @@ export function PhysicsOccupationChart({ occupation, scale, height = 240, testID
   const pts = (f: number[]) => occupation.energy_ev.map((e, k) => ({ x: e, y: log ? Math.max(FLOOR, f[k]) : f[k] }));
   const edge = (x: number) => [{ x, y: lo }, { x, y: 1 }];
   return (
-    <ChartFrame height={height} testID={testID} download={{ name: 'occupation', kind: scale, title: 'Occupation across the gap' }}>
+    <ChartFrame height={height} testID={testID} download={{ name: 'occupation', kind: scale, title: 'Occupation across the gap' }}
+      table={{
+        columns: ['Energy from Ei (eV)', 'f(E) equilibrium', 'f(E) electrons', '1 − f(E) holes'],
+        rows: occupation.energy_ev.map((e, k) => [sig4(e), sig4(occupation.occupation_equilibrium[k]), sig4(occupation.occupation_electrons[k]), sig4(occupation.occupation_holes[k])]),
+      }}
+    >
       {(width) => (
         <VictoryChart width={width} height={height} padding={LOG_CHART.padding} scale={{ y: log ? 'log' : 'linear' }} domain={{ y: [lo, 1] }}>
           <VictoryAxis crossAxis={false} offsetY={LOG_CHART.padding.bottom} label="Energy from Ei (eV)" style={chartStyle.axis} tickFormat={tick} tickCount={6} />

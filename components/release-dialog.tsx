@@ -23,9 +23,10 @@ export function ReleaseDialog({ evaluation, busy, error, onConfirm, onClose }: {
   const ready = !needsComment || comment.trim().length > 0;
   const c = evaluation.counts;
   return (
-    <Modal transparent visible animationType="fade" onRequestClose={onClose}>
+    // react-native-web hands unknown props to the element with role="dialog": its accessible name.
+    <Modal transparent visible animationType="fade" onRequestClose={onClose} {...({ 'aria-label': `Release “${evaluation.batch.name}”?` } as object)}>
       <View style={styles.backdrop}>
-        <View style={styles.sheet} aria-modal testID="release-dialog">
+        <View style={styles.sheet} testID="release-dialog">
           <ScrollView contentContainerStyle={{ gap: 14, padding: 20 }}>
             <Txt variant="title">Release “{evaluation.batch.name}”?</Txt>
             <Txt variant="body" testID="release-dialog-spec">

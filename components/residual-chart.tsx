@@ -4,6 +4,7 @@ import type { ChartDownload } from '@/components/chart-frame';
 import { chartStyle, tick } from '@/components/chart-style';
 import { theme } from '@/components/theme';
 import { domainOf, edgeAxes } from '@/lib/charts/plot-frame';
+import { sig4 } from '@/lib/charts/readout';
 import type { LegendItem } from '@/lib/charts/svg-file';
 
 const AXES = edgeAxes(chartStyle.padding);
@@ -17,9 +18,13 @@ export function ResidualChart({ voltage_v, residuals, labels, download, height =
   const sets = residuals.map((r) => r.map((y, j) => ({ x: voltage_v[j], y: y * 1000 })));
   const domain = domainOf([...sets, [{ x: voltage_v[0], y: 0 }]]);
   const legend: LegendItem[] = labels.map((l, k) => ({ label: l, colour: COLOURS[k % 2], mark: k === 0 ? 'dot' : 'diamond' }));
+  const table = {
+    columns: ['Voltage (V)', ...labels.map((l) => `${l}: residual (mA)`)],
+    rows: voltage_v.map((v, j) => [sig4(v), ...residuals.map((r) => sig4(r[j] * 1000))]),
+  };
   const save: ChartDownload | undefined = download ? { name: download, kind: 'residuals', title: `${download}: residuals` } : undefined;
   return (
-    <ChartFrame height={height} testID={testID} legend={legend} download={save}>
+    <ChartFrame height={height} testID={testID} legend={legend} download={save} name={`${download ? `${download}: ` : ''}residuals (measured minus model current) against voltage`} table={table}>
       {(width) => (
         <VictoryChart width={width} height={height} padding={chartStyle.padding} domain={domain}>
           <VictoryAxis {...AXES.x} label="Voltage (V)" style={chartStyle.axis} tickFormat={tick} tickCount={6} />

@@ -46,6 +46,7 @@ export function StringVocChart({
       height={height}
       testID={testID}
       download={{ name: `string-${modules}-modules`, kind: 'voc', title: `String Voc of ${modules} modules against ambient temperature` }}
+      table={{ columns: ['Ambient temperature (°C)', 'String Voc (V)', `System limit (V)`], rows: line.map((p) => [String(p.x), p.y.toFixed(1), String(v_sys_v)]) }}
       caption={`— ${modules} modules in series    - - system limit ${v_sys_v} V    ● record low ${t_min_c} °C: ${atMin.toFixed(1)} V${over ? ' (above the limit)' : ''}`}
     >
       {(width) => (

@@ -40,6 +40,7 @@ import type { Analyser } from '@/server/services/analysis-pool';
 import type { ObjectStore } from '@/server/storage';
 import { stationKeys } from '@/server/station-keys';
 import { receiveUploads } from '@/server/upload-receiver';
+import { serveWebApp } from '@/server/web-assets';
 import type { UploadLimits } from '@/server/upload-receiver';
 
 export type AppDeps = {
@@ -143,10 +144,7 @@ export function createApp(deps: AppDeps): Express {
 
   const webDir = deps.webDir;
   if (webDir && existsSync(path.join(webDir, 'index.html'))) {
-    app.use(express.static(webDir, { index: false, maxAge: '1h' }));
-    app.get('/{*splat}', (_req, res) => {
-      res.sendFile(path.join(webDir, 'index.html'));
-    });
+    serveWebApp(app, webDir);
   } else {
     app.get('/', (_req, res) => {
       res.type('text').send('Quasilevel API is running. The web app is not built: run `npm run build:web`.');

@@ -11,7 +11,7 @@ export default function AuthLayout() {
   return (
     <View style={[styles.page, wide && { flexDirection: 'row' }]}>
       {wide ? (
-        <View style={styles.panel}>
+        <View style={styles.panel} role="banner">
           <LogoMark withName onDark size={36} />
           <Txt variant="title" style={{ color: '#fff', marginTop: 40, fontSize: 30, lineHeight: 38 }}>
             From the flash line to a release decision.
@@ -24,11 +24,11 @@ export default function AuthLayout() {
       ) : null}
       <ScrollView style={{ flex: 1 }} contentContainerStyle={styles.formSide}>
         {!wide ? (
-          <View style={{ marginBottom: 20 }}>
+          <View style={{ marginBottom: 20 }} role="banner">
             <LogoMark withName size={30} />
           </View>
         ) : null}
-        <View style={styles.card}>
+        <View style={styles.card} role="main">
           <Slot />
         </View>
       </ScrollView>

@@ -1,7 +1,7 @@
 /** The text of the pointer readout under an I-V chart: one measured point's V, I and P = V·I. */
 
 /** Significant figures like the tables: 4, without exponent noise for everyday values. */
-function sig4(v: number): string {
+export function sig4(v: number): string {
   if (v === 0) return '0';
   const a = Math.abs(v);
   if (a >= 1e5 || a < 1e-4) return v.toExponential(3);

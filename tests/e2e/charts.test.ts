@@ -9,13 +9,14 @@ import type { Page } from 'playwright-core';
 import { layoutProblems, openBrowser, screenshot, SCREENSHOT_DIR, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
 import { startServerProcess } from '@/tests/support/server-process';
 import type { ServerProcess } from '@/tests/support/server-process';
+import { theme } from '@/components/theme';
 
 const BATCH = 'KF-C24 incoming cells, lot A-1187';
 const DEVICE = 'KF-C24-0001';
 const READOUT = /V = (-?[\d.e-]+) V · I = (-?[\d.e-]+) A · P = (-?[\d.e-]+) W/;
 /** theme.color.hole and theme.color.danger: the overlay's colours for warning and failing curves. */
-const AMBER = '#C27C00';
-const RED = '#A8261D';
+const AMBER = theme.color.hole;
+const RED = theme.color.danger;
 
 let srv: ServerProcess;
 beforeAll(async () => {

@@ -12,6 +12,7 @@ import type { Page } from 'playwright-core';
 import { layoutProblems, openBrowser, screenshot, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
 import { REPO_ROOT, startServerProcess } from '@/tests/support/server-process';
 import type { ServerProcess } from '@/tests/support/server-process';
+import { theme } from '@/components/theme';
 
 const CELLS = 'KF-C24 incoming cells, lot A-1187';
 const MODULES = 'KF-M60 line 2, lot 2611';
@@ -112,7 +113,7 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       const failing = Number(/(\d+) failing/.exec(legend)?.[1]);
       const warning = Number(/(\d+) with warnings/.exec(legend)?.[1]);
       expect(await b.page.getByTestId('overlay-chart').locator('path[stroke="#A8261D"]').count()).toBe(failing);
-      expect(await b.page.getByTestId('overlay-chart').locator('path[stroke="#C27C00"]').count()).toBe(warning);
+      expect(await b.page.getByTestId('overlay-chart').locator(`path[stroke="${theme.color.hole}"]`).count()).toBe(warning);
       expect(failing).toBeGreaterThanOrEqual(1);
 
       await b.page.getByTestId('batch-screen').getByRole('heading').first().evaluate((el) => el.scrollIntoView({ block: 'start' }));
