@@ -8,7 +8,7 @@ import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node
 import { createServer } from 'node:http';
 import type { Server } from 'node:http';
 import path from 'node:path';
-import { openDatabase } from '@/db/client';
+import { DatabaseStartError, openConfiguredDatabase } from '@/db/client';
 import type { Database } from '@/db/client';
 import { checkDataDirFree, lockDataDir, StartError } from '@/server/data-lock';
 import { originOf } from '@/server/guards';
@@ -91,7 +91,8 @@ export async function checkCanStart(dataDir: string, port: number, host: string)
 export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Server; database: Database; url: string; seeded: boolean; stop: () => Promise<void> }> {
   mkdirSync(opts.dataDir, { recursive: true });
   const host = opts.host ?? '127.0.0.1';
-  // Before anything opens the database: two servers on one PGlite folder would corrupt it.
+  // Before anything opens the database: two servers on one PGlite folder would corrupt it. With
+  // DATABASE_URL the folder still holds this process's uploads on their way in: one per process.
   const lock = lockDataDir(opts.dataDir, { port: opts.port });
   const undo: (() => Promise<void> | void)[] = [lock.release];
   try {
@@ -99,7 +100,10 @@ export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Serv
     const uploadDir = path.join(opts.dataDir, 'tmp', 'uploads');
     rmSync(uploadDir, { recursive: true, force: true });
     mkdirSync(uploadDir, { recursive: true });
-    const database = await openDatabase(path.join(opts.dataDir, 'db'));
+    // DATABASE_URL's PostgreSQL server when set, else PGlite in <data>/db (db/client.ts chooses).
+    const database = await openConfiguredDatabase(opts.dataDir).catch((err: unknown) => {
+      throw err instanceof DatabaseStartError ? new StartError(err.message) : err;
+    });
     undo.unshift(() => database.close());
     const url = process.env.PUBLIC_URL || `http://localhost:${opts.port}`;
     const origins = trustedOrigins(url, opts.port);
