@@ -275,6 +275,10 @@ export const curve = pgTable(
     record: text('record'),
     /** SHA-256 (hex) of the uploaded file's bytes, when the curve came from an upload; a release record keeps it. */
     file_sha256: text('file_sha256'),
+    /** Where the curve's fits are: queued | fitting | done | failed (the job queue, PostgreSQL mode); embedded uploads store `done`. */
+    status: text('status').notNull().default('done'),
+    /** Why the fits failed or were cancelled (status `failed`). */
+    statusReason: text('status_reason'),
     createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   },

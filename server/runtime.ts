@@ -17,6 +17,8 @@ import { createApp } from '@/server/app';
 import { createAuth } from '@/server/auth';
 import { createMailer } from '@/server/mail';
 import { serverAnalyser } from '@/server/services/analysis-pool';
+import type { Analyser } from '@/server/services/analysis-pool';
+import { startQueue, workAnalysisJobs } from '@/server/services/analysis-jobs';
 
 export type RuntimeOptions = {
   dataDir: string;
@@ -116,8 +118,16 @@ export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Serv
       trustedOrigins: origins,
       signInPerMinute: Number(process.env.QUASILEVEL_SIGNIN_PER_MINUTE ?? 10),
     });
-    const analyser = serverAnalyser(demoCurveFiles());
-    undo.unshift(() => analyser.close());
+    const threads = serverAnalyser(demoCurveFiles());
+    undo.unshift(() => threads.close());
+    // PostgreSQL mode: uploads queue their fits (pg-boss); this process works jobs too unless QUASILEVEL_WORKER=0.
+    let analyser: Analyser = threads;
+    if (database.kind === 'postgres') {
+      const queue = await startQueue(database.url!);
+      undo.unshift(() => queue.boss.stop({ graceful: false, wait: true }));
+      analyser = { ...threads, queue } as Analyser;
+      if (process.env.QUASILEVEL_WORKER !== '0') await workAnalysisJobs(database.db, queue, threads);
+    }
     const seeded = opts.seed === false ? false : await seedDemo(database.db, auth);
     const app = createApp({ db: database.db, auth, mailer, webDir: opts.webDir, analyser, sessionCacheMs: SESSION_CACHE_MS, uploadDir, trustedOrigins: origins });
     const server = await listen(app, opts.port, host);
@@ -125,8 +135,7 @@ export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Serv
     const stop = () =>
       (stopping ??= (async () => {
         await new Promise<void>((resolve) => server.close(() => resolve()));
-        await analyser.close();
-        await database.close();
+        for (const step of undo.slice(0, -1)) await Promise.resolve(step()).catch(() => undefined);
         lock.release();
       })());
     return { server, database, url, seeded, stop };

@@ -78,6 +78,10 @@ export const curveRowSchema = z.strictObject({
   flags: z.array(engine<Flag>()),
   stc: engine<StcOutcome>().nullable(),
   fits: z.array(fitJsonSchema),
+  /** Where the fits are: queued | fitting | done | failed (PostgreSQL mode queues them; embedded uploads answer done). */
+  status: z.enum(['queued', 'fitting', 'done', 'failed']),
+  /** Why the fits failed or were cancelled, else null. */
+  status_reason: z.string().nullable(),
   created_at: stamp,
 });
 /** pass | warn | fail: a device's worst severity (lib/quality/severity.ts). */

@@ -11,6 +11,7 @@ import type { uploadOverridesSchema } from '@/lib/schemas/curves';
 import { textProblem } from '@/lib/schemas/text';
 import { HttpError } from '@/server/errors';
 import type { AnalysisOutcome, Analyser } from '@/server/services/analysis-pool';
+import type { QueuedAnalyser } from '@/server/services/analysis-jobs';
 import { batchDefaults, loadWritableBatch } from '@/server/services/batches';
 import { storeCurves } from '@/server/services/curves';
 import type { CurveToStore } from '@/server/services/curves';
@@ -62,6 +63,8 @@ export async function uploadCurves(
   const byDevice = new Map<string, string[]>();
   for (const e of existing) byDevice.set(e.deviceId, [...(byDevice.get(e.deviceId) ?? []), e.id]);
 
+  // PostgreSQL mode: curves are stored `queued` and their fits become jobs (analysis-jobs.ts).
+  const queue = (analyser as Partial<QueuedAnalyser>).queue;
   const overrides = { temp_c: opts.temp_c ?? undefined, irradiance_w_m2: opts.irradiance_w_m2 ?? undefined, cells: opts.cells ?? undefined, area_cm2: opts.area_cm2 ?? undefined };
   type Job = { file: UploadedFile; sha256?: string; outcome?: AnalysisOutcome; done?: Promise<unknown>; size: number };
   const jobs: Job[] = files.map((file) => ({ file, size: 'size' in file ? file.size : 0 }));
@@ -79,7 +82,8 @@ export async function uploadCurves(
         .then((bytes) => {
           // Hashed before the bytes go to an analysis thread; a release record keeps the hash of what was received.
           job.sha256 = createHash('sha256').update(bytes).digest('hex');
-          return analyser.analyse({ bytes, fileName: file.name, overrides, defaults: batchDefaults(b) });
+          // With a job queue the request only reads and checks (key figures, flags); the fits are queued.
+          return analyser.analyse({ bytes, fileName: file.name, overrides, defaults: batchDefaults(b), ...(queue ? { models: [] } : {}) });
         })
         .catch((err: unknown): AnalysisOutcome => ({ ok: false, kind: 'failure', message: `the received file could not be read back (${(err as Error)?.message ?? err})` }))
         .then((o) => (job.outcome = o));
@@ -92,7 +96,11 @@ export async function uploadCurves(
     if (!group.length) return;
     const items = group.splice(0);
     try {
-      await storeCurves(db, target, items);
+      await storeCurves(db, target, queue ? items.map((x) => ({ ...x, status: 'queued' as const })) : items);
+      await queue?.enqueue(
+        items.map((x) => x.id),
+        files.length,
+      );
     } catch (err) {
       // Released (or archived) while this upload was received or fitted: the state is checked where the curves are written.
       if (err instanceof HttpError && err.status === 409) {
