@@ -20,6 +20,7 @@ import type { Mailer } from '@/server/mail';
 import { CallerCache, guardOrganizationEndpoints, invalidatesCallers, requireAccount, requireSession } from '@/server/permissions';
 import type { Account } from '@/server/permissions';
 import { batchesRouter } from '@/server/routes/batches';
+import { fitsRouter } from '@/server/routes/fits';
 import { compareRouter } from '@/server/routes/compare';
 import { curvesRouter } from '@/server/routes/curves';
 import { healthRouter } from '@/server/routes/health';
@@ -108,7 +109,7 @@ export function createApp(deps: AppDeps): Express {
   app.use('/api/membership-requests', invalidatesCallers(callers), session, membershipRequestsRouter(db, deps.mailer, baseUrl));
   app.use('/api/organization', session, organizationRouter(db));
   app.use('/api/outbox', session, outboxRouter(db));
-  app.use('/api/batches', session, batchesRouter(db, receiveUploads(deps.uploadDir ?? path.join(os.tmpdir(), `quasilevel-uploads-${process.pid}`), deps.uploadLimits), deps.analyser), reviewsRouter(db, deps.mailer));
+  app.use('/api/batches', session, batchesRouter(db, receiveUploads(deps.uploadDir ?? path.join(os.tmpdir(), `quasilevel-uploads-${process.pid}`), deps.uploadLimits), deps.analyser), reviewsRouter(db, deps.mailer), fitsRouter(db, deps.analyser));
   app.use('/api/specs', session, specsRouter(db));
   app.use('/api/compare', session, compareRouter(db));
   app.use('/api/curves', session, curvesRouter(db, deps.analyser));

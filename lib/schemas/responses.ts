@@ -90,6 +90,9 @@ const severitySchema = z.enum(SEVERITIES);
 const batchSpecSchema = z.strictObject({ id: z.string(), name: z.string(), version: z.number() }).nullable();
 /** A row of the batch table: the curve with its worst severity and, when the batch's spec fails it, the spec's reasons. */
 export const curvePageRowSchema = curveRowSchema.extend({ severity: severitySchema, reasons: z.array(z.string()) });
+/** GET /api/batches/:id/fits and POST …/fits/cancel: the batch's curves by fit status (and how many were cancelled). */
+const fitCountsSchema = z.strictObject({ queued: z.number(), fitting: z.number(), done: z.number(), failed: z.number() });
+export const fitStatusSchema = z.strictObject({ batch_id: z.string(), counts: fitCountsSchema, cancelled: z.number().optional() });
 export const curvePageSchema = z.strictObject({ curves: z.array(curvePageRowSchema), total: z.number(), page: z.number(), page_size: z.number(), spec: batchSpecSchema });
 
 export const fitHistorySchema = z.strictObject({

@@ -19,7 +19,7 @@ import { batch, curve, fit } from '@/db/schema';
 import type { Analyser, AnalysisOutcome } from '@/server/services/analysis-pool';
 import { touchBatch } from '@/server/services/answer-cache';
 import { lockBatch } from '@/server/services/batch-lock';
-import { batchCoefficients } from '@/server/services/batches';
+import { batchCoefficients, loadBatch, loadWritableBatch } from '@/server/services/batches';
 import { comparisonRecord, derivedColumns } from '@/server/services/curves';
 
 export const ANALYSIS_QUEUE = 'analysis';
@@ -151,4 +151,17 @@ export async function fitProgress(db: Db, batchId: string): Promise<Record<'queu
   const out = { queued: 0, fitting: 0, done: 0, failed: 0 };
   for (const r of rows) if (r.status in out) out[r.status as keyof typeof out] = Number(r.n);
   return out;
+}
+
+/** GET /api/batches/:id/fits: the organisation's batch's fit progress, or 404. */
+export async function batchFitStatus(db: Db, organizationId: string, batchId: string) {
+  const b = await loadBatch(db, organizationId, batchId);
+  return { batch_id: b.id, counts: await fitProgress(db, b.id) };
+}
+
+/** POST /api/batches/:id/fits/cancel: cancels the fits not yet started (a writable batch of the organisation). */
+export async function cancelBatchFits(db: Db, analyser: Analyser, who: { organizationId: string; userName: string }, batchId: string) {
+  const b = await loadWritableBatch(db, who.organizationId, batchId);
+  const cancelled = await cancelQueuedCurves(db, (analyser as Partial<QueuedAnalyser>).queue, b.id, who.userName);
+  return { batch_id: b.id, cancelled, counts: await fitProgress(db, b.id) };
 }

@@ -16,11 +16,11 @@ import { DatabaseStartError, MIGRATIONS_DIR, databaseUrl, openPostgres } from '@
 import type { Database } from '@/db/client';
 import { inlineAnalyser } from '@/server/services/analysis-pool';
 import type { Analyser } from '@/server/services/analysis-pool';
-import { startQueue } from '@/server/services/analysis-jobs';
+import { startQueue, uploadPriority } from '@/server/services/analysis-jobs';
 import type { AnalysisQueue } from '@/server/services/analysis-jobs';
 import { clusterAvailable, startCluster } from '@/scripts/pg-cluster';
 import type { Cluster } from '@/scripts/pg-cluster';
-import { signUp, startHarness } from '@/tests/server/harness';
+import { signIn, signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
 
 const ROOT = path.resolve(__dirname, '..', '..');
@@ -112,7 +112,7 @@ describe('DATABASE_URL checks (no server needed)', () => {
     expect(page.status).toBe(200);
     expect(page.body.curves.every((c: { status: string; fits: unknown[] }) => c.status === 'queued' && c.fits.length === 0)).toBe(true);
 
-    const env = { ...process.env, DATABASE_URL: cluster.url, QUASILEVEL_ANALYSIS_THREADS: '1', QUASILEVEL_JOB_EXPIRY_S: '10', QUASILEVEL_DEBUG_JOBS: '1' };
+    const env = { ...process.env, DATABASE_URL: cluster.url, QUASILEVEL_ANALYSIS_THREADS: '1', QUASILEVEL_JOB_EXPIRY_S: '10' };
     const startWorker = () => {
       // node itself with tsx's loader (not the tsx launcher, whose child would outlive a SIGKILL).
       const w = spawn(process.execPath, ['--import', 'tsx', 'server/worker.ts'], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
@@ -159,5 +159,35 @@ describe('DATABASE_URL checks (no server needed)', () => {
 
     const after = await tester.get(`/api/batches/${b.body.id}/curves?page_size=10`);
     expect(after.body.curves.every((c: { status: string; fits: unknown[] }) => c.status === 'done' && c.fits.length === 2)).toBe(true);
+    const progress = await tester.get(`/api/batches/${b.body.id}/fits`);
+    expect(progress.body.counts).toEqual({ queued: 0, fitting: 0, done: CURVES, failed: 0 });
+    for (const w of workers) w.kill('SIGTERM');
+    await Promise.all(workers.map((w) => (w.exitCode === null && w.signalCode === null ? new Promise((r) => w.once('exit', r)) : null)));
   }, 150_000);
+
+  it('a small upload goes before a large one; fits not started can be cancelled', async () => {
+    const tester = await signIn(h.app, 'tester@fab.example', 'correct-horse-9');
+    const b = await tester.post('/api/batches').send({ name: 'Cancelled fits', cells: 1 });
+    let up = tester.post(`/api/batches/${b.body.id}/curves`);
+    for (const f of syntheticFiles(5, { prefix: 'PGC', seed: 7 })) up = up.attach('files', Buffer.from(f.text), f.name);
+    expect((await up).body.accepted).toBe(5);
+    // pg-boss takes higher priorities first: this 5-file upload's jobs before those of the 241-file one above.
+    const priorities = await sql<{ priority: number; n: number }>(
+      "select j.priority, count(*)::int as n from pgboss.job j join curve c on c.id = j.id::text where j.name = 'analysis' group by j.priority order by j.priority",
+    );
+    expect(priorities).toEqual([
+      { priority: uploadPriority(CURVES + 1), n: CURVES },
+      { priority: uploadPriority(5), n: 5 },
+    ]);
+    expect(uploadPriority(5)).toBeGreaterThan(uploadPriority(CURVES + 1));
+
+    // No worker runs now: all five are queued, and the cancel reaches all of them.
+    const cancel = await tester.post(`/api/batches/${b.body.id}/fits/cancel`);
+    expect(cancel.status).toBe(200);
+    expect(cancel.body).toMatchObject({ cancelled: 5, counts: { queued: 0, fitting: 0, done: 0, failed: 5 } });
+    const page = await tester.get(`/api/batches/${b.body.id}/curves`);
+    expect(page.body.curves.map((c: { status: string; status_reason: string }) => [c.status, c.status_reason])).toEqual(Array(5).fill(['failed', expect.stringMatching(/^Cancelled by tester before the fits started\.$/)]));
+    const jobs = await sql<{ state: string }>("select distinct j.state from pgboss.job j join curve c on c.id = j.id::text where c.batch_id = $1", [b.body.id]);
+    expect(jobs).toEqual([{ state: 'cancelled' }]);
+  });
 });
