@@ -5,7 +5,7 @@ import { invalidateBatchData, invalidateBatchFigures } from '@/lib/api/invalidat
 import { batchKeys, curveKeys } from '@/lib/api/keys';
 import type { CurveListParams } from '@/lib/api/keys';
 import type { BatchCreateInput, RefitInput } from '@/lib/schemas/curves';
-import type { Batch, BatchList, CurveDetail, CurvePage, CurveRow, Overlay, RefitAnswer, UploadFileResult } from '@/lib/schemas/responses';
+import type { Batch, BatchList, CurveDetail, CurvePage, CurveRow, FitStatus, Overlay, RefitAnswer, UploadFileResult } from '@/lib/schemas/responses';
 
 export { batchKeys, curveKeys };
 export type { CurveListParams };
@@ -36,6 +36,35 @@ export function useOverlay(id: string) {
     queryKey: batchKeys.overlay(id),
     queryFn: () => apiFetch<Overlay>(`/api/batches/${encodeURIComponent(id)}/overlay?max=30`),
     enabled: !!id,
+  });
+}
+
+/** Fit progress of a batch; asked again every 2 s while any fit is queued or running, and the batch's figures with it. */
+export function useFitStatus(id: string) {
+  const qc = useQueryClient();
+  return useQuery({
+    queryKey: batchKeys.fits(id),
+    queryFn: async () => {
+      const before = qc.getQueryData<FitStatus>(batchKeys.fits(id));
+      const now = await apiFetch<FitStatus>(`/api/batches/${encodeURIComponent(id)}/fits`);
+      // Fits landed since the last look: the summary, curve pages and overlay show them.
+      if (before && (before.counts.done !== now.counts.done || before.counts.failed !== now.counts.failed)) void invalidateBatchData(qc, id);
+      return now;
+    },
+    enabled: !!id,
+    refetchInterval: (q) => (q.state.data && q.state.data.counts.queued + q.state.data.counts.fitting > 0 ? 2000 : false),
+  });
+}
+
+/** Cancels the batch's fits that have not started. */
+export function useCancelFits(id: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: () => apiFetch<FitStatus>(`/api/batches/${encodeURIComponent(id)}/fits/cancel`, { method: 'POST', body: {} }),
+    onSuccess: async (answer) => {
+      qc.setQueryData(batchKeys.fits(id), answer);
+      await invalidateBatchData(qc, id);
+    },
   });
 }
 

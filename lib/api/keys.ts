@@ -29,6 +29,8 @@ export const batchKeys = {
   curvesOf: (id: string) => [...batchKeys.one(id), 'curves'] as const,
   curves: (id: string, p: CurveListParams) => [...batchKeys.curvesOf(id), p] as const,
   overlay: (id: string) => [...batchKeys.one(id), 'overlay'] as const,
+  /** The batch's curves by fit status (queued jobs in PostgreSQL mode). */
+  fits: (id: string) => [...batchKeys.one(id), 'fits'] as const,
 };
 
 export const qualityKeys = {

@@ -287,6 +287,7 @@ export type Batch = z.infer<typeof batchSchema>;
 export type BatchList = z.infer<typeof batchListSchema>;
 export type CurveRow = z.infer<typeof curveRowSchema>;
 export type CurvePage = z.infer<typeof curvePageSchema>;
+export type FitStatus = z.infer<typeof fitStatusSchema>;
 export type CurvePageRow = z.infer<typeof curvePageRowSchema>;
 export type CurveDetail = z.infer<typeof curveDetailSchema>;
 export type RefitAnswer = z.infer<typeof refitAnswerSchema>;
