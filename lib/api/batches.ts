@@ -90,7 +90,13 @@ export function useUpdateBatch(id: string) {
 }
 
 export function useCurve(id: string) {
-  return useQuery({ queryKey: curveKeys.detail(id), queryFn: () => apiFetch<CurveDetail>(`/api/curves/${encodeURIComponent(id)}`), enabled: !!id });
+  return useQuery({
+    queryKey: curveKeys.detail(id),
+    queryFn: () => apiFetch<CurveDetail>(`/api/curves/${encodeURIComponent(id)}`),
+    enabled: !!id,
+    // A curve whose fits are queued or running is asked again until they land.
+    refetchInterval: (q) => (q.state.data && (q.state.data.status === 'queued' || q.state.data.status === 'fitting') ? 2000 : false),
+  });
 }
 
 export function useRefit(id: string) {

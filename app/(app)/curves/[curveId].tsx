@@ -176,6 +176,13 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
       }
     >
       {isAboveElv(m.voc_v) ? <CautionBlock /> : null}
+      {c.status !== 'done' ? (
+        <Card title={c.status === 'failed' ? 'Not fitted' : 'Fits on their way'} testID="curve-status">
+          <Txt variant="body">
+            {c.status === 'queued' ? 'The key figures below are read from the file; the diode fits and STC figures are waiting for a fitting worker.' : c.status === 'fitting' ? 'The diode fits are being computed now; this page shows them when they are stored.' : (c.status_reason ?? 'The diode fits could not be computed.')}
+          </Txt>
+        </Card>
+      ) : null}
       <View style={styles.figures} testID="key-figures">
         <Figure label="Isc" value={fmtParam('isc_a', m.isc_a)} />
         <Figure label="Voc" value={fmtParam('voc_v', m.voc_v)} warn={isAboveElv(m.voc_v)} />
