@@ -54,6 +54,7 @@ export function analyseParsed(curve: IvCurve, idealities: 'fixed' | 'free' = 'fi
   const { metrics, flags, fits, conditions } = analyseCurve(curve, { idealities, models });
   const { temp_c, cells } = conditions;
   const stc = stcOutcome({ curve, metrics, flags, params: singleParams(fits), cells, coefficients });
-  if (stc.method === 'none') flags.push({ code: 'stc-unavailable', severity: 'warn', message: `No STC figures: ${stc.reason}` });
+  // Reading only (`models: []`, the fits queued): no STC verdict yet, so no flag about it.
+  if (stc.method === 'none' && models?.length !== 0) flags.push({ code: 'stc-unavailable', severity: 'warn', message: `No STC figures: ${stc.reason}` });
   return { curve, metrics, flags, fits, stc, conditions: { temp_c, cells, irradiance_w_m2: curve.meta.irradiance_w_m2 ?? null, idealities } };
 }
