@@ -1,5 +1,6 @@
 /** Batches, their curves, uploads and refits. */
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { useEffect, useRef } from 'react';
 import { ApiError, apiFetch } from '@/lib/api/client';
 import { invalidateBatchData, invalidateBatchFigures } from '@/lib/api/invalidate';
 import { batchKeys, curveKeys } from '@/lib/api/keys';
@@ -39,21 +40,24 @@ export function useOverlay(id: string) {
   });
 }
 
-/** Fit progress of a batch; asked again every 2 s while any fit is queued or running, and the batch's figures with it. */
+/** Fit progress of a batch; asked again every 2 s while any fit is queued or running, and the batch's figures as fits land. */
 export function useFitStatus(id: string) {
   const qc = useQueryClient();
-  return useQuery({
+  const q = useQuery({
     queryKey: batchKeys.fits(id),
-    queryFn: async () => {
-      const before = qc.getQueryData<FitStatus>(batchKeys.fits(id));
-      const now = await apiFetch<FitStatus>(`/api/batches/${encodeURIComponent(id)}/fits`);
-      // Fits landed since the last look: the summary, curve pages and overlay show them.
-      if (before && (before.counts.done !== now.counts.done || before.counts.failed !== now.counts.failed)) void invalidateBatchData(qc, id);
-      return now;
-    },
+    queryFn: () => apiFetch<FitStatus>(`/api/batches/${encodeURIComponent(id)}/fits`),
     enabled: !!id,
-    refetchInterval: (q) => (q.state.data && q.state.data.counts.queued + q.state.data.counts.fitting > 0 ? 2000 : false),
+    refetchInterval: (query) => (query.state.data && query.state.data.counts.queued + query.state.data.counts.fitting > 0 ? 2000 : false),
   });
+  const seen = useRef<FitStatus | undefined>(undefined);
+  useEffect(() => {
+    const before = seen.current;
+    seen.current = q.data;
+    // Only while fits were on their way (never in embedded mode, where an upload answers with them done).
+    if (!before || !q.data || before.counts.queued + before.counts.fitting === 0) return;
+    if (before.counts.done !== q.data.counts.done || before.counts.failed !== q.data.counts.failed) void invalidateBatchData(qc, id);
+  }, [q.data, qc, id]);
+  return q;
 }
 
 /** Cancels the batch's fits that have not started. */

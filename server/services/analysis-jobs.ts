@@ -121,6 +121,10 @@ export async function fitQueuedCurves(db: Db, analyser: Analyser, curveIds: stri
  * one whose process dies expires and is retried elsewhere.
  */
 export async function workAnalysisJobs(db: Db, queue: AnalysisQueue, analyser: Analyser, opts: { loops?: number; perFetch?: number } = {}): Promise<void> {
+  // Curves stored `queued` whose job was never written (the database went away between the two):
+  // queued again; a job that exists already is left as it is (the insert ignores known ids).
+  const stranded = await db.select({ id: curve.id }).from(curve).where(inArray(curve.status, ['queued', 'fitting']));
+  await queue.enqueue(stranded.map((r) => r.id), stranded.length);
   const loops = opts.loops ?? Math.max(1, analyser.threads);
   for (let k = 0; k < loops; k++) {
     await queue.boss.work<{ curve_id: string }>(ANALYSIS_QUEUE, { batchSize: opts.perFetch ?? 4, pollingIntervalSeconds: 0.5 }, async (jobs) => {
