@@ -337,6 +337,10 @@ export const curve = pgTable(
     file_sha256: text('file_sha256'),
     /** Size in bytes of the uploaded file (its original is kept in object storage: original_file, server/services/originals.ts). */
     file_size: integer('file_size'),
+    /** Where the curve's fits are: queued | fitting | done | failed (the job queue, PostgreSQL mode); embedded uploads store `done`. */
+    status: text('status').notNull().default('done'),
+    /** Why the fits failed or were cancelled (status `failed`). */
+    statusReason: text('status_reason'),
     createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   },

@@ -20,6 +20,7 @@ import type { Mailer } from '@/server/mail';
 import { CallerCache, guardOrganizationEndpoints, invalidatesCallers, requireAccount, requireSession } from '@/server/permissions';
 import type { Account } from '@/server/permissions';
 import { batchesRouter } from '@/server/routes/batches';
+import { fitsRouter } from '@/server/routes/fits';
 import { compareRouter } from '@/server/routes/compare';
 import { curvesRouter } from '@/server/routes/curves';
 import { healthRouter } from '@/server/routes/health';
@@ -130,6 +131,7 @@ export function createApp(deps: AppDeps): Express {
     batchesRouter(db, receiveUploads(deps.uploadDir ?? path.join(os.tmpdir(), `quasilevel-uploads-${process.pid}`), deps.uploadLimits), deps.analyser, store),
     reviewsRouter(db, deps.mailer, baseUrl),
     batchOriginalsRouter(db, store),
+    fitsRouter(db, deps.analyser),
   );
   app.use('/api/specs', session, specsRouter(db));
   app.use('/api/setups', session, setupsRouter(db));

@@ -46,6 +46,17 @@ function describeZod(err: ZodError): string {
     .join('; ');
 }
 
+/** A PostgreSQL server that is down or restarting (connection refused or lost, shutting down, too many connections). */
+export function isDatabaseUnavailable(err: unknown): boolean {
+  const e = (err as { cause?: unknown })?.cause ?? err;
+  const code = (e as { code?: string })?.code;
+  const message = (e as { message?: string })?.message ?? '';
+  return (
+    ['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', '57P01', '57P02', '57P03', '53300', '08000', '08003', '08006'].includes(code ?? '') ||
+    /Connection terminated|timeout exceeded when trying to connect|Client has encountered a connection error/i.test(message)
+  );
+}
+
 /** Turns anything thrown into `{ code, message }` with the right status; never a stack trace. */
 export const errorHandler: ErrorRequestHandler = (err, _req, res, next) => {
   if (res.headersSent) return next(err);
@@ -84,6 +95,10 @@ export const errorHandler: ErrorRequestHandler = (err, _req, res, next) => {
   }
   if (typeof e?.status === 'number' && e.status >= 400 && e.status < 500) {
     res.status(e.status).json({ code: e.code ?? 'bad_request', message: e.message ?? 'Bad request.' });
+    return;
+  }
+  if (isDatabaseUnavailable(err)) {
+    res.status(503).set('Retry-After', '5').json({ code: 'database_unavailable', message: 'The database cannot be reached just now; nothing was changed. Try again in a moment.' });
     return;
   }
   console.error('[quasilevel] unhandled error:', err);

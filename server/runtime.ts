@@ -8,7 +8,7 @@ import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node
 import { createServer } from 'node:http';
 import type { Server } from 'node:http';
 import path from 'node:path';
-import { openDatabase } from '@/db/client';
+import { DatabaseStartError, openConfiguredDatabase } from '@/db/client';
 import type { Database } from '@/db/client';
 import { checkDataDirFree, lockDataDir, StartError } from '@/server/data-lock';
 import { originOf } from '@/server/guards';
@@ -20,6 +20,8 @@ import { serverAnalyser } from '@/server/services/analysis-pool';
 import { cleanOrphans } from '@/server/services/originals-admin';
 import { openStorage } from '@/server/storage';
 import type { Storage } from '@/server/storage';
+import type { Analyser } from '@/server/services/analysis-pool';
+import { startQueue, workAnalysisJobs } from '@/server/services/analysis-jobs';
 
 export type RuntimeOptions = {
   dataDir: string;
@@ -109,7 +111,8 @@ async function removeOrphanOriginals(db: Database['db'], storage: Storage): Prom
 export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Server; database: Database; url: string; seeded: boolean; stop: () => Promise<void> }> {
   mkdirSync(opts.dataDir, { recursive: true });
   const host = opts.host ?? '127.0.0.1';
-  // Before anything opens the database: two servers on one PGlite folder would corrupt it.
+  // Before anything opens the database: two servers on one PGlite folder would corrupt it. With
+  // DATABASE_URL the folder still holds this process's uploads on their way in: one per process.
   const lock = lockDataDir(opts.dataDir, { port: opts.port });
   const undo: (() => Promise<void> | void)[] = [lock.release];
   try {
@@ -117,7 +120,10 @@ export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Serv
     const uploadDir = path.join(opts.dataDir, 'tmp', 'uploads');
     rmSync(uploadDir, { recursive: true, force: true });
     mkdirSync(uploadDir, { recursive: true });
-    const database = await openDatabase(path.join(opts.dataDir, 'db'));
+    // DATABASE_URL's PostgreSQL server when set, else PGlite in <data>/db (db/client.ts chooses).
+    const database = await openConfiguredDatabase(opts.dataDir).catch((err: unknown) => {
+      throw err instanceof DatabaseStartError ? new StartError(err.message) : err;
+    });
     undo.unshift(() => database.close());
     const url = process.env.PUBLIC_URL || `http://localhost:${opts.port}`;
     const origins = trustedOrigins(url, opts.port);
@@ -134,8 +140,16 @@ export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Serv
     const storage = await openStorage(opts.dataDir);
     undo.unshift(() => storage.stop());
     await removeOrphanOriginals(database.db, storage);
-    const analyser = serverAnalyser(demoCurveFiles());
-    undo.unshift(() => analyser.close());
+    const threads = serverAnalyser(demoCurveFiles());
+    undo.unshift(() => threads.close());
+    // PostgreSQL mode: uploads queue their fits (pg-boss); this process works jobs too unless QUASILEVEL_WORKER=0.
+    let analyser: Analyser = threads;
+    if (database.kind === 'postgres') {
+      const queue = await startQueue(database.url!);
+      undo.unshift(() => queue.boss.stop({ graceful: false, wait: true }));
+      analyser = { ...threads, queue } as Analyser;
+      if (process.env.QUASILEVEL_WORKER !== '0') await workAnalysisJobs(database.db, queue, threads);
+    }
     const seeded = opts.seed === false ? false : await seedDemo(database.db, auth);
     const app = createApp({ db: database.db, auth, mailer, webDir: opts.webDir, analyser, sessionCacheMs: SESSION_CACHE_MS, uploadDir, trustedOrigins: origins, store: storage.store });
     const server = await listen(app, opts.port, host);
@@ -143,9 +157,7 @@ export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Serv
     const stop = () =>
       (stopping ??= (async () => {
         await new Promise<void>((resolve) => server.close(() => resolve()));
-        await analyser.close();
-        await storage.stop();
-        await database.close();
+        for (const step of undo.slice(0, -1)) await Promise.resolve(step()).catch(() => undefined);
         lock.release();
       })());
     return { server, database, url, seeded, stop };

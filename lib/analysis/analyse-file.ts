@@ -36,7 +36,7 @@ export function singleParams(fits: FitResult[]): SingleDiodeParams | null {
 /** Runs the pipeline on one file. Precedence of metadata: overrides > the file > batch defaults. */
 export function analyseFile(
   bytes: Uint8Array,
-  opts: { fileName: string; overrides?: FileOverrides; defaults?: FileDefaults; idealities?: 'fixed' | 'free' },
+  opts: { fileName: string; overrides?: FileOverrides; defaults?: FileDefaults; idealities?: 'fixed' | 'free'; models?: ('single' | 'double')[] },
 ): FileAnalysis {
   const parsed = parseIvBytes(bytes, { fileName: opts.fileName, overrides: clean(opts.overrides ?? {}) });
   const meta: CurveMeta = { ...parsed.meta };
@@ -45,7 +45,8 @@ export function analyseFile(
   if (meta.area_cm2 == null && d.area_cm2) meta.area_cm2 = d.area_cm2;
   if (meta.irradiance_w_m2 == null && d.irradiance_w_m2) meta.irradiance_w_m2 = d.irradiance_w_m2;
   const curve: IvCurve = { ...parsed, meta };
-  return analyseParsed(curve, opts.idealities ?? 'fixed', undefined, d.coefficients);
+  // `models: []` reads and checks only (key figures, flags): the fits then come from a queued job.
+  return analyseParsed(curve, opts.idealities ?? 'fixed', opts.models, d.coefficients);
 }
 
 /** The pipeline after reading: used for refits with corrected metadata too. */
@@ -53,6 +54,7 @@ export function analyseParsed(curve: IvCurve, idealities: 'fixed' | 'free' = 'fi
   const { metrics, flags, fits, conditions } = analyseCurve(curve, { idealities, models });
   const { temp_c, cells } = conditions;
   const stc = stcOutcome({ curve, metrics, flags, params: singleParams(fits), cells, coefficients });
-  if (stc.method === 'none') flags.push({ code: 'stc-unavailable', severity: 'warn', message: `No STC figures: ${stc.reason}` });
+  // Reading only (`models: []`, the fits queued): no STC verdict yet, so no flag about it.
+  if (stc.method === 'none' && models?.length !== 0) flags.push({ code: 'stc-unavailable', severity: 'warn', message: `No STC figures: ${stc.reason}` });
   return { curve, metrics, flags, fits, stc, conditions: { temp_c, cells, irradiance_w_m2: curve.meta.irradiance_w_m2 ?? null, idealities } };
 }

@@ -1,11 +1,12 @@
 /** Batches, their curves, uploads and refits. */
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { useEffect, useRef } from 'react';
 import { ApiError, apiFetch } from '@/lib/api/client';
 import { invalidateBatchData, invalidateBatchFigures } from '@/lib/api/invalidate';
 import { batchKeys, curveKeys } from '@/lib/api/keys';
 import type { CurveListParams } from '@/lib/api/keys';
 import type { BatchCreateInput, RefitInput } from '@/lib/schemas/curves';
-import type { Batch, BatchList, CurveDetail, CurvePage, CurveRow, Overlay, RefitAnswer, UploadFileResult } from '@/lib/schemas/responses';
+import type { Batch, BatchList, CurveDetail, CurvePage, CurveRow, FitStatus, Overlay, RefitAnswer, UploadFileResult } from '@/lib/schemas/responses';
 
 export { batchKeys, curveKeys };
 export type { CurveListParams };
@@ -39,6 +40,38 @@ export function useOverlay(id: string) {
   });
 }
 
+/** Fit progress of a batch; asked again every 2 s while any fit is queued or running, and the batch's figures as fits land. */
+export function useFitStatus(id: string) {
+  const qc = useQueryClient();
+  const q = useQuery({
+    queryKey: batchKeys.fits(id),
+    queryFn: () => apiFetch<FitStatus>(`/api/batches/${encodeURIComponent(id)}/fits`),
+    enabled: !!id,
+    refetchInterval: (query) => (query.state.data && query.state.data.counts.queued + query.state.data.counts.fitting > 0 ? 2000 : false),
+  });
+  const seen = useRef<FitStatus | undefined>(undefined);
+  useEffect(() => {
+    const before = seen.current;
+    seen.current = q.data;
+    // Only while fits were on their way (never in embedded mode, where an upload answers with them done).
+    if (!before || !q.data || before.counts.queued + before.counts.fitting === 0) return;
+    if (before.counts.done !== q.data.counts.done || before.counts.failed !== q.data.counts.failed) void invalidateBatchData(qc, id);
+  }, [q.data, qc, id]);
+  return q;
+}
+
+/** Cancels the batch's fits that have not started. */
+export function useCancelFits(id: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: () => apiFetch<FitStatus>(`/api/batches/${encodeURIComponent(id)}/fits/cancel`, { method: 'POST', body: {} }),
+    onSuccess: async (answer) => {
+      qc.setQueryData(batchKeys.fits(id), answer);
+      await invalidateBatchData(qc, id);
+    },
+  });
+}
+
 export function useCreateBatch() {
   const qc = useQueryClient();
   return useMutation({
@@ -61,7 +94,13 @@ export function useUpdateBatch(id: string) {
 }
 
 export function useCurve(id: string) {
-  return useQuery({ queryKey: curveKeys.detail(id), queryFn: () => apiFetch<CurveDetail>(`/api/curves/${encodeURIComponent(id)}`), enabled: !!id });
+  return useQuery({
+    queryKey: curveKeys.detail(id),
+    queryFn: () => apiFetch<CurveDetail>(`/api/curves/${encodeURIComponent(id)}`),
+    enabled: !!id,
+    // A curve whose fits are queued or running is asked again until they land.
+    refetchInterval: (q) => (q.state.data && (q.state.data.status === 'queued' || q.state.data.status === 'fitting') ? 2000 : false),
+  });
 }
 
 export function useRefit(id: string) {

@@ -31,6 +31,8 @@ export const batchKeys = {
   overlay: (id: string) => [...batchKeys.one(id), 'overlay'] as const,
   /** The characterisation of one device of the batch ('' = the device with the most curves). */
   characterisation: (id: string, device: string) => [...batchKeys.one(id), 'characterisation', device] as const,
+  /** The batch's curves by fit status (queued jobs in PostgreSQL mode). */
+  fits: (id: string) => [...batchKeys.one(id), 'fits'] as const,
 };
 
 export const qualityKeys = {

@@ -80,6 +80,10 @@ export const curveRowSchema = z.strictObject({
   flags: z.array(engine<Flag>()),
   stc: engine<StcOutcome>().nullable(),
   fits: z.array(fitJsonSchema),
+  /** Where the fits are: queued | fitting | done | failed (PostgreSQL mode queues them; embedded uploads answer done). */
+  status: z.enum(['queued', 'fitting', 'done', 'failed']),
+  /** Why the fits failed or were cancelled, else null. */
+  status_reason: z.string().nullable(),
   created_at: stamp,
 });
 /** pass | warn | fail: a device's worst severity (lib/quality/severity.ts). */
@@ -88,6 +92,9 @@ const severitySchema = z.enum(SEVERITIES);
 const batchSpecSchema = z.strictObject({ id: z.string(), name: z.string(), version: z.number() }).nullable();
 /** A row of the batch table: the curve with its worst severity and, when the batch's spec fails it, the spec's reasons. */
 export const curvePageRowSchema = curveRowSchema.extend({ severity: severitySchema, reasons: z.array(z.string()) });
+/** GET /api/batches/:id/fits and POST …/fits/cancel: the batch's curves by fit status (and how many were cancelled). */
+const fitCountsSchema = z.strictObject({ queued: z.number(), fitting: z.number(), done: z.number(), failed: z.number() });
+export const fitStatusSchema = z.strictObject({ batch_id: z.string(), counts: fitCountsSchema, cancelled: z.number().optional() });
 export const curvePageSchema = z.strictObject({ curves: z.array(curvePageRowSchema), total: z.number(), page: z.number(), page_size: z.number(), spec: batchSpecSchema });
 
 export const fitHistorySchema = z.strictObject({
@@ -357,6 +364,7 @@ export type Batch = z.infer<typeof batchSchema>;
 export type BatchList = z.infer<typeof batchListSchema>;
 export type CurveRow = z.infer<typeof curveRowSchema>;
 export type CurvePage = z.infer<typeof curvePageSchema>;
+export type FitStatus = z.infer<typeof fitStatusSchema>;
 export type CurvePageRow = z.infer<typeof curvePageRowSchema>;
 export type CurveDetail = z.infer<typeof curveDetailSchema>;
 export type RefitAnswer = z.infer<typeof refitAnswerSchema>;

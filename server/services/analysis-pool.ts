@@ -17,7 +17,7 @@ import type { IvCurve } from '@/lib/iv';
 
 /** A file to read and analyse, or (with `curve`) a stored curve to fit again (a refit). */
 export type AnalysisRequest =
-  | { bytes: Uint8Array; fileName: string; overrides?: FileOverrides; defaults?: FileDefaults }
+  | { bytes: Uint8Array; fileName: string; overrides?: FileOverrides; defaults?: FileDefaults; models?: ('single' | 'double')[] }
   | { curve: IvCurve; idealities: 'fixed' | 'free'; models?: ('single' | 'double')[]; coefficients?: StcCoefficients };
 
 /** What became of one file: its analysis, the reader's objection, or an unexpected failure. */
@@ -38,7 +38,7 @@ export type Analyser = {
 export function analyseToOutcome(req: AnalysisRequest): AnalysisOutcome {
   try {
     if ('curve' in req) return { ok: true, analysis: analyseParsed(req.curve, req.idealities, req.models, req.coefficients) };
-    return { ok: true, analysis: analyseFile(req.bytes, { fileName: req.fileName, overrides: req.overrides, defaults: req.defaults }) };
+    return { ok: true, analysis: analyseFile(req.bytes, { fileName: req.fileName, overrides: req.overrides, defaults: req.defaults, models: req.models }) };
   } catch (err) {
     if (err instanceof IvInputError) return { ok: false, kind: 'input', code: err.code, message: err.message, ...(err.line ? { line: err.line } : {}) };
     return { ok: false, kind: 'failure', message: (err as Error)?.message ?? String(err) };

@@ -84,7 +84,7 @@ function nextStamp(): Date {
 }
 
 /** One analysed curve to store; `id` is chosen by the caller so it can answer before the write; `fileSha256` of the uploaded bytes when known. */
-export type CurveToStore = { id: string; fileName: string; analysis: FileAnalysis; replaceIds?: string[]; fileSha256?: string; fileSize?: number };
+export type CurveToStore = { id: string; fileName: string; analysis: FileAnalysis; replaceIds?: string[]; fileSha256?: string; fileSize?: number; status?: 'queued' | 'done' };
 
 /**
  * Inserts analysed curves and their fits in one transaction (a multi-row insert: about three
@@ -98,7 +98,7 @@ export async function storeCurves(db: Db, target: { organizationId: string; batc
     await lockWritableBatch(tx, target.batchId);
     if (replaced.length) await tx.delete(curve).where(and(inArray(curve.id, replaced), eq(curve.batchId, target.batchId)));
     await tx.insert(curve).values(
-      items.map(({ id, fileName, analysis: a, fileSha256, fileSize }) => {
+      items.map(({ id, fileName, analysis: a, fileSha256, fileSize, status }) => {
         const deviceId = a.curve.meta.device_id ?? fileName;
         const derived = derivedColumns(a);
         return {
@@ -118,6 +118,7 @@ export async function storeCurves(db: Db, target: { organizationId: string; batc
           createdAt: nextStamp(),
           file_sha256: fileSha256 ?? null,
           file_size: fileSize ?? null,
+          status: status ?? 'done',
           ...derived,
           record: comparisonRecord({ id, batch_id: target.batchId, device_id: deviceId }, a, derived),
         };
@@ -168,6 +169,8 @@ export function curveJson(c: CurveRow | Omit<CurveRow, 'voltage_v' | 'current_a'
     flags: c.flags,
     stc: c.stc,
     fits: current.map((f) => ({ ...(detail ? f.result : fitSummary(f.result)), fit_id: f.id, conditions: f.conditions, reason: f.reason, created_at: f.createdAt })),
+    status: c.status as 'queued' | 'fitting' | 'done' | 'failed',
+    status_reason: c.statusReason,
     created_at: c.createdAt,
     ...(detail
       ? {

@@ -12,6 +12,7 @@ import { textProblem } from '@/lib/schemas/text';
 import { HttpError } from '@/server/errors';
 import { StorageUnavailableError } from '@/server/storage/object-store';
 import type { AnalysisOutcome, Analyser } from '@/server/services/analysis-pool';
+import type { QueuedAnalyser } from '@/server/services/analysis-jobs';
 import { batchDefaults, loadWritableBatch } from '@/server/services/batches';
 import { storeCurves } from '@/server/services/curves';
 import type { CurveToStore } from '@/server/services/curves';
@@ -63,6 +64,8 @@ export async function uploadCurves(
   const byDevice = new Map<string, string[]>();
   for (const e of existing) byDevice.set(e.deviceId, [...(byDevice.get(e.deviceId) ?? []), e.id]);
 
+  // PostgreSQL mode: curves are stored `queued` and their fits become jobs (analysis-jobs.ts).
+  const queue = (analyser as Partial<QueuedAnalyser>).queue;
   const overrides = { temp_c: opts.temp_c ?? undefined, irradiance_w_m2: opts.irradiance_w_m2 ?? undefined, cells: opts.cells ?? undefined, area_cm2: opts.area_cm2 ?? undefined };
   type Job = { file: UploadedFile; sha256?: string; outcome?: AnalysisOutcome; done?: Promise<unknown>; size: number };
   const jobs: Job[] = files.map((file) => ({ file, size: 'size' in file ? file.size : 0 }));
@@ -80,7 +83,8 @@ export async function uploadCurves(
         .then((bytes) => {
           // Hashed before the bytes go to an analysis thread; a release record keeps the hash of what was received.
           job.sha256 = createHash('sha256').update(bytes).digest('hex');
-          return analyser.analyse({ bytes, fileName: file.name, overrides, defaults: batchDefaults(b) });
+          // With a job queue the request only reads and checks (key figures, flags); the fits are queued.
+          return analyser.analyse({ bytes, fileName: file.name, overrides, defaults: batchDefaults(b), ...(queue ? { models: [] } : {}) });
         })
         .catch((err: unknown): AnalysisOutcome =>
           // Object storage down while the original was kept (server/services/originals-upload.ts): nothing of the file is stored.
@@ -98,7 +102,11 @@ export async function uploadCurves(
     if (!group.length) return;
     const items = group.splice(0);
     try {
-      await storeCurves(db, target, items);
+      await storeCurves(db, target, queue ? items.map((x) => ({ ...x, status: 'queued' as const })) : items);
+      await queue?.enqueue(
+        items.map((x) => x.id),
+        files.length,
+      );
     } catch (err) {
       // Released (or archived) while this upload was received or fitted: the state is checked where the curves are written.
       if (err instanceof HttpError && err.status === 409) {

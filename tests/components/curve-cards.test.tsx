@@ -12,7 +12,7 @@ import type { Flag, Metrics } from '@/lib/iv/types';
 // (reference-data README: Isc 0.76026 A, Voc 0.57278 V, Pmp 0.31070 W); the module's are invented.
 const metrics = (m: Pick<Metrics, 'isc_a' | 'voc_v' | 'pmp_w' | 'ff'>): Metrics => ({ ...m, imp_a: 0, vmp_v: 0, efficiency: null, rsh0_ohm: null, rs0_ohm: null });
 const row = (id: string, device_id: string, m: Metrics, severity: CurvePageRow['severity'], flags: Flag[] = [], reasons: string[] = []): CurvePageRow => ({
-  id, batch_id: 'b1', device_id, file_name: `${device_id}.csv`, meta: {}, metrics: m, flags, fits: [], stc: null, created_at: '2025-11-14T08:00:00Z', severity, reasons,
+  id, batch_id: 'b1', device_id, file_name: `${device_id}.csv`, meta: {}, metrics: m, flags, fits: [], stc: null, status: 'done', status_reason: null, created_at: '2025-11-14T08:00:00Z', severity, reasons,
 });
 const ROWS: CurvePageRow[] = [
   row('c1', 'CELL-57', metrics({ isc_a: 0.76026, voc_v: 0.57278, pmp_w: 0.3107, ff: 0.71349 }), 'fail', [

@@ -21,7 +21,7 @@ const failedFit: FitJson = {
 };
 const metrics = (m: Pick<Metrics, 'isc_a' | 'voc_v' | 'pmp_w' | 'ff'>): Metrics => ({ ...m, imp_a: 0, vmp_v: 0, efficiency: null, rsh0_ohm: null, rs0_ohm: null });
 const row = (id: string, device_id: string, m: Metrics, fits: FitJson[], stcPmp_w: number | null, flags: Flag[] = [], severity: CurveRow['severity'] = 'pass', reasons: string[] = []): CurveRow => ({
-  id, batch_id: 'b1', device_id, file_name: `${device_id}.csv`, meta: {}, metrics: m, flags, fits, created_at: '2025-11-14T08:00:00Z', severity, reasons,
+  id, batch_id: 'b1', device_id, file_name: `${device_id}.csv`, meta: {}, metrics: m, flags, fits, status: 'done', status_reason: null, created_at: '2025-11-14T08:00:00Z', severity, reasons,
   stc: stcPmp_w === null ? null : { method: 'model', from: { irradiance_w_m2: 1000, temp_c: 33 }, isc_a: 0, voc_v: 0, pmp_w: stcPmp_w, imp_a: 0, vmp_v: 0, ff: 0, efficiency: null, notes: [] },
 });
 

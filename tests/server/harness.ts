@@ -64,8 +64,9 @@ export function adoptApp(parts: Omit<Harness, 'mails' | 'close'>): Harness {
 /** The harness of each app, so that the sign-up helper can read the outbox and answer requests. */
 const harnesses = new WeakMap<Express, Harness>();
 
-export async function startHarness(opts: { signInPerMinute?: number; analyser?: Analyser; sessionCacheMs?: number } = {}): Promise<Harness> {
-  const database = await openTestDatabase();
+export async function startHarness(opts: { signInPerMinute?: number; analyser?: Analyser; sessionCacheMs?: number; database?: Database } = {}): Promise<Harness> {
+  // `database`: one the test opened itself (a PostgreSQL server in tests/server/postgres.test.ts).
+  const database = opts.database ?? (await openTestDatabase());
   const objectsDir = mkdtempSync(path.join(os.tmpdir(), 'ql-objects-'));
   const storage = await openFakeStorage(objectsDir);
   const outboxDir = mkdtempSync(path.join(os.tmpdir(), 'ql-outbox-'));

@@ -34,7 +34,7 @@ async function migratedTemplate(): Promise<File> {
   if (existsSync(file)) return asTarball(new Uint8Array(readFileSync(file)));
   const fresh = await openDatabase('memory');
   try {
-    const bytes = new Uint8Array(await (await fresh.pg.dumpDataDir('none')).arrayBuffer());
+    const bytes = new Uint8Array(await (await fresh.snapshot()).arrayBuffer());
     // Written under a private name and renamed: another test process may be making it too.
     const partial = `${file}.${process.pid}.partial`;
     writeFileSync(partial, bytes);

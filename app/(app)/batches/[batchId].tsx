@@ -9,6 +9,7 @@ import { CautionBlock } from '@/components/caution-block';
 import { CurveCards } from '@/components/curve-cards';
 import { CurveTable } from '@/components/curve-table';
 import { Figure } from '@/components/figure';
+import { FitProgress } from '@/components/fit-progress';
 import { OverlayChart } from '@/components/overlay-chart';
 import { QueryState } from '@/components/query-state';
 import { BatchOriginals } from '@/components/original-file';
@@ -18,7 +19,7 @@ import { StateBadge } from '@/components/state-badge';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import { UploadPanel } from '@/components/upload-panel';
-import { useBatch, useBatchCurves, useOverlay, useUpdateBatch } from '@/lib/api/batches';
+import { useBatch, useBatchCurves, useCancelFits, useFitStatus, useOverlay, useUpdateBatch } from '@/lib/api/batches';
 import type { Batch, CurveListParams } from '@/lib/api/batches';
 import { useMe } from '@/lib/api/session';
 import { fmtParam } from '@/lib/format';
@@ -51,6 +52,8 @@ export default function BatchScreen() {
   const me = useMe();
   const update = useUpdateBatch(id);
   const overlay = useOverlay(id);
+  const fits = useFitStatus(id);
+  const cancelFits = useCancelFits(id);
   const [editing, setEditing] = useState(false);
   const setups = useSetups();
   const [search, setSearch] = useState('');
@@ -96,6 +99,7 @@ export default function BatchScreen() {
             ) : null}
             {highV ? <CautionBlock /> : null}
             <Summary b={b} />
+            {fits.data ? <FitProgress status={fits.data} canCancel={writable} cancelling={cancelFits.isPending} onCancel={() => cancelFits.mutate()} /> : null}
             <View style={[{ gap: 16 }, wide && { flexDirection: 'row', alignItems: 'flex-start' }]}>
               {writable ? (
                 <Card title="Upload curves" style={wide ? { flex: 1 } : undefined}>

@@ -180,6 +180,13 @@ function CurveBody({ c, wide, canWrite, refitting, setRefitting }: { c: CurveDet
       }
     >
       {isAboveElv(m.voc_v) ? <CautionBlock /> : null}
+      {c.status !== 'done' ? (
+        <Card title={c.status === 'failed' ? 'Not fitted' : 'Fits on their way'} testID="curve-status">
+          <Txt variant="body">
+            {c.status === 'queued' ? 'The key figures below are read from the file; the diode fits and STC figures are waiting for a fitting worker.' : c.status === 'fitting' ? 'The diode fits are being computed now; this page shows them when they are stored.' : (c.status_reason ?? 'The diode fits could not be computed.')}
+          </Txt>
+        </Card>
+      ) : null}
       <View style={styles.figures} testID="key-figures">
         <Figure label="Isc" value={formatWithUncertainty('isc_a', m.isc_a, c.uncertainty.u_isc_a)} testID="figure-isc" />
         <Figure label="Voc" value={formatWithUncertainty('voc_v', m.voc_v, c.uncertainty.u_voc_v)} warn={isAboveElv(m.voc_v)} testID="figure-voc" />

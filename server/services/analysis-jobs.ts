@@ -1,0 +1,171 @@
+/**
+ * Fits as jobs (PostgreSQL mode, DATABASE_URL set): an upload reads and checks each file, stores
+ * the curve with its key figures and status `queued`, and queues one pg-boss job per curve (the
+ * job's id is the curve's id). Any process that runs `workAnalysisJobs` — the server unless
+ * QUASILEVEL_WORKER=0, and every `npm run worker` — takes jobs, fits the curve on its analysis
+ * threads and stores the fits. Embedded mode (PGlite) has no queue: the upload fits in the request
+ * on the piscina pool (analysis-pool.ts), as the code above the Analyser interface expects.
+ *
+ * Exactly once: the store locks the curve row and writes only while its status is not `done`, in
+ * the same transaction as the fits, so a job retried after its worker died (pg-boss expiry) or
+ * taken twice stores once. Fairness: jobs of small uploads get a higher pg-boss priority than
+ * those of large ones (taken first, FIFO within a priority); refits never queue (they fit in the
+ * request on the threads).
+ */
+import { and, eq, inArray, ne, sql } from 'drizzle-orm';
+import PgBoss from 'pg-boss';
+import type { Db } from '@/db/client';
+import { batch, curve, fit } from '@/db/schema';
+import type { Analyser, AnalysisOutcome } from '@/server/services/analysis-pool';
+import { touchBatch } from '@/server/services/answer-cache';
+import { lockBatch } from '@/server/services/batch-lock';
+import { batchCoefficients, loadBatch, loadWritableBatch } from '@/server/services/batches';
+import { comparisonRecord, derivedColumns } from '@/server/services/curves';
+
+export const ANALYSIS_QUEUE = 'analysis';
+
+/** An Analyser whose uploads queue their fits (uploads.ts checks for `queue`). */
+export type QueuedAnalyser = Analyser & { queue: AnalysisQueue };
+
+export type AnalysisQueue = {
+  /** Queues a job per curve; `files` is the size of the upload they came from (small ones first). */
+  enqueue: (curveIds: string[], files: number) => Promise<void>;
+  /** Cancels the jobs of these curves that have not started. */
+  cancel: (curveIds: string[]) => Promise<void>;
+  boss: PgBoss;
+};
+
+/** Seconds before a started job whose worker went silent is given to another (QUASILEVEL_JOB_EXPIRY_S, default 60). */
+function expirySeconds(): number {
+  const n = Number(process.env.QUASILEVEL_JOB_EXPIRY_S || 60);
+  return Number.isFinite(n) && n >= 1 ? n : 60;
+}
+
+/** pg-boss priority of an upload's jobs: higher is taken first (1 file 100, 10 files 90, 100 files 80, 1,000 files 70). */
+export function uploadPriority(files: number): number {
+  return Math.max(0, Math.round(100 - 10 * Math.log10(Math.max(1, files))));
+}
+
+/** Starts pg-boss on the database of `url` (its own schema `pgboss`, made on first start). */
+export async function startQueue(url: string): Promise<AnalysisQueue> {
+  const expiry = expirySeconds();
+  const boss = new PgBoss({ connectionString: url, max: 4, maintenanceIntervalSeconds: Math.max(1, Math.min(30, Math.floor(expiry / 2))) });
+  boss.on('error', (err) => console.error(`[quasilevel] job queue: ${err.message}`));
+  await boss.start();
+  await boss.createQueue(ANALYSIS_QUEUE, { name: ANALYSIS_QUEUE, retryLimit: 5, retryDelay: 1, expireInSeconds: expiry }).catch(() => undefined);
+  return {
+    boss,
+    enqueue: async (curveIds, files) => {
+      if (!curveIds.length) return;
+      const priority = uploadPriority(files);
+      await boss.insert(curveIds.map((id) => ({ id, name: ANALYSIS_QUEUE, data: { curve_id: id }, priority, retryLimit: 5, retryDelay: 1, expireInSeconds: expiry })));
+    },
+    cancel: async (curveIds) => {
+      if (curveIds.length) await boss.cancel(ANALYSIS_QUEUE, curveIds);
+    },
+  };
+}
+
+type Outcome = { id: string; batchId: string; outcome: AnalysisOutcome };
+
+/** Fits queued curves on `analyser` and stores them; curves gone, cancelled or already done are skipped. */
+export async function fitQueuedCurves(db: Db, analyser: Analyser, curveIds: string[]): Promise<void> {
+  if (!curveIds.length) return;
+  const rows = await db
+    .select({ id: curve.id, batchId: curve.batchId, meta: curve.meta, voltage_v: curve.voltage_v, current_a: curve.current_a, notes: curve.notes, status: curve.status, b: batch })
+    .from(curve)
+    .innerJoin(batch, eq(batch.id, curve.batchId))
+    .where(and(inArray(curve.id, curveIds), inArray(curve.status, ['queued', 'fitting'])));
+  if (!rows.length) return;
+  await db.update(curve).set({ status: 'fitting' }).where(and(inArray(curve.id, rows.map((r) => r.id)), eq(curve.status, 'queued')));
+  const outcomes: Outcome[] = await Promise.all(
+    rows.map(async (r) => ({
+      id: r.id,
+      batchId: r.batchId,
+      outcome: await analyser.analyse({ curve: { voltage_v: r.voltage_v, current_a: r.current_a, meta: r.meta, notes: r.notes }, idealities: 'fixed', coefficients: batchCoefficients(r.b) }),
+    })),
+  );
+  await db.transaction(async (tx) => {
+    // The batches in one order, so two workers never wait on each other crosswise.
+    for (const batchId of [...new Set(outcomes.map((o) => o.batchId))].sort()) await lockBatch(tx, batchId);
+    const open = await tx
+      .select({ id: curve.id, deviceId: curve.deviceId, state: batch.state })
+      .from(curve)
+      .innerJoin(batch, eq(batch.id, curve.batchId))
+      .where(and(inArray(curve.id, outcomes.map((o) => o.id)), ne(curve.status, 'done'), ne(curve.status, 'failed')))
+      .for('update', { of: curve });
+    const byId = new Map(open.map((o) => [o.id, o]));
+    for (const { id, batchId, outcome } of outcomes) {
+      const row = byId.get(id);
+      // Stored already (a retried or doubled job), cancelled, or its batch released meanwhile: nothing to write.
+      if (!row || row.state === 'released') continue;
+      if (!outcome.ok) {
+        await tx.update(curve).set({ status: 'failed', statusReason: `The fits could not be computed: ${outcome.message}` }).where(eq(curve.id, id));
+        continue;
+      }
+      const a = outcome.analysis;
+      const cols = derivedColumns(a);
+      const record = comparisonRecord({ id, batch_id: batchId, device_id: row.deviceId }, a, cols);
+      await tx.update(curve).set({ metrics: a.metrics, flags: a.flags, stc: a.stc, ...cols, record, status: 'done', statusReason: null }).where(eq(curve.id, id));
+      if (a.fits.length) {
+        await tx.insert(fit).values(a.fits.map((f) => ({ id: crypto.randomUUID(), curveId: id, model: f.model, current: true, result: f, conditions: a.conditions, reason: 'upload', createdBy: null })));
+      }
+    }
+    for (const batchId of new Set(outcomes.filter((o) => byId.has(o.id)).map((o) => o.batchId))) await touchBatch(tx, batchId);
+  });
+}
+
+/**
+ * Takes analysis jobs in this process: `loops` pollers, each fetching up to `perFetch` jobs and
+ * fitting them on `analyser`'s threads. A job whose handler throws is retried (pg-boss retryLimit);
+ * one whose process dies expires and is retried elsewhere.
+ */
+export async function workAnalysisJobs(db: Db, queue: AnalysisQueue, analyser: Analyser, opts: { loops?: number; perFetch?: number } = {}): Promise<void> {
+  // Curves stored `queued` whose job was never written (the database went away between the two):
+  // queued again; a job that exists already is left as it is (the insert ignores known ids).
+  const stranded = await db.select({ id: curve.id }).from(curve).where(inArray(curve.status, ['queued', 'fitting']));
+  await queue.enqueue(stranded.map((r) => r.id), stranded.length);
+  const loops = opts.loops ?? Math.max(1, analyser.threads);
+  for (let k = 0; k < loops; k++) {
+    await queue.boss.work<{ curve_id: string }>(ANALYSIS_QUEUE, { batchSize: opts.perFetch ?? 4, pollingIntervalSeconds: 0.5 }, async (jobs) => {
+      const t = Date.now();
+      await fitQueuedCurves(db, analyser, jobs.map((j) => j.data.curve_id));
+      if (process.env.QUASILEVEL_DEBUG_JOBS) console.log(`[jobs] ${process.pid} fitted ${jobs.length} in ${Date.now() - t} ms`);
+    });
+  }
+}
+
+/** Marks the batch's curves not yet started as failed (cancelled) and withdraws their jobs; answers how many. */
+export async function cancelQueuedCurves(db: Db, queue: AnalysisQueue | undefined, batchId: string, byName: string): Promise<number> {
+  const rows = await db
+    .update(curve)
+    .set({ status: 'failed', statusReason: `Cancelled by ${byName} before the fits started.` })
+    .where(and(eq(curve.batchId, batchId), eq(curve.status, 'queued')))
+    .returning({ id: curve.id });
+  if (rows.length) {
+    await queue?.cancel(rows.map((r) => r.id));
+    await touchBatch(db, batchId);
+  }
+  return rows.length;
+}
+
+/** Counts of a batch's curves by status (progress while fits land). */
+export async function fitProgress(db: Db, batchId: string): Promise<Record<'queued' | 'fitting' | 'done' | 'failed', number>> {
+  const rows = await db.select({ status: curve.status, n: sql<number>`count(*)::int` }).from(curve).where(eq(curve.batchId, batchId)).groupBy(curve.status);
+  const out = { queued: 0, fitting: 0, done: 0, failed: 0 };
+  for (const r of rows) if (r.status in out) out[r.status as keyof typeof out] = Number(r.n);
+  return out;
+}
+
+/** GET /api/batches/:id/fits: the organisation's batch's fit progress, or 404. */
+export async function batchFitStatus(db: Db, organizationId: string, batchId: string) {
+  const b = await loadBatch(db, organizationId, batchId);
+  return { batch_id: b.id, counts: await fitProgress(db, b.id) };
+}
+
+/** POST /api/batches/:id/fits/cancel: cancels the fits not yet started (a writable batch of the organisation). */
+export async function cancelBatchFits(db: Db, analyser: Analyser, who: { organizationId: string; userName: string }, batchId: string) {
+  const b = await loadWritableBatch(db, who.organizationId, batchId);
+  const cancelled = await cancelQueuedCurves(db, (analyser as Partial<QueuedAnalyser>).queue, b.id, who.userName);
+  return { batch_id: b.id, cancelled, counts: await fitProgress(db, b.id) };
+}
