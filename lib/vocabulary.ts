@@ -288,7 +288,8 @@ export const QUANTITIES: readonly Quantity[] = [
       ['base_version', 'Version edited from'], ['revision', 'Release revision'], ['accepted', 'Files accepted'],
       ['rejected', 'Files refused'], ['replaced', 'Curves replaced'], ['line', 'Line in the file'],
       ['sampled', 'Curves drawn'], ['checked', 'Originals checked'], ['deleted', 'Originals deleted'],
-      ['without_cells', 'Devices without a cell count'],
+      ['without_cells', 'Devices without a cell count'], ['queued', 'Fits waiting'], ['fitting', 'Fits running'],
+      ['done', 'Fits finished'], ['failed', 'Fits failed'], ['cancelled', 'Fits cancelled'],
     ] as const
   ).map(([k, label]) => q('record', k, label, '', count)),
 ];

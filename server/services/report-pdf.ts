@@ -136,7 +136,7 @@ export function renderReportPdf(r: ReportContent): Promise<Buffer> {
   const doc = new PDFDocument({ size: 'A4', margins: { top: 48, bottom: 48, left: 48, right: 48 }, bufferPages: true, info: { Title: `Release report: ${r.batch.name}`, Author: 'Quasilevel', CreationDate: r.madeAt } });
   doc.registerFont('regular', path.join(FONTS, 'IBMPlexSans_400Regular.ttf'));
   doc.registerFont('medium', path.join(FONTS, 'IBMPlexSans_500Medium.ttf'));
-  doc.registerFont('bold', path.join(FONTS, 'IBMPlexSans_700Bold.ttf'));
+  doc.registerFont('bold', path.join(FONTS, 'IBMPlexSans_600SemiBold.ttf')); // the heaviest face shipped
   // The shipped IBM Plex Mono files fail in pdfkit's font reader (fontkit reads past a glyph
   // table on spaces and punctuation), so figures use Plex Sans too.
   doc.registerFont('mono', path.join(FONTS, 'IBMPlexSans_400Regular.ttf'));
