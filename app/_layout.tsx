@@ -46,9 +46,9 @@ export default function RootLayout() {
   // (app/(app)/_layout.tsx), so the sign-in page does not fetch them. No bold face: nothing is
   // set heavier than semibold (theme.font.bold is the semibold face).
   const [fontsLoaded, fontError] = useFonts({
-    PlexSans: require('@/assets/fonts/IBMPlexSans_400Regular.ttf'),
-    'PlexSans-Medium': require('@/assets/fonts/IBMPlexSans_500Medium.ttf'),
-    'PlexSans-SemiBold': require('@/assets/fonts/IBMPlexSans_600SemiBold.ttf'),
+    PlexSans: require('@/assets/fonts/web/IBMPlexSans_400Regular.ttf'),
+    'PlexSans-Medium': require('@/assets/fonts/web/IBMPlexSans_500Medium.ttf'),
+    'PlexSans-SemiBold': require('@/assets/fonts/web/IBMPlexSans_600SemiBold.ttf'),
   });
 
   if (!fontsLoaded && !fontError) return null;

@@ -13,6 +13,7 @@ import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import path from 'node:path';
 import { buildWeb } from './build-web';
+import { SEEDED_TEMPLATE_ENV, makeSeededTemplate } from '../tests/support/server-process';
 
 const ROOT = path.resolve(__dirname, '..');
 const CHROMIUM = process.env.CHROMIUM_PATH || '/usr/bin/chromium';
@@ -64,7 +65,22 @@ async function browserLane(): Promise<JestJson> {
     console.error(`[test] browser tests could not run: ${(err as Error).message}`);
     return FAILED_TO_RUN;
   }
-  return runJest('e2e', ['--selectProjects', 'e2e', '--runInBand']);
+  // One server migrates and seeds the demo data once; every suite's server starts on a copy of it.
+  let template: string;
+  try {
+    const t = Date.now();
+    template = await makeSeededTemplate();
+    console.log(`[test] seeded data folder for the browser tests in ${((Date.now() - t) / 1000).toFixed(0)} s`);
+  } catch (err) {
+    console.error(`[test] the demo data could not be seeded: ${(err as Error).message}`);
+    return FAILED_TO_RUN;
+  }
+  process.env[SEEDED_TEMPLATE_ENV] = template;
+  try {
+    return await runJest('e2e', ['--selectProjects', 'e2e', '--runInBand']);
+  } finally {
+    rmSync(template, { recursive: true, force: true });
+  }
 }
 
 async function main(): Promise<number> {

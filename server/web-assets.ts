@@ -26,12 +26,12 @@ export const PRELOADED_FONTS = ['IBMPlexSans_400Regular', 'IBMPlexSans_500Medium
 /** The exported page with preload links for the first screen's fonts (found under their hashed names). */
 export function pageWithPreloads(webDir: string): string {
   const html = readFileSync(path.join(webDir, 'index.html'), 'utf8');
-  const fontDir = path.join(webDir, 'assets', 'assets', 'fonts');
+  const fontDir = path.join(webDir, 'assets', 'assets', 'fonts', 'web');
   if (!existsSync(fontDir)) return html;
   const files = readdirSync(fontDir);
   const links = PRELOADED_FONTS.map((name) => files.find((f) => f.startsWith(`${name}.`)))
     .filter((f): f is string => !!f)
-    .map((f) => `<link rel="preload" href="/assets/assets/fonts/${f}" as="font" type="font/ttf" crossorigin>`)
+    .map((f) => `<link rel="preload" href="/assets/assets/fonts/web/${f}" as="font" type="font/ttf" crossorigin>`)
     .join('');
   return html.replace('</head>', `${links}</head>`).replace('<div id="root"></div>', `<div id="root">${SPLASH}</div>`);
 }

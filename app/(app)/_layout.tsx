@@ -12,8 +12,8 @@ export default function AppLayout() {
   // until they arrive such text shows in the fallback face.
   useEffect(() => {
     Font.loadAsync({
-      PlexMono: require('@/assets/fonts/IBMPlexMono_400Regular.ttf'),
-      'PlexMono-SemiBold': require('@/assets/fonts/IBMPlexMono_600SemiBold.ttf'),
+      PlexMono: require('@/assets/fonts/web/IBMPlexMono_400Regular.ttf'),
+      'PlexMono-SemiBold': require('@/assets/fonts/web/IBMPlexMono_600SemiBold.ttf'),
     }).catch(() => undefined);
   }, []);
   if (!me.data) return null;

@@ -19,13 +19,13 @@ let app: express.Express;
 beforeAll(() => {
   dir = mkdtempSync(path.join(os.tmpdir(), 'ql-web-'));
   mkdirSync(path.join(dir, '_expo', 'static', 'js', 'web'), { recursive: true });
-  mkdirSync(path.join(dir, 'assets', 'assets', 'fonts'), { recursive: true });
+  mkdirSync(path.join(dir, 'assets', 'assets', 'fonts', 'web'), { recursive: true });
   writeFileSync(path.join(dir, 'index.html'), '<html><head><title>t</title></head><body><div id="root"></div></body></html>');
   const js = 'console.log("entry");'.repeat(50);
   writeFileSync(path.join(dir, '_expo', 'static', 'js', 'web', `entry-${HASH}.js`), js);
   writeFileSync(path.join(dir, '_expo', 'static', 'js', 'web', `entry-${HASH}.js.br`), zlib.brotliCompressSync(js));
   for (const f of ['IBMPlexSans_400Regular', 'IBMPlexSans_500Medium', 'IBMPlexSans_600SemiBold', 'IBMPlexMono_400Regular']) {
-    writeFileSync(path.join(dir, 'assets', 'assets', 'fonts', `${f}.${HASH}.ttf`), 'not a real font');
+    writeFileSync(path.join(dir, 'assets', 'assets', 'fonts', 'web', `${f}.${HASH}.ttf`), 'not a real font');
   }
   writeFileSync(path.join(dir, 'favicon.ico'), 'icon');
   app = express();
@@ -38,7 +38,7 @@ it('hashed scripts and fonts: a year, immutable; the favicon an hour; the page a
   expect(js.status).toBe(200);
   expect(js.headers['cache-control']).toBe(IMMUTABLE);
   expect(js.headers['cache-control']).toMatch(/max-age=31536000/);
-  const font = await request(app).get(`/assets/assets/fonts/IBMPlexSans_400Regular.${HASH}.ttf`);
+  const font = await request(app).get(`/assets/assets/fonts/web/IBMPlexSans_400Regular.${HASH}.ttf`);
   expect(font.headers['cache-control']).toBe(IMMUTABLE);
   expect((await request(app).get('/favicon.ico')).headers['cache-control']).toBe('public, max-age=3600');
   const page = await request(app).get('/batches/abc');
@@ -49,7 +49,7 @@ it('hashed scripts and fonts: a year, immutable; the favicon an hour; the page a
 it('the page preloads the three sans faces of the first screen, not the mono ones, and paints a still picture', async () => {
   const page = (await request(app).get('/sign-in')).text;
   for (const f of ['IBMPlexSans_400Regular', 'IBMPlexSans_500Medium', 'IBMPlexSans_600SemiBold']) {
-    expect(page).toContain(`<link rel="preload" href="/assets/assets/fonts/${f}.${HASH}.ttf" as="font" type="font/ttf" crossorigin>`);
+    expect(page).toContain(`<link rel="preload" href="/assets/assets/fonts/web/${f}.${HASH}.ttf" as="font" type="font/ttf" crossorigin>`);
   }
   expect(page).not.toContain('IBMPlexMono');
   expect(page).toMatch(/<div id="root"><div style="[^"]*">.*Quasilevel.*<\/div><\/div>/);

@@ -4,7 +4,7 @@
  */
 import { spawn } from 'node:child_process';
 import type { ChildProcess } from 'node:child_process';
-import { mkdtempSync, rmSync } from 'node:fs';
+import { cpSync, existsSync, mkdtempSync, rmSync } from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
@@ -23,6 +23,36 @@ export async function freePort(): Promise<number> {
   });
 }
 
+/**
+ * The environment variable naming a data folder that a server already migrated and seeded with the
+ * demo data and then left (`npm test` makes one before the browser lane, scripts/test.ts). A
+ * server started without its own folder gets a copy of it: the same demo data without each suite
+ * paying for the migrations and the demo fits again (the browser lane's suites are independent:
+ * each has its own copy).
+ */
+export const SEEDED_TEMPLATE_ENV = 'QUASILEVEL_TEST_SEEDED_DIR';
+
+function freshDataDir(): string {
+  const dir = mkdtempSync(path.join(os.tmpdir(), 'ql-data-'));
+  const template = process.env[SEEDED_TEMPLATE_ENV];
+  if (template && existsSync(template)) cpSync(template, dir, { recursive: true, filter: (src) => path.basename(src) !== 'server.lock' });
+  return dir;
+}
+
+/** Starts a server on a fresh folder, lets it migrate and seed, stops it and keeps the folder (see SEEDED_TEMPLATE_ENV). */
+export async function makeSeededTemplate(): Promise<string> {
+  const saved = process.env[SEEDED_TEMPLATE_ENV];
+  delete process.env[SEEDED_TEMPLATE_ENV];
+  try {
+    const s = await startServerProcess({ timeoutMs: 240_000 });
+    const code = await s.stop({ keepData: true });
+    if (code !== 0) throw new Error(`the seeding server stopped with ${code}:\n${s.log()}`);
+    return s.dataDir;
+  } finally {
+    if (saved !== undefined) process.env[SEEDED_TEMPLATE_ENV] = saved;
+  }
+}
+
 export type ServerProcess = {
   url: string;
   port: number;
@@ -36,7 +66,7 @@ export type ServerProcess = {
 /** `port`: listen there (a restart on the address clients already use); default a free one. */
 export async function startServerProcess(opts: { dataDir?: string; env?: Record<string, string>; timeoutMs?: number; port?: number } = {}): Promise<ServerProcess> {
   const port = opts.port ?? (await freePort());
-  const dataDir = opts.dataDir ?? mkdtempSync(path.join(os.tmpdir(), 'ql-data-'));
+  const dataDir = opts.dataDir ?? freshDataDir();
   const url = `http://127.0.0.1:${port}`;
   let output = '';
   // tsx as a loader inside this node process (not its CLI, which forks a grandchild): a SIGKILL
@@ -57,7 +87,8 @@ export async function startServerProcess(opts: { dataDir?: string; env?: Record<
   child.stderr!.on('data', (d) => (output += d));
   const exited = new Promise<number | null>((resolve) => child.on('exit', (code) => resolve(code)));
 
-  const deadline = Date.now() + (opts.timeoutMs ?? 60_000);
+  // Generous by default: a browser-lane server starts beside the unit lane on two cores.
+  const deadline = Date.now() + (opts.timeoutMs ?? 180_000);
   for (;;) {
     if (child.exitCode !== null) throw new Error(`server exited early (${child.exitCode}):\n${output}`);
     try {
