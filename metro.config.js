@@ -1,11 +1,22 @@
 /**
- * Metro for the dev loop (`npm run dev:web`): forwards /api/* to the Express server on
+ * Metro for the web export and the dev loop. The dev loop (`npm run dev:web`) forwards /api/* to the Express server on
  * QUASILEVEL_API_PORT (default 8080) so the app always calls relative /api URLs.
  */
 const http = require('node:http');
 const { getDefaultConfig } = require('expo/metro-config');
 
 const config = getDefaultConfig(__dirname);
+
+// On the web, zod's namespace of every message language becomes English alone (see the shim).
+const path = require('node:path');
+const ZOD_LOCALES_SHIM = path.join(__dirname, 'scripts', 'web-shims', 'zod-locales.js');
+const resolveRequest = config.resolver.resolveRequest;
+config.resolver.resolveRequest = (context, moduleName, platform) => {
+  if (platform === 'web' && moduleName === '../locales/index.js' && /[\\/]node_modules[\\/]zod[\\/]v4[\\/](classic|core)[\\/]/.test(context.originModulePath)) {
+    return { type: 'sourceFile', filePath: ZOD_LOCALES_SHIM };
+  }
+  return resolveRequest ? resolveRequest(context, moduleName, platform) : context.resolveRequest(context, moduleName, platform);
+};
 const apiPort = Number(process.env.QUASILEVEL_API_PORT || 8080);
 
 config.server = {

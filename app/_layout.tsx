@@ -7,10 +7,12 @@ import { installFocusRing } from '@/components/focus-ring';
 import { theme } from '@/components/theme';
 import { queryClient } from '@/lib/api/query-client';
 import { useAccount } from '@/lib/api/session';
+import { applyZodSettings } from '@/lib/schemas/zod-setup';
 
 export { ErrorBoundary } from 'expo-router';
 
 installFocusRing();
+applyZodSettings(); // no eval probe under the page's CSP (see lib/schemas/zod-setup.ts)
 
 /**
  * Chooses the signed-in or signed-out route group from the session; a signed-in person who is not

@@ -1,7 +1,7 @@
 import { Pressable, StyleSheet, View } from 'react-native';
 import type { TextStyle } from 'react-native';
 import { Card } from '@/components/card';
-import { DistributionChart } from '@/components/distribution-chart';
+import { DistributionChart } from '@/components/lazy-charts';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import type { DescribeStats } from '@/lib/api/batches';

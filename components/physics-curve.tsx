@@ -8,7 +8,7 @@ import { Figure } from '@/components/figure';
 import { PhysicsColumns } from '@/components/physics-columns';
 import { PhysicsRange } from '@/components/physics-range';
 import { PhysicsTranslateForm } from '@/components/physics-translate-form';
-import { PhysicsVocChart } from '@/components/physics-voc-chart';
+import { PhysicsVocChart } from '@/components/lazy-charts';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import type { CurvePhysicsJson } from '@/lib/api/physics';

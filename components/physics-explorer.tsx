@@ -5,7 +5,7 @@ import { Card } from '@/components/card';
 import { PhysicsChoice } from '@/components/physics-choice';
 import { PhysicsColumns } from '@/components/physics-columns';
 import { PhysicsMaterialFigures } from '@/components/physics-material-figures';
-import { PhysicsOccupationChart } from '@/components/physics-occupation-chart';
+import { PhysicsOccupationChart } from '@/components/lazy-charts';
 import { PhysicsRange } from '@/components/physics-range';
 import { PhysicsSplitting } from '@/components/physics-splitting';
 import { PhysicsStepper } from '@/components/physics-stepper';

@@ -1,6 +1,6 @@
 import { StyleSheet, View } from 'react-native';
 import { Figure } from '@/components/figure';
-import { PhysicsNiChart } from '@/components/physics-ni-chart';
+import { PhysicsNiChart } from '@/components/lazy-charts';
 import { eV } from '@/components/physics-units';
 import { Txt } from '@/components/txt';
 import type { MaterialJson } from '@/lib/api/physics';

@@ -6,7 +6,7 @@ import { StyleSheet, View } from 'react-native';
 import { Button } from '@/components/button';
 import { Figure } from '@/components/figure';
 import { FormError } from '@/components/form-error';
-import { IvChart } from '@/components/iv-chart';
+import { IvChart } from '@/components/lazy-charts';
 import { PhysicsChoice } from '@/components/physics-choice';
 import { TextField } from '@/components/text-field';
 import { Txt } from '@/components/txt';

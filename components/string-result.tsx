@@ -2,7 +2,7 @@ import { useState } from 'react';
 import { Pressable, StyleSheet, View } from 'react-native';
 import { Card } from '@/components/card';
 import { CautionBlock } from '@/components/caution-block';
-import { StringVocChart } from '@/components/string-voc-chart';
+import { StringVocChart } from '@/components/lazy-charts';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import { MEASURED_MIN_SPAN_K } from '@/lib/schemas/strings';

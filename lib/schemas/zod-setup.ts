@@ -7,4 +7,12 @@
  */
 import { z } from 'zod';
 
-z.config({ jitless: true });
+/**
+ * Sets them; called by the web app's root layout too, because the production export's tree
+ * shaking (scripts/build-web.ts) drops an import made only for its effect.
+ */
+export function applyZodSettings(): void {
+  z.config({ jitless: true });
+}
+
+applyZodSettings();

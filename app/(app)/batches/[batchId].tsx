@@ -10,7 +10,7 @@ import { CurveCards } from '@/components/curve-cards';
 import { CurveTable } from '@/components/curve-table';
 import { Figure } from '@/components/figure';
 import { FitProgress } from '@/components/fit-progress';
-import { OverlayChart } from '@/components/overlay-chart';
+import { OverlayChart } from '@/components/lazy-charts';
 import { QueryState } from '@/components/query-state';
 import { BatchOriginals } from '@/components/original-file';
 import { ReviewPanel } from '@/components/review-panel';

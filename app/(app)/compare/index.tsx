@@ -7,7 +7,7 @@ import { Card } from '@/components/card';
 import { CautionBlock } from '@/components/caution-block';
 import { CompareByParameter, shownLabel, shownStats, shownValues } from '@/components/compare-by-parameter';
 import { CompareGrid } from '@/components/compare-grid';
-import { DistributionChart } from '@/components/distribution-chart';
+import { DistributionChart } from '@/components/lazy-charts';
 import { QueryState } from '@/components/query-state';
 import { Screen } from '@/components/screen';
 import { theme } from '@/components/theme';
