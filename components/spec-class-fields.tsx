@@ -32,9 +32,11 @@ function rowWords(r: BinRow, unit: 'w' | 'pct', basis: 'pmp_w' | 'stc_pmp_w'): s
 /**
  * Power classes of a spec: none, nameplate steps (class P when P ≤ power < P + step), or bins
  * around the batch's nameplate, a table of (label, from, to) in W or in % of the nameplate with
- * each row in words. The editor checks the rows on saving (lib/schemas/power-class-form.ts).
+ * each row in words. The editor checks the rows on saving (lib/schemas/power-class-form.ts) and
+ * lists the messages; `problems` are those messages, and the rows they name are marked.
  */
-export function SpecClassFields({ value: f, onChange }: { value: PowerClassForm; onChange: (f: PowerClassForm) => void }) {
+export function SpecClassFields({ value: f, onChange, problems = [] }: { value: PowerClassForm; onChange: (f: PowerClassForm) => void; problems?: string[] }) {
+  const faulty = new Set(problems.flatMap((m) => { const n = /^Power class row (\d+)/.exec(m); return n ? [Number(n[1]) - 1] : []; }));
   const set = (patch: Partial<PowerClassForm>) => onChange({ ...f, ...patch });
   const setRow = (i: number, patch: Partial<BinRow>) => set({ rows: f.rows.map((r, j) => (j === i ? { ...r, ...patch } : r)) });
   const unitText = f.unit === 'w' ? 'W' : '%';
@@ -81,7 +83,7 @@ export function SpecClassFields({ value: f, onChange }: { value: PowerClassForm;
           {f.rows.map((r, i) => {
             const name = rowName(i, '');
             return (
-              <View key={i} style={styles.binRow} testID={`bin-row-${i}`}>
+              <View key={i} style={[styles.binRow, faulty.has(i) && styles.binRowFaulty]} testID={`bin-row-${i}`} aria-invalid={faulty.has(i) || undefined}>
                 <View style={styles.row}>
                   <TextInput value={r.label} onChangeText={(t) => setRow(i, { label: t })} placeholder="label, e.g. A" placeholderTextColor={theme.color.muted} style={[styles.input, { width: 120 }]} accessibilityLabel={`${name} label`} testID={`bin-row-${i}-label`} />
                   <View style={styles.row}>
@@ -113,6 +115,7 @@ export function SpecClassFields({ value: f, onChange }: { value: PowerClassForm;
 const styles = StyleSheet.create({
   row: { flexDirection: 'row', flexWrap: 'wrap', gap: 6, alignItems: 'center', maxWidth: '100%' },
   binRow: { gap: 4, paddingVertical: 6, borderBottomWidth: 1, borderBottomColor: theme.color.sunken },
+  binRowFaulty: { borderLeftWidth: 3, borderLeftColor: theme.color.danger, paddingLeft: 8 },
   chip: { paddingHorizontal: 10, paddingVertical: 5, borderRadius: 999, borderWidth: 1, borderColor: theme.color.line, maxWidth: '100%' },
   chipOn: { backgroundColor: theme.color.ink, borderColor: theme.color.ink },
   input: { borderWidth: 1, borderColor: theme.color.line, borderRadius: theme.radius.m, paddingHorizontal: 10, paddingVertical: 7, fontFamily: theme.font.regular, fontSize: 14, color: theme.color.ink, backgroundColor: theme.color.surface },

@@ -110,7 +110,7 @@ export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson;
         </View>
       </View>
       <SpecRuleFields value={rule} onChange={setRule} />
-      <SpecClassFields value={classes} onChange={setClasses} />
+      <SpecClassFields value={classes} onChange={setClasses} problems={issues} />
       <View style={{ gap: 6 }}>
         <Txt variant="label">Flags that fail a device</Txt>
         <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: 6 }}>
