@@ -59,7 +59,7 @@ export function SpecClassFields({ value: f, onChange, problems = [] }: { value: 
       ) : null}
       {f.mode === 'kept' ? (
         <Txt variant="caption" testID="class-kept">
-          This version's classes {f.kept?.bins ? `are ${f.kept.bins.length} bins in absolute watts` : 'mix W and % of the nameplate'}, which this editor cannot show as a table; they are saved again unchanged. Choose another option to replace them.
+          This version's classes {f.kept?.bins ? `are ${f.kept.bins.length} ${f.kept.bins.length === 1 ? 'bin' : 'bins'} in absolute watts` : 'mix W and % of the nameplate'}, which this editor cannot show as a table; they are saved again unchanged. Choose another option to replace them.
         </Txt>
       ) : null}
       {f.mode === 'steps' ? (
