@@ -7,6 +7,7 @@ import { CautionBlock } from '@/components/caution-block';
 import { DecisionRuleNote } from '@/components/decision-rule-note';
 import { Figure } from '@/components/figure';
 import { FormError } from '@/components/form-error';
+import { NameplateBinsNote } from '@/components/nameplate-bins-note';
 import { QueryState } from '@/components/query-state';
 import { ReleaseDialog } from '@/components/release-dialog';
 import { theme } from '@/components/theme';
@@ -95,9 +96,10 @@ export function ReviewPanel({ b, me }: { b: Batch; me: Me }) {
                               </View>
                             ))
                         ) : (
-                          <Txt variant="caption">This spec sets no power classes.</Txt>
+                          <Txt variant="caption">{d.specs.find((s) => s.id === specId)?.power_classes ? 'No device has a power class.' : 'This spec sets no power classes.'}</Txt>
                         )}
                       </View>
+                      <NameplateBinsNote spec={d.specs.find((s) => s.id === specId)} nameplate_w={b.nameplate_w} />
                     </View>
                     {failing.length ? (
                       <View style={{ gap: 6 }}>

@@ -1,6 +1,7 @@
 import { useState } from 'react';
 import { Pressable, StyleSheet, TextInput, View } from 'react-native';
 import { Button } from '@/components/button';
+import { SpecClassFields } from '@/components/spec-class-fields';
 import { FormError } from '@/components/form-error';
 import { ruleFields, ruleFormOf, SpecRuleFields } from '@/components/spec-rule-fields';
 import { theme } from '@/components/theme';
@@ -13,7 +14,9 @@ import { PARAM_KEYS } from '@/lib/quality/params';
 import type { ParamKey } from '@/lib/quality/params';
 import { specIssueMessages } from '@/lib/quality/spec';
 import { specSaveSchema } from '@/lib/schemas/quality';
-import { mergeSpecForms, PERCENT_PARAMS, specFormOf } from '@/lib/schemas/spec-form';
+import { powerClassFields } from '@/lib/schemas/power-class-form';
+import type { PowerClassForm } from '@/lib/schemas/power-class-form';
+import { classFormOf, mergeSpecForms, PERCENT_PARAMS, specFormOf } from '@/lib/schemas/spec-form';
 import type { SpecForm } from '@/lib/schemas/spec-form';
 
 const fromForm = (k: ParamKey, s: string) => {
@@ -37,8 +40,8 @@ export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson;
   const [name, setName] = useState(start.name);
   const [notes, setNotes] = useState(start.notes);
   const [limits, setLimits] = useState<Record<string, { min: string; max: string }>>(start.limits);
-  const [step, setStep] = useState(start.step);
-  const [basis, setBasis] = useState<'pmp_w' | 'stc_pmp_w'>(start.basis);
+  // Power classes: none, nameplate steps or bins around the nameplate (lib/schemas/power-class-form.ts).
+  const [classes, setClasses] = useState<PowerClassForm>(classFormOf(start));
   const [flags, setFlags] = useState<string[]>(start.flags);
   // Decision rule and nameplate-relative limits (kept as typed when a newer version is reloaded).
   const [rule, setRule] = useState(() => ruleFormOf(initial));
@@ -48,13 +51,12 @@ export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson;
   /** Loads the newer version with this person's edits (against the old base) applied on top. */
   const reapply = () => {
     if (!conflict) return;
-    const mine: SpecForm = { name, notes, limits, step, basis, flags };
+    const mine: SpecForm = { name, notes, limits, flags, ...classes };
     const merged = mergeSpecForms(specFormOf(base), mine, specFormOf(conflict.newer.spec));
     setName(merged.name);
     setNotes(merged.notes);
     setLimits(merged.limits);
-    setStep(merged.step);
-    setBasis(merged.basis);
+    setClasses(classFormOf(merged));
     setFlags(merged.flags);
     setBase(conflict.newer.spec);
     save.reset();
@@ -67,19 +69,20 @@ export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson;
       const max = fromForm(k, limits[k].max);
       if (min !== undefined || max !== undefined) lim[k] = { ...(min !== undefined ? { min } : {}), ...(max !== undefined ? { max } : {}) };
     }
-    const stepW = step.trim() ? Number(step.replace(',', '.')) : undefined;
+    const pc = powerClassFields(classes);
     const input = {
       name,
       limits: lim,
-      ...(stepW !== undefined ? { power_classes: { step_w: stepW, basis } } : {}),
+      ...(pc.power_classes ? { power_classes: pc.power_classes } : {}),
       fail_flags: flags,
       ...ruleFields(rule),
       ...(notes.trim() ? { notes: notes.trim() } : {}),
       ...(base ? { family_id: base.family_id, base_version: base.version } : {}),
     };
     const r = specSaveSchema.safeParse(input);
-    if (!r.success) {
-      setIssues(specIssueMessages(r.error).map((m) => m.replace('NaN', 'not a number')));
+    // The rows' own messages come first and name the row; the schema's repeat none of them.
+    if (!r.success || pc.problems.length) {
+      setIssues([...pc.problems, ...(r.success ? [] : specIssueMessages(r.error).map((m) => m.replace('NaN', 'not a number')))]);
       return;
     }
     setIssues([]);
@@ -107,17 +110,7 @@ export function SpecEditor({ initial, onSaved, onCancel }: { initial?: SpecJson;
         </View>
       </View>
       <SpecRuleFields value={rule} onChange={setRule} />
-      <View style={{ gap: 6 }}>
-        <Txt variant="label">Power classes (nameplate steps, positive-only tolerance: class P when P ≤ power &lt; P + step)</Txt>
-        <View style={{ flexDirection: 'row', gap: 10, flexWrap: 'wrap', alignItems: 'center' }}>
-          <TextInput value={step} onChangeText={setStep} placeholder="step (W), e.g. 5" placeholderTextColor={theme.color.muted} style={[styles.input, { width: 150 }]} keyboardType="numeric" accessibilityLabel="Power class step in W" testID="class-step" />
-          {(['stc_pmp_w', 'pmp_w'] as const).map((b) => (
-            <Pressable key={b} onPress={() => setBasis(b)} style={[styles.chip, basis === b && styles.chipOn]} accessibilityRole="radio" aria-checked={basis === b}>
-              <Txt variant="caption" style={{ color: basis === b ? '#fff' : theme.color.inkSoft }}>{b === 'stc_pmp_w' ? 'on Pmax at STC' : 'on measured Pmax'}</Txt>
-            </Pressable>
-          ))}
-        </View>
-      </View>
+      <SpecClassFields value={classes} onChange={setClasses} problems={issues} />
       <View style={{ gap: 6 }}>
         <Txt variant="label">Flags that fail a device</Txt>
         <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: 6 }}>

@@ -14,7 +14,14 @@ export function SpecRuleWords({ spec: s }: { spec: SpecJson }) {
       {rel.map((t) => (
         <Txt key={t} variant="body">{t} (the batch's nameplate power).</Txt>
       ))}
-      {bins.length ? <Txt variant="body">Power classes around the nameplate: {bins.map(nameplateBinWords).join('; ')}.</Txt> : null}
+      {bins.length ? (
+        <View style={{ gap: 2 }} testID="spec-bin-words">
+          <Txt variant="body">Power classes around the batch's nameplate power ({bins.length} {bins.length === 1 ? 'class' : 'classes'}; a device outside them has no class and fails):</Txt>
+          {bins.map((b) => (
+            <Txt key={b.label} variant="body">· {nameplateBinWords(b, s.power_classes?.basis ?? 'pmp_w')}.</Txt>
+          ))}
+        </View>
+      ) : null}
     </View>
   );
 }

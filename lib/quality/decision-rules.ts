@@ -173,12 +173,18 @@ export function resolvePowerClasses(pc: PowerClasses, nameplate_w: number | null
   };
 }
 
-/** "from nameplate − 3 W to nameplate + 0 W": a bin around the nameplate in words. */
-export function nameplateBinWords(b: NameplateBin): string {
-  const side = (w: number | undefined, pct: number | undefined) => {
-    const x = w ?? pct ?? 0;
-    const sign = x < 0 ? '−' : '+';
-    return `nameplate ${sign} ${formatValue(Math.abs(x))} ${w !== undefined ? 'W' : '%'}`;
-  };
-  return `${b.label}: from ${side(b.from_w, b.from_pct)} to below ${side(b.to_w, b.to_pct)}`;
+/** "the nameplate", "nameplate + 5 W", "nameplate − 2.5 %": one end of a bin around the nameplate. */
+export function nameplateOffsetWords(x: number, unit: 'w' | 'pct'): string {
+  if (x === 0) return 'the nameplate';
+  return `nameplate ${x < 0 ? '−' : '+'} ${formatValue(Math.abs(x))} ${unit === 'w' ? 'W' : '%'}`;
+}
+
+/**
+ * "Class B: Pmax at STC at least the nameplate and below nameplate + 5 W" — a bin around the
+ * nameplate in words (from ≤ power − nameplate < to); `basis` names the classed power.
+ */
+export function nameplateBinWords(b: NameplateBin, basis?: 'pmp_w' | 'stc_pmp_w'): string {
+  const end = (w: number | undefined, pct: number | undefined) => (w !== undefined ? nameplateOffsetWords(w, 'w') : nameplateOffsetWords(pct ?? 0, 'pct'));
+  const label = /^class\b/i.test(b.label) ? b.label : `Class ${b.label}`;
+  return `${label}: ${labelOf(basis ?? 'pmp_w')} at least ${end(b.from_w, b.from_pct)} and below ${end(b.to_w, b.to_pct)}`;
 }

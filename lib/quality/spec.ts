@@ -151,6 +151,18 @@ export const powerClassesSchema = z
         if (labels.has(b.label)) ctx.addIssue({ code: 'custom', path: ['nameplate_bins', i, 'label'], message: `bin label "${b.label}" is used twice` });
         labels.add(b.label);
       });
+      // Bins written in the same unit must not overlap (from ≤ offset < to: one may start where another ends).
+      for (const unit of ['w', 'pct'] as const) {
+        const ends = pc.nameplate_bins
+          .map((b) => ({ label: b.label, from: unit === 'w' ? b.from_w : b.from_pct, to: unit === 'w' ? b.to_w : b.to_pct }))
+          .filter((b): b is { label: string; from: number; to: number } => b.from !== undefined && b.to !== undefined && b.from < b.to)
+          .sort((x, y) => x.from - y.from);
+        for (let i = 1; i < ends.length; i++) {
+          if (ends[i].from < ends[i - 1].to) {
+            ctx.addIssue({ code: 'custom', path: ['nameplate_bins'], message: `bins "${ends[i - 1].label}" and "${ends[i].label}" overlap (${ends[i - 1].to} ${unit === 'w' ? 'W' : '%'} > ${ends[i].from} ${unit === 'w' ? 'W' : '%'})` });
+          }
+        }
+      }
       return;
     }
     if (pc.bins) {
@@ -249,6 +261,7 @@ const SPEC_FIELD_LABELS: Record<string, string> = {
   highest_w: 'Highest power class (W)',
   label_prefix: 'Power class prefix',
   bins: 'Power class bins',
+  nameplate_bins: 'Power classes around the nameplate',
   family_id: 'Spec',
   base_version: 'Version edited from',
 };
@@ -265,7 +278,7 @@ export function specFieldLabel(path: readonly PropertyKey[]): string {
   }
   if (p[0] === 'limits') return 'Limits';
   if (p[0] === 'fail_flags' && p[1] !== undefined) return `Failing flag ${Number(p[1]) + 1}`;
-  if (p[0] === 'power_classes' && p[1] === 'bins' && p[2] !== undefined) return `Power class bin ${Number(p[2]) + 1}`;
+  if (p[0] === 'power_classes' && (p[1] === 'bins' || p[1] === 'nameplate_bins') && p[2] !== undefined) return `Power class bin ${Number(p[2]) + 1}`;
   const last = p[p.length - 1];
   return last === undefined ? '' : (SPEC_FIELD_LABELS[last] ?? last);
 }

@@ -5,6 +5,8 @@
 import { PARAM_KEYS } from '@/lib/quality/params';
 import type { ParamKey } from '@/lib/quality/params';
 import type { Spec } from '@/lib/quality/spec';
+import { powerClassFormOf } from '@/lib/schemas/power-class-form';
+import type { PowerClassForm } from '@/lib/schemas/power-class-form';
 
 /** Ratios are typed as % in the form and stored as fractions, like the engine. */
 export const PERCENT_PARAMS = new Set<ParamKey>(['ff', 'efficiency']);
@@ -12,12 +14,11 @@ export const PERCENT_PARAMS = new Set<ParamKey>(['ff', 'efficiency']);
 /** A stored limit as the form shows it ('' for none). */
 export const limitToForm = (k: ParamKey, v: number | undefined) => (v == null ? '' : String(PERCENT_PARAMS.has(k) ? Number((v * 100).toPrecision(6)) : v));
 
-export type SpecForm = {
+/** The editor's fields; the power classes (mode, step, basis, bin rows and their unit) as power-class-form.ts has them. */
+export type SpecForm = PowerClassForm & {
   name: string;
   notes: string;
   limits: Record<string, { min: string; max: string }>;
-  step: string;
-  basis: 'pmp_w' | 'stc_pmp_w';
   flags: string[];
 };
 
@@ -27,15 +28,21 @@ export function specFormOf(s?: Spec): SpecForm {
     name: s?.name ?? '',
     notes: s?.notes ?? '',
     limits: Object.fromEntries(PARAM_KEYS.map((k) => [k, { min: limitToForm(k, s?.limits?.[k]?.min), max: limitToForm(k, s?.limits?.[k]?.max) }])),
-    step: s?.power_classes?.step_w != null ? String(s.power_classes.step_w) : '',
-    basis: s?.power_classes?.basis ?? 'stc_pmp_w',
+    ...powerClassFormOf(s?.power_classes),
     flags: s?.fail_flags ?? ['step', 'fit-failed'],
   };
 }
 
+/** The power-class part of the editor's form. */
+export function classFormOf(f: SpecForm): PowerClassForm {
+  return { mode: f.mode, step: f.step, basis: f.basis, unit: f.unit, rows: f.rows, ...(f.kept ? { kept: f.kept } : {}) };
+}
+
 /**
  * My edits (`mine` against the `base` they started from) applied on `theirs`, field by field:
- * what I changed wins, everything else comes from theirs. Each limit bound is its own field.
+ * what I changed wins, everything else comes from theirs. Each limit bound is its own field; the
+ * bin rows and their unit are one field (rows in W make no sense under a unit of %), and so are
+ * the class mode and the classes kept as saved.
  */
 export function mergeSpecForms(base: SpecForm, mine: SpecForm, theirs: SpecForm): SpecForm {
   const pick = <T>(b: T, m: T, t: T) => (JSON.stringify(m) !== JSON.stringify(b) ? m : t);
@@ -48,6 +55,8 @@ export function mergeSpecForms(base: SpecForm, mine: SpecForm, theirs: SpecForm)
     limits,
     step: pick(base.step, mine.step, theirs.step),
     basis: pick(base.basis, mine.basis, theirs.basis),
+    ...pick({ mode: base.mode, kept: base.kept }, { mode: mine.mode, kept: mine.kept }, { mode: theirs.mode, kept: theirs.kept }),
+    ...pick({ unit: base.unit, rows: base.rows }, { unit: mine.unit, rows: mine.rows }, { unit: theirs.unit, rows: theirs.rows }),
     // The flags are a set: the order they were ticked in is no change.
     flags: JSON.stringify([...mine.flags].sort()) !== JSON.stringify([...base.flags].sort()) ? mine.flags : theirs.flags,
   };

@@ -20,6 +20,7 @@ beforeAll(async () => {
     await b.page.getByTestId('spec-name').fill('Module release');
     await b.page.getByTestId('limit-pmp_w-min').fill('300');
     await b.page.getByTestId('limit-ff-min').fill('70');
+    await b.page.getByTestId('class-mode-steps').click();
     await b.page.getByTestId('class-step').fill('5');
     await b.page.getByTestId('spec-save').click();
     await b.page.getByTestId('spec-screen').waitFor();

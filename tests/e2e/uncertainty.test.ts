@@ -2,7 +2,8 @@
  * Browser: a QA lead describes a measurement setup (a normal and a rectangular component on Pmax)
  * and writes a guard-band spec; the batch's review shows the decision rule and the devices inside
  * the guard band; the curve page shows Pmax ± its expanded uncertainty; the batch form offers the
- * setup. Demo data (invented), at phone and wide width, with screenshots.
+ * setup. A second spec classes power in bins around the batch's nameplate, written in the editor.
+ * Demo data (invented), at phone and wide width, with screenshots.
  */
 import type { Page } from 'playwright-core';
 import { layoutProblems, openBrowser, screenshot, signInThroughForm, VIEWPORTS } from '@/tests/support/browser';
@@ -95,6 +96,84 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       expect(await page.getByTestId('setup-picker').innerText()).toMatch(/Organisation default/);
       expect(await layoutProblems(page)).toEqual([]);
       await screenshot(page, `batch-setup-${vpName}`);
+    } finally {
+      await b.close();
+    }
+  });
+
+  it('power classes as bins around the nameplate: written in the editor, checked, stated in words, used by the evaluation', async () => {
+    const b = await openBrowser(viewport);
+    const page = b.page;
+    try {
+      await signInThroughForm(page, srv.url, 'quinn.mbeki@kestrel-pv.example', 'kestrel-qa-demo');
+      await page.goto(`${srv.url}/specs`, { waitUntil: 'load' });
+      await page.getByTestId('new-spec').click();
+      await page.getByTestId('spec-name').fill(`Bins ${vpName}`);
+      await page.getByTestId('class-mode-nameplate_bins').click();
+      await page.getByTestId('class-basis-measured').click();
+      await page.getByTestId('bin-unit-pct').click();
+      // Three classes in % of the batch's 330 W nameplate; the second row first overlaps the first.
+      const rows: [string, string, string][] = [['C', '-10', '-5'], ['B', '-6', '0'], ['A', '0', '5']];
+      for (const [i, [label, from, to]] of rows.entries()) {
+        if (i > 0) await page.getByTestId('bin-add').click();
+        await page.getByTestId(`bin-row-${i}-label`).fill(label);
+        await page.getByTestId(`bin-row-${i}-from`).fill(from);
+        await page.getByTestId(`bin-row-${i}-to`).fill(to);
+      }
+      expect(await page.getByTestId('bin-row-0-words').innerText()).toBe('Class C: Pmax at least nameplate − 10 % and below nameplate − 5 %.');
+      await page.getByTestId('spec-save').click();
+      expect(await page.getByTestId('spec-issues').innerText()).toMatch(/Power class row 2 \(B\) from \(%\): overlaps row 1 \(C\), which reaches −5 %/);
+      expect(await page.getByTestId('bin-row-1').getAttribute('aria-invalid')).toBe('true');
+      expect(await page.getByTestId('bin-row-0').getAttribute('aria-invalid')).toBeNull();
+      await page.getByTestId('spec-power-classes').scrollIntoViewIfNeeded();
+      expect(await layoutProblems(page)).toEqual([]);
+      await screenshot(page, `spec-bins-editor-${vpName}`);
+      await page.getByTestId('bin-row-1-from').fill('-5');
+      // A fourth row removed again.
+      await page.getByTestId('bin-add').click();
+      await page.getByTestId('bin-row-3-remove').click();
+      expect(await page.getByTestId('bin-row-3').count()).toBe(0);
+      await page.getByTestId('spec-save').click();
+      await page.getByTestId('spec-screen').waitFor();
+      const words = await page.getByTestId('spec-bin-words').innerText();
+      expect(words).toMatch(/Class B: Pmax at least nameplate − 5 % and below the nameplate/);
+      expect(words).toMatch(/Class A: Pmax at least the nameplate and below nameplate \+ 5 %/);
+      const specId = page.url().split('/specs/')[1];
+      await page.getByTestId('spec-bin-words').scrollIntoViewIfNeeded();
+      expect(await layoutProblems(page)).toEqual([]);
+      await screenshot(page, `spec-bins-view-${vpName}`);
+
+      // The next version's editor shows the rows as they were typed, in %.
+      await page.getByTestId('edit-spec').click();
+      expect(await page.getByTestId('bin-unit-pct').getAttribute('aria-checked')).toBe('true');
+      expect(await Promise.all([0, 1, 2].map((i) => page.getByTestId(`bin-row-${i}-from`).inputValue()))).toEqual(['-10', '-5', '0']);
+      expect(await page.getByTestId('bin-row-2-to').inputValue()).toBe('5');
+
+      // The evaluation classes each device by its measured Pmax against 330 W: C [297, 313.5), B [313.5, 330), A [330, 346.5) W.
+      const ev = await page.evaluate(
+        async ({ name, spec }) => {
+          const { batches } = (await (await fetch('/api/batches')).json()) as { batches: { id: string; name: string }[] };
+          const id = batches.find((x) => x.name === name)!.id;
+          return (await (await fetch(`/api/batches/${id}/evaluation?spec=${spec}`)).json()) as { devices: { power_class: string | null; values: { pmp_w?: number | null } }[]; power_class_counts: Record<string, number> };
+        },
+        { name: BATCH, spec: specId },
+      );
+      const expected = (p: number) => (p >= 297 && p < 313.5 ? 'C' : p >= 313.5 && p < 330 ? 'B' : p >= 330 && p < 346.5 ? 'A' : null);
+      expect(ev.devices.length).toBeGreaterThan(0);
+      expect(ev.devices.map((d) => d.power_class)).toEqual(ev.devices.map((d) => expected(d.values.pmp_w!)));
+      expect(ev.devices.filter((d) => d.power_class !== null).length).toBeGreaterThan(0);
+
+      // The review shows the same classes.
+      await openBatch(page);
+      await page.getByTestId(`spec-choice-Bins ${vpName}`).click();
+      await page.getByTestId('decision-rule').waitFor();
+      const shown = await page.getByTestId('power-classes').innerText();
+      for (const [cls, n] of Object.entries(ev.power_class_counts)) expect(shown).toMatch(new RegExp(`${cls}\\s*× ${n}`));
+      // The bins in watts for this batch: 330 W × (1 − 10 %) = 297 W, × 0.95 = 313.5 W, × 1.05 = 346.5 W.
+      expect(await page.getByTestId('nameplate-bins-note').innerText()).toBe("Classes around this batch's nameplate 330 W, on Pmax (from ≤ power < to): C 297–313.5 W, B 313.5–330 W, A 330–346.5 W.");
+      await page.getByTestId('power-classes').scrollIntoViewIfNeeded();
+      expect(await layoutProblems(page)).toEqual([]);
+      await screenshot(page, `review-bins-${vpName}`);
     } finally {
       await b.close();
     }

@@ -49,7 +49,7 @@ export default function SpecScreen() {
                   </View>
                 ))}
                 <Txt variant="body">
-                  Power classes: {s.power_classes?.step_w ? `${s.power_classes.step_w} W steps on ${s.power_classes.basis === 'pmp_w' ? 'measured Pmax' : 'Pmax at STC'}, positive-only tolerance` : s.power_classes?.bins ? `${s.power_classes.bins.length} explicit classes` : 'none'}
+                  Power classes: {s.power_classes?.step_w ? `${s.power_classes.step_w} W steps on ${s.power_classes.basis === 'pmp_w' ? 'measured Pmax' : 'Pmax at STC'}, positive-only tolerance` : s.power_classes?.bins ? `${s.power_classes.bins.length} explicit classes` : s.power_classes?.nameplate_bins ? `${s.power_classes.nameplate_bins.length} bins around the nameplate on ${s.power_classes.basis === 'stc_pmp_w' ? 'Pmax at STC' : 'measured Pmax'} (below)` : 'none'}
                 </Txt>
                 <Txt variant="body">Failing flags: {(s.fail_flags ?? []).join(', ') || 'none'}</Txt>
                 <SpecRuleWords spec={s} />

@@ -44,7 +44,7 @@ export default function SpecsScreen() {
                     </Txt>
                   ))}
                   <Txt variant="caption">
-                    {s.power_classes?.step_w ? `${s.power_classes.step_w} W classes · ` : ''}fails on: {(s.fail_flags ?? []).join(', ') || 'no flag'}
+                    {s.power_classes?.step_w ? `${s.power_classes.step_w} W classes · ` : s.power_classes?.nameplate_bins ? `${s.power_classes.nameplate_bins.length} classes around the nameplate · ` : ''}fails on: {(s.fail_flags ?? []).join(', ') || 'no flag'}
                   </Txt>
                 </Pressable>
               </Link>
