@@ -65,7 +65,8 @@ export function DistributionChart({
       table={{ columns: [groupWord, 'Devices', `Minimum ${label}`, 'Median', 'Maximum'], rows: data.map((g) => [g.name, String(g.y.length), sig4(Math.min(...g.y)), sig4(median(g.y)), sig4(Math.max(...g.y))]) }}
     >
       {(width) => (
-        <VictoryChart width={width} height={height} padding={PADDING} domainPadding={{ x: 30 }}>
+        // One box alone: its dots spread over a box's width either side, not over the whole chart.
+        <VictoryChart width={width} height={height} padding={PADDING} domainPadding={{ x: 30 }} {...(data.length === 1 ? { domain: { x: [0.4, 1.6] as [number, number] } } : {})}>
           <VictoryAxis
             {...AXES.x}
             style={{ ...chartStyle.axis, tickLabels: { ...chartStyle.axis.tickLabels, fontFamily: theme.font.regular } }}

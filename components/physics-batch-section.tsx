@@ -29,6 +29,13 @@ export function batchChoices(batches: readonly Batch[]): { list: Batch[]; newest
   return { list, newest: list.find((b) => (b.curve_count ?? 0) > 0) ?? list[0] ?? null };
 }
 
+/** The power of ten that brings `median` into 1…10, and its superscript form ("10⁻¹³"), so a J0 axis reads 5–10 rather than 5.0e-13. */
+export function decade(median: number): { factor: number; words: string } {
+  const e = Math.floor(Math.log10(Math.abs(median)));
+  const sup = String(e).replace('-', '⁻').replace(/\d/g, (c) => '⁰¹²³⁴⁵⁶⁷⁸⁹'[Number(c)]);
+  return { factor: 10 ** -e, words: e === 0 ? '' : `10${sup} ` };
+}
+
 /** "median 20.41 V, middle half 20.38–20.44 V" in the key's unit. */
 function spreadWords(key: string, s: Spread): string {
   if (!s) return 'none';
@@ -78,6 +85,7 @@ export function PhysicsBatchSection({ wide, batchId, onBatch }: { wide: boolean;
 function BatchPhysics({ a, wide }: { a: BatchPhysicsAnswer; wide: boolean }) {
   const s = a.summary;
   const values = (k: 'j0_25c_a_cm2' | 'implied_voc_v' | 'implied_voc_25c_v') => a.devices.map((d) => d[k]).filter((v): v is number => v != null);
+  const j0Decade = s.j0_25c_a_cm2 ? decade(s.j0_25c_a_cm2.median) : null;
   const vocSpread = s.implied_voc_25c_v ? (s.implied_voc_25c_v.p75 - s.implied_voc_25c_v.p25) * 1000 : null;
   return (
     <View style={{ gap: 14 }}>
@@ -94,7 +102,13 @@ function BatchPhysics({ a, wide }: { a: BatchPhysicsAnswer; wide: boolean }) {
         <View style={[styles.charts, wide && styles.chartsWide]}>
           {s.j0_25c_a_cm2 ? (
             <View style={styles.chart}>
-              <DistributionChart groups={[{ name: 'At 25 °C', values: values('j0_25c_a_cm2') }]} label="J0 at 25 °C (A/cm²)" groupWord="Temperature" fileName={a.batch.name} testID="batch-physics-j0-chart" />
+              <DistributionChart
+                groups={[{ name: 'At 25 °C', values: values('j0_25c_a_cm2').map((v) => v * (j0Decade?.factor ?? 1)) }]}
+                label={`J0 at 25 °C (${j0Decade?.words ?? ''}A/cm²)`}
+                groupWord="Temperature"
+                fileName={a.batch.name}
+                testID="batch-physics-j0-chart"
+              />
             </View>
           ) : null}
           <View style={styles.chart}>
@@ -133,7 +147,8 @@ function DeviceList({ a }: { a: BatchPhysicsAnswer }) {
   const list = a.devices.slice(0, rows);
   const more = a.devices.length - list.length;
   const link = (d: Device) => (
-    <Link href={`/physics?curve=${encodeURIComponent(d.curve_id)}&batch=${encodeURIComponent(a.batch.id)}`} style={styles.link} accessibilityLabel={`Physics of ${d.device_id}`} testID={`batch-physics-link-${d.device_id}`}>
+    // Pushed as a screen of its own: it opens at the top with the curve, and Back returns to this list where it was.
+    <Link push href={`/physics?curve=${encodeURIComponent(d.curve_id)}&batch=${encodeURIComponent(a.batch.id)}`} style={styles.link} accessibilityLabel={`Physics of ${d.device_id}`} testID={`batch-physics-link-${d.device_id}`}>
       {d.device_id}
     </Link>
   );

@@ -79,6 +79,9 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       expect(b.page.url()).toContain(`curve=${first.curve_id}`);
       expect(b.page.url()).toContain(`batch=${other.id}`);
       expect(await b.page.getByTestId('physics-curve').innerText()).toContain(first.device_id);
+      // …on a screen that opens at the top: the curve is in view without scrolling.
+      const box = await b.page.getByTestId('physics-curve').boundingBox();
+      expect(box && box.y + 40 < viewport.height).toBe(true);
       expect(await layoutProblems(b.page)).toEqual([]);
       await screenshot(b.page, `physics-batch-curve-${vpName}`);
     } finally {
