@@ -6,7 +6,6 @@ import { edgeAxes } from '@/lib/charts/plot-frame';
 import { sig4 } from '@/lib/charts/readout';
 
 const PADDING = { ...chartStyle.padding, bottom: 56 };
-const AXES = edgeAxes(PADDING);
 
 /**
  * Tick labels with enough digits to tell ticks apart when the values sit close together
@@ -54,7 +53,13 @@ export function DistributionChart({
   fileName?: string;
 }) {
   const data = groups.filter((g) => g.values.length > 0).map((g, k) => ({ x: k + 1, y: g.values, name: g.name }));
-  const tickOf = spanTick(data.flatMap((g) => g.y));
+  const all = data.flatMap((g) => g.y);
+  const tickOf = spanTick(all);
+  // The axis title clears the widest tick label (mono 10 px: about 6.2 px a character).
+  const widest = all.length ? Math.max(...[Math.min(...all), Math.max(...all)].map((v) => tickOf(v).length + 1)) : 4;
+  const labelGap = Math.max(chartStyle.axis.axisLabel.padding, Math.ceil(widest * 6.2) + 8);
+  const padding = { ...PADDING, left: Math.max(PADDING.left, labelGap + 22) };
+  const axes = edgeAxes(padding);
   const dots = data.flatMap((g) => g.y.map((v, j) => ({ x: g.x + (((j * 7919) % 100) / 100 - 0.5) * 0.3, y: v })));
   return (
     <ChartFrame
@@ -66,9 +71,9 @@ export function DistributionChart({
     >
       {(width) => (
         // One box alone: its dots spread over a box's width either side, not over the whole chart.
-        <VictoryChart width={width} height={height} padding={PADDING} domainPadding={{ x: 30 }} {...(data.length === 1 ? { domain: { x: [0.4, 1.6] as [number, number] } } : {})}>
+        <VictoryChart width={width} height={height} padding={padding} domainPadding={{ x: 30 }} {...(data.length === 1 ? { domain: { x: [0.4, 1.6] as [number, number] } } : {})}>
           <VictoryAxis
-            {...AXES.x}
+            {...axes.x}
             style={{ ...chartStyle.axis, tickLabels: { ...chartStyle.axis.tickLabels, fontFamily: theme.font.regular } }}
             tickValues={data.map((d) => d.x)}
             tickFormat={(t: number) => {
@@ -76,7 +81,7 @@ export function DistributionChart({
               return n.length > 18 ? n.slice(0, 17) + '…' : n;
             }}
           />
-          <VictoryAxis dependentAxis {...AXES.y} label={label} style={chartStyle.axis} tickFormat={tickOf} tickCount={5} />
+          <VictoryAxis dependentAxis {...axes.y} label={label} style={{ ...chartStyle.axis, axisLabel: { ...chartStyle.axis.axisLabel, padding: labelGap } }} tickFormat={tickOf} tickCount={5} />
           <VictoryBoxPlot
             data={data}
             boxWidth={Math.min(40, width / (data.length * 3 + 1))}
