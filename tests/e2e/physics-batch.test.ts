@@ -57,11 +57,18 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       // The median implied Voc at 25 °C as the key table shows volts (4 significant digits).
       const med = answer.summary.implied_voc_25c_v!.median;
       expect(await b.page.getByTestId('batch-physics-voc').innerText()).toContain(Number(med.toPrecision(4)).toString());
-      // The table alternative of a chart: the same boxes as numbers.
-      await b.page.getByTestId('batch-physics-devices').getByText('Devices (').waitFor();
+      await b.page.getByTestId('batch-physics-devices').getByText(`Devices (${answer.summary.total})`).waitFor();
       expect(await layoutProblems(b.page)).toEqual([]);
       await scrollTo(b.page, 'physics-batch');
       await screenshot(b.page, `physics-batch-${vpName}`);
+      await scrollTo(b.page, 'batch-physics-j0-chart');
+      expect(await layoutProblems(b.page)).toEqual([]);
+      await screenshot(b.page, `physics-batch-charts-${vpName}`);
+      // The chart's table alternative: the box as numbers.
+      await b.page.getByTestId('batch-physics-j0-chart-table-toggle').click();
+      await b.page.getByRole('table', { name: /J0 at 25 °C/ }).waitFor();
+      expect(await b.page.getByRole('table', { name: /J0 at 25 °C/ }).innerText()).toContain(String(answer.summary.total));
+      await screenshot(b.page, `physics-batch-table-${vpName}`);
       await scrollTo(b.page, 'batch-physics-devices');
       expect(await layoutProblems(b.page)).toEqual([]);
       await screenshot(b.page, `physics-batch-devices-${vpName}`);
