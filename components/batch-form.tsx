@@ -53,21 +53,22 @@ export function BatchForm({ initial, submitLabel, busy, error, onSubmit, onCance
         <View style={styles.cell}><DateField control={control} name="batch_date" label="Batch date" hint="When the lot was made or measured." testID="batch-date" /></View>
         {/* Labels from the key table, the same words the schema's messages use. */}
         <View style={styles.cell}><TextField control={control} name="cells" label={labelWithUnit('cells')} keyboardType="numeric" hint="Used when a file does not say." /></View>
-        <View style={styles.cell}><TextField control={control} name="area_cm2" label={labelWithUnit('area_cm2')} keyboardType="numeric" hint="Device area, for efficiency." /></View>
-        <View style={styles.cell}><TextField control={control} name="nameplate_w" label={labelWithUnit('nameplate_w')} keyboardType="numeric" /></View>
-        <View style={styles.cell}><TextField control={control} name="irradiance_w_m2" label={L.irradiance_w_m2} keyboardType="numeric" hint="For efficiency and STC when a file does not say." testID="batch-irradiance" /></View>
+        <View style={styles.cell}><TextField control={control} name="area_cm2" label={labelWithUnit('area_cm2')} keyboardType="numbers-and-punctuation" autoCapitalize="none" hint="Device area, for efficiency; a unit may follow (244 cm², 1.6 m²)." testID="batch-area" /></View>
+        <View style={styles.cell}><TextField control={control} name="nameplate_w" label={labelWithUnit('nameplate_w')} keyboardType="numbers-and-punctuation" autoCapitalize="none" placeholder="e.g. 400 or 0.4 kW" testID="batch-nameplate" /></View>
+        <View style={styles.cell}><TextField control={control} name="irradiance_w_m2" label={L.irradiance_w_m2} keyboardType="numbers-and-punctuation" autoCapitalize="none" hint="For efficiency and STC when a file does not say." testID="batch-irradiance" /></View>
       </View>
       <Txt variant="label">Module type's coefficients, for the STC figures</Txt>
       <Txt variant="caption">
         Curves measured within ±2 °C and ±2 % of 25 °C and 1000 W/m² keep their measured figures. Others are corrected by IEC 60891 procedure 1 with α and β (Rs is needed
-        off 1000 W/m²; κ is 0 when left empty), or by the fitted model when its own coefficients agree with β and γ. Without them such curves get no STC figures.
+        off 1000 W/m²; κ is 0 when left empty), or by the fitted model when its own coefficients agree with β and γ. Without them such curves get no STC figures. A number
+        may carry its unit (%/K, %/°C or 1/K; Ω or mΩ); the coefficients are relative, so a value in mV/K belongs to the physics page's translation, not here.
       </Txt>
       <View style={styles.grid}>
-        <View style={styles.cell}><TextField control={control} name="alpha_pct_per_k" label={L.alpha_pct_per_k} keyboardType="numeric" placeholder="e.g. 0.05" testID="batch-alpha" /></View>
-        <View style={styles.cell}><TextField control={control} name="beta_pct_per_k" label={L.beta_pct_per_k} keyboardType="numeric" placeholder="e.g. −0.29" testID="batch-beta" /></View>
-        <View style={styles.cell}><TextField control={control} name="gamma_pct_per_k" label={L.gamma_pct_per_k} keyboardType="numeric" placeholder="e.g. −0.37" testID="batch-gamma" /></View>
-        <View style={styles.cell}><TextField control={control} name="rs_ohm" label={L.rs_ohm} keyboardType="numeric" testID="batch-rs" /></View>
-        <View style={styles.cell}><TextField control={control} name="kappa_ohm_per_k" label={L.kappa_ohm_per_k} keyboardType="numeric" testID="batch-kappa" /></View>
+        <View style={styles.cell}><TextField control={control} name="alpha_pct_per_k" label={L.alpha_pct_per_k} keyboardType="numbers-and-punctuation" autoCapitalize="none" placeholder="e.g. 0.05 or 0.05 %/K" testID="batch-alpha" /></View>
+        <View style={styles.cell}><TextField control={control} name="beta_pct_per_k" label={L.beta_pct_per_k} keyboardType="numbers-and-punctuation" autoCapitalize="none" placeholder="e.g. −0.29 or −0.0029 1/K" testID="batch-beta" /></View>
+        <View style={styles.cell}><TextField control={control} name="gamma_pct_per_k" label={L.gamma_pct_per_k} keyboardType="numbers-and-punctuation" autoCapitalize="none" placeholder="e.g. −0.37 %/°C" testID="batch-gamma" /></View>
+        <View style={styles.cell}><TextField control={control} name="rs_ohm" label={L.rs_ohm} keyboardType="numbers-and-punctuation" autoCapitalize="none" placeholder="e.g. 0.35 or 350 mΩ" testID="batch-rs" /></View>
+        <View style={styles.cell}><TextField control={control} name="kappa_ohm_per_k" label={L.kappa_ohm_per_k} keyboardType="numbers-and-punctuation" autoCapitalize="none" testID="batch-kappa" /></View>
       </View>
       {setups ? <SetupPicker control={control} setups={setups} /> : null}
       <TextField control={control} name="description" label="Notes" multiline numberOfLines={3} style={{ minHeight: 70 }} />

@@ -45,7 +45,7 @@ export function PhysicsCurve({ p, wide, range }: { p: CurvePhysicsJson; wide: bo
         </View>
         <View style={{ flexDirection: 'row', gap: 8, flexWrap: 'wrap' }}>
           <Button label="Open the curve" kind="secondary" onPress={() => router.push(`/curves/${p.curve.id}`)} />
-          <Button label="Without the curve" kind="quiet" onPress={() => router.replace('/physics')} testID="physics-clear-curve" />
+          <Button label="Without the curve" kind="quiet" onPress={() => router.replace(p.curve.batch ? `/physics?batch=${encodeURIComponent(p.curve.batch.id)}` : '/physics')} testID="physics-clear-curve" />
         </View>
       </View>
     </Card>

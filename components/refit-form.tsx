@@ -51,10 +51,10 @@ export function RefitForm({ c, onDone }: { c: CurveDetail; onDone?: () => void }
         <Choice label="Double-diode ideality factors" value={(field.value ?? 'fixed') as 'fixed' | 'free'} onChange={field.onChange} options={[{ value: 'fixed', label: 'Fixed n1 = 1, n2 = 2' }, { value: 'free', label: 'Free in [1, 2] (slower)' }]} />
       )} />
       <View style={styles.grid}>
-        <View style={styles.cell}><TextField control={control} name="temp_c" label={labelWithUnit('temp_c')} keyboardType="numeric" /></View>
-        <View style={styles.cell}><TextField control={control} name="irradiance_w_m2" label={labelWithUnit('irradiance_w_m2')} keyboardType="numeric" /></View>
+        <View style={styles.cell}><TextField control={control} name="temp_c" label={labelWithUnit('temp_c')} keyboardType="numbers-and-punctuation" autoCapitalize="none" /></View>
+        <View style={styles.cell}><TextField control={control} name="irradiance_w_m2" label={labelWithUnit('irradiance_w_m2')} keyboardType="numbers-and-punctuation" autoCapitalize="none" /></View>
         <View style={styles.cell}><TextField control={control} name="cells" label={labelWithUnit('cells')} keyboardType="numeric" /></View>
-        <View style={styles.cell}><TextField control={control} name="area_cm2" label={labelWithUnit('area_cm2')} keyboardType="numeric" /></View>
+        <View style={styles.cell}><TextField control={control} name="area_cm2" label={labelWithUnit('area_cm2')} keyboardType="numbers-and-punctuation" autoCapitalize="none" /></View>
       </View>
       <FormError error={refit.error} />
       <Button label="Fit again" onPress={submit} busy={refit.isPending} testID="refit-submit" />

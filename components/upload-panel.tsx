@@ -132,10 +132,10 @@ export function UploadPanel({ batchId }: { batchId: string }) {
 
       <Txt variant="label">Override for every file (optional)</Txt>
       <View style={styles.fields}>
-        <View style={styles.field}><TextField control={control} name="temp_c" label={labelWithUnit('temp_c')} keyboardType="numeric" placeholder="from file" /></View>
-        <View style={styles.field}><TextField control={control} name="irradiance_w_m2" label={labelWithUnit('irradiance_w_m2')} keyboardType="numeric" placeholder="from file" /></View>
+        <View style={styles.field}><TextField control={control} name="temp_c" label={labelWithUnit('temp_c')} keyboardType="numbers-and-punctuation" autoCapitalize="none" placeholder="from file" /></View>
+        <View style={styles.field}><TextField control={control} name="irradiance_w_m2" label={labelWithUnit('irradiance_w_m2')} keyboardType="numbers-and-punctuation" autoCapitalize="none" placeholder="from file" /></View>
         <View style={styles.field}><TextField control={control} name="cells" label={labelWithUnit('cells')} keyboardType="numeric" placeholder="batch default" /></View>
-        <View style={styles.field}><TextField control={control} name="area_cm2" label={labelWithUnit('area_cm2')} keyboardType="numeric" placeholder="batch default" /></View>
+        <View style={styles.field}><TextField control={control} name="area_cm2" label={labelWithUnit('area_cm2')} keyboardType="numbers-and-punctuation" autoCapitalize="none" placeholder="batch default" /></View>
       </View>
 
       <Button label={busy ? 'Uploading…' : `Upload and fit ${files.length || ''}`.trim()} onPress={start} disabled={!files.length || busy || duplicates.length > 0} busy={busy} testID="start-upload" />

@@ -16,6 +16,7 @@ math.createUnit('percent', { definition: '0.01' });
 export const TARGET_UNITS = {
   voltage: 'V',
   current: 'A',
+  power: 'W',
   irradiance: 'W/m^2',
   area: 'cm^2',
   temperature: 'degC',
@@ -32,6 +33,7 @@ export type Quantity = keyof typeof TARGET_UNITS;
 export const ACCEPTED_UNITS: Record<Quantity, string> = {
   voltage: 'V, mV, kV, µV',
   current: 'A, mA, µA, nA',
+  power: 'W, kW, mW',
   irradiance: 'W/m², kW/m², mW/cm², W/cm², suns',
   area: 'cm², m², mm²',
   temperature: '°C (degC), K, °F (degF)',

@@ -102,6 +102,7 @@ export const QUANTITIES: readonly Quantity[] = [
   q('derived', 'j0_a_cm2', 'J0', 'A/cm²'),
   q('derived', 'j01_a_cm2', 'J01', 'A/cm²'),
   q('derived', 'j02_a_cm2', 'J02', 'A/cm²'),
+  q('derived', 'j0_25c_a_cm2', 'J0 at 25 °C', 'A/cm²'),
   q('derived', 'jsc_a_cm2', 'Jsc', 'A/cm²'),
   q('derived', 'cell_area_cm2', 'Cell area', 'cm²'),
   q('derived', 'stc_voc_v', 'Voc at STC', 'V'),
@@ -142,6 +143,7 @@ export const QUANTITIES: readonly Quantity[] = [
   q('carriers', 'splitting_ev', 'EFn − EFp', 'eV'),
   q('carriers', 'boltzmann_splitting_ev', 'EFn − EFp (Boltzmann)', 'eV'),
   q('carriers', 'implied_voc_v', 'Implied Voc', 'V'),
+  q('carriers', 'implied_voc_25c_v', 'Implied Voc at 25 °C', 'V'),
   q('carriers', 'energy_ev', 'Energy', 'eV'),
   q('carriers', 'eta_n', 'ηn = (EF − Ec)/kT', '', { digits: 3 }),
   q('carriers', 'eta_p', 'ηp = (Ev − EF)/kT', '', { digits: 3 }),
@@ -265,7 +267,7 @@ export const QUANTITIES: readonly Quantity[] = [
     [
       ['mean', 'Mean'], ['sd', 'Standard deviation'], ['min', 'Minimum'],
       ['max', 'Maximum'], ['p5', '5th percentile'], ['median', 'Median'],
-      ['p95', '95th percentile'], ['difference', 'Difference of the means'], ['standard_error', 'Standard error of the difference'],
+      ['p95', '95th percentile'], ['p25', 'Lower quartile'], ['p75', 'Upper quartile'], ['difference', 'Difference of the means'], ['standard_error', 'Standard error of the difference'],
       ['ci_low', 'Confidence interval, low end'], ['ci_high', 'Confidence interval, high end'], ['mean_a', 'Mean of the first batch'],
       ['mean_b', 'Mean of the other batch'], ['sd_a', 'Standard deviation of the first batch'], ['sd_b', 'Standard deviation of the other batch'],
     ] as const
@@ -289,7 +291,7 @@ export const QUANTITIES: readonly Quantity[] = [
       ['rejected', 'Files refused'], ['replaced', 'Curves replaced'], ['line', 'Line in the file'],
       ['sampled', 'Curves drawn'], ['checked', 'Originals checked'], ['deleted', 'Originals deleted'],
       ['without_cells', 'Devices without a cell count'], ['queued', 'Fits waiting'], ['fitting', 'Fits running'],
-      ['done', 'Fits finished'], ['failed', 'Fits failed'], ['cancelled', 'Fits cancelled'],
+      ['done', 'Fits finished'], ['failed', 'Fits failed'], ['cancelled', 'Fits cancelled'], ['usable', 'Devices with figures'],
     ] as const
   ).map(([k, label]) => q('record', k, label, '', count)),
 ];

@@ -3,7 +3,7 @@
  * roots (the mutations use lib/api/invalidate.ts):
  *
  *   ['batches', 'list']
- *   ['batches', 'one', id, 'detail' | 'curves' | 'overlay' | 'characterisation' | 'evaluation' | 'reviews', …]   one batch
+ *   ['batches', 'one', id, 'detail' | 'curves' | 'overlay' | 'characterisation' | 'evaluation' | 'reviews' | 'physics', …]   one batch
  *   ['batches', 'compare', { batches, specId, param }]   answers about several batches
  *   ['curves', id, 'detail' | 'physics']                 one curve (its physics follow its fits)
  *   ['physics', 'material' | 'band-diagram', …]          pure computations, never stale
@@ -33,6 +33,8 @@ export const batchKeys = {
   characterisation: (id: string, device: string) => [...batchKeys.one(id), 'characterisation', device] as const,
   /** The batch's curves by fit status (queued jobs in PostgreSQL mode). */
   fits: (id: string) => [...batchKeys.one(id), 'fits'] as const,
+  /** J0 and the implied Voc of every device of the batch (GET /api/physics/batches/:id). */
+  physics: (id: string) => [...batchKeys.one(id), 'physics'] as const,
 };
 
 export const qualityKeys = {

@@ -1,7 +1,8 @@
 /** Device physics: material figures, band diagrams, the physics of a fitted curve, translations. */
 import { keepPreviousData, useMutation, useQuery } from '@tanstack/react-query';
 import { apiFetch } from '@/lib/api/client';
-import { physicsKeys } from '@/lib/api/keys';
+import { batchKeys, physicsKeys } from '@/lib/api/keys';
+import type { BatchPhysicsAnswer } from '@/lib/schemas/batch-physics-answer';
 import type { CurveMeta, DoubleDiodeParams, Metrics, SingleDiodeParams } from '@/lib/iv/types';
 import type { BandDiagram, OccupationCurve, RecombinationShares, VocTempCoefficient } from '@/lib/physics';
 import type { BandDiagramRequest, TranslateRequest, TranslationMethod } from '@/lib/schemas/physics';
@@ -112,5 +113,16 @@ export function useCurvePhysics(id: string | null, range: { from_c: number; to_c
 export function useTranslate(id: string) {
   return useMutation({
     mutationFn: (input: TranslateRequest) => apiFetch<TranslationJson>(`/api/physics/curves/${encodeURIComponent(id)}/translate`, { body: input as Record<string, unknown> }),
+  });
+}
+
+export type { BatchPhysicsAnswer };
+
+/** J0 per cell area and the implied Voc of every device of batch `id`, with their medians and quartiles (null: no batch chosen). */
+export function useBatchPhysics(id: string | null) {
+  return useQuery({
+    queryKey: batchKeys.physics(id ?? ''),
+    queryFn: () => apiFetch<BatchPhysicsAnswer>(`/api/physics/batches/${encodeURIComponent(String(id))}`),
+    enabled: !!id,
   });
 }

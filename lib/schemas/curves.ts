@@ -2,6 +2,7 @@
 import { z } from 'zod';
 import { optNumber, optNumberOrNull } from '@/lib/schemas/numbers';
 import { optDate, optSafeText, safeText } from '@/lib/schemas/text';
+import { withUnit } from '@/lib/schemas/unit-number';
 import { labelWithUnit } from '@/lib/vocabulary';
 
 /**
@@ -87,24 +88,35 @@ export const BATCH_STC_LABELS = {
   kappa_ohm_per_k: 'κ, curve correction factor (Ω/K)',
 } as const;
 
+/**
+ * A relative temperature coefficient of the batch, %/K, also typed as "%/°C" or "1/K". An absolute
+ * one (mV/K, mA/K, W/K) is refused with the reason: turning it into %/K needs the module's own
+ * value at 25 °C, which the batch does not hold.
+ */
+function relativeCoefficient(key: 'alpha_pct_per_k' | 'beta_pct_per_k' | 'gamma_pct_per_k', rule: { min: number; max: number }, of: string) {
+  const label = BATCH_STC_LABELS[key];
+  return withUnit(optNumberOrNull(label, rule), label, 'relative_per_k', 1, `An absolute coefficient needs the module's ${of} at 25 °C to become %/K; give it in %/K`);
+}
+
 export const batchFieldsSchema = z.object({
   product_type: optSafeText('Product type', { max: 120 }),
   supplier: optSafeText('Supplier', { max: 120 }),
   line: optSafeText('Line', { max: 60 }),
   lot: optSafeText('Lot', { max: 60 }),
   batch_date: optDate('Batch date'),
-  // Named as the batch form labels them (the key table's label and unit).
+  // Named as the batch form labels them (the key table's label and unit). Numbers may carry a unit
+  // ("244 cm²", "0.4 kW", "−0.35 %/K"), converted by mathjs (lib/units.ts) to the field's unit.
   cells: optNumberOrNull(labelWithUnit('cells'), { min: 1, max: 1000, integer: true }),
-  area_cm2: optNumberOrNull(labelWithUnit('area_cm2'), { min: 0.01, max: 100000 }),
-  nameplate_w: optNumberOrNull(labelWithUnit('nameplate_w'), { min: 0.001, max: 5000 }),
+  area_cm2: withUnit(optNumberOrNull(labelWithUnit('area_cm2'), { min: 0.01, max: 100000 }), labelWithUnit('area_cm2'), 'area'),
+  nameplate_w: withUnit(optNumberOrNull(labelWithUnit('nameplate_w'), { min: 0.001, max: 5000 }), labelWithUnit('nameplate_w'), 'power'),
   // For files that do not say, and for the STC figures (lib/analysis/stc.ts): the measurement
   // irradiance and the module type's coefficients (IEC 60891 procedure 1, the model's check).
-  irradiance_w_m2: optNumberOrNull(BATCH_STC_LABELS.irradiance_w_m2, { min: 1, max: 2000 }),
-  alpha_pct_per_k: optNumberOrNull(BATCH_STC_LABELS.alpha_pct_per_k, { min: -1, max: 1 }),
-  beta_pct_per_k: optNumberOrNull(BATCH_STC_LABELS.beta_pct_per_k, { min: -2, max: 0 }),
-  gamma_pct_per_k: optNumberOrNull(BATCH_STC_LABELS.gamma_pct_per_k, { min: -2, max: 0 }),
-  rs_ohm: optNumberOrNull(BATCH_STC_LABELS.rs_ohm, { min: 0, max: 1000 }),
-  kappa_ohm_per_k: optNumberOrNull(BATCH_STC_LABELS.kappa_ohm_per_k, { min: -1, max: 1 }),
+  irradiance_w_m2: withUnit(optNumberOrNull(BATCH_STC_LABELS.irradiance_w_m2, { min: 1, max: 2000 }), BATCH_STC_LABELS.irradiance_w_m2, 'irradiance'),
+  alpha_pct_per_k: relativeCoefficient('alpha_pct_per_k', { min: -1, max: 1 }, 'Isc'),
+  beta_pct_per_k: relativeCoefficient('beta_pct_per_k', { min: -2, max: 0 }, 'Voc'),
+  gamma_pct_per_k: relativeCoefficient('gamma_pct_per_k', { min: -2, max: 0 }, 'Pmax'),
+  rs_ohm: withUnit(optNumberOrNull(BATCH_STC_LABELS.rs_ohm, { min: 0, max: 1000 }), BATCH_STC_LABELS.rs_ohm, 'resistance'),
+  kappa_ohm_per_k: withUnit(optNumberOrNull(BATCH_STC_LABELS.kappa_ohm_per_k, { min: -1, max: 1 }), BATCH_STC_LABELS.kappa_ohm_per_k, 'resistance_per_k'),
   /** The measurement setup whose uncertainty budget the figures carry (null: the organisation's default). */
   setup_id: z.string().trim().min(1, 'setup_id: choose a measurement setup').max(64).nullable().optional(),
   description: optSafeText('Description', { max: 2000, multiline: true }),
@@ -125,10 +137,10 @@ export const characterisationQuerySchema = z.object({ device: z.string().min(1).
 
 /** Form fields that may accompany an upload and override every file's metadata. */
 export const uploadOverridesSchema = z.object({
-  temp_c: optNumberOrNull(labelWithUnit('temp_c'), { min: -60, max: 150 }),
-  irradiance_w_m2: optNumberOrNull(labelWithUnit('irradiance_w_m2'), { min: 1, max: 2000 }),
+  temp_c: withUnit(optNumberOrNull(labelWithUnit('temp_c'), { min: -60, max: 150 }), labelWithUnit('temp_c'), 'temperature'),
+  irradiance_w_m2: withUnit(optNumberOrNull(labelWithUnit('irradiance_w_m2'), { min: 1, max: 2000 }), labelWithUnit('irradiance_w_m2'), 'irradiance'),
   cells: optNumberOrNull(labelWithUnit('cells'), { min: 1, max: 1000, integer: true }),
-  area_cm2: optNumberOrNull(labelWithUnit('area_cm2'), { min: 0.01, max: 100000 }),
+  area_cm2: withUnit(optNumberOrNull(labelWithUnit('area_cm2'), { min: 0.01, max: 100000 }), labelWithUnit('area_cm2'), 'area'),
   on_duplicate: z.enum(['ask', 'replace', 'keep']).optional().default('ask'),
 });
 
@@ -136,10 +148,10 @@ export const refitSchema = z.object({
   model: z.enum(['single', 'double', 'both']).optional().default('both'),
   idealities: z.enum(['fixed', 'free']).optional().default('fixed'),
   objective: z.enum(['true-current', 'implicit']).optional().default('true-current'),
-  temp_c: optNumberOrNull(labelWithUnit('temp_c'), { min: -60, max: 150 }),
-  irradiance_w_m2: optNumberOrNull(labelWithUnit('irradiance_w_m2'), { min: 1, max: 2000 }),
+  temp_c: withUnit(optNumberOrNull(labelWithUnit('temp_c'), { min: -60, max: 150 }), labelWithUnit('temp_c'), 'temperature'),
+  irradiance_w_m2: withUnit(optNumberOrNull(labelWithUnit('irradiance_w_m2'), { min: 1, max: 2000 }), labelWithUnit('irradiance_w_m2'), 'irradiance'),
   cells: optNumberOrNull(labelWithUnit('cells'), { min: 1, max: 1000, integer: true }),
-  area_cm2: optNumberOrNull(labelWithUnit('area_cm2'), { min: 0.01, max: 100000 }),
+  area_cm2: withUnit(optNumberOrNull(labelWithUnit('area_cm2'), { min: 0.01, max: 100000 }), labelWithUnit('area_cm2'), 'area'),
 });
 export type RefitInput = z.input<typeof refitSchema>;
 

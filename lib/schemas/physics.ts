@@ -7,25 +7,8 @@
 import { z } from 'zod';
 import { optNumber, reqNumber } from '@/lib/schemas/numbers';
 import { labelOf, labelWithUnit, unitOf } from '@/lib/vocabulary';
-import { parseQuantity } from '@/lib/units';
+import { withUnit } from '@/lib/schemas/unit-number';
 import type { Quantity } from '@/lib/units';
-
-/**
- * A number that may be typed with its unit ("−120 mV/K", "0.8 kW/m²", "350 mΩ"): text with a unit
- * is converted by mathjs (lib/units.ts) to the field's unit (`scale` takes lib/units' unit to the
- * field's, e.g. %/K → 1/K is 0.01); a plain number is the field's unit as before.
- */
-const withUnit = <T extends z.ZodType>(field: T, name: string, quantity: Quantity, scale = 1) =>
-  z.preprocess((v, ctx) => {
-    // Only a number followed by a unit is read by mathjs; anything else is left to the number schema's own message.
-    if (typeof v !== 'string' || !/^\s*[+\-−]?[\d.,]/.test(v) || !/[A-Za-z%°Ωµμ]/.test(v.replace(/^\s*[+\-−]?[\d.,]+[eE][+\-−]?\d+\s*$/, ''))) return v;
-    const r = parseQuantity(v, quantity);
-    if ('error' in r) {
-      ctx.addIssue({ code: 'custom', message: `${name}: ${r.error}` });
-      return z.NEVER;
-    }
-    return r.value * scale;
-  }, field);
 
 /** The unit family of each coefficient a person may type with a unit, and the factor to the field's unit. */
 const COEFFICIENT_QUANTITY: Record<string, [Quantity, number]> = {

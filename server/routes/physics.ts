@@ -7,6 +7,7 @@ import { bandDiagramSchema, curvePhysicsQuerySchema, materialQuerySchema, transl
 import type { BandDiagramRequest, TranslateRequest } from '@/lib/schemas/physics';
 import { HttpError } from '@/server/errors';
 import { callerOf, requirePermission } from '@/server/permissions';
+import { batchPhysics } from '@/server/services/batch-physics';
 import { bandDiagramOf, curvePhysics, material, translateStoredCurve } from '@/server/services/physics';
 import { validate } from '@/server/validate';
 
@@ -56,6 +57,16 @@ export function physicsRouter(db: Db): Router {
    */
   r.post('/curves/:id/translate', requirePermission('physics:use'), validate(translateSchema), async (req, res) => {
     res.json(await translateStoredCurve(db, callerOf(req).organization.id, String(req.params.id), req.body as TranslateRequest));
+  });
+
+  /**
+   * GET /api/physics/batches/:id — per curve of the batch: J0 per cell area from the current
+   * single-diode fit and the implied Voc of the device at the fit temperature and at 25 °C (J0
+   * moved by n_i(T)); the medians and quartiles of both; a curve without a usable fit is listed
+   * with the reason. Another organisation's batch is 404.
+   */
+  r.get('/batches/:id', requirePermission('physics:use'), async (req, res) => {
+    res.json(await batchPhysics(db, callerOf(req).organization.id, String(req.params.id)));
   });
 
   r.use(physicsErrors);

@@ -70,6 +70,31 @@ describe('BatchForm', () => {
     expect(onSubmit.mock.calls[0][0]).toMatchObject({ alpha_pct_per_k: 0.05, beta_pct_per_k: -0.29, gamma_pct_per_k: -0.37, rs_ohm: 0.35, kappa_ohm_per_k: null, irradiance_w_m2: 1000 });
   });
 
+  it('numbers typed with units reach onSubmit in the fields’ own units (mathjs: 1 m² = 10⁴ cm², k = 10³)', async () => {
+    const onSubmit = renderForm();
+    fireEvent.changeText(screen.getByTestId('batch-name'), 'With units');
+    fireEvent.changeText(screen.getByLabelText('Area (cm²)'), '1.661 m²');
+    fireEvent.changeText(screen.getByLabelText('Nameplate power (W)'), '0.33 kW');
+    fireEvent.changeText(screen.getByLabelText('β, Voc temperature coefficient (%/K)'), '-0.29 %/°C');
+    fireEvent.changeText(screen.getByLabelText('Rs for IEC 60891 (Ω)'), '350 mΩ');
+    submit();
+    await waitFor(() => expect(onSubmit).toHaveBeenCalledTimes(1));
+    const v = onSubmit.mock.calls[0][0];
+    expect(v.area_cm2).toBeCloseTo(16610, 9);
+    expect(v.nameplate_w).toBeCloseTo(330, 9);
+    expect(v.beta_pct_per_k).toBeCloseTo(-0.29, 12);
+    expect(v.rs_ohm).toBeCloseTo(0.35, 12);
+  });
+
+  it('a unit of another quantity is refused at its field, naming it', async () => {
+    const onSubmit = renderForm();
+    fireEvent.changeText(screen.getByTestId('batch-name'), 'Wrong unit');
+    fireEvent.changeText(screen.getByLabelText('β, Voc temperature coefficient (%/K)'), '-120 mV/K');
+    submit();
+    expect(await screen.findByText(/^β, Voc temperature coefficient \(%\/K\): "mV\/K" is not a unit of relative per kelvin/)).toBeOnTheScreen();
+    expect(onSubmit).not.toHaveBeenCalled();
+  });
+
   it('a positive β is refused, naming the field as the form labels it', async () => {
     const onSubmit = renderForm();
     fireEvent.changeText(screen.getByTestId('batch-name'), 'Coefficients');

@@ -36,6 +36,7 @@ import { evaluateBatch } from '@/lib/quality/evaluate';
 import { passFailRows } from '@/lib/quality/csv';
 import { parseSpec } from '@/lib/quality/spec';
 import * as characterisationAnswer from '@/lib/schemas/characterisation-answer';
+import * as batchPhysicsAnswer from '@/lib/schemas/batch-physics-answer';
 import * as responses from '@/lib/schemas/responses';
 import { formatNumber, formatNumberAgainst, labelOf } from '@/lib/vocabulary';
 
@@ -194,7 +195,7 @@ describe('every key that leaves the process in reasons, CSV headers and answers 
   });
 
   it('every numeric field of the API answer schemas (lib/schemas/responses.ts) is a key of the table', () => {
-    const found = Object.entries({ ...responses, ...characterisationAnswer })
+    const found = Object.entries({ ...responses, ...characterisationAnswer, ...batchPhysicsAnswer })
       .filter(([, v]) => v && typeof v === 'object' && '_zod' in (v as object))
       .flatMap(([name, schema]) => numericSchemaKeys(schema, name));
     expect(found.length).toBeGreaterThan(20);

@@ -12,6 +12,7 @@
  * answer the other organisation about its own data only.
  */
 import { characterisationAnswerSchema } from '@/lib/schemas/characterisation-answer';
+import { batchPhysicsAnswerSchema } from '@/lib/schemas/batch-physics-answer';
 import { eq } from 'drizzle-orm';
 import type { Express } from 'express';
 import { batch, invitation, member, membershipRequest, organization, spec, user } from '@/db/schema';
@@ -272,6 +273,7 @@ const ROUTES: RouteCase[] = [
     foreign: 'not_found',
     build: async () => ({ url: `/api/physics/curves/${ids.curve}/translate`, body: { method: 'model', to: { irradiance_w_m2: 1000, temp_c: 25 } } }),
   },
+  { method: 'GET', path: '/api/physics/batches/:id', need: 'physics:use', ok: 200, foreign: 'not_found', build: async () => ({ url: `/api/physics/batches/${ids.batch}` }) },
   { method: 'POST', path: '/api/strings/size', need: 'physics:use', ok: 200, foreign: 'not_found', build: async () => ({ url: '/api/strings/size', body: { batch_id: ids.batch, t_min_c: -10, v_sys_v: 1000 } }) },
 ];
 
@@ -440,6 +442,7 @@ const RESPONSE_SCHEMAS: Record<string, ZodType> = {
   'POST /api/batches/:id/fits/cancel': fitStatusSchema,
   'GET /api/batches/:id/overlay': overlaySchema,
   'GET /api/batches/:id/characterisation': characterisationAnswerSchema,
+  'GET /api/physics/batches/:id': batchPhysicsAnswerSchema,
   'GET /api/batches/:id/evaluation': evaluationSchema,
   'GET /api/batches/:id/reviews': reviewListSchema,
   'GET /api/specs': specListSchema,
