@@ -77,7 +77,13 @@ export async function fitQueuedCurves(db: Db, analyser: Analyser, curveIds: stri
     .innerJoin(batch, eq(batch.id, curve.batchId))
     .where(and(inArray(curve.id, curveIds), inArray(curve.status, ['queued', 'fitting'])));
   if (!rows.length) return;
-  await db.update(curve).set({ status: 'fitting' }).where(and(inArray(curve.id, rows.map((r) => r.id)), eq(curve.status, 'queued')));
+  const started = await db
+    .update(curve)
+    .set({ status: 'fitting' })
+    .where(and(inArray(curve.id, rows.map((r) => r.id)), eq(curve.status, 'queued')))
+    .returning({ batchId: curve.batchId });
+  // A new revision: every server process's cached answers then show `fitting`, not some `queued`.
+  for (const batchId of [...new Set(started.map((r) => r.batchId))].sort()) await touchBatch(db, batchId);
   const outcomes: Outcome[] = await Promise.all(
     rows.map(async (r) => ({
       id: r.id,
