@@ -65,7 +65,7 @@ async function openServerTestDatabase(server: string): Promise<Database> {
     try {
       if (!(await admin.query("select 1 from pg_database where datname = 'ql_template'")).rowCount) {
         await admin.query('create database ql_template');
-        await (await openPostgres(at('ql_template'), { max: 1 })).close();
+        await (await openPostgres(at('ql_template'), { max: 2 })).close();
       }
     } finally {
       await admin.query('select pg_advisory_unlock($1)', [TEMPLATE_LOCK]);
