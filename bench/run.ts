@@ -4,7 +4,8 @@
  * figures with the date and machine to artifacts/bench.json.
  * Sections: iv-fit (the engine's fits), server (upload-to-stored, comparison grid API),
  * bundle (first-load JavaScript of the web export), cli (the command line against MINPACK),
- * first-screen (a cold visit to the sign-in page in Chromium: paint, usable form, transfer).
+ * first-screen (a cold visit to the sign-in page in Chromium: paint, usable form, transfer),
+ * queue (upload-to-fitted of 1,000 curves: embedded, and on PostgreSQL with 1 and 3 worker processes).
  */
 import { mkdirSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
@@ -13,6 +14,7 @@ import { benchBundle } from '@/bench/bundle';
 import { benchCliVsMinpack } from '@/bench/cli-vs-minpack';
 import { benchFirstScreen, TARGETS as FIRST_SCREEN_TARGETS } from '@/bench/first-screen';
 import { benchIvFit } from '@/bench/iv-fit';
+import { benchQueue } from '@/bench/queue-bench';
 import { benchServer } from '@/bench/server-bench';
 import { REPO_ROOT } from '@/tests/support/server-process';
 
@@ -24,6 +26,7 @@ const sections: Section[] = [
   { name: 'bundle', run: () => benchBundle() },
   { name: 'cli', run: benchCliVsMinpack },
   { name: 'first-screen', run: benchFirstScreen },
+  { name: 'queue', run: benchQueue },
 ];
 
 /** The machine, for the record: cores, CPU model, memory, Node, and how busy it was. */
@@ -61,6 +64,16 @@ function summary(results: Record<string, Record<string, unknown>>): Line[] {
     lines.push(['sign-in, cold: first contentful paint', `${f.fcp_median_ms} ms`, `< ${FIRST_SCREEN_TARGETS.fcp_ms} ms (before: 1848)`, f.fcp_median_ms < FIRST_SCREEN_TARGETS.fcp_ms]);
     lines.push(['sign-in, cold: form usable', `${f.usable_median_ms} ms`, `< ${FIRST_SCREEN_TARGETS.usable_ms} ms (before: 2067)`, f.usable_median_ms! < FIRST_SCREEN_TARGETS.usable_ms]);
     lines.push(['sign-in, cold: transfer', `${Math.round(f.transfer_cold_bytes! / 1000)} kB`, `< ${FIRST_SCREEN_TARGETS.transfer_bytes / 1000} kB (before: 1287)`, f.transfer_cold_bytes! < FIRST_SCREEN_TARGETS.transfer_bytes]);
+  }
+  const q = results.queue as { curves?: number; embedded?: { upload_to_fitted_s: number }; postgres?: string | Record<string, { upload_to_fitted_s: number; per_worker_curves_per_s: number }> } | undefined;
+  if (q?.embedded) {
+    lines.push([`upload-to-fitted, ${q.curves} curves, embedded`, `${q.embedded.upload_to_fitted_s} s`, '< 5 s (issue 15)', q.embedded.upload_to_fitted_s < 5]);
+    if (typeof q.postgres === 'string') lines.push(['upload-to-fitted on PostgreSQL', q.postgres, '—', null]);
+    else if (q.postgres) {
+      const [one, three] = [q.postgres.workers_1, q.postgres.workers_3];
+      lines.push([`  on PostgreSQL, 1 worker`, `${one.upload_to_fitted_s} s (${one.per_worker_curves_per_s}/s per worker)`, '—', null]);
+      lines.push([`  on PostgreSQL, 3 workers`, `${three.upload_to_fitted_s} s`, '≤ embedded (issue 15)', three.upload_to_fitted_s <= q.embedded.upload_to_fitted_s]);
+    }
   }
   return lines;
 }

@@ -120,7 +120,8 @@ function unreachable(u: URL, err: unknown): DatabaseStartError {
 
 /** Opens the PostgreSQL server at `url` (checked by databaseUrl) and applies the migrations. */
 export async function openPostgres(url: URL, opts: { max?: number } = {}): Promise<Database> {
-  const pool = new Pool({ connectionString: url.href, max: opts.max ?? 10, connectionTimeoutMillis: 5000 });
+  // Two at least: the migration holds one connection for its lock and runs on another.
+  const pool = new Pool({ connectionString: url.href, max: Math.max(2, opts.max ?? 10), connectionTimeoutMillis: 5000 });
   // A connection that breaks while idle (the server restarted) must not end the process; the next query reconnects.
   pool.on('error', (err) => console.error(`[quasilevel] database connection lost: ${err.message}`));
   let client;

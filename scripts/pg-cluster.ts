@@ -7,7 +7,9 @@
  * cluster goes whatever happened.
  *
  * As a command: `npx tsx scripts/pg-cluster.ts -- <command…>` runs the command with DATABASE_URL
- * set to the new cluster and removes the cluster after it, passing on its exit status.
+ * set to the new cluster and removes the cluster after it, passing on its exit status;
+ * `npx tsx scripts/pg-cluster.ts --ensure` installs the binaries when missing (as root) and exits 0
+ * when a cluster can be started here.
  */
 import { spawn, spawnSync } from 'node:child_process';
 import { chownSync, existsSync, mkdtempSync, readdirSync, rmSync } from 'node:fs';
@@ -102,7 +104,13 @@ export async function startCluster(): Promise<Cluster> {
   }
 }
 
-if (require.main === module) {
+if (require.main === module && process.argv.includes('--ensure')) {
+  // `--ensure`: installs the server binaries when missing (root), then says whether a cluster can start here.
+  ensurePostgres();
+  const ok = clusterAvailable();
+  console.log(ok ? `[pg-cluster] PostgreSQL server binaries in ${postgresBin()}` : '[pg-cluster] no PostgreSQL cluster can be started here (server binaries or the postgres user missing)');
+  process.exit(ok ? 0 : 1);
+} else if (require.main === module) {
   const sep = process.argv.indexOf('--');
   const command = sep >= 0 ? process.argv.slice(sep + 1) : [];
   if (!command.length) {

@@ -38,6 +38,7 @@ import { outboxRouter } from '@/server/routes/outbox';
 import { batchOriginalsRouter, curveOriginalsRouter } from '@/server/routes/originals';
 import { usersRouter } from '@/server/routes/users';
 import type { Analyser } from '@/server/services/analysis-pool';
+import type { CallerSignals } from '@/server/services/cluster-signals';
 import type { ObjectStore } from '@/server/storage';
 import { stationKeys } from '@/server/station-keys';
 import { receiveUploads } from '@/server/upload-receiver';
@@ -54,6 +55,8 @@ export type AppDeps = {
   analyser?: Analyser;
   /** How long a resolved caller is reused, ms (the server: 5000; default 0, every request asks the database). */
   sessionCacheMs?: number;
+  /** Several server processes on one database: clears of the resolved callers are told to the others (services/cluster-signals.ts). */
+  callerSignals?: Pick<CallerSignals, 'publish' | 'subscribe'>;
   /** Folder for uploads on their way in (the server: `<data>/tmp/uploads`; default a folder per process in the system's temp folder). */
   uploadDir?: string;
   /** Caps of one upload (default UPLOAD_LIMITS); tests lower them. */
@@ -103,13 +106,21 @@ export function createApp(deps: AppDeps): Express {
   app.use('/api', stationKeys(auth, db));
 
   const callers = new CallerCache<Account>(deps.sessionCacheMs ?? 0);
+  deps.callerSignals?.subscribe(() => callers.clear());
+  // What clears this process's callers clears the other server processes' too.
+  const clearEverywhere = {
+    clear: () => {
+      callers.clear();
+      deps.callerSignals?.publish();
+    },
+  };
   const authHandler = toNodeHandler(auth);
   // Keys are made and revoked through /api/stations only (named, per organisation, admins).
   app.use('/api/auth/api-key', () => {
     throw new HttpError(403, 'forbidden', 'Station keys are managed on the Stations screen (/api/stations).');
   });
   app.use('/api/auth/organization', guardOrganizationEndpoints(auth, db, callers));
-  app.all('/api/auth/{*splat}', authBodyLimit(), invalidatesCallers(callers), (req, res) => authHandler(req, res));
+  app.all('/api/auth/{*splat}', authBodyLimit(), invalidatesCallers(clearEverywhere), (req, res) => authHandler(req, res));
 
   app.use('/api', express.json({ limit: JSON_BODY_LIMIT }));
   app.use('/api/health', healthRouter());
@@ -119,9 +130,9 @@ export function createApp(deps: AppDeps): Express {
   const baseUrl = String(auth.options.baseURL ?? '').replace(/\/$/, '');
   app.use('/api/me', requireAccount(auth, db, callers), meRouter(db));
   // Membership changes clear the resolved callers, like role changes.
-  app.use('/api/users', invalidatesCallers(callers), session, usersRouter(db));
-  app.use('/api/invitations', invalidatesCallers(callers), session, invitationsRouter(db, deps.mailer, baseUrl));
-  app.use('/api/membership-requests', invalidatesCallers(callers), session, membershipRequestsRouter(db, deps.mailer, baseUrl));
+  app.use('/api/users', invalidatesCallers(clearEverywhere), session, usersRouter(db));
+  app.use('/api/invitations', invalidatesCallers(clearEverywhere), session, invitationsRouter(db, deps.mailer, baseUrl));
+  app.use('/api/membership-requests', invalidatesCallers(clearEverywhere), session, membershipRequestsRouter(db, deps.mailer, baseUrl));
   app.use('/api/organization', session, organizationRouter(db));
   app.use('/api/outbox', session, outboxRouter(db));
   const store = deps.store ?? null;

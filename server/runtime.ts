@@ -22,6 +22,8 @@ import { openStorage } from '@/server/storage';
 import type { Storage } from '@/server/storage';
 import type { Analyser } from '@/server/services/analysis-pool';
 import { startQueue, workAnalysisJobs } from '@/server/services/analysis-jobs';
+import { callerSignals } from '@/server/services/cluster-signals';
+import type { CallerSignals } from '@/server/services/cluster-signals';
 
 export type RuntimeOptions = {
   dataDir: string;
@@ -32,9 +34,14 @@ export type RuntimeOptions = {
   seed?: boolean;
 };
 
-/** The auth secret: BETTER_AUTH_SECRET, else one generated once and kept in the data folder. */
-function authSecret(dataDir: string): string {
+/**
+ * The auth secret: BETTER_AUTH_SECRET, else (embedded database only) one generated once and kept
+ * in the data folder. With DATABASE_URL every server process must sign sessions with one secret,
+ * so a folder's own would make each process refuse the others' sessions: the variable is required.
+ */
+function authSecret(dataDir: string, shared: boolean): string {
   if (process.env.BETTER_AUTH_SECRET) return process.env.BETTER_AUTH_SECRET;
+  if (shared) throw new StartError('BETTER_AUTH_SECRET is not set. With DATABASE_URL every server process must sign sessions with the same secret: set BETTER_AUTH_SECRET to one long random value (for example `openssl rand -hex 32`) for all of them.');
   const file = path.join(dataDir, 'auth-secret');
   if (existsSync(file)) return readFileSync(file, 'utf8').trim();
   const secret = randomBytes(32).toString('hex');
@@ -42,8 +49,11 @@ function authSecret(dataDir: string): string {
   return secret;
 }
 
-/** How long the server reuses a resolved session and role (see CallerCache). */
-const SESSION_CACHE_MS = 5000;
+/** How long the server reuses a resolved session and role, ms (see CallerCache): QUASILEVEL_SESSION_CACHE_MS, default 5000. */
+function sessionCacheMs(): number {
+  const n = Number(process.env.QUASILEVEL_SESSION_CACHE_MS ?? 5000);
+  return Number.isFinite(n) && n >= 0 ? n : 5000;
+}
 
 /**
  * Origins whose pages may change data: PUBLIC_URL's, the server's own loopback addresses on its
@@ -132,7 +142,7 @@ export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Serv
       db: database.db,
       mailer,
       baseURL: url,
-      secret: authSecret(opts.dataDir),
+      secret: authSecret(opts.dataDir, database.kind === 'postgres'),
       trustedOrigins: origins,
       signInPerMinute: Number(process.env.QUASILEVEL_SIGNIN_PER_MINUTE ?? 10),
     });
@@ -144,14 +154,18 @@ export async function startRuntime(opts: RuntimeOptions): Promise<{ server: Serv
     undo.unshift(() => threads.close());
     // PostgreSQL mode: uploads queue their fits (pg-boss); this process works jobs too unless QUASILEVEL_WORKER=0.
     let analyser: Analyser = threads;
+    let signals: CallerSignals | undefined;
     if (database.kind === 'postgres') {
+      // Sign-outs and role changes reach the other server processes' resolved callers.
+      signals = await callerSignals(database.url!);
+      undo.unshift(() => signals!.stop());
       const queue = await startQueue(database.url!);
       undo.unshift(() => queue.boss.stop({ graceful: false, wait: true }));
       analyser = { ...threads, queue } as Analyser;
       if (process.env.QUASILEVEL_WORKER !== '0') await workAnalysisJobs(database.db, queue, threads);
     }
     const seeded = opts.seed === false ? false : await seedDemo(database.db, auth);
-    const app = createApp({ db: database.db, auth, mailer, webDir: opts.webDir, analyser, sessionCacheMs: SESSION_CACHE_MS, uploadDir, trustedOrigins: origins, store: storage.store });
+    const app = createApp({ db: database.db, auth, mailer, webDir: opts.webDir, analyser, sessionCacheMs: sessionCacheMs(), callerSignals: signals, uploadDir, trustedOrigins: origins, store: storage.store });
     const server = await listen(app, opts.port, host);
     let stopping: Promise<void> | null = null;
     const stop = () =>

@@ -77,7 +77,13 @@ export async function fitQueuedCurves(db: Db, analyser: Analyser, curveIds: stri
     .innerJoin(batch, eq(batch.id, curve.batchId))
     .where(and(inArray(curve.id, curveIds), inArray(curve.status, ['queued', 'fitting'])));
   if (!rows.length) return;
-  await db.update(curve).set({ status: 'fitting' }).where(and(inArray(curve.id, rows.map((r) => r.id)), eq(curve.status, 'queued')));
+  const started = await db
+    .update(curve)
+    .set({ status: 'fitting' })
+    .where(and(inArray(curve.id, rows.map((r) => r.id)), eq(curve.status, 'queued')))
+    .returning({ batchId: curve.batchId });
+  // A new revision: every server process's cached answers then show `fitting`, not some `queued`.
+  for (const batchId of [...new Set(started.map((r) => r.batchId))].sort()) await touchBatch(db, batchId);
   const outcomes: Outcome[] = await Promise.all(
     rows.map(async (r) => ({
       id: r.id,
@@ -126,11 +132,16 @@ export async function workAnalysisJobs(db: Db, queue: AnalysisQueue, analyser: A
   const stranded = await db.select({ id: curve.id }).from(curve).where(inArray(curve.status, ['queued', 'fitting']));
   await queue.enqueue(stranded.map((r) => r.id), stranded.length);
   const loops = opts.loops ?? Math.max(1, analyser.threads);
+  const perFetch = opts.perFetch ?? 4;
   for (let k = 0; k < loops; k++) {
-    await queue.boss.work<{ curve_id: string }>(ANALYSIS_QUEUE, { batchSize: opts.perFetch ?? 4, pollingIntervalSeconds: 0.5 }, async (jobs) => {
+    let id: string | undefined;
+    id = await queue.boss.work<{ curve_id: string }>(ANALYSIS_QUEUE, { batchSize: perFetch, pollingIntervalSeconds: 0.5 }, async (jobs) => {
       const t = Date.now();
       await fitQueuedCurves(db, analyser, jobs.map((j) => j.data.curve_id));
       if (process.env.QUASILEVEL_DEBUG_JOBS) console.log(`[jobs] ${process.pid} fitted ${jobs.length} in ${Date.now() - t} ms`);
+      // A full fetch means more are waiting: fetch again at once. (pg-boss otherwise waits out the
+      // polling interval after every fetch, which held a worker to perFetch jobs per 0.5 s.)
+      if (jobs.length === perFetch && id) queue.boss.notifyWorker(id);
     });
   }
 }

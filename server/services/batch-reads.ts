@@ -55,8 +55,9 @@ export function batchReads(db: Db, answers = new AnswerCache()) {
         else changed.push(b);
       }
       if (changed.length) {
+        // The mean summed exactly (numeric): a float sum's last digits depend on the order the rows come in.
         const fresh = await db
-          .select({ id: curve.batchId, curves: sql<number>`count(*)::int`, meanPmp: sql<number | null>`avg(${curve.pmp_w})` })
+          .select({ id: curve.batchId, curves: sql<number>`count(*)::int`, meanPmp: sql<number | null>`avg(${curve.pmp_w}::numeric)::float8` })
           .from(curve)
           .where(inArray(curve.batchId, changed.map((b) => b.id)))
           .groupBy(curve.batchId);
@@ -79,7 +80,9 @@ export function batchReads(db: Db, answers = new AnswerCache()) {
       const rows = await db
         .select({ isc: curve.isc_a, voc: curve.voc_v, pmp: curve.pmp_w, ff: curve.ff, n: curve.n, rs: curve.rs_ohm, rsh: curve.rsh_ohm, stc: curve.stc_pmp_w, flags: curve.flagCodes })
         .from(curve)
-        .where(eq(curve.batchId, b.id));
+        .where(eq(curve.batchId, b.id))
+        // In one order: a floating-point sum depends on it, and every server process must give the same digits.
+        .orderBy(asc(curve.id));
       const pick = (k: keyof (typeof rows)[number]) => rows.map((x) => x[k]).filter((v): v is number => typeof v === 'number' && Number.isFinite(v));
       const stats: Record<string, ReturnType<typeof describeValues> | null> = {};
       for (const [key, col] of [['isc_a', 'isc'], ['voc_v', 'voc'], ['pmp_w', 'pmp'], ['ff', 'ff'], ['n', 'n'], ['rs_ohm', 'rs'], ['rsh_ohm', 'rsh'], ['stc_pmp_w', 'stc']] as const) {

@@ -1,0 +1,149 @@
+/**
+ * Upload-to-fitted past one machine (issue 15): one multipart upload of 1,000 synthetic curves
+ * (100 with --quick) through a real server process, timed from the start of the request until
+ * every curve is fitted and stored (status `done`, counted in the database):
+ *  - embedded: `server/index.ts` on PGlite; the fits run in the request on the server's threads;
+ *  - PostgreSQL, 1 and 3 workers: a throwaway cluster (scripts/pg-cluster.ts), the server with
+ *    QUASILEVEL_WORKER=0 and `server/worker.ts` processes of one analysis thread each taking the
+ *    queued fits. Skipped with a message where no PostgreSQL server binaries are installed.
+ * Also what grows with what: rows written per curve (every table, counted before and after) and
+ * the database's size per 10,000 curves (pg_database_size; the PGlite folder on disk).
+ */
+import { spawn } from 'node:child_process';
+import type { ChildProcess } from 'node:child_process';
+import { readdirSync, statSync } from 'node:fs';
+import path from 'node:path';
+import { Client } from 'pg';
+import { createBatch, signIn, uploadFiles } from '@/bench/api-client';
+import { round } from '@/bench/stats';
+import { syntheticFiles } from '@/bench/synthetic-files';
+import { clusterAvailable, startCluster } from '@/scripts/pg-cluster';
+import { REPO_ROOT, startServerProcess } from '@/tests/support/server-process';
+
+const ENGINEER = { email: 'tomas.reyes@kestrel-pv.example', password: 'kestrel-test-demo' }; // sample-data/demo-accounts.json
+
+function folderBytes(dir: string): number {
+  let n = 0;
+  for (const e of readdirSync(dir, { withFileTypes: true })) {
+    const p = path.join(dir, e.name);
+    n += e.isDirectory() ? folderBytes(p) : statSync(p).size;
+  }
+  return n;
+}
+
+async function query<T>(url: string, text: string, params: unknown[] = []): Promise<T[]> {
+  const c = new Client({ connectionString: url });
+  await c.connect();
+  try {
+    return (await c.query(text, params)).rows as T[];
+  } finally {
+    await c.end();
+  }
+}
+
+/** Rows in every table of the database (pgboss's too), by schema.table. */
+async function rowCounts(url: string): Promise<Record<string, number>> {
+  // Partitioned tables once (pg-boss keeps each queue's jobs in a partition of pgboss.job).
+  const tables = await query<{ t: string }>(
+    url,
+    "select quote_ident(n.nspname) || '.' || quote_ident(c.relname) as t from pg_class c join pg_namespace n on n.oid = c.relnamespace where c.relkind in ('r', 'p') and not c.relispartition and n.nspname in ('public', 'pgboss')",
+  );
+  const out: Record<string, number> = {};
+  for (const { t } of tables) out[t] = (await query<{ n: number }>(url, `select count(*)::int as n from ${t}`))[0].n;
+  return out;
+}
+
+function startWorker(env: Record<string, string>): Promise<ChildProcess> {
+  return new Promise((resolve, reject) => {
+    const w = spawn(process.execPath, ['--import', 'tsx', 'server/worker.ts'], { cwd: REPO_ROOT, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+    let out = '';
+    w.stdout!.on('data', (d: Buffer) => {
+      out += d;
+      if (/fitting jobs from/.test(out)) resolve(w);
+    });
+    w.stderr!.on('data', (d: Buffer) => (out += d));
+    w.once('exit', (code) => reject(new Error(`worker exited (${code}):\n${out}`)));
+  });
+}
+
+type Run = { curves: number; upload_answer_s: number; upload_to_fitted_s: number; curves_per_s: number };
+
+/** One upload of `files` through the server at `url`; resolves when `fitted()` reaches the count. */
+async function timedUpload(url: string, curves: number, fitted: (batchId: string) => Promise<number>): Promise<Run & { batchId: string }> {
+  const s = await signIn(url, ENGINEER.email, ENGINEER.password);
+  const batchId = await createBatch(s, { name: `Queue bench ${curves}`, description: 'npm run bench' });
+  const files = syntheticFiles(curves, { prefix: 'QBENCH', seed: 5_015 });
+  const t0 = performance.now();
+  const up = await uploadFiles(s, batchId, files);
+  const answered = performance.now() - t0;
+  if (up.status !== 201 || !('accepted' in up.body) || up.body.accepted !== curves) throw new Error(`queue bench upload: ${up.status} ${JSON.stringify(up.body).slice(0, 300)}`);
+  while ((await fitted(batchId)) < curves) await new Promise((r) => setTimeout(r, 50));
+  const total = performance.now() - t0;
+  return { batchId, curves, upload_answer_s: round(answered / 1000), upload_to_fitted_s: round(total / 1000), curves_per_s: round(curves / (total / 1000)) };
+}
+
+export async function benchQueue(opts: { quick?: boolean } = {}): Promise<Record<string, unknown>> {
+  const curves = opts.quick ? 100 : 1000;
+  const out: Record<string, unknown> = { curves };
+  console.log(`queue — upload-to-fitted, ${curves} curves, one multipart request, through server processes`);
+
+  // Embedded: the fits in the request; done when the answer comes.
+  {
+    const server = await startServerProcess({ timeoutMs: 180_000 });
+    try {
+      const dbDir = path.join(server.dataDir, 'db');
+      const before = folderBytes(dbDir);
+      const r = await timedUpload(server.url, curves, async () => curves);
+      const grown = folderBytes(dbDir) - before;
+      out.embedded = { ...r, batchId: undefined, db_folder_growth_MB_per_10000_curves: round(((grown / curves) * 10_000) / 1e6) };
+      console.log(`  embedded (PGlite, fits in the request)      ${r.upload_to_fitted_s} s  (${r.curves_per_s} curves/s; data folder grows ${(out.embedded as { db_folder_growth_MB_per_10000_curves: number }).db_folder_growth_MB_per_10000_curves} MB per 10,000 curves)`);
+    } finally {
+      await server.stop();
+    }
+  }
+
+  if (!clusterAvailable()) {
+    const why = 'skipped: no PostgreSQL server binaries here (/usr/lib/postgresql/<version>/bin; apt-get install postgresql)';
+    console.log(`  PostgreSQL: ${why}`);
+    out.postgres = why;
+    return out;
+  }
+
+  const cluster = await startCluster();
+  const env = { DATABASE_URL: cluster.url, BETTER_AUTH_SECRET: 'queue-bench-secret-0123456789abcdef', QUASILEVEL_WORKER: '0', QUASILEVEL_ANALYSIS_THREADS: '1' };
+  const workers: ChildProcess[] = [];
+  const server = await startServerProcess({ env, timeoutMs: 180_000 }).catch((err) => {
+    cluster.stop();
+    throw err;
+  });
+  try {
+    const done = async (batchId: string) => (await query<{ n: number }>(cluster.url, "select count(*)::int as n from curve where batch_id = $1 and status = 'done'", [batchId]))[0].n;
+    const runs: Record<string, unknown> = {};
+    let growth: Record<string, unknown> = {};
+    for (const n of [1, 3]) {
+      while (workers.length < n) workers.push(await startWorker(env));
+      const rowsBefore = await rowCounts(cluster.url);
+      const [{ size: sizeBefore }] = await query<{ size: string }>(cluster.url, 'select pg_database_size(current_database())::text as size');
+      const r = await timedUpload(server.url, curves, done);
+      runs[`workers_${n}`] = { ...r, batchId: undefined, per_worker_curves_per_s: round(r.curves_per_s / n) };
+      console.log(`  PostgreSQL, ${n} worker process(es) × 1 thread     ${r.upload_to_fitted_s} s  (${r.curves_per_s} curves/s, ${round(r.curves_per_s / n)} per worker; upload answered in ${r.upload_answer_s} s)`);
+      if (n === 1) {
+        const rowsAfter = await rowCounts(cluster.url);
+        const [{ size: sizeAfter }] = await query<{ size: string }>(cluster.url, 'select pg_database_size(current_database())::text as size');
+        const perCurve: Record<string, number> = {};
+        // Tables that grow with the curves (not the one batch and the one sign-in of the run).
+        for (const [t, k] of Object.entries(rowsAfter)) if (k - (rowsBefore[t] ?? 0) >= curves / 100) perCurve[t] = round((k - (rowsBefore[t] ?? 0)) / curves);
+        growth = { rows_per_curve: perCurve, db_size_MB_per_10000_curves: round((((Number(sizeAfter) - Number(sizeBefore)) / curves) * 10_000) / 1e6) };
+        console.log(`  rows per curve: ${Object.entries(perCurve).map(([t, k]) => `${t} ${k}`).join(', ')}`);
+        console.log(`  database size per 10,000 curves: ${growth.db_size_MB_per_10000_curves} MB`);
+      }
+    }
+    out.postgres = { mode: 'server with QUASILEVEL_WORKER=0, worker processes of 1 analysis thread, all on this machine', ...runs, ...growth };
+  } finally {
+    for (const w of workers) w.kill('SIGTERM');
+    await Promise.all(workers.map((w) => (w.exitCode === null && w.signalCode === null ? new Promise((r) => w.once('exit', r)) : null)));
+    await server.stop();
+    cluster.stop();
+  }
+  return out;
+}
