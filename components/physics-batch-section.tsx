@@ -3,7 +3,7 @@ import { useMemo, useState } from 'react';
 import { StyleSheet, useWindowDimensions, View } from 'react-native';
 import { Button } from '@/components/button';
 import { Card } from '@/components/card';
-import { DistributionChart } from '@/components/distribution-chart';
+import { DistributionChart } from '@/components/lazy-charts';
 import { Figure } from '@/components/figure';
 import { PhysicsChoice } from '@/components/physics-choice';
 import { QueryState } from '@/components/query-state';
