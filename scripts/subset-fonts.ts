@@ -3,12 +3,12 @@
  * Quasilevel sets (harfbuzz's hb-subset through the subset-font package) and written to
  * assets/fonts/web/. The full faces stay in assets/fonts/ for the release report PDF, whose text
  * (people's names, batch names) has no fallback font. A browser draws a character the subset lacks
- * in its own fallback face, so the web subset keeps Latin-1, Latin Extended-A, Greek and the
- * symbol blocks the screens use (units, arrows, comparisons, sub- and superscripts), and
- * tests/lib/web-fonts.test.ts checks that every character written in app/, components/ and lib/ is
- * in it. Run again after adding a face or a symbol from a new block; the output is committed.
+ * in its own fallback face, so the web subset keeps Latin-1, Latin Extended-A (names), the Greek
+ * letters, sub- and superscripts, and every character written in app/, components/ and lib/
+ * (units, arrows, comparisons, chart marks); tests/lib/web-fonts.test.ts fails when a source
+ * writes one the subsets lack: run `npm run fonts` again then. The output is committed.
  */
-import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { mkdirSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import subsetFont from 'subset-font';
 
@@ -17,26 +17,41 @@ export const FONT_DIR = path.join(ROOT, 'assets', 'fonts');
 export const WEB_FONT_DIR = path.join(FONT_DIR, 'web');
 export const WEB_FACES = ['IBMPlexSans_400Regular', 'IBMPlexSans_500Medium', 'IBMPlexSans_600SemiBold', 'IBMPlexMono_400Regular', 'IBMPlexMono_600SemiBold'];
 
-/** Unicode ranges kept (inclusive). */
+/** Unicode ranges kept whole (inclusive): letters people's and batch names use, and figures' marks. */
 export const KEPT_RANGES: [number, number][] = [
   [0x20, 0x7e], // Basic Latin
   [0xa0, 0x17f], // Latin-1 Supplement, Latin Extended-A (names)
-  [0x300, 0x30f], // combining accents (x̄)
-  [0x370, 0x3ff], // Greek (α β γ κ µ Ω, Δ)
-  [0x1d40, 0x1d40], // ᵀ
-  [0x2000, 0x206f], // General Punctuation (– — ‘ ’ … ′ ‹ ›)
+  [0x391, 0x3c9], // Greek capitals and small letters (α β γ κ µ Ω, Δ)
   [0x2070, 0x209f], // superscripts and subscripts
-  [0x2190, 0x21ff], // arrows
-  [0x2200, 0x22ff], // mathematical operators (− ≤ ≥ ≈ ∝ √)
-  [0x2300, 0x23ff], // miscellaneous technical (⌈ ⌉ ⌊ ⌋)
-  [0x2500, 0x257f], // box drawing (legend strokes)
-  [0x25a0, 0x25ff], // geometric shapes (▲ ▼ ◆ ● ○)
-  [0x2713, 0x2715], // ✓ ✕
 ];
+
+function sources(dir: string, out: string[] = []): string[] {
+  for (const name of readdirSync(dir)) {
+    const full = path.join(dir, name);
+    if (statSync(full).isDirectory()) sources(full, out);
+    else if (/\.tsx?$/.test(name)) out.push(full);
+  }
+  return out;
+}
+
+/** Characters beyond ASCII written in the screens' sources (app/, components/, lib/), each with a file it is in. */
+export function writtenCharacters(): Map<number, string> {
+  const found = new Map<number, string>();
+  for (const dir of ['app', 'components', 'lib']) {
+    for (const file of sources(path.join(ROOT, dir))) {
+      for (const ch of readFileSync(file, 'utf8')) {
+        const cp = ch.codePointAt(0)!;
+        if (cp > 0x7e && !found.has(cp)) found.set(cp, path.relative(ROOT, file));
+      }
+    }
+  }
+  return found;
+}
 
 function keptText(): string {
   let text = '';
   for (const [a, b] of KEPT_RANGES) for (let c = a; c <= b; c++) text += String.fromCodePoint(c);
+  for (const cp of writtenCharacters().keys()) text += String.fromCodePoint(cp);
   return text;
 }
 
