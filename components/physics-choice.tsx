@@ -31,7 +31,7 @@ export function PhysicsChoice<T extends string>({
               style={[styles.opt, on && styles.optOn]}
               testID={testID ? `${testID}-${o.value}` : undefined}
             >
-              <Txt variant="label" style={{ color: on ? '#fff' : theme.color.inkSoft }}>{o.label}</Txt>
+              <Txt variant="label" style={{ color: on ? '#fff' : theme.color.inkSoft, flexShrink: 1 }}>{o.label}</Txt>
             </Pressable>
           );
         })}
@@ -42,6 +42,7 @@ export function PhysicsChoice<T extends string>({
 
 const styles = StyleSheet.create({
   row: { flexDirection: 'row', flexWrap: 'wrap', gap: 6 },
-  opt: { minHeight: 36, justifyContent: 'center', paddingHorizontal: 12, borderRadius: 999, borderWidth: 1, borderColor: theme.color.line, backgroundColor: theme.color.surface },
+  // A long choice (a batch name) wraps inside its chip instead of running off a phone's screen.
+  opt: { maxWidth: '100%', minHeight: 36, justifyContent: 'center', paddingHorizontal: 12, borderRadius: 999, borderWidth: 1, borderColor: theme.color.line, backgroundColor: theme.color.surface },
   optOn: { backgroundColor: theme.color.ink, borderColor: theme.color.ink },
 });
