@@ -12,7 +12,7 @@ const path = require('node:path');
 const ZOD_LOCALES_SHIM = path.join(__dirname, 'scripts', 'web-shims', 'zod-locales.js');
 const resolveRequest = config.resolver.resolveRequest;
 config.resolver.resolveRequest = (context, moduleName, platform) => {
-  if (platform === 'web' && moduleName === '../locales/index.js' && /[\\/]node_modules[\\/]zod[\\/]v4[\\/](classic|core)[\\/]/.test(context.originModulePath)) {
+  if (platform === 'web' && /^\.\.\/locales\/index\.js$/.test(moduleName) && /[\\/]node_modules[\\/]zod[\\/]v4[\\/](classic|core)[\\/]/.test(context.originModulePath)) {
     return { type: 'sourceFile', filePath: ZOD_LOCALES_SHIM };
   }
   return resolveRequest ? resolveRequest(context, moduleName, platform) : context.resolveRequest(context, moduleName, platform);
