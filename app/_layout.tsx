@@ -53,10 +53,12 @@ export default function RootLayout() {
     'PlexSans-SemiBold': require('@/assets/fonts/web/IBMPlexSans_600SemiBold.ttf'),
   });
 
-  if (!fontsLoaded && !fontError) return null;
-  return (
-    <QueryClientProvider client={queryClient}>
-      <Routes />
-    </QueryClientProvider>
-  );
+  // The session is asked for while the faces load, so the first screen does not wait for one and then the other.
+  return <QueryClientProvider client={queryClient}>{fontsLoaded || fontError ? <Routes /> : <SessionEarly />}</QueryClientProvider>;
+}
+
+/** Starts the session query (the answer waits in the query cache for Routes); draws nothing. */
+function SessionEarly() {
+  useAccount();
+  return null;
 }

@@ -27,6 +27,11 @@ beforeAll(() => {
   for (const f of ['IBMPlexSans_400Regular', 'IBMPlexSans_500Medium', 'IBMPlexSans_600SemiBold', 'IBMPlexMono_400Regular']) {
     writeFileSync(path.join(dir, 'assets', 'assets', 'fonts', 'web', `${f}.${HASH}.ttf`), 'not a real font');
   }
+  // Route bundles as the export names them: two layouts, the sign-in screen, two screens named index.
+  const other = 'fedcba9876543210fedcba9876543210';
+  for (const f of [`_layout-${HASH}.js`, `_layout-${other}.js`, `sign-in-${HASH}.js`, `index-${HASH}.js`, `index-${other}.js`]) {
+    writeFileSync(path.join(dir, '_expo', 'static', 'js', 'web', f), '/* a route */');
+  }
   writeFileSync(path.join(dir, 'favicon.ico'), 'icon');
   app = express();
   serveWebApp(app, dir);
@@ -54,6 +59,16 @@ it('the page preloads the three sans faces of the first screen, not the mono one
   expect(page).not.toContain('IBMPlexMono');
   expect(page).toMatch(/<div id="root"><div style="[^"]*">.*Quasilevel.*<\/div><\/div>/);
   expect(page).not.toMatch(/<script>/);
+});
+
+it('the page preloads every layout bundle, and the screen’s own bundle when its path names exactly one', async () => {
+  const preloads = (html: string) => [...html.matchAll(/<link rel="preload" href="\/_expo\/static\/js\/web\/([^"]+)" as="script">/g)].map((m) => m[1]).sort();
+  const layouts = [`_layout-${HASH}.js`, '_layout-fedcba9876543210fedcba9876543210.js'].sort();
+  expect(preloads((await request(app).get('/sign-in')).text)).toEqual([...layouts, `sign-in-${HASH}.js`].sort());
+  // `/` and `/batches/abc`: no bundle of that name, or two of them; the layouts only.
+  expect(preloads((await request(app).get('/')).text)).toEqual(layouts);
+  expect(preloads((await request(app).get('/batches/abc')).text)).toEqual(layouts);
+  expect(preloads((await request(app).get('/index')).text)).toEqual(layouts);
 });
 
 it('brotli from the pre-compressed file when accepted, the plain file otherwise', async () => {
