@@ -1,6 +1,7 @@
 import { QueryClientProvider } from '@tanstack/react-query';
 import { useFonts } from 'expo-font';
 import { Stack } from 'expo-router';
+import { startTransition, useEffect, useState } from 'react';
 import { ActivityIndicator, View } from 'react-native';
 import { AccountWaiting } from '@/components/account-waiting';
 import { installFocusRing } from '@/components/focus-ring';
@@ -20,7 +21,16 @@ applyZodSettings(); // no eval probe under the page's CSP (see lib/schemas/zod-s
  */
 function Routes() {
   const me = useAccount();
-  if (me.isPending) {
+  // The navigator is put in as a transition once the session is known. Its screens load lazily;
+  // drawn in a plain update, React would first commit their loading placeholder and then hold the
+  // loaded screen back for its 300 ms reveal throttle (React 19). In a transition it waits the
+  // moment the already-started loads need (index.ts) and commits the screen directly.
+  const [drawn, setDrawn] = useState(false);
+  const settled = !me.isPending;
+  useEffect(() => {
+    if (settled && !drawn) startTransition(() => setDrawn(true));
+  }, [settled, drawn]);
+  if (me.isPending || !drawn) {
     return (
       <View style={{ flex: 1, alignItems: 'center', justifyContent: 'center', backgroundColor: theme.color.paper }} testID="app-loading">
         <ActivityIndicator color={theme.color.electron} />

@@ -10,7 +10,7 @@ import path from 'node:path';
 import zlib from 'node:zlib';
 
 const ROOT = path.resolve(__dirname, '..');
-const SOURCES = ['app', 'components', 'lib', 'assets', 'scripts/web-shims', 'app.json', 'babel.config.js', 'metro.config.js', 'package-lock.json', 'tsconfig.json'];
+const SOURCES = ['index.ts', 'app', 'components', 'lib', 'assets', 'scripts/web-shims', 'app.json', 'babel.config.js', 'metro.config.js', 'package-lock.json', 'tsconfig.json'];
 
 /**
  * Expo's tree shaking for the production export (documented by Expo as experimental, behind these

@@ -53,12 +53,20 @@ export function pageWithPreloads(webDir: string): (requestPath: string) => strin
     const key = own.length === 1 ? own[0] : '';
     let page = pages.get(key);
     if (page === undefined) {
-      page = base.replace('</head>', `${fontLinks}${layoutLinks}${key ? script(key) : ''}</head>`);
+      page = base.replace('</head>', `${SESSION_LINK}${fontLinks}${layoutLinks}${key ? script(key) : ''}</head>`);
       pages.set(key, page);
     }
     return page;
   };
 }
+
+/**
+ * The session check every first screen starts with (lib/api/session.ts asks /api/me with the
+ * cookies, `credentials: 'include'`, which is what `crossorigin="use-credentials"` matches): asked
+ * for by the page's head, so the answer is there when the script wants it instead of a round trip
+ * after the script has run.
+ */
+const SESSION_LINK = '<link rel="preload" href="/api/me" as="fetch" crossorigin="use-credentials">';
 
 /**
  * What shows before the script runs: the sign-in page's paper, the product's name in the ink

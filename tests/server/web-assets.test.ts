@@ -61,6 +61,13 @@ it('the page preloads the three sans faces of the first screen, not the mono one
   expect(page).not.toMatch(/<script>/);
 });
 
+it('the page asks for the session in its head, with the cookies, as the app’s fetch does (credentials: include)', async () => {
+  for (const p of ['/sign-in', '/batches/abc']) {
+    const page = (await request(app).get(p)).text;
+    expect(page.match(/<link rel="preload" href="\/api\/me"[^>]*>/g)).toEqual(['<link rel="preload" href="/api/me" as="fetch" crossorigin="use-credentials">']);
+  }
+});
+
 it('the page preloads every layout bundle, and the screen’s own bundle when its path names exactly one', async () => {
   const preloads = (html: string) => [...html.matchAll(/<link rel="preload" href="\/_expo\/static\/js\/web\/([^"]+)" as="script">/g)].map((m) => m[1]).sort();
   const layouts = [`_layout-${HASH}.js`, '_layout-fedcba9876543210fedcba9876543210.js'].sort();
