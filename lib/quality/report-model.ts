@@ -3,6 +3,8 @@
  * the limit lines in words, the counts, the devices' rows and the histograms of Pmax and FF with
  * the spec's limits. Pure; server/services/report.ts gathers the inputs, report-pdf.ts draws.
  */
+import { nameplateBinWords } from '@/lib/quality/decision-rules';
+import { nameplateText } from '@/lib/quality/reason-text';
 import type { Spec } from '@/lib/quality/spec';
 import { formatValue, labelOf, toShown, unitOf } from '@/lib/vocabulary';
 
@@ -101,4 +103,45 @@ export function reasonInWords(message: string): string {
   const missing = /^([a-z][a-z0-9_]*) not measured(.*)$/i.exec(message);
   if (missing && labelOf(missing[1]) !== missing[1]) return `${labelOf(missing[1])} not measured${missing[2]}`;
   return message.charAt(0).toUpperCase() + message.slice(1);
+}
+
+/**
+ * What the spec's power classes mean, one line each, so a count of "P405: 12" can be read without
+ * the spec: the steps with their tolerance and the lowest and highest class offered, or each bin's
+ * edges in watts, or each bin around the nameplate (in watts for the batch's nameplate when known).
+ * Empty when the spec has no power classes.
+ */
+export function powerClassLines(pc: Spec['power_classes'], nameplate_w?: number | null): string[] {
+  if (!pc) return [];
+  const basis = pc.basis ?? 'pmp_w';
+  const power = labelOf(basis);
+  const w = (x: number) => `${nameplateText(x)} W`;
+  if (pc.nameplate_bins) {
+    const head = `Classed on ${power} around the batch's nameplate power${nameplate_w ? ` (${w(nameplate_w)})` : ''}; a device outside every class has none and fails.`;
+    return [
+      head,
+      ...pc.nameplate_bins.map((b) => {
+        const words = nameplateBinWords(b, basis);
+        if (!nameplate_w) return words;
+        const edge = (x: number | undefined, pct: number | undefined) => (x !== undefined ? nameplate_w + x : nameplate_w * (1 + (pct ?? 0) / 100));
+        return `${words} (${w(Number(edge(b.from_w, b.from_pct).toFixed(3)))} to below ${w(Number(edge(b.to_w, b.to_pct).toFixed(3)))})`;
+      }),
+    ];
+  }
+  if (pc.bins) {
+    return [
+      `Classed on ${power}; a device outside every class has none and fails.`,
+      ...pc.bins.map((b) => `${/^class\b/i.test(b.label) ? b.label : `Class ${b.label}`} (nominal ${w(b.nominal_w)}): ${power} at least ${w(b.min_w)} and below ${w(b.max_w)}`),
+    ];
+  }
+  if (pc.step_w === undefined) return [];
+  const prefix = pc.label_prefix ?? 'P';
+  const minus = pc.tolerance?.minus_w ?? 0;
+  const plus = pc.tolerance?.plus_w ?? pc.step_w;
+  const lines = [
+    `Classes every ${w(pc.step_w)} named ${prefix} and the class power: a device is in class ${prefix}N when N${minus ? ` − ${w(minus)}` : ''} ≤ ${power} < N + ${w(plus)}.`,
+  ];
+  if (pc.lowest_w !== undefined) lines.push(`The lowest class is ${prefix}${nameplateText(pc.lowest_w)}; a device below it has no class and fails.`);
+  if (pc.highest_w !== undefined) lines.push(`The highest class is ${prefix}${nameplateText(pc.highest_w)}; a device above it gets that class.`);
+  return lines;
 }

@@ -20,7 +20,7 @@ const BAR = '#4a6fa5';
 export type ReportContent = {
   batch: { name: string; lot: string | null; line: string | null; product_type: string | null; supplier: string | null; batch_date: string | null; cells: number | null; state: string };
   release: { revision: number; comment: string | null; csv_sha256: string } | null;
-  spec: { name: string; version: number; limits: string[]; fail_flags: string[] };
+  spec: { name: string; version: number; limits: string[]; fail_flags: string[]; /** What each power class means, in words (empty: no classes). */ power_classes: string[] };
   counts: { total: number; pass: number; fail: number; outliers: number };
   powerClasses: { label: string; count: number }[];
   devices: ReportDevice[];
@@ -172,6 +172,10 @@ export function renderReportPdf(r: ReportContent): Promise<Buffer> {
   if (!r.spec.limits.length) doc.text('No limits: every measured device passes unless a flag fails it.');
   for (const l of r.spec.limits) doc.text(`• ${l}`);
   if (r.spec.fail_flags.length) doc.text(`• Fails on the flags: ${r.spec.fail_flags.join(', ')}`);
+  if (r.spec.power_classes.length) {
+    doc.moveDown(0.3).font('bold').text('Power classes').font('regular');
+    for (const l of r.spec.power_classes) doc.text(`• ${l}`);
+  }
 
   heading(doc, 'Counts');
   facts(doc, [

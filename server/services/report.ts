@@ -9,7 +9,7 @@
 import { and, desc, eq, inArray, lte } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { batchReview, curve, user } from '@/db/schema';
-import { flagCounts, histogram, limitLines, powerClassCounts } from '@/lib/quality/report-model';
+import { flagCounts, histogram, limitLines, powerClassCounts, powerClassLines } from '@/lib/quality/report-model';
 import type { ReportDevice } from '@/lib/quality/report-model';
 import { HV_CAUTION } from '@/lib/strings/cautions';
 import { loadBatch } from '@/server/services/batches';
@@ -64,7 +64,7 @@ export async function reportContent(db: Db, organizationId: string, batchId: str
   return {
     batch: { name: b.name, lot: b.lot, line: b.line, product_type: b.product_type, supplier: b.supplier, batch_date: b.batch_date, cells: b.cells, state: b.state },
     release: frozen ? { revision: frozen.revision, comment: frozen.comment, csv_sha256: frozen.csvSha256 } : null,
-    spec: { name: specRow.name, version: specRow.version, limits: limitLines(spec), fail_flags: spec.fail_flags ?? [] },
+    spec: { name: specRow.name, version: specRow.version, limits: limitLines(spec), fail_flags: spec.fail_flags ?? [], power_classes: powerClassLines(spec.power_classes, b.nameplate_w) },
     counts,
     powerClasses: powerClassCounts(devices),
     devices,

@@ -92,6 +92,15 @@ describe('the release report', () => {
     for (const b of HV_CAUTION.bullets) expect(t).toContain(fold(b));
   }, 60_000);
 
+  it('says what each power class means beside the class counts', async () => {
+    const id = await makeBatch('Classed lot');
+    const classed = (await qa.post('/api/specs').send({ name: 'Classed cells', power_classes: { step_w: 0.5, lowest_w: 0.5 } })).body.id;
+    const t = fold((await pdfOf(tester, `/api/batches/${id}/report.pdf?spec=${classed}`)).text);
+    expect(t).toContain('Power classes');
+    expect(t).toContain('a device is in class PN when N ≤ Pmax < N + 0.5 W');
+    expect(t).toContain('The lowest class is P0.5; a device below it has no class and fails.');
+  }, 60_000);
+
   it('without ?spec and no decision yet: 400 asking for a spec', async () => {
     const id = await makeBatch('No spec');
     const res = await tester.get(`/api/batches/${id}/report.pdf`);

@@ -1,5 +1,6 @@
 /** The release report's pure parts (lib/quality/report-model.ts); expected values computed by hand in this test. */
-import { flagCounts, histogram, limitLines, reasonInWords } from '@/lib/quality/report-model';
+import { flagCounts, histogram, limitLines, powerClassLines, reasonInWords } from '@/lib/quality/report-model';
+import { powerClassOf } from '@/lib/quality/evaluate';
 
 describe('histogram', () => {
   it('spans the values and the limits; FF in % (fraction × 100); devices without a value counted apart', () => {
@@ -37,5 +38,36 @@ describe('words for limits and reasons', () => {
   it('flags counted once per curve, most frequent first', () => {
     const f = flagCounts([[{ code: 'a', message: 'A' }, { code: 'a', message: 'A' }], [{ code: 'b', message: 'B' }, { code: 'a', message: 'A' }]]);
     expect(f).toEqual([{ code: 'a', message: 'A', count: 2 }, { code: 'b', message: 'B', count: 1 }]);
+  });
+});
+
+describe('powerClassLines: what each class means, beside the counts', () => {
+  it('none without power classes', () => {
+    expect(powerClassLines(undefined)).toEqual([]);
+  });
+
+  it('steps: the rule with the tolerance, the lowest and highest class — agreeing with how devices are classed', () => {
+    const pc = { step_w: 5, tolerance: { minus_w: 0, plus_w: 5 }, lowest_w: 395, highest_w: 410 };
+    expect(powerClassLines(pc)).toEqual([
+      'Classes every 5 W named P and the class power: a device is in class PN when N ≤ Pmax < N + 5 W.',
+      'The lowest class is P395; a device below it has no class and fails.',
+      'The highest class is P410; a device above it gets that class.',
+    ]);
+    // The words and the classing agree: 399.9 W is P395 (395 ≤ 399.9 < 400), 400 W is P400, 430 W the highest.
+    expect([399.9, 400, 430].map((p) => powerClassOf(p, pc).label)).toEqual(['P395', 'P400', 'P410']);
+    expect(powerClassOf(394, pc).label).toBeNull();
+  });
+
+  it('bins in watts, each with its edges', () => {
+    const lines = powerClassLines({ basis: 'stc_pmp_w', bins: [{ label: 'A', nominal_w: 400, min_w: 397.5, max_w: 402.5 }] });
+    expect(lines[1]).toBe('Class A (nominal 400 W): Pmax at STC at least 397.5 W and below 402.5 W');
+  });
+
+  it('bins around the nameplate, in watts for the batch\'s nameplate (330 W: −2 % → 323.4 W, +5 W → 335 W)', () => {
+    const pc = { nameplate_bins: [{ label: 'B', from_pct: -2, to_w: 5 }] };
+    const lines = powerClassLines(pc, 330);
+    expect(lines[0]).toMatch(/around the batch's nameplate power \(330 W\)/);
+    expect(lines[1]).toBe('Class B: Pmax at least nameplate − 2 % and below nameplate + 5 W (323.4 W to below 335 W)');
+    expect(powerClassLines(pc, null)[1]).toBe('Class B: Pmax at least nameplate − 2 % and below nameplate + 5 W');
   });
 });
