@@ -2,6 +2,7 @@ import { Pressable, StyleSheet, TextInput, View } from 'react-native';
 import { theme } from '@/components/theme';
 import { Txt } from '@/components/txt';
 import { nameplateBinWords } from '@/lib/quality/decision-rules';
+import { powerClassLines } from '@/lib/quality/report-model';
 import { readNumber } from '@/lib/schemas/numbers';
 import { rowName } from '@/lib/schemas/power-class-form';
 import type { BinRow, ClassMode, PowerClassForm } from '@/lib/schemas/power-class-form';
@@ -67,7 +68,18 @@ export function SpecClassFields({ value: f, onChange, problems = [] }: { value: 
           <View style={styles.row}>
             <TextInput value={f.step} onChangeText={(t) => set({ step: t })} placeholder="step (W), e.g. 5" placeholderTextColor={theme.color.muted} style={[styles.input, { width: 150 }]} keyboardType="numeric" accessibilityLabel="Power class step in W" testID="class-step" />
           </View>
-          <Txt variant="caption">Nameplates at multiples of the step, positive-only tolerance: class P when P ≤ power &lt; P + step.</Txt>
+          {f.stepExtras ? (
+            <View testID="class-step-words">
+              {powerClassLines({ step_w: readNumber(f.step) || 0, basis: f.basis, ...f.stepExtras })
+                .filter((l, i) => i > 0 || (readNumber(f.step) ?? 0) > 0)
+                .map((l) => (
+                <Txt key={l} variant="caption">{l}</Txt>
+              ))}
+              <Txt variant="caption">Set through the API; saved again with the step.</Txt>
+            </View>
+          ) : (
+            <Txt variant="caption">Nameplates at multiples of the step, positive-only tolerance: class P when P ≤ power &lt; P + step.</Txt>
+          )}
         </View>
       ) : null}
       {f.mode === 'nameplate_bins' ? (

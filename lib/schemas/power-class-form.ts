@@ -23,13 +23,21 @@ export type PowerClassForm = {
    * that mix W and %): saved again as they were unless another mode is chosen.
    */
   kept?: PowerClasses;
+  /**
+   * What a steps version may carry besides the step (set through the API): the tolerance, the
+   * lowest and highest class, the label prefix. The editor shows them in words and saves them
+   * again with the step.
+   */
+  stepExtras?: Pick<PowerClasses, 'tolerance' | 'lowest_w' | 'highest_w' | 'label_prefix'>;
 };
 
 const text = (v: number | undefined) => (v === undefined ? '' : String(v));
 
 /** The form of a spec version's power classes (none for a new spec). */
 export function powerClassFormOf(pc?: PowerClasses | null): PowerClassForm {
-  const basis = pc?.basis ?? 'stc_pmp_w';
+  // A new spec classes on Pmax at STC; a saved one keeps what it classes on (the engine reads a
+  // missing basis as measured Pmax, lib/quality/evaluate.ts), so saving it again changes nothing.
+  const basis = pc ? (pc.basis ?? 'pmp_w') : 'stc_pmp_w';
   const base: PowerClassForm = { mode: 'none', step: '', basis, unit: 'w', rows: [] };
   if (!pc) return base;
   const nb = pc.nameplate_bins;
@@ -44,7 +52,11 @@ export function powerClassFormOf(pc?: PowerClasses | null): PowerClassForm {
     return { ...base, mode: 'kept', kept: pc };
   }
   if (pc.bins?.length) return { ...base, mode: 'kept', kept: pc };
-  if (pc.step_w !== undefined) return { ...base, mode: 'steps', step: String(pc.step_w) };
+  if (pc.step_w !== undefined) {
+    const { tolerance, lowest_w, highest_w, label_prefix } = pc;
+    const extras = Object.fromEntries(Object.entries({ tolerance, lowest_w, highest_w, label_prefix }).filter(([, v]) => v !== undefined));
+    return { ...base, mode: 'steps', step: String(pc.step_w), ...(Object.keys(extras).length ? { stepExtras: extras } : {}) };
+  }
   return base;
 }
 
@@ -75,7 +87,7 @@ export function powerClassFields(f: PowerClassForm): ClassFields {
     const step = readNumber(f.step);
     if (step === undefined || Number.isNaN(step)) return { problems: [`Power class step (W) must be a number (not "${f.step.trim()}")`] };
     if (!(step > 0)) return { problems: ['Power class step (W) must be above 0 W'] };
-    return { power_classes: { step_w: step, basis: f.basis }, problems: [] };
+    return { power_classes: { step_w: step, basis: f.basis, ...f.stepExtras }, problems: [] };
   }
   const problems: string[] = [];
   if (!f.rows.length) return { problems: ['Power classes around the nameplate: add at least one row'] };

@@ -47,8 +47,19 @@ describe('SpecClassFields', () => {
     expect(screen.getByTestId('class-kept')).toHaveTextContent(/are 1 bin in absolute watts/);
     fireEvent.press(screen.getByTestId('class-mode-steps'));
     fireEvent.changeText(screen.getByTestId('class-step'), '5');
-    expect(powerClassFields(latest).power_classes).toEqual({ step_w: 5, basis: 'stc_pmp_w' });
+    // The saved classes named no basis, which the engine reads as measured Pmax: that stays.
+    expect(powerClassFields(latest).power_classes).toEqual({ step_w: 5, basis: 'pmp_w' });
     fireEvent.press(screen.getByTestId('class-mode-kept'));
     expect(powerClassFields(latest).power_classes).toEqual({ bins: [{ label: 'X', nominal_w: 300, min_w: 295, max_w: 305 }] });
+  });
+
+  it('steps with a tolerance and ends set through the API: said in words, saved again with a new step', () => {
+    render(<Harness start={{ step_w: 5, basis: 'stc_pmp_w', tolerance: { minus_w: 2, plus_w: 3 }, lowest_w: 395, highest_w: 420, label_prefix: 'M' }} />);
+    const words = screen.getByTestId('class-step-words');
+    expect(words).toHaveTextContent(/class MN when N − 2 W ≤ Pmax at STC < N \+ 3 W/);
+    expect(words).toHaveTextContent(/The lowest class is M395/);
+    expect(words).toHaveTextContent(/The highest class is M420/);
+    fireEvent.changeText(screen.getByTestId('class-step'), '10');
+    expect(powerClassFields(latest).power_classes).toEqual({ step_w: 10, basis: 'stc_pmp_w', tolerance: { minus_w: 2, plus_w: 3 }, lowest_w: 395, highest_w: 420, label_prefix: 'M' });
   });
 });

@@ -46,6 +46,12 @@ describe('power classes: form ↔ spec', () => {
 
   it('steps and none round-trip; classes the table cannot show are kept unchanged', () => {
     expect(powerClassFields(powerClassFormOf({ step_w: 5, basis: 'pmp_w' })).power_classes).toEqual({ step_w: 5, basis: 'pmp_w' });
+    // What a steps version carries besides the step (set through the API) is saved again, not dropped.
+    const full = { step_w: 5, basis: 'stc_pmp_w' as const, tolerance: { minus_w: 0, plus_w: 5 }, lowest_w: 390, highest_w: 410, label_prefix: 'Q' };
+    expect(powerClassFields(powerClassFormOf(full)).power_classes).toEqual(full);
+    // No basis saved: measured Pmax, as the engine reads it; a new spec starts on Pmax at STC.
+    expect(powerClassFormOf({ step_w: 5 }).basis).toBe('pmp_w');
+    expect(powerClassFormOf(undefined).basis).toBe('stc_pmp_w');
     expect(powerClassFields(powerClassFormOf(undefined))).toEqual({ problems: [] });
     const absolute = { bins: [{ label: 'X', nominal_w: 300, min_w: 295, max_w: 305 }] };
     const mixed = { nameplate_bins: [{ label: 'a', from_w: -3, to_w: 0 }, { label: 'b', from_pct: 0, to_pct: 2 }] };
