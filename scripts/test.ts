@@ -13,6 +13,7 @@ import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import path from 'node:path';
 import { buildWeb } from './build-web';
+import { buildServerIfStale } from './build-server';
 import { SEEDED_TEMPLATE_ENV, makeSeededTemplate } from '../tests/support/server-process';
 
 const ROOT = path.resolve(__dirname, '..');
@@ -88,6 +89,15 @@ async function main(): Promise<number> {
   const started = Date.now();
   const wantUnit = only.length === 0 || only.includes('unit');
   const wantE2e = only.length === 0 || only.includes('e2e');
+  // The server bundle every server process of both lanes runs (tests/support/server-process.ts),
+  // built once here when stale rather than by two suites at the same time.
+  try {
+    const t = Date.now();
+    if (await buildServerIfStale()) console.log(`[test] server bundle built in ${((Date.now() - t) / 1000).toFixed(1)} s`);
+  } catch (err) {
+    console.error(`[test] the server could not be built: ${(err as Error).message}`);
+    return 1;
+  }
   // Two workers on two cores: jest's default there is one (all suites in a row), which leaves a
   // core idle whenever a suite waits on a child process, a worker thread or a timer.
   const unit = wantUnit ? runJest('unit', ['--selectProjects', 'lib', 'server', 'components', '--maxWorkers=2']) : null;
