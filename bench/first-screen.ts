@@ -16,7 +16,7 @@ import os from 'node:os';
 import path from 'node:path';
 import type { Page } from 'playwright-core';
 import { quantile, round } from '@/bench/stats';
-import { openBrowser, VIEWPORTS } from '@/tests/support/browser';
+import { closeChromium, openBrowser, VIEWPORTS } from '@/tests/support/browser';
 import { REPO_ROOT, startServerProcess } from '@/tests/support/server-process';
 
 export const TARGETS = { fcp_ms: 800, usable_ms: 1000, transfer_bytes: 600_000 };
@@ -85,6 +85,8 @@ async function oneVisit(url: string): Promise<Visit> {
     return { fcp_ms: times.fcp, usable_ms: times.usable, cold_bytes: cold.bytes, cold_requests: cold.requests, warm_bytes: warm.bytes };
   } finally {
     await b.close();
+    // A fresh Chromium process for every visit, as a person's first visit has (openBrowser shares one).
+    await closeChromium();
   }
 }
 

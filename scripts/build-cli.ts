@@ -24,16 +24,16 @@ export const CLI_INPUTS = path.join(CLI_BUILD_DIR, 'cli-inputs.json');
 const BUILD_FILES = ['tsconfig.json', 'scripts/build-cli.ts', 'node_modules/esbuild/package.json'];
 
 /** One recorded file: path relative to the repository, size in bytes, mtime in ms. */
-type Input = [file: string, size: number, mtimeMs: number];
+export type Input = [file: string, size: number, mtimeMs: number];
 export type InputRecord = { esbuild: string; inputs: Input[] };
 
-function statInput(file: string): Input {
+export function statInput(file: string): Input {
   const st = statSync(path.join(ROOT, file));
   return [file, st.size, st.mtimeMs];
 }
 
 /** Writes `data` beside `target` and renames it over: a reader sees the old file or the new one, never half. */
-function writeAtomic(target: string, data: string | Uint8Array): void {
+export function writeAtomic(target: string, data: string | Uint8Array): void {
   const tmp = `${target}.${process.pid}.tmp`;
   writeFileSync(tmp, data);
   renameSync(tmp, target);
@@ -81,9 +81,14 @@ export function buildCli(): number {
 
 /** True when build/cli.cjs exists and no input differs from the record (the launcher's test, in TypeScript). */
 export function cliBundleIsFresh(): boolean {
+  return recordIsFresh(CLI_INPUTS);
+}
+
+/** True when the input record `recordFile` exists and every file in it has its recorded size and mtime. */
+export function recordIsFresh(recordFile: string): boolean {
   let record: InputRecord;
   try {
-    record = JSON.parse(readFileSync(CLI_INPUTS, 'utf8')) as InputRecord;
+    record = JSON.parse(readFileSync(recordFile, 'utf8')) as InputRecord;
   } catch {
     return false;
   }

@@ -2,8 +2,9 @@
  * `npm test`: every layer for real, in two lanes that run at the same time.
  *  1. jest projects lib, server, components (unit, API through supertest on an in-memory PGlite,
  *     React Native components through jest-expo), two workers;
- *  2. beside it, the web export (rebuilt only when sources changed), then the browser tests in
- *     headless Chromium against the real server (jest project e2e), one file at a time.
+ *  2. beside it, the web export (rebuilt only when sources changed) while one server seeds the
+ *     demo data, then the browser tests in headless Chromium against the real server (jest
+ *     project e2e), two files at a time.
  * The browser lane waits on Chromium and the server most of the time, so running it beside the
  * unit lane fills the cores' idle time: on the 2-core machine the whole run went from ~10 min
  * (one lane after the other) to the figure in the README's performance table.
@@ -13,6 +14,7 @@ import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import path from 'node:path';
 import { buildWeb } from './build-web';
+import { buildServerIfStale } from './build-server';
 import { SEEDED_TEMPLATE_ENV, makeSeededTemplate } from '../tests/support/server-process';
 
 const ROOT = path.resolve(__dirname, '..');
@@ -56,28 +58,51 @@ function runJest(label: string, args: string[]): Promise<JestJson> {
   });
 }
 
-/** The browser lane: Chromium, the web export, then the e2e project. */
+/**
+ * Browser-lane workers: two (QUASILEVEL_E2E_WORKERS overrides). Each suite has its own server
+ * process and data folder and its own Chromium, so two suites at a time share nothing; most of a
+ * browser test is waiting on the page, and with a second worker another suite's work fills it
+ * (measured in DEVELOPERS.md, "Test timing").
+ */
+function e2eWorkers(): number {
+  const n = Number(process.env.QUASILEVEL_E2E_WORKERS ?? 2);
+  return Number.isInteger(n) && n >= 1 ? n : 2;
+}
+
+/** The browser lane: Chromium, the web export and the seeded data folder (at the same time), then the e2e project. */
 async function browserLane(): Promise<JestJson> {
   try {
     ensureChromium();
-    buildWeb();
   } catch (err) {
     console.error(`[test] browser tests could not run: ${(err as Error).message}`);
     return FAILED_TO_RUN;
   }
   // One server migrates and seeds the demo data once; every suite's server starts on a copy of it.
-  let template: string;
+  // It starts before the web export (a synchronous child) and seeds while the export runs.
+  const t = Date.now();
+  const seeding = makeSeededTemplate().then(
+    (dir) => ({ dir }),
+    (err: Error) => ({ err }),
+  );
   try {
-    const t = Date.now();
-    template = await makeSeededTemplate();
-    console.log(`[test] seeded data folder for the browser tests in ${((Date.now() - t) / 1000).toFixed(0)} s`);
+    buildWeb();
   } catch (err) {
-    console.error(`[test] the demo data could not be seeded: ${(err as Error).message}`);
+    console.error(`[test] browser tests could not run: ${(err as Error).message}`);
+    const s = await seeding;
+    if ('dir' in s) rmSync(s.dir, { recursive: true, force: true });
     return FAILED_TO_RUN;
   }
+  const seeded = await seeding;
+  if ('err' in seeded) {
+    console.error(`[test] the demo data could not be seeded: ${seeded.err.message}`);
+    return FAILED_TO_RUN;
+  }
+  const template = seeded.dir;
+  console.log(`[test] web export and seeded data folder for the browser tests ready in ${((Date.now() - t) / 1000).toFixed(0)} s`);
   process.env[SEEDED_TEMPLATE_ENV] = template;
   try {
-    return await runJest('e2e', ['--selectProjects', 'e2e', '--runInBand']);
+    const workers = e2eWorkers();
+    return await runJest('e2e', ['--selectProjects', 'e2e', ...(workers === 1 ? ['--runInBand'] : [`--maxWorkers=${workers}`])]);
   } finally {
     rmSync(template, { recursive: true, force: true });
   }
@@ -88,6 +113,15 @@ async function main(): Promise<number> {
   const started = Date.now();
   const wantUnit = only.length === 0 || only.includes('unit');
   const wantE2e = only.length === 0 || only.includes('e2e');
+  // The server bundle every server process of both lanes runs (tests/support/server-process.ts),
+  // built once here when stale rather than by two suites at the same time.
+  try {
+    const t = Date.now();
+    if (await buildServerIfStale()) console.log(`[test] server bundle built in ${((Date.now() - t) / 1000).toFixed(1)} s`);
+  } catch (err) {
+    console.error(`[test] the server could not be built: ${(err as Error).message}`);
+    return 1;
+  }
   // Two workers on two cores: jest's default there is one (all suites in a row), which leaves a
   // core idle whenever a suite waits on a child process, a worker thread or a timer.
   const unit = wantUnit ? runJest('unit', ['--selectProjects', 'lib', 'server', 'components', '--maxWorkers=2']) : null;

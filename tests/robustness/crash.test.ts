@@ -21,8 +21,8 @@ import { startServerProcess } from '@/tests/support/server-process';
 import type { ServerProcess } from '@/tests/support/server-process';
 
 /**
- * Readiness deadline of each server start in this file: 4 minutes. A start compiles the server
- * through tsx, opens (or recovers) PGlite, seeds the demo data with its fits and warms the
+ * Readiness deadline of each server start in this file: 4 minutes. A start loads the server
+ * bundle, opens (or recovers) PGlite, seeds the demo data with its fits and warms the
  * analysis threads; with other suites using both cores it has taken over a minute, and a start
  * that misses its deadline says nothing about crash safety. 4 minutes is generous on purpose.
  */

@@ -11,18 +11,19 @@ import path from 'node:path';
 import { createBatch, signIn } from '@/bench/api-client';
 import { syntheticFiles } from '@/bench/synthetic-files';
 import { LOCK_FILE } from '@/server/data-lock';
-import { freePort, REPO_ROOT, startServerProcess } from '@/tests/support/server-process';
+import { freePort, REPO_ROOT, serverCommand, startServerProcess } from '@/tests/support/server-process';
 import type { ServerProcess } from '@/tests/support/server-process';
 
-// Server starts (tsx, migrations, demo seed) and a few hundred fits on a shared 2-core machine.
+// Server starts (migrations, demo seed) and a few hundred fits on a shared 2-core machine.
 jest.setTimeout(300_000);
 
 const ENGINEER = { email: 'tomas.reyes@kestrel-pv.example', password: 'kestrel-test-demo' }; // sample-data/demo-accounts.json
 
-/** Runs `server/index.ts` to its exit (it must not start); returns its status and output. */
-function runToExit(env: Record<string, string>): Promise<{ code: number | null; output: string }> {
+/** Runs the server (`serverCommand()`, as startServerProcess does) to its exit (it must not start); returns its status and output. */
+async function runToExit(env: Record<string, string>): Promise<{ code: number | null; output: string }> {
+  const [node, bundle] = await serverCommand();
   return new Promise((resolve) => {
-    const child = spawn(process.execPath, ['--import', 'tsx', path.join(REPO_ROOT, 'server', 'index.ts')], {
+    const child = spawn(node, [bundle], {
       cwd: REPO_ROOT,
       env: { ...process.env, QUASILEVEL_SIGNIN_PER_MINUTE: '0', ...env },
       stdio: ['ignore', 'pipe', 'pipe'],

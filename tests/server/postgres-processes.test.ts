@@ -1,8 +1,8 @@
 /**
  * Past one machine, as processes (issue 15, items 4 and 5): a throwaway PostgreSQL cluster
- * (scripts/pg-cluster.ts), two server processes (`server/index.ts` as `npm start` runs it, fits
- * left to the workers: QUASILEVEL_WORKER=0) and three worker processes (`server/worker.ts`, as
- * `npm run worker`, one analysis thread each).
+ * (scripts/pg-cluster.ts), two server processes (`server/index.ts` bundled, as `npm run serve`
+ * runs it, fits left to the workers: QUASILEVEL_WORKER=0) and three worker processes
+ * (`server/worker.ts` bundled, as `npm run worker`, one analysis thread each).
  *  - Fair scheduling: while one user's large upload keeps every worker busy, another user's
  *    one-file upload is fitted after at most a few of the large upload's jobs (pg-boss priority,
  *    analysis-jobs.ts `uploadPriority`), and a refit answers before the large upload is done.
@@ -25,7 +25,7 @@ import type { Session, UploadResponse } from '@/bench/api-client';
 import { syntheticFiles } from '@/bench/synthetic-files';
 import { clusterAvailable, startCluster } from '@/scripts/pg-cluster';
 import type { Cluster } from '@/scripts/pg-cluster';
-import { REPO_ROOT, startServerProcess } from '@/tests/support/server-process';
+import { REPO_ROOT, serverCommand, startServerProcess } from '@/tests/support/server-process';
 import type { ServerProcess } from '@/tests/support/server-process';
 
 const CURVES = Number(process.env.QUASILEVEL_PG_CURVES || 1000);
@@ -64,10 +64,11 @@ const QA_LEAD = { email: 'quinn.mbeki@kestrel-pv.example', password: 'kestrel-qa
     }
   };
 
-  const startWorker = () =>
-    new Promise<ChildProcess>((resolve, reject) => {
-      // node itself with tsx's loader (not the tsx launcher, whose child would outlive a SIGKILL).
-      const w = spawn(process.execPath, ['--import', 'tsx', 'server/worker.ts'], { cwd: REPO_ROOT, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+  const startWorker = async () => {
+    // node itself on the worker bundle, as `npm run worker` runs it (not a launcher, whose child would outlive a SIGKILL).
+    const [node, bundle] = await serverCommand('worker');
+    return new Promise<ChildProcess>((resolve, reject) => {
+      const w = spawn(node, [bundle], { cwd: REPO_ROOT, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
       workers.push(w);
       let out = '';
       const onData = (d: Buffer) => {
@@ -78,6 +79,7 @@ const QA_LEAD = { email: 'quinn.mbeki@kestrel-pv.example', password: 'kestrel-qa
       w.stderr!.on('data', (d: Buffer) => process.stderr.write(`[worker ${w.pid}] ${d}`));
       w.once('exit', (code) => reject(new Error(`worker exited (${code}) before taking jobs:\n${out}`)));
     });
+  };
 
   beforeAll(async () => {
     cluster = await startCluster();

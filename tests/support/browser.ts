@@ -2,11 +2,10 @@
  * Headless Chromium (Debian's /usr/bin/chromium) driven by playwright-core, with the flags
  * this workplace needs (no sandbox as root, no background networking).
  */
-import { existsSync, mkdirSync, mkdtempSync, rmSync } from 'node:fs';
-import os from 'node:os';
+import { existsSync, mkdirSync } from 'node:fs';
 import path from 'node:path';
 import { chromium } from 'playwright-core';
-import type { BrowserContext, Page } from 'playwright-core';
+import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { REPO_ROOT } from '@/tests/support/server-process';
 
 export const CHROMIUM = process.env.CHROMIUM_PATH || '/usr/bin/chromium';
@@ -17,24 +16,36 @@ export const VIEWPORTS = {
   wide: { width: 1440, height: 900 },
 } as const;
 
-export async function openBrowser(viewport: { width: number; height: number }): Promise<{ context: BrowserContext; page: Page; close: () => Promise<void> }> {
+/**
+ * One Chromium process per test file, started on the first openBrowser and ended by
+ * closeChromium (tests/e2e/setup.ts, after the file's last test). Each openBrowser gets a browser
+ * context of its own — its own cookies, storage and cache, as a new profile would have — so a
+ * test starts signed out and unseen; only the ~0.5 s of a process start per test is saved.
+ */
+let shared: Promise<Browser> | null = null;
+
+function sharedChromium(): Promise<Browser> {
   if (!existsSync(CHROMIUM)) throw new Error(`Chromium not found at ${CHROMIUM}. Install it with: apt-get install -y chromium`);
-  const profile = mkdtempSync(path.join(os.tmpdir(), 'ql-chromium-'));
-  const context = await chromium.launchPersistentContext(profile, {
+  shared ??= chromium.launch({
     executablePath: CHROMIUM,
     headless: true,
-    viewport,
     args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
   });
-  const page = context.pages()[0] ?? (await context.newPage());
-  return {
-    context,
-    page,
-    close: async () => {
-      await context.close();
-      rmSync(profile, { recursive: true, force: true });
-    },
-  };
+  return shared;
+}
+
+/** Ends the shared Chromium (if one was started); the next openBrowser starts another. */
+export async function closeChromium(): Promise<void> {
+  const b = shared;
+  shared = null;
+  if (b) await (await b).close();
+}
+
+export async function openBrowser(viewport: { width: number; height: number }): Promise<{ context: BrowserContext; page: Page; close: () => Promise<void> }> {
+  const browser = await sharedChromium();
+  const context = await browser.newContext({ viewport });
+  const page = await context.newPage();
+  return { context, page, close: () => context.close() };
 }
 
 export async function screenshot(page: Page, name: string): Promise<string> {

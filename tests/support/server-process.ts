@@ -1,6 +1,8 @@
 /**
- * Starts the real server (`tsx server/index.ts`) as a child process on a free loopback port
- * with its own data folder, for browser, crash and load tests. Always pair with stop().
+ * Starts the real server as a child process on a free loopback port with its own data folder,
+ * for browser, crash and load tests. Always pair with stop(). The child runs the bundle
+ * build/server.cjs (scripts/build-server.ts, rebuilt first when any of its sources changed), as
+ * `npm run serve` does: plain Node, no TypeScript loader on each start.
  */
 import { spawn } from 'node:child_process';
 import type { ChildProcess } from 'node:child_process';
@@ -8,6 +10,7 @@ import { cpSync, existsSync, mkdtempSync, rmSync } from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
+import { buildServerIfStale, SERVER_BUNDLE, WORKER_BUNDLE } from '../../scripts/build-server';
 
 export const REPO_ROOT = path.resolve(__dirname, '..', '..');
 
@@ -21,6 +24,15 @@ export async function freePort(): Promise<number> {
       s.close(() => resolve(port));
     });
   });
+}
+
+/**
+ * The command line of a server process (`node build/server.cjs`, or `build/worker.cjs` for a
+ * PostgreSQL-mode worker), after building the bundles when they are stale.
+ */
+export async function serverCommand(which: 'server' | 'worker' = 'server'): Promise<string[]> {
+  await buildServerIfStale();
+  return [process.execPath, which === 'server' ? SERVER_BUNDLE : WORKER_BUNDLE];
 }
 
 /**
@@ -69,9 +81,10 @@ export async function startServerProcess(opts: { dataDir?: string; env?: Record<
   const dataDir = opts.dataDir ?? freshDataDir();
   const url = `http://127.0.0.1:${port}`;
   let output = '';
-  // tsx as a loader inside this node process (not its CLI, which forks a grandchild): a SIGKILL
-  // to `child` then really kills the server.
-  const child = spawn(process.execPath, ['--import', 'tsx', path.join(REPO_ROOT, 'server', 'index.ts')], {
+  // node itself runs the server (no launcher or loader process in between): a SIGKILL to `child`
+  // then really kills the server.
+  const [node, bundle] = await serverCommand();
+  const child = spawn(node, [bundle], {
     cwd: REPO_ROOT,
     env: {
       ...process.env,
