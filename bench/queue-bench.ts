@@ -82,26 +82,29 @@ async function timedUpload(url: string, curves: number, fitted: (batchId: string
   return { batchId, curves, upload_answer_s: round(answered / 1000), upload_to_fitted_s: round(total / 1000), curves_per_s: round(curves / (total / 1000)) };
 }
 
-export async function benchQueue(opts: { quick?: boolean } = {}): Promise<Record<string, unknown>> {
+export async function benchQueue(opts: { quick?: boolean; embeddedOnly?: boolean; nodeArgs?: string[] } = {}): Promise<Record<string, unknown>> {
   const curves = opts.quick ? 100 : 1000;
   const out: Record<string, unknown> = { curves };
   console.log(`queue — upload-to-fitted, ${curves} curves, one multipart request, through server processes`);
 
   // Embedded: the fits in the request; done when the answer comes.
   {
-    const server = await startServerProcess({ timeoutMs: 180_000 });
+    const server = await startServerProcess({ timeoutMs: 180_000, nodeArgs: opts.nodeArgs });
     try {
       const dbDir = path.join(server.dataDir, 'db');
       const before = folderBytes(dbDir);
       const r = await timedUpload(server.url, curves, async () => curves);
       const grown = folderBytes(dbDir) - before;
       out.embedded = { ...r, batchId: undefined, db_folder_growth_MB_per_10000_curves: round(((grown / curves) * 10_000) / 1e6) };
+      // QUASILEVEL_DEBUG_UPLOAD=1: the server's stage times (server/services/upload-timing.ts).
+      for (const line of server.log().split('\n')) if (line.startsWith('[upload]')) console.log(`  ${line}`);
       console.log(`  embedded (PGlite, fits in the request)      ${r.upload_to_fitted_s} s  (${r.curves_per_s} curves/s; data folder grows ${(out.embedded as { db_folder_growth_MB_per_10000_curves: number }).db_folder_growth_MB_per_10000_curves} MB per 10,000 curves)`);
     } finally {
       await server.stop();
     }
   }
 
+  if (opts.embeddedOnly) return out;
   if (!clusterAvailable()) {
     const why = 'skipped: no PostgreSQL server binaries here (/usr/lib/postgresql/<version>/bin; apt-get install postgresql)';
     console.log(`  PostgreSQL: ${why}`);

@@ -18,7 +18,7 @@ import { benchQueue } from '@/bench/queue-bench';
 import { benchServer } from '@/bench/server-bench';
 import { REPO_ROOT } from '@/tests/support/server-process';
 
-type Section = { name: string; run: (opts: { quick: boolean }) => Promise<Record<string, unknown>> };
+type Section = { name: string; run: (opts: { quick: boolean; embeddedOnly: boolean }) => Promise<Record<string, unknown>> };
 
 const sections: Section[] = [
   { name: 'iv-fit', run: benchIvFit },
@@ -80,13 +80,14 @@ function summary(results: Record<string, Record<string, unknown>>): Line[] {
 
 async function main(): Promise<number> {
   const quick = process.argv.includes('--quick');
+  const embeddedOnly = process.argv.includes('--embedded-only');
   const only = process.argv.find((a) => a.startsWith('--only='))?.slice('--only='.length);
   const startedAt = new Date().toISOString();
   const host = machine();
   const results: Record<string, Record<string, unknown>> = {};
   for (const section of sections) {
     if (only && section.name !== only) continue;
-    results[section.name] = await section.run({ quick });
+    results[section.name] = await section.run({ quick, embeddedOnly });
     console.log('');
   }
   const lines = summary(results);

@@ -63,15 +63,18 @@ export type ServerProcess = {
   stop: (opts?: { kill?: boolean; keepData?: boolean }) => Promise<number | null>;
 };
 
-/** `port`: listen there (a restart on the address clients already use); default a free one. */
-export async function startServerProcess(opts: { dataDir?: string; env?: Record<string, string>; timeoutMs?: number; port?: number } = {}): Promise<ServerProcess> {
+/**
+ * `port`: listen there (a restart on the address clients already use); default a free one.
+ * `nodeArgs`: more options for node (a profile: `--cpu-prof`, which NODE_OPTIONS does not take).
+ */
+export async function startServerProcess(opts: { dataDir?: string; env?: Record<string, string>; timeoutMs?: number; port?: number; nodeArgs?: string[] } = {}): Promise<ServerProcess> {
   const port = opts.port ?? (await freePort());
   const dataDir = opts.dataDir ?? freshDataDir();
   const url = `http://127.0.0.1:${port}`;
   let output = '';
   // tsx as a loader inside this node process (not its CLI, which forks a grandchild): a SIGKILL
   // to `child` then really kills the server.
-  const child = spawn(process.execPath, ['--import', 'tsx', path.join(REPO_ROOT, 'server', 'index.ts')], {
+  const child = spawn(process.execPath, [...(opts.nodeArgs ?? []), '--import', 'tsx', path.join(REPO_ROOT, 'server', 'index.ts')], {
     cwd: REPO_ROOT,
     env: {
       ...process.env,
