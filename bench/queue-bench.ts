@@ -11,7 +11,8 @@
  */
 import { spawn } from 'node:child_process';
 import type { ChildProcess } from 'node:child_process';
-import { readdirSync, statSync } from 'node:fs';
+import { readdirSync, readFileSync, statSync } from 'node:fs';
+import os from 'node:os';
 import path from 'node:path';
 import { Client } from 'pg';
 import { createBatch, signIn, uploadFiles } from '@/bench/api-client';
@@ -66,6 +67,30 @@ function startWorker(env: Record<string, string>): Promise<ChildProcess> {
   });
 }
 
+/** CPU seconds (user + system) of a process's threads so far, by thread name (/proc, Linux; empty elsewhere). */
+function threadCpu(pid: number | undefined): Record<string, number> {
+  const out: Record<string, number> = {};
+  if (!pid) return out;
+  const tick = 100; // USER_HZ on Linux
+  try {
+    for (const tid of readdirSync(`/proc/${pid}/task`)) {
+      const stat = readFileSync(`/proc/${pid}/task/${tid}/stat`, 'utf8');
+      const name = tid === String(pid) ? 'main' : `${readFileSync(`/proc/${pid}/task/${tid}/comm`, 'utf8').trim()}#${tid}`;
+      const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+      out[name] = (out[name] ?? 0) + (Number(f[11]) + Number(f[12])) / tick;
+    }
+  } catch {
+    /* not Linux, or the process ended */
+  }
+  return out;
+}
+
+/** CPU seconds each thread group spent between two threadCpu readings, largest first. */
+function cpuSpent(before: Record<string, number>, after: Record<string, number>): Record<string, number> {
+  const spent = Object.entries(after).map(([k, v]) => [k, round(v - (before[k] ?? 0))] as const).filter(([, v]) => v > 0);
+  return Object.fromEntries(spent.sort((a, b) => b[1] - a[1]));
+}
+
 type Run = { curves: number; upload_answer_s: number; upload_to_fitted_s: number; curves_per_s: number };
 
 /** One upload of `files` through the server at `url`; resolves when `fitted()` reaches the count. */
@@ -93,9 +118,13 @@ export async function benchQueue(opts: { quick?: boolean; embeddedOnly?: boolean
     try {
       const dbDir = path.join(server.dataDir, 'db');
       const before = folderBytes(dbDir);
+      const cpuBefore = threadCpu(server.child.pid);
       const r = await timedUpload(server.url, curves, async () => curves);
+      // The server's CPU time by thread: a figure that a busy shared machine stretches less than the wall time.
+      const cpu = cpuSpent(cpuBefore, threadCpu(server.child.pid));
       const grown = folderBytes(dbDir) - before;
-      out.embedded = { ...r, batchId: undefined, db_folder_growth_MB_per_10000_curves: round(((grown / curves) * 10_000) / 1e6) };
+      out.embedded = { ...r, batchId: undefined, server_cpu_s: cpu, db_folder_growth_MB_per_10000_curves: round(((grown / curves) * 10_000) / 1e6) };
+      console.log(`  server CPU during the upload, s: ${Object.entries(cpu).map(([k, v]) => `${k} ${v}`).join(', ')}; load average ${os.loadavg().map((x) => x.toFixed(1)).join(' ')}`);
       // QUASILEVEL_DEBUG_UPLOAD=1: the server's stage times (server/services/upload-timing.ts).
       for (const line of server.log().split('\n')) if (line.startsWith('[upload]')) console.log(`  ${line}`);
       console.log(`  embedded (PGlite, fits in the request)      ${r.upload_to_fitted_s} s  (${r.curves_per_s} curves/s; data folder grows ${(out.embedded as { db_folder_growth_MB_per_10000_curves: number }).db_folder_growth_MB_per_10000_curves} MB per 10,000 curves)`);

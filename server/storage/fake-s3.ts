@@ -47,8 +47,12 @@ export async function startFakeS3(directory: string, port = 0): Promise<FakeS3> 
       if (stopped) throw new StorageUnavailableError('Object storage is not available (the local store is stopped): storing the original file could not be done. Try again when it is back.');
       try {
         const objectPath = store.getResourcePath(bucket, key, 'object');
-        await mkdir(path.dirname(objectPath), { recursive: true });
-        await writeFile(objectPath, bytes);
+        // The folder first only when missing (an upload's objects share one; s3rver removes emptied folders).
+        await writeFile(objectPath, bytes).catch(async (err: NodeJS.ErrnoException) => {
+          if (err.code !== 'ENOENT') throw err;
+          await mkdir(path.dirname(objectPath), { recursive: true });
+          await writeFile(objectPath, bytes);
+        });
         await store.putMetadata(bucket, key, { 'content-type': contentType }, createHash('md5').update(bytes).digest('hex'));
       } catch (err) {
         throw new StorageUnavailableError(`Object storage is not available (${(err as NodeJS.ErrnoException).code ?? 'error'}): storing the original file could not be done. Try again when it is back.`);
