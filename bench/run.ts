@@ -1,11 +1,12 @@
 /**
- * `npm run bench [-- --quick] [-- --only=<section>] [-- --json]`: runs each benchmark section in
+ * `npm run bench [-- --quick] [-- --only=<section>] [-- --embedded-only] [-- --json]`: runs each benchmark section in
  * turn, prints its block and a summary against the targets of issues 3 and 8, and writes all
  * figures with the date and machine to artifacts/bench.json.
  * Sections: iv-fit (the engine's fits), server (upload-to-stored, comparison grid API),
  * bundle (first-load JavaScript of the web export), cli (the command line against MINPACK),
  * first-screen (a cold visit to the sign-in page in Chromium: paint, usable form, transfer),
- * queue (upload-to-fitted of 1,000 curves: embedded, and on PostgreSQL with 1 and 3 worker processes).
+ * queue (upload-to-fitted of 1,000 curves: embedded, and on PostgreSQL with 1 and 3 worker processes;
+ * `--embedded-only` skips the PostgreSQL runs).
  */
 import { mkdirSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
