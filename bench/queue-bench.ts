@@ -11,14 +11,15 @@
  */
 import { spawn } from 'node:child_process';
 import type { ChildProcess } from 'node:child_process';
-import { readdirSync, statSync } from 'node:fs';
+import { readdirSync, readFileSync, statSync } from 'node:fs';
+import os from 'node:os';
 import path from 'node:path';
 import { Client } from 'pg';
 import { createBatch, signIn, uploadFiles } from '@/bench/api-client';
 import { round } from '@/bench/stats';
 import { syntheticFiles } from '@/bench/synthetic-files';
 import { clusterAvailable, startCluster } from '@/scripts/pg-cluster';
-import { REPO_ROOT, startServerProcess } from '@/tests/support/server-process';
+import { REPO_ROOT, serverCommand, startServerProcess } from '@/tests/support/server-process';
 
 const ENGINEER = { email: 'tomas.reyes@kestrel-pv.example', password: 'kestrel-test-demo' }; // sample-data/demo-accounts.json
 
@@ -53,9 +54,11 @@ async function rowCounts(url: string): Promise<Record<string, number>> {
   return out;
 }
 
-function startWorker(env: Record<string, string>): Promise<ChildProcess> {
+async function startWorker(env: Record<string, string>): Promise<ChildProcess> {
+  // The worker bundle, as `npm run worker` runs it (tests/support/server-process.ts builds it when stale).
+  const [node, bundle] = await serverCommand('worker');
   return new Promise((resolve, reject) => {
-    const w = spawn(process.execPath, ['--import', 'tsx', 'server/worker.ts'], { cwd: REPO_ROOT, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+    const w = spawn(node, [bundle], { cwd: REPO_ROOT, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
     let out = '';
     w.stdout!.on('data', (d: Buffer) => {
       out += d;
@@ -64,6 +67,30 @@ function startWorker(env: Record<string, string>): Promise<ChildProcess> {
     w.stderr!.on('data', (d: Buffer) => (out += d));
     w.once('exit', (code) => reject(new Error(`worker exited (${code}):\n${out}`)));
   });
+}
+
+/** CPU seconds (user + system) of a process's threads so far, by thread name (/proc, Linux; empty elsewhere). */
+function threadCpu(pid: number | undefined): Record<string, number> {
+  const out: Record<string, number> = {};
+  if (!pid) return out;
+  const tick = 100; // USER_HZ on Linux
+  try {
+    for (const tid of readdirSync(`/proc/${pid}/task`)) {
+      const stat = readFileSync(`/proc/${pid}/task/${tid}/stat`, 'utf8');
+      const name = tid === String(pid) ? 'main' : `${readFileSync(`/proc/${pid}/task/${tid}/comm`, 'utf8').trim()}#${tid}`;
+      const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+      out[name] = (out[name] ?? 0) + (Number(f[11]) + Number(f[12])) / tick;
+    }
+  } catch {
+    /* not Linux, or the process ended */
+  }
+  return out;
+}
+
+/** CPU seconds each thread group spent between two threadCpu readings, largest first. */
+function cpuSpent(before: Record<string, number>, after: Record<string, number>): Record<string, number> {
+  const spent = Object.entries(after).map(([k, v]) => [k, round(v - (before[k] ?? 0))] as const).filter(([, v]) => v > 0);
+  return Object.fromEntries(spent.sort((a, b) => b[1] - a[1]));
 }
 
 type Run = { curves: number; upload_answer_s: number; upload_to_fitted_s: number; curves_per_s: number };
@@ -82,26 +109,33 @@ async function timedUpload(url: string, curves: number, fitted: (batchId: string
   return { batchId, curves, upload_answer_s: round(answered / 1000), upload_to_fitted_s: round(total / 1000), curves_per_s: round(curves / (total / 1000)) };
 }
 
-export async function benchQueue(opts: { quick?: boolean } = {}): Promise<Record<string, unknown>> {
+export async function benchQueue(opts: { quick?: boolean; embeddedOnly?: boolean; nodeArgs?: string[] } = {}): Promise<Record<string, unknown>> {
   const curves = opts.quick ? 100 : 1000;
   const out: Record<string, unknown> = { curves };
   console.log(`queue — upload-to-fitted, ${curves} curves, one multipart request, through server processes`);
 
   // Embedded: the fits in the request; done when the answer comes.
   {
-    const server = await startServerProcess({ timeoutMs: 180_000 });
+    const server = await startServerProcess({ timeoutMs: 180_000, nodeArgs: opts.nodeArgs });
     try {
       const dbDir = path.join(server.dataDir, 'db');
       const before = folderBytes(dbDir);
+      const cpuBefore = threadCpu(server.child.pid);
       const r = await timedUpload(server.url, curves, async () => curves);
+      // The server's CPU time by thread: a figure that a busy shared machine stretches less than the wall time.
+      const cpu = cpuSpent(cpuBefore, threadCpu(server.child.pid));
       const grown = folderBytes(dbDir) - before;
-      out.embedded = { ...r, batchId: undefined, db_folder_growth_MB_per_10000_curves: round(((grown / curves) * 10_000) / 1e6) };
+      out.embedded = { ...r, batchId: undefined, server_cpu_s: cpu, db_folder_growth_MB_per_10000_curves: round(((grown / curves) * 10_000) / 1e6) };
+      console.log(`  server CPU during the upload, s: ${Object.entries(cpu).map(([k, v]) => `${k} ${v}`).join(', ')}; load average ${os.loadavg().map((x) => x.toFixed(1)).join(' ')}`);
+      // QUASILEVEL_DEBUG_UPLOAD=1: the server's stage times (server/services/upload-timing.ts).
+      for (const line of server.log().split('\n')) if (line.startsWith('[upload]')) console.log(`  ${line}`);
       console.log(`  embedded (PGlite, fits in the request)      ${r.upload_to_fitted_s} s  (${r.curves_per_s} curves/s; data folder grows ${(out.embedded as { db_folder_growth_MB_per_10000_curves: number }).db_folder_growth_MB_per_10000_curves} MB per 10,000 curves)`);
     } finally {
       await server.stop();
     }
   }
 
+  if (opts.embeddedOnly) return out;
   if (!clusterAvailable()) {
     const why = 'skipped: no PostgreSQL server binaries here (/usr/lib/postgresql/<version>/bin; apt-get install postgresql)';
     console.log(`  PostgreSQL: ${why}`);

@@ -1,11 +1,12 @@
 /**
- * `npm run bench [-- --quick] [-- --only=<section>] [-- --json]`: runs each benchmark section in
+ * `npm run bench [-- --quick] [-- --only=<section>] [-- --embedded-only] [-- --json]`: runs each benchmark section in
  * turn, prints its block and a summary against the targets of issues 3 and 8, and writes all
  * figures with the date and machine to artifacts/bench.json.
  * Sections: iv-fit (the engine's fits), server (upload-to-stored, comparison grid API),
  * bundle (first-load JavaScript of the web export), cli (the command line against MINPACK),
  * first-screen (a cold visit to the sign-in page in Chromium: paint, usable form, transfer),
- * queue (upload-to-fitted of 1,000 curves: embedded, and on PostgreSQL with 1 and 3 worker processes).
+ * queue (upload-to-fitted of 1,000 curves: embedded, and on PostgreSQL with 1 and 3 worker processes;
+ * `--embedded-only` skips the PostgreSQL runs).
  */
 import { mkdirSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
@@ -18,7 +19,7 @@ import { benchQueue } from '@/bench/queue-bench';
 import { benchServer } from '@/bench/server-bench';
 import { REPO_ROOT } from '@/tests/support/server-process';
 
-type Section = { name: string; run: (opts: { quick: boolean }) => Promise<Record<string, unknown>> };
+type Section = { name: string; run: (opts: { quick: boolean; embeddedOnly: boolean }) => Promise<Record<string, unknown>> };
 
 const sections: Section[] = [
   { name: 'iv-fit', run: benchIvFit },
@@ -80,13 +81,14 @@ function summary(results: Record<string, Record<string, unknown>>): Line[] {
 
 async function main(): Promise<number> {
   const quick = process.argv.includes('--quick');
+  const embeddedOnly = process.argv.includes('--embedded-only');
   const only = process.argv.find((a) => a.startsWith('--only='))?.slice('--only='.length);
   const startedAt = new Date().toISOString();
   const host = machine();
   const results: Record<string, Record<string, unknown>> = {};
   for (const section of sections) {
     if (only && section.name !== only) continue;
-    results[section.name] = await section.run({ quick });
+    results[section.name] = await section.run({ quick, embeddedOnly });
     console.log('');
   }
   const lines = summary(results);

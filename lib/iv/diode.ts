@@ -69,9 +69,11 @@ export function solveDoubleDiodeCurrent(
   const hi = iph + i01 + i02 + Math.max(0, -v) / rsh;
   const ln01 = Math.log(i01);
   const ln02 = Math.log(i02);
-  const f = (vd: number) => Math.exp(Math.min(ln01 + vd / a1, 700)) - i01 + Math.exp(Math.min(ln02 + vd / a2, 700)) - i02;
-  if (rs <= 0) return iph - f(v) - v / rsh;
-  let i = guess !== undefined && Number.isFinite(guess) ? Math.min(guess, hi) : Math.min(iph - f(v) - v / rsh, hi);
+  // The diodes' current at v (no closure here: this runs for every point of every fit step, and
+  // under tsx, whose esbuild keeps function names, each closure made costs a defineProperty call).
+  const dv = Math.exp(Math.min(ln01 + v / a1, 700)) - i01 + Math.exp(Math.min(ln02 + v / a2, 700)) - i02;
+  if (rs <= 0) return iph - dv - v / rsh;
+  let i = guess !== undefined && Number.isFinite(guess) ? Math.min(guess, hi) : Math.min(iph - dv - v / rsh, hi);
   for (let k = 0; k < 200; k++) {
     const vd = v + i * rs;
     const e1 = Math.exp(Math.min(ln01 + vd / a1, 700));

@@ -15,6 +15,7 @@ import { uploadWithOriginals } from '@/server/services/originals-upload';
 import type { ObjectStore } from '@/server/storage';
 import { receivedFiles, removeReceived } from '@/server/upload-receiver';
 import { validate } from '@/server/validate';
+import { timingMark, timingReport, timingStart } from '@/server/services/upload-timing';
 
 /**
  * /api/batches — batches, uploads, the batch table and overlay. `receiveFiles` streams an
@@ -58,10 +59,12 @@ export function batchesRouter(db: Db, receiveFiles: RequestHandler, analyser: An
     requirePermission('batch:write'),
     // Refused before the body is read: another organisation's, a released or an archived batch.
     async (req, res, next) => {
+      timingStart();
       await loadWritableBatch(db, org(req), String(req.params.id));
       receiveFiles(req, res, next);
     },
     async (req, res) => {
+      timingMark('received');
       const c = callerOf(req);
       // A client that goes away stops the files not yet started (uploadCurves checks the signal).
       const gone = new AbortController();
@@ -74,6 +77,8 @@ export function batchesRouter(db: Db, receiveFiles: RequestHandler, analyser: An
         // Each file's original is kept in object storage before its curve (server/services/originals-upload.ts); storage down: 503.
         const { status, answer } = await uploadWithOriginals(db, store, analyser, who, String(req.params.id), receivedFiles(req), opts, gone.signal);
         if (!gone.signal.aborted) res.status(status).json(answer);
+        timingMark('answered');
+        timingReport();
       } finally {
         await removeReceived(req);
       }

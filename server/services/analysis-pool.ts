@@ -118,8 +118,17 @@ export function workerAnalyser(size: number, opts: { nice?: number; warmFiles?: 
   };
 }
 
+/** How much the analysis threads yield to the rest: QUASILEVEL_ANALYSIS_NICE, a Linux nice increment 0–19 (default 10). */
+export function analysisNice(): number {
+  const raw = process.env.QUASILEVEL_ANALYSIS_NICE;
+  if (raw === undefined || raw === '') return 10;
+  const n = Number(raw);
+  if (!Number.isInteger(n) || n < 0 || n > 19) throw new Error(`QUASILEVEL_ANALYSIS_NICE must be a whole number from 0 to 19, got "${raw}"`);
+  return n;
+}
+
 /** The analyser for a server: a worker pool of `analysisThreads()` threads warmed on `warmFiles`, inline when that is 0. */
 export function serverAnalyser(warmFiles: string[] = []): Analyser {
   const n = analysisThreads();
-  return n === 0 ? inlineAnalyser() : workerAnalyser(n, { warmFiles });
+  return n === 0 ? inlineAnalyser() : workerAnalyser(n, { warmFiles, nice: analysisNice() });
 }

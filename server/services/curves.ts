@@ -91,11 +91,18 @@ export type CurveToStore = { id: string; fileName: string; analysis: FileAnalysi
  * times cheaper a curve than one transaction each), deleting the curves they replace and marking
  * the batch changed. A reader, or a restart after a crash, sees all of the group or none of it.
  */
-export async function storeCurves(db: Db, target: { organizationId: string; batchId: string; userId: string | null }, items: CurveToStore[]): Promise<void> {
+export async function storeCurves(
+  db: Db,
+  target: { organizationId: string; batchId: string; userId: string | null },
+  items: CurveToStore[],
+  /** More writes of the same transaction, before the curves (an upload's rows of kept originals). */
+  before?: (tx: Tx) => Promise<void>,
+): Promise<void> {
   if (!items.length) return;
   const replaced = [...new Set(items.flatMap((x) => x.replaceIds ?? []))];
   await db.transaction(async (tx) => {
     await lockWritableBatch(tx, target.batchId);
+    await before?.(tx);
     if (replaced.length) await tx.delete(curve).where(and(inArray(curve.id, replaced), eq(curve.batchId, target.batchId)));
     await tx.insert(curve).values(
       items.map(({ id, fileName, analysis: a, fileSha256, fileSize, status }) => {

@@ -39,10 +39,16 @@ export async function openStorage(dataDir: string, env: NodeJS.ProcessEnv = proc
   return openFakeStorage(path.join(dataDir, 'objects'), { bucket, port: Number(env.S3_FAKE_PORT || 0) });
 }
 
-/** The local fake on `directory` with a client for it (the server without S3_URL, and the tests). */
-export async function openFakeStorage(directory: string, opts: { bucket?: string; port?: number } = {}): Promise<Storage> {
+/**
+ * The local fake on `directory` with a client for it (the server without S3_URL, and the tests).
+ * Its puts skip HTTP (the fake is in this process: fake-s3.ts) unless `sdk`.
+ */
+export async function openFakeStorage(directory: string, opts: { bucket?: string; port?: number; sdk?: boolean } = {}): Promise<Storage> {
   const fake = await startFakeS3(directory, opts.port ?? 0);
-  const store = s3Store({ url: fake.url, bucket: opts.bucket ?? DEFAULT_BUCKET, ...FAKE_CREDENTIALS });
+  const bucket = opts.bucket ?? DEFAULT_BUCKET;
+  const sdk = s3Store({ url: fake.url, bucket, ...FAKE_CREDENTIALS });
+  // Writes straight into the fake's folder (fake-s3.ts), the rest through the S3 API; `sdk: true` puts through the API as well.
+  const store: ObjectStore = opts.sdk ? sdk : { ...sdk, put: (key, bytes, contentType) => fake.put(bucket, key, bytes, contentType) };
   try {
     await store.ensureBucket();
   } catch (err) {

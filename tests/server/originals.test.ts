@@ -9,13 +9,16 @@
  * with nothing stored in the database. All files here are invented for this test.
  */
 import { createHash } from 'node:crypto';
+import { mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import { and, count, eq } from 'drizzle-orm';
 import Papa from 'papaparse';
 import { curve, originalFile, user } from '@/db/schema';
 import { simulateCurve } from '@/lib/iv';
 import { originalsCheckSchema, curveDetailSchema } from '@/lib/schemas/responses';
 import { cleanOrphans, deleteBatchOriginals } from '@/server/services/originals-admin';
-import { originalKey } from '@/server/storage';
+import { openFakeStorage, originalKey } from '@/server/storage';
 import { startFakeS3 } from '@/server/storage/fake-s3';
 import { signUp, startHarness } from '@/tests/server/harness';
 import type { Harness } from '@/tests/server/harness';
@@ -263,6 +266,28 @@ describe('re-analysis, release record and retention', () => {
     const r = await cleanOrphans(h.database.db, h.storage!.store);
     expect([r.objects, r.removed]).toEqual([before.length + 1, 1]);
     expect((await h.storage!.store.list('org/')).map((o) => o.key).sort()).toEqual(before.map((o) => o.key).sort());
+  });
+});
+
+describe('the local fake written without HTTP', () => {
+  it('leaves the same files as a PUT through the S3 API, and serves them back through it', async () => {
+    const dirs = [mkdtempSync(path.join(os.tmpdir(), 'ql-direct-')), mkdtempSync(path.join(os.tmpdir(), 'ql-sdk-'))];
+    const [direct, sdk] = [await openFakeStorage(dirs[0]), await openFakeStorage(dirs[1], { sdk: true })];
+    try {
+      const key = originalKey(orgId, 'some-batch', sha256(FILES[1].bytes));
+      await direct.store.put(key, FILES[1].bytes, 'text/csv');
+      await sdk.store.put(key, FILES[1].bytes, 'text/csv');
+      // Every file s3rver keeps for the object (the bytes, their MD5, the metadata), byte for byte alike.
+      const files = (dir: string) => readdirSync(dir, { recursive: true, withFileTypes: true }).filter((e) => e.isFile()).map((e) => [path.relative(dir, path.join(e.parentPath, e.name)), readFileSync(path.join(e.parentPath, e.name), 'latin1')]).sort();
+      expect(files(dirs[0])).toEqual(files(dirs[1]));
+      expect(files(dirs[0]).length).toBeGreaterThanOrEqual(3);
+      expect(Buffer.compare(await direct.store.get(key), FILES[1].bytes)).toBe(0);
+      expect((await direct.store.list('org/')).map((o) => [o.key, o.size])).toEqual([[key, FILES[1].bytes.length]]);
+    } finally {
+      await direct.stop();
+      await sdk.stop();
+      for (const d of dirs) rmSync(d, { recursive: true, force: true });
+    }
   });
 });
 

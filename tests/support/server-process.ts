@@ -75,8 +75,11 @@ export type ServerProcess = {
   stop: (opts?: { kill?: boolean; keepData?: boolean }) => Promise<number | null>;
 };
 
-/** `port`: listen there (a restart on the address clients already use); default a free one. */
-export async function startServerProcess(opts: { dataDir?: string; env?: Record<string, string>; timeoutMs?: number; port?: number } = {}): Promise<ServerProcess> {
+/**
+ * `port`: listen there (a restart on the address clients already use); default a free one.
+ * `nodeArgs`: more options for node (a profile: `--cpu-prof`, which NODE_OPTIONS does not take).
+ */
+export async function startServerProcess(opts: { dataDir?: string; env?: Record<string, string>; timeoutMs?: number; port?: number; nodeArgs?: string[] } = {}): Promise<ServerProcess> {
   const port = opts.port ?? (await freePort());
   const dataDir = opts.dataDir ?? freshDataDir();
   const url = `http://127.0.0.1:${port}`;
@@ -84,7 +87,7 @@ export async function startServerProcess(opts: { dataDir?: string; env?: Record<
   // node itself runs the server (no launcher or loader process in between): a SIGKILL to `child`
   // then really kills the server.
   const [node, bundle] = await serverCommand();
-  const child = spawn(node, [bundle], {
+  const child = spawn(node, [...(opts.nodeArgs ?? []), bundle], {
     cwd: REPO_ROOT,
     env: {
       ...process.env,
