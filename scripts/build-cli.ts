@@ -33,6 +33,18 @@ export function statInput(file: string): Input {
 }
 
 /** Writes `data` beside `target` and renames it over: a reader sees the old file or the new one, never half. */
+/**
+ * The inputs of a bundle as its record keeps them. A file changed while esbuild read it may be in
+ * the bundle in its old state; it is recorded as unknown, so the next start builds again (the
+ * second before on coarse-clock file systems).
+ */
+export function recordedInputs(files: string[], startedAt: number): Input[] {
+  return [...files].sort().map((file): Input => {
+    const input = statInput(file);
+    return input[2] >= startedAt - 1000 ? [file, input[1], -1] : input;
+  });
+}
+
 export function writeAtomic(target: string, data: string | Uint8Array): void {
   const tmp = `${target}.${process.pid}.tmp`;
   writeFileSync(tmp, data);
@@ -63,12 +75,7 @@ export function buildCli(): number {
     write: false,
     logLevel: 'warning',
   });
-  // A file changed while esbuild read it may be in the bundle in its old state; it is recorded as
-  // unknown, so the next start builds again (the second before on coarse-clock file systems).
-  const inputs = [...Object.keys(result.metafile.inputs), ...BUILD_FILES].sort().map((file): Input => {
-    const input = statInput(file);
-    return input[2] >= startedAt - 1000 ? [file, input[1], -1] : input;
-  });
+  const inputs = recordedInputs([...Object.keys(result.metafile.inputs), ...BUILD_FILES], startedAt);
   mkdirSync(CLI_BUILD_DIR, { recursive: true });
   for (const out of result.outputFiles) writeAtomic(out.path, out.contents);
   const record: InputRecord = {

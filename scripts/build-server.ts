@@ -15,8 +15,8 @@ import { build, version as esbuildVersion } from 'esbuild';
 import type { Plugin } from 'esbuild';
 import { mkdirSync, readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
-import { recordIsFresh, statInput, writeAtomic } from './build-cli';
-import type { Input, InputRecord } from './build-cli';
+import { recordedInputs, recordIsFresh, statInput, writeAtomic } from './build-cli';
+import type { InputRecord } from './build-cli';
 
 const ROOT = path.resolve(__dirname, '..');
 export const SERVER_BUILD_DIR = path.join(ROOT, 'build');
@@ -90,11 +90,7 @@ export async function buildServer(): Promise<number> {
     write: false,
     logLevel: 'warning',
   });
-  // As in build-cli.ts: a file changed while esbuild read it is recorded as unknown (rebuilt next time).
-  const inputs = [...Object.keys(result.metafile.inputs), ...BUILD_FILES].sort().map((file): Input => {
-    const input = statInput(file);
-    return input[2] >= startedAt - 1000 ? [file, input[1], -1] : input;
-  });
+  const inputs = recordedInputs([...Object.keys(result.metafile.inputs), ...BUILD_FILES], startedAt);
   mkdirSync(SERVER_BUILD_DIR, { recursive: true });
   for (const out of result.outputFiles) writeAtomic(out.path, out.contents);
   const outputs = [SERVER_BUNDLE, WORKER_BUNDLE, ANALYSIS_WORKER_BUNDLE].map((f) => statInput(path.relative(ROOT, f)));
