@@ -118,6 +118,8 @@ it('submit, release confirmation and confirm with the keyboard alone', async () 
     await page.keyboard.press('Enter');
     await page.locator('[data-testid="state-released"]:visible').first().waitFor();
     await dialog.waitFor({ state: 'detached' });
+    // The record is fetched again after the release; its answer may come a moment after the state's.
+    await page.getByTestId('review-record').getByText(/released/).first().waitFor();
     expect(await page.getByTestId('review-record').innerText()).toMatch(/Quinn Mbeki released[\s\S]*22 pass, 2 fail[\s\S]*Two modules to rework/);
   } finally {
     await qa.close();
