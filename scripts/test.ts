@@ -11,7 +11,7 @@
  * Ends with one line `tests: N passed, M failed` over all of them.
  */
 import { spawn, spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { buildWeb } from './build-web';
 import { buildServerIfStale } from './build-server';
@@ -34,7 +34,40 @@ function ensureChromium(): void {
   }
 }
 
-type JestJson = { numPassedTests: number; numFailedTests: number; numPendingTests: number; success: boolean };
+type JestJson = {
+  numPassedTests: number;
+  numFailedTests: number;
+  numPendingTests: number;
+  success: boolean;
+  testResults?: { name: string; message?: string; assertionResults?: { fullName: string; status: string; failureMessages?: string[] }[] }[];
+};
+
+/** Where the failures of the last run are listed (printed again at the end of `.ci/run`). */
+const FAILURES_FILE = path.join(ROOT, 'artifacts', 'test-failures.txt');
+
+/**
+ * The failed tests of the lanes, each with the first lines of its message: printed last, so the
+ * end of a long log (all a CI page may show) says what failed.
+ */
+function failureSummary(results: JestJson[]): string {
+  const lines: string[] = [];
+  const firstLines = (m: string) =>
+    m
+      .replace(/\u001b\[[0-9;]*m/g, '')
+      .split('\n')
+      .filter((l) => l.trim() && !/^\s+at /.test(l))
+      .slice(0, 6)
+      .map((l) => `      ${l.slice(0, 200)}`);
+  for (const r of results) {
+    for (const file of r.testResults ?? []) {
+      const name = path.relative(ROOT, file.name);
+      const failed = (file.assertionResults ?? []).filter((a) => a.status === 'failed');
+      if (!failed.length && file.message) lines.push(`  ✕ ${name} (the file did not run)`, ...firstLines(file.message));
+      for (const a of failed) lines.push(`  ✕ ${name} › ${a.fullName}`, ...firstLines((a.failureMessages ?? []).join('\n')));
+    }
+  }
+  return lines.join('\n');
+}
 
 const FAILED_TO_RUN: JestJson = { numPassedTests: 0, numFailedTests: 1, numPendingTests: 0, success: false };
 
@@ -131,6 +164,12 @@ async function main(): Promise<number> {
   const passed = results.reduce((s, r) => s + r.numPassedTests, 0);
   const failed = results.reduce((s, r) => s + r.numFailedTests, 0);
   const skipped = results.reduce((s, r) => s + r.numPendingTests, 0);
+  const failures = failureSummary(results);
+  rmSync(FAILURES_FILE, { force: true });
+  if (failures) {
+    writeFileSync(FAILURES_FILE, `${failures}\n`);
+    console.log(`\n[test] failed:\n${failures}`);
+  }
   console.log(`\n[test] whole run ${((Date.now() - started) / 1000).toFixed(0)} s`);
   console.log(`tests: ${passed} passed, ${failed} failed${skipped ? `, ${skipped} skipped` : ''}`);
   return failed === 0 && results.every((r) => r.success) ? 0 : 1;
