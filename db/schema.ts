@@ -3,7 +3,7 @@
  * written from better-auth's documented schema; field names are the ones better-auth expects.
  * The product's own tables follow. Every product record carries `organizationId`.
  */
-import { boolean, doublePrecision, index, integer, jsonb, pgTable, text, timestamp, uniqueIndex } from 'drizzle-orm/pg-core';
+import { boolean, doublePrecision, index, integer, json, jsonb, pgTable, text, timestamp, uniqueIndex } from 'drizzle-orm/pg-core';
 import type { CurveMeta, FitResult, Flag, Metrics } from '@/lib/iv/types';
 import type { StcOutcome } from '@/lib/schemas/curves';
 
@@ -310,8 +310,9 @@ export const curve = pgTable(
     deviceId: text('device_id').notNull(),
     fileName: text('file_name').notNull(),
     meta: jsonb('meta').$type<CurveMeta>().notNull(),
-    voltage_v: jsonb('voltage_v').$type<number[]>().notNull(),
-    current_a: jsonb('current_a').$type<number[]>().notNull(),
+    // json, not jsonb: stored as sent and read back without jsonb's conversion of every number (measured: README, "Past one machine").
+    voltage_v: json('voltage_v').$type<number[]>().notNull(),
+    current_a: json('current_a').$type<number[]>().notNull(),
     notes: jsonb('notes').$type<string[]>().notNull(),
     metrics: jsonb('metrics').$type<Metrics>().notNull(),
     flags: jsonb('flags').$type<Flag[]>().notNull(),

@@ -136,10 +136,13 @@ export function createApp(deps: AppDeps): Express {
   app.use('/api/organization', session, organizationRouter(db));
   app.use('/api/outbox', session, outboxRouter(db));
   const store = deps.store ?? null;
+  const receiver = receiveUploads(deps.uploadDir ?? path.join(os.tmpdir(), `quasilevel-uploads-${process.pid}`), deps.uploadLimits);
+  // What uploads hold in memory now (tests check it goes back to 0).
+  app.locals.uploadMemory = receiver.budget;
   app.use(
     '/api/batches',
     session,
-    batchesRouter(db, receiveUploads(deps.uploadDir ?? path.join(os.tmpdir(), `quasilevel-uploads-${process.pid}`), deps.uploadLimits), deps.analyser, store),
+    batchesRouter(db, receiver, deps.analyser, store),
     reviewsRouter(db, deps.mailer, baseUrl),
     batchOriginalsRouter(db, store),
     fitsRouter(db, deps.analyser),

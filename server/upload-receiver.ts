@@ -1,9 +1,10 @@
 /**
- * Receiving an upload: the multipart body is streamed to a temporary folder in the data folder
- * (never held in memory), within per-request caps answered with 413 before the body is read on,
+ * Receiving an upload: the multipart body is streamed part by part, small files kept in memory
+ * within a budget the process shares and the rest in a temporary folder in the data folder
+ * (server/upload-storage.ts), within per-request caps answered with 413 before the body is read on,
  * and every part becomes either a received file or that file's own rejection (a name that is not
  * UTF-8 or holds control characters, a part whose header cannot be read), so one bad part never
- * costs the others. The temporary files are removed when the request ends, however it ends.
+ * costs the others. The temporary files are removed, and the memory given back, when the request ends, however it ends.
  */
 import { mkdirSync } from 'node:fs';
 import { readFile, unlink } from 'node:fs/promises';
@@ -14,6 +15,7 @@ import { MAX_FILE_BYTES } from '@/lib/iv';
 import { textProblem } from '@/lib/schemas/text';
 import { HttpError } from '@/server/errors';
 import type { UploadedFile } from '@/server/services/uploads';
+import { MemoryBudget, release, spillingStorage } from '@/server/upload-storage';
 
 /** Caps of one upload request (README "Uploads"). */
 export type UploadLimits = {
@@ -23,13 +25,24 @@ export type UploadLimits = {
   totalBytes: number;
   /** Bytes of one file (the reader's own limit). */
   fileBytes: number;
+  /** Bytes the process's uploads hold in memory at once (files of up to `memoryFileBytes`); 0 writes every file to disk. */
+  memoryBytes: number;
+  /** Largest file kept in memory. */
+  memoryFileBytes: number;
 };
 
 /**
  * 2,000 files (the benchmark sends 1,000 curves in one request); 512 MB a request, because the web app
  * sends 40 files a request (lib/api/batches.ts UPLOAD_CHUNK) of up to 10 MB each, plus the form around them.
+ * In memory: 64 MB over all requests at once, files of up to 1 MB (a flash tester's file is 2–60 kB).
  */
-export const UPLOAD_LIMITS: UploadLimits = { files: 2000, totalBytes: 512 * 1024 * 1024, fileBytes: MAX_FILE_BYTES };
+export const UPLOAD_LIMITS: UploadLimits = {
+  files: 2000,
+  totalBytes: 512 * 1024 * 1024,
+  fileBytes: MAX_FILE_BYTES,
+  memoryBytes: 64 * 1024 * 1024,
+  memoryFileBytes: 1024 * 1024,
+};
 
 /** Longest file name kept, in characters (most file systems stop at 255). */
 export const MAX_FILE_NAME_CHARS = 255;
@@ -39,7 +52,7 @@ const MB = 1024 * 1024;
 /** A part busboy could not read, and how many file parts came before it. */
 type UnreadablePart = { after: number };
 
-type Receiving = { unreadable: UnreadablePart[]; files: number; answered: boolean };
+type Receiving = { unreadable: UnreadablePart[]; files: number; answered: boolean; budget: MemoryBudget };
 const receiving = new WeakMap<Request, Receiving>();
 
 /**
@@ -84,10 +97,11 @@ function checkName(name: string): { name: string; problem?: string } {
  * Middleware for `POST …/curves`: checks the caps it can check from the headers, streams the
  * files to `dir` and leaves `req.files` (multer's list, in the order sent) for `receivedFiles`.
  */
-export function receiveUploads(dir: string, limits: UploadLimits = UPLOAD_LIMITS): RequestHandler {
+export function receiveUploads(dir: string, limits: UploadLimits = UPLOAD_LIMITS): RequestHandler & { budget: MemoryBudget } {
   mkdirSync(dir, { recursive: true });
+  const budget = new MemoryBudget(limits.memoryBytes);
   const options: multer.Options & { streamHandler: (req: Request, busboy: Writable) => void } = {
-    storage: multer.diskStorage({ destination: dir }),
+    storage: spillingStorage(dir, budget, limits.memoryFileBytes),
     defParamCharset: 'latin1',
     limits: { fileSize: limits.fileBytes, files: limits.files, fields: 20, fieldSize: 1024 },
     streamHandler: (req, busboy) => {
@@ -112,7 +126,7 @@ export function receiveUploads(dir: string, limits: UploadLimits = UPLOAD_LIMITS
   };
   const upload = multer(options).array('files', limits.files);
 
-  return (req: Request, res: Response, next: NextFunction) => {
+  const handler = (req: Request, res: Response, next: NextFunction) => {
     if (!req.is('multipart')) return next();
     const declared = Number(req.headers['content-length']);
     if (req.headers['content-length'] === undefined || !Number.isFinite(declared)) {
@@ -121,7 +135,7 @@ export function receiveUploads(dir: string, limits: UploadLimits = UPLOAD_LIMITS
     if (declared > limits.totalBytes) {
       return refuseNow(res, new HttpError(413, 'upload_too_large', `An upload may hold at most ${limits.totalBytes / MB} MB; this one is ${(declared / MB).toFixed(1)} MB and nothing was stored. Split the upload.`));
     }
-    const state: Receiving = { unreadable: [], files: 0, answered: false };
+    const state: Receiving = { unreadable: [], files: 0, answered: false, budget };
     receiving.set(req, state);
     upload(req, res, (err: unknown) => {
       if (!err) return next();
@@ -135,6 +149,7 @@ export function receiveUploads(dir: string, limits: UploadLimits = UPLOAD_LIMITS
       return next(new HttpError(400, 'bad_upload', 'The upload could not be read as a multipart form.'));
     });
   };
+  return Object.assign(handler, { budget });
 }
 
 /**
@@ -159,14 +174,17 @@ export function receivedFiles(req: Request): UploadedFile[] {
       out.push({ name, rejected: { code: 'bad_file_name', error: `The file name "${name.slice(0, 80)}" ${problem}; rename the file and upload it again.` } });
       return;
     }
-    out.push({ name, size: f.size, read: () => readFile(f.path) });
+    const kept = f.buffer;
+    out.push({ name, size: f.size, read: () => (kept ? Promise.resolve(kept) : readFile(f.path)) });
   });
   placeUnreadable(Number.POSITIVE_INFINITY);
   return out;
 }
 
-/** Removes the request's temporary files (safe to call more than once). */
+/** Removes the request's temporary files and gives back the memory its files held (safe to call more than once). */
 export async function removeReceived(req: Request): Promise<void> {
   const stored = (req.files as Express.Multer.File[] | undefined) ?? [];
+  const budget = receiving.get(req)?.budget;
+  if (budget) for (const f of stored) release(budget, f);
   await Promise.all(stored.map((f) => (f.path ? unlink(f.path).catch(() => undefined) : undefined)));
 }

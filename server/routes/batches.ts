@@ -65,13 +65,13 @@ export function batchesRouter(db: Db, receiveFiles: RequestHandler, analyser: An
     },
     async (req, res) => {
       timingMark('received');
-      const c = callerOf(req);
       // A client that goes away stops the files not yet started (uploadCurves checks the signal).
       const gone = new AbortController();
       res.on('close', () => {
         if (!res.writableFinished) gone.abort();
       });
       try {
+        const c = callerOf(req);
         const opts = uploadOverridesSchema.parse(req.body ?? {});
         const who = { organizationId: c.organization.id, userId: c.user.id };
         // Each file's original is kept in object storage before its curve (server/services/originals-upload.ts); storage down: 503.

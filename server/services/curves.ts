@@ -132,7 +132,7 @@ export async function storeCurves(
       }),
     );
     const fits = items.flatMap(({ id, analysis: a }) =>
-      a.fits.map((f) => ({ id: crypto.randomUUID(), curveId: id, model: f.model, current: true, result: f, conditions: a.conditions, reason: 'upload', createdBy: target.userId })),
+      a.fits.map((f) => ({ id: crypto.randomUUID(), curveId: id, model: f.model, current: true, result: storedFit(f), conditions: a.conditions, reason: 'upload', createdBy: target.userId })),
     );
     if (fits.length) await tx.insert(fit).values(fits);
     // Cached answers about the batch (comparison, summary, pages) key on its revision.
@@ -153,8 +153,21 @@ export async function storeCurve(
 export async function insertFits(tx: Tx | Db, curveId: string, fits: FitResult[], conditions: Record<string, unknown>, reason: string, userId: string | null) {
   if (!fits.length) return;
   await tx.insert(fit).values(
-    fits.map((f) => ({ id: crypto.randomUUID(), curveId, model: f.model, current: true, result: f, conditions, reason, createdBy: userId })),
+    fits.map((f) => ({ id: crypto.randomUUID(), curveId, model: f.model, current: true, result: storedFit(f), conditions, reason, createdBy: userId })),
   );
+}
+
+/** Significant digits a stored residual keeps. */
+export const RESIDUAL_DIGITS = 4;
+
+/**
+ * A fit as stored: its residuals to RESIDUAL_DIGITS significant digits. They are drawn (the curve
+ * page's residual chart) and summed (lib/analysis/compare-fits.ts), where the fifth digit changes
+ * nothing; a residual kept in full is ~20 characters against ~9, half of a curve's stored bytes,
+ * and parsing those digits was most of the database's work in storing an upload.
+ */
+export function storedFit(f: FitResult): FitResult {
+  return { ...f, residuals_a: f.residuals_a.map((r) => Number(r.toPrecision(RESIDUAL_DIGITS))) };
 }
 
 /** A fit without its per-point residuals (for lists). */

@@ -2,14 +2,15 @@
  * The local S3 fake (s3rver) the embedded server runs when no S3_URL is set: objects as files in
  * `<data>/objects`, on a loopback port of its own. Tests start one on a temporary folder.
  *
- * `put` writes an object the way s3rver's own PUT does (its store's paths: the bytes, their MD5
- * and the metadata file) but without the HTTP request: the fake lives in this process, and a
- * request through the S3 SDK, the loopback socket and s3rver's Koa stack cost ~2.5 ms of this
- * process's main thread an object (measured: 1,000 originals of an upload), about as much as
- * storing their curves. Unlike that PUT it answers only once every file is written. Reads,
- * lists and deletes still go through the S3 API (server/storage/object-store.ts).
+ * `put` writes an object where s3rver's own PUT does (its store's object path) but without the
+ * HTTP request: the fake lives in this process, and a request through the S3 SDK, the loopback
+ * socket and s3rver's Koa stack cost ~2.5 ms of this process's main thread an object (measured:
+ * 1,000 originals of an upload), about as much as storing their curves. It writes the bytes
+ * only: s3rver makes an object's MD5 file itself when the object is first read, and keeps no
+ * metadata file for an object without metadata (the type an original is served with is in its
+ * `original_file` row), so an original costs one file instead of three. Reads, lists and deletes
+ * still go through the S3 API (server/storage/object-store.ts).
  */
-import { createHash } from 'node:crypto';
 import { mkdirSync } from 'node:fs';
 import { mkdir, writeFile } from 'node:fs/promises';
 import path from 'node:path';
@@ -20,7 +21,7 @@ export type FakeS3 = {
   url: string;
   port: number;
   /** Writes an object straight into the fake's folder (StorageUnavailableError once stopped). */
-  put: (bucket: string, key: string, bytes: Uint8Array, contentType: string) => Promise<void>;
+  put: (bucket: string, key: string, bytes: Uint8Array) => Promise<void>;
   stop: () => Promise<void>;
 };
 
@@ -30,7 +31,6 @@ export const FAKE_CREDENTIALS = { accessKeyId: 'S3RVER', secretAccessKey: 'S3RVE
 /** The part of s3rver's filesystem store (lib/stores/filesystem.js, s3rver 3.7) the direct put uses. */
 type FilesystemStore = {
   getResourcePath(bucket: string, key: string, resource: string): string;
-  putMetadata(bucket: string, key: string, metadata: Record<string, string>, md5: string): Promise<void>;
 };
 
 /** Starts s3rver on 127.0.0.1 (port 0: any free port) with its objects in `directory`. */
@@ -43,7 +43,7 @@ export async function startFakeS3(directory: string, port = 0): Promise<FakeS3> 
   return {
     url: `http://127.0.0.1:${info.port}`,
     port: info.port,
-    put: async (bucket, key, bytes, contentType) => {
+    put: async (bucket, key, bytes) => {
       if (stopped) throw new StorageUnavailableError('Object storage is not available (the local store is stopped): storing the original file could not be done. Try again when it is back.');
       try {
         const objectPath = store.getResourcePath(bucket, key, 'object');
@@ -53,7 +53,6 @@ export async function startFakeS3(directory: string, port = 0): Promise<FakeS3> 
           await mkdir(path.dirname(objectPath), { recursive: true });
           await writeFile(objectPath, bytes);
         });
-        await store.putMetadata(bucket, key, { 'content-type': contentType }, createHash('md5').update(bytes).digest('hex'));
       } catch (err) {
         throw new StorageUnavailableError(`Object storage is not available (${(err as NodeJS.ErrnoException).code ?? 'error'}): storing the original file could not be done. Try again when it is back.`);
       }

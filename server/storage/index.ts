@@ -48,7 +48,7 @@ export async function openFakeStorage(directory: string, opts: { bucket?: string
   const bucket = opts.bucket ?? DEFAULT_BUCKET;
   const sdk = s3Store({ url: fake.url, bucket, ...FAKE_CREDENTIALS });
   // Writes straight into the fake's folder (fake-s3.ts), the rest through the S3 API; `sdk: true` puts through the API as well.
-  const store: ObjectStore = opts.sdk ? sdk : { ...sdk, put: (key, bytes, contentType) => fake.put(bucket, key, bytes, contentType) };
+  const store: ObjectStore = opts.sdk ? sdk : { ...sdk, put: (key, bytes) => fake.put(bucket, key, bytes) };
   try {
     await store.ensureBucket();
   } catch (err) {

@@ -270,18 +270,27 @@ describe('re-analysis, release record and retention', () => {
 });
 
 describe('the local fake written without HTTP', () => {
-  it('leaves the same files as a PUT through the S3 API, and serves them back through it', async () => {
+  it('leaves the same object file as a PUT through the S3 API, the same MD5 once read, and serves it back through it', async () => {
     const dirs = [mkdtempSync(path.join(os.tmpdir(), 'ql-direct-')), mkdtempSync(path.join(os.tmpdir(), 'ql-sdk-'))];
     const [direct, sdk] = [await openFakeStorage(dirs[0]), await openFakeStorage(dirs[1], { sdk: true })];
     try {
       const key = originalKey(orgId, 'some-batch', sha256(FILES[1].bytes));
       await direct.store.put(key, FILES[1].bytes, 'text/csv');
       await sdk.store.put(key, FILES[1].bytes, 'text/csv');
-      // Every file s3rver keeps for the object (the bytes, their MD5, the metadata), byte for byte alike.
-      const files = (dir: string) => readdirSync(dir, { recursive: true, withFileTypes: true }).filter((e) => e.isFile()).map((e) => [path.relative(dir, path.join(e.parentPath, e.name)), readFileSync(path.join(e.parentPath, e.name), 'latin1')]).sort();
-      expect(files(dirs[0])).toEqual(files(dirs[1]));
-      expect(files(dirs[0]).length).toBeGreaterThanOrEqual(3);
+      // The files s3rver keeps for the object, by their kind (the bytes, their MD5, the metadata).
+      const files = (dir: string) =>
+        Object.fromEntries(
+          readdirSync(dir, { recursive: true, withFileTypes: true })
+            .filter((e) => e.isFile())
+            .map((e) => [/\._S3rver_(.+)$/.exec(e.name)![1], [path.relative(dir, path.join(e.parentPath, e.name)), readFileSync(path.join(e.parentPath, e.name), 'latin1')]]),
+        );
+      const viaSdk = files(dirs[1]);
+      expect(Object.keys(viaSdk).sort()).toEqual(['metadata.json', 'object', 'object.md5']);
+      // Written directly: the object alone, byte for byte and at the same path (its type is in the original_file row).
+      expect(files(dirs[0])).toEqual({ object: viaSdk.object });
       expect(Buffer.compare(await direct.store.get(key), FILES[1].bytes)).toBe(0);
+      // s3rver made its MD5 file on that first read, the same as the PUT's.
+      expect(files(dirs[0])['object.md5']).toEqual(viaSdk['object.md5']);
       expect((await direct.store.list('org/')).map((o) => [o.key, o.size])).toEqual([[key, FILES[1].bytes.length]]);
     } finally {
       await direct.stop();

@@ -23,6 +23,8 @@ import type { Database } from '@/db/client';
 import { curve, member, organization, session, user } from '@/db/schema';
 import { simulateCurve } from '@/lib/iv';
 import { createApp } from '@/server/app';
+import { UPLOAD_LIMITS } from '@/server/upload-receiver';
+import type { UploadLimits } from '@/server/upload-receiver';
 import { createAuth } from '@/server/auth';
 import { createMailer } from '@/server/mail';
 import { adoptApp, agentFor, BASE_URL, signIn, signUp, startHarness } from '@/tests/server/harness';
@@ -38,7 +40,7 @@ const cellRows = (() => {
 const cellFile = (header = '') => Buffer.from(header + cellRows);
 
 /** An app like the harness's, with the auth settings the harness does not expose. */
-async function customApp(opts: { baseURL: string; sessionSeconds?: number }) {
+async function customApp(opts: { baseURL: string; sessionSeconds?: number; uploadLimits?: UploadLimits }) {
   const database: Database = await openTestDatabase();
   const outboxDir = fs.mkdtempSync(path.join(os.tmpdir(), 'ql-sec-outbox-'));
   const mailer = createMailer({ db: database.db, outboxDir });
@@ -53,7 +55,7 @@ async function customApp(opts: { baseURL: string; sessionSeconds?: number }) {
     logLevel: 'error',
   });
   const uploadDir = fs.mkdtempSync(path.join(os.tmpdir(), 'ql-sec-uploads-'));
-  const app = createApp({ db: database.db, auth, mailer, uploadDir });
+  const app = createApp({ db: database.db, auth, mailer, uploadDir, uploadLimits: opts.uploadLimits });
   adoptApp({ app, database, auth, mailer, outboxDir });
   return {
     app,
@@ -225,7 +227,8 @@ describe('uploads write only into the upload folder, under names of their own', 
   let batchId: string;
   let app: Awaited<ReturnType<typeof customApp>>;
   beforeAll(async () => {
-    app = await customApp({ baseURL: BASE_URL });
+    // Every file to disk (small files are otherwise held in memory and never written).
+    app = await customApp({ baseURL: BASE_URL, uploadLimits: { ...UPLOAD_LIMITS, memoryBytes: 0 } });
     // Verified and let in through the harness's helper (sign-up alone gives no session).
     await signUp(app.app, { email: 'admin@files-pv.example' });
     tester = await signUp(app.app, { email: 'tester@files-pv.example' });
@@ -240,8 +243,8 @@ describe('uploads write only into the upload folder, under names of their own', 
     const tag = `ql-escape-${process.pid}-${Date.now()}`;
     const names = [`../../${tag}-a.csv`, `/tmp/${tag}-b.csv`, `..\\..\\${tag}-c.csv`, `sub/dir/${tag}-d.csv`, `${os.tmpdir()}/../${tag}-e.csv`];
     const spy = jest.spyOn(fs, 'createWriteStream');
-    // The `fs` multer loads is the very object spied on here (core modules are shared).
-    expect(createRequire(require.resolve('multer'))('fs')).toBe(fs);
+    // The `fs` the upload storage loads is the very object spied on here (core modules are shared).
+    expect(createRequire(require.resolve('@/server/upload-storage'))('fs')).toBe(fs);
     let req = tester.post(`/api/batches/${batchId}/curves`).field('on_duplicate', 'keep');
     for (const n of names) req = req.attach('files', cellFile(), n);
     const res = await req;
@@ -252,7 +255,7 @@ describe('uploads write only into the upload folder, under names of their own', 
     expect(written).toHaveLength(names.length);
     for (const w of written) {
       expect(path.dirname(w)).toBe(app.uploadDir);
-      // multer's disk storage names each file with 16 random bytes in hex, nothing of the sent name.
+      // Each file is named with 16 random bytes in hex, nothing of the sent name (server/upload-storage.ts).
       expect(path.basename(w)).toMatch(/^[0-9a-f]{32}$/);
     }
     const results = res.body.results as { file: string; accepted: boolean; curve_id: string; device_id: string }[];

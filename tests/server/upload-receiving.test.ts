@@ -1,8 +1,9 @@
 /**
- * How an upload arrives (server/upload-receiver.ts): streamed to a temporary folder, within the
+ * How an upload arrives (server/upload-receiver.ts, server/upload-storage.ts): small files in
+ * memory within the process's budget and the rest streamed to a temporary folder, within the
  * per-request caps (413 before the body is read on), one bad part is that file's rejection with
  * the good files before and after it stored, a client that goes away stops the files not yet
- * started, and the temporary folder is empty afterwards in every case.
+ * started, and afterwards the temporary folder is empty and the memory given back in every case.
  */
 import fs from 'node:fs';
 import net from 'node:net';
@@ -23,6 +24,7 @@ import { inlineAnalyser } from '@/server/services/analysis-pool';
 import type { Analyser } from '@/server/services/analysis-pool';
 import { UPLOAD_LIMITS } from '@/server/upload-receiver';
 import type { UploadLimits } from '@/server/upload-receiver';
+import type { MemoryBudget } from '@/server/upload-storage';
 import { adoptApp, BASE_URL, signUp } from '@/tests/server/harness';
 
 /** The benchmark cell simulated from its published optimum (tests/fixtures/reference-data/README.md). */
@@ -56,6 +58,10 @@ async function uploadApp(opts: { limits?: Partial<UploadLimits>; analyser?: Anal
     uploadDir,
     /** Files left in the upload folder. */
     leftovers: () => fs.readdirSync(uploadDir),
+    /** Bytes the uploads hold in memory. */
+    held: () => (app.locals.uploadMemory as MemoryBudget).used,
+    /** Nothing left on disk or in memory. */
+    clean: () => fs.readdirSync(uploadDir).length === 0 && (app.locals.uploadMemory as MemoryBudget).used === 0,
     stored: async () => (await database.db.select({ fileName: curve.fileName, deviceId: curve.deviceId }).from(curve).where(eq(curve.batchId, batchId))).map((r) => r.fileName).sort(),
     close: async () => {
       await database.close();
@@ -117,13 +123,17 @@ const batchOf = new WeakMap<Express, string>();
 // Each app opens PGlite and hashes passwords: slow on a busy 2-core machine.
 jest.setTimeout(240_000);
 
-/** The app with the default caps, shared by the tests that do not need their own. */
+/** The app with the default caps (small files in memory), shared by the tests that do not need their own. */
 let main: Awaited<ReturnType<typeof uploadApp>>;
+/** An app with small byte caps that writes every file to disk. */
+let small: Awaited<ReturnType<typeof uploadApp>>;
 beforeAll(async () => {
   main = await uploadApp();
+  small = await uploadApp({ limits: { totalBytes: 64 * 1024, fileBytes: 16 * 1024, memoryBytes: 0 } });
 });
 afterAll(async () => {
   await main?.close();
+  await small?.close();
 });
 
 type Result = { file: string; accepted: boolean; code?: string; error?: string; curveId?: string };
@@ -168,7 +178,7 @@ describe('one bad part among good files', () => {
     expect(results[7].error).toMatch(/longer than 120 characters/);
     expect(res.body).toEqual(expect.objectContaining({ accepted: 3, rejected: 6 }));
     expect(await u.stored()).toEqual(['good-1.csv', 'good-2.csv', 'good-3.csv']);
-    await eventually(() => u.leftovers().length === 0);
+    await eventually(() => u.clean());
   });
 
   it('a UTF-8 name with accents and an emoji is kept as sent', async () => {
@@ -177,21 +187,18 @@ describe('one bad part among good files', () => {
     const res = await u.tester.post(`/api/batches/${u.batchId}/curves`).set('Content-Type', type).send(body);
     expect(res.status).toBe(201);
     expect(res.body.results[0].file).toBe(name);
-    await eventually(() => u.leftovers().length === 0);
+    await eventually(() => u.clean());
   });
 });
 
 describe('caps per request', () => {
   let u: Awaited<ReturnType<typeof uploadApp>>;
-  beforeAll(async () => {
-    u = await uploadApp({ limits: { totalBytes: 64 * 1024, fileBytes: 16 * 1024 } });
-  });
-  afterAll(async () => {
-    await u?.close();
+  beforeAll(() => {
+    u = small;
   });
   afterEach(async () => {
     expect(await u.stored()).toEqual([]);
-    await eventually(() => u.leftovers().length === 0);
+    await eventually(() => u.clean());
   });
 
   it(`${UPLOAD_LIMITS.files + 1} files (the default cap is ${UPLOAD_LIMITS.files}) → 413 too_many_files, nothing stored`, async () => {
@@ -202,7 +209,7 @@ describe('caps per request', () => {
     expect(res.status).toBe(413);
     expect(res.body).toEqual({ code: 'too_many_files', message: expect.stringMatching(/At most 2000 files per upload; nothing was stored/) });
     expect(await main.stored()).toEqual(before);
-    await eventually(() => main.leftovers().length === 0);
+    await eventually(() => main.clean());
   });
 
   it('a body larger than the byte cap (64 KB here) → 413 upload_too_large before it is read', async () => {
@@ -242,8 +249,11 @@ describe('caps per request', () => {
 });
 
 describe('a client that goes away', () => {
-  it('half-way through sending: the files already written are removed', async () => {
-    const u = main;
+  it.each([
+    ['on disk', 'leftovers'],
+    ['in memory', 'held'],
+  ] as const)('half-way through sending (files %s): the files already received are removed', async (_where, kept) => {
+    const u = kept === 'leftovers' ? small : main;
     const before = await u.stored();
     {
       const { body, type } = multipart(Array.from({ length: 40 }, (_, k) => ({ filename: `h${k}.csv`, content: cellFile(`H-${k}`) })));
@@ -251,10 +261,11 @@ describe('a client that goes away', () => {
       try {
         raw.socket.write(raw.head(type, { 'Content-Length': String(body.length) }));
         raw.socket.write(body.subarray(0, Math.floor(body.length * 0.6)));
-        // Some files reach the folder before the client disappears.
-        await eventually(() => u.leftovers().length > 0);
+        // Some files are received before the client disappears.
+        await eventually(() => (kept === 'leftovers' ? u.leftovers().length : u.held()) > 0);
+        if (kept === 'held') expect(u.leftovers()).toEqual([]);
         raw.socket.destroy();
-        await eventually(() => u.leftovers().length === 0);
+        await eventually(() => u.clean());
       } finally {
         await raw.close();
       }
@@ -279,13 +290,43 @@ describe('a client that goes away', () => {
       await eventually(() => analysed > 10);
       pending.abort();
       expect(await outcome).toBe('aborted');
-      await eventually(() => u.leftovers().length === 0);
+      await eventually(() => u.clean());
       const seen = analysed;
       await new Promise((r) => setTimeout(r, 500));
       // At most the window ahead of the store step (64 files) was started after the abort.
       expect(analysed).toBe(seen);
       expect(analysed).toBeLessThan(total / 2);
       expect((await u.stored()).length).toBeLessThan(total / 2);
+    } finally {
+      await u.close();
+    }
+  });
+});
+
+describe('memory or disk', () => {
+  it('files up to the in-memory size are held in memory within the budget, the rest are on disk while they are analysed; all are stored and nothing is left', async () => {
+    const seen: { onDisk: number; held: number }[] = [];
+    const inline = inlineAnalyser();
+    let u: Awaited<ReturnType<typeof uploadApp>> | undefined;
+    const watching: Analyser = { threads: 0, close: async () => undefined, analyse: async (req) => (seen.push({ onDisk: u!.leftovers().length, held: u!.held() }), inline.analyse(req)) };
+    const small = cellFile('SMALL-1');
+    // A budget for two small files; files above 2 kB never in memory.
+    u = await uploadApp({ limits: { memoryBytes: 2 * small.length + 10, memoryFileBytes: 2048 }, analyser: watching });
+    try {
+      const big = Buffer.concat([Buffer.from('# device: BIG\n# ' + 'x'.repeat(3000) + '\n'), Buffer.from(cellRows)]);
+      const { body, type } = multipart([
+        { filename: 's1.csv', content: small },
+        { filename: 's2.csv', content: cellFile('SMALL-2') },
+        { filename: 's3.csv', content: cellFile('SMALL-3') },
+        { filename: 'big.csv', content: big },
+      ]);
+      const res = await u.tester.post(`/api/batches/${u.batchId}/curves`).set('Content-Type', type).send(body);
+      expect(res.status).toBe(201);
+      expect(res.body.accepted).toBe(4);
+      // The third small file found the budget used up and the big one is above the in-memory size.
+      expect(seen[0]).toEqual({ onDisk: 2, held: small.length + cellFile('SMALL-2').length });
+      expect(await u.stored()).toEqual(['big.csv', 's1.csv', 's2.csv', 's3.csv']);
+      await eventually(() => u!.clean());
     } finally {
       await u.close();
     }
