@@ -17,7 +17,7 @@ import path from 'node:path';
 import type { Page } from 'playwright-core';
 import { quantile, round } from '@/bench/stats';
 import { closeChromium, openBrowser, VIEWPORTS } from '@/tests/support/browser';
-import { REPO_ROOT, startServerProcess } from '@/tests/support/server-process';
+import { REPO_ROOT, startServerProcess, WARM_SERVER } from '@/tests/support/server-process';
 
 export const TARGETS = { fcp_ms: 800, usable_ms: 1000, transfer_bytes: 600_000 };
 
@@ -97,7 +97,7 @@ export async function benchFirstScreen({ quick }: { quick: boolean }): Promise<R
     return { missing: true };
   }
   const visits = quick ? 3 : 7;
-  const srv = await startServerProcess({ timeoutMs: 180_000 });
+  const srv = await startServerProcess({ timeoutMs: 180_000, env: WARM_SERVER });
   try {
     await oneVisit(srv.url); // the server's first answers (file reads, compression tables) are not a visitor's
     const runs: Visit[] = [];

@@ -21,7 +21,7 @@ import type { ReaderConfig, ReaderFigures } from '@/bench/load-reader';
 import { descendantPids, isAlive } from '@/bench/process-tree';
 import { quantile, round } from '@/bench/stats';
 import { syntheticFiles } from '@/bench/synthetic-files';
-import { REPO_ROOT, startServerProcess } from '@/tests/support/server-process';
+import { REPO_ROOT, startServerProcess, WARM_SERVER } from '@/tests/support/server-process';
 import type { ServerProcess } from '@/tests/support/server-process';
 
 const TARGET_READ_P95_MS = 250;
@@ -118,7 +118,7 @@ async function main(): Promise<number> {
     const t0 = Date.now();
     const loadAtStart = os.loadavg();
     console.log(`load: starting the server (fresh data folder, demo seed)…`);
-    server = await startServerProcess();
+    server = await startServerProcess({ env: WARM_SERVER });
     assertLoopback(server.url);
     const readerSession = await signIn(server.url, DESIGNER.email, DESIGNER.password);
     const writers: Session[] = [];

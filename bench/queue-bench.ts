@@ -19,7 +19,7 @@ import { createBatch, signIn, uploadFiles } from '@/bench/api-client';
 import { round } from '@/bench/stats';
 import { syntheticFiles } from '@/bench/synthetic-files';
 import { clusterAvailable, startCluster } from '@/scripts/pg-cluster';
-import { REPO_ROOT, serverCommand, startServerProcess } from '@/tests/support/server-process';
+import { REPO_ROOT, serverCommand, startServerProcess, WARM_SERVER } from '@/tests/support/server-process';
 
 const ENGINEER = { email: 'tomas.reyes@kestrel-pv.example', password: 'kestrel-test-demo' }; // sample-data/demo-accounts.json
 
@@ -118,7 +118,7 @@ export async function benchQueue(opts: { quick?: boolean; embeddedOnly?: boolean
   // of one server (one with --quick): the figure is their median, as the same upload on this shared
   // 2-core VM varies by ±10 % from run to run; the first (right after the server's start) is shown too.
   {
-    const server = await startServerProcess({ timeoutMs: 180_000, nodeArgs: opts.nodeArgs });
+    const server = await startServerProcess({ timeoutMs: 180_000, nodeArgs: opts.nodeArgs, env: WARM_SERVER });
     try {
       const dbDir = path.join(server.dataDir, 'db');
       const runs: { r: Run; cpu: Record<string, number>; grown: number }[] = [];
@@ -157,7 +157,7 @@ export async function benchQueue(opts: { quick?: boolean; embeddedOnly?: boolean
   const cluster = await startCluster();
   const env = { DATABASE_URL: cluster.url, BETTER_AUTH_SECRET: 'queue-bench-secret-0123456789abcdef', QUASILEVEL_WORKER: '0', QUASILEVEL_ANALYSIS_THREADS: '1' };
   const workers: ChildProcess[] = [];
-  const server = await startServerProcess({ env, timeoutMs: 180_000 }).catch((err) => {
+  const server = await startServerProcess({ env: { ...WARM_SERVER, ...env }, timeoutMs: 180_000 }).catch((err) => {
     cluster.stop();
     throw err;
   });

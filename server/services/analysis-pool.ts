@@ -127,8 +127,20 @@ export function analysisNice(): number {
   return n;
 }
 
+/**
+ * Whether the threads start with the server and warm up (QUASILEVEL_ANALYSIS_WARMUP, default 1):
+ * 0 starts them with the first fit, cold. The warm-up costs ~1 s of CPU a thread, which the test
+ * run's ~40 short-lived servers skip (tests/support/server-process.ts).
+ */
+export function analysisWarmUp(): boolean {
+  const raw = process.env.QUASILEVEL_ANALYSIS_WARMUP;
+  if (raw === undefined || raw === '') return true;
+  if (raw !== '0' && raw !== '1') throw new Error(`QUASILEVEL_ANALYSIS_WARMUP must be 0 or 1, got "${raw}"`);
+  return raw === '1';
+}
+
 /** The analyser for a server: a worker pool of `analysisThreads()` threads warmed on `warmFiles`, inline when that is 0. */
 export function serverAnalyser(warmFiles: string[] = []): Analyser {
   const n = analysisThreads();
-  return n === 0 ? inlineAnalyser() : workerAnalyser(n, { warmFiles, nice: analysisNice() });
+  return n === 0 ? inlineAnalyser() : workerAnalyser(n, { warmFiles: analysisWarmUp() ? warmFiles : [], nice: analysisNice() });
 }

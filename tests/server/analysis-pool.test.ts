@@ -9,7 +9,7 @@ import path from 'node:path';
 import { asc, eq } from 'drizzle-orm';
 import { curve, fit } from '@/db/schema';
 import { SAMPLE_DIR, demoCurveFiles } from '@/server/services/seed';
-import { analyseToOutcome, analysisThreads, inlineAnalyser, workerAnalyser } from '@/server/services/analysis-pool';
+import { analyseToOutcome, analysisThreads, analysisWarmUp, inlineAnalyser, workerAnalyser } from '@/server/services/analysis-pool';
 import type { AnalysisRequest } from '@/server/services/analysis-pool';
 import { signUp, startHarness } from '@/tests/server/harness';
 import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
@@ -87,6 +87,24 @@ describe('analysisThreads()', () => {
     expect(() => analysisThreads()).toThrow(/whole number/);
     delete process.env.QUASILEVEL_ANALYSIS_THREADS;
     expect(analysisThreads()).toBeGreaterThanOrEqual(1);
+  });
+});
+
+describe('analysisWarmUp()', () => {
+  const saved = process.env.QUASILEVEL_ANALYSIS_WARMUP;
+  afterEach(() => {
+    if (saved === undefined) delete process.env.QUASILEVEL_ANALYSIS_WARMUP;
+    else process.env.QUASILEVEL_ANALYSIS_WARMUP = saved;
+  });
+  it('warms up unless QUASILEVEL_ANALYSIS_WARMUP is 0, and refuses other values', () => {
+    delete process.env.QUASILEVEL_ANALYSIS_WARMUP;
+    expect(analysisWarmUp()).toBe(true);
+    process.env.QUASILEVEL_ANALYSIS_WARMUP = '0';
+    expect(analysisWarmUp()).toBe(false);
+    process.env.QUASILEVEL_ANALYSIS_WARMUP = '1';
+    expect(analysisWarmUp()).toBe(true);
+    process.env.QUASILEVEL_ANALYSIS_WARMUP = 'no';
+    expect(() => analysisWarmUp()).toThrow(/must be 0 or 1/);
   });
 });
 
