@@ -9,7 +9,7 @@ import path from 'node:path';
 import { asc, eq } from 'drizzle-orm';
 import { curve, fit } from '@/db/schema';
 import { SAMPLE_DIR, demoCurveFiles } from '@/server/services/seed';
-import { analyseToOutcome, analysisThreads, analysisWarmUp, inlineAnalyser, workerAnalyser } from '@/server/services/analysis-pool';
+import { ANALYSIS_BACKLOG, analyseToOutcome, analysisThreads, analysisWarmUp, inlineAnalyser, workerAnalyser } from '@/server/services/analysis-pool';
 import type { AnalysisRequest } from '@/server/services/analysis-pool';
 import { signUp, startHarness } from '@/tests/server/harness';
 import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
@@ -59,6 +59,22 @@ describe('workerAnalyser()', () => {
     const reqs = Array.from({ length: 24 }, (_, k) => (k % 3 === 2 ? garbage : k % 2 ? moduleReq : cell));
     const outs = await Promise.all(reqs.map((r) => pool.analyse(r)));
     outs.forEach((o, k) => expect(o.ok).toBe(reqs[k] !== garbage));
+  });
+});
+
+describe('a thread that dies', () => {
+  it('fails only the file it was on; the files queued behind it on that thread are analysed', async () => {
+    // One thread, so every file is in its backlog when the fourth one ends it.
+    const pool = workerAnalyser(1, { filename: path.join(__dirname, '..', 'support', 'dying-analysis-worker.cjs') });
+    try {
+      const names = Array.from({ length: 10 }, (_, k) => (k === 3 ? 'die.csv' : `f${k}.csv`));
+      expect(names.length).toBeLessThanOrEqual(ANALYSIS_BACKLOG);
+      const outs = await Promise.all(names.map((fileName) => pool.analyse({ bytes: new Uint8Array(1), fileName })));
+      expect(outs[3]).toMatchObject({ ok: false, kind: 'failure', message: expect.stringMatching(/^the analysis thread stopped/) });
+      expect(outs.filter((_, k) => k !== 3)).toEqual(names.filter((_, k) => k !== 3).map((file) => ({ ok: true, analysis: { file } })));
+    } finally {
+      await pool.close();
+    }
   });
 });
 
