@@ -7,7 +7,8 @@
  *    QUASILEVEL_WORKER=0 and `server/worker.ts` processes of one analysis thread each taking the
  *    queued fits. Skipped with a message where no PostgreSQL server binaries are installed.
  * Also what grows with what: rows written per curve (every table, counted before and after) and
- * the database's size per 10,000 curves (pg_database_size; the PGlite folder on disk).
+ * the database's size per 10,000 curves (pg_database_size; the PGlite folder on disk), and the CPU
+ * seconds each process spent on the upload (the server's by thread).
  */
 import { spawn } from 'node:child_process';
 import type { ChildProcess } from 'node:child_process';
@@ -88,6 +89,24 @@ function threadCpu(pid: number | undefined): Record<string, number> {
 }
 
 /** CPU seconds each thread group spent between two threadCpu readings, largest first. */
+/** CPU seconds of every process of the PostgreSQL cluster (postmaster and backends; those that ended are not counted). */
+function postgresCpu(): number {
+  let ticks = 0;
+  for (const pid of readdirSync('/proc').filter((d) => /^\d+$/.test(d))) {
+    try {
+      if (readFileSync(`/proc/${pid}/comm`, 'utf8').trim() !== 'postgres') continue;
+      const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+      const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+      ticks += Number(f[11]) + Number(f[12]);
+    } catch {
+      /* ended meanwhile */
+    }
+  }
+  return ticks / 100;
+}
+
+const processCpu = (pid: number | undefined) => Object.values(threadCpu(pid)).reduce((a, b) => a + b, 0);
+
 function cpuSpent(before: Record<string, number>, after: Record<string, number>): Record<string, number> {
   const spent = Object.entries(after).map(([k, v]) => [k, round(v - (before[k] ?? 0))] as const).filter(([, v]) => v > 0);
   return Object.fromEntries(spent.sort((a, b) => b[1] - a[1]));
@@ -109,7 +128,7 @@ async function timedUpload(url: string, curves: number, fitted: (batchId: string
   return { batchId, curves, upload_answer_s: round(answered / 1000), upload_to_fitted_s: round(total / 1000), curves_per_s: round(curves / (total / 1000)) };
 }
 
-export async function benchQueue(opts: { quick?: boolean; embeddedOnly?: boolean; nodeArgs?: string[] } = {}): Promise<Record<string, unknown>> {
+export async function benchQueue(opts: { quick?: boolean; embeddedOnly?: boolean; postgresOnly?: boolean; nodeArgs?: string[] } = {}): Promise<Record<string, unknown>> {
   const curves = opts.quick ? 100 : 1000;
   const out: Record<string, unknown> = { curves };
   console.log(`queue — upload-to-fitted, ${curves} curves, one multipart request, through server processes`);
@@ -117,7 +136,7 @@ export async function benchQueue(opts: { quick?: boolean; embeddedOnly?: boolean
   // Embedded: the fits in the request; done when the answer comes. Three uploads into new batches
   // of one server (one with --quick): the figure is their median, as the same upload on this shared
   // 2-core VM varies by ±10 % from run to run; the first (right after the server's start) is shown too.
-  {
+  if (!opts.postgresOnly) {
     const server = await startServerProcess({ timeoutMs: 180_000, nodeArgs: opts.nodeArgs, env: WARM_SERVER });
     try {
       const dbDir = path.join(server.dataDir, 'db');
@@ -169,9 +188,14 @@ export async function benchQueue(opts: { quick?: boolean; embeddedOnly?: boolean
       while (workers.length < n) workers.push(await startWorker(env));
       const rowsBefore = await rowCounts(cluster.url);
       const [{ size: sizeBefore }] = await query<{ size: string }>(cluster.url, 'select pg_database_size(current_database())::text as size');
+      const cpuOf = () => ({ server: processCpu(server.child.pid), workers: workers.map((w) => processCpu(w.pid)), postgres: postgresCpu() });
+      const cpuBefore = cpuOf();
       const r = await timedUpload(server.url, curves, done);
-      runs[`workers_${n}`] = { ...r, batchId: undefined, per_worker_curves_per_s: round(r.curves_per_s / n) };
+      const cpuAfter = cpuOf();
+      const cpu = { server: round(cpuAfter.server - cpuBefore.server), workers: cpuAfter.workers.map((c, k) => round(c - (cpuBefore.workers[k] ?? 0))), postgres: round(cpuAfter.postgres - cpuBefore.postgres) };
+      runs[`workers_${n}`] = { ...r, batchId: undefined, per_worker_curves_per_s: round(r.curves_per_s / n), cpu_s: cpu };
       console.log(`  PostgreSQL, ${n} worker process(es) × 1 thread     ${r.upload_to_fitted_s} s  (${r.curves_per_s} curves/s, ${round(r.curves_per_s / n)} per worker; upload answered in ${r.upload_answer_s} s)`);
+      console.log(`    CPU, s: server ${cpu.server}, workers ${cpu.workers.join(' + ')}, PostgreSQL ${cpu.postgres}; load average ${os.loadavg().map((x) => x.toFixed(1)).join(' ')}`);
       if (n === 1) {
         const rowsAfter = await rowCounts(cluster.url);
         const [{ size: sizeAfter }] = await query<{ size: string }>(cluster.url, 'select pg_database_size(current_database())::text as size');

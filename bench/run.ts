@@ -1,12 +1,12 @@
 /**
- * `npm run bench [-- --quick] [-- --only=<section>] [-- --embedded-only] [-- --json]`: runs each benchmark section in
+ * `npm run bench [-- --quick] [-- --only=<section>] [-- --embedded-only | --postgres-only] [-- --json]`: runs each benchmark section in
  * turn, prints its block and a summary against the targets of issues 3 and 8, and writes all
  * figures with the date and machine to artifacts/bench.json.
  * Sections: iv-fit (the engine's fits), server (upload-to-stored, comparison grid API),
  * bundle (first-load JavaScript of the web export), cli (the command line against MINPACK),
  * first-screen (a cold visit to the sign-in page in Chromium: paint, usable form, transfer),
  * queue (upload-to-fitted of 1,000 curves: embedded, and on PostgreSQL with 1 and 3 worker processes;
- * `--embedded-only` skips the PostgreSQL runs).
+ * `--embedded-only` skips the PostgreSQL runs, `--postgres-only` the embedded one).
  */
 import { mkdirSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
@@ -19,7 +19,7 @@ import { benchQueue } from '@/bench/queue-bench';
 import { benchServer } from '@/bench/server-bench';
 import { REPO_ROOT } from '@/tests/support/server-process';
 
-type Section = { name: string; run: (opts: { quick: boolean; embeddedOnly: boolean }) => Promise<Record<string, unknown>> };
+type Section = { name: string; run: (opts: { quick: boolean; embeddedOnly: boolean; postgresOnly: boolean }) => Promise<Record<string, unknown>> };
 
 const sections: Section[] = [
   { name: 'iv-fit', run: benchIvFit },
@@ -82,13 +82,14 @@ function summary(results: Record<string, Record<string, unknown>>): Line[] {
 async function main(): Promise<number> {
   const quick = process.argv.includes('--quick');
   const embeddedOnly = process.argv.includes('--embedded-only');
+  const postgresOnly = process.argv.includes('--postgres-only');
   const only = process.argv.find((a) => a.startsWith('--only='))?.slice('--only='.length);
   const startedAt = new Date().toISOString();
   const host = machine();
   const results: Record<string, Record<string, unknown>> = {};
   for (const section of sections) {
     if (only && section.name !== only) continue;
-    results[section.name] = await section.run({ quick, embeddedOnly });
+    results[section.name] = await section.run({ quick, embeddedOnly, postgresOnly });
     console.log('');
   }
   const lines = summary(results);

@@ -1,7 +1,7 @@
 /**
  * PostgreSQL mode against a real server (issue 15): a throwaway cluster (scripts/pg-cluster.ts),
  * the committed migrations through DATABASE_URL's module, an upload through the API whose fits are
- * queued, worker processes (`server/worker.ts`, as `npm run worker`) of which one is killed with
+ * queued, worker processes (the worker bundle, as `npm run worker`) of which one is killed with
  * SIGKILL mid-run, and the rows counted in the database itself: every accepted curve fitted
  * exactly once. Skipped where no PostgreSQL server binaries are installed. The synthetic files
  * are invented (bench/synthetic-files.ts).
@@ -21,10 +21,10 @@ import type { AnalysisQueue } from '@/server/services/analysis-jobs';
 import { clusterAvailable, startCluster } from '@/scripts/pg-cluster';
 import type { Cluster } from '@/scripts/pg-cluster';
 import { signIn, signUp, startHarness } from '@/tests/server/harness';
+import { serverCommand } from '@/tests/support/server-process';
 import type { Harness } from '@/tests/server/harness';
 
 const ROOT = path.resolve(__dirname, '..', '..');
-const TSX = path.join(ROOT, 'node_modules', '.bin', 'tsx');
 const CURVES = 240;
 
 describe('DATABASE_URL checks (no server needed)', () => {
@@ -37,8 +37,9 @@ describe('DATABASE_URL checks (no server needed)', () => {
     expect(databaseUrl({ DATABASE_URL: 'postgresql://u:p@db.example:6543/ql' })?.port).toBe('6543');
   });
 
-  it('a server with a malformed DATABASE_URL prints the reason and exits 1', () => {
-    const r = spawnSync(TSX, ['server/index.ts'], { cwd: ROOT, encoding: 'utf8', timeout: 60_000, env: { ...process.env, DATABASE_URL: 'postgres//nohost', PORT: '0', QUASILEVEL_DATA_DIR: path.join(require('node:os').tmpdir(), `ql-badurl-${process.pid}`) } });
+  it('a server with a malformed DATABASE_URL prints the reason and exits 1', async () => {
+    const [node, bundle] = await serverCommand('server');
+    const r = spawnSync(node, [bundle], { cwd: ROOT, encoding: 'utf8', timeout: 60_000, env: { ...process.env, DATABASE_URL: 'postgres//nohost', PORT: '0', QUASILEVEL_DATA_DIR: path.join(require('node:os').tmpdir(), `ql-badurl-${process.pid}`) } });
     expect(r.status).toBe(1);
     expect(r.stderr).toMatch(/DATABASE_URL/);
     expect(r.stderr).not.toMatch(/at .*\.ts:\d+/); // the message, not a stack
@@ -114,9 +115,10 @@ describe('DATABASE_URL checks (no server needed)', () => {
     expect(page.body.curves.every((c: { status: string; fits: unknown[] }) => c.status === 'queued' && c.fits.length === 0)).toBe(true);
 
     const env = { ...process.env, DATABASE_URL: cluster.url, QUASILEVEL_ANALYSIS_THREADS: '1', QUASILEVEL_JOB_EXPIRY_S: '10' };
+    // The worker bundle, as `npm run worker` runs it.
+    const [node, workerBundle] = await serverCommand('worker');
     const startWorker = () => {
-      // node itself with tsx's loader (not the tsx launcher, whose child would outlive a SIGKILL).
-      const w = spawn(process.execPath, ['--import', 'tsx', 'server/worker.ts'], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
+      const w = spawn(node, [workerBundle], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
       w.stderr!.on('data', (d: Buffer) => process.stderr.write(`[worker ${w.pid}] ${d}`));
       w.stdout!.on('data', (d: Buffer) => process.stderr.write(`[worker ${w.pid}] ${d}`));
       workers.push(w);
