@@ -126,7 +126,7 @@ export async function fitQueuedCurves(db: Db, analyser: Analyser, curveIds: stri
  * Jobs a poller takes at a time. Each fetch costs the same few round trips (select, mark fitting,
  * store, complete) whatever its size, and two pollers a thread keep the thread fitting while the
  * other one talks to the database: 16 and two a thread against 4 and one took 1,000 curves on one
- * worker thread from 9.9–11.8 s to 6.4–7.7 s, on three workers from 6.7–9.0 s to 5.8–6.5 s
+ * worker thread from 9.9–11.8 s to 5.7–7.7 s, on three workers from 6.7–9.0 s to 5.8–6.5 s
  * (`npm run bench -- --only=queue --postgres-only`, 3 December 2026). A small upload's jobs wait
  * behind at most two fetches a thread, ~0.1 s.
  */

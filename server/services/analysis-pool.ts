@@ -82,7 +82,7 @@ const WORKER_FILE =
  * an upload the main thread spends ~60 ms at a time storing a group of 25 curves: the two threads
  * of a 1,000-curve upload were busy ~35 % of the time and the cores ~20 % idle. With a backlog of
  * 16 (~60–100 ms of fits) they work through those moments: the embedded upload of 1,000 curves
- * went from a 5.7–5.8 s median to 4.6–4.8 s (`npm run bench -- --only=queue --embedded-only`,
+ * went from medians of 5.7–6.2 s to 4.2–4.7 s (`npm run bench -- --only=queue --embedded-only`,
  * 3 December 2026; 8 and 32 measured no better). Another client's refit or small upload waits
  * behind at most one backlog a thread, ~0.1 s.
  */
