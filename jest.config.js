@@ -23,7 +23,8 @@ const nodeProject = (name, roots) => ({
   testMatch: ['**/*.test.ts'],
   transform: { '\\.[cm]?[jt]sx?$': nodeTransform },
   transformIgnorePatterns: [`/node_modules/(?!(${esmPackages.join('|')})/)`],
-  moduleNameMapper: { '^@/(.*)$': '<rootDir>/$1' },
+  // mathjs on first use (tests/support/mathjs-on-first-use.js says why).
+  moduleNameMapper: { '^mathjs$': '<rootDir>/tests/support/mathjs-on-first-use.js', '^@/(.*)$': '<rootDir>/$1' },
   moduleFileExtensions: ['ts', 'tsx', 'js', 'mjs', 'cjs', 'json'],
 });
 

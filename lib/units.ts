@@ -8,9 +8,21 @@
  */
 import { create, createUnitDependencies, unitDependencies } from 'mathjs';
 
-const math = create({ unitDependencies, createUnitDependencies });
-math.createUnit('sun', '1000 W/m^2');
-math.createUnit('percent', { definition: '0.01' });
+let math: ReturnType<typeof create> | null = null;
+
+/**
+ * mathjs's unit system, made on first use: a reader that meets only the units numbers are kept in
+ * (V, A, degC, W/m^2…) never needs it (see `convert`), and where mathjs's main entry is loaded
+ * whole (jest has no tree shaking) it costs ~0.8 s of CPU to build.
+ */
+function unitMath(): ReturnType<typeof create> {
+  if (!math) {
+    math = create({ unitDependencies, createUnitDependencies });
+    math.createUnit('sun', '1000 W/m^2');
+    math.createUnit('percent', { definition: '0.01' });
+  }
+  return math;
+}
 
 /** The quantities the product reads, each with the unit its numbers are kept in. */
 export const TARGET_UNITS = {
@@ -120,8 +132,10 @@ function convert(value: number, unitText: string, quantity: Quantity): number | 
   const target = TARGET_UNITS[quantity];
   const u = mathjsUnit(unitText);
   if (u === null) return null;
-  if (u === '') return value;
+  // Already in the quantity's own unit (offsets included: degC to degC).
+  if (u === '' || u === target) return value;
   try {
+    const math = unitMath();
     const q = math.unit(value, u);
     if (!q.equalBase(math.unit(target))) return null;
     return q.toNumber(target);
