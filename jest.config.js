@@ -40,6 +40,7 @@ module.exports = {
       // merged moduleNameMapper still resolves 'react-native' to the native package without its mocks.
       preset: 'jest-expo',
       roots: ['<rootDir>/tests/components'],
+      setupFilesAfterEnv: ['<rootDir>/tests/components/setup.ts'],
       testMatch: ['**/*.test.tsx'],
       // The screens' charts load on first use in the browser (components/lazy-charts.tsx, a dynamic
       // import that jest's module system does not run); here they are the charts themselves.
