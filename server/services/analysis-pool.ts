@@ -104,21 +104,23 @@ export const ANALYSIS_BACKLOG = 16;
 export function workerAnalyser(size: number, opts: { nice?: number; warmFiles?: string[]; filename?: string } = {}): Analyser {
   if (!(Number.isInteger(size) && size >= 1)) throw new Error(`a worker pool needs at least one thread, got ${size}`);
   const warmFiles = opts.warmFiles ?? [];
+  const filename = opts.filename ?? WORKER_FILE;
+  const niceIncrement = opts.nice ?? 10;
   const pool = new Piscina<AnalysisRequest, AnalysisOutcome>({
-    filename: opts.filename ?? WORKER_FILE,
+    filename,
     minThreads: warmFiles.length ? size : 0,
     maxThreads: size,
     concurrentTasksPerWorker: ANALYSIS_BACKLOG,
     // Threads are kept once started (the largest timer Node allows): a new one compiles the engine again.
     idleTimeout: 2 ** 31 - 1,
-    niceIncrement: opts.nice ?? 10,
+    niceIncrement,
     workerData: { warmFiles },
   });
   let closed = false;
   const shuttingDown: AnalysisOutcome = { ok: false, kind: 'failure', message: 'the server is shutting down' };
   // One thread, one file at a time, started on the first thread loss: where a lost file is tried again.
   let recovery: Piscina<AnalysisRequest, AnalysisOutcome> | null = null;
-  const alone = () => (recovery ??= new Piscina({ filename: opts.filename ?? WORKER_FILE, minThreads: 0, maxThreads: 1, idleTimeout: 30_000, niceIncrement: opts.nice ?? 10, workerData: { warmFiles: [] } }));
+  const alone = () => (recovery ??= new Piscina({ filename, minThreads: 0, maxThreads: 1, idleTimeout: 30_000, niceIncrement, workerData: { warmFiles: [] } }));
   return {
     threads: size,
     analyse: async (req) => {

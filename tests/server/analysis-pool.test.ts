@@ -90,12 +90,17 @@ describe('closing a pool', () => {
   });
 });
 
-describe('analysisThreads()', () => {
-  const saved = process.env.QUASILEVEL_ANALYSIS_THREADS;
+/** Puts the variable back as it was before the describe block after each of its tests. */
+function restoreEnvAfterEach(name: string): void {
+  const saved = process.env[name];
   afterEach(() => {
-    if (saved === undefined) delete process.env.QUASILEVEL_ANALYSIS_THREADS;
-    else process.env.QUASILEVEL_ANALYSIS_THREADS = saved;
+    if (saved === undefined) delete process.env[name];
+    else process.env[name] = saved;
   });
+}
+
+describe('analysisThreads()', () => {
+  restoreEnvAfterEach('QUASILEVEL_ANALYSIS_THREADS');
   it('reads QUASILEVEL_ANALYSIS_THREADS and refuses nonsense', () => {
     process.env.QUASILEVEL_ANALYSIS_THREADS = '0';
     expect(analysisThreads()).toBe(0);
@@ -107,11 +112,7 @@ describe('analysisThreads()', () => {
 });
 
 describe('analysisWarmUp()', () => {
-  const saved = process.env.QUASILEVEL_ANALYSIS_WARMUP;
-  afterEach(() => {
-    if (saved === undefined) delete process.env.QUASILEVEL_ANALYSIS_WARMUP;
-    else process.env.QUASILEVEL_ANALYSIS_WARMUP = saved;
-  });
+  restoreEnvAfterEach('QUASILEVEL_ANALYSIS_WARMUP');
   it('warms up unless QUASILEVEL_ANALYSIS_WARMUP is 0, and refuses other values', () => {
     delete process.env.QUASILEVEL_ANALYSIS_WARMUP;
     expect(analysisWarmUp()).toBe(true);
