@@ -91,14 +91,21 @@ export function ChartFrame({
   const [showTable, setShowTable] = useState(false);
   // The drawing's own parts (axes, ticks, an svg the library marks as an image without a name)
   // are not read one by one: the frame is a figure named by `label`, and its numbers are in the
-  // table. On the web the svg elements are hidden from assistive technology after each render
-  // (a new svg comes only with a new width or new data, both renders of this frame); the
-  // pointer's readout beside them stays readable.
+  // table. On the web every svg is hidden from assistive technology as soon as it is added: the
+  // chart library may draw its svg after this frame's own render (a chart drawn in a second pass
+  // was once read, unnamed, by axe), and a mutation observer's answer comes before any other task
+  // can read the page. The pointer's readout beside the svg stays readable.
   useEffect(() => {
-    const node = plot.current as unknown as { querySelectorAll?: (q: string) => ArrayLike<{ setAttribute: (k: string, v: string) => void }> } | null;
-    if (Platform.OS !== 'web' || !node?.querySelectorAll) return;
-    for (const svg of Array.from(node.querySelectorAll('svg'))) svg.setAttribute('aria-hidden', 'true');
-  });
+    const node = plot.current as unknown as HTMLElement | null;
+    if (Platform.OS !== 'web' || !node?.querySelectorAll || typeof MutationObserver === 'undefined') return;
+    const hide = () => {
+      for (const svg of Array.from(node.querySelectorAll('svg:not([aria-hidden="true"])'))) svg.setAttribute('aria-hidden', 'true');
+    };
+    hide();
+    const watch = new MutationObserver(hide);
+    watch.observe(node, { childList: true, subtree: true });
+    return () => watch.disconnect();
+  }, []);
   const label = name ?? title ?? download?.title ?? 'Chart';
   const plot = useRef<View>(null);
   const onLayout = (e: LayoutChangeEvent) => {

@@ -24,7 +24,9 @@ export function ReleaseDialog({ evaluation, busy, error, onConfirm, onClose }: {
   const c = evaluation.counts;
   return (
     // react-native-web hands unknown props to the element with role="dialog": its accessible name.
-    <Modal transparent visible animationType="fade" onRequestClose={onClose} {...({ 'aria-label': `Release “${evaluation.batch.name}”?` } as object)}>
+    // No fade: react-native-web gives the element role="dialog" and traps focus only once the
+    // opening animation has ended, so during a fade a screen reader meets an unnamed box.
+    <Modal transparent visible animationType="none" onRequestClose={onClose} {...({ 'aria-label': `Release “${evaluation.batch.name}”?` } as object)}>
       <View style={styles.backdrop}>
         <View style={styles.sheet} testID="release-dialog">
           <ScrollView contentContainerStyle={{ gap: 14, padding: 20 }}>

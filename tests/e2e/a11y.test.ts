@@ -115,6 +115,18 @@ describe.each(Object.entries(VIEWPORTS))('at %s width', (vpName, viewport) => {
       const plot = b.page.locator('[data-testid="curve-screen"] [role="figure"][aria-label]').first();
       expect(await plot.locator('svg:not([aria-hidden="true"])').count()).toBe(0);
       expect(await plot.getAttribute('aria-label')).toMatch(/I-V curve, \d+ measured points/);
+      // An svg the chart library draws later (a second pass, no render of the frame) is hidden
+      // before any other task, axe's scan included, can read the page.
+      const lateSvgHidden = await plot.evaluate(async (frame) => {
+        const svg = document.createElementNS('http://www.w3.org/2000/svg', 'svg');
+        svg.setAttribute('role', 'img');
+        (frame.querySelector('div') ?? frame).appendChild(svg);
+        await new Promise((r) => setTimeout(r, 0));
+        const hidden = svg.getAttribute('aria-hidden');
+        svg.remove();
+        return hidden;
+      });
+      expect(lateSvgHidden).toBe('true');
       const toggle = b.page.locator('[data-testid="curve-screen"] [data-testid$="-table-toggle"]').first();
       const chartId = (await toggle.getAttribute('data-testid'))!.replace(/-table-toggle$/, '');
       await toggle.focus();
