@@ -2,16 +2,18 @@
  * `npm test`: every layer for real, in two lanes that run at the same time.
  *  1. jest projects lib, server, components (unit, API through supertest on an in-memory PGlite,
  *     React Native components through jest-expo), two workers;
- *  2. beside it, the web export (rebuilt only when sources changed) while one server seeds the
- *     demo data, then the browser tests in headless Chromium against the real server (jest
- *     project e2e), two files at a time.
+ *  2. beside it, the web export (rebuilt only when sources changed), then the browser tests in
+ *     headless Chromium against the real server (jest project e2e), two files at a time.
+ * From the start one server seeds the demo data into a folder that the server processes of both
+ * lanes start on copies of (tests/support/server-process.ts).
  * The browser lane waits on Chromium and the server most of the time, so running it beside the
  * unit lane fills the cores' idle time: on the 2-core machine the whole run went from ~10 min
  * (one lane after the other) to the figure in the README's performance table.
  * Ends with one line `tests: N passed, M failed` over all of them.
  */
 import { spawn, spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import os from 'node:os';
 import path from 'node:path';
 import { buildWeb } from './build-web';
 import { buildServerIfStale } from './build-server';
@@ -102,43 +104,32 @@ function e2eWorkers(): number {
   return Number.isInteger(n) && n >= 1 ? n : 2;
 }
 
-/** The browser lane: Chromium, the web export and the seeded data folder (at the same time), then the e2e project. */
-async function browserLane(): Promise<JestJson> {
+/** The demo data seeded once (tests/support/server-process.ts, SEEDED_TEMPLATE_ENV); resolves with an error message or null. */
+type Seeding = Promise<string | null>;
+
+/** The browser lane: Chromium and the web export (while the demo data is seeded), then the e2e project. */
+async function browserLane(seeding: Seeding): Promise<JestJson> {
   try {
     ensureChromium();
   } catch (err) {
     console.error(`[test] browser tests could not run: ${(err as Error).message}`);
     return FAILED_TO_RUN;
   }
-  // One server migrates and seeds the demo data once; every suite's server starts on a copy of it.
-  // It starts before the web export (a synchronous child) and seeds while the export runs.
   const t = Date.now();
-  const seeding = makeSeededTemplate().then(
-    (dir) => ({ dir }),
-    (err: Error) => ({ err }),
-  );
   try {
     buildWeb();
   } catch (err) {
     console.error(`[test] browser tests could not run: ${(err as Error).message}`);
-    const s = await seeding;
-    if ('dir' in s) rmSync(s.dir, { recursive: true, force: true });
     return FAILED_TO_RUN;
   }
-  const seeded = await seeding;
-  if ('err' in seeded) {
-    console.error(`[test] the demo data could not be seeded: ${seeded.err.message}`);
+  const seedingError = await seeding;
+  if (seedingError) {
+    console.error(`[test] the demo data could not be seeded: ${seedingError}`);
     return FAILED_TO_RUN;
   }
-  const template = seeded.dir;
   console.log(`[test] web export and seeded data folder for the browser tests ready in ${((Date.now() - t) / 1000).toFixed(0)} s`);
-  process.env[SEEDED_TEMPLATE_ENV] = template;
-  try {
-    const workers = e2eWorkers();
-    return await runJest('e2e', ['--selectProjects', 'e2e', ...(workers === 1 ? ['--runInBand'] : [`--maxWorkers=${workers}`])]);
-  } finally {
-    rmSync(template, { recursive: true, force: true });
-  }
+  const workers = e2eWorkers();
+  return runJest('e2e', ['--selectProjects', 'e2e', ...(workers === 1 ? ['--runInBand'] : [`--maxWorkers=${workers}`])]);
 }
 
 async function main(): Promise<number> {
@@ -155,12 +146,23 @@ async function main(): Promise<number> {
     console.error(`[test] the server could not be built: ${(err as Error).message}`);
     return 1;
   }
+  // One server migrates and seeds the demo data once, from the start, beside the unit lane and the
+  // web export; the servers of both lanes start on copies of it (each waits for it if it comes
+  // first). The folder is named now, so that the unit lane's jest, started next, knows it.
+  const template = mkdtempSync(path.join(os.tmpdir(), 'ql-seeded-'));
+  process.env[SEEDED_TEMPLATE_ENV] = template;
+  const seeding: Seeding = makeSeededTemplate(template).then(
+    () => null,
+    (err: Error) => err.message,
+  );
   // Two workers on two cores: jest's default there is one (all suites in a row), which leaves a
   // core idle whenever a suite waits on a child process, a worker thread or a timer.
   const unit = wantUnit ? runJest('unit', ['--selectProjects', 'lib', 'server', 'components', '--maxWorkers=2']) : null;
   // The export is a synchronous child: the unit lane runs on as a separate process meanwhile.
-  const e2e = wantE2e ? browserLane() : null;
+  const e2e = wantE2e ? browserLane(seeding) : null;
   const results = (await Promise.all([unit, e2e])).filter((r): r is JestJson => r !== null);
+  await seeding;
+  rmSync(template, { recursive: true, force: true });
   const passed = results.reduce((s, r) => s + r.numPassedTests, 0);
   const failed = results.reduce((s, r) => s + r.numFailedTests, 0);
   const skipped = results.reduce((s, r) => s + r.numPendingTests, 0);

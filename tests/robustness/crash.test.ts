@@ -17,7 +17,7 @@ import type { SyntheticFile } from '@/bench/synthetic-files';
 import { openDatabase } from '@/db/client';
 import { curve, fit } from '@/db/schema';
 import { isSingleDiodeFit } from '@/lib/iv';
-import { startServerProcess } from '@/tests/support/server-process';
+import { seededDataDir, startServerProcess } from '@/tests/support/server-process';
 import type { ServerProcess } from '@/tests/support/server-process';
 
 /**
@@ -115,7 +115,9 @@ let crash: Promise<Crash> | null = null;
  */
 function crashed(): Promise<Crash> {
   crash ??= (async () => {
-    const dataDir = newFolder('killed');
+    // The demo data as `npm test` seeded it (a copy), or an empty folder that this start seeds.
+    const dataDir = await seededDataDir('ql-crash-killed-');
+    folders.push(dataDir);
     const server = await start(dataDir);
     const session = await signIn(server.url, ENGINEER.email, ENGINEER.password);
     const batchId = await createBatch(session, { name: 'Crash test upload', description: 'killed mid-upload on purpose' });

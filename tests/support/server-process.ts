@@ -6,7 +6,7 @@
  */
 import { spawn } from 'node:child_process';
 import type { ChildProcess } from 'node:child_process';
-import { cpSync, existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { cpSync, existsSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
@@ -36,33 +36,62 @@ export async function serverCommand(which: 'server' | 'worker' = 'server'): Prom
 }
 
 /**
- * The environment variable naming a data folder that a server already migrated and seeded with the
- * demo data and then left (`npm test` makes one before the browser lane, scripts/test.ts). A
- * server started without its own folder gets a copy of it: the same demo data without each suite
- * paying for the migrations and the demo fits again (the browser lane's suites are independent:
- * each has its own copy).
+ * The environment variable naming a data folder that a server migrates and seeds with the demo
+ * data and then leaves (`npm test` names it before either lane starts and seeds it while the web
+ * export runs, scripts/test.ts). A server started without its own folder gets a copy of it: the
+ * same demo data without each suite paying for the migrations and the demo fits again (each suite
+ * has its own copy). A server asked for meanwhile waits for the seeding to end.
  */
 export const SEEDED_TEMPLATE_ENV = 'QUASILEVEL_TEST_SEEDED_DIR';
+/** Written into the template folder when its seeding server has stopped cleanly, or when it failed. */
+const TEMPLATE_READY = '.seeded';
+const TEMPLATE_FAILED = '.seeding-failed';
+/** How long a server start waits for the template before seeding a folder of its own. */
+const TEMPLATE_WAIT_MS = 300_000;
 
 /** The environment a benchmark's server gets on top: fitting threads started and warmed with the server, as in production. */
 export const WARM_SERVER: Record<string, string> = { QUASILEVEL_ANALYSIS_WARMUP: '1' };
 
-function freshDataDir(): string {
-  const dir = mkdtempSync(path.join(os.tmpdir(), 'ql-data-'));
+/** Whether the template is (or, after waiting, becomes) a seeded folder to copy. */
+async function templateReady(template: string): Promise<boolean> {
+  const deadline = Date.now() + TEMPLATE_WAIT_MS;
+  while (Date.now() < deadline) {
+    if (existsSync(path.join(template, TEMPLATE_READY))) return true;
+    if (!existsSync(template) || existsSync(path.join(template, TEMPLATE_FAILED))) return false;
+    await new Promise((r) => setTimeout(r, 200));
+  }
+  return false;
+}
+
+/**
+ * A new temporary data folder (`prefix` names it): a copy of the seeded template when `npm test`
+ * made one, else empty (the server then migrates and seeds it on its first start).
+ */
+export async function seededDataDir(prefix = 'ql-data-'): Promise<string> {
+  const dir = mkdtempSync(path.join(os.tmpdir(), prefix));
   const template = process.env[SEEDED_TEMPLATE_ENV];
-  if (template && existsSync(template)) cpSync(template, dir, { recursive: true, filter: (src) => path.basename(src) !== 'server.lock' });
+  if (template && (await templateReady(template))) {
+    const skip = new Set(['server.lock', TEMPLATE_READY, TEMPLATE_FAILED]);
+    cpSync(template, dir, { recursive: true, filter: (src) => !skip.has(path.basename(src)) });
+  }
   return dir;
 }
 
-/** Starts a server on a fresh folder, lets it migrate and seed, stops it and keeps the folder (see SEEDED_TEMPLATE_ENV). */
-export async function makeSeededTemplate(): Promise<string> {
+/**
+ * Starts a server on `dir` (an empty folder), lets it migrate and seed, stops it and marks the
+ * folder ready (see SEEDED_TEMPLATE_ENV); on failure marks it failed, so that no start waits on it.
+ */
+export async function makeSeededTemplate(dir: string): Promise<void> {
   const saved = process.env[SEEDED_TEMPLATE_ENV];
   delete process.env[SEEDED_TEMPLATE_ENV];
   try {
-    const s = await startServerProcess({ timeoutMs: 240_000 });
+    const s = await startServerProcess({ dataDir: dir, timeoutMs: 240_000 });
     const code = await s.stop({ keepData: true });
     if (code !== 0) throw new Error(`the seeding server stopped with ${code}:\n${s.log()}`);
-    return s.dataDir;
+    writeFileSync(path.join(dir, TEMPLATE_READY), '');
+  } catch (err) {
+    if (existsSync(dir)) writeFileSync(path.join(dir, TEMPLATE_FAILED), String(err));
+    throw err;
   } finally {
     if (saved !== undefined) process.env[SEEDED_TEMPLATE_ENV] = saved;
   }
@@ -84,7 +113,8 @@ export type ServerProcess = {
  */
 export async function startServerProcess(opts: { dataDir?: string; env?: Record<string, string>; timeoutMs?: number; port?: number; nodeArgs?: string[] } = {}): Promise<ServerProcess> {
   const port = opts.port ?? (await freePort());
-  const dataDir = opts.dataDir ?? freshDataDir();
+  // A PostgreSQL-mode server (DATABASE_URL) keeps no database in its folder: an empty one does.
+  const dataDir = opts.dataDir ?? (opts.env?.DATABASE_URL ? mkdtempSync(path.join(os.tmpdir(), 'ql-data-')) : await seededDataDir());
   const url = `http://127.0.0.1:${port}`;
   let output = '';
   // node itself runs the server (no launcher or loader process in between): a SIGKILL to `child`
