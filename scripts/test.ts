@@ -15,7 +15,7 @@ import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { buildWeb } from './build-web';
+import { buildWebAsync } from './build-web';
 import { buildServerIfStale } from './build-server';
 import { SEEDED_TEMPLATE_ENV, makeSeededTemplate } from '../tests/support/server-process';
 
@@ -117,7 +117,7 @@ async function browserLane(seeding: Seeding): Promise<JestJson> {
   }
   const t = Date.now();
   try {
-    buildWeb();
+    await buildWebAsync();
   } catch (err) {
     console.error(`[test] browser tests could not run: ${(err as Error).message}`);
     return FAILED_TO_RUN;
@@ -158,7 +158,6 @@ async function main(): Promise<number> {
   // Two workers on two cores: jest's default there is one (all suites in a row), which leaves a
   // core idle whenever a suite waits on a child process, a worker thread or a timer.
   const unit = wantUnit ? runJest('unit', ['--selectProjects', 'lib', 'server', 'components', '--maxWorkers=2']) : null;
-  // The export is a synchronous child: the unit lane runs on as a separate process meanwhile.
   const e2e = wantE2e ? browserLane(seeding) : null;
   const results = (await Promise.all([unit, e2e])).filter((r): r is JestJson => r !== null);
   await seeding;

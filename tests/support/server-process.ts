@@ -46,15 +46,15 @@ export const SEEDED_TEMPLATE_ENV = 'QUASILEVEL_TEST_SEEDED_DIR';
 /** Written into the template folder when its seeding server has stopped cleanly, or when it failed. */
 const TEMPLATE_READY = '.seeded';
 const TEMPLATE_FAILED = '.seeding-failed';
-/** How long a server start waits for the template before seeding a folder of its own. */
-const TEMPLATE_WAIT_MS = 300_000;
+/** How long a server start waits for the template at most before seeding a folder of its own (within its start deadline). */
+const TEMPLATE_WAIT_MS = 120_000;
 
 /** The environment a benchmark's server gets on top: fitting threads started and warmed with the server, as in production. */
 export const WARM_SERVER: Record<string, string> = { QUASILEVEL_ANALYSIS_WARMUP: '1' };
 
 /** Whether the template is (or, after waiting, becomes) a seeded folder to copy. */
-async function templateReady(template: string): Promise<boolean> {
-  const deadline = Date.now() + TEMPLATE_WAIT_MS;
+async function templateReady(template: string, waitMs: number): Promise<boolean> {
+  const deadline = Date.now() + waitMs;
   while (Date.now() < deadline) {
     if (existsSync(path.join(template, TEMPLATE_READY))) return true;
     if (!existsSync(template) || existsSync(path.join(template, TEMPLATE_FAILED))) return false;
@@ -67,10 +67,10 @@ async function templateReady(template: string): Promise<boolean> {
  * A new temporary data folder (`prefix` names it): a copy of the seeded template when `npm test`
  * made one, else empty (the server then migrates and seeds it on its first start).
  */
-export async function seededDataDir(prefix = 'ql-data-'): Promise<string> {
+export async function seededDataDir(prefix = 'ql-data-', waitMs = TEMPLATE_WAIT_MS): Promise<string> {
   const dir = mkdtempSync(path.join(os.tmpdir(), prefix));
   const template = process.env[SEEDED_TEMPLATE_ENV];
-  if (template && (await templateReady(template))) {
+  if (template && (await templateReady(template, waitMs))) {
     const skip = new Set(['server.lock', TEMPLATE_READY, TEMPLATE_FAILED]);
     cpSync(template, dir, { recursive: true, filter: (src) => !skip.has(path.basename(src)) });
   }
@@ -113,8 +113,12 @@ export type ServerProcess = {
  */
 export async function startServerProcess(opts: { dataDir?: string; env?: Record<string, string>; timeoutMs?: number; port?: number; nodeArgs?: string[] } = {}): Promise<ServerProcess> {
   const port = opts.port ?? (await freePort());
+  // Generous by default: a browser-lane server starts beside the unit lane on two cores. The
+  // deadline covers a wait for the seeded template too (at most half of it).
+  const timeoutMs = opts.timeoutMs ?? 180_000;
+  const deadline = Date.now() + timeoutMs;
   // A PostgreSQL-mode server (DATABASE_URL) keeps no database in its folder: an empty one does.
-  const dataDir = opts.dataDir ?? (opts.env?.DATABASE_URL ? mkdtempSync(path.join(os.tmpdir(), 'ql-data-')) : await seededDataDir());
+  const dataDir = opts.dataDir ?? (opts.env?.DATABASE_URL ? mkdtempSync(path.join(os.tmpdir(), 'ql-data-')) : await seededDataDir('ql-data-', Math.min(TEMPLATE_WAIT_MS, timeoutMs / 2)));
   const url = `http://127.0.0.1:${port}`;
   let output = '';
   // node itself runs the server (no launcher or loader process in between): a SIGKILL to `child`
@@ -138,8 +142,6 @@ export async function startServerProcess(opts: { dataDir?: string; env?: Record<
   child.stderr!.on('data', (d) => (output += d));
   const exited = new Promise<number | null>((resolve) => child.on('exit', (code) => resolve(code)));
 
-  // Generous by default: a browser-lane server starts beside the unit lane on two cores.
-  const deadline = Date.now() + (opts.timeoutMs ?? 180_000);
   for (;;) {
     if (child.exitCode !== null) throw new Error(`server exited early (${child.exitCode}):\n${output}`);
     try {
