@@ -14,6 +14,12 @@ import type { AnalysisRequest } from '@/server/services/analysis-pool';
 import { signUp, startHarness } from '@/tests/server/harness';
 import { REFERENCE_DATA_DIR } from '@/tests/support/reference-data';
 
+// A thread of the pool here loads the engine's TypeScript through tsx on its first file (the
+// server bundle's threads load build/analysis-worker.cjs instead): beside the browser lane on a
+// loaded 2-core machine, a fresh clone's first such test took 41 s and the upload test below
+// went past 60 s (CI, 3 December 2026). The tests check what the pool does, not how fast.
+jest.setTimeout(240_000);
+
 const REF = REFERENCE_DATA_DIR;
 const bytes = (p: string) => new Uint8Array(readFileSync(p));
 const cell: AnalysisRequest = { bytes: bytes(path.join(REF, 'cell-57mm-33C.csv')), fileName: 'cell.csv', overrides: { temp_c: 33, cells: 1 } };
