@@ -3,7 +3,7 @@
  * export (a content hash is kept in dist/.source-hash): a cold export takes minutes here.
  * `--force` always rebuilds.
  */
-import { spawn, spawnSync } from 'node:child_process';
+import { spawn } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { existsSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
@@ -68,47 +68,34 @@ function staleHash(force: boolean): string | null {
   return hash;
 }
 
-const EXPORT_ARGS = ['expo', 'export', '--platform', 'web', '--output-dir', 'dist'];
-const exportOptions = () => ({ cwd: ROOT, stdio: ['ignore', 'inherit', 'inherit'] as ('ignore' | 'inherit')[], env: { ...process.env, CI: '1', EXPO_NO_TELEMETRY: '1', ...EXPORT_ENV } });
-
-function finish(hash: string, status: number | null, started: number): void {
-  if (status !== 0) throw new Error(`expo export failed with status ${status}`);
-  preCompress();
-  writeFileSync(HASH_FILE, hash);
-  console.log(`[build:web] done in ${((Date.now() - started) / 1000).toFixed(0)} s`);
-}
-
-/** Builds dist/ when stale; returns true when it exported. */
-export function buildWeb(force = false): boolean {
-  const hash = staleHash(force);
-  if (!hash) return false;
-  const started = Date.now();
-  finish(hash, spawnSync('npx', EXPORT_ARGS, exportOptions()).status, started);
-  return true;
-}
-
 /**
- * buildWeb with the export as an asynchronous child: the caller's event loop runs on meanwhile
- * (`npm test` notices the end of its seeding server while a cold export runs).
+ * Builds dist/ when stale; returns true when it exported. The export is an asynchronous child, so
+ * the caller's event loop runs on meanwhile (`npm test` notices the end of its seeding server
+ * while a cold export runs).
  */
-export async function buildWebAsync(force = false): Promise<boolean> {
+export async function buildWeb(force = false): Promise<boolean> {
   const hash = staleHash(force);
   if (!hash) return false;
   const started = Date.now();
-  const child = spawn('npx', EXPORT_ARGS, exportOptions());
+  const child = spawn('npx', ['expo', 'export', '--platform', 'web', '--output-dir', 'dist'], {
+    cwd: ROOT,
+    stdio: ['ignore', 'inherit', 'inherit'],
+    env: { ...process.env, CI: '1', EXPO_NO_TELEMETRY: '1', ...EXPORT_ENV },
+  });
   const status = await new Promise<number | null>((resolve) => {
     child.on('error', () => resolve(-1));
     child.on('exit', (code) => resolve(code));
   });
-  finish(hash, status, started);
+  if (status !== 0) throw new Error(`expo export failed with status ${status}`);
+  preCompress();
+  writeFileSync(HASH_FILE, hash);
+  console.log(`[build:web] done in ${((Date.now() - started) / 1000).toFixed(0)} s`);
   return true;
 }
 
 if (require.main === module) {
-  try {
-    buildWeb(process.argv.includes('--force'));
-  } catch (err) {
-    console.error((err as Error).message);
+  buildWeb(process.argv.includes('--force')).catch((err: Error) => {
+    console.error(err.message);
     process.exit(1);
-  }
+  });
 }

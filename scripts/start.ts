@@ -14,7 +14,7 @@ async function main() {
   const port = Number(process.env.PORT || 8080);
   // A second `npm start` stops here, before rebuilding the web app the first one serves.
   await checkCanStart(dataDir(), port, serverHost());
-  buildWeb();
+  await buildWeb();
   const rt = await startRuntime({ dataDir: dataDir(), port, host: serverHost(), webDir: path.resolve(__dirname, '..', 'dist') });
   const warning = networkWarning();
   const lines = [

@@ -15,7 +15,7 @@ import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { buildWebAsync } from './build-web';
+import { buildWeb } from './build-web';
 import { buildServerIfStale } from './build-server';
 import { SEEDED_TEMPLATE_ENV, makeSeededTemplate } from '../tests/support/server-process';
 
@@ -117,7 +117,7 @@ async function browserLane(seeding: Seeding): Promise<JestJson> {
   }
   const t = Date.now();
   try {
-    await buildWebAsync();
+    await buildWeb();
   } catch (err) {
     console.error(`[test] browser tests could not run: ${(err as Error).message}`);
     return FAILED_TO_RUN;
