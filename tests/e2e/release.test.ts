@@ -125,7 +125,8 @@ it('submit, judge, release at phone and wide width', async () => {
     await lead.page.getByTestId('release-confirm').click();
     await lead.page.locator('[data-testid="state-released"]:visible').first().waitFor();
     await dialog.waitFor({ state: 'detached' });
-    await lead.page.getByTestId('review-record').waitFor();
+    // The record is its own query, refetched after the decision: wait for its new line, not only the state chip.
+    await lead.page.getByTestId('review-record').getByText(/Quinn Mbeki released/).first().waitFor();
     expect(await lead.page.getByTestId('review-record').innerText()).toMatch(/Quinn Mbeki released[\s\S]*22 pass, 2 fail[\s\S]*Two modules to rework/);
     expect(await lead.page.getByTestId('upload-panel').count()).toBe(0); // released: read-only
     expect(await layoutProblems(lead.page)).toEqual([]);
