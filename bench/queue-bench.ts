@@ -128,7 +128,7 @@ async function timedUpload(url: string, curves: number, fitted: (batchId: string
   return { batchId, curves, upload_answer_s: round(answered / 1000), upload_to_fitted_s: round(total / 1000), curves_per_s: round(curves / (total / 1000)) };
 }
 
-export async function benchQueue(opts: { quick?: boolean; embeddedOnly?: boolean; postgresOnly?: boolean; nodeArgs?: string[] } = {}): Promise<Record<string, unknown>> {
+export async function benchQueue(opts: { quick?: boolean; embeddedOnly?: boolean; postgresOnly?: boolean; pgStatements?: boolean; nodeArgs?: string[] } = {}): Promise<Record<string, unknown>> {
   const curves = opts.quick ? 100 : 1000;
   const out: Record<string, unknown> = { curves };
   console.log(`queue — upload-to-fitted, ${curves} curves, one multipart request, through server processes`);
@@ -173,15 +173,18 @@ export async function benchQueue(opts: { quick?: boolean; embeddedOnly?: boolean
     return out;
   }
 
-  const cluster = await startCluster();
+  const cluster = await startCluster(opts.pgStatements ? { settings: ['shared_preload_libraries=pg_stat_statements'] } : {});
   const env = { DATABASE_URL: cluster.url, BETTER_AUTH_SECRET: 'queue-bench-secret-0123456789abcdef', QUASILEVEL_WORKER: '0', QUASILEVEL_ANALYSIS_THREADS: '1' };
   const workers: ChildProcess[] = [];
   const server = await startServerProcess({ env: { ...WARM_SERVER, ...env }, timeoutMs: 180_000 }).catch((err) => {
     cluster.stop();
     throw err;
   });
+  // One connection for the polling: a new one per poll costs the cluster a backend's start each time (~20 a second).
+  const poller = new Client({ connectionString: cluster.url });
   try {
-    const done = async (batchId: string) => (await query<{ n: number }>(cluster.url, "select count(*)::int as n from curve where batch_id = $1 and status = 'done'", [batchId]))[0].n;
+    await poller.connect();
+    const done = async (batchId: string) => (await poller.query<{ n: number }>("select count(*)::int as n from curve where batch_id = $1 and status = 'done'", [batchId])).rows[0].n;
     const runs: Record<string, unknown> = {};
     let growth: Record<string, unknown> = {};
     for (const n of [1, 3]) {
@@ -189,9 +192,12 @@ export async function benchQueue(opts: { quick?: boolean; embeddedOnly?: boolean
       const rowsBefore = await rowCounts(cluster.url);
       const [{ size: sizeBefore }] = await query<{ size: string }>(cluster.url, 'select pg_database_size(current_database())::text as size');
       const cpuOf = () => ({ server: processCpu(server.child.pid), workers: workers.map((w) => processCpu(w.pid)), postgres: postgresCpu() });
+      if (opts.pgStatements) await query(cluster.url, 'create extension if not exists pg_stat_statements; select pg_stat_statements_reset()');
       const cpuBefore = cpuOf();
       const r = await timedUpload(server.url, curves, done);
       const cpuAfter = cpuOf();
+      // --pg-statements: the statements that took longest (their time includes waits for row locks).
+      if (opts.pgStatements) for (const q of await query<{ ms: number; calls: number; query: string }>(cluster.url, "select round(total_exec_time)::int as ms, calls::int, left(regexp_replace(query, '\\s+', ' ', 'g'), 140) as query from pg_stat_statements order by total_exec_time desc limit 12")) console.log(`      ${String(q.ms).padStart(6)} ms  ${String(q.calls).padStart(5)}×  ${q.query}`);
       const cpu = { server: round(cpuAfter.server - cpuBefore.server), workers: cpuAfter.workers.map((c, k) => round(c - (cpuBefore.workers[k] ?? 0))), postgres: round(cpuAfter.postgres - cpuBefore.postgres) };
       runs[`workers_${n}`] = { ...r, batchId: undefined, per_worker_curves_per_s: round(r.curves_per_s / n), cpu_s: cpu };
       console.log(`  PostgreSQL, ${n} worker process(es) × 1 thread     ${r.upload_to_fitted_s} s  (${r.curves_per_s} curves/s, ${round(r.curves_per_s / n)} per worker; upload answered in ${r.upload_answer_s} s)`);
@@ -209,6 +215,7 @@ export async function benchQueue(opts: { quick?: boolean; embeddedOnly?: boolean
     }
     out.postgres = { mode: 'server with QUASILEVEL_WORKER=0, worker processes of 1 analysis thread, all on this machine', ...runs, ...growth };
   } finally {
+    await poller.end().catch(() => undefined);
     for (const w of workers) w.kill('SIGTERM');
     await Promise.all(workers.map((w) => (w.exitCode === null && w.signalCode === null ? new Promise((r) => w.once('exit', r)) : null)));
     await server.stop();

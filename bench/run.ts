@@ -6,7 +6,8 @@
  * bundle (first-load JavaScript of the web export), cli (the command line against MINPACK),
  * first-screen (a cold visit to the sign-in page in Chromium: paint, usable form, transfer),
  * queue (upload-to-fitted of 1,000 curves: embedded, and on PostgreSQL with 1 and 3 worker processes;
- * `--embedded-only` skips the PostgreSQL runs, `--postgres-only` the embedded one).
+ * `--embedded-only` skips the PostgreSQL runs, `--postgres-only` the embedded one; `--pg-statements`
+ * prints each PostgreSQL run's slowest statements, from pg_stat_statements).
  */
 import { mkdirSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
@@ -19,7 +20,7 @@ import { benchQueue } from '@/bench/queue-bench';
 import { benchServer } from '@/bench/server-bench';
 import { REPO_ROOT } from '@/tests/support/server-process';
 
-type Section = { name: string; run: (opts: { quick: boolean; embeddedOnly: boolean; postgresOnly: boolean }) => Promise<Record<string, unknown>> };
+type Section = { name: string; run: (opts: { quick: boolean; embeddedOnly: boolean; postgresOnly: boolean; pgStatements: boolean }) => Promise<Record<string, unknown>> };
 
 const sections: Section[] = [
   { name: 'iv-fit', run: benchIvFit },
@@ -83,13 +84,14 @@ async function main(): Promise<number> {
   const quick = process.argv.includes('--quick');
   const embeddedOnly = process.argv.includes('--embedded-only');
   const postgresOnly = process.argv.includes('--postgres-only');
+  const pgStatements = process.argv.includes('--pg-statements');
   const only = process.argv.find((a) => a.startsWith('--only='))?.slice('--only='.length);
   const startedAt = new Date().toISOString();
   const host = machine();
   const results: Record<string, Record<string, unknown>> = {};
   for (const section of sections) {
     if (only && section.name !== only) continue;
-    results[section.name] = await section.run({ quick, embeddedOnly, postgresOnly });
+    results[section.name] = await section.run({ quick, embeddedOnly, postgresOnly, pgStatements });
     console.log('');
   }
   const lines = summary(results);

@@ -64,7 +64,8 @@ function asPostgres(bin: string, args: string[]) {
 }
 
 /** Starts a new cluster; throws when it cannot (see clusterAvailable). */
-export async function startCluster(): Promise<Cluster> {
+/** `settings`: more server settings (`name=value`), e.g. a preloaded library for a profile. */
+export async function startCluster(options: { settings?: string[] } = {}): Promise<Cluster> {
   if (!ensurePostgres()) throw new Error('PostgreSQL server binaries are not installed (apt-get install postgresql).');
   const bin = postgresBin()!;
   const dir = mkdtempSync(path.join(os.tmpdir(), 'quasilevel-pg-'));
@@ -93,7 +94,7 @@ export async function startCluster(): Promise<Cluster> {
     }
     asPostgres(path.join(bin, 'initdb'), ['-D', data, '-A', 'trust', '-U', 'postgres', '-E', 'UTF8', '--no-sync']);
     const port = await freePort();
-    const opts = `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1 -c fsync=off -c max_connections=200`;
+    const opts = `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1 -c fsync=off -c max_connections=200${(options.settings ?? []).map((x) => ` -c ${x}`).join('')}`;
     asPostgres(path.join(bin, 'pg_ctl'), ['-D', data, '-o', opts, '-l', path.join(dir, 'pg.log'), '-w', '-t', '30', 'start']);
     started = true;
     asPostgres(path.join(bin, 'psql'), ['-h', '127.0.0.1', '-p', String(port), '-U', 'postgres', '-q', '-c', 'create database quasilevel']);

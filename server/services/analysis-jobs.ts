@@ -18,7 +18,7 @@ import type { Db } from '@/db/client';
 import { batch, curve, fit } from '@/db/schema';
 import type { Analyser, AnalysisOutcome } from '@/server/services/analysis-pool';
 import { touchBatch } from '@/server/services/answer-cache';
-import { lockBatch } from '@/server/services/batch-lock';
+import type { Tx } from '@/server/services/batch-lock';
 import { batchCoefficients, loadBatch, loadWritableBatch } from '@/server/services/batches';
 import { comparisonRecord, derivedColumns, storedFit } from '@/server/services/curves';
 
@@ -66,59 +66,91 @@ export async function startQueue(url: string): Promise<AnalysisQueue> {
   };
 }
 
-type Outcome = { id: string; batchId: string; outcome: AnalysisOutcome };
+type Outcome = { id: string; batchId: string; deviceId: string; outcome: AnalysisOutcome };
+
+/** The curve columns a fitted curve's store writes, with their SQL types (one bulk update, below). */
+const DONE_COLUMNS = ['metrics', 'flags', 'stc', 'isc_a', 'voc_v', 'pmp_w', 'ff', 'efficiency', 'n', 'rs_ohm', 'rsh_ohm', 'stc_pmp_w', 'iph_a', 'i0_a', 'rmse_a', 'fitted', 'flagCodes', 'record'] as const;
+type DoneRow = { id: string } & Record<(typeof DONE_COLUMNS)[number], unknown>;
+
+/**
+ * Writes the fitted curves of `rows` in one statement (their rows as one JSON parameter), each only
+ * while its status is not `done` or `failed`: the update locks the row and checks again, so a job
+ * taken twice stores once. Answers the ids written.
+ */
+async function storeDone(tx: Tx, rows: DoneRow[]): Promise<Set<string>> {
+  if (!rows.length) return new Set();
+  const cols = DONE_COLUMNS.map((k) => curve[k]);
+  const sets = sql.join(
+    cols.map((c) => sql`${sql.identifier(c.name)} = x.${sql.identifier(c.name)}`),
+    sql`, `,
+  );
+  const types = sql.join(
+    cols.map((c) => sql`${sql.identifier(c.name)} ${sql.raw(c.getSQLType())}`),
+    sql`, `,
+  );
+  const json = JSON.stringify(rows.map((r) => Object.fromEntries([['id', r.id], ...DONE_COLUMNS.map((k) => [curve[k].name, r[k]])])));
+  const written = await tx.execute<{ id: string }>(
+    sql`update ${curve} as c set ${sets}, status = 'done', status_reason = null from jsonb_to_recordset(${json}::jsonb) as x(id text, ${types}) where c.id = x.id and c.status not in ('done', 'failed') returning c.id`,
+  );
+  return new Set(written.rows.map((r) => r.id));
+}
 
 /** Fits queued curves on `analyser` and stores them; curves gone, cancelled or already done are skipped. */
 export async function fitQueuedCurves(db: Db, analyser: Analyser, curveIds: string[]): Promise<void> {
   if (!curveIds.length) return;
   const rows = await db
-    .select({ id: curve.id, batchId: curve.batchId, meta: curve.meta, voltage_v: curve.voltage_v, current_a: curve.current_a, notes: curve.notes, status: curve.status, b: batch })
+    .select({ id: curve.id, batchId: curve.batchId, deviceId: curve.deviceId, meta: curve.meta, voltage_v: curve.voltage_v, current_a: curve.current_a, notes: curve.notes, status: curve.status, b: batch })
     .from(curve)
     .innerJoin(batch, eq(batch.id, curve.batchId))
     .where(and(inArray(curve.id, curveIds), inArray(curve.status, ['queued', 'fitting'])));
   if (!rows.length) return;
-  const started = await db
-    .update(curve)
-    .set({ status: 'fitting' })
-    .where(and(inArray(curve.id, rows.map((r) => r.id)), eq(curve.status, 'queued')))
-    .returning({ batchId: curve.batchId });
-  // A new revision: every server process's cached answers then show `fitting`, not some `queued`.
-  for (const batchId of [...new Set(started.map((r) => r.batchId))].sort()) await touchBatch(db, batchId);
+  // Marked `fitting`, and a new revision of their batches in the same statement: every server
+  // process's cached answers then show `fitting`, not some `queued`.
+  await db.execute(
+    sql`with started as (update ${curve} set status = 'fitting' where ${inArray(curve.id, rows.map((r) => r.id))} and status = 'queued' returning batch_id)
+      update ${batch} set updated_at = greatest(date_trunc('milliseconds', now()), ${batch.updatedAt} + interval '1 millisecond') where id in (select batch_id from started)`,
+  );
   const outcomes: Outcome[] = await Promise.all(
     rows.map(async (r) => ({
       id: r.id,
       batchId: r.batchId,
+      deviceId: r.deviceId,
       outcome: await analyser.analyse({ curve: { voltage_v: r.voltage_v, current_a: r.current_a, meta: r.meta, notes: r.notes }, idealities: 'fixed', coefficients: batchCoefficients(r.b) }),
     })),
   );
+  // Everything is computed before the transaction: it holds its batches' row locks (which every
+  // store of those batches waits for) for four statements, whatever the fetch's size.
+  const done: DoneRow[] = [];
+  const fits: (typeof fit.$inferInsert)[] = [];
+  for (const { id, batchId, deviceId, outcome } of outcomes) {
+    if (!outcome.ok) continue;
+    const a = outcome.analysis;
+    const cols = derivedColumns(a);
+    done.push({ id, metrics: a.metrics, flags: a.flags, stc: a.stc, ...cols, record: comparisonRecord({ id, batch_id: batchId, device_id: deviceId }, a, cols) });
+    for (const f of a.fits) fits.push({ id: crypto.randomUUID(), curveId: id, model: f.model, current: true, result: storedFit(f), conditions: a.conditions, reason: 'upload', createdBy: null });
+  }
   await db.transaction(async (tx) => {
-    // The batches in one order, so two workers never wait on each other crosswise.
-    for (const batchId of [...new Set(outcomes.map((o) => o.batchId))].sort()) await lockBatch(tx, batchId);
-    const open = await tx
-      .select({ id: curve.id, deviceId: curve.deviceId, state: batch.state })
-      .from(curve)
-      .innerJoin(batch, eq(batch.id, curve.batchId))
-      .where(and(inArray(curve.id, outcomes.map((o) => o.id)), ne(curve.status, 'done'), ne(curve.status, 'failed')))
-      .for('update', { of: curve });
-    const byId = new Map(open.map((o) => [o.id, o]));
-    const fits: (typeof fit.$inferInsert)[] = [];
-    for (const { id, batchId, outcome } of outcomes) {
-      const row = byId.get(id);
-      // Stored already (a retried or doubled job), cancelled, or its batch released meanwhile: nothing to write.
-      if (!row || row.state === 'released') continue;
-      if (!outcome.ok) {
-        await tx.update(curve).set({ status: 'failed', statusReason: `The fits could not be computed: ${outcome.message}` }).where(eq(curve.id, id));
-        continue;
-      }
-      const a = outcome.analysis;
-      const cols = derivedColumns(a);
-      const record = comparisonRecord({ id, batch_id: batchId, device_id: row.deviceId }, a, cols);
-      await tx.update(curve).set({ metrics: a.metrics, flags: a.flags, stc: a.stc, ...cols, record, status: 'done', statusReason: null }).where(eq(curve.id, id));
-      for (const f of a.fits) fits.push({ id: crypto.randomUUID(), curveId: id, model: f.model, current: true, result: storedFit(f), conditions: a.conditions, reason: 'upload', createdBy: null });
+    // The batches locked (and their revision moved on) first, in one order, so two workers never
+    // wait on each other crosswise; a batch released meanwhile gets nothing.
+    const open = new Set<string>();
+    for (const batchId of [...new Set(outcomes.map((o) => o.batchId))].sort()) {
+      const [b] = await touchBatch(tx, batchId);
+      if (b && b.state !== 'released') open.add(batchId);
+    }
+    const batchOf = new Map(outcomes.map((o) => [o.id, o.batchId]));
+    const mine = (id: string) => open.has(batchOf.get(id)!);
+    // Stored already (a retried or doubled job) or cancelled: the update's own check skips it.
+    const written = await storeDone(tx, done.filter((d) => mine(d.id)));
+    for (const { id, outcome } of outcomes) {
+      if (outcome.ok || !mine(id)) continue;
+      await tx
+        .update(curve)
+        .set({ status: 'failed', statusReason: `The fits could not be computed: ${outcome.message}` })
+        .where(and(eq(curve.id, id), ne(curve.status, 'done'), ne(curve.status, 'failed')));
     }
     // The fetch's fits in one statement.
-    if (fits.length) await tx.insert(fit).values(fits);
-    for (const batchId of new Set(outcomes.filter((o) => byId.has(o.id)).map((o) => o.batchId))) await touchBatch(tx, batchId);
+    const mineFits = fits.filter((f) => written.has(f.curveId));
+    if (mineFits.length) await tx.insert(fit).values(mineFits);
   });
 }
 
