@@ -176,7 +176,7 @@ export async function benchQueue(opts: { quick?: boolean; embeddedOnly?: boolean
   const cluster = await startCluster(opts.pgStatements ? { settings: ['shared_preload_libraries=pg_stat_statements'] } : {});
   const env = { DATABASE_URL: cluster.url, BETTER_AUTH_SECRET: 'queue-bench-secret-0123456789abcdef', QUASILEVEL_WORKER: '0', QUASILEVEL_ANALYSIS_THREADS: '1' };
   const workers: ChildProcess[] = [];
-  const server = await startServerProcess({ env: { ...WARM_SERVER, ...env }, timeoutMs: 180_000 }).catch((err) => {
+  const server = await startServerProcess({ env: { ...WARM_SERVER, ...env }, timeoutMs: 180_000, nodeArgs: opts.nodeArgs }).catch((err) => {
     cluster.stop();
     throw err;
   });

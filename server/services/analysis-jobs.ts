@@ -156,13 +156,15 @@ export async function fitQueuedCurves(db: Db, analyser: Analyser, curveIds: stri
 
 /**
  * Jobs a poller takes at a time. Each fetch costs the same few round trips (select, mark fitting,
- * store, complete) whatever its size, and two pollers a thread keep the thread fitting while the
- * other one talks to the database: 16 and two a thread against 4 and one took 1,000 curves on one
- * worker thread from 9.9–11.8 s to 5.7–7.7 s, on three workers from 6.7–9.0 s to 5.8–6.5 s
- * (`npm run bench -- --only=queue --postgres-only`, 3 December 2026). A small upload's jobs wait
- * behind at most two fetches a thread, ~0.1 s.
+ * store, complete) whatever its size, and each mark and store holds the batch's row lock, which the
+ * upload's own stores wait for; two pollers a thread keep the thread fitting while the other one
+ * talks to the database. Measured on 1,000 curves (`npm run bench -- --only=queue --postgres-only`,
+ * 3 December 2026): 16 and two a thread against 4 and one took one worker from 9.9–11.8 s to
+ * 5.7–7.7 s; with the store in four statements, three workers took 4.3–5.2 s at 16, 4.3–5.0 s at 32,
+ * 4.3–4.6 s at 48 and 4.0–4.2 s at 64, the workers and PostgreSQL spending ~1 CPU-second less at 64
+ * than at 16. A small upload's jobs wait behind at most two fetches a thread: ~0.5 s of fits at 64.
  */
-export const JOBS_PER_FETCH = 16;
+export const JOBS_PER_FETCH = 64;
 
 /**
  * Takes analysis jobs in this process: `loops` pollers (two a thread), each fetching up to

@@ -7,7 +7,7 @@
 import { createHash } from 'node:crypto';
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
-import { eq } from 'drizzle-orm';
+import { eq, inArray } from 'drizzle-orm';
 import request from 'supertest';
 import { curve, fit, member, user } from '@/db/schema';
 import { simulateCurve } from '@/lib/iv';
@@ -204,7 +204,21 @@ describe('a released batch is final', () => {
     await expect(db.update(curve).set({ pmp_w: 1 }).where(eq(curve.id, row.id))).rejects.toBeTruthy();
     await expect(db.delete(curve).where(eq(curve.id, row.id))).rejects.toBeTruthy();
     await expect(db.update(fit).set({ current: false }).where(eq(fit.curveId, row.id))).rejects.toBeTruthy();
+    const [oneFit] = await db.select().from(fit).where(eq(fit.curveId, row.id));
+    await expect(db.insert(fit).values({ ...oneFit, id: crypto.randomUUID() })).rejects.toBeTruthy();
+    await expect(db.delete(fit).where(eq(fit.id, oneFit.id))).rejects.toBeTruthy();
+    // Moved in from an open batch, or out to one: refused as well (the old and the new batch are both checked).
+    const open = await makeBatch('trigger-open');
+    await expect(db.update(curve).set({ batchId: b.id }).where(eq(curve.id, open.curveIds[0]))).rejects.toBeTruthy();
+    await expect(db.update(curve).set({ batchId: open.id }).where(eq(curve.id, row.id))).rejects.toBeTruthy();
+    // One statement over curves of both batches is refused whole: the open batch's curve is unchanged too.
+    await expect(db.update(curve).set({ pmp_w: 2 }).where(inArray(curve.id, [open.curveIds[1], row.id]))).rejects.toBeTruthy();
+    expect((await db.select().from(curve).where(eq(curve.id, open.curveIds[1])))[0].pmp_w).not.toBe(2);
+    // The open batch's own curves and fits still change.
+    await db.update(curve).set({ pmp_w: 2 }).where(eq(curve.id, open.curveIds[1]));
+    await db.update(fit).set({ current: false }).where(eq(fit.curveId, open.curveIds[1]));
     expect(await curve_count(b.id)).toBe(3);
+    expect((await db.select({ n: fit.id }).from(fit).where(eq(fit.curveId, row.id))).length).toBeGreaterThan(0);
     expect((await db.select().from(curve).where(eq(curve.id, row.id)))[0].pmp_w).toBe(row.pmp_w);
 
     // The database's own error, as any route would meet it, goes out as 409 batch_released.
